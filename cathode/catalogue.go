@@ -1,0 +1,298 @@
+package cathode
+
+import (
+	"bytes"
+	"fmt"
+	"io"
+	"io/fs"
+	"math"
+	"sort"
+	"strings"
+	"sync"
+
+	"blackmass/data"
+)
+
+// Range is a model parameter's spread: minimum, most likely and maximum, in the unit its name
+// carries.
+type Range struct {
+	Min, Mode, Max float64
+}
+
+// Valid reports whether Min <= Mode <= Max and all are finite.
+func (r Range) Valid() bool {
+	return r.Min <= r.Mode && r.Mode <= r.Max && !math.IsInf(r.Min, 0) && !math.IsInf(r.Max, 0)
+}
+
+// Entry is one cathode active material in the catalogue.
+type Entry struct {
+	Key      string // canonical label, e.g. "NMC811"
+	Name     string
+	Formula  Formula
+	Species  Species
+	Family   string // layered, spinel, olivine
+	Aliases  []string
+	VoltageV Range // nominal cell voltage against graphite, V
+	// CapacityMAhPerG is the practical reversible specific capacity of the active material.
+	CapacityMAhPerG Range
+	// SpecificEnergyWhPerKg is the plausible band of cell-level specific energy (Min, Max only).
+	SpecificEnergyWhPerKg Range
+	Source                string
+	// Catalogued is false for a formula typed directly and given its family's defaults.
+	Catalogued bool
+}
+
+// MolarMassGPerMol returns the molar mass of the material.
+func (e *Entry) MolarMassGPerMol() float64 { return e.Formula.MolarMass(DefaultElements()) }
+
+// TheoreticalCapacityMAhPerG returns n·F/(3.6·M) with n the lithium per formula unit.
+func (e *Entry) TheoreticalCapacityMAhPerG() float64 {
+	return TheoreticalCapacityMAhPerG(e.Formula.Moles("Li"), e.MolarMassGPerMol())
+}
+
+// Catalogue holds the known chemistries, the family defaults for formulas typed directly, and
+// the prior mix used for unknown cells.
+type Catalogue struct {
+	entries  []*Entry
+	byName   map[string]*Entry // normalised key or alias -> entry
+	families map[string]*Entry // family -> defaults (Formula empty)
+	prior    []Component
+	priorSrc string
+}
+
+// LoadCatalogue reads chemistries.csv, families.csv and prior.csv from fsys.
+func LoadCatalogue(fsys fs.FS) (*Catalogue, error) {
+	c := &Catalogue{byName: map[string]*Entry{}, families: map[string]*Entry{}}
+	b, err := fs.ReadFile(fsys, "chemistries.csv")
+	if err != nil {
+		return nil, err
+	}
+	if err := c.Add(bytes.NewReader(b), "chemistries.csv"); err != nil {
+		return nil, err
+	}
+	ft, err := data.ReadTable(fsys, "families.csv")
+	if err != nil {
+		return nil, err
+	}
+	for _, r := range ft.Rows {
+		e := &Entry{Key: r.Str("family"), Name: r.Str("description"), Family: r.Str("family"), Source: r.Str("source")}
+		if err := readRanges(r, e); err != nil {
+			return nil, err
+		}
+		c.families[e.Family] = e
+	}
+	pb, err := fs.ReadFile(fsys, "prior.csv")
+	if err != nil {
+		return nil, err
+	}
+	if err := c.SetPrior(bytes.NewReader(pb), "prior.csv"); err != nil {
+		return nil, err
+	}
+	return c, nil
+}
+
+func readRanges(r data.Row, e *Entry) error {
+	var err error
+	if e.VoltageV.Min, e.VoltageV.Mode, e.VoltageV.Max, err = r.Range("voltage", "_V"); err != nil {
+		return err
+	}
+	if e.CapacityMAhPerG.Min, e.CapacityMAhPerG.Mode, e.CapacityMAhPerG.Max, err = r.Range("capacity", "_mAh_g"); err != nil {
+		return err
+	}
+	if e.SpecificEnergyWhPerKg.Min, err = r.Float("specific_energy_min_Wh_kg"); err != nil {
+		return err
+	}
+	if e.SpecificEnergyWhPerKg.Max, err = r.Float("specific_energy_max_Wh_kg"); err != nil {
+		return err
+	}
+	e.SpecificEnergyWhPerKg.Mode = (e.SpecificEnergyWhPerKg.Min + e.SpecificEnergyWhPerKg.Max) / 2
+	switch {
+	case e.VoltageV.Min <= 0 || e.VoltageV.Max > 6:
+		return r.Errorf("voltage must lie in (0, 6] V")
+	case e.CapacityMAhPerG.Min <= 0 || e.CapacityMAhPerG.Max > 400:
+		return r.Errorf("capacity must lie in (0, 400] mAh/g")
+	case e.SpecificEnergyWhPerKg.Min <= 0 || e.SpecificEnergyWhPerKg.Min > e.SpecificEnergyWhPerKg.Max:
+		return r.Errorf("specific energy band must be positive and ordered")
+	}
+	return nil
+}
+
+// Add reads catalogue rows (the columns of chemistries.csv) from r. A row whose key is already
+// known replaces the earlier one. name is used in error messages.
+func (c *Catalogue) Add(r io.Reader, name string) error {
+	t, err := data.ParseTable(r, name)
+	if err != nil {
+		return err
+	}
+	for _, col := range []string{"key", "formula", "family", "voltage_mode_V", "capacity_mode_mAh_g"} {
+		if !t.Has(col) {
+			return fmt.Errorf("%s: missing column %q", name, col)
+		}
+	}
+	for _, row := range t.Rows {
+		key := row.Str("key")
+		if key == "" {
+			return row.Errorf("empty key")
+		}
+		f, err := ParseFormula(row.Str("formula"))
+		if err != nil {
+			return row.Errorf("%v", err)
+		}
+		sp, err := NewSpecies(f)
+		if err != nil {
+			return row.Errorf("%v", err)
+		}
+		if f.Moles("Li") <= 0 {
+			return row.Errorf("formula %s holds no lithium", f)
+		}
+		e := &Entry{Key: key, Name: row.Str("name"), Formula: f, Species: sp, Family: row.Str("family"), Source: row.Str("source"), Catalogued: true}
+		if err := readRanges(row, e); err != nil {
+			return err
+		}
+		for _, a := range strings.Split(row.Str("aliases"), "|") {
+			if a = strings.TrimSpace(a); a != "" {
+				e.Aliases = append(e.Aliases, a)
+			}
+		}
+		if old := c.byName[normLabel(key)]; old != nil && old.Key == key {
+			for i, x := range c.entries {
+				if x == old {
+					c.entries = append(c.entries[:i], c.entries[i+1:]...)
+					break
+				}
+			}
+			for k, v := range c.byName {
+				if v == old {
+					delete(c.byName, k)
+				}
+			}
+		}
+		c.entries = append(c.entries, e)
+		for _, n := range append([]string{key}, e.Aliases...) {
+			c.byName[normLabel(n)] = e
+		}
+	}
+	return nil
+}
+
+// SetPrior reads the mix assumed for unknown cells: columns chemistry, mass_fraction, source.
+// Fractions must be non-negative and are normalised to sum to 1.
+func (c *Catalogue) SetPrior(r io.Reader, name string) error {
+	t, err := data.ParseTable(r, name)
+	if err != nil {
+		return err
+	}
+	var comps []Component
+	sum := 0.0
+	for _, row := range t.Rows {
+		e := c.byName[normLabel(row.Str("chemistry"))]
+		if e == nil {
+			return row.Errorf("prior names %q, which is not in the catalogue", row.Str("chemistry"))
+		}
+		w, err := row.Float("mass_fraction")
+		if err != nil {
+			return err
+		}
+		if w < 0 {
+			return row.Errorf("mass_fraction must not be negative")
+		}
+		comps = append(comps, Component{e, w})
+		sum += w
+	}
+	if sum <= 0 {
+		return fmt.Errorf("%s: the prior's fractions sum to zero", name)
+	}
+	for i := range comps {
+		comps[i].MassFraction /= sum
+	}
+	c.prior, c.priorSrc = comps, name
+	return nil
+}
+
+// Entries returns the catalogue entries in file order.
+func (c *Catalogue) Entries() []*Entry { return append([]*Entry(nil), c.entries...) }
+
+// Lookup returns the entry for a key or alias, or nil.
+func (c *Catalogue) Lookup(label string) *Entry { return c.byName[normLabel(label)] }
+
+// Family returns the defaults for a family (layered, spinel, olivine), or nil.
+func (c *Catalogue) Family(name string) *Entry { return c.families[name] }
+
+// Prior returns the mix assumed for unknown cells.
+func (c *Catalogue) Prior() []Component { return append([]Component(nil), c.prior...) }
+
+// normLabel folds case and drops spaces, dashes, underscores and brackets.
+func normLabel(s string) string {
+	var b strings.Builder
+	for _, r := range strings.ToUpper(s) {
+		switch r {
+		case ' ', '-', '_', '(', ')', '\t':
+			continue
+		}
+		b.WriteRune(r)
+	}
+	return b.String()
+}
+
+// nearest returns up to n catalogue keys closest to label by edit distance over keys and aliases.
+func (c *Catalogue) nearest(label string, n int) []string {
+	q := normLabel(label)
+	best := map[string]int{}
+	for name, e := range c.byName {
+		d := editDistance(q, name)
+		if old, ok := best[e.Key]; !ok || d < old {
+			best[e.Key] = d
+		}
+	}
+	keys := make([]string, 0, len(best))
+	for k := range best {
+		keys = append(keys, k)
+	}
+	sort.Slice(keys, func(i, j int) bool {
+		if best[keys[i]] != best[keys[j]] {
+			return best[keys[i]] < best[keys[j]]
+		}
+		return keys[i] < keys[j]
+	})
+	if len(keys) > n {
+		keys = keys[:n]
+	}
+	return keys
+}
+
+func editDistance(a, b string) int {
+	ra, rb := []rune(a), []rune(b)
+	prev := make([]int, len(rb)+1)
+	cur := make([]int, len(rb)+1)
+	for j := range prev {
+		prev[j] = j
+	}
+	for i := 1; i <= len(ra); i++ {
+		cur[0] = i
+		for j := 1; j <= len(rb); j++ {
+			cost := 1
+			if ra[i-1] == rb[j-1] {
+				cost = 0
+			}
+			cur[j] = min(prev[j]+1, cur[j-1]+1, prev[j-1]+cost)
+		}
+		prev, cur = cur, prev
+	}
+	return prev[len(rb)]
+}
+
+var defaultCatalogue = sync.OnceValues(func() (*Catalogue, error) { return LoadCatalogue(data.FS) })
+
+// DefaultCatalogue returns a fresh copy of the embedded catalogue, safe to extend with Add.
+func DefaultCatalogue() (*Catalogue, error) {
+	c, err := defaultCatalogue()
+	if err != nil {
+		return nil, err
+	}
+	cp := &Catalogue{byName: map[string]*Entry{}, families: c.families, prior: c.Prior(), priorSrc: c.priorSrc}
+	cp.entries = c.Entries()
+	for k, v := range c.byName {
+		cp.byName[k] = v
+	}
+	return cp, nil
+}

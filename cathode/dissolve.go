@@ -1,0 +1,302 @@
+package cathode
+
+import (
+	"fmt"
+	"math"
+	"sort"
+	"strings"
+)
+
+// Route is an acid-leach route.
+type Route int
+
+const (
+	// RouteInvalid is the zero value.
+	RouteInvalid Route = iota
+	// SulfuricPeroxide: H2SO4 with H2O2 as reductant (H2O2 -> O2 + 2H+ + 2e-) for Co(III),
+	// Ni(III/IV), Mn(IV), and as oxidant for copper metal.
+	SulfuricPeroxide
+	// Hydrochloric: HCl with no added reductant. Chloride is oxidised (2Cl- -> Cl2 + 2e-) by the
+	// high-valent metals; copper metal stays undissolved.
+	Hydrochloric
+	// SulfuricSelective: H2SO4 with H2O2 as oxidant for phosphate cathodes: Fe(II) is oxidised
+	// and stays in the residue as FePO4 while Li dissolves.
+	SulfuricSelective
+)
+
+var routeNames = map[Route]string{
+	SulfuricPeroxide:  "sulfuric-peroxide",
+	Hydrochloric:      "hydrochloric",
+	SulfuricSelective: "sulfuric-selective",
+}
+
+// Routes lists every valid route.
+func Routes() []Route { return []Route{SulfuricPeroxide, Hydrochloric, SulfuricSelective} }
+
+func (r Route) String() string {
+	if s, ok := routeNames[r]; ok {
+		return s
+	}
+	return fmt.Sprintf("Route(%d)", int(r))
+}
+
+// ParseRoute accepts a route name as printed by String, or the short forms "h2so4", "hcl",
+// "selective".
+func ParseRoute(s string) (Route, error) {
+	switch strings.ToLower(strings.TrimSpace(s)) {
+	case "sulfuric-peroxide", "sulphuric-peroxide", "h2so4", "sulfuric", "h2so4-h2o2":
+		return SulfuricPeroxide, nil
+	case "hydrochloric", "hcl":
+		return Hydrochloric, nil
+	case "sulfuric-selective", "selective", "selective-li":
+		return SulfuricSelective, nil
+	}
+	return RouteInvalid, fmt.Errorf("unknown leach route %q (want sulfuric-peroxide, hydrochloric or sulfuric-selective)", s)
+}
+
+// Acid returns the acid's formula text: "H2SO4" or "HCl".
+func (r Route) Acid() string {
+	if r == Hydrochloric {
+		return "HCl"
+	}
+	return "H2SO4"
+}
+
+// AcidProtons is the number of H+ each mole of the route's acid gives (2 for H2SO4, 1 for HCl).
+func (r Route) AcidProtons() float64 {
+	if r == Hydrochloric {
+		return 1
+	}
+	return 2
+}
+
+// Anion returns the liquor anion: "SO4" or "Cl".
+func (r Route) Anion() string {
+	if r == Hydrochloric {
+		return "Cl"
+	}
+	return "SO4"
+}
+
+// AnionCharge returns the magnitude of the liquor anion's charge.
+func (r Route) AnionCharge() float64 { return r.AcidProtons() }
+
+// Ion is an amount of an aqueous ion.
+type Ion struct {
+	Symbol string
+	Charge float64
+	Mol    float64
+}
+
+// Reaction is the dissolution of one mole of a species on a route, with each element dissolving
+// to the fraction the caller chose. All amounts are mol per mol of species; gases and reagents
+// are positive when produced (gases) or consumed (reagents).
+type Reaction struct {
+	Species Species
+	Route   Route
+
+	HPlusMol          float64 // H+ taken up by the solid's anions (oxide -> H2O, phosphate -> H3PO4 ...)
+	ElectronsMol      float64 // net electrons the solid takes up (positive: reduction needed)
+	AcidMol           float64 // H2SO4 or HCl consumed
+	H2O2ReductantMol  float64 // H2O2 oxidised to O2 while reducing the solid
+	H2O2OxidantMol    float64 // H2O2 reduced to water while oxidising Fe(II) or copper
+	O2Mol             float64
+	Cl2Mol            float64
+	H2Mol             float64
+	CO2Mol            float64
+	WaterMol          float64 // net water produced (negative: consumed)
+	Cations           []Ion   // to the liquor
+	AnionMol          float64 // SO4(2-) or Cl- left in the liquor
+	H3PO4Mol          float64 // phosphate to the liquor as H3PO4
+	HFMol             float64 // fluoride to the liquor as HF
+	Residue           []Term  // element moles that stay solid
+	ResidueFePO4Mol   float64 // of Residue, the FePO4 formed on the selective route
+	UndissolvedCopper bool    // copper metal left because the route has no oxidant
+}
+
+// Extraction gives the fraction (0..1) of an element that goes to the liquor. A nil Extraction
+// means complete dissolution.
+type Extraction func(symbol string) float64
+
+// Dissolve returns the stoichiometry of dissolving one mole of sp on route, with each metal
+// extracted to the fraction x gives (nil: all of it). Elements the route cannot dissolve stay in
+// the residue whatever x says: graphite and polymers, Ti/Zr/Nb oxides, copper metal on the
+// hydrochloric route, and iron of a phosphate on the selective route (as FePO4).
+//
+// The demand follows from oxidation states alone: a = Σ released·s + Σ retained·(s−r) H+ go to
+// the anions (s: state in the solid, r: state in the residue), and e = Σ released·(s−z) +
+// Σ retained·(s−r) electrons (z: charge in the liquor) come from the route's reductant (e > 0),
+// from H+ as H2 for metals that are less noble than hydrogen, or go to the route's oxidant.
+func Dissolve(sp Species, route Route, x Extraction) (Reaction, error) {
+	rx := Reaction{Species: sp, Route: route}
+	if _, ok := routeNames[route]; !ok {
+		return rx, fmt.Errorf("dissolve %s: invalid route", sp.Formula.text)
+	}
+	if sp.inert {
+		for _, t := range sp.Formula.terms {
+			rx.Residue = append(rx.Residue, Term{t.Symbol, t.Amount})
+		}
+		return rx, nil
+	}
+	es := DefaultElements()
+	frac := func(sym string) (float64, error) {
+		if x == nil {
+			return 1, nil
+		}
+		v := x(sym)
+		if !(v >= 0 && v <= 1) {
+			return 0, fmt.Errorf("dissolve %s: extraction of %s is %v, want 0..1", sp.Formula.text, sym, v)
+		}
+		return v, nil
+	}
+	var eRed, eOx, eH2, retainedCharge float64
+	residue := map[string]float64{}
+	phosphateRetainedWithFe := 0.0
+	for _, t := range sp.Formula.terms {
+		if !IsMetal(t.Symbol) {
+			continue
+		}
+		s := sp.state[t.Symbol]
+		z, r := aqueousCharge(t.Symbol), s
+		xf, err := frac(t.Symbol)
+		if err != nil {
+			return rx, err
+		}
+		switch {
+		case t.Symbol == "Ti" || t.Symbol == "Zr" || t.Symbol == "Nb":
+			xf = 0 // refractory oxides stay in the residue
+		case sp.metallic && t.Symbol == "Cu" && route == Hydrochloric:
+			xf = 0
+			rx.UndissolvedCopper = true
+		case route == SulfuricSelective && t.Symbol == "Fe" && sp.anionic == "phosphate":
+			xf, r = 0, 3
+			phosphateRetainedWithFe = t.Amount
+		}
+		if z == 0 {
+			return rx, fmt.Errorf("dissolve %s: no aqueous state for %s", sp.Formula.text, t.Symbol)
+		}
+		released, retained := t.Amount*xf, t.Amount*(1-xf)
+		rx.HPlusMol += released*s + retained*(s-r)
+		e := released*(s-z) + retained*(s-r)
+		switch {
+		case sp.metallic:
+			el := es.Lookup(t.Symbol)
+			if el.HasPotential && el.StandardPotential > 0 {
+				eOx += -e
+			} else {
+				eH2 += -e
+			}
+		case e > 0:
+			eRed += e
+		default:
+			eOx += -e
+		}
+		retainedCharge += retained * r
+		if released > 0 {
+			rx.Cations = append(rx.Cations, Ion{t.Symbol, z, released})
+		}
+		if retained > 0 {
+			residue[t.Symbol] += retained
+		}
+	}
+	rx.ElectronsMol = eRed - eOx - eH2
+	// Anions: the residue keeps enough of them to stay neutral (phosphate first, with iron on the
+	// selective route), the rest leave as H3PO4, H2O, CO2 or HF.
+	nP, nO, nF, nC := sp.Formula.Moles("P"), sp.Formula.Moles("O"), sp.Formula.Moles("F"), sp.Formula.Moles("C")
+	switch sp.anionic {
+	case "phosphate":
+		keepP := math.Min(nP, math.Max(phosphateRetainedWithFe, retainedCharge/3))
+		rx.ResidueFePO4Mol = phosphateRetainedWithFe
+		rest := retainedCharge - 3*keepP
+		keepO := 4*keepP + math.Max(rest, 0)/2
+		residue["P"] += keepP
+		residue["O"] += keepO
+		rx.H3PO4Mol = nP - keepP
+		rx.WaterMol = (nO - keepO) - 4*rx.H3PO4Mol
+	case "carbonate":
+		keepC := math.Min(nC, retainedCharge/2)
+		residue["C"] += keepC
+		residue["O"] += 3 * keepC
+		rx.CO2Mol = nC - keepC
+		rx.WaterMol = (nO - 3*keepC) - 2*rx.CO2Mol
+	case "oxide":
+		keepO := retainedCharge / 2
+		residue["O"] += keepO
+		rx.WaterMol = nO - keepO
+	case "fluoride":
+		residue["F"] += retainedCharge
+		rx.HFMol = nF - retainedCharge
+	case "hexafluorophosphate":
+		keepP := retainedCharge // one PF6- per unit charge
+		residue["P"] += keepP
+		residue["F"] += 6 * keepP
+		rx.H3PO4Mol = nP - keepP
+		rx.HFMol = 6 * rx.H3PO4Mol
+		rx.WaterMol = -4 * rx.H3PO4Mol
+	}
+	// Redox partners.
+	switch route {
+	case SulfuricPeroxide, SulfuricSelective:
+		rx.H2O2ReductantMol = eRed / 2
+		rx.O2Mol = eRed / 2
+		rx.H2O2OxidantMol = eOx / 2
+	case Hydrochloric:
+		rx.Cl2Mol = eRed / 2
+		if eOx > 0 {
+			return rx, fmt.Errorf("dissolve %s: the hydrochloric route has no oxidant for it", sp.Formula.text)
+		}
+	}
+	rx.H2Mol = eH2 / 2
+	rx.WaterMol += 2 * rx.H2O2OxidantMol
+	// H+ from the acid: taken up by the anions, by H2 evolution and by the oxidant; given back by
+	// peroxide acting as reductant.
+	hPlus := rx.HPlusMol + eH2 + eOx
+	if route != Hydrochloric {
+		hPlus -= eRed
+	}
+	rx.AcidMol = hPlus / route.AcidProtons()
+	// The liquor's anions: all the sulfate added; chloride less what left as Cl2.
+	rx.AnionMol = rx.AcidMol
+	if route == Hydrochloric {
+		rx.AnionMol = rx.AcidMol - 2*rx.Cl2Mol
+	}
+	for sym, n := range residue {
+		if n > 1e-15 {
+			rx.Residue = append(rx.Residue, Term{sym, n})
+		}
+	}
+	sort.Slice(rx.Residue, func(i, j int) bool { return rx.Residue[i].Symbol < rx.Residue[j].Symbol })
+	return rx, nil
+}
+
+// aqueousCharge is the charge of each metal's ion in an acid leach liquor (0: no rule).
+func aqueousCharge(symbol string) float64 {
+	switch symbol {
+	case "Li", "Na", "K":
+		return 1
+	case "Mg", "Ca", "Zn", "Mn", "Fe", "Co", "Ni", "Cu":
+		return 2
+	case "Al":
+		return 3
+	case "Ti", "Zr":
+		return 4
+	case "Nb":
+		return 5
+	}
+	return 0
+}
+
+// LiquorCharge returns Σ z·c of the cations minus the anions' charge: zero when the liquor left
+// at exact stoichiometry is neutral.
+func (rx Reaction) LiquorCharge() float64 {
+	q := 0.0
+	for _, c := range rx.Cations {
+		q += c.Charge * c.Mol
+	}
+	return q - rx.Route.AnionCharge()*rx.AnionMol
+}
+
+// PerKg converts per-mol amounts to per-kg-of-species: returns mol per kg for a per-mol amount.
+func (rx Reaction) PerKg(molPerMol float64) float64 {
+	return molPerMol * 1000 / rx.Species.Formula.MolarMass(DefaultElements())
+}

@@ -1,0 +1,203 @@
+package cathode_test
+
+import (
+	"math"
+	"testing"
+
+	"blackmass/cathode"
+)
+
+func mustReact(t testing.TB, formula string, route cathode.Route) cathode.Reaction {
+	t.Helper()
+	sp, err := cathode.NewSpecies(mustFormula(t, formula))
+	if err != nil {
+		t.Fatal(err)
+	}
+	rx, err := cathode.Dissolve(sp, route, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return rx
+}
+
+func cation(rx cathode.Reaction, sym string) float64 {
+	for _, c := range rx.Cations {
+		if c.Symbol == sym {
+			return c.Mol
+		}
+	}
+	return 0
+}
+
+// Balanced equations of the leaching literature, per mole of solid, reproduced by the charge
+// balance (nothing below is typed in per chemistry in the program).
+func TestLiteratureEquations(t *testing.T) {
+	// 2LiCoO2 + 3H2SO4 + H2O2 -> Li2SO4 + 2CoSO4 + 4H2O + O2 (standard textbook form of the
+	// reductive sulfuric leach; e.g. Shin et al., Hydrometallurgy 79 (2005) 172).
+	rx := mustReact(t, "LiCoO2", cathode.SulfuricPeroxide)
+	approx(t, "H2SO4/LiCoO2", rx.AcidMol, 1.5, 1e-12)
+	approx(t, "H2O2/LiCoO2", rx.H2O2ReductantMol+rx.H2O2OxidantMol, 0.5, 1e-12)
+	approx(t, "H2O/LiCoO2", rx.WaterMol, 2, 1e-12)
+	approx(t, "O2/LiCoO2", rx.O2Mol, 0.5, 1e-12)
+	approx(t, "Co2+/LiCoO2", cation(rx, "Co"), 1, 1e-12)
+
+	// 2LiCoO2 + 8HCl -> 2LiCl + 2CoCl2 + Cl2 + 4H2O (Xuan, Otsuki, Chagnes, RSC Adv. 2019, same
+	// form for NMC811; Zhang et al., Hydrometallurgy 47 (1998) 259 for LiCoO2).
+	rx = mustReact(t, "LiCoO2", cathode.Hydrochloric)
+	approx(t, "HCl/LiCoO2", rx.AcidMol, 4, 1e-12)
+	approx(t, "Cl2/LiCoO2", rx.Cl2Mol, 0.5, 1e-12)
+	approx(t, "H2O/LiCoO2 (HCl)", rx.WaterMol, 2, 1e-12)
+	approx(t, "Cl- left/LiCoO2", rx.AnionMol, 3, 1e-12)
+	rx = mustReact(t, "LiNi0.8Mn0.1Co0.1O2", cathode.Hydrochloric)
+	approx(t, "HCl/NMC811", rx.AcidMol, 4, 1e-12)
+	approx(t, "Cl2/NMC811", rx.Cl2Mol, 0.5, 1e-12)
+
+	// 2LiFePO4 + H2SO4 + H2O2 -> Li2SO4 + 2FePO4 + 2H2O (selective oxidative Li leach;
+	// Li et al., ACS Sustain. Chem. Eng. 5 (2017) 8017).
+	rx = mustReact(t, "LiFePO4", cathode.SulfuricSelective)
+	approx(t, "H2SO4/LiFePO4", rx.AcidMol, 0.5, 1e-12)
+	approx(t, "H2O2/LiFePO4", rx.H2O2OxidantMol, 0.5, 1e-12)
+	approx(t, "FePO4/LiFePO4", rx.ResidueFePO4Mol, 1, 1e-12)
+	approx(t, "H2O/LiFePO4", rx.WaterMol, 1, 1e-12)
+	approx(t, "Fe2+ in liquor", cation(rx, "Fe"), 0, 0)
+
+	// NCA: 2LiNi0.8Co0.15Al0.05O2 + 3.05H2SO4 + 0.95H2O2 -> ... (balance derived in REFERENCES §5a R3).
+	rx = mustReact(t, "LiNi0.8Co0.15Al0.05O2", cathode.SulfuricPeroxide)
+	approx(t, "H2SO4/NCA", rx.AcidMol, 1.525, 1e-12)
+	approx(t, "H2O2/NCA", rx.H2O2ReductantMol, 0.475, 1e-12)
+	// 2LiMn2O4 + 5H2SO4 + 3H2O2 -> Li2SO4 + 4MnSO4 + 8H2O + 3O2 (REFERENCES §5a R4, balance derived).
+	rx = mustReact(t, "LiMn2O4", cathode.SulfuricPeroxide)
+	approx(t, "H2SO4/LMO", rx.AcidMol, 2.5, 1e-12)
+	approx(t, "H2O2/LMO", rx.H2O2ReductantMol, 1.5, 1e-12)
+	// 2LiFePO4 + 3H2SO4 -> Li2SO4 + 2FeSO4 + 2H3PO4 (full non-oxidative dissolution, R6).
+	rx = mustReact(t, "LiFePO4", cathode.SulfuricPeroxide)
+	approx(t, "H2SO4/LFP full", rx.AcidMol, 1.5, 1e-12)
+	approx(t, "H2O2/LFP full", rx.H2O2ReductantMol+rx.H2O2OxidantMol, 0, 1e-12)
+	approx(t, "H3PO4/LFP full", rx.H3PO4Mol, 1, 1e-12)
+	// 2Al + 3H2SO4 -> Al2(SO4)3 + 3H2 (R8), and Cu + H2O2 + H2SO4 -> CuSO4 + 2H2O (R10).
+	rx = mustReact(t, "Al", cathode.SulfuricPeroxide)
+	approx(t, "H2SO4/Al", rx.AcidMol, 1.5, 1e-12)
+	approx(t, "H2/Al", rx.H2Mol, 1.5, 1e-12)
+	rx = mustReact(t, "Cu", cathode.SulfuricPeroxide)
+	approx(t, "H2SO4/Cu", rx.AcidMol, 1, 1e-12)
+	approx(t, "H2O2/Cu", rx.H2O2OxidantMol, 1, 1e-12)
+	approx(t, "H2/Cu", rx.H2Mol, 0, 0)
+	if rx := mustReact(t, "Cu", cathode.Hydrochloric); !rx.UndissolvedCopper || rx.AcidMol != 0 {
+		t.Errorf("Cu in HCl without oxidant should stay undissolved, got %+v", rx)
+	}
+}
+
+// Per kg of pure LiCoO2 at stoichiometry: 1.503 kg H2SO4 and 0.174 kg H2O2 (R1); 1.490 kg HCl and
+// 0.362 kg Cl2 (R5). REFERENCES §5b, computed from the balanced equations with CIAAW 2021.
+func TestPerKgLiCoO2(t *testing.T) {
+	es := cathode.DefaultElements()
+	m := func(s string) float64 { return mustFormula(t, s).MolarMass(es) / 1000 } // kg/mol
+	rx := mustReact(t, "LiCoO2", cathode.SulfuricPeroxide)
+	approx(t, "kg H2SO4/kg LCO", rx.PerKg(rx.AcidMol)*m("H2SO4"), 1.503, 0.0075)
+	approx(t, "kg H2O2/kg LCO", rx.PerKg(rx.H2O2ReductantMol)*m("H2O2"), 0.174, 0.001)
+	rx = mustReact(t, "LiCoO2", cathode.Hydrochloric)
+	approx(t, "kg HCl/kg LCO", rx.PerKg(rx.AcidMol)*m("HCl"), 1.490, 0.0075)
+	approx(t, "kg Cl2/kg LCO", rx.PerKg(rx.Cl2Mol)*m("Cl2"), 0.362, 0.002)
+}
+
+// Metal dissolution rule of thumb (common practice): 10 g of cobalt metal needs about 0.34 mol
+// HCl (Co + 2HCl -> CoCl2 + H2), about 56 mL of the HCl-water azeotrope (20.2 wt% HCl, CRC
+// Handbook; density 1.098 g/mL at 20 °C for 20 wt% HCl, Perry's table, from memory), so 100 mL
+// of it (1.8x) is ample.
+func TestCobaltMetalInAzeotrope(t *testing.T) {
+	es := cathode.DefaultElements()
+	rx := mustReact(t, "Co", cathode.Hydrochloric)
+	molHCl := rx.AcidMol * 10 / es.Weight("Co")
+	approx(t, "mol HCl for 10 g Co", molHCl, 0.34, 0.005)
+	mL := molHCl * mustFormula(t, "HCl").MolarMass(es) / 0.202 / 1.098
+	approx(t, "mL azeotrope for 10 g Co", mL, 56, 1)
+	if 100/mL < 1.7 {
+		t.Errorf("100 mL is only %.2fx stoichiometric", 100/mL)
+	}
+	approx(t, "H2 from 10 g Co", rx.H2Mol*10/es.Weight("Co"), 10/es.Weight("Co"), 1e-12)
+}
+
+// H2 from aluminium in acid: 1.5 mol H2 per mol Al, 0.0556 mol/g, 1.246 L/g at 0 °C and 1 atm
+// (REFERENCES §10 check 13; R8 + ideal gas 22.414 L/mol, CODATA).
+func TestHydrogenFromAluminium(t *testing.T) {
+	es := cathode.DefaultElements()
+	rx := mustReact(t, "Al", cathode.SulfuricPeroxide)
+	molPerG := rx.H2Mol / es.Weight("Al")
+	approx(t, "mol H2 per g Al", molPerG, 0.0556, 0.0001)
+	approx(t, "L H2 per g Al", molPerG*22.414, 1.246, 0.0025)
+}
+
+// Every catalogue entry and every other black-mass species, on every route, at full and partial
+// extraction, conserves every element and closes the liquor's charge balance.
+func TestConservation(t *testing.T) {
+	cat, err := cathode.DefaultCatalogue()
+	if err != nil {
+		t.Fatal(err)
+	}
+	var formulas []string
+	for _, e := range cat.Entries() {
+		formulas = append(formulas, e.Formula.String())
+	}
+	formulas = append(formulas, "Al", "Cu", "Fe", "Co", "Ni", "C", "C2H2F2", "LiPF6", "Li2CO3", "Li4Ti5O12", "LiNi0.9Mn0.05Co0.05O2")
+	partial := func(sym string) float64 { return map[string]float64{"Li": 0.97, "Co": 0.9, "Ni": 0.85, "Mn": 0.7, "Fe": 0.5, "Al": 0.6, "Cu": 0.3}[sym] }
+	for _, f := range formulas {
+		sp, err := cathode.NewSpecies(mustFormula(t, f))
+		if err != nil {
+			t.Fatalf("%s: %v", f, err)
+		}
+		for _, route := range cathode.Routes() {
+			for _, x := range []cathode.Extraction{nil, partial} {
+				rx, err := cathode.Dissolve(sp, route, x)
+				if err != nil {
+					t.Errorf("%s on %s: %v", f, route, err)
+					continue
+				}
+				checkBalance(t, f, rx)
+			}
+		}
+	}
+}
+
+func checkBalance(t *testing.T, name string, rx cathode.Reaction) {
+	t.Helper()
+	in, out := map[string]float64{}, map[string]float64{}
+	add := func(m map[string]float64, formula string, n float64) {
+		if n == 0 {
+			return
+		}
+		for _, tm := range mustFormula(t, formula).Terms() {
+			m[tm.Symbol] += tm.Amount * n
+		}
+	}
+	add(in, rx.Species.Formula.String(), 1)
+	add(in, rx.Route.Acid(), rx.AcidMol)
+	add(in, "H2O2", rx.H2O2ReductantMol+rx.H2O2OxidantMol)
+	if rx.WaterMol < 0 {
+		add(in, "H2O", -rx.WaterMol)
+	} else {
+		add(out, "H2O", rx.WaterMol)
+	}
+	for _, c := range rx.Cations {
+		out[c.Symbol] += c.Mol
+	}
+	add(out, rx.Route.Anion(), rx.AnionMol)
+	add(out, "H3PO4", rx.H3PO4Mol)
+	add(out, "HF", rx.HFMol)
+	add(out, "CO2", rx.CO2Mol)
+	add(out, "O2", rx.O2Mol)
+	add(out, "Cl2", rx.Cl2Mol)
+	add(out, "H2", rx.H2Mol)
+	for _, r := range rx.Residue {
+		out[r.Symbol] += r.Amount
+	}
+	for _, m := range []map[string]float64{in, out} {
+		for sym := range m {
+			if d := in[sym] - out[sym]; math.Abs(d) > 1e-9 {
+				t.Errorf("%s on %s: %s in %.6g, out %.6g", name, rx.Route, sym, in[sym], out[sym])
+			}
+		}
+	}
+	if q := rx.LiquorCharge(); math.Abs(q) > 1e-9 {
+		t.Errorf("%s on %s: liquor charge %+.3g at stoichiometry", name, rx.Route, q)
+	}
+}

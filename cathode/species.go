@@ -1,0 +1,152 @@
+package cathode
+
+import (
+	"fmt"
+	"math"
+)
+
+// fixedState holds the oxidation states blackmass assumes for elements other than the transition
+// metals. The transition metals of [variableState] share whatever charge is left.
+var fixedState = map[string]float64{
+	"H": 1, "Li": 1, "Na": 1, "K": 1, "Mg": 2, "Ca": 2, "Zn": 2, "Al": 3, "B": 3,
+	"Ti": 4, "Zr": 4, "Nb": 5, "O": -2, "F": -1,
+}
+
+// variableState lists the elements whose oxidation state is set by charge balance.
+var variableState = map[string]bool{"Mn": true, "Fe": true, "Co": true, "Ni": true, "Cu": true}
+
+// Species is a solid compound in the black mass with the oxidation state of every element.
+// Transition metals get the average state the charge balance leaves them; which of them carries
+// which state does not change the leach demand, only their sum does.
+type Species struct {
+	Formula  Formula
+	state    map[string]float64
+	inert    bool   // graphite, carbon black, polymers: nothing in them dissolves
+	anionic  string // how the non-metals leave: "oxide", "phosphate", "carbonate", "hexafluorophosphate", "fluoride", "" (metal)
+	metallic bool   // a single metallic element in the zero state
+}
+
+// IsMetal reports whether symbol is a metal in this package's bookkeeping.
+func IsMetal(symbol string) bool {
+	switch symbol {
+	case "H", "B", "C", "N", "O", "F", "Si", "P", "S", "Cl":
+		return false
+	}
+	return true
+}
+
+// NewSpecies assigns oxidation states to the elements of f. It returns an error if the charges
+// cannot balance (for example "LiCoO" leaves Co at +1... which is allowed, but "LiAlO" is not),
+// or if f holds an element the leach model has no rule for.
+func NewSpecies(f Formula) (Species, error) {
+	sp := Species{Formula: f, state: map[string]float64{}}
+	terms := f.terms
+	if len(terms) == 0 {
+		return sp, fmt.Errorf("species: empty formula")
+	}
+	has := func(s string) bool { return f.Moles(s) > 0 }
+	metals := 0
+	for _, t := range terms {
+		if IsMetal(t.Symbol) {
+			metals++
+		}
+	}
+	switch {
+	case len(terms) == 1:
+		sp.state[terms[0].Symbol] = 0
+		if terms[0].Symbol == "C" || terms[0].Symbol == "Si" {
+			sp.inert = true
+		} else if IsMetal(terms[0].Symbol) {
+			sp.metallic = true
+		} else {
+			return sp, fmt.Errorf("species %s: a lone non-metal other than C or Si has no leach rule", f.text)
+		}
+		return sp, nil
+	case has("C") && metals == 0:
+		// Polymers (PVDF, PE, PP, carbonates of the electrolyte): inert in the leach.
+		sp.inert = true
+		return sp, nil
+	}
+	for _, t := range terms {
+		switch t.Symbol {
+		case "P", "C", "S", "Cl", "N", "Si":
+			continue
+		}
+		if !IsMetal(t.Symbol) || !variableState[t.Symbol] {
+			if _, ok := fixedState[t.Symbol]; !ok {
+				return sp, fmt.Errorf("species %s: no oxidation-state rule for %s", f.text, t.Symbol)
+			}
+		}
+	}
+	switch {
+	case has("P") && has("O"):
+		sp.anionic = "phosphate"
+		sp.state["P"] = 5
+	case has("P") && has("F") && !has("O"):
+		sp.anionic = "hexafluorophosphate"
+		sp.state["P"] = 5
+	case has("C") && has("O"):
+		sp.anionic = "carbonate"
+		sp.state["C"] = 4
+	case has("O"):
+		sp.anionic = "oxide"
+	case has("F"):
+		sp.anionic = "fluoride"
+	default:
+		return sp, fmt.Errorf("species %s: no oxide, phosphate, carbonate or fluoride anion to balance the metals", f.text)
+	}
+	for _, s := range []string{"S", "Cl", "N", "Si"} {
+		if has(s) {
+			return sp, fmt.Errorf("species %s: no leach rule for %s in a compound", f.text, s)
+		}
+	}
+	if has("C") && sp.anionic != "carbonate" || has("P") && sp.anionic != "phosphate" && sp.anionic != "hexafluorophosphate" {
+		return sp, fmt.Errorf("species %s: mixed anions are not modelled", f.text)
+	}
+	fixed, varMoles := 0.0, 0.0
+	for _, t := range terms {
+		if variableState[t.Symbol] {
+			varMoles += t.Amount
+			continue
+		}
+		s, ok := fixedState[t.Symbol]
+		if !ok {
+			s = sp.state[t.Symbol] // P, C set above
+		}
+		sp.state[t.Symbol] = s
+		fixed += s * t.Amount
+	}
+	if varMoles == 0 {
+		if math.Abs(fixed) > 1e-9 {
+			return sp, fmt.Errorf("species %s: charges do not balance (net %+.4g per formula unit)", f.text, fixed)
+		}
+		return sp, nil
+	}
+	avg := -fixed / varMoles
+	if avg < 0 || avg > 4.5 {
+		return sp, fmt.Errorf("species %s: the transition metals would average %+.3g, outside 0..+4.5", f.text, avg)
+	}
+	for _, t := range terms {
+		if variableState[t.Symbol] {
+			sp.state[t.Symbol] = avg
+		}
+	}
+	return sp, nil
+}
+
+// State returns the oxidation state of symbol in the solid (the average for transition metals).
+func (sp Species) State(symbol string) float64 { return sp.state[symbol] }
+
+// Inert reports whether nothing in the species dissolves (graphite, polymers).
+func (sp Species) Inert() bool { return sp.inert }
+
+// TransitionMetalState returns the mole-weighted average oxidation state of the transition
+// metals, and false if the species has none.
+func (sp Species) TransitionMetalState() (float64, bool) {
+	for _, t := range sp.Formula.terms {
+		if variableState[t.Symbol] {
+			return sp.state[t.Symbol], true
+		}
+	}
+	return 0, false
+}

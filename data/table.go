@@ -1,0 +1,149 @@
+package data
+
+import (
+	"bufio"
+	"bytes"
+	"encoding/csv"
+	"errors"
+	"fmt"
+	"io"
+	"io/fs"
+	"math"
+	"strconv"
+	"strings"
+)
+
+// Table is a small reference table read from CSV: a header row, then records. Lines beginning
+// with '#' are comments. Every table must carry a "source" column so each value can be traced.
+type Table struct {
+	Name   string         // file name, used in error messages
+	Header []string       // column names, lower-cased and trimmed
+	Rows   []Row          // records in file order
+	index  map[string]int // column name -> position
+}
+
+// Row is one record of a Table with the input line it came from.
+type Row struct {
+	Line   int
+	Fields []string
+	table  *Table
+}
+
+// ReadTable reads the table name from fsys. See [ParseTable].
+func ReadTable(fsys fs.FS, name string) (*Table, error) {
+	b, err := fs.ReadFile(fsys, name)
+	if err != nil {
+		return nil, err
+	}
+	return ParseTable(bytes.NewReader(b), name)
+}
+
+// ParseTable parses a reference table. It returns an error naming the file and line for a
+// malformed record, a duplicate or missing "source" column, or an empty table.
+func ParseTable(r io.Reader, name string) (*Table, error) {
+	br := bufio.NewReader(r)
+	if b, err := br.Peek(3); err == nil && bytes.Equal(b, []byte{0xEF, 0xBB, 0xBF}) {
+		_, _ = br.Discard(3)
+	}
+	cr := csv.NewReader(br)
+	cr.Comment = '#'
+	cr.TrimLeadingSpace = true
+	t := &Table{Name: name, index: map[string]int{}}
+	header, err := cr.Read()
+	if errors.Is(err, io.EOF) {
+		return nil, fmt.Errorf("%s: empty table", name)
+	}
+	if err != nil {
+		return nil, wrapCSV(name, err)
+	}
+	for i, h := range header {
+		k := strings.ToLower(strings.TrimSpace(h))
+		if _, dup := t.index[k]; dup {
+			return nil, fmt.Errorf("%s: duplicate column %q", name, h)
+		}
+		t.index[k] = i
+		t.Header = append(t.Header, k)
+	}
+	if _, ok := t.index["source"]; !ok {
+		return nil, fmt.Errorf("%s: no \"source\" column: every reference table must say where its values come from", name)
+	}
+	for {
+		rec, err := cr.Read()
+		if errors.Is(err, io.EOF) {
+			break
+		}
+		if err != nil {
+			return nil, wrapCSV(name, err)
+		}
+		line, _ := cr.FieldPos(0)
+		for i := range rec {
+			rec[i] = strings.TrimSpace(rec[i])
+		}
+		t.Rows = append(t.Rows, Row{Line: line, Fields: rec, table: t})
+	}
+	if len(t.Rows) == 0 {
+		return nil, fmt.Errorf("%s: table has a header but no rows", name)
+	}
+	for _, r := range t.Rows {
+		if r.Str("source") == "" {
+			return nil, fmt.Errorf("%s:%d: empty source", name, r.Line)
+		}
+	}
+	return t, nil
+}
+
+func wrapCSV(name string, err error) error {
+	var pe *csv.ParseError
+	if errors.As(err, &pe) {
+		return fmt.Errorf("%s:%d: %w", name, pe.Line, pe.Err)
+	}
+	return fmt.Errorf("%s: %w", name, err)
+}
+
+// Has reports whether the table has the column.
+func (t *Table) Has(col string) bool {
+	_, ok := t.index[strings.ToLower(col)]
+	return ok
+}
+
+// Str returns the trimmed text of column col, or "" if the table has no such column.
+func (r Row) Str(col string) string {
+	i, ok := r.table.index[strings.ToLower(col)]
+	if !ok || i >= len(r.Fields) {
+		return ""
+	}
+	return r.Fields[i]
+}
+
+// Float parses column col as a finite number; the error names the file, line and column.
+func (r Row) Float(col string) (float64, error) {
+	s := r.Str(col)
+	v, err := strconv.ParseFloat(s, 64)
+	if err != nil || math.IsNaN(v) || math.IsInf(v, 0) {
+		return 0, fmt.Errorf("%s:%d: column %s: %q is not a number", r.table.Name, r.Line, col, s)
+	}
+	return v, nil
+}
+
+// Range reads the columns prefix_min<suffix>, prefix_mode<suffix>, prefix_max<suffix> and checks
+// min <= mode <= max. suffix is the unit part of the column name, e.g. "_V".
+func (r Row) Range(prefix, suffix string) (lo, mode, hi float64, err error) {
+	if lo, err = r.Float(prefix + "_min" + suffix); err != nil {
+		return
+	}
+	if mode, err = r.Float(prefix + "_mode" + suffix); err != nil {
+		return
+	}
+	if hi, err = r.Float(prefix + "_max" + suffix); err != nil {
+		return
+	}
+	if !(lo <= mode && mode <= hi) {
+		err = fmt.Errorf("%s:%d: %s range %g/%g/%g is not ordered min <= mode <= max", r.table.Name, r.Line, prefix, lo, mode, hi)
+	}
+	return
+}
+
+// Errorf returns an error prefixed with the row's file and line.
+func (r Row) Errorf(format string, args ...any) error {
+	return fmt.Errorf("%s:%d: %s", r.table.Name, r.Line, fmt.Sprintf(format, args...))
+}
