@@ -201,3 +201,20 @@ func checkBalance(t *testing.T, name string, rx cathode.Reaction) {
 		t.Errorf("%s on %s: liquor charge %+.3g at stoichiometry", name, rx.Route, q)
 	}
 }
+
+func TestEquationText(t *testing.T) {
+	for _, c := range []struct {
+		formula string
+		route   cathode.Route
+		want    string
+	}{
+		// The literature's equations, written back in their published form.
+		{"LiCoO2", cathode.SulfuricPeroxide, "2 LiCoO2 + 3 H2SO4 + H2O2 → Li2SO4 + 2 CoSO4 + 4 H2O + O2↑"},
+		{"LiCoO2", cathode.Hydrochloric, "2 LiCoO2 + 8 HCl → 2 LiCl + 2 CoCl2 + 4 H2O + Cl2↑"},
+		{"LiFePO4", cathode.SulfuricSelective, "2 LiFePO4 + H2SO4 + H2O2 → Li2SO4 + 2 FePO4↓ + 2 H2O"},
+	} {
+		if got := mustReact(t, c.formula, c.route).Equation(); got != c.want {
+			t.Errorf("Equation(%s, %s) = %q, want %q", c.formula, c.route, got, c.want)
+		}
+	}
+}

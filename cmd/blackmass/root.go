@@ -1,0 +1,87 @@
+package main
+
+import (
+	"fmt"
+	"io"
+	"os"
+
+	"github.com/spf13/cobra"
+
+	"blackmass/cathode"
+)
+
+// version is set at build time with -ldflags "-X main.version=...".
+var version = "dev"
+
+// Main runs the command line and returns the process exit code: 0 on success, 1 on any error
+// (printed once to stderr), 2 for a usage error.
+func Main(args []string, in io.Reader, out, errOut io.Writer) int {
+	root := newRootCmd()
+	root.SetArgs(args)
+	root.SetIn(in)
+	root.SetOut(out)
+	root.SetErr(errOut)
+	if err := root.Execute(); err != nil {
+		fmt.Fprintln(errOut, "blackmass:", err)
+		return 1
+	}
+	return 0
+}
+
+func newRootCmd() *cobra.Command {
+	root := &cobra.Command{
+		Use:   "blackmass",
+		Short: "Estimate the metals, leach reagents and leach liquor of a lot of scrap lithium-ion cells",
+		Long: `blackmass turns a manifest of scrap lithium-ion cells and packs into the mass of every
+metal in the black mass (with P10/P50/P90 uncertainty), the acid and peroxide its leach will
+consume, the expected leach-liquor composition, and an .xlsx intake sheet for the lot.
+
+Estimates support planning only. Charged cells, acids, peroxide, toxic metals and flammable or
+toxic gases (H2, Cl2, HF) are hazards: follow local codes, safety data sheets and licensed practice.`,
+		Version:       version,
+		SilenceUsage:  true,
+		SilenceErrors: true,
+	}
+	root.SetVersionTemplate("{{.Name}} {{.Version}}\n")
+	root.AddCommand(newChemCmd(), newEstimateCmd(), newDemoCmd())
+	return root
+}
+
+// catalogueOptions are the flags every command that resolves chemistry labels shares.
+type catalogueOptions struct {
+	catalogPath string
+	priorPath   string
+}
+
+func (o *catalogueOptions) bind(cmd *cobra.Command) {
+	cmd.Flags().StringVar(&o.catalogPath, "catalog", "", "extra chemistry catalogue CSV (same columns as data/chemistries.csv)")
+	cmd.Flags().StringVar(&o.priorPath, "prior", "", "chemistry mix CSV assumed for unknown cells (columns chemistry,mass_fraction,source)")
+}
+
+func (o *catalogueOptions) load() (*cathode.Catalogue, error) {
+	cat, err := cathode.DefaultCatalogue()
+	if err != nil {
+		return nil, err
+	}
+	if o.catalogPath != "" {
+		f, err := os.Open(o.catalogPath)
+		if err != nil {
+			return nil, err
+		}
+		defer f.Close()
+		if err := cat.Add(f, o.catalogPath); err != nil {
+			return nil, err
+		}
+	}
+	if o.priorPath != "" {
+		f, err := os.Open(o.priorPath)
+		if err != nil {
+			return nil, err
+		}
+		defer f.Close()
+		if err := cat.SetPrior(f, o.priorPath); err != nil {
+			return nil, err
+		}
+	}
+	return cat, nil
+}

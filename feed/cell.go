@@ -1,0 +1,79 @@
+package feed
+
+import "blackmass/cathode"
+
+// Compounds of the black mass other than cathode materials, in a fixed order.
+const (
+	cGraphite = iota
+	cCarbonBlack
+	cPVDF
+	cAluminium
+	cCopper
+	cSteel
+	cLiPF6
+	nFixedCompounds
+)
+
+var fixedCompounds = [nFixedCompounds]struct{ name, formula string }{
+	{"graphite", "C"}, {"carbon black", "C"}, {"PVDF binder", "C2H2F2"}, {"aluminium (foil, casing)", "Al"},
+	{"copper foil", "Cu"}, {"steel (casing, as Fe)", "Fe"}, {"LiPF6 residue", "LiPF6"},
+}
+
+// mix is a chemistry's capacity and voltage at one draw: the cathode-mass-weighted capacity and
+// the capacity-weighted voltage of its components.
+type mix struct {
+	capMAhG, voltV float64
+}
+
+// breakdown is the modelled composition of one item (cell, pack or module) in grams, or of a
+// group of items.
+type breakdown struct {
+	cam, graphite, al, cu, bc, electrolyte, separator, casing, cell, item float64
+}
+
+// model computes the item breakdown from nameplate energy (Wh) and/or charge (Ah).
+func model(energyWh, chargeAh float64, mx mix, f fractions, g globals) breakdown {
+	qAhG := mx.capMAhG / 1000
+	var b breakdown
+	b.cam = energyWh/(mx.voltV*qAhG) + chargeAh/qAhG
+	capAh := b.cam * qAhG
+	b.graphite = capAh * g.np / (g.qGraphiteMAhG / 1000)
+	inactive := f.al + f.cu + f.bc + f.el + f.sep + f.casing
+	b.cell = (b.cam + b.graphite) / (1 - inactive)
+	b.al, b.cu, b.bc = f.al*b.cell, f.cu*b.cell, f.bc*b.cell
+	b.electrolyte, b.separator, b.casing = f.el*b.cell, f.sep*b.cell, f.casing*b.cell
+	b.item = b.cell / (1 - f.overhead)
+	return b
+}
+
+// blackMass adds the black-mass compounds of b (grams) into dst (fixed compounds first, then the
+// cathode materials at camIdx with shares camShare).
+func (b breakdown) blackMass(dst []float64, f fractions, g globals, camIdx []int, camShare []float64) {
+	for i, k := range camIdx {
+		dst[k] += b.cam * camShare[i] * g.recCAM
+	}
+	dst[cGraphite] += b.graphite * g.recGraphite
+	bc := b.bc * g.recBC
+	dst[cPVDF] += bc * g.binderShare
+	dst[cCarbonBlack] += bc * (1 - g.binderShare)
+	dst[cAluminium] += b.al * g.carryAl
+	dst[cCopper] += b.cu * g.carryCu
+	switch f.casing_ {
+	case casingSteel:
+		dst[cSteel] += b.casing * g.carryCasing
+	case casingAl:
+		dst[cAluminium] += b.casing * g.carryCasing
+	}
+	dst[cLiPF6] += b.electrolyte * g.lipf6 * g.residueLiPF6
+}
+
+// mixAt returns the chemistry mix at sample s from the components' draws.
+func mixAt(comps []cathode.Component, volt, capa [][]float64, s int) mix {
+	q, qv := 0.0, 0.0
+	for i, c := range comps {
+		qi := capa[i][s]
+		q += c.MassFraction * qi
+		qv += c.MassFraction * qi * volt[i][s]
+	}
+	return mix{capMAhG: q, voltV: qv / q}
+}

@@ -1,0 +1,203 @@
+package feed
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"slices"
+	"sort"
+)
+
+// EstimateOptions controls the Monte Carlo.
+type EstimateOptions struct {
+	Seed    uint64
+	Samples int
+	Inputs  Inputs // recorded in the report as given (Seed and Samples are filled in)
+	Leach   *LeachOptions
+}
+
+// Samples holds every Monte Carlo draw of the lot's black mass, by compound (kg), so that later
+// stages (the leach plan) reuse the same draws.
+type Samples struct {
+	N         int
+	Compounds [][]float64 // [compound][sample] kg
+	Elements  [][]float64 // [element][sample] kg
+	BlackMass []float64   // [sample] kg
+	comp      *compounds
+	params    *paramSet
+	groupCAM  [][]float64 // [group][sample] kg
+	groupBM   [][]float64
+}
+
+// ElementNames returns the element symbols in the order of Samples.Elements.
+func (s *Samples) ElementNames() []string { return s.comp.elements }
+
+// CompoundFormula returns compound i's formula text.
+func (s *Samples) CompoundFormula(i int) string { return s.comp.formulas[i] }
+
+// Estimate runs the Monte Carlo over the lot's groups and builds the report.
+func (l *Lot) Estimate(opt EstimateOptions) (*Report, *Samples, error) {
+	if opt.Samples < 10 || opt.Samples > 1_000_000 {
+		return nil, nil, fmt.Errorf("samples must be from 10 to 1000000, got %d", opt.Samples)
+	}
+	if l.nLines == 0 {
+		return nil, nil, errors.New("the lot has no lines")
+	}
+	n := opt.Samples
+	ps := newParamSet(l.model, opt.Seed, n)
+	nc := l.comp.n()
+	s := &Samples{N: n, comp: l.comp, params: ps, Compounds: make([][]float64, nc), BlackMass: make([]float64, n)}
+	for c := range s.Compounds {
+		s.Compounds[c] = make([]float64, n)
+	}
+	bm := make([]float64, nc)
+	for _, g := range l.order {
+		volt, capa := ps.chemDraws(g.chem)
+		sh := shares(g.chem)
+		cam, gbm := make([]float64, n), make([]float64, n)
+		fr := ps.formats[g.format]
+		for i := range n {
+			clear(bm)
+			b := model(g.energyWh, g.chargeAh, mixAt(g.chem.Components, volt, capa, i), fr[i], ps.globals[i])
+			b.blackMass(bm, fr[i], ps.globals[i], g.camIdx, sh)
+			tot := 0.0
+			for c, m := range bm {
+				s.Compounds[c][i] += m / 1000
+				tot += m / 1000
+			}
+			cam[i], gbm[i] = b.cam/1000, tot
+		}
+		s.groupCAM, s.groupBM = append(s.groupCAM, cam), append(s.groupBM, gbm)
+	}
+	ne := len(l.comp.elements)
+	s.Elements = make([][]float64, ne)
+	for e := range ne {
+		s.Elements[e] = make([]float64, n)
+	}
+	for c, fr := range l.comp.fractions {
+		for i, m := range s.Compounds[c] {
+			s.BlackMass[i] += m
+			for e, f := range fr {
+				if f != 0 {
+					s.Elements[e][i] += m * f
+				}
+			}
+		}
+	}
+	r := &Report{Inputs: opt.Inputs, Elements: map[string]Amount{}, Compounds: map[string]Amount{}, Lines: l.lines,
+		Warnings: append([]string(nil), l.warnings...), Safety: safetyNotes}
+	r.Inputs.Seed, r.Inputs.Samples = opt.Seed, n
+	r.Lot = LotSummary{Lines: l.nLines, Items: l.items, Cells: l.cells, NameplateKWh: round(l.energyWh/1000, 6),
+		ChargeOnlyAh: round(l.chargeAh, 6), LinesFlaggedByMass: l.flagged}
+	if l.energyWh > 0 {
+		r.Lot.UnknownShareOfKWh = round(l.unknownWh/l.energyWh, 6)
+	}
+	if r.Lot.UnknownShareOfKWh > 0 {
+		r.Warnings = append(r.Warnings, fmt.Sprintf("%.1f %% of the nameplate energy is of unknown chemistry: its metals come from the prior mix and carry the widest uncertainty", 100*r.Lot.UnknownShareOfKWh))
+	}
+	if l.chargeAh > 0 {
+		r.Warnings = append(r.Warnings, fmt.Sprintf("%.0f Ah were given without a voltage: the cathode mass of those lines uses charge over capacity (no voltage needed), their Wh uses the chemistry's nominal voltage", l.chargeAh))
+	}
+	r.BlackMassKg = summarise(s.BlackMass)
+	for e, sym := range l.comp.elements {
+		r.Elements[sym] = amount(s.Elements[e], s.BlackMass)
+	}
+	for c, name := range l.comp.names {
+		if slices.Max(s.Compounds[c]) > 0 {
+			r.Compounds[name] = amount(s.Compounds[c], s.BlackMass)
+		}
+	}
+	for gi, g := range l.order {
+		r.Groups = append(r.Groups, GroupResult{Chemistry: g.chem.Key, Format: g.format.String(), Lines: g.lines, Items: g.items,
+			NameplateKWh: round(g.energyWh/1000, 6), CathodeKg: summarise(s.groupCAM[gi]), BlackMassKg: summarise(s.groupBM[gi])})
+	}
+	r.Parameters = l.parameters()
+	r.ElementOrder = elementOrder(l.comp.elements)
+	if opt.Leach != nil {
+		lr, err := planLeach(s, *opt.Leach, opt.Seed)
+		if err != nil {
+			return nil, nil, err
+		}
+		r.Leach = lr
+	}
+	return r, s, nil
+}
+
+// parameters lists the model parameters and the chemistry parameters of the lot's chemistries.
+func (l *Lot) parameters() []ParamResult {
+	var out []ParamResult
+	for _, p := range l.model.list {
+		out = append(out, ParamResult{p.Scope, p.Name, p.Range.Min, p.Range.Mode, p.Range.Max, p.Unit, p.Source})
+	}
+	for _, e := range l.comp.entries {
+		if e == nil {
+			continue
+		}
+		sc := "chemistry " + e.Key
+		out = append(out,
+			ParamResult{sc, "nominal_voltage", e.VoltageV.Min, e.VoltageV.Mode, e.VoltageV.Max, "V", e.Source},
+			ParamResult{sc, "practical_capacity", e.CapacityMAhPerG.Min, e.CapacityMAhPerG.Mode, e.CapacityMAhPerG.Max, "mAh/g", e.Source})
+	}
+	return out
+}
+
+var displayOrder = []string{"Li", "Co", "Ni", "Mn", "Al", "Fe", "Cu", "P", "F", "C", "O", "H"}
+
+func elementOrder(els []string) []string {
+	rank := func(s string) int {
+		if i := slices.Index(displayOrder, s); i >= 0 {
+			return i
+		}
+		return len(displayOrder)
+	}
+	out := slices.Clone(els)
+	sort.SliceStable(out, func(i, j int) bool {
+		if rank(out[i]) != rank(out[j]) {
+			return rank(out[i]) < rank(out[j])
+		}
+		return out[i] < out[j]
+	})
+	return out
+}
+
+func amount(kg, total []float64) Amount {
+	pct := make([]float64, len(kg))
+	for i := range kg {
+		if total[i] > 0 {
+			pct[i] = 100 * kg[i] / total[i]
+		}
+	}
+	return Amount{Kg: summarise(kg), WtPct: summarise(pct)}
+}
+
+// summarise returns P10/P50/P90 (linear interpolation between order statistics, as spreadsheet
+// PERCENTILE.INC) and the mean, rounded to 9 significant digits so that reports are stable text.
+func summarise(x []float64) Stat {
+	s := slices.Clone(x)
+	slices.Sort(s)
+	mean := 0.0
+	for _, v := range s {
+		mean += v
+	}
+	mean /= float64(len(s))
+	return Stat{P10: sig(quantile(s, 0.1)), P50: sig(quantile(s, 0.5)), P90: sig(quantile(s, 0.9)), Mean: sig(mean)}
+}
+
+// quantile of sorted x at p, interpolating linearly at h = p·(n−1).
+func quantile(x []float64, p float64) float64 {
+	h := p * float64(len(x)-1)
+	lo := math.Floor(h)
+	i := int(lo)
+	if i+1 >= len(x) {
+		return x[len(x)-1]
+	}
+	return x[i] + (h-lo)*(x[i+1]-x[i])
+}
+
+func sig(v float64) float64 {
+	if v == 0 || math.IsNaN(v) || math.IsInf(v, 0) {
+		return v
+	}
+	d := 9 - int(math.Ceil(math.Log10(math.Abs(v))))
+	return round(v, d)
+}

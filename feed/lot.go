@@ -1,0 +1,277 @@
+package feed
+
+import (
+	"fmt"
+	"math"
+	"strings"
+
+	"blackmass/cathode"
+)
+
+// LineResult is one manifest line with its parsed values and most-likely masses (every
+// parameter at its mode).
+type LineResult struct {
+	Line            int                `json:"line"`
+	ID              string             `json:"id"`
+	Description     string             `json:"description,omitempty"`
+	ChemistryLabel  string             `json:"chemistry_label"`
+	Chemistry       string             `json:"chemistry"`
+	Unknown         bool               `json:"unknown_chemistry"`
+	Format          string             `json:"format"`
+	Count           int                `json:"count"`
+	CellsPerItem    int                `json:"cells_per_item"`
+	CapacityText    string             `json:"capacity_as_given"`
+	EnergyWhPerItem float64            `json:"energy_Wh_per_item"`
+	EnergyAssumed   bool               `json:"energy_uses_assumed_voltage"`
+	ModelMassKgEach float64            `json:"modelled_mass_kg_per_item"`
+	MeasuredMassKg  float64            `json:"measured_mass_kg_per_item,omitempty"`
+	MeasuredWhPerKg float64            `json:"measured_Wh_per_kg,omitempty"`
+	CathodeKg       float64            `json:"cathode_active_kg"`
+	BlackMassKg     float64            `json:"black_mass_kg"`
+	ElementsKg      map[string]float64 `json:"elements_kg"`
+	Flags           []string           `json:"flags,omitempty"`
+	Notes           string             `json:"notes,omitempty"`
+}
+
+type groupKey struct {
+	chem   string
+	format Format
+}
+
+// group is the lines of one (chemistry, format): only sums are kept, so the Monte Carlo costs
+// groups × samples.
+type group struct {
+	chem     *cathode.Chemistry
+	format   Format
+	energyWh float64 // Σ count·energy per item
+	chargeAh float64 // Σ count·charge per item (lines given in Ah with no voltage)
+	items    int
+	cells    int
+	lines    int
+	camIdx   []int
+}
+
+// Lot accumulates manifest lines. Add them with Add, then call Estimate.
+type Lot struct {
+	model     *Model
+	mode      *paramSet // every parameter at its most likely value
+	keepLines bool
+	groups    map[groupKey]*group
+	order     []*group
+	lines     []LineResult
+	warnings  []string
+	warned    map[string]bool
+	comp      *compounds
+	nLines    int
+	items     int
+	cells     int
+	energyWh  float64
+	chargeAh  float64
+	unknownWh float64
+	flagged   int
+}
+
+// NewLot starts an empty lot. With keepLines, each line's detail is kept for the report.
+func NewLot(m *Model, keepLines bool) *Lot {
+	return &Lot{model: m, mode: newParamSet(m, 0, 0), keepLines: keepLines, groups: map[groupKey]*group{},
+		warned: map[string]bool{}, comp: newCompounds()}
+}
+
+func (l *Lot) warnOnce(key, msg string) {
+	if !l.warned[key] {
+		l.warned[key] = true
+		l.warnings = append(l.warnings, msg)
+	}
+}
+
+// Add takes one manifest line. Its cost does not depend on the number of samples.
+func (l *Lot) Add(ln Line) error {
+	ch := ln.Chemistry
+	k := groupKey{ch.Key, ln.Format}
+	g := l.groups[k]
+	if g == nil {
+		g = &group{chem: ch, format: ln.Format}
+		for _, c := range ch.Components {
+			g.camIdx = append(g.camIdx, l.comp.cathode(c.Entry))
+		}
+		l.groups[k] = g
+		l.order = append(l.order, g)
+		for _, n := range ch.Notes {
+			l.warnOnce("note "+n, n)
+		}
+	}
+	cnt := float64(ln.Count)
+	g.energyWh += cnt * ln.EnergyWh
+	g.chargeAh += cnt * ln.ChargeAh
+	g.items += ln.Count
+	cells := ln.CellsPerItem * ln.Count
+	g.cells += cells
+	g.lines++
+	l.nLines++
+	l.items += ln.Count
+	l.cells += cells
+	l.energyWh += cnt * ln.EnergyWh
+	l.chargeAh += cnt * ln.ChargeAh
+	if ch.Unknown {
+		l.unknownWh += cnt * ln.EnergyWh
+	}
+	// Most-likely breakdown of one item, for the mass check and the line detail.
+	mx := l.modeMix(ch)
+	fr, gl := l.mode.formats[ln.Format][0], l.mode.globals[0]
+	b := model(ln.EnergyWh, ln.ChargeAh, mx, fr, gl)
+	energyWh := ln.EnergyWh
+	if energyWh == 0 {
+		energyWh = ln.ChargeAh * mx.voltV
+	}
+	var flags []string
+	var measWhKg float64
+	if ln.MassKg > 0 {
+		measWhKg = energyWh / ln.MassKg
+		lo, hi := l.band(ch, ln.Format)
+		if measWhKg < lo || measWhKg > hi {
+			l.flagged++
+			msg := fmt.Sprintf("%.0f Wh/kg measured, outside the plausible %.0f–%.0f Wh/kg for %s %s", measWhKg, lo, hi, ch.Key, ln.Format)
+			flags = append(flags, msg)
+			l.warnings = append(l.warnings, fmt.Sprintf("line %d (%s): %s; check the capacity, the count or the weight", ln.Num, idOr(ln), msg))
+		}
+	}
+	if ch.Unknown {
+		flags = append(flags, "unknown chemistry: prior mix assumed")
+	}
+	if !l.keepLines {
+		return nil
+	}
+	bm := make([]float64, l.comp.n())
+	b.blackMass(bm, fr, gl, g.camIdx, shares(ch))
+	els := map[string]float64{}
+	total := 0.0
+	for c, m := range bm {
+		total += m
+		for e, f := range l.comp.fractions[c] {
+			if f > 0 && cathode.IsMetal(l.comp.elements[e]) {
+				els[l.comp.elements[e]] += m * f * cnt / 1000
+			}
+		}
+	}
+	for e, v := range els {
+		els[e] = round(v, 6)
+	}
+	l.lines = append(l.lines, LineResult{Line: ln.Num, ID: ln.ID, Description: ln.Description, ChemistryLabel: ln.ChemistryLabel,
+		Chemistry: ch.Key, Unknown: ch.Unknown, Format: ln.Format.String(), Count: ln.Count, CellsPerItem: ln.CellsPerItem,
+		CapacityText: ln.CapacityText, EnergyWhPerItem: round(energyWh, 4), EnergyAssumed: ln.EnergyWh == 0,
+		ModelMassKgEach: round(b.item/1000, 6), MeasuredMassKg: ln.MassKg, MeasuredWhPerKg: round(measWhKg, 2),
+		CathodeKg: round(b.cam*cnt/1000, 6), BlackMassKg: round(total*cnt/1000, 6), ElementsKg: els, Flags: flags, Notes: ln.Notes})
+	return nil
+}
+
+func idOr(ln Line) string {
+	if ln.ID != "" {
+		return ln.ID
+	}
+	return "no id"
+}
+
+func round(v float64, digits int) float64 {
+	p := math.Pow(10, float64(digits))
+	return math.Round(v*p) / p
+}
+
+func shares(ch *cathode.Chemistry) []float64 {
+	out := make([]float64, len(ch.Components))
+	for i, c := range ch.Components {
+		out[i] = c.MassFraction
+	}
+	return out
+}
+
+func (l *Lot) modeMix(ch *cathode.Chemistry) mix {
+	volt, capa := l.mode.chemDraws(ch)
+	return mixAt(ch.Components, volt, capa, 0)
+}
+
+// band returns the plausible Wh/kg band of an item: the chemistry's cell band (the envelope of
+// its components), lowered by the pack or module overhead for assemblies.
+func (l *Lot) band(ch *cathode.Chemistry, f Format) (lo, hi float64) {
+	lo, hi = math.Inf(1), 0
+	for _, c := range ch.Components {
+		lo = math.Min(lo, c.Entry.SpecificEnergyWhPerKg.Min)
+		hi = math.Max(hi, c.Entry.SpecificEnergyWhPerKg.Max)
+	}
+	if f.IsAssembly() {
+		p := l.model.get(f.String(), f.String()+"_overhead")
+		lo *= 1 - p.Range.Max
+		hi *= 1 - p.Range.Min
+	}
+	return lo, hi
+}
+
+// chemDraws returns the voltage and capacity draws of each component of ch.
+func (ps *paramSet) chemDraws(ch *cathode.Chemistry) (volt, capa [][]float64) {
+	for _, c := range ch.Components {
+		v, q := ps.chemistry(c.Entry)
+		volt, capa = append(volt, v), append(capa, q)
+	}
+	return volt, capa
+}
+
+// compounds indexes the black-mass compounds and their element mass fractions.
+type compounds struct {
+	names     []string
+	formulas  []string
+	entries   []*cathode.Entry // nil for fixed compounds
+	fractions [][]float64      // [compound][element]
+	elements  []string
+	elIdx     map[string]int
+	byEntry   map[string]int
+}
+
+func newCompounds() *compounds {
+	c := &compounds{elIdx: map[string]int{}, byEntry: map[string]int{}}
+	for _, fc := range fixedCompounds {
+		f, err := cathode.ParseFormula(fc.formula)
+		if err != nil {
+			panic("feed: " + err.Error())
+		}
+		c.add(fc.name, f, nil)
+	}
+	return c
+}
+
+func (c *compounds) n() int { return len(c.names) }
+
+func (c *compounds) add(name string, f cathode.Formula, e *cathode.Entry) int {
+	es := cathode.DefaultElements()
+	fr := make([]float64, len(c.elements))
+	for _, t := range f.MassFractions(es) {
+		i, ok := c.elIdx[t.Symbol]
+		if !ok {
+			i = len(c.elements)
+			c.elIdx[t.Symbol] = i
+			c.elements = append(c.elements, t.Symbol)
+			for k := range c.fractions {
+				c.fractions[k] = append(c.fractions[k], 0)
+			}
+			fr = append(fr, 0)
+		}
+		fr[i] = t.Amount
+	}
+	c.names = append(c.names, name)
+	c.formulas = append(c.formulas, f.String())
+	c.entries = append(c.entries, e)
+	c.fractions = append(c.fractions, fr)
+	return len(c.names) - 1
+}
+
+// cathode returns the index of a cathode material, adding it on first use.
+func (c *compounds) cathode(e *cathode.Entry) int {
+	if i, ok := c.byEntry[e.Key]; ok {
+		return i
+	}
+	name := e.Key
+	if !strings.Contains(name, e.Formula.String()) {
+		name += " (" + e.Formula.String() + ")"
+	}
+	i := c.add(name, e.Formula, e)
+	c.byEntry[e.Key] = i
+	return i
+}

@@ -1,0 +1,229 @@
+package feed
+
+import (
+	"fmt"
+	"hash/fnv"
+	"io/fs"
+	"math/rand/v2"
+	"sync"
+
+	"gonum.org/v1/gonum/stat/distuv"
+
+	"blackmass/cathode"
+	"blackmass/data"
+)
+
+// Param is one model parameter with its range and source.
+type Param struct {
+	Scope  string // "all", a format name, or "chemistry <key>"
+	Name   string
+	Range  cathode.Range
+	Unit   string
+	Source string
+}
+
+// Model holds the cell and black-mass parameters of data/model.csv.
+type Model struct {
+	params map[string]*Param
+	list   []*Param
+}
+
+var globalNames = []string{"np_ratio", "graphite_capacity", "lipf6_in_electrolyte", "binder_share", "recovery_cathode",
+	"recovery_graphite", "recovery_binder_carbon", "carryover_al_foil", "carryover_cu_foil", "carryover_casing", "residue_lipf6"}
+
+var formatFractionNames = []string{"al_foil", "cu_foil", "binder_carbon", "electrolyte", "separator"}
+
+var casingNames = []string{"casing_steel", "casing_al", "casing_polymer"}
+
+// LoadModel reads model.csv from fsys and checks that every format has its fractions and exactly
+// one casing material, and that the fractions leave room for the active materials.
+func LoadModel(fsys fs.FS) (*Model, error) {
+	t, err := data.ReadTable(fsys, "model.csv")
+	if err != nil {
+		return nil, err
+	}
+	m := &Model{params: map[string]*Param{}}
+	for _, r := range t.Rows {
+		p := &Param{Scope: r.Str("scope"), Name: r.Str("parameter"), Unit: r.Str("unit"), Source: r.Str("source")}
+		for _, c := range []struct {
+			col string
+			dst *float64
+		}{{"min", &p.Range.Min}, {"mode", &p.Range.Mode}, {"max", &p.Range.Max}} {
+			if *c.dst, err = r.Float(c.col); err != nil {
+				return nil, err
+			}
+		}
+		if !p.Range.Valid() {
+			return nil, r.Errorf("%s: range is not ordered min <= mode <= max", p.Name)
+		}
+		if p.Range.Min < 0 {
+			return nil, r.Errorf("%s: negative minimum", p.Name)
+		}
+		if p.Unit == "mass fraction" && p.Range.Max > 1 {
+			return nil, r.Errorf("%s: a mass fraction above 1", p.Name)
+		}
+		k := p.Scope + "/" + p.Name
+		if _, dup := m.params[k]; dup {
+			return nil, r.Errorf("duplicate parameter %s", k)
+		}
+		m.params[k] = p
+		m.list = append(m.list, p)
+	}
+	for _, n := range globalNames {
+		if m.params["all/"+n] == nil {
+			return nil, fmt.Errorf("model.csv: missing parameter all/%s", n)
+		}
+	}
+	for _, f := range Formats() {
+		sum := 0.0
+		for _, n := range formatFractionNames {
+			p := m.params[f.String()+"/"+n]
+			if p == nil {
+				return nil, fmt.Errorf("model.csv: missing parameter %s/%s", f, n)
+			}
+			sum += p.Range.Max
+		}
+		casings := 0
+		for _, n := range casingNames {
+			if p := m.params[f.String()+"/"+n]; p != nil {
+				casings++
+				sum += p.Range.Max
+			}
+		}
+		if casings != 1 {
+			return nil, fmt.Errorf("model.csv: format %s needs exactly one of %v", f, casingNames)
+		}
+		if sum >= 0.8 {
+			return nil, fmt.Errorf("model.csv: format %s: inactive fractions can reach %.2f of the cell, leaving too little for electrodes", f, sum)
+		}
+		if f.IsAssembly() && m.params[f.String()+"/"+f.String()+"_overhead"] == nil {
+			return nil, fmt.Errorf("model.csv: missing parameter %s/%s_overhead", f, f)
+		}
+	}
+	return m, nil
+}
+
+var defaultModel = sync.OnceValues(func() (*Model, error) { return LoadModel(data.FS) })
+
+// DefaultModel returns the model embedded in the program.
+func DefaultModel() (*Model, error) { return defaultModel() }
+
+// Params returns every parameter in file order.
+func (m *Model) Params() []*Param { return append([]*Param(nil), m.list...) }
+
+func (m *Model) get(scope, name string) *Param { return m.params[scope+"/"+name] }
+
+// casingKind says where a format's casing metal goes.
+type casingKind int
+
+const (
+	casingSteel casingKind = iota
+	casingAl
+	casingPolymer
+)
+
+// globals are the "all" parameters at one draw.
+type globals struct {
+	np, qGraphiteMAhG, lipf6, binderShare, recCAM, recGraphite, recBC, carryAl, carryCu, carryCasing, residueLiPF6 float64
+}
+
+// fractions are one format's cell-mass fractions at one draw.
+type fractions struct {
+	al, cu, bc, el, sep, casing float64
+	casing_                     casingKind
+	overhead                    float64
+}
+
+// drawer produces, for one named parameter, a reproducible stream of samples: its own PCG source
+// seeded from (seed, hash of the parameter's key).
+type drawer struct {
+	seed    uint64
+	samples int
+	cache   map[string][]float64
+}
+
+func (d *drawer) draws(key string, r cathode.Range) []float64 {
+	if v, ok := d.cache[key]; ok {
+		return v
+	}
+	out := make([]float64, d.samples)
+	if r.Max == r.Min {
+		for i := range out {
+			out[i] = r.Mode
+		}
+	} else {
+		h := fnv.New64a()
+		h.Write([]byte(key))
+		tri := distuv.NewTriangle(r.Min, r.Max, r.Mode, rand.NewPCG(d.seed, h.Sum64()))
+		for i := range out {
+			out[i] = tri.Rand()
+		}
+	}
+	d.cache[key] = out
+	return out
+}
+
+// paramSet is every parameter's draws, or its most likely value when samples == 0.
+type paramSet struct {
+	m       *Model
+	d       *drawer
+	globals []globals
+	formats map[Format][]fractions
+}
+
+func newParamSet(m *Model, seed uint64, samples int) *paramSet {
+	ps := &paramSet{m: m, d: &drawer{seed: seed, samples: samples, cache: map[string][]float64{}}, formats: map[Format][]fractions{}}
+	n := max(samples, 1)
+	g := make([][]float64, len(globalNames))
+	for i, name := range globalNames {
+		g[i] = ps.values("all", name)
+	}
+	ps.globals = make([]globals, n)
+	for s := range n {
+		ps.globals[s] = globals{g[0][s], g[1][s], g[2][s], g[3][s], g[4][s], g[5][s], g[6][s], g[7][s], g[8][s], g[9][s], g[10][s]}
+	}
+	for _, f := range Formats() {
+		sc := f.String()
+		al, cu, bc, el, sep := ps.values(sc, "al_foil"), ps.values(sc, "cu_foil"), ps.values(sc, "binder_carbon"), ps.values(sc, "electrolyte"), ps.values(sc, "separator")
+		var cas []float64
+		var kind casingKind
+		for k, n := range casingNames {
+			if m.get(sc, n) != nil {
+				cas, kind = ps.values(sc, n), casingKind(k)
+			}
+		}
+		over := make([]float64, n)
+		if f.IsAssembly() {
+			over = ps.values(sc, sc+"_overhead")
+		}
+		fr := make([]fractions, n)
+		for s := range n {
+			fr[s] = fractions{al[s], cu[s], bc[s], el[s], sep[s], cas[s], kind, over[s]}
+		}
+		ps.formats[f] = fr
+	}
+	return ps
+}
+
+// values returns the draws of a model parameter (or its mode, as a one-element slice, when the
+// set has no samples).
+func (ps *paramSet) values(scope, name string) []float64 {
+	p := ps.m.get(scope, name)
+	if p == nil {
+		panic("feed: no parameter " + scope + "/" + name) // checked by LoadModel
+	}
+	return ps.rangeValues(scope+"/"+name, p.Range)
+}
+
+func (ps *paramSet) rangeValues(key string, r cathode.Range) []float64 {
+	if ps.d.samples == 0 {
+		return []float64{r.Mode}
+	}
+	return ps.d.draws(key, r)
+}
+
+// chemistry returns the draws of an entry's nominal voltage (V) and practical capacity (mAh/g),
+// shared by every line that uses the entry.
+func (ps *paramSet) chemistry(e *cathode.Entry) (voltV, capMAhG []float64) {
+	return ps.rangeValues("chemistry "+e.Key+"/voltage", e.VoltageV), ps.rangeValues("chemistry "+e.Key+"/capacity", e.CapacityMAhPerG)
+}

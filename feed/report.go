@@ -1,0 +1,88 @@
+package feed
+
+// Stat summarises a quantity's Monte Carlo distribution. Percentiles use linear interpolation
+// between order statistics (the definition of spreadsheet PERCENTILE.INC).
+type Stat struct {
+	P10  float64 `json:"p10"`
+	P50  float64 `json:"p50"`
+	P90  float64 `json:"p90"`
+	Mean float64 `json:"mean"`
+}
+
+// Amount is a mass with its share of the black mass.
+type Amount struct {
+	Kg    Stat `json:"kg"`
+	WtPct Stat `json:"wt_pct"`
+}
+
+// Inputs records what produced a report, so it can be reproduced.
+type Inputs struct {
+	File           string `json:"file"`
+	SHA256         string `json:"sha256"`
+	Seed           uint64 `json:"seed"`
+	Samples        int    `json:"samples"`
+	Version        string `json:"program_version"`
+	LotID          string `json:"lot_id,omitempty"`
+	Supplier       string `json:"supplier,omitempty"`
+	UnknownAsPrior bool   `json:"unknown_labels_as_prior"`
+}
+
+// LotSummary counts what the manifest lists.
+type LotSummary struct {
+	Lines              int     `json:"lines"`
+	Items              int     `json:"items"`
+	Cells              int     `json:"cells"`
+	NameplateKWh       float64 `json:"nameplate_kWh"`
+	ChargeOnlyAh       float64 `json:"charge_only_Ah"`
+	UnknownShareOfKWh  float64 `json:"unknown_chemistry_share_of_kWh"`
+	LinesFlaggedByMass int     `json:"lines_flagged_by_mass"`
+}
+
+// GroupResult is one (chemistry, format) group of lines.
+type GroupResult struct {
+	Chemistry    string  `json:"chemistry"`
+	Format       string  `json:"format"`
+	Lines        int     `json:"lines"`
+	Items        int     `json:"items"`
+	NameplateKWh float64 `json:"nameplate_kWh"`
+	CathodeKg    Stat    `json:"cathode_active_kg"`
+	BlackMassKg  Stat    `json:"black_mass_kg"`
+}
+
+// ParamResult is one model parameter as used.
+type ParamResult struct {
+	Scope  string  `json:"scope"`
+	Name   string  `json:"name"`
+	Min    float64 `json:"min"`
+	Mode   float64 `json:"mode"`
+	Max    float64 `json:"max"`
+	Unit   string  `json:"unit"`
+	Source string  `json:"source"`
+}
+
+// Report is everything an estimate produced. Renderers (text, JSON, workbook) read it and
+// compute nothing new.
+type Report struct {
+	Inputs      Inputs            `json:"inputs"`
+	Lot         LotSummary        `json:"lot"`
+	BlackMassKg Stat              `json:"black_mass_kg"`
+	Elements    map[string]Amount `json:"elements"`
+	Compounds   map[string]Amount `json:"compounds"`
+	Groups      []GroupResult     `json:"groups"`
+	Lines       []LineResult      `json:"lines,omitempty"`
+	Leach       *LeachReport      `json:"leach,omitempty"`
+	Parameters  []ParamResult     `json:"parameters"`
+	Warnings    []string          `json:"warnings"`
+	Safety      []string          `json:"safety"`
+	// ElementOrder lists the element symbols in display order (metals first).
+	ElementOrder []string `json:"element_order"`
+}
+
+// Safety cautions shown with every estimate.
+var safetyNotes = []string{
+	"Charged cells: discharge and isolate terminals before opening or shredding; damaged or swollen cells can vent, ignite and re-ignite.",
+	"Electrolyte: carbonate solvents are flammable; LiPF6 and PVDF residues form hydrogen fluoride (HF) with moisture, heat or acid.",
+	"Black mass is a fine, conductive dust of nickel, cobalt and fluoride compounds: local exhaust ventilation and respiratory protection.",
+	"Cobalt and nickel compounds are toxic, skin and respiratory sensitisers and carcinogens.",
+	"These are planning estimates; follow local codes, the suppliers' safety data sheets and licensed practice.",
+}
