@@ -73,9 +73,9 @@ func TestMolarMass(t *testing.T) {
 		formula string
 		want    float64
 	}{
-		{"LiCoO2", 6.94 + 58.933194 + 2*15.999},                        // 97.871
-		{"LiFePO4", 6.94 + 55.845 + 30.973761998 + 4*15.999},           // 157.755
-		{"LiMn2O4", 6.94 + 2*54.938043 + 4*15.999},                     // 180.812
+		{"LiCoO2", 6.94 + 58.933194 + 2*15.999},                                    // 97.871
+		{"LiFePO4", 6.94 + 55.845 + 30.973761998 + 4*15.999},                       // 157.755
+		{"LiMn2O4", 6.94 + 2*54.938043 + 4*15.999},                                 // 180.812
 		{"LiNi1/3Mn1/3Co1/3O2", 6.94 + (58.6934+54.938043+58.933194)/3 + 2*15.999}, // 96.460
 		{"LiNi0.5Mn0.3Co0.2O2", 96.553},
 		{"LiNi0.6Mn0.2Co0.2O2", 96.928},
@@ -120,12 +120,12 @@ func TestTheoreticalCapacity(t *testing.T) {
 		return cathode.TheoreticalCapacityMAhPerG(n, mustFormula(t, f).MolarMass(es))
 	}
 	// Published theoretical capacities, to the 3 significant figures the literature gives:
-	approx(t, "q(LiCoO2)", q("LiCoO2", 1), 274, 0.5)               // Nitta et al., Materials Today 18 (2015) 252, Table 1
-	approx(t, "q(LiFePO4)", q("LiFePO4", 1), 170, 0.5)             // Padhi, Nanjundaswamy, Goodenough, J. Electrochem. Soc. 144 (1997) 1188
-	approx(t, "q(LiMn2O4)", q("LiMn2O4", 1), 148, 0.5)             // battery textbooks; REFERENCES §2
-	approx(t, "q(NMC111)", q("LiNi1/3Mn1/3Co1/3O2", 1), 278, 0.5)  // battery textbooks; REFERENCES §2
-	approx(t, "q(graphite as LiC6)", q("C6", 1), 372, 0.5)         // battery textbooks: 372 mAh/g
-	approx(t, "q(Li4Ti5O12, 3 Li)", q("Li4Ti5O12", 3), 175, 0.5)   // battery textbooks: 175 mAh/g
+	approx(t, "q(LiCoO2)", q("LiCoO2", 1), 274, 0.5)              // Nitta et al., Materials Today 18 (2015) 252, Table 1
+	approx(t, "q(LiFePO4)", q("LiFePO4", 1), 170, 0.5)            // Padhi, Nanjundaswamy, Goodenough, J. Electrochem. Soc. 144 (1997) 1188
+	approx(t, "q(LiMn2O4)", q("LiMn2O4", 1), 148, 0.5)            // battery textbooks; REFERENCES §2
+	approx(t, "q(NMC111)", q("LiNi1/3Mn1/3Co1/3O2", 1), 278, 0.5) // battery textbooks; REFERENCES §2
+	approx(t, "q(graphite as LiC6)", q("C6", 1), 372, 0.5)        // battery textbooks: 372 mAh/g
+	approx(t, "q(Li4Ti5O12, 3 Li)", q("Li4Ti5O12", 3), 175, 0.5)  // battery textbooks: 175 mAh/g
 }
 
 func TestParseFormulaErrors(t *testing.T) {

@@ -139,7 +139,9 @@ func TestConservation(t *testing.T) {
 		formulas = append(formulas, e.Formula.String())
 	}
 	formulas = append(formulas, "Al", "Cu", "Fe", "Co", "Ni", "C", "C2H2F2", "LiPF6", "Li2CO3", "Li4Ti5O12", "LiNi0.9Mn0.05Co0.05O2")
-	partial := func(sym string) float64 { return map[string]float64{"Li": 0.97, "Co": 0.9, "Ni": 0.85, "Mn": 0.7, "Fe": 0.5, "Al": 0.6, "Cu": 0.3}[sym] }
+	partial := func(sym string) float64 {
+		return map[string]float64{"Li": 0.97, "Co": 0.9, "Ni": 0.85, "Mn": 0.7, "Fe": 0.5, "Al": 0.6, "Cu": 0.3}[sym]
+	}
 	for _, f := range formulas {
 		sp, err := cathode.NewSpecies(mustFormula(t, f))
 		if err != nil {

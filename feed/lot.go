@@ -49,6 +49,9 @@ type group struct {
 	cells    int
 	lines    int
 	camIdx   []int
+	modeMix  mix     // the chemistry at its most likely capacity and voltage
+	bandLo   float64 // plausible Wh/kg band of an item
+	bandHi   float64
 }
 
 // Lot accumulates manifest lines. Add them with Add, then call Estimate.
@@ -94,6 +97,8 @@ func (l *Lot) Add(ln Line) error {
 		for _, c := range ch.Components {
 			g.camIdx = append(g.camIdx, l.comp.cathode(c.Entry))
 		}
+		g.modeMix = l.modeMix(ch)
+		g.bandLo, g.bandHi = l.band(ch, ln.Format)
 		l.groups[k] = g
 		l.order = append(l.order, g)
 		for _, n := range ch.Notes {
@@ -116,7 +121,7 @@ func (l *Lot) Add(ln Line) error {
 		l.unknownWh += cnt * ln.EnergyWh
 	}
 	// Most-likely breakdown of one item, for the mass check and the line detail.
-	mx := l.modeMix(ch)
+	mx := g.modeMix
 	fr, gl := l.mode.formats[ln.Format][0], l.mode.globals[0]
 	b := model(ln.EnergyWh, ln.ChargeAh, mx, fr, gl)
 	energyWh := ln.EnergyWh
@@ -127,7 +132,7 @@ func (l *Lot) Add(ln Line) error {
 	var measWhKg float64
 	if ln.MassKg > 0 {
 		measWhKg = energyWh / ln.MassKg
-		lo, hi := l.band(ch, ln.Format)
+		lo, hi := g.bandLo, g.bandHi
 		if measWhKg < lo || measWhKg > hi {
 			l.flagged++
 			msg := fmt.Sprintf("%.0f Wh/kg measured, outside the plausible %.0f–%.0f Wh/kg for %s %s", measWhKg, lo, hi, ch.Key, ln.Format)

@@ -233,7 +233,13 @@ func readRows(src rowSource, name string, opt ManifestOptions, decimalComma bool
 	if len(missing) > 0 {
 		return &ManifestError{File: name, Line: hline, Reason: fmt.Sprintf("missing required column(s) %s", strings.Join(missing, ", "))}
 	}
-	p := lineParser{name: name, idx: idx, opt: opt, decimalComma: decimalComma, chem: map[string]*cathode.Chemistry{}}
+	p := lineParser{name: name, opt: opt, decimalComma: decimalComma, chem: map[string]*cathode.Chemistry{}, formats: map[string]Format{}}
+	for i, c := range columnIDs {
+		p.cols[i] = -1
+		if j, ok := idx[c]; ok {
+			p.cols[i] = j
+		}
+	}
 	n := 0
 	for {
 		rec, line, err := src.next()
@@ -270,17 +276,29 @@ func blank(rec []string) bool {
 	return true
 }
 
+// columnIDs lists the canonical columns; lineParser keeps their positions in an array so a line
+// costs no map lookups.
+var columnIDs = []string{"id", "description", "chemistry", "format", "capacity", "capacity_basis", "voltage", "cells_per_pack", "count", "mass", "notes"}
+
 type lineParser struct {
 	name         string
-	idx          map[string]int
+	cols         [16]int // position of each columnIDs entry, -1 if absent
 	opt          ManifestOptions
 	decimalComma bool
 	chem         map[string]*cathode.Chemistry // resolved labels, so a label is parsed once
+	formats      map[string]Format
 }
 
 func (p *lineParser) get(rec []string, col string) string {
-	i, ok := p.idx[col]
-	if !ok || i >= len(rec) {
+	k := 0
+	for k < len(columnIDs) && columnIDs[k] != col {
+		k++
+	}
+	if k == len(columnIDs) {
+		panic("feed: no column " + col)
+	}
+	i := p.cols[k]
+	if i < 0 || i >= len(rec) {
 		return ""
 	}
 	return strings.TrimSpace(rec[i])
@@ -324,9 +342,13 @@ func (p *lineParser) parse(rec []string, line int) (Line, error) {
 	l.Chemistry = ch
 	// format
 	fs := p.get(rec, "format")
-	f, err := ParseFormat(fs)
-	if err != nil {
-		return l, p.fail(line, "format", fs, err.Error())
+	f, ok := p.formats[fs]
+	if !ok {
+		var err error
+		if f, err = ParseFormat(fs); err != nil {
+			return l, p.fail(line, "format", fs, err.Error())
+		}
+		p.formats[fs] = f
 	}
 	l.Format = f
 	// count
@@ -469,7 +491,13 @@ func (p *lineParser) quantity(s string, u unitTable) (float64, string, error) {
 	for i < len(s) && (s[i] >= '0' && s[i] <= '9' || s[i] == '.' || s[i] == ',' || s[i] == '-' || s[i] == '+' || s[i] == 'e' && i > 0 && i+1 < len(s) && (s[i+1] >= '0' && s[i+1] <= '9' || s[i+1] == '-')) {
 		i++
 	}
-	num, unit := strings.TrimSpace(s[:i]), strings.ToLower(strings.TrimSpace(s[i:]))
+	num, unit := strings.TrimSpace(s[:i]), strings.TrimSpace(s[i:])
+	for _, k := range []string{"wh", "kwh", "ah", "mah", "g", "kg", "lb", "lbs", "v"} {
+		if len(k) == len(unit) && strings.EqualFold(unit, k) {
+			unit = k
+			break
+		}
+	}
 	if num == "" {
 		return 0, "", fmt.Errorf("no number (want a number and a unit: %s)", u.want)
 	}

@@ -1,0 +1,111 @@
+package main
+
+import (
+	"bytes"
+	"flag"
+	"os"
+	"path/filepath"
+	"regexp"
+	"strings"
+	"testing"
+)
+
+var update = flag.Bool("update", false, "rewrite the golden files in testdata/")
+
+func run(t *testing.T, stdin string, args ...string) (code int, stdout, stderr string) {
+	t.Helper()
+	var out, errb bytes.Buffer
+	code = Main(args, strings.NewReader(stdin), &out, &errb)
+	return code, out.String(), errb.String()
+}
+
+func golden(t *testing.T, name, got string) {
+	t.Helper()
+	path := filepath.Join("..", "..", "testdata", "golden", name)
+	if *update {
+		if err := os.MkdirAll(filepath.Dir(path), 0o755); err != nil {
+			t.Fatal(err)
+		}
+		if err := os.WriteFile(path, []byte(got), 0o644); err != nil {
+			t.Fatal(err)
+		}
+		return
+	}
+	want, err := os.ReadFile(path)
+	if err != nil {
+		t.Fatalf("%v (run go test ./cmd/blackmass -update to create it)", err)
+	}
+	if string(want) != got {
+		t.Errorf("%s differs from the golden file (run with -update after checking the change):\n--- want\n%s\n--- got\n%s", name, want, got)
+	}
+}
+
+// The demo lot's JSON and terminal output are pinned by golden files.
+func TestDemoGolden(t *testing.T) {
+	code, out, errs := run(t, "", "demo", "--json", "--samples", "2000")
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	golden(t, "demo.json", out)
+	code, out, errs = run(t, "", "demo", "--samples", "2000")
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	golden(t, "demo.txt", out)
+	for _, want := range []string{"P50 kg", "Co", "safety:", "licensed practice"} {
+		if !strings.Contains(out, want) {
+			t.Errorf("terminal output lacks %q", want)
+		}
+	}
+}
+
+// Every broken manifest in testdata/bad gives a clear error naming the file (and the line where
+// there is one) and a non-zero exit, with nothing on stdout.
+func TestBadManifests(t *testing.T) {
+	files, err := filepath.Glob(filepath.Join("..", "..", "testdata", "bad", "*.csv"))
+	if err != nil || len(files) < 15 {
+		t.Fatalf("bad-input corpus: %v files, %v", len(files), err)
+	}
+	fileLevel := map[string]bool{"empty.csv": true, "comment-only.csv": true}
+	lineRef := regexp.MustCompile(`\.csv:\d+: `)
+	for _, f := range files {
+		base := filepath.Base(f)
+		code, out, errs := run(t, "", "estimate", f, "--samples", "50")
+		if code == 0 || out != "" {
+			t.Errorf("%s: exit %d, stdout %q; want a failure and no output", base, code, out)
+			continue
+		}
+		if !strings.Contains(errs, base) {
+			t.Errorf("%s: error %q does not name the file", base, errs)
+		}
+		if !fileLevel[base] && !lineRef.MatchString(errs) {
+			t.Errorf("%s: error %q does not name the line", base, errs)
+		}
+	}
+}
+
+func TestUnknownLabelError(t *testing.T) {
+	code, _, errs := run(t, "", "estimate", filepath.Join("..", "..", "testdata", "bad", "unknown-chemistry.csv"))
+	if code == 0 || !strings.Contains(errs, "unknown-chemistry.csv:2: chemistry \"NMC812x\"") || !strings.Contains(errs, "NMC811") {
+		t.Errorf("got %q", errs)
+	}
+	code, out, errs := run(t, "", "estimate", "--unknown", "prior", "--samples", "50", filepath.Join("..", "..", "testdata", "bad", "unknown-chemistry.csv"))
+	if code != 0 || !strings.Contains(out, "not recognised") {
+		t.Errorf("--unknown prior: exit %d, %q %q", code, out, errs)
+	}
+}
+
+func TestStdinAndChem(t *testing.T) {
+	code, out, errs := run(t, "chemistry,format,capacity,count\nLFP,prismatic,280 Ah,1\n", "estimate", "-", "--samples", "100", "--json")
+	if code != 0 || !strings.Contains(out, `"black_mass_kg"`) || !strings.Contains(out, `"file": "stdin"`) {
+		t.Errorf("stdin: exit %d %q %q", code, out, errs)
+	}
+	code, out, _ = run(t, "", "chem", "--json", "NCM 8:1:1")
+	if code != 0 || !strings.Contains(out, `"molar_mass_g_mol"`) || !strings.Contains(out, `"theoretical_capacity_mAh_g"`) || !strings.Contains(out, `"key": "NMC811"`) {
+		t.Errorf("chem --json: %q", out)
+	}
+	code, _, errs = run(t, "", "chem", "NMC812x")
+	if code == 0 || !strings.Contains(errs, "nearest known") {
+		t.Errorf("chem unknown: %q", errs)
+	}
+}
