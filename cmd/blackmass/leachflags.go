@@ -3,11 +3,45 @@ package main
 import (
 	"github.com/spf13/cobra"
 
+	"blackmass/cathode"
 	"blackmass/feed"
 )
 
-type leachFlags struct{}
+// leachFlags binds the leach plan's settings; defaults are feed.DefaultLeachOptions.
+type leachFlags struct {
+	route string
+	opt   feed.LeachOptions
+}
 
-func (l *leachFlags) bind(cmd *cobra.Command) {}
+func (l *leachFlags) bind(cmd *cobra.Command) {
+	d := feed.DefaultLeachOptions()
+	fl := cmd.Flags()
+	fl.StringVar(&l.route, "route", d.Route.String(), "leach route: sulfuric-peroxide, hydrochloric or sulfuric-selective")
+	fl.Float64Var(&l.opt.AcidWtPct, "acid-strength", 0, "acid bought, wt% (default 98 for H2SO4, 32 for HCl)")
+	fl.Float64Var(&l.opt.H2O2WtPct, "h2o2-strength", d.H2O2WtPct, "hydrogen peroxide bought, wt%")
+	fl.Float64Var(&l.opt.AcidExcess, "acid-excess", d.AcidExcess, "acid as a factor over stoichiometry")
+	fl.Float64Var(&l.opt.FreeAcidMolPerL, "free-acid", d.FreeAcidMolPerL, "free acid to leave in the liquor, mol/L")
+	fl.Float64Var(&l.opt.ReductantExcess, "h2o2-excess", d.ReductantExcess, "peroxide as a factor over stoichiometry")
+	fl.Float64Var(&l.opt.PulpDensityGPerL, "pulp-density", d.PulpDensityGPerL, "black mass per litre of liquor, g/L")
+	fl.Float64Var(&l.opt.LiquorVolumeL, "liquor-volume", 0, "fixed liquor volume in L (instead of the pulp density)")
+	fl.Float64Var(&l.opt.RecipeAcidMolPerL, "acid-molarity", 0, "bench recipe: acid molarity of the lixiviant, mol/L (replaces --acid-excess and --free-acid)")
+	fl.Float64Var(&l.opt.RecipeH2O2VolPct, "h2o2-vol-pct", 0, "bench recipe: peroxide as vol% of the commercial solution (replaces --h2o2-excess)")
+	fl.Float64Var(&l.opt.AcidPricePerKg, "acid-price", 0, "price per kg of commercial acid (any currency)")
+	fl.Float64Var(&l.opt.H2O2PricePerKg, "h2o2-price", 0, "price per kg of commercial peroxide (same currency)")
+}
 
-func (l *leachFlags) options() (*feed.LeachOptions, error) { return nil, nil }
+func (l *leachFlags) options() (*feed.LeachOptions, error) {
+	r, err := cathode.ParseRoute(l.route)
+	if err != nil {
+		return nil, err
+	}
+	o := l.opt
+	o.Route = r
+	if o.AcidWtPct == 0 {
+		o.AcidWtPct = 98
+		if r == cathode.Hydrochloric {
+			o.AcidWtPct = 32
+		}
+	}
+	return &o, nil
+}

@@ -78,4 +78,55 @@ func num(v float64) string {
 	return s
 }
 
-func writeLeachText(w io.Writer, r *feed.Report) {}
+func writeLeachText(w io.Writer, r *feed.Report) {
+	l := r.Leach
+	if l == nil {
+		return
+	}
+	st := l.Settings
+	fmt.Fprintf(w, "\nleach plan: %s, %g g/L pulp density", l.Route, st.PulpDensityGPerL)
+	if st.LiquorVolumeL > 0 {
+		fmt.Fprintf(w, " (fixed volume %g L)", st.LiquorVolumeL)
+	}
+	fmt.Fprintln(w)
+	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
+	fmt.Fprintln(tw, "reagent\tP10 kg\tP50 kg\tP90 kg\tP50 L\t× stoich P50\t")
+	for _, g := range l.Reagents {
+		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%s\t%.2f\t\n", g.Name, num(g.Kg.P10), num(g.Kg.P50), num(g.Kg.P90), num(g.Litres.P50), g.Ratio.P50)
+	}
+	fmt.Fprintf(tw, "make-up water\t\t\t\t%s\t\t\n", num(l.WaterL.P50))
+	tw.Flush()
+	if l.TotalCost != nil {
+		fmt.Fprintf(w, "reagent cost P10/P50/P90: %.2f / %.2f / %.2f\n", l.TotalCost.P10, l.TotalCost.P50, l.TotalCost.P90)
+	}
+	tw = tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
+	fmt.Fprintln(tw, "gas\tP50 mol\tP50 m³ STP\tP90 m³ STP\t")
+	for _, name := range sortedKeys(l.Gases) {
+		g := l.Gases[name]
+		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t\n", name, num(g.Mol.P50), num(g.M3STP.P50), num(g.M3STP.P90))
+	}
+	tw.Flush()
+	fmt.Fprintf(w, "liquor: %s L (P50), free acid %.2f mol/L (P50), %s %.2f mol/L\n", num(l.Liquor.VolumeL.P50), l.FreeAcidMolPerL.P50, l.Liquor.Anion, l.Liquor.AnionMolPerL.P50)
+	tw = tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
+	fmt.Fprintln(tw, "element\tP10 g/L\tP50 g/L\tP90 g/L\tP50 mol/L\t")
+	for _, sym := range r.ElementOrder {
+		c, ok := l.Liquor.Elements[sym]
+		if !ok {
+			continue
+		}
+		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%.4f\t\n", sym, num(c.GPerL.P10), num(c.GPerL.P50), num(c.GPerL.P90), c.MolPerL.P50)
+	}
+	tw.Flush()
+	var sat []string
+	for _, k := range sortedKeys(l.Saturation) {
+		sat = append(sat, fmt.Sprintf("%s %.2f", k, l.Saturation[k].P50))
+	}
+	fmt.Fprintf(w, "saturation ratio near 25 °C (P50): %s\n", strings.Join(sat, ", "))
+	for _, s := range l.Warnings {
+		fmt.Fprintln(w, "  ! "+s)
+	}
+	fmt.Fprintln(w, "leach cautions:")
+	for _, s := range l.Safety {
+		fmt.Fprintln(w, "  - "+s)
+	}
+}
