@@ -1,7 +1,7 @@
 package feed_test
 
 import (
-	"io"
+	"strings"
 	"math"
 	"testing"
 
