@@ -1,8 +1,8 @@
 package feed_test
 
 import (
-	"strings"
 	"math"
+	"strings"
 	"testing"
 
 	"blackmass/cathode"

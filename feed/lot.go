@@ -23,6 +23,7 @@ type LineResult struct {
 	CapacityText    string             `json:"capacity_as_given"`
 	EnergyWhPerItem float64            `json:"energy_Wh_per_item"`
 	EnergyAssumed   bool               `json:"energy_uses_assumed_voltage"`
+	ChargeAhPerItem float64            `json:"charge_Ah_per_item,omitempty"`
 	ModelMassKgEach float64            `json:"modelled_mass_kg_per_item"`
 	MeasuredMassKg  float64            `json:"measured_mass_kg_per_item,omitempty"`
 	MeasuredWhPerKg float64            `json:"measured_Wh_per_kg,omitempty"`
@@ -163,7 +164,7 @@ func (l *Lot) Add(ln Line) error {
 	}
 	l.lines = append(l.lines, LineResult{Line: ln.Num, ID: ln.ID, Description: ln.Description, ChemistryLabel: ln.ChemistryLabel,
 		Chemistry: ch.Key, Unknown: ch.Unknown, Format: ln.Format.String(), Count: ln.Count, CellsPerItem: ln.CellsPerItem,
-		CapacityText: ln.CapacityText, EnergyWhPerItem: round(energyWh, 4), EnergyAssumed: ln.EnergyWh == 0,
+		CapacityText: ln.CapacityText, EnergyWhPerItem: round(energyWh, 4), EnergyAssumed: ln.EnergyWh == 0, ChargeAhPerItem: ln.ChargeAh,
 		ModelMassKgEach: round(b.item/1000, 6), MeasuredMassKg: ln.MassKg, MeasuredWhPerKg: round(measWhKg, 2),
 		CathodeKg: round(b.cam*cnt/1000, 6), BlackMassKg: round(total*cnt/1000, 6), ElementsKg: els, Flags: flags, Notes: ln.Notes})
 	return nil

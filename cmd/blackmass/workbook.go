@@ -3,8 +3,10 @@ package main
 import (
 	"fmt"
 	"os"
+	"path/filepath"
 
 	"blackmass/feed"
+	"blackmass/feed/sheet"
 )
 
 // checkWritable refuses to go on if path exists and force is not set, before any work is done.
@@ -15,6 +17,34 @@ func checkWritable(path string, force bool) error {
 	return nil
 }
 
-func writeWorkbook(path string, r *feed.Report, force bool) error {
-	return fmt.Errorf("the intake workbook is not available yet")
+// writeWorkbook writes the intake workbook atomically: a temporary file in the same directory,
+// synced, then renamed over path. A failure leaves nothing behind.
+func writeWorkbook(path string, r *feed.Report, force bool) (err error) {
+	if err := checkWritable(path, force); err != nil {
+		return err
+	}
+	tmp, err := os.CreateTemp(filepath.Dir(path), ".blackmass-*.xlsx")
+	if err != nil {
+		return err
+	}
+	defer func() {
+		if err != nil {
+			_ = os.Remove(tmp.Name())
+		}
+	}()
+	if err = sheet.Write(tmp, r); err != nil {
+		_ = tmp.Close()
+		return err
+	}
+	if err = tmp.Sync(); err != nil {
+		_ = tmp.Close()
+		return err
+	}
+	if err = tmp.Close(); err != nil {
+		return err
+	}
+	if err = os.Chmod(tmp.Name(), 0o644); err != nil {
+		return err
+	}
+	return os.Rename(tmp.Name(), path)
 }

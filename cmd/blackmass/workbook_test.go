@@ -1,0 +1,128 @@
+package main
+
+import (
+	"os"
+	"path/filepath"
+	"strconv"
+	"strings"
+	"testing"
+
+	"github.com/xuri/excelize/v2"
+
+	"blackmass/feed/sheet"
+)
+
+func TestWorkbook(t *testing.T) {
+	dir := t.TempDir()
+	path := filepath.Join(dir, "lot.xlsx")
+	manifest := filepath.Join(dir, "lot.csv")
+	csv := "id,description,chemistry,format,capacity,count,mass\n=1+2,+danger,NMC811,pouch,60 Wh,10,250 g\n@sum,-2,LFP,prismatic,280 Ah,2,5.4 kg\n"
+	if err := os.WriteFile(manifest, []byte(csv), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	if code, _, errs := run(t, "", "estimate", manifest, "--samples", "200", "--xlsx", path, "--acid-price", "0.3", "--h2o2-price", "0.9"); code != 0 {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	f, err := excelize.OpenFile(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer f.Close()
+	for _, s := range []string{sheet.Summary, sheet.Lines, sheet.Metals, sheet.Leach, sheet.Assumptions, sheet.WeighIn} {
+		if idx, _ := f.GetSheetIndex(s); idx < 0 {
+			t.Errorf("no sheet %q", s)
+		}
+	}
+	// User text beginning with = + - @ is stored as text, never as a formula.
+	for _, cell := range []string{"A2", "B2", "A3", "B3"} {
+		if fm, _ := f.GetCellFormula(sheet.Lines, cell); fm != "" {
+			t.Errorf("%s has formula %q", cell, fm)
+		}
+	}
+	if v, _ := f.GetCellValue(sheet.Lines, "A2"); v != "=1+2" {
+		t.Errorf("A2 = %q", v)
+	}
+	// Numbers are numbers.
+	if typ, _ := f.GetCellType(sheet.Metals, "C2"); typ != excelize.CellTypeNumber && typ != excelize.CellTypeUnset {
+		t.Errorf("Metals!C2 type %v", typ)
+	}
+	// Live formulas: cost = kg × price, evaluated by the calculation engine against the Go values.
+	kg := cellFloat(t, f, sheet.Leach, "C4")
+	cost, err := f.CalcCellValue(sheet.Leach, "H4", excelize.Options{RawCellValue: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if c, _ := strconv.ParseFloat(cost, 64); abs(c-0.3*kg) > 1e-6*kg {
+		t.Errorf("cost formula %v, want %v", c, 0.3*kg)
+	}
+	// The weigh-in compares a net weight with the estimate.
+	_ = f.SetCellValue(sheet.WeighIn, "B4", 30.5)
+	_ = f.SetCellValue(sheet.WeighIn, "C4", 0.5)
+	net, _ := f.CalcCellValue(sheet.WeighIn, "D25", excelize.Options{RawCellValue: true})
+	if net != "30" {
+		t.Errorf("net = %q, want 30", net)
+	}
+	p50 := cellFloat(t, f, sheet.WeighIn, "C26")
+	diff, _ := f.CalcCellValue(sheet.WeighIn, "D27", excelize.Options{RawCellValue: true})
+	if d, _ := strconv.ParseFloat(diff, 64); abs(d-(30-p50)) > 1e-9 {
+		t.Errorf("difference %v, want %v", d, 30-p50)
+	}
+	// Never overwritten without --force; nothing left behind.
+	before, _ := os.ReadFile(path)
+	if code, out, errs := run(t, "", "estimate", manifest, "--samples", "200", "--xlsx", path); code == 0 || !strings.Contains(errs, "--force") || out != "" {
+		t.Errorf("overwrite without --force: exit %d, %q", code, errs)
+	}
+	after, _ := os.ReadFile(path)
+	if string(before) != string(after) {
+		t.Error("existing workbook changed")
+	}
+	if code, _, errs := run(t, "", "estimate", manifest, "--samples", "200", "--xlsx", path, "--force"); code != 0 {
+		t.Errorf("--force: %s", errs)
+	}
+	// A failed run leaves nothing behind.
+	bad := filepath.Join(dir, "bad.xlsx")
+	if code, _, _ := run(t, "", "estimate", filepath.Join("..", "..", "testdata", "bad", "ragged.csv"), "--xlsx", bad); code == 0 {
+		t.Error("bad manifest succeeded")
+	}
+	entries, _ := os.ReadDir(dir)
+	for _, e := range entries {
+		if e.Name() != "lot.csv" && e.Name() != "lot.xlsx" {
+			t.Errorf("left behind: %s", e.Name())
+		}
+	}
+	// The workbook reads back as a manifest (its lines sheet) and gives the same estimate.
+	_, a, _ := run(t, "", "estimate", manifest, "--samples", "200", "--json", "--no-lines")
+	_, b, errs := run(t, "", "estimate", path, "--samples", "200", "--json", "--no-lines")
+	ja, jb := blackMassLine(a), blackMassLine(b)
+	if ja == "" || ja != jb {
+		t.Errorf("re-read workbook: %q vs %q (%s)", ja, jb, errs)
+	}
+}
+
+func blackMassLine(js string) string {
+	i := strings.Index(js, `"black_mass_kg"`)
+	if i < 0 {
+		return ""
+	}
+	return js[i : i+120]
+}
+
+func cellFloat(t *testing.T, f *excelize.File, s, c string) float64 {
+	t.Helper()
+	v, err := f.GetCellValue(s, c, excelize.Options{RawCellValue: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	x, err := strconv.ParseFloat(v, 64)
+	if err != nil {
+		t.Fatalf("%s!%s = %q", s, c, v)
+	}
+	return x
+}
+
+func abs(x float64) float64 {
+	if x < 0 {
+		return -x
+	}
+	return x
+}

@@ -1,0 +1,425 @@
+// Package sheet writes the intake workbook of a lot from a feed.Report. It formats and lays out;
+// it computes nothing new except the live formulas a user is meant to edit (reagent prices, the
+// weigh-in), whose inputs are the report's own numbers.
+package sheet
+
+import (
+	"fmt"
+	"io"
+
+	"github.com/xuri/excelize/v2"
+
+	"blackmass/feed"
+)
+
+// Sheet names.
+const (
+	Summary     = "Lot summary"
+	Lines       = feed.LinesSheetName
+	Metals      = "Metals"
+	Leach       = "Leach"
+	Assumptions = "Assumptions"
+	WeighIn     = "Weigh-in"
+)
+
+type writer struct {
+	f                          *excelize.File
+	hdr, num, num3, pct, title int
+	r                          *feed.Report
+}
+
+// Write builds the workbook and writes it to w.
+func Write(w io.Writer, r *feed.Report) error {
+	f, err := Build(r)
+	if err != nil {
+		return err
+	}
+	defer f.Close()
+	return f.Write(w)
+}
+
+// Build returns the workbook; the caller closes it.
+func Build(r *feed.Report) (*excelize.File, error) {
+	f := excelize.NewFile()
+	wr := &writer{f: f, r: r}
+	var err error
+	must := func(id int, e error) int {
+		if e != nil && err == nil {
+			err = e
+		}
+		return id
+	}
+	wr.hdr = must(f.NewStyle(&excelize.Style{Font: &excelize.Font{Bold: true}, Fill: excelize.Fill{Type: "pattern", Pattern: 1, Color: []string{"D9E2D0"}},
+		Border: []excelize.Border{{Type: "bottom", Color: "5B6B4E", Style: 1}}, Alignment: &excelize.Alignment{WrapText: true, Vertical: "top"}}))
+	wr.num = must(f.NewStyle(&excelize.Style{NumFmt: 4}))
+	f3 := "0.000"
+	wr.num3 = must(f.NewStyle(&excelize.Style{CustomNumFmt: &f3}))
+	p2 := "0.00"
+	wr.pct = must(f.NewStyle(&excelize.Style{CustomNumFmt: &p2}))
+	wr.title = must(f.NewStyle(&excelize.Style{Font: &excelize.Font{Bold: true, Size: 14}}))
+	if err != nil {
+		return nil, err
+	}
+	steps := []func() error{wr.summary, wr.lines, wr.metals, wr.leach, wr.assumptions, wr.weighIn}
+	for _, s := range steps {
+		if err := s(); err != nil {
+			f.Close()
+			return nil, err
+		}
+	}
+	f.SetActiveSheet(0)
+	lot := r.Inputs.LotID
+	if lot == "" {
+		lot = r.Inputs.File
+	}
+	_ = f.SetDocProps(&excelize.DocProperties{Title: "Intake sheet " + lot, Creator: "blackmass " + r.Inputs.Version,
+		Created: "2000-01-01T00:00:00Z", Modified: "2000-01-01T00:00:00Z"})
+	return f, nil
+}
+
+func (w *writer) row(sheet string, row int, vals ...any) error {
+	cell, _ := excelize.CoordinatesToCellName(1, row)
+	return w.f.SetSheetRow(sheet, cell, &vals)
+}
+
+func (w *writer) header(sheet string, row int, vals ...any) error {
+	if err := w.row(sheet, row, vals...); err != nil {
+		return err
+	}
+	end, _ := excelize.CoordinatesToCellName(len(vals), row)
+	start, _ := excelize.CoordinatesToCellName(1, row)
+	return w.f.SetCellStyle(sheet, start, end, w.hdr)
+}
+
+func (w *writer) style(sheet, from, to string, id int) { _ = w.f.SetCellStyle(sheet, from, to, id) }
+
+func (w *writer) summary() error {
+	f, r := w.f, w.r
+	if err := f.SetSheetName("Sheet1", Summary); err != nil {
+		return err
+	}
+	s := Summary
+	in := r.Inputs
+	_ = f.SetCellValue(s, "A1", "Black-mass intake sheet")
+	w.style(s, "A1", "A1", w.title)
+	rows := [][]any{
+		{"Lot id", in.LotID}, {"Supplier", in.Supplier}, {"Received (date)", ""}, {"Operator", ""},
+		{"Manifest file", in.File}, {"Manifest SHA-256", in.SHA256},
+		{"Lines / items / cells", fmt.Sprintf("%d / %d / %d", r.Lot.Lines, r.Lot.Items, r.Lot.Cells)},
+		{"Nameplate energy (kWh)", r.Lot.NameplateKWh},
+	}
+	for i, v := range rows {
+		if err := w.row(s, 3+i, v...); err != nil {
+			return err
+		}
+	}
+	row := 3 + len(rows) + 1
+	if err := w.header(s, row, "Quantity", "P10", "P50", "P90", "Mean"); err != nil {
+		return err
+	}
+	row++
+	add := func(name string, st feed.Stat) error {
+		err := w.row(s, row, name, st.P10, st.P50, st.P90, st.Mean)
+		w.style(s, fmt.Sprintf("B%d", row), fmt.Sprintf("E%d", row), w.num3)
+		row++
+		return err
+	}
+	if err := add("Black mass (kg)", r.BlackMassKg); err != nil {
+		return err
+	}
+	for _, sym := range r.ElementOrder {
+		if err := add(sym+" (kg)", r.Elements[sym].Kg); err != nil {
+			return err
+		}
+	}
+	if l := r.Leach; l != nil {
+		row++
+		_ = f.SetCellValue(s, fmt.Sprintf("A%d", row), "Leach quote ("+l.Route+")")
+		w.style(s, fmt.Sprintf("A%d", row), fmt.Sprintf("A%d", row), w.hdr)
+		row++
+		for _, g := range l.Reagents {
+			if err := add(g.Name+" (kg)", g.Kg); err != nil {
+				return err
+			}
+			if err := add(g.Name+" (L)", g.Litres); err != nil {
+				return err
+			}
+		}
+	}
+	row++
+	for _, title := range []string{"Warnings", "Safety"} {
+		_ = f.SetCellValue(s, fmt.Sprintf("A%d", row), title)
+		w.style(s, fmt.Sprintf("A%d", row), fmt.Sprintf("A%d", row), w.hdr)
+		row++
+		list := r.Warnings
+		if title == "Safety" {
+			list = r.Safety
+			if r.Leach != nil {
+				list = append(append([]string{}, r.Leach.Safety...), r.Safety...)
+			}
+		} else if r.Leach != nil {
+			list = append(append([]string{}, list...), r.Leach.Warnings...)
+		}
+		for _, t := range list {
+			_ = f.SetCellValue(s, fmt.Sprintf("A%d", row), t)
+			row++
+		}
+		row++
+	}
+	_ = f.SetColWidth(s, "A", "A", 34)
+	_ = f.SetColWidth(s, "B", "E", 14)
+	fit := true
+	one := 1
+	_ = f.SetPageLayout(s, &excelize.PageLayoutOptions{FitToWidth: &one, FitToHeight: nil})
+	_ = f.SetSheetProps(s, &excelize.SheetPropsOptions{FitToPage: &fit})
+	_ = f.SetHeaderFooter(s, &excelize.HeaderFooterOptions{OddHeader: "&L" + escapeHF("Lot "+in.LotID) + "&RPage &P of &N"})
+	return nil
+}
+
+func escapeHF(s string) string {
+	out := ""
+	for _, r := range s {
+		if r == '&' {
+			out += "&&"
+		} else {
+			out += string(r)
+		}
+	}
+	return out
+}
+
+func (w *writer) lines() error {
+	f, r := w.f, w.r
+	if _, err := f.NewSheet(Lines); err != nil {
+		return err
+	}
+	sw, err := f.NewStreamWriter(Lines)
+	if err != nil {
+		return err
+	}
+	_ = sw.SetColWidth(1, 3, 16)
+	_ = sw.SetColWidth(4, 14, 13)
+	_ = sw.SetPanes(&excelize.Panes{Freeze: true, YSplit: 1, TopLeftCell: "A2", ActivePane: "bottomLeft"})
+	head := []any{"id", "description", "chemistry", "format", "capacity", "capacity_basis", "cells_per_pack", "count", "mass", "notes",
+		"line", "chemistry resolved", "energy per item (Wh)", "modelled mass per item (kg)", "measured Wh/kg", "cathode active (kg)", "black mass (kg)", "flags"}
+	if err := sw.SetRow("A1", head, excelize.RowOpts{StyleID: w.hdr}); err != nil {
+		return err
+	}
+	for i, l := range r.Lines {
+		mass := ""
+		if l.MeasuredMassKg > 0 {
+			mass = fmt.Sprintf("%g kg", l.MeasuredMassKg)
+		}
+		flags := ""
+		for j, fl := range l.Flags {
+			if j > 0 {
+				flags += "; "
+			}
+			flags += fl
+		}
+		basis := "pack"
+		if l.Format == "cylindrical" || l.Format == "pouch" || l.Format == "prismatic" {
+			basis = "cell"
+		}
+		cap := fmt.Sprintf("%g Wh", l.EnergyWhPerItem)
+		if l.ChargeAhPerItem > 0 {
+			cap = fmt.Sprintf("%g Ah", l.ChargeAhPerItem) // no voltage was given: keep the charge
+		}
+		cells := any(l.CellsPerItem)
+		if l.CellsPerItem == 0 {
+			cells = nil
+		}
+		row := []any{l.ID, l.Description, l.ChemistryLabel, l.Format, cap, basis, cells, l.Count, mass, l.Notes,
+			l.Line, l.Chemistry, l.EnergyWhPerItem, l.ModelMassKgEach, l.MeasuredWhPerKg, l.CathodeKg, l.BlackMassKg, flags}
+		cell, _ := excelize.CoordinatesToCellName(1, i+2)
+		if err := sw.SetRow(cell, row); err != nil {
+			return err
+		}
+	}
+	if len(r.Lines) > 0 {
+		_ = f.AutoFilter(Lines, fmt.Sprintf("A1:R%d", len(r.Lines)+1), nil)
+	}
+	return sw.Flush()
+}
+
+func (w *writer) metals() error {
+	f, r := w.f, w.r
+	if _, err := f.NewSheet(Metals); err != nil {
+		return err
+	}
+	s := Metals
+	if err := w.header(s, 1, "element", "P10 kg", "P50 kg", "P90 kg", "mean kg", "P10 wt%", "P50 wt%", "P90 wt%"); err != nil {
+		return err
+	}
+	for i, sym := range r.ElementOrder {
+		a := r.Elements[sym]
+		if err := w.row(s, i+2, sym, a.Kg.P10, a.Kg.P50, a.Kg.P90, a.Kg.Mean, a.WtPct.P10, a.WtPct.P50, a.WtPct.P90); err != nil {
+			return err
+		}
+	}
+	last := len(r.ElementOrder) + 1
+	w.style(s, "B2", fmt.Sprintf("E%d", last), w.num3)
+	w.style(s, "F2", fmt.Sprintf("H%d", last), w.pct)
+	_ = f.SetColWidth(s, "A", "H", 12)
+	return f.AddChart(s, "J2", &excelize.Chart{Type: excelize.Col,
+		Series: []excelize.ChartSeries{{Name: "Metals!$C$1", Categories: fmt.Sprintf("Metals!$A$2:$A$%d", last), Values: fmt.Sprintf("Metals!$C$2:$C$%d", last)}},
+		Title:  excelize.ChartTitle{Paragraph: []excelize.RichTextRun{{Text: "Black mass by element, P50 (kg)"}}},
+		Legend: excelize.ChartLegend{Position: "none"}, Dimension: excelize.ChartDimension{Width: 640, Height: 320}})
+}
+
+func (w *writer) leach() error {
+	f, r := w.f, w.r
+	if _, err := f.NewSheet(Leach); err != nil {
+		return err
+	}
+	s := Leach
+	l := r.Leach
+	if l == nil {
+		return f.SetCellValue(s, "A1", "No leach plan in this report.")
+	}
+	_ = f.SetCellValue(s, "A1", "Leach plan: "+l.Route)
+	w.style(s, "A1", "A1", w.title)
+	if err := w.header(s, 3, "reagent", "P10 kg", "P50 kg", "P90 kg", "P50 litres", "× stoichiometry (P50)", "price per kg (edit)", "cost at P50"); err != nil {
+		return err
+	}
+	row := 4
+	for _, g := range l.Reagents {
+		if err := w.row(s, row, g.Name, g.Kg.P10, g.Kg.P50, g.Kg.P90, g.Litres.P50, g.Ratio.P50, priceOf(l, g)); err != nil {
+			return err
+		}
+		_ = f.SetCellFormula(s, fmt.Sprintf("H%d", row), fmt.Sprintf("C%d*G%d", row, row))
+		row++
+	}
+	_ = f.SetCellValue(s, fmt.Sprintf("A%d", row), "total reagent cost (P50)")
+	_ = f.SetCellFormula(s, fmt.Sprintf("H%d", row), fmt.Sprintf("SUM(H4:H%d)", row-1))
+	w.style(s, "B4", fmt.Sprintf("H%d", row), w.num3)
+	row += 2
+	if err := w.header(s, row, "gas", "P50 mol", "P50 m³ (0 °C, 1 atm)", "P90 m³ (0 °C, 1 atm)"); err != nil {
+		return err
+	}
+	row++
+	for _, name := range sortedKeys(l.Gases) {
+		g := l.Gases[name]
+		_ = w.row(s, row, name, g.Mol.P50, g.M3STP.P50, g.M3STP.P90)
+		row++
+	}
+	row++
+	_ = w.row(s, row, "liquor volume P50 (L)", l.Liquor.VolumeL.P50)
+	_ = w.row(s, row+1, "free acid P50 (mol/L)", l.FreeAcidMolPerL.P50)
+	row += 3
+	if err := w.header(s, row, "element", "P10 g/L", "P50 g/L", "P90 g/L", "P50 mol/L"); err != nil {
+		return err
+	}
+	first := row + 1
+	for _, sym := range r.ElementOrder {
+		c, ok := l.Liquor.Elements[sym]
+		if !ok {
+			continue
+		}
+		row++
+		_ = w.row(s, row, sym, c.GPerL.P10, c.GPerL.P50, c.GPerL.P90, c.MolPerL.P50)
+	}
+	w.style(s, fmt.Sprintf("B%d", first), fmt.Sprintf("E%d", row), w.num3)
+	chartAt := fmt.Sprintf("G%d", first)
+	if err := f.AddChart(s, chartAt, &excelize.Chart{Type: excelize.Col,
+		Series: []excelize.ChartSeries{{Name: fmt.Sprintf("Leach!$C$%d", first-1), Categories: fmt.Sprintf("Leach!$A$%d:$A$%d", first, row), Values: fmt.Sprintf("Leach!$C$%d:$C$%d", first, row)}},
+		Title:  excelize.ChartTitle{Paragraph: []excelize.RichTextRun{{Text: "Leach liquor, P50 (g/L)"}}},
+		Legend: excelize.ChartLegend{Position: "none"}}); err != nil {
+		return err
+	}
+	row += 2
+	if err := w.header(s, row, "salt", "saturation ratio P50", "P90"); err != nil {
+		return err
+	}
+	for _, k := range sortedKeys(l.Saturation) {
+		row++
+		_ = w.row(s, row, k, l.Saturation[k].P50, l.Saturation[k].P90)
+	}
+	_ = f.SetColWidth(s, "A", "A", 26)
+	_ = f.SetColWidth(s, "B", "H", 15)
+	return nil
+}
+
+func priceOf(l *feed.LeachReport, g feed.Reagent) float64 {
+	if g.Name == l.Reagents[0].Name {
+		return l.Settings.AcidPricePerKg
+	}
+	return l.Settings.H2O2PricePerKg
+}
+
+func (w *writer) assumptions() error {
+	f, r := w.f, w.r
+	if _, err := f.NewSheet(Assumptions); err != nil {
+		return err
+	}
+	s := Assumptions
+	in := r.Inputs
+	info := [][]any{{"program version", in.Version}, {"manifest file", in.File}, {"manifest SHA-256", in.SHA256},
+		{"seed", int64(in.Seed)}, {"samples", in.Samples}, {"unknown labels as prior", in.UnknownAsPrior}}
+	if l := r.Leach; l != nil {
+		st := l.Settings
+		info = append(info, []any{"leach route", l.Route}, []any{"acid strength (wt%)", st.AcidWtPct}, []any{"H2O2 strength (wt%)", st.H2O2WtPct},
+			[]any{"acid excess (× stoichiometry)", st.AcidExcess}, []any{"free acid target (mol/L)", st.FreeAcidMolPerL},
+			[]any{"H2O2 excess (× stoichiometry)", st.ReductantExcess}, []any{"pulp density (g/L)", st.PulpDensityGPerL},
+			[]any{"gas volumes", l.GasReference})
+	}
+	for i, v := range info {
+		if err := w.row(s, i+1, v...); err != nil {
+			return err
+		}
+	}
+	row := len(info) + 2
+	if err := w.header(s, row, "scope", "parameter", "min", "most likely", "max", "unit", "source"); err != nil {
+		return err
+	}
+	for _, p := range r.Parameters {
+		row++
+		if err := w.row(s, row, p.Scope, p.Name, p.Min, p.Mode, p.Max, p.Unit, p.Source); err != nil {
+			return err
+		}
+	}
+	if l := r.Leach; l != nil {
+		for _, el := range sortedKeys(l.ExtractionRanges) {
+			v := l.ExtractionRanges[el]
+			row++
+			_ = w.row(s, row, "extraction "+l.Route, el, v[0], v[1], v[2], "fraction", "data/extraction.csv")
+		}
+		for _, a := range l.Assumptions {
+			row++
+			_ = w.row(s, row, "leach model", a)
+		}
+	}
+	_ = f.SetColWidth(s, "A", "B", 28)
+	_ = f.SetColWidth(s, "G", "G", 80)
+	return nil
+}
+
+// weighIn is where the bench records container weights; live formulas compare the net weight
+// with the estimate.
+func (w *writer) weighIn() error {
+	f, r := w.f, w.r
+	if _, err := f.NewSheet(WeighIn); err != nil {
+		return err
+	}
+	s := WeighIn
+	_ = f.SetCellValue(s, "A1", "Weigh-in: record gross and tare per container after shredding and sieving")
+	w.style(s, "A1", "A1", w.title)
+	if err := w.header(s, 3, "container", "gross (kg)", "tare (kg)", "net (kg)"); err != nil {
+		return err
+	}
+	const first, last = 4, 23
+	for i := first; i <= last; i++ {
+		_ = f.SetCellFormula(s, fmt.Sprintf("D%d", i), fmt.Sprintf(`IF(AND(ISNUMBER(B%d),ISNUMBER(C%d)),B%d-C%d,0)`, i, i, i, i))
+	}
+	_ = w.row(s, last+2, "total net (kg)")
+	_ = f.SetCellFormula(s, fmt.Sprintf("D%d", last+2), fmt.Sprintf("SUM(D%d:D%d)", first, last))
+	_ = w.row(s, last+3, "estimated black mass P10 / P50 / P90 (kg)", r.BlackMassKg.P10, r.BlackMassKg.P50, r.BlackMassKg.P90)
+	_ = w.row(s, last+4, "difference net − P50 (kg)")
+	_ = f.SetCellFormula(s, fmt.Sprintf("D%d", last+4), fmt.Sprintf("D%d-C%d", last+2, last+3))
+	_ = w.row(s, last+5, "net within P10–P90?")
+	_ = f.SetCellFormula(s, fmt.Sprintf("D%d", last+5), fmt.Sprintf(`IF(D%d=0,"not weighed",IF(AND(D%d>=B%d,D%d<=D%d),"yes","NO: check the lot"))`, last+2, last+2, last+3, last+2, last+3))
+	w.style(s, fmt.Sprintf("B%d", first), fmt.Sprintf("D%d", last+4), w.num3)
+	_ = f.SetColWidth(s, "A", "A", 40)
+	_ = f.SetColWidth(s, "B", "D", 14)
+	return nil
+}
