@@ -112,6 +112,9 @@ func (p *formulaParser) parse() error {
 		}
 		for _, t := range terms {
 			p.add(t.Symbol, t.Amount*mult)
+			if p.acc[t.Symbol] > 1e6 {
+				return p.fail(start, ErrCount, fmt.Sprintf("more than 1e6 of %s per formula unit", t.Symbol))
+			}
 		}
 		p.skipSpace()
 		if p.pos == len(p.src) {
@@ -298,7 +301,7 @@ func (f Formula) Canonical() string {
 	for _, t := range f.terms {
 		b.WriteString(t.Symbol)
 		if t.Amount != 1 {
-			b.WriteString(strconv.FormatFloat(t.Amount, 'g', -1, 64))
+			b.WriteString(strconv.FormatFloat(t.Amount, 'f', -1, 64))
 		}
 	}
 	return b.String()
