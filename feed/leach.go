@@ -486,37 +486,44 @@ func checkLeachOptions(o *LeachOptions) error {
 }
 
 // PlanLeachFor computes the leach plan of a black mass given directly as compounds (formula ->
-// kg), without a manifest: e.g. a pure cathode powder, or a composition inferred from an assay.
-// The masses are taken as known; only the extraction is drawn.
+// kg), without a manifest: e.g. a pure cathode powder. The masses are taken as known; only the
+// extraction is drawn.
 func PlanLeachFor(kgByFormula map[string]float64, opt LeachOptions, seed uint64, samples int) (*LeachReport, error) {
 	if samples < 1 {
 		return nil, fmt.Errorf("leach: samples must be positive")
 	}
-	c := &compounds{elIdx: map[string]int{}, byEntry: map[string]int{}}
-	s := &Samples{N: samples, comp: c, params: newParamSet(mustModel(), seed, samples), BlackMass: make([]float64, samples)}
-	keys := make([]string, 0, len(kgByFormula))
-	for k := range kgByFormula {
-		keys = append(keys, k)
-	}
-	sort.Strings(keys)
-	for _, k := range keys {
+	keys := sortedKeys(kgByFormula)
+	cols := make([][]float64, len(keys))
+	bm := make([]float64, samples)
+	for c, k := range keys {
 		kg := kgByFormula[k]
 		if !(kg >= 0) || math.IsInf(kg, 0) {
 			return nil, fmt.Errorf("leach: %s: mass %v kg", k, kg)
 		}
+		cols[c] = make([]float64, samples)
+		for i := range cols[c] {
+			cols[c][i] = kg
+			bm[i] += kg
+		}
+	}
+	s, err := columnSamples(keys, cols, bm, seed)
+	if err != nil {
+		return nil, err
+	}
+	return planLeach(s, opt, seed)
+}
+
+// columnSamples wraps compound columns (formula, kg per sample) as Samples for the leach plan.
+func columnSamples(formulas []string, cols [][]float64, blackMass []float64, seed uint64) (*Samples, error) {
+	c := &compounds{elIdx: map[string]int{}, byEntry: map[string]int{}}
+	for _, k := range formulas {
 		f, err := cathode.ParseFormula(k)
 		if err != nil {
 			return nil, err
 		}
 		c.add(k, f, nil)
-		col := make([]float64, samples)
-		for i := range col {
-			col[i] = kg
-			s.BlackMass[i] += kg
-		}
-		s.Compounds = append(s.Compounds, col)
 	}
-	return planLeach(s, opt, seed)
+	return &Samples{N: len(blackMass), comp: c, params: newParamSet(mustModel(), seed, len(blackMass)), Compounds: cols, BlackMass: blackMass}, nil
 }
 
 func mustModel() *Model {

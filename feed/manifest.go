@@ -569,3 +569,15 @@ func parseCellsPerPack(s string) (int, error) {
 	}
 	return s1 * p1, nil
 }
+
+// ParseMassKg parses a mass with its unit ("1200 kg", "1.2 t", "450 g", "900 lb") into kg.
+func ParseMassKg(s string) (float64, error) {
+	var p lineParser
+	t := strings.TrimSpace(s)
+	if strings.HasSuffix(t, "t") && !strings.HasSuffix(strings.ToLower(t), "ct") {
+		v, _, err := p.quantity(strings.TrimSpace(strings.TrimSuffix(t, "t"))+" kg", massUnits)
+		return v * 1000, err
+	}
+	v, _, err := p.quantity(t, massUnits)
+	return v, err
+}

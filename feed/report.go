@@ -71,9 +71,13 @@ type Report struct {
 	Groups      []GroupResult     `json:"groups"`
 	Lines       []LineResult      `json:"lines,omitempty"`
 	Leach       *LeachReport      `json:"leach,omitempty"`
-	Parameters  []ParamResult     `json:"parameters"`
-	Warnings    []string          `json:"warnings"`
-	Safety      []string          `json:"safety"`
+	// Assay, Reconciliation and Mix are present when a lab assay was given.
+	Assay          *Assay          `json:"assay,omitempty"`
+	Reconciliation *Reconciliation `json:"reconciliation,omitempty"`
+	Mix            *MixFit         `json:"mix_fit,omitempty"`
+	Parameters     []ParamResult   `json:"parameters"`
+	Warnings       []string        `json:"warnings"`
+	Safety         []string        `json:"safety"`
 	// ElementOrder lists the element symbols in display order (metals first).
 	ElementOrder []string `json:"element_order"`
 }

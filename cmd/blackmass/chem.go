@@ -1,7 +1,6 @@
 package main
 
 import (
-	"encoding/json"
 	"fmt"
 	"io"
 	"math"
@@ -46,9 +45,7 @@ func newChemCmd() *cobra.Command {
 			}
 			w := cmd.OutOrStdout()
 			if asJSON {
-				enc := json.NewEncoder(w)
-				enc.SetIndent("", "  ")
-				return enc.Encode(out)
+				return writeJSON(w, out)
 			}
 			for i, j := range out {
 				if i > 0 {

@@ -110,25 +110,34 @@ func newDemoCmd() *cobra.Command {
 }
 
 func runEstimate(w io.Writer, o *estimateOptions, name string, b []byte) error {
-	if o.unknown != "refuse" && o.unknown != "prior" {
-		return fmt.Errorf("--unknown must be refuse or prior, got %q", o.unknown)
-	}
 	if o.xlsxPath != "" {
 		if err := checkWritable(o.xlsxPath, o.force); err != nil {
 			return err
 		}
 	}
-	cat, err := o.cat.load()
+	rep, err := buildEstimate(o, name, b)
 	if err != nil {
 		return err
+	}
+	return emit(w, o, rep)
+}
+
+// buildEstimate reads a manifest (CSV or xlsx bytes) and runs the estimate with the leach plan.
+func buildEstimate(o *estimateOptions, name string, b []byte) (*feed.Report, error) {
+	if o.unknown != "refuse" && o.unknown != "prior" {
+		return nil, fmt.Errorf("--unknown must be refuse or prior, got %q", o.unknown)
+	}
+	cat, err := o.cat.load()
+	if err != nil {
+		return nil, err
 	}
 	model, err := feed.DefaultModel()
 	if err != nil {
-		return err
+		return nil, err
 	}
 	leachOpt, err := o.leach.options()
 	if err != nil {
-		return err
+		return nil, err
 	}
 	lot := feed.NewLot(model, !o.noLines)
 	mopt := feed.ManifestOptions{Catalogue: cat, UnknownAsPrior: o.unknown == "prior"}
@@ -138,30 +147,36 @@ func runEstimate(w io.Writer, o *estimateOptions, name string, b []byte) error {
 		err = feed.ReadManifestCSV(bytes.NewReader(b), name, mopt, lot.Add)
 	}
 	if err != nil {
-		return err
+		return nil, err
 	}
 	sum := sha256.Sum256(b)
 	rep, _, err := lot.Estimate(feed.EstimateOptions{Seed: o.seed, Samples: o.samples, Leach: leachOpt,
 		Inputs: feed.Inputs{File: filepath.ToSlash(name), SHA256: hex.EncodeToString(sum[:]), Version: version,
 			LotID: o.lotID, Supplier: o.supplier, UnknownAsPrior: o.unknown == "prior"}})
-	if err != nil {
-		return err
-	}
+	return rep, err
+}
+
+// emit writes the workbook (if asked) and then the report as JSON or text.
+func emit(w io.Writer, o *estimateOptions, rep *feed.Report) error {
 	if o.xlsxPath != "" {
 		if err := writeWorkbook(o.xlsxPath, rep, o.force); err != nil {
 			return err
 		}
 	}
 	if o.asJSON {
-		enc := json.NewEncoder(w)
-		enc.SetIndent("", "  ")
-		return enc.Encode(rep)
+		return writeJSON(w, rep)
 	}
 	writeReportText(w, rep)
 	if o.xlsxPath != "" {
 		fmt.Fprintf(w, "\nIntake workbook written to %s\n", o.xlsxPath)
 	}
 	return nil
+}
+
+func writeJSON(w io.Writer, v any) error {
+	enc := json.NewEncoder(w)
+	enc.SetIndent("", "  ")
+	return enc.Encode(v)
 }
 
 func isXLSX(name string, b []byte) bool {

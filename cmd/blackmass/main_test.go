@@ -109,3 +109,30 @@ func TestStdinAndChem(t *testing.T) {
 		t.Errorf("chem unknown: %q", errs)
 	}
 }
+
+func TestAssayCommands(t *testing.T) {
+	assay := filepath.Join("..", "..", "testdata", "assay-KR-2611.csv")
+	code, out, errs := run(t, "", "quote", assay, "--mass", "1.2 t", "--samples", "200", "--json")
+	if code != 0 || !strings.Contains(out, `"leach"`) || !strings.Contains(out, `"mix_fit"`) {
+		t.Fatalf("quote: exit %d %s", code, errs)
+	}
+	code, out, errs = run(t, "", "reconcile", filepath.Join("..", "..", "data", "demo", "lot-KR-2611.csv"), assay, "--samples", "300")
+	if code != 0 || !strings.Contains(out, "estimate vs assay") || !strings.Contains(out, "not modelled") {
+		t.Fatalf("reconcile: exit %d %s\n%s", code, errs, out)
+	}
+	code, out, errs = run(t, "", "infer", assay, "--candidates", "LCO,NMC622,LFP", "--bootstrap", "50")
+	if code != 0 || !strings.Contains(out, "NMC622") || strings.Contains(out, "NCA") {
+		t.Fatalf("infer: exit %d %s\n%s", code, errs, out)
+	}
+	if code, _, errs = run(t, "", "quote", assay); code == 0 || !strings.Contains(errs, "mass") {
+		t.Errorf("quote without --mass: %q", errs)
+	}
+	dir := t.TempDir()
+	xl := filepath.Join(dir, "q.xlsx")
+	if code, _, errs = run(t, "", "quote", assay, "--mass", "500kg", "--samples", "100", "--xlsx", xl); code != 0 {
+		t.Fatalf("quote --xlsx: %s", errs)
+	}
+	if _, err := os.Stat(xl); err != nil {
+		t.Error(err)
+	}
+}

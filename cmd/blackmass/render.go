@@ -20,10 +20,18 @@ func writeReportText(w io.Writer, r *feed.Report) {
 		title += " from " + in.Supplier
 	}
 	fmt.Fprintln(w, title)
-	fmt.Fprintf(w, "manifest %s (sha256 %s…)\n", in.File, in.SHA256[:12])
-	fmt.Fprintf(w, "%d lines, %d items, %d cells, %.2f kWh nameplate", r.Lot.Lines, r.Lot.Items, r.Lot.Cells, r.Lot.NameplateKWh)
-	if r.Lot.ChargeOnlyAh > 0 {
-		fmt.Fprintf(w, " + %.1f Ah given without voltage", r.Lot.ChargeOnlyAh)
+	sha := in.SHA256
+	if len(sha) > 12 {
+		sha = sha[:12] + "…"
+	}
+	fmt.Fprintf(w, "input %s (sha256 %s)\n", in.File, sha)
+	if r.Lot.Lines > 0 {
+		fmt.Fprintf(w, "%d lines, %d items, %d cells, %.2f kWh nameplate", r.Lot.Lines, r.Lot.Items, r.Lot.Cells, r.Lot.NameplateKWh)
+		if r.Lot.ChargeOnlyAh > 0 {
+			fmt.Fprintf(w, " + %.1f Ah given without voltage", r.Lot.ChargeOnlyAh)
+		}
+	} else {
+		fmt.Fprintf(w, "black mass weighed, composition from a lab assay")
 	}
 	fmt.Fprintf(w, "\nMonte Carlo: %d samples, seed %d; P10/P50/P90 = 10th/50th/90th percentiles\n\n", in.Samples, in.Seed)
 
@@ -40,13 +48,30 @@ func writeReportText(w io.Writer, r *feed.Report) {
 	}
 	tw.Flush()
 	fmt.Fprintln(w)
-	tw = tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
+	if len(r.Groups) > 0 {
+		writeGroupsText(w, r)
+	}
+	writeLeachText(w, r)
+	writeTail(w, r)
+}
+
+func writeGroupsText(w io.Writer, r *feed.Report) {
+	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
 	fmt.Fprintln(tw, "chemistry\tformat\tlines\titems\tkWh\tblack mass P50 kg")
 	for _, g := range r.Groups {
 		fmt.Fprintf(tw, "%s\t%s\t%d\t%d\t%.2f\t%s\n", g.Chemistry, g.Format, g.Lines, g.Items, g.NameplateKWh, num(g.BlackMassKg.P50))
 	}
 	tw.Flush()
-	writeLeachText(w, r)
+}
+
+func writeTail(w io.Writer, r *feed.Report) {
+	if r.Reconciliation != nil {
+		writeReconcileText(w, r.Reconciliation)
+	}
+	if r.Mix != nil {
+		fmt.Fprintln(w)
+		writeMixText(w, r.Mix)
+	}
 	if len(r.Warnings) > 0 {
 		fmt.Fprintln(w, "\nwarnings:")
 		for _, s := range r.Warnings {

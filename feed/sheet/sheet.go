@@ -20,6 +20,7 @@ const (
 	Leach       = "Leach"
 	Assumptions = "Assumptions"
 	WeighIn     = "Weigh-in"
+	AssaySheet  = "Assay"
 )
 
 type writer struct {
@@ -60,7 +61,7 @@ func Build(r *feed.Report) (*excelize.File, error) {
 	if err != nil {
 		return nil, err
 	}
-	steps := []func() error{wr.summary, wr.lines, wr.metals, wr.leach, wr.assumptions, wr.weighIn}
+	steps := []func() error{wr.summary, wr.lines, wr.metals, wr.leach, wr.assay, wr.assumptions, wr.weighIn}
 	for _, s := range steps {
 		if err := s(); err != nil {
 			f.Close()
@@ -421,5 +422,63 @@ func (w *writer) weighIn() error {
 	w.style(s, fmt.Sprintf("B%d", first), fmt.Sprintf("D%d", last+4), w.num3)
 	_ = f.SetColWidth(s, "A", "A", 40)
 	_ = f.SetColWidth(s, "B", "D", 14)
+	return nil
+}
+
+// assay lays out the lab assay, its reconciliation with the estimate and the mix fit, when given.
+func (w *writer) assay() error {
+	f, r := w.f, w.r
+	if r.Assay == nil {
+		return nil
+	}
+	if _, err := f.NewSheet(AssaySheet); err != nil {
+		return err
+	}
+	s := AssaySheet
+	_ = f.SetCellValue(s, "A1", "Lab assay: "+r.Assay.File)
+	w.style(s, "A1", "A1", w.title)
+	row := 3
+	if rc := r.Reconciliation; rc != nil {
+		if err := w.header(s, row, "element", "estimate wt%", "estimate σ", "assay wt%", "assay σ", "difference (σ)", "reading"); err != nil {
+			return err
+		}
+		for _, c := range rc.Comparisons {
+			row++
+			_ = w.row(s, row, c.Element, c.EstimateWtPct, c.EstimateSigma, c.AssayWtPct, c.AssaySigma, c.Z, c.Interpretation)
+		}
+	} else {
+		if err := w.header(s, row, "element", "assay wt%", "σ wt%", "σ assumed"); err != nil {
+			return err
+		}
+		for _, v := range r.Assay.Values {
+			row++
+			_ = w.row(s, row, v.Element, v.WtPct, v.SigmaWtPct, v.SigmaAssumed)
+		}
+	}
+	w.style(s, "B4", fmt.Sprintf("F%d", row), w.num3)
+	if m := r.Mix; m != nil {
+		row += 2
+		if err := w.header(s, row, "mix component", "best fit (kg/kg)", "P10", "P50", "P90", "95 % low", "95 % high", "cathode share P50"); err != nil {
+			return err
+		}
+		first := row + 1
+		for _, c := range m.Components {
+			row++
+			vals := []any{c.Name, c.Best, c.KgPerKg.P10, c.KgPerKg.P50, c.KgPerKg.P90, c.Interval95[0], c.Interval95[1]}
+			if c.CathodeShare != nil {
+				vals = append(vals, c.CathodeShare.P50)
+			}
+			_ = w.row(s, row, vals...)
+		}
+		w.style(s, fmt.Sprintf("B%d", first), fmt.Sprintf("H%d", row), w.num3)
+		row += 2
+		for _, n := range m.Notes {
+			_ = f.SetCellValue(s, fmt.Sprintf("A%d", row), n)
+			row++
+		}
+	}
+	_ = f.SetColWidth(s, "A", "A", 16)
+	_ = f.SetColWidth(s, "B", "H", 14)
+	_ = f.SetColWidth(s, "G", "G", 60)
 	return nil
 }

@@ -1,0 +1,235 @@
+package main
+
+import (
+	"crypto/sha256"
+	"encoding/hex"
+	"fmt"
+	"io"
+	"os"
+	"path/filepath"
+	"strings"
+	"text/tabwriter"
+
+	"github.com/spf13/cobra"
+
+	"blackmass/cathode"
+	"blackmass/feed"
+)
+
+func readAssay(path string) (*feed.Assay, []byte, error) {
+	b, err := os.ReadFile(path)
+	if err != nil {
+		return nil, nil, err
+	}
+	a, err := feed.ReadAssay(strings.NewReader(string(b)), path)
+	return a, b, err
+}
+
+// fitOptions are the flags of the mix inference.
+type fitOptions struct {
+	candidates string
+	bootstrap  int
+}
+
+func (f *fitOptions) bind(cmd *cobra.Command) {
+	cmd.Flags().StringVar(&f.candidates, "candidates", "", "comma-separated chemistries to fit (default: the whole catalogue)")
+	cmd.Flags().IntVar(&f.bootstrap, "bootstrap", 500, "bootstrap draws of the assay for the mix ranges")
+}
+
+func (f *fitOptions) fit(cat *cathode.Catalogue, a *feed.Assay, seed uint64) (*feed.MixFit, error) {
+	cands := cat.Entries()
+	if f.candidates != "" {
+		cands = nil
+		for _, k := range strings.Split(f.candidates, ",") {
+			ch, err := cat.ParseLabel(strings.TrimSpace(k))
+			if err != nil {
+				return nil, fmt.Errorf("--candidates: %w", err)
+			}
+			for _, c := range ch.Components {
+				cands = append(cands, c.Entry)
+			}
+		}
+	}
+	return feed.InferMix(a, cands, f.bootstrap, seed)
+}
+
+func newQuoteCmd() *cobra.Command {
+	o := &estimateOptions{}
+	var mass, form string
+	var fit fitOptions
+	cmd := &cobra.Command{
+		Use:   "quote ASSAY.csv --mass WEIGHT",
+		Short: "Quote the leach of black mass already shredded, from a lab assay and its weight",
+		Example: `  blackmass quote assay.csv --mass 1.2t
+  blackmass quote assay.csv --mass "850 kg" --form oxide --route hydrochloric --json`,
+		Args: cobra.ExactArgs(1),
+		RunE: func(cmd *cobra.Command, args []string) error {
+			kg, err := feed.ParseMassKg(mass)
+			if err != nil {
+				return fmt.Errorf("--mass %q: %w", mass, err)
+			}
+			tm, err := feed.ParseTMForm(form)
+			if err != nil {
+				return err
+			}
+			if o.xlsxPath != "" {
+				if err := checkWritable(o.xlsxPath, o.force); err != nil {
+					return err
+				}
+			}
+			a, b, err := readAssay(args[0])
+			if err != nil {
+				return err
+			}
+			lo, err := o.leach.options()
+			if err != nil {
+				return err
+			}
+			cat, err := o.cat.load()
+			if err != nil {
+				return err
+			}
+			sum := sha256.Sum256(b)
+			rep, err := feed.QuoteFromAssay(a, feed.AssayQuoteOptions{BlackMassKg: kg, TMForm: tm, Seed: o.seed, Samples: o.samples, Leach: *lo,
+				Inputs: feed.Inputs{File: filepath.ToSlash(args[0]), SHA256: hex.EncodeToString(sum[:]), Version: version, LotID: o.lotID, Supplier: o.supplier}})
+			if err != nil {
+				return err
+			}
+			rep.Assay = a
+			if rep.Mix, err = fit.fit(cat, a, o.seed); err != nil {
+				return err
+			}
+			return emit(cmd.OutOrStdout(), o, rep)
+		},
+	}
+	o.bind(cmd)
+	cmd.Flags().StringVar(&mass, "mass", "", "black-mass weight with unit (kg, t, g, lb)")
+	cmd.Flags().StringVar(&form, "form", "layered", "form of Co/Ni/Mn: layered (untreated), oxide (reduction-roasted) or metal")
+	_ = cmd.MarkFlagRequired("mass")
+	fit.bind(cmd)
+	return cmd
+}
+
+func newReconcileCmd() *cobra.Command {
+	o := &estimateOptions{}
+	var threshold float64
+	var fit fitOptions
+	cmd := &cobra.Command{
+		Use:   "reconcile MANIFEST ASSAY.csv",
+		Short: "Set a lot's estimate beside a lab assay of its black mass, element by element",
+		Args:  cobra.ExactArgs(2),
+		RunE: func(cmd *cobra.Command, args []string) error {
+			if !(threshold > 0) {
+				return fmt.Errorf("--flag-sigma must be positive")
+			}
+			a, _, err := readAssay(args[1])
+			if err != nil {
+				return err
+			}
+			b, err := os.ReadFile(args[0])
+			if err != nil {
+				return err
+			}
+			rep, err := buildEstimate(o, args[0], b)
+			if err != nil {
+				return err
+			}
+			cat, err := o.cat.load()
+			if err != nil {
+				return err
+			}
+			rep.Assay = a
+			rep.Reconciliation = feed.Reconcile(rep, a, threshold)
+			if rep.Mix, err = fit.fit(cat, a, o.seed); err != nil {
+				return err
+			}
+			return emit(cmd.OutOrStdout(), o, rep)
+		},
+	}
+	o.bind(cmd)
+	cmd.Flags().Float64Var(&threshold, "flag-sigma", 2, "flag elements whose difference exceeds this many combined standard uncertainties")
+	fit.bind(cmd)
+	return cmd
+}
+
+func newInferCmd() *cobra.Command {
+	var cat catalogueOptions
+	var fit fitOptions
+	var seed uint64
+	var asJSON bool
+	cmd := &cobra.Command{
+		Use:   "infer ASSAY.csv",
+		Short: "Infer the chemistry mix that best explains a black-mass assay (non-negative least squares)",
+		Args:  cobra.ExactArgs(1),
+		RunE: func(cmd *cobra.Command, args []string) error {
+			a, _, err := readAssay(args[0])
+			if err != nil {
+				return err
+			}
+			c, err := cat.load()
+			if err != nil {
+				return err
+			}
+			m, err := fit.fit(c, a, seed)
+			if err != nil {
+				return err
+			}
+			if asJSON {
+				return writeJSON(cmd.OutOrStdout(), m)
+			}
+			writeMixText(cmd.OutOrStdout(), m)
+			return nil
+		},
+	}
+	cat.bind(cmd)
+	fit.bind(cmd)
+	cmd.Flags().Uint64Var(&seed, "seed", 1, "bootstrap seed")
+	cmd.Flags().BoolVar(&asJSON, "json", false, "write JSON")
+	return cmd
+}
+
+func writeMixText(w io.Writer, m *feed.MixFit) {
+	fmt.Fprintf(w, "chemistry mix that best explains the assay (%d bootstrap draws)\n", m.Bootstrap)
+	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
+	fmt.Fprintln(tw, "component\tbest kg/kg\tP10\tP50\tP90\t95 % range\tcathode share P50\t")
+	for _, c := range m.Components {
+		share := ""
+		if c.CathodeShare != nil {
+			share = fmt.Sprintf("%.3f", c.CathodeShare.P50)
+		}
+		fmt.Fprintf(tw, "%s\t%.4f\t%.4f\t%.4f\t%.4f\t%.4f–%.4f\t%s\t\n", c.Name, c.Best, c.KgPerKg.P10, c.KgPerKg.P50, c.KgPerKg.P90, c.Interval95[0], c.Interval95[1], share)
+	}
+	tw.Flush()
+	fmt.Fprintf(w, "explained mass fraction %.3f\n", m.Explained)
+	tw = tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
+	fmt.Fprintln(tw, "element\tassay − fit wt%\tin σ\t")
+	for _, r := range m.Residuals {
+		fmt.Fprintf(tw, "%s\t%+.3f\t%+.2f\t\n", r.Element, r.WtPct, r.Sigma)
+	}
+	tw.Flush()
+	for _, n := range m.Notes {
+		fmt.Fprintln(w, "  note: "+n)
+	}
+}
+
+func writeReconcileText(w io.Writer, rc *feed.Reconciliation) {
+	fmt.Fprintf(w, "\nestimate vs assay (flag above %.1f σ)\n", rc.Threshold)
+	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
+	fmt.Fprintln(tw, "element\testimate wt%\t± σ\tassay wt%\t± σ\tdifference σ\t\t")
+	for _, c := range rc.Comparisons {
+		flag := ""
+		if c.Flag {
+			flag = "DISAGREES"
+		}
+		if c.Interpretation != "" && !c.Flag {
+			flag = "not modelled"
+		}
+		fmt.Fprintf(tw, "%s\t%.2f\t%.2f\t%.2f\t%.2f\t%+.1f\t%s\t\n", c.Element, c.EstimateWtPct, c.EstimateSigma, c.AssayWtPct, c.AssaySigma, c.Z, flag)
+	}
+	tw.Flush()
+	for _, c := range rc.Comparisons {
+		if c.Flag {
+			fmt.Fprintf(w, "  %s: %s\n", c.Element, c.Interpretation)
+		}
+	}
+}

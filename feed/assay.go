@@ -1,0 +1,397 @@
+package feed
+
+import (
+	"bufio"
+	"bytes"
+	"encoding/csv"
+	"errors"
+	"fmt"
+	"io"
+	"math"
+	"math/rand/v2"
+	"sort"
+	"strconv"
+	"strings"
+	"unicode/utf8"
+
+	"blackmass/cathode"
+)
+
+// AssayValue is one assayed element in wt% of the black mass (dry basis as the lab reports it).
+type AssayValue struct {
+	Element      string  `json:"element"`
+	WtPct        float64 `json:"wt_pct"`
+	SigmaWtPct   float64 `json:"sigma_wt_pct"` // standard uncertainty
+	SigmaAssumed bool    `json:"sigma_assumed"`
+	Line         int     `json:"line"`
+}
+
+// Assay is a lab assay of a black-mass sample.
+type Assay struct {
+	File   string       `json:"file"`
+	Values []AssayValue `json:"values"`
+}
+
+// DefaultAssaySigmaRel is the relative standard uncertainty assumed where the lab gives none
+// (5 %, common practice for ICP-OES/XRF of black mass at the percent level).
+const DefaultAssaySigmaRel = 0.05
+
+// WtPct returns an element's assayed wt% and whether it was assayed.
+func (a *Assay) WtPct(el string) (float64, bool) {
+	for _, v := range a.Values {
+		if v.Element == el {
+			return v.WtPct, true
+		}
+	}
+	return 0, false
+}
+
+var assayUnits = map[string]float64{"wt%": 1, "%": 1, "wt.%": 1, "pct": 1, "g/kg": 0.1, "mg/kg": 1e-4, "ppm": 1e-4, "mg/g": 0.1}
+
+// ReadAssay reads an assay CSV: columns element, value, unit (wt%, g/kg, mg/kg or ppm) and an
+// optional uncertainty column (± in the same unit, a standard uncertainty). Refused: unknown
+// elements or units, negative values, duplicates, and elements summing past 100 %.
+func ReadAssay(r io.Reader, name string) (*Assay, error) {
+	br := bufio.NewReader(r)
+	if b, err := br.Peek(3); err == nil && bytes.Equal(b, []byte{0xEF, 0xBB, 0xBF}) {
+		_, _ = br.Discard(3)
+	}
+	cr := csv.NewReader(br)
+	cr.Comment = '#'
+	cr.TrimLeadingSpace = true
+	cr.FieldsPerRecord = -1 // the uncertainty may be left off a row
+	fail := func(line int, col, val, reason string) error {
+		return &ManifestError{File: name, Line: line, Column: col, Value: val, Reason: reason}
+	}
+	header, err := cr.Read()
+	if errors.Is(err, io.EOF) {
+		return nil, fail(0, "", "", "empty file")
+	}
+	if err != nil {
+		return nil, wrapCSVErr(name, err)
+	}
+	idx := map[string]int{}
+	for i, h := range header {
+		k := strings.ToLower(strings.TrimSpace(h))
+		switch k {
+		case "±", "+/-", "uncertainty", "sigma", "u", "plus_minus", "error":
+			k = "uncertainty"
+		case "symbol", "analyte":
+			k = "element"
+		case "result", "content":
+			k = "value"
+		}
+		if _, dup := idx[k]; dup {
+			return nil, fail(1, "", "", fmt.Sprintf("duplicate column %q", h))
+		}
+		idx[k] = i
+	}
+	for _, c := range []string{"element", "value", "unit"} {
+		if _, ok := idx[c]; !ok {
+			return nil, fail(1, "", "", fmt.Sprintf("missing column %q (want element, value, unit and optionally uncertainty)", c))
+		}
+	}
+	es := cathode.DefaultElements()
+	a := &Assay{File: name}
+	seen := map[string]int{}
+	sum := 0.0
+	for {
+		rec, err := cr.Read()
+		if errors.Is(err, io.EOF) {
+			break
+		}
+		if err != nil {
+			return nil, wrapCSVErr(name, err)
+		}
+		line, _ := cr.FieldPos(0)
+		get := func(c string) string {
+			if i, ok := idx[c]; ok && i < len(rec) {
+				return strings.TrimSpace(rec[i])
+			}
+			return ""
+		}
+		if blank(rec) {
+			continue
+		}
+		for _, f := range rec {
+			if !utf8.ValidString(f) {
+				return nil, fail(line, "", "", "not valid UTF-8")
+			}
+		}
+		el := get("element")
+		if es.Lookup(el) == nil {
+			return nil, fail(line, "element", el, "not an element symbol (case matters: Co, not CO)")
+		}
+		if prev, dup := seen[el]; dup {
+			return nil, fail(line, "element", el, fmt.Sprintf("given twice (first on line %d)", prev))
+		}
+		seen[el] = line
+		unit := strings.ToLower(strings.ReplaceAll(get("unit"), " ", ""))
+		f, ok := assayUnits[unit]
+		if !ok {
+			return nil, fail(line, "unit", get("unit"), "unknown unit (want wt%, g/kg, mg/kg or ppm)")
+		}
+		v, err := strconv.ParseFloat(get("value"), 64)
+		if err != nil || math.IsNaN(v) || math.IsInf(v, 0) {
+			return nil, fail(line, "value", get("value"), "not a number")
+		}
+		if v < 0 {
+			return nil, fail(line, "value", get("value"), "negative")
+		}
+		av := AssayValue{Element: el, WtPct: v * f, Line: line}
+		if us := get("uncertainty"); us != "" {
+			u, err := strconv.ParseFloat(strings.TrimPrefix(us, "±"), 64)
+			if err != nil || u < 0 || math.IsNaN(u) || math.IsInf(u, 0) {
+				return nil, fail(line, "uncertainty", us, "want a non-negative number in the value's unit")
+			}
+			av.SigmaWtPct = u * f
+		} else {
+			av.SigmaWtPct, av.SigmaAssumed = DefaultAssaySigmaRel*av.WtPct, true
+		}
+		if av.WtPct > 100 {
+			return nil, fail(line, "value", get("value"), "more than 100 wt%")
+		}
+		sum += av.WtPct
+		a.Values = append(a.Values, av)
+	}
+	if len(a.Values) == 0 {
+		return nil, fail(0, "", "", "no assay rows")
+	}
+	if sum > 100.5 {
+		return nil, fail(0, "", "", fmt.Sprintf("elements sum to %.2f wt%%, past 100 %%", sum))
+	}
+	return a, nil
+}
+
+func wrapCSVErr(name string, err error) error {
+	var pe *csv.ParseError
+	if errors.As(err, &pe) {
+		return &ManifestError{File: name, Line: pe.Line, Reason: pe.Err.Error()}
+	}
+	return fmt.Errorf("%s: %w", name, err)
+}
+
+// TMForm is how the assay's Co, Ni and Mn are present in the black mass.
+type TMForm int
+
+const (
+	// TMLayered: layered oxides Li_yMO2 with the assay's lithium (untreated black mass).
+	TMLayered TMForm = iota
+	// TMMonoxide: divalent oxides CoO, NiO, MnO (after reduction roasting).
+	TMMonoxide
+	// TMMetal: metals (after strong reduction roasting).
+	TMMetal
+)
+
+// ParseTMForm accepts layered, oxide (monoxide) or metal.
+func ParseTMForm(s string) (TMForm, error) {
+	switch strings.ToLower(s) {
+	case "layered", "":
+		return TMLayered, nil
+	case "oxide", "monoxide", "mo":
+		return TMMonoxide, nil
+	case "metal", "metallic":
+		return TMMetal, nil
+	}
+	return 0, fmt.Errorf("unknown transition-metal form %q (want layered, oxide or metal)", s)
+}
+
+// assayColumns are the species an assay is mapped to, in a fixed order so that every Monte
+// Carlo sample fills the same columns. A layered oxide Li_yMO2 is split into y·LiMO2 +
+// (1−y)·MO2 per metal: its mass and its charge balance are linear in that split.
+var assayColumns = []string{"LiCoO2", "LiNiO2", "LiMnO2", "CoO2", "NiO2", "MnO2", "CoO", "NiO", "MnO", "Co", "Ni", "Mn",
+	"LiFePO4", "FePO4", "Li2CO3", "Fe", "Al", "Cu", "C2H2F2", "C"}
+
+// assaySpecies maps one assay draw (wt% by element) to kg of each assay column per kg of black
+// mass, writing into dst. It returns the wt% of assayed elements it could not place.
+func assaySpecies(dst []float64, wt map[string]float64, form TMForm) (unassigned map[string]float64) {
+	es := cathode.DefaultElements()
+	clear(dst)
+	mol := func(el string) float64 { return wt[el] * 10 / es.Weight(el) } // mol per kg
+	put := func(col string, n float64) {
+		if n <= 0 {
+			return
+		}
+		for i, c := range assayColumns {
+			if c == col {
+				dst[i] += n * cathode.MolarMassOf(c) / 1000
+				return
+			}
+		}
+		panic("feed: no assay column " + col)
+	}
+	li, fe, p := mol("Li"), mol("Fe"), mol("P")
+	lfp := math.Min(li, math.Min(fe, p))
+	put("LiFePO4", lfp)
+	li, fe, p = li-lfp, fe-lfp, p-lfp
+	fp := math.Min(fe, p)
+	put("FePO4", fp)
+	fe, p = fe-fp, p-fp
+	tm := map[string]float64{"Co": mol("Co"), "Ni": mol("Ni"), "Mn": mol("Mn")}
+	tmTotal := tm["Co"] + tm["Ni"] + tm["Mn"]
+	switch form {
+	case TMLayered:
+		y := 0.0
+		if tmTotal > 0 {
+			y = math.Min(1, li/tmTotal)
+		}
+		for _, m := range []string{"Co", "Ni", "Mn"} {
+			put("Li"+m+"O2", y*tm[m])
+			put(m+"O2", (1-y)*tm[m])
+		}
+		li -= y * tmTotal
+	case TMMonoxide:
+		for _, m := range []string{"Co", "Ni", "Mn"} {
+			put(m+"O", tm[m])
+		}
+	case TMMetal:
+		for _, m := range []string{"Co", "Ni", "Mn"} {
+			put(m, tm[m])
+		}
+	}
+	put("Li2CO3", li/2)
+	put("Fe", fe)
+	put("Al", mol("Al"))
+	put("Cu", mol("Cu"))
+	f, c := mol("F"), mol("C")
+	pvdf := math.Min(f/2, c/2)
+	put("C2H2F2", pvdf)
+	put("C", c-2*pvdf)
+	unassigned = map[string]float64{}
+	if p > 1e-12 {
+		unassigned["P"] = p * es.Weight("P") / 10
+	}
+	if left := f - 2*pvdf; left > 1e-12 {
+		unassigned["F"] = left * es.Weight("F") / 10
+	}
+	for el, v := range wt {
+		switch el {
+		case "Li", "Fe", "P", "Co", "Ni", "Mn", "Al", "Cu", "F", "C", "O", "H":
+		default:
+			if v > 0 {
+				unassigned[el] = v
+			}
+		}
+	}
+	return unassigned
+}
+
+// AssayQuoteOptions sets a quote from an assay alone.
+type AssayQuoteOptions struct {
+	BlackMassKg float64
+	TMForm      TMForm
+	Seed        uint64
+	Samples     int
+	Leach       LeachOptions
+	Inputs      Inputs
+}
+
+// QuoteFromAssay builds a report for material already shredded: the assay (drawn within its
+// uncertainty) times the black-mass weight, mapped to species, then the leach plan.
+func QuoteFromAssay(a *Assay, opt AssayQuoteOptions) (*Report, error) {
+	if !(opt.BlackMassKg > 0) || opt.BlackMassKg > 1e7 {
+		return nil, fmt.Errorf("black-mass weight must be positive (got %v kg)", opt.BlackMassKg)
+	}
+	if opt.Samples < 10 || opt.Samples > 1_000_000 {
+		return nil, fmt.Errorf("samples must be from 10 to 1000000, got %d", opt.Samples)
+	}
+	n := opt.Samples
+	draws := drawAssay(a, opt.Seed, n)
+	cols := make([][]float64, len(assayColumns))
+	for c := range cols {
+		cols[c] = make([]float64, n)
+	}
+	row := make([]float64, len(assayColumns))
+	unassigned := map[string]float64{}
+	for i := range n {
+		un := assaySpecies(row, draws[i], opt.TMForm)
+		for c, v := range row {
+			cols[c][i] = v * opt.BlackMassKg
+		}
+		if i == 0 {
+			unassigned = un
+		}
+	}
+	bm := make([]float64, n)
+	for i := range bm {
+		bm[i] = opt.BlackMassKg
+	}
+	s, err := columnSamples(assayColumns, cols, bm, opt.Seed)
+	if err != nil {
+		return nil, err
+	}
+	r := &Report{Inputs: opt.Inputs, Elements: map[string]Amount{}, Compounds: map[string]Amount{}, Safety: safetyNotes}
+	r.Inputs.Seed, r.Inputs.Samples = opt.Seed, n
+	r.BlackMassKg = summarise(bm)
+	for _, v := range a.Values {
+		kg := make([]float64, n)
+		for i := range n {
+			kg[i] = draws[i][v.Element] / 100 * opt.BlackMassKg
+		}
+		r.Elements[v.Element] = amount(kg, bm)
+	}
+	for c, name := range assayColumns {
+		if maxOf(cols[c]) > 0 {
+			r.Compounds[name] = amount(cols[c], bm)
+		}
+	}
+	els := make([]string, 0, len(r.Elements))
+	for e := range r.Elements {
+		els = append(els, e)
+	}
+	r.ElementOrder = elementOrder(els)
+	r.Warnings = append(r.Warnings, "quote from an assay: species are inferred from the elements ("+
+		map[TMForm]string{TMLayered: "Co/Ni/Mn as layered oxides with the assay's lithium", TMMonoxide: "Co/Ni/Mn as monoxides", TMMetal: "Co/Ni/Mn as metals"}[opt.TMForm]+
+		"; Li with Fe and P as LiFePO4, other Fe as metal, Al and Cu as metal, F as PVDF, other C as graphite, Li left over as Li2CO3)")
+	for _, el := range sortedKeys(unassigned) {
+		r.Warnings = append(r.Warnings, fmt.Sprintf("%.3g wt%% %s could not be placed in a species and is left out of the leach", unassigned[el], el))
+	}
+	for _, v := range a.Values {
+		if v.SigmaAssumed {
+			r.Warnings = append(r.Warnings, fmt.Sprintf("no lab uncertainty given: %.0f %% relative assumed for every element without one", 100*DefaultAssaySigmaRel))
+			break
+		}
+	}
+	lr, err := planLeach(s, opt.Leach, opt.Seed)
+	if err != nil {
+		return nil, err
+	}
+	r.Leach = lr
+	return r, nil
+}
+
+// drawAssay returns n draws of the assay, each element from a normal distribution with the
+// lab's standard uncertainty, truncated at zero. Draw 0 is the assay as reported.
+func drawAssay(a *Assay, seed uint64, n int) []map[string]float64 {
+	rng := rand.New(rand.NewPCG(seed, 0xa55a))
+	out := make([]map[string]float64, n)
+	for i := range out {
+		m := make(map[string]float64, len(a.Values))
+		for _, v := range a.Values {
+			x := v.WtPct
+			if i > 0 {
+				x = math.Max(0, v.WtPct+v.SigmaWtPct*rng.NormFloat64())
+			}
+			m[v.Element] = x
+		}
+		out[i] = m
+	}
+	return out
+}
+
+func maxOf(x []float64) float64 {
+	m := math.Inf(-1)
+	for _, v := range x {
+		m = math.Max(m, v)
+	}
+	return m
+}
+
+func sortedKeys[V any](m map[string]V) []string {
+	out := make([]string, 0, len(m))
+	for k := range m {
+		out = append(out, k)
+	}
+	sort.Strings(out)
+	return out
+}

@@ -1,0 +1,221 @@
+package feed_test
+
+import (
+	"fmt"
+	"math"
+	"math/rand/v2"
+	"strings"
+	"testing"
+
+	"blackmass/cathode"
+	"blackmass/feed"
+)
+
+func assayCSV(wt map[string]float64, relSigma float64) string {
+	var b strings.Builder
+	b.WriteString("element,value,unit,uncertainty\n")
+	for _, el := range []string{"Li", "Co", "Ni", "Mn", "Al", "Fe", "Cu", "P", "C", "F"} {
+		if v, ok := wt[el]; ok {
+			fmt.Fprintf(&b, "%s,%.6f,wt%%,%.6f\n", el, v, math.Max(v*relSigma, 0.005))
+		}
+	}
+	return b.String()
+}
+
+func mustAssay(t *testing.T, s string) *feed.Assay {
+	t.Helper()
+	a, err := feed.ReadAssay(strings.NewReader(s), "assay.csv")
+	if err != nil {
+		t.Fatal(err)
+	}
+	return a
+}
+
+// composition returns wt% by element of a black mass made of the given formulas (mass fractions).
+func composition(parts map[string]float64) map[string]float64 {
+	es := cathode.DefaultElements()
+	out := map[string]float64{}
+	for formula, w := range parts {
+		f, _ := cathode.ParseFormula(formula)
+		for _, t := range f.MassFractions(es) {
+			out[t.Symbol] += 100 * w * t.Amount
+		}
+	}
+	delete(out, "O")
+	delete(out, "H")
+	return out
+}
+
+func candidates(t *testing.T, keys ...string) []*cathode.Entry {
+	cat, _ := cathode.DefaultCatalogue()
+	var out []*cathode.Entry
+	for _, k := range keys {
+		e := cat.Lookup(k)
+		if e == nil {
+			t.Fatalf("no %s", k)
+		}
+		out = append(out, e)
+	}
+	return out
+}
+
+// A synthetic black mass built from known fractions is recovered; with noise at the assay's
+// uncertainty the truth stays inside the reported 95 % range; fractions are never negative and
+// the cathode shares sum to 1.
+func TestInferMixRecoversSynthetic(t *testing.T) {
+	truth := map[string]float64{"LiCoO2": 0.25, "LiNi0.8Mn0.1Co0.1O2": 0.20, "LiFePO4": 0.10, "LiMn2O4": 0.05, "C": 0.30, "C2H2F2": 0.02, "Al": 0.03, "Cu": 0.03}
+	want := map[string]float64{"LCO": 0.25, "NMC811": 0.20, "LFP": 0.10, "LMO": 0.05, "graphite": 0.30, "PVDF": 0.02, "Al": 0.03, "Cu": 0.03, "Fe (metal)": 0}
+	cands := candidates(t, "LCO", "NMC811", "LFP", "LMO")
+	fit, err := feed.InferMix(mustAssay(t, assayCSV(composition(truth), 0.02)), cands, 300, 1)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, c := range fit.Components {
+		if math.Abs(c.Best-want[c.Name]) > 1e-6 {
+			t.Errorf("noise-free %s: %.6f, want %.2f", c.Name, c.Best, want[c.Name])
+		}
+	}
+	// Coverage: over 30 noisy assays (2 % relative noise, the uncertainty the assay states), the
+	// truth must fall inside the reported 95 % range in at least 80 % of them for every component.
+	rng := rand.New(rand.NewPCG(11, 12))
+	inside := map[string]int{}
+	const trials = 30
+	for trial := range trials {
+		noisy := composition(truth)
+		for k, v := range noisy {
+			noisy[k] = math.Max(0, v*(1+0.02*rng.NormFloat64()))
+		}
+		fit, err := feed.InferMix(mustAssay(t, assayCSV(noisy, 0.02)), cands, 200, uint64(trial))
+		if err != nil {
+			t.Fatal(err)
+		}
+		shareSum := 0.0
+		for _, c := range fit.Components {
+			if c.KgPerKg.P10 < 0 || c.Best < 0 || c.Interval95[0] < 0 {
+				t.Errorf("%s: negative fraction", c.Name)
+			}
+			if w := want[c.Name]; w >= c.Interval95[0]-1e-9 && w <= c.Interval95[1]+1e-9 {
+				inside[c.Name]++
+			}
+			if c.CathodeShare != nil {
+				shareSum += c.CathodeShare.Mean
+			}
+		}
+		if math.Abs(shareSum-1) > 1e-6 {
+			t.Errorf("cathode shares sum to %v", shareSum)
+		}
+	}
+	for name := range want {
+		if inside[name] < trials*8/10 {
+			t.Errorf("%s: truth inside the 95 %% range in %d of %d noisy assays", name, inside[name], trials)
+		}
+	}
+}
+
+// Published black-mass compositions give plausible mixes.
+func TestInferMixPublished(t *testing.T) {
+	cat, _ := cathode.DefaultCatalogue()
+	all := cat.Entries()
+	es := cathode.DefaultElements()
+	oxide := func(ox string, pct float64, el string) float64 {
+		f, _ := cathode.ParseFormula(ox)
+		return pct * f.Moles(el) * es.Weight(el) / f.MolarMass(es)
+	}
+	// Kpetemey et al., Orient. J. Chem. 39(4) 2023: cathode powder of spent consumer cells after
+	// alkaline Al removal, as oxides CoO 65.30, Li2O 5.39, MnO 15.78, NiO 2.17 wt%: cobalt-rich,
+	// so LCO should dominate the cathode, with a manganese chemistry beside it.
+	kp := map[string]float64{"Co": oxide("CoO", 65.30, "Co"), "Li": oxide("Li2O", 5.39, "Li"), "Mn": oxide("MnO", 15.78, "Mn"), "Ni": oxide("NiO", 2.17, "Ni")}
+	fit, err := feed.InferMix(mustAssay(t, assayCSV(kp, 0.03)), all, 200, 1)
+	if err != nil {
+		t.Fatal(err)
+	}
+	share := func(f *feed.MixFit, keys ...string) float64 {
+		s := 0.0
+		for _, c := range f.Components {
+			for _, k := range keys {
+				if c.Name == k && c.CathodeShare != nil {
+					s += c.CathodeShare.Mean
+				}
+			}
+		}
+		return s
+	}
+	if s := share(fit, "LCO"); s < 0.6 {
+		t.Errorf("Kpetemey 2023 powder: LCO share %.2f, want > 0.6", s)
+	}
+	if s := share(fit, "LMO", "LNMO", "NMC111", "NMC532", "NMC622"); s < 0.1 {
+		t.Errorf("Kpetemey 2023 powder: manganese chemistries %.2f, want > 0.1", s)
+	}
+	// Derived example (REFERENCES §4b consistency check): 55 % NMC622 + 35 % graphite gives Ni 20.0,
+	// Co 6.7, Mn 6.2, Li 3.9 wt%: the mix should be NMC.
+	nmc := map[string]float64{"Ni": 20.0, "Co": 6.7, "Mn": 6.2, "Li": 3.9, "C": 35}
+	fit, err = feed.InferMix(mustAssay(t, assayCSV(nmc, 0.03)), all, 200, 1)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if s := share(fit, "NMC111", "NMC532", "NMC622", "NMC811", "NCA"); s < 0.85 {
+		t.Errorf("NMC622 black mass: NMC/NCA share %.2f, want > 0.85", s)
+	}
+}
+
+func TestReadAssayErrors(t *testing.T) {
+	for _, c := range []struct{ in, want string }{
+		{"element,value,unit\nCo,70,wt%\nNi,40,wt%\n", "past 100"},
+		{"element,value,unit\nCo,-1,wt%\n", "assay.csv:2: value \"-1\": negative"},
+		{"element,value,unit\nXy,1,wt%\n", "assay.csv:2: element \"Xy\""},
+		{"element,value,unit\nCo,1,furlongs\n", "assay.csv:2: unit \"furlongs\": unknown unit"},
+		{"element,value,unit\nCo,1,wt%\nCo,2,wt%\n", "assay.csv:3: element \"Co\": given twice"},
+		{"element,value\nCo,1\n", "missing column \"unit\""},
+		{"", "empty"},
+	} {
+		_, err := feed.ReadAssay(strings.NewReader(c.in), "assay.csv")
+		if err == nil || !strings.Contains(err.Error(), c.want) {
+			t.Errorf("ReadAssay(%q) = %v, want %q", c.in, err, c.want)
+		}
+	}
+	a := mustAssay(t, "element,value,unit,±\nCo,25000,ppm,500\nLi,35,g/kg\n")
+	if v, _ := a.WtPct("Co"); math.Abs(v-2.5) > 1e-12 || math.Abs(a.Values[0].SigmaWtPct-0.05) > 1e-12 {
+		t.Errorf("ppm conversion: %+v", a.Values[0])
+	}
+	if v, _ := a.WtPct("Li"); math.Abs(v-3.5) > 1e-12 || !a.Values[1].SigmaAssumed {
+		t.Errorf("g/kg conversion: %+v", a.Values[1])
+	}
+}
+
+// A quote from an assay of pure LiCoO2 reproduces R1: 1.503 kg H2SO4 and 0.174 kg H2O2 per kg
+// at stoichiometry (REFERENCES §5b).
+func TestQuoteFromAssayLiCoO2(t *testing.T) {
+	a := mustAssay(t, assayCSV(composition(map[string]float64{"LiCoO2": 1}), 0))
+	o := feed.DefaultLeachOptions()
+	o.ExtractionOverride = map[string]float64{"*": 1}
+	r, err := feed.QuoteFromAssay(a, feed.AssayQuoteOptions{BlackMassKg: 1, Samples: 20, Seed: 1, Leach: o})
+	if err != nil {
+		t.Fatal(err)
+	}
+	near(t, "stoich H2SO4 kg", r.Leach.Reagents[0].StoichKg.P50, 1.503, 0.0075)
+	near(t, "stoich H2O2 kg", r.Leach.Reagents[1].StoichKg.P50, 0.174, 0.001)
+	if r.Leach.Liquor.ChargeResidual > 1e-9 {
+		t.Errorf("charge residual %g", r.Leach.Liquor.ChargeResidual)
+	}
+}
+
+func TestReconcile(t *testing.T) {
+	r, _ := estimate(t, mixed, 1, 1000)
+	wt := map[string]float64{}
+	for el, a := range r.Elements {
+		wt[el] = a.WtPct.Mean
+	}
+	rc := feed.Reconcile(r, mustAssay(t, assayCSV(wt, 0.05)), 2)
+	for _, c := range rc.Comparisons {
+		if c.Flag {
+			t.Errorf("%s flagged against its own estimate: z=%.2f", c.Element, c.Z)
+		}
+	}
+	wt["Co"] *= 1.6
+	rc = feed.Reconcile(r, mustAssay(t, assayCSV(wt, 0.05)), 2)
+	for _, c := range rc.Comparisons {
+		if c.Element == "Co" && (!c.Flag || c.Z < 2 || !strings.Contains(c.Interpretation, "more cobalt")) {
+			t.Errorf("Co raised 60 %%: %+v", c)
+		}
+	}
+}

@@ -1,0 +1,249 @@
+package feed
+
+import (
+	"fmt"
+	"math"
+	"math/rand/v2"
+	"slices"
+
+	"gonum.org/v1/gonum/mat"
+
+	"blackmass/cathode"
+)
+
+// zPerP10P90 converts a P10–P90 width to a standard deviation for a normal distribution
+// (P90 − P10 = 2·1.2816 σ).
+const zPerP10P90 = 2 * 1.2815515655446004
+
+// Comparison is one element of a reconciliation between an estimate and an assay.
+type Comparison struct {
+	Element        string  `json:"element"`
+	EstimateWtPct  float64 `json:"estimate_wt_pct"`
+	EstimateSigma  float64 `json:"estimate_sigma_wt_pct"`
+	AssayWtPct     float64 `json:"assay_wt_pct"`
+	AssaySigma     float64 `json:"assay_sigma_wt_pct"`
+	Z              float64 `json:"difference_in_sigma"`
+	Flag           bool    `json:"disagrees"`
+	Interpretation string  `json:"reading,omitempty"`
+}
+
+// Reconciliation sets an estimate beside an assay of the same lot.
+type Reconciliation struct {
+	Threshold   float64      `json:"flag_above_sigma"`
+	Comparisons []Comparison `json:"elements"`
+	Summary     []string     `json:"summary"`
+}
+
+// readings say what a disagreement suggests, by element and sign (assay above / below the estimate).
+var readings = map[string][2]string{
+	"Co": {"more cobalt than the labels explain: LCO-rich cells unlabelled or mislabelled, or older NMC than declared", "less cobalt than expected: Ni-rich or LFP cells labelled as cobalt chemistries"},
+	"Ni": {"more nickel than expected: Ni-rich NMC/NCA cells among the unknowns, or Ni-plated can fines", "less nickel than expected: LCO, LMO or LFP cells labelled as NMC/NCA"},
+	"Mn": {"more manganese than expected: LMO or LMO-blend (power-tool) cells in the lot", "less manganese than expected: NCA or LCO cells labelled as NMC"},
+	"Li": {"more lithium than expected: electrolyte salts retained, or cells with excess lithium", "less lithium than expected: lithium lost to electrolyte drainage, brine discharge or thermal pretreatment"},
+	"Fe": {"more iron than expected: steel casing fines or unlisted LFP cells", "less iron than expected: LFP cells declared but not present"},
+	"P":  {"more phosphorus than expected: unlisted LFP cells or LiPF6 residue", "less phosphorus than expected: LFP cells declared but not present"},
+	"Al": {"more aluminium than expected: coarse shredding or poor sieving carries foil into the fines", "less aluminium than expected: efficient foil separation"},
+	"Cu": {"more copper than expected: coarse shredding or poor sieving carries foil into the fines", "less copper than expected: efficient foil separation"},
+	"C":  {"more carbon than expected: graphite-rich fines, or plastics in the fines", "less carbon than expected: graphite lost, or thermal pretreatment burned it"},
+	"F":  {"more fluorine than expected: binder or electrolyte residue not removed", "less fluorine than expected: thermal pretreatment removed the binder"},
+}
+
+// Reconcile compares an estimate with an assay, element by element, in units of the combined
+// standard uncertainty; |z| above threshold is flagged.
+func Reconcile(r *Report, a *Assay, threshold float64) *Reconciliation {
+	rc := &Reconciliation{Threshold: threshold}
+	for _, v := range a.Values {
+		est, ok := r.Elements[v.Element]
+		c := Comparison{Element: v.Element, AssayWtPct: v.WtPct, AssaySigma: v.SigmaWtPct}
+		if !ok {
+			c.Interpretation = "not in the estimate's model (e.g. salt from brine discharge, or another contaminant)"
+			rc.Comparisons = append(rc.Comparisons, c)
+			continue
+		}
+		{
+			c.EstimateWtPct = est.WtPct.Mean
+			c.EstimateSigma = (est.WtPct.P90 - est.WtPct.P10) / zPerP10P90
+		}
+		sd := math.Hypot(c.EstimateSigma, c.AssaySigma)
+		if sd > 0 {
+			c.Z = (c.AssayWtPct - c.EstimateWtPct) / sd
+		} else if c.AssayWtPct != c.EstimateWtPct {
+			c.Z = math.Copysign(math.Inf(1), c.AssayWtPct-c.EstimateWtPct)
+		}
+		if math.Abs(c.Z) > threshold {
+			c.Flag = true
+			if rd, ok := readings[v.Element]; ok {
+				c.Interpretation = rd[0]
+				if c.Z < 0 {
+					c.Interpretation = rd[1]
+				}
+			}
+			rc.Summary = append(rc.Summary, fmt.Sprintf("%s: assay %.2f wt%% vs estimate %.2f wt%% (%+.1f σ)", v.Element, c.AssayWtPct, c.EstimateWtPct, c.Z))
+		}
+		rc.Comparisons = append(rc.Comparisons, c)
+	}
+	if len(rc.Summary) == 0 {
+		rc.Summary = []string{fmt.Sprintf("the assay agrees with the estimate within %.1f σ for every element", threshold)}
+	}
+	return rc
+}
+
+// MixComponent is one column of the mix fit with its share.
+type MixComponent struct {
+	Name string `json:"name"`
+	// KgPerKg is the mass fraction of the black mass (all components).
+	KgPerKg Stat `json:"black_mass_fraction"`
+	// CathodeShare is the share of the cathode active mass (chemistries only; sums to 1).
+	CathodeShare *Stat      `json:"cathode_share,omitempty"`
+	Interval95   [2]float64 `json:"interval_95"`
+	Best         float64    `json:"best_fit"`
+}
+
+// Residual is the misfit of one assayed element.
+type Residual struct {
+	Element string  `json:"element"`
+	WtPct   float64 `json:"assay_minus_fit_wt_pct"`
+	Sigma   float64 `json:"in_sigma"`
+}
+
+// MixFit is the chemistry mix that best explains an assay.
+type MixFit struct {
+	Components []MixComponent `json:"components"`
+	Residuals  []Residual     `json:"residuals"`
+	Explained  float64        `json:"explained_mass_fraction"`
+	Bootstrap  int            `json:"bootstrap_draws"`
+	Notes      []string       `json:"notes"`
+}
+
+// InferMix fits non-negative mass fractions of candidate chemistries plus graphite, PVDF, Al, Cu
+// and Fe (metal) to the assay by weighted non-negative least squares (weights 1/σ), and repeats
+// the fit on bootstrap draws of the assay within its uncertainty to give each share a range.
+func InferMix(a *Assay, candidates []*cathode.Entry, draws int, seed uint64) (*MixFit, error) {
+	if len(candidates) == 0 {
+		return nil, fmt.Errorf("infer: no candidate chemistries")
+	}
+	if draws < 10 {
+		return nil, fmt.Errorf("infer: at least 10 bootstrap draws")
+	}
+	es := cathode.DefaultElements()
+	type column struct {
+		name string
+		frac map[string]float64
+		chem bool
+	}
+	var cols []column
+	for _, e := range candidates {
+		m := map[string]float64{}
+		for _, t := range e.Formula.MassFractions(es) {
+			m[t.Symbol] = t.Amount
+		}
+		cols = append(cols, column{e.Key, m, true})
+	}
+	for _, x := range []struct{ name, formula string }{{"graphite", "C"}, {"PVDF", "C2H2F2"}, {"Al", "Al"}, {"Cu", "Cu"}, {"Fe (metal)", "Fe"}} {
+		f, _ := cathode.ParseFormula(x.formula)
+		m := map[string]float64{}
+		for _, t := range f.MassFractions(es) {
+			m[t.Symbol] = t.Amount
+		}
+		cols = append(cols, column{x.name, m, false})
+	}
+	var rows []AssayValue
+	for _, v := range a.Values {
+		used := false
+		for _, c := range cols {
+			if c.frac[v.Element] > 0 {
+				used = true
+			}
+		}
+		if used {
+			rows = append(rows, v)
+		}
+	}
+	if len(rows) < 2 {
+		return nil, fmt.Errorf("infer: the assay has fewer than two elements the candidates contain")
+	}
+	// A floor on σ keeps an element reported as exactly 0 ± 0 from dominating the fit.
+	sigma := make([]float64, len(rows))
+	for i, v := range rows {
+		sigma[i] = math.Max(v.SigmaWtPct, 0.01)
+	}
+	A := mat.NewDense(len(rows), len(cols), nil)
+	for i, v := range rows {
+		for j, c := range cols {
+			A.Set(i, j, 100*c.frac[v.Element]/sigma[i])
+		}
+	}
+	solve := func(vals []float64) ([]float64, error) {
+		b := make([]float64, len(rows))
+		for i := range rows {
+			b[i] = vals[i] / sigma[i]
+		}
+		x, _, err := nnls(A, b)
+		return x, err
+	}
+	best, err := solve(func() []float64 {
+		v := make([]float64, len(rows))
+		for i, r := range rows {
+			v[i] = r.WtPct
+		}
+		return v
+	}())
+	if err != nil {
+		return nil, err
+	}
+	rng := rand.New(rand.NewPCG(seed, 0xf17))
+	xs := make([][]float64, len(cols))
+	shares := make([][]float64, len(cols))
+	vals := make([]float64, len(rows))
+	for range draws {
+		for i, r := range rows {
+			vals[i] = math.Max(0, r.WtPct+r.SigmaWtPct*rng.NormFloat64())
+		}
+		x, err := solve(vals)
+		if err != nil {
+			return nil, err
+		}
+		chemSum := 0.0
+		for j, c := range cols {
+			if c.chem {
+				chemSum += x[j]
+			}
+		}
+		for j, c := range cols {
+			xs[j] = append(xs[j], x[j])
+			if c.chem {
+				s := 0.0
+				if chemSum > 0 {
+					s = x[j] / chemSum
+				}
+				shares[j] = append(shares[j], s)
+			}
+		}
+	}
+	fit := &MixFit{Bootstrap: draws}
+	for j, c := range cols {
+		mc := MixComponent{Name: c.name, KgPerKg: summarise(xs[j]), Best: sig(best[j])}
+		sorted := slices.Sorted(slices.Values(xs[j]))
+		mc.Interval95 = [2]float64{sig(quantile(sorted, 0.025)), sig(quantile(sorted, 0.975))}
+		if c.chem {
+			st := summarise(shares[j])
+			mc.CathodeShare = &st
+		}
+		fit.Components = append(fit.Components, mc)
+		fit.Explained += best[j]
+	}
+	fit.Explained = sig(fit.Explained)
+	for i, v := range rows {
+		f := 0.0
+		for j, c := range cols {
+			f += 100 * c.frac[v.Element] * best[j]
+		}
+		fit.Residuals = append(fit.Residuals, Residual{Element: v.Element, WtPct: sig(v.WtPct - f), Sigma: sig((v.WtPct - f) / sigma[i])})
+	}
+	fit.Notes = []string{
+		"weighted non-negative least squares (Lawson–Hanson) over the candidates' element fractions; weights 1/σ of the assay",
+		"candidates whose element fractions are near combinations of others (e.g. NMC grades) share the signal: read their ranges, not only the best fit",
+		"the explained mass fraction leaves out what the candidates lack (moisture, plastics, oxygen of other species)",
+	}
+	return fit, nil
+}
