@@ -78,20 +78,20 @@ type Liquor struct {
 
 // LeachReport is the leach plan of a lot.
 type LeachReport struct {
-	Route            string                `json:"route"`
-	Settings         LeachOptions          `json:"settings"`
-	Reagents         []Reagent             `json:"reagents"`
-	WaterL           Stat                  `json:"make_up_water_l"`
-	Gases            map[string]Gas        `json:"gases"`
-	GasReference     string                `json:"gas_reference"`
-	Liquor           Liquor                `json:"liquor"`
-	FreeAcidMolPerL  Stat                  `json:"free_acid_mol_per_l"`
-	Saturation       map[string]Stat       `json:"saturation"`
-	TotalCost        *Stat                 `json:"total_cost,omitempty"`
-	Warnings         []string              `json:"warnings"`
-	Safety           []string              `json:"safety"`
-	Assumptions      []string              `json:"assumptions"`
-	ExtractionRanges map[string][3]float64 `json:"extraction_ranges"`
+	Route           string          `json:"route"`
+	Settings        LeachOptions    `json:"settings"`
+	Reagents        []Reagent       `json:"reagents"`
+	WaterL          Stat            `json:"make_up_water_l"`
+	Gases           map[string]Gas  `json:"gases"`
+	GasReference    string          `json:"gas_reference"`
+	Liquor          Liquor          `json:"liquor"`
+	FreeAcidMolPerL Stat            `json:"free_acid_mol_per_l"`
+	Saturation      map[string]Stat `json:"saturation"`
+	TotalCost       *Stat           `json:"total_cost,omitempty"`
+	Warnings        []string        `json:"warnings"`
+	Safety          []string        `json:"safety"`
+	Assumptions     []string        `json:"assumptions"`
+	Extraction      []ParamResult   `json:"extraction"`
 }
 
 type reagentTable map[string][][2]float64 // reagent -> sorted (wt%, density)
@@ -105,11 +105,11 @@ type leachTables struct {
 	density    reagentTable
 	salts      []salt
 	extraction map[cathode.Route]map[string]cathode.Range
-	srcs       map[string]string
+	sources    map[string]string // "route/element" -> source
 }
 
 var loadLeachTables = sync.OnceValues(func() (*leachTables, error) {
-	lt := &leachTables{density: reagentTable{}, extraction: map[cathode.Route]map[string]cathode.Range{}}
+	lt := &leachTables{density: reagentTable{}, extraction: map[cathode.Route]map[string]cathode.Range{}, sources: map[string]string{}}
 	t, err := data.ReadTable(data.FS, "reagents.csv")
 	if err != nil {
 		return nil, err
@@ -165,6 +165,7 @@ var loadLeachTables = sync.OnceValues(func() (*leachTables, error) {
 			lt.extraction[route] = map[string]cathode.Range{}
 		}
 		lt.extraction[route][r.Str("element")] = rg
+		lt.sources[route.String()+"/"+r.Str("element")] = r.Str("source")
 	}
 	return lt, nil
 })
@@ -228,10 +229,11 @@ func planLeach(s *Samples, opt LeachOptions, seed uint64) (*LeachReport, error) 
 	n := s.N
 	// Extraction draws per element, shared by all compounds (systematic).
 	ext := map[string][]float64{}
-	ranges := map[string][3]float64{}
-	for el, rg := range lt.extraction[route] {
+	var ranges []ParamResult
+	for _, el := range sortedKeys(lt.extraction[route]) {
+		rg := lt.extraction[route][el]
 		ext[el] = s.params.rangeValues("extraction "+route.String()+"/"+el, rg)
-		ranges[el] = [3]float64{rg.Min, rg.Mode, rg.Max}
+		ranges = append(ranges, ParamResult{"extraction " + route.String(), el, rg.Min, rg.Mode, rg.Max, "fraction", lt.sources[route.String()+"/"+el]})
 	}
 	species := make([]cathode.Species, len(s.Compounds))
 	molarMass := make([]float64, len(s.Compounds))
@@ -336,7 +338,7 @@ func planLeach(s *Samples, opt LeachOptions, seed uint64) (*LeachReport, error) 
 		}
 	}
 	lr := &LeachReport{Route: route.String(), Settings: opt, Gases: map[string]Gas{}, Saturation: map[string]Stat{},
-		GasReference: "ideal gas at 0 °C and 101.325 kPa (22.414 L/mol)", Safety: leachSafety[route], ExtractionRanges: ranges}
+		GasReference: "ideal gas at 0 °C and 101.325 kPa (22.414 L/mol)", Safety: leachSafety[route], Extraction: ranges}
 	mk := func(name string, wt, rho, molMass float64, stoich, total []float64, price float64) Reagent {
 		pure, comm, litres, sk, ratio := make([]float64, n), make([]float64, n), make([]float64, n), make([]float64, n), make([]float64, n)
 		for i := range n {

@@ -9,6 +9,7 @@ import (
 
 	"github.com/xuri/excelize/v2"
 
+	"blackmass/cathode"
 	"blackmass/feed"
 )
 
@@ -89,6 +90,7 @@ func (w *writer) header(sheet string, row int, vals ...any) error {
 	}
 	end, _ := excelize.CoordinatesToCellName(len(vals), row)
 	start, _ := excelize.CoordinatesToCellName(1, row)
+	_ = w.f.SetRowHeight(sheet, row, 30)
 	return w.f.SetCellStyle(sheet, start, end, w.hdr)
 }
 
@@ -169,12 +171,28 @@ func (w *writer) summary() error {
 	}
 	_ = f.SetColWidth(s, "A", "A", 34)
 	_ = f.SetColWidth(s, "B", "E", 14)
-	fit := true
-	one := 1
-	_ = f.SetPageLayout(s, &excelize.PageLayoutOptions{FitToWidth: &one, FitToHeight: nil})
-	_ = f.SetSheetProps(s, &excelize.SheetPropsOptions{FitToPage: &fit})
-	_ = f.SetHeaderFooter(s, &excelize.HeaderFooterOptions{OddHeader: "&L" + escapeHF("Lot "+in.LotID) + "&RPage &P of &N"})
+	w.printSetup(s, false)
 	return nil
+}
+
+// printSetup fits a sheet to one page width (portrait or landscape) with the lot id and page
+// number in the header.
+func (w *writer) printSetup(sheet string, landscape bool) {
+	fit := true
+	one, auto := 1, 0
+	orient := "portrait"
+	if landscape {
+		orient = "landscape"
+	}
+	lot := w.r.Inputs.LotID
+	if lot == "" {
+		lot = w.r.Inputs.File
+	}
+	_ = w.f.SetPageLayout(sheet, &excelize.PageLayoutOptions{Orientation: &orient, FitToWidth: &one, FitToHeight: &auto})
+	_ = w.f.SetSheetProps(sheet, &excelize.SheetPropsOptions{FitToPage: &fit})
+	_ = w.f.SetHeaderFooter(sheet, &excelize.HeaderFooterOptions{
+		OddHeader: "&L" + escapeHF("Lot "+lot) + "&C" + escapeHF(sheet) + "&RPage &P of &N",
+		OddFooter: "&L" + escapeHF("blackmass "+w.r.Inputs.Version+": planning estimate; follow local codes and licensed practice")})
 }
 
 func escapeHF(s string) string {
@@ -194,16 +212,21 @@ func (w *writer) lines() error {
 	if _, err := f.NewSheet(Lines); err != nil {
 		return err
 	}
+	w.printSetup(Lines, true) // page setup goes in before the stream writer takes the sheet
 	sw, err := f.NewStreamWriter(Lines)
 	if err != nil {
 		return err
 	}
-	_ = sw.SetColWidth(1, 3, 16)
-	_ = sw.SetColWidth(4, 14, 13)
+	_ = sw.SetColStyle(13, 17, w.num3)
+	_ = sw.SetColWidth(1, 1, 10)
+	_ = sw.SetColWidth(2, 2, 30)
+	_ = sw.SetColWidth(3, 3, 18)
+	_ = sw.SetColWidth(4, 17, 12)
+	_ = sw.SetColWidth(18, 18, 50)
 	_ = sw.SetPanes(&excelize.Panes{Freeze: true, YSplit: 1, TopLeftCell: "A2", ActivePane: "bottomLeft"})
 	head := []any{"id", "description", "chemistry", "format", "capacity", "capacity_basis", "cells_per_pack", "count", "mass", "notes",
 		"line", "chemistry resolved", "energy per item (Wh)", "modelled mass per item (kg)", "measured Wh/kg", "cathode active (kg)", "black mass (kg)", "flags"}
-	if err := sw.SetRow("A1", head, excelize.RowOpts{StyleID: w.hdr}); err != nil {
+	if err := sw.SetRow("A1", head, excelize.RowOpts{StyleID: w.hdr, Height: 30}); err != nil {
 		return err
 	}
 	for i, l := range r.Lines {
@@ -226,12 +249,16 @@ func (w *writer) lines() error {
 		if l.ChargeAhPerItem > 0 {
 			cap = fmt.Sprintf("%g Ah", l.ChargeAhPerItem) // no voltage was given: keep the charge
 		}
+		var whPerKg any
+		if l.MeasuredWhPerKg > 0 {
+			whPerKg = l.MeasuredWhPerKg
+		}
 		cells := any(l.CellsPerItem)
 		if l.CellsPerItem == 0 {
 			cells = nil
 		}
 		row := []any{l.ID, l.Description, l.ChemistryLabel, l.Format, cap, basis, cells, l.Count, mass, l.Notes,
-			l.Line, l.Chemistry, l.EnergyWhPerItem, l.ModelMassKgEach, l.MeasuredWhPerKg, l.CathodeKg, l.BlackMassKg, flags}
+			l.Line, l.Chemistry, l.EnergyWhPerItem, l.ModelMassKgEach, whPerKg, l.CathodeKg, l.BlackMassKg, flags}
 		cell, _ := excelize.CoordinatesToCellName(1, i+2)
 		if err := sw.SetRow(cell, row); err != nil {
 			return err
@@ -259,12 +286,20 @@ func (w *writer) metals() error {
 		}
 	}
 	last := len(r.ElementOrder) + 1
+	metals := 1 // the chart shows the leading metals of the display order
+	for _, sym := range r.ElementOrder {
+		if !cathode.IsMetal(sym) {
+			break
+		}
+		metals++
+	}
 	w.style(s, "B2", fmt.Sprintf("E%d", last), w.num3)
 	w.style(s, "F2", fmt.Sprintf("H%d", last), w.pct)
 	_ = f.SetColWidth(s, "A", "H", 12)
+	w.printSetup(s, true)
 	return f.AddChart(s, "J2", &excelize.Chart{Type: excelize.Col,
-		Series: []excelize.ChartSeries{{Name: "Metals!$C$1", Categories: fmt.Sprintf("Metals!$A$2:$A$%d", last), Values: fmt.Sprintf("Metals!$C$2:$C$%d", last)}},
-		Title:  excelize.ChartTitle{Paragraph: []excelize.RichTextRun{{Text: "Black mass by element, P50 (kg)"}}},
+		Series: []excelize.ChartSeries{{Name: "Metals!$C$1", Categories: fmt.Sprintf("Metals!$A$2:$A$%d", max(metals, 2)), Values: fmt.Sprintf("Metals!$C$2:$C$%d", max(metals, 2))}},
+		Title:  excelize.ChartTitle{Paragraph: []excelize.RichTextRun{{Text: "Metals in the black mass, P50 (kg)"}}},
 		Legend: excelize.ChartLegend{Position: "none"}, Dimension: excelize.ChartDimension{Width: 640, Height: 320}})
 }
 
@@ -299,6 +334,7 @@ func (w *writer) leach() error {
 		return err
 	}
 	row++
+	gasFirst := row
 	for _, name := range sortedKeys(l.Gases) {
 		g := l.Gases[name]
 		_ = w.row(s, row, name, g.Mol.P50, g.M3STP.P50, g.M3STP.P90)
@@ -307,6 +343,7 @@ func (w *writer) leach() error {
 	row++
 	_ = w.row(s, row, "liquor volume P50 (L)", l.Liquor.VolumeL.P50)
 	_ = w.row(s, row+1, "free acid P50 (mol/L)", l.FreeAcidMolPerL.P50)
+	w.style(s, fmt.Sprintf("B%d", gasFirst), fmt.Sprintf("D%d", row+1), w.num3)
 	row += 3
 	if err := w.header(s, row, "element", "P10 g/L", "P50 g/L", "P90 g/L", "P50 mol/L"); err != nil {
 		return err
@@ -332,12 +369,15 @@ func (w *writer) leach() error {
 	if err := w.header(s, row, "salt", "saturation ratio P50", "P90"); err != nil {
 		return err
 	}
+	satFirst := row + 1
 	for _, k := range sortedKeys(l.Saturation) {
 		row++
 		_ = w.row(s, row, k, l.Saturation[k].P50, l.Saturation[k].P90)
 	}
+	w.style(s, fmt.Sprintf("B%d", satFirst), fmt.Sprintf("C%d", row), w.num3)
 	_ = f.SetColWidth(s, "A", "A", 26)
 	_ = f.SetColWidth(s, "B", "H", 15)
+	w.printSetup(s, true)
 	return nil
 }
 
@@ -380,10 +420,9 @@ func (w *writer) assumptions() error {
 		}
 	}
 	if l := r.Leach; l != nil {
-		for _, el := range sortedKeys(l.ExtractionRanges) {
-			v := l.ExtractionRanges[el]
+		for _, p := range l.Extraction {
 			row++
-			_ = w.row(s, row, "extraction "+l.Route, el, v[0], v[1], v[2], "fraction", "data/extraction.csv")
+			_ = w.row(s, row, p.Scope, p.Name, p.Min, p.Mode, p.Max, p.Unit, p.Source)
 		}
 		for _, a := range l.Assumptions {
 			row++
@@ -391,7 +430,9 @@ func (w *writer) assumptions() error {
 		}
 	}
 	_ = f.SetColWidth(s, "A", "B", 28)
-	_ = f.SetColWidth(s, "G", "G", 80)
+	_ = f.SetColWidth(s, "C", "F", 11)
+	_ = f.SetColWidth(s, "G", "G", 90)
+	w.printSetup(s, true)
 	return nil
 }
 
@@ -422,6 +463,7 @@ func (w *writer) weighIn() error {
 	w.style(s, fmt.Sprintf("B%d", first), fmt.Sprintf("D%d", last+4), w.num3)
 	_ = f.SetColWidth(s, "A", "A", 40)
 	_ = f.SetColWidth(s, "B", "D", 14)
+	w.printSetup(s, false)
 	return nil
 }
 
@@ -480,5 +522,6 @@ func (w *writer) assay() error {
 	_ = f.SetColWidth(s, "A", "A", 16)
 	_ = f.SetColWidth(s, "B", "H", 14)
 	_ = f.SetColWidth(s, "G", "G", 60)
+	w.printSetup(s, true)
 	return nil
 }
