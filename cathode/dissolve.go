@@ -40,6 +40,9 @@ func (r Route) String() string {
 	return fmt.Sprintf("Route(%d)", int(r))
 }
 
+// MarshalText writes the route's name, so JSON shows "hydrochloric" rather than a number.
+func (r Route) MarshalText() ([]byte, error) { return []byte(r.String()), nil }
+
 // ParseRoute accepts a route name as printed by String, or the short forms "h2so4", "hcl",
 // "selective".
 func ParseRoute(s string) (Route, error) {

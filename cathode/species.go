@@ -150,3 +150,7 @@ func (sp Species) TransitionMetalState() (float64, bool) {
 	}
 	return 0, false
 }
+
+// Anion names how the species' non-metals leave in an acid: "oxide", "phosphate", "carbonate",
+// "hexafluorophosphate", "fluoride", or "" for metals and inert species.
+func (sp Species) Anion() string { return sp.anionic }

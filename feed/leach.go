@@ -17,22 +17,22 @@ const MolarVolumeSTPLPerMol = 22.413969
 // FreeAcidMolPerL, ReductantExcess) or the bench recipe (RecipeAcidMolPerL and RecipeH2O2VolPct);
 // PulpDensityGPerL or LiquorVolumeL fixes the volume.
 type LeachOptions struct {
-	Route            cathode.Route
-	AcidWtPct        float64 // strength of the acid bought (e.g. 98 for H2SO4, 32 for HCl)
-	H2O2WtPct        float64 // strength of the peroxide bought (30, 35, 50)
-	AcidExcess       float64 // factor over stoichiometry (planner form)
-	FreeAcidMolPerL  float64 // free acid to leave in the liquor, mol/L of acid (planner form)
-	ReductantExcess  float64 // factor over stoichiometric H2O2 (peroxide decomposes in parallel)
-	PulpDensityGPerL float64 // black mass per litre of liquor
-	LiquorVolumeL    float64 // alternatively a fixed liquor volume
+	Route            cathode.Route `json:"route"`
+	AcidWtPct        float64       `json:"acid_strength_wt_pct"`       // strength of the acid bought (e.g. 98 for H2SO4, 32 for HCl)
+	H2O2WtPct        float64       `json:"h2o2_strength_wt_pct"`       // strength of the peroxide bought (30, 35, 50)
+	AcidExcess       float64       `json:"acid_excess_factor"`         // factor over stoichiometry (planner form)
+	FreeAcidMolPerL  float64       `json:"free_acid_target_mol_per_l"` // free acid to leave in the liquor, mol/L of acid (planner form)
+	ReductantExcess  float64       `json:"h2o2_excess_factor"`         // factor over stoichiometric H2O2 (peroxide decomposes in parallel)
+	PulpDensityGPerL float64       `json:"pulp_density_g_per_l"`       // black mass per litre of liquor
+	LiquorVolumeL    float64       `json:"liquor_volume_l,omitempty"`  // alternatively a fixed liquor volume
 	// Bench recipe: acid molarity of the lixiviant and peroxide as vol% of the commercial solution.
-	RecipeAcidMolPerL float64
-	RecipeH2O2VolPct  float64
+	RecipeAcidMolPerL float64 `json:"recipe_acid_mol_per_l,omitempty"`
+	RecipeH2O2VolPct  float64 `json:"recipe_h2o2_vol_pct,omitempty"`
 	// ExtractionOverride fixes the extraction of listed elements (0..1) instead of drawing it from
 	// data/extraction.csv; the key "*" sets every metal.
-	ExtractionOverride map[string]float64 `json:",omitempty"`
-	AcidPricePerKg     float64            // per kg of commercial acid (currency-neutral); 0: no cost
-	H2O2PricePerKg     float64
+	ExtractionOverride map[string]float64 `json:"extraction_override,omitempty"`
+	AcidPricePerKg     float64            `json:"acid_price_per_kg,omitempty"` // per kg of commercial acid (currency-neutral); 0: no cost
+	H2O2PricePerKg     float64            `json:"h2o2_price_per_kg,omitempty"`
 }
 
 // DefaultLeachOptions is the planner's default: sulfuric acid 98 % with 30 % peroxide, acid at
@@ -440,6 +440,7 @@ func planLeach(s *Samples, opt LeachOptions, seed uint64) (*LeachReport, error) 
 	if g, ok := lr.Gases["H2"]; ok && g.Mol.P50 > 0 {
 		lr.Warnings = append(lr.Warnings, fmt.Sprintf("hydrogen: about %.3f m³ H2 (STP, P50) from aluminium and other metals", g.M3STP.P50))
 	}
+	lr.Warnings = append(lr.Warnings, routeNotes(s, species, route)...)
 	if _, ok := lr.Liquor.Elements["F"]; ok {
 		lr.Warnings = append(lr.Warnings, "fluoride (HF) in the liquor from LiPF6 residue")
 	}
@@ -534,4 +535,30 @@ func mustModel() *Model {
 		panic("feed: embedded model: " + err.Error())
 	}
 	return m
+}
+
+// routeNotes says what the route does to a lot that mixes phosphate and oxide cathodes.
+func routeNotes(s *Samples, species []cathode.Species, route cathode.Route) []string {
+	var phosphateKg, oxideKg float64
+	for c, sp := range species {
+		if _, tm := sp.TransitionMetalState(); !tm || sp.Formula.Moles("Li") == 0 {
+			continue
+		}
+		kg := s.Compounds[c][0]
+		switch sp.Anion() {
+		case "phosphate":
+			phosphateKg += kg
+		case "oxide":
+			oxideKg += kg
+		}
+	}
+	switch {
+	case route == cathode.SulfuricSelective && oxideKg > 0:
+		return []string{fmt.Sprintf("selective route on a mixed lot: phosphate cathodes (about %.3g kg) give their lithium and keep iron as FePO4, "+
+			"but the oxide cathodes (about %.3g kg) are barely attacked at this acid level; most of their Co, Ni, Mn and Li stays in the residue for a second, reductive leach", phosphateKg, oxideKg)}
+	case route != cathode.SulfuricSelective && phosphateKg > 0 && oxideKg > 0:
+		return []string{fmt.Sprintf("mixed lot: the phosphate cathodes (about %.3g kg) dissolve fully on this route, putting Fe and H3PO4 into the liquor beside Co, Ni and Mn; "+
+			"a selective lithium leach of the phosphates first keeps iron out", phosphateKg)}
+	}
+	return nil
 }

@@ -1,7 +1,14 @@
 package main
 
 import (
+	"bufio"
+	"fmt"
+	"os"
+	"slices"
+	"strings"
+
 	"github.com/spf13/cobra"
+	"github.com/spf13/pflag"
 
 	"blackmass/cathode"
 	"blackmass/feed"
@@ -9,13 +16,21 @@ import (
 
 // leachFlags binds the leach plan's settings; defaults are feed.DefaultLeachOptions.
 type leachFlags struct {
-	route string
-	opt   feed.LeachOptions
+	route    string
+	opt      feed.LeachOptions
+	planPath string
+	flags    *pflag.FlagSet
 }
+
+// planKeys are the flags a plan file may set.
+var planKeys = []string{"route", "acid-strength", "h2o2-strength", "acid-excess", "free-acid", "h2o2-excess", "pulp-density",
+	"liquor-volume", "acid-molarity", "h2o2-vol-pct", "acid-price", "h2o2-price"}
 
 func (l *leachFlags) bind(cmd *cobra.Command) {
 	d := feed.DefaultLeachOptions()
 	fl := cmd.Flags()
+	l.flags = fl
+	fl.StringVar(&l.planPath, "plan", "", "leach plan file: lines \"key = value\" with the leach flag names (flags on the command line win)")
 	fl.StringVar(&l.route, "route", d.Route.String(), "leach route: sulfuric-peroxide, hydrochloric or sulfuric-selective")
 	fl.Float64Var(&l.opt.AcidWtPct, "acid-strength", 0, "acid bought, wt% (default 98 for H2SO4, 32 for HCl)")
 	fl.Float64Var(&l.opt.H2O2WtPct, "h2o2-strength", d.H2O2WtPct, "hydrogen peroxide bought, wt%")
@@ -30,7 +45,41 @@ func (l *leachFlags) bind(cmd *cobra.Command) {
 	fl.Float64Var(&l.opt.H2O2PricePerKg, "h2o2-price", 0, "price per kg of commercial peroxide (same currency)")
 }
 
+// applyPlan sets, from the plan file, every leach flag not given on the command line.
+func (l *leachFlags) applyPlan() error {
+	if l.planPath == "" {
+		return nil
+	}
+	f, err := os.Open(l.planPath)
+	if err != nil {
+		return err
+	}
+	defer f.Close()
+	sc := bufio.NewScanner(f)
+	for n := 1; sc.Scan(); n++ {
+		line := strings.TrimSpace(sc.Text())
+		if line == "" || strings.HasPrefix(line, "#") {
+			continue
+		}
+		key, val, ok := strings.Cut(line, "=")
+		key, val = strings.TrimSpace(key), strings.TrimSpace(val)
+		if !ok || !slices.Contains(planKeys, key) {
+			return fmt.Errorf("%s:%d: %q: want \"key = value\" with a key among %s", l.planPath, n, line, strings.Join(planKeys, ", "))
+		}
+		if l.flags.Changed(key) {
+			continue
+		}
+		if err := l.flags.Set(key, val); err != nil {
+			return fmt.Errorf("%s:%d: %s %q: %v", l.planPath, n, key, val, err)
+		}
+	}
+	return sc.Err()
+}
+
 func (l *leachFlags) options() (*feed.LeachOptions, error) {
+	if err := l.applyPlan(); err != nil {
+		return nil, err
+	}
 	r, err := cathode.ParseRoute(l.route)
 	if err != nil {
 		return nil, err

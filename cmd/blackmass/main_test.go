@@ -136,3 +136,27 @@ func TestAssayCommands(t *testing.T) {
 		t.Error(err)
 	}
 }
+
+func TestPlanFile(t *testing.T) {
+	plan := filepath.Join("..", "..", "testdata", "plans", "quarry-lane-standard.plan")
+	code, out, errs := run(t, "", "demo", "--plan", plan, "--samples", "100", "--json")
+	if code != 0 || !strings.Contains(out, `"recipe_acid_mol_per_l": 2`) || !strings.Contains(out, `"name": "H2SO4 96 %"`) {
+		t.Fatalf("plan: exit %d %s", code, errs)
+	}
+	// A flag on the command line wins over the plan.
+	code, out, _ = run(t, "", "demo", "--plan", plan, "--acid-strength", "93", "--samples", "100", "--json")
+	if code != 0 || !strings.Contains(out, `"name": "H2SO4 93 %"`) {
+		t.Errorf("command line did not override the plan")
+	}
+	bad := filepath.Join(t.TempDir(), "bad.plan")
+	_ = os.WriteFile(bad, []byte("# ok\nroute = sulfuric-peroxide\ncolour = blue\n"), 0o644)
+	code, _, errs = run(t, "", "demo", "--plan", bad)
+	if code == 0 || !strings.Contains(errs, "bad.plan:3:") {
+		t.Errorf("bad plan: %q", errs)
+	}
+	_ = os.WriteFile(bad, []byte("pulp-density = lots\n"), 0o644)
+	code, _, errs = run(t, "", "demo", "--plan", bad)
+	if code == 0 || !strings.Contains(errs, "bad.plan:1: pulp-density") {
+		t.Errorf("bad plan value: %q", errs)
+	}
+}

@@ -114,6 +114,16 @@ func writeLeachText(w io.Writer, r *feed.Report) {
 		fmt.Fprintf(w, " (fixed volume %g L)", st.LiquorVolumeL)
 	}
 	fmt.Fprintln(w)
+	if st.RecipeAcidMolPerL > 0 {
+		fmt.Fprintf(w, "dosing (bench recipe): %g mol/L %s", st.RecipeAcidMolPerL, l.Reagents[0].Name)
+	} else {
+		fmt.Fprintf(w, "dosing: acid %g× stoichiometry + %g mol/L free acid", st.AcidExcess, st.FreeAcidMolPerL)
+	}
+	if st.RecipeH2O2VolPct > 0 {
+		fmt.Fprintf(w, ", peroxide %g vol%% of %g %% H2O2\n", st.RecipeH2O2VolPct, st.H2O2WtPct)
+	} else {
+		fmt.Fprintf(w, ", peroxide %g× stoichiometry\n", st.ReductantExcess)
+	}
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
 	fmt.Fprintln(tw, "reagent\tP10 kg\tP50 kg\tP90 kg\tP50 L\t× stoich P50\t")
 	for _, g := range l.Reagents {
