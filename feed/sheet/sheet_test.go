@@ -1,0 +1,115 @@
+package sheet_test
+
+import (
+	"bytes"
+	"fmt"
+	"io"
+	"strings"
+	"testing"
+
+	"github.com/xuri/excelize/v2"
+
+	"blackmass/cathode"
+	"blackmass/feed"
+	"blackmass/feed/sheet"
+)
+
+func report(tb testing.TB, lines int) *feed.Report {
+	tb.Helper()
+	var b strings.Builder
+	b.WriteString("id,description,chemistry,format,capacity,cells_per_pack,count,mass\n")
+	rows := []string{"LCO,pouch,3000 mAh,,3,45 g", "NMC811,cylindrical,4.8 Ah,,7,69 g", "LFP,pack,960 Wh,15s4p,1,9 kg", "NMC622,module,5.2 kWh,12s2p,1,31 kg"}
+	for i := range lines {
+		fmt.Fprintf(&b, "L%d,item %d,%s\n", i, i, rows[i%len(rows)])
+	}
+	cat, _ := cathode.DefaultCatalogue()
+	m, _ := feed.DefaultModel()
+	lot := feed.NewLot(m, true)
+	if err := feed.ReadManifestCSV(strings.NewReader(b.String()), "gen.csv", feed.ManifestOptions{Catalogue: cat}, lot.Add); err != nil {
+		tb.Fatal(err)
+	}
+	lo := feed.DefaultLeachOptions()
+	r, _, err := lot.Estimate(feed.EstimateOptions{Seed: 1, Samples: 200, Leach: &lo, Inputs: feed.Inputs{LotID: "=cmd|' /C calc'!A0", Version: "test"}})
+	if err != nil {
+		tb.Fatal(err)
+	}
+	return r
+}
+
+// Ensure the workbook stores numbers as numbers, has every sheet, and its live formulas agree
+// with the Go values when evaluated by the calculation engine.
+func TestWorkbookContent(t *testing.T) {
+	r := report(t, 40)
+	var buf bytes.Buffer
+	if err := sheet.Write(&buf, r); err != nil {
+		t.Fatal(err)
+	}
+	f, err := excelize.OpenReader(&buf)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer f.Close()
+	rows, err := f.GetRows(sheet.Lines, excelize.Options{RawCellValue: true})
+	if err != nil || len(rows) != 41 {
+		t.Fatalf("lines sheet: %d rows, %v", len(rows), err)
+	}
+	for _, c := range []string{"H2", "M2", "N2", "P2", "Q2"} {
+		if typ, _ := f.GetCellType(sheet.Lines, c); typ == excelize.CellTypeInlineString || typ == excelize.CellTypeSharedString {
+			t.Errorf("Lines!%s is stored as text", c)
+		}
+	}
+	for i, sym := range r.ElementOrder {
+		got := cellFloat(t, f, sheet.Metals, fmt.Sprintf("C%d", i+2))
+		if got != r.Elements[sym].Kg.P50 {
+			t.Errorf("Metals %s P50 %v, report %v", sym, got, r.Elements[sym].Kg.P50)
+		}
+	}
+	// Editing the price drives the cost formula.
+	_ = f.SetCellValue(sheet.Leach, "G4", 2.5)
+	v, err := f.CalcCellValue(sheet.Leach, "H4", excelize.Options{RawCellValue: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	want := 2.5 * r.Leach.Reagents[0].Kg.P50
+	var got float64
+	fmt.Sscan(v, &got)
+	if d := got - want; d > 1e-6*want || d < -1e-6*want {
+		t.Errorf("cost after editing the price: %v, want %v", got, want)
+	}
+	// A lot id that looks like a formula is text.
+	if fm, _ := f.GetCellFormula(sheet.Summary, "B3"); fm != "" {
+		t.Errorf("lot id became a formula %q", fm)
+	}
+	for _, s := range []string{sheet.Summary, sheet.Leach, sheet.WeighIn} {
+		if idx, _ := f.GetSheetIndex(s); idx < 0 {
+			t.Errorf("missing sheet %s", s)
+		}
+	}
+}
+
+func cellFloat(t *testing.T, f *excelize.File, s, c string) float64 {
+	t.Helper()
+	v, err := f.GetCellValue(s, c, excelize.Options{RawCellValue: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	var x float64
+	if _, err := fmt.Sscan(v, &x); err != nil {
+		t.Fatalf("%s!%s = %q", s, c, v)
+	}
+	return x
+}
+
+// BenchmarkWorkbook100k writes the workbook of a 100,000-line lot; the lines sheet goes through
+// the stream writer, which spills to a temporary file past 16 MB.
+func BenchmarkWorkbook100k(b *testing.B) {
+	const n = 100_000
+	r := report(b, n)
+	b.ReportAllocs()
+	for b.Loop() {
+		if err := sheet.Write(io.Discard, r); err != nil {
+			b.Fatal(err)
+		}
+	}
+	b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/n, "ns/line")
+}
