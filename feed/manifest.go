@@ -233,7 +233,7 @@ func readRows(src rowSource, name string, opt ManifestOptions, decimalComma bool
 	if len(missing) > 0 {
 		return &ManifestError{File: name, Line: hline, Reason: fmt.Sprintf("missing required column(s) %s", strings.Join(missing, ", "))}
 	}
-	p := lineParser{name: name, opt: opt, decimalComma: decimalComma, chem: map[string]*cathode.Chemistry{}, formats: map[string]Format{}}
+	p := lineParser{name: name, opt: opt, decimalComma: decimalComma, chem: map[string]*cathode.Chemistry{}, formats: map[string]Format{}, layouts: map[string]int{}}
 	for i, c := range columnIDs {
 		p.cols[i] = -1
 		if j, ok := idx[c]; ok {
@@ -276,9 +276,23 @@ func blank(rec []string) bool {
 	return true
 }
 
-// columnIDs lists the canonical columns; lineParser keeps their positions in an array so a line
-// costs no map lookups.
+// columnIDs lists the canonical columns in the order of the col* constants; lineParser keeps
+// their positions in an array so a line costs no map lookups.
 var columnIDs = []string{"id", "description", "chemistry", "format", "capacity", "capacity_basis", "voltage", "cells_per_pack", "count", "mass", "notes"}
+
+const (
+	colID = iota
+	colDescription
+	colChemistry
+	colFormat
+	colCapacity
+	colBasis
+	colVoltage
+	colCellsPerPack
+	colCount
+	colMass
+	colNotes
+)
 
 type lineParser struct {
 	name         string
@@ -287,17 +301,11 @@ type lineParser struct {
 	decimalComma bool
 	chem         map[string]*cathode.Chemistry // resolved labels, so a label is parsed once
 	formats      map[string]Format
+	layouts      map[string]int // cells_per_pack text -> cells
 }
 
-func (p *lineParser) get(rec []string, col string) string {
-	k := 0
-	for k < len(columnIDs) && columnIDs[k] != col {
-		k++
-	}
-	if k == len(columnIDs) {
-		panic("feed: no column " + col)
-	}
-	i := p.cols[k]
+func (p *lineParser) get(rec []string, col int) string {
+	i := p.cols[col]
 	if i < 0 || i >= len(rec) {
 		return ""
 	}
@@ -318,14 +326,15 @@ const (
 )
 
 func (p *lineParser) parse(rec []string, line int) (Line, error) {
-	for _, f := range rec {
-		if !utf8.ValidString(f) {
-			return Line{}, p.fail(line, "", "", "not valid UTF-8")
+	// Text kept as typed must be valid UTF-8; the other fields are parsed strictly anyway.
+	for _, c := range []int{colID, colDescription, colChemistry, colNotes} {
+		if !utf8.ValidString(p.get(rec, c)) {
+			return Line{}, p.fail(line, columnIDs[c], "", "not valid UTF-8")
 		}
 	}
-	l := Line{Num: line, ID: p.get(rec, "id"), Description: p.get(rec, "description"), Notes: p.get(rec, "notes")}
+	l := Line{Num: line, ID: p.get(rec, colID), Description: p.get(rec, colDescription), Notes: p.get(rec, colNotes)}
 	// chemistry
-	l.ChemistryLabel = p.get(rec, "chemistry")
+	l.ChemistryLabel = p.get(rec, colChemistry)
 	ch, ok := p.chem[l.ChemistryLabel]
 	if !ok {
 		c, err := p.opt.Catalogue.ParseLabel(l.ChemistryLabel)
@@ -341,7 +350,7 @@ func (p *lineParser) parse(rec []string, line int) (Line, error) {
 	}
 	l.Chemistry = ch
 	// format
-	fs := p.get(rec, "format")
+	fs := p.get(rec, colFormat)
 	f, ok := p.formats[fs]
 	if !ok {
 		var err error
@@ -352,7 +361,7 @@ func (p *lineParser) parse(rec []string, line int) (Line, error) {
 	}
 	l.Format = f
 	// count
-	cs := p.get(rec, "count")
+	cs := p.get(rec, colCount)
 	cnt, err := p.integer(cs)
 	if err != nil || cnt < 1 || cnt > maxCount {
 		return l, p.fail(line, "count", cs, fmt.Sprintf("want a whole number from 1 to %d", maxCount))
@@ -360,10 +369,14 @@ func (p *lineParser) parse(rec []string, line int) (Line, error) {
 	l.Count = cnt
 	// cells per pack
 	l.CellsPerItem = 1
-	if cp := p.get(rec, "cells_per_pack"); cp != "" {
-		n, err := parseCellsPerPack(cp)
-		if err != nil {
-			return l, p.fail(line, "cells_per_pack", cp, err.Error())
+	if cp := p.get(rec, colCellsPerPack); cp != "" {
+		n, ok := p.layouts[cp]
+		if !ok {
+			var err error
+			if n, err = parseCellsPerPack(cp); err != nil {
+				return l, p.fail(line, "cells_per_pack", cp, err.Error())
+			}
+			p.layouts[cp] = n
 		}
 		if !f.IsAssembly() && n != 1 {
 			return l, p.fail(line, "cells_per_pack", cp, fmt.Sprintf("a %s line is one cell per item; use format pack or module", f))
@@ -373,12 +386,12 @@ func (p *lineParser) parse(rec []string, line int) (Line, error) {
 		l.CellsPerItem = 0
 	}
 	// capacity and basis
-	l.CapacityText = p.get(rec, "capacity")
+	l.CapacityText = p.get(rec, colCapacity)
 	val, unit, err := p.quantity(l.CapacityText, capacityUnits)
 	if err != nil {
 		return l, p.fail(line, "capacity", l.CapacityText, err.Error())
 	}
-	basis := strings.ToLower(p.get(rec, "capacity_basis"))
+	basis := strings.ToLower(p.get(rec, colBasis))
 	switch basis {
 	case "":
 		basis = "cell"
@@ -403,7 +416,7 @@ func (p *lineParser) parse(rec []string, line int) (Line, error) {
 	case "Wh":
 		l.EnergyWh = val * mult
 	case "Ah":
-		vs := p.get(rec, "voltage")
+		vs := p.get(rec, colVoltage)
 		if vs != "" {
 			v, _, err := p.quantity(vs, voltUnits)
 			if err != nil || v < 1 || v > 1000 {
@@ -429,7 +442,7 @@ func (p *lineParser) parse(rec []string, line int) (Line, error) {
 		return l, p.fail(line, "capacity", l.CapacityText, fmt.Sprintf("%.0f Wh per item is absurd for a %s (limit %.0f Wh)", perItemWh, f, limit))
 	}
 	// mass
-	if ms := p.get(rec, "mass"); ms != "" {
+	if ms := p.get(rec, colMass); ms != "" {
 		v, _, err := p.quantity(ms, massUnits)
 		if err != nil {
 			return l, p.fail(line, "mass", ms, err.Error())
