@@ -126,11 +126,12 @@ func newReconcileCmd() *cobra.Command {
 			if err != nil {
 				return err
 			}
-			b, err := os.ReadFile(args[0])
+			name, in, closeIn, err := openInput(cmd, args[0])
 			if err != nil {
 				return err
 			}
-			rep, err := buildEstimate(o, args[0], b)
+			defer closeIn()
+			rep, err := buildEstimate(o, name, in)
 			if err != nil {
 				return err
 			}

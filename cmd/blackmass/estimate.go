@@ -1,6 +1,7 @@
 package main
 
 import (
+	"bufio"
 	"bytes"
 	"crypto/sha256"
 	"encoding/hex"
@@ -66,19 +67,12 @@ func newEstimateCmd() *cobra.Command {
   cat lot.csv | blackmass estimate - --unknown prior --seed 7`,
 		Args: cobra.ExactArgs(1),
 		RunE: func(cmd *cobra.Command, args []string) error {
-			name := args[0]
-			var b []byte
-			var err error
-			if name == "-" {
-				name = "stdin"
-				b, err = io.ReadAll(cmd.InOrStdin())
-			} else {
-				b, err = os.ReadFile(name)
-			}
+			name, in, closeIn, err := openInput(cmd, args[0])
 			if err != nil {
 				return err
 			}
-			return runEstimate(cmd.OutOrStdout(), o, name, b)
+			defer closeIn()
+			return runEstimate(cmd.OutOrStdout(), o, name, in)
 		},
 	}
 	o.bind(cmd)
@@ -102,28 +96,42 @@ func newDemoCmd() *cobra.Command {
 			if o.supplier == "" {
 				o.supplier = demoSupplier
 			}
-			return runEstimate(cmd.OutOrStdout(), o, demoFile, b)
+			return runEstimate(cmd.OutOrStdout(), o, demoFile, bytes.NewReader(b))
 		},
 	}
 	o.bind(cmd)
 	return cmd
 }
 
-func runEstimate(w io.Writer, o *estimateOptions, name string, b []byte) error {
+// openInput opens a manifest path, or standard input for "-".
+func openInput(cmd *cobra.Command, path string) (name string, r io.Reader, closeFn func(), err error) {
+	if path == "-" {
+		return "stdin", cmd.InOrStdin(), func() {}, nil
+	}
+	f, err := os.Open(path)
+	if err != nil {
+		return "", nil, nil, err
+	}
+	return path, f, func() { _ = f.Close() }, nil
+}
+
+func runEstimate(w io.Writer, o *estimateOptions, name string, in io.Reader) error {
 	if o.xlsxPath != "" {
 		if err := checkWritable(o.xlsxPath, o.force); err != nil {
 			return err
 		}
 	}
-	rep, err := buildEstimate(o, name, b)
+	rep, err := buildEstimate(o, name, in)
 	if err != nil {
 		return err
 	}
 	return emit(w, o, rep)
 }
 
-// buildEstimate reads a manifest (CSV or xlsx bytes) and runs the estimate with the leach plan.
-func buildEstimate(o *estimateOptions, name string, b []byte) (*feed.Report, error) {
+// buildEstimate reads a manifest and runs the estimate with the leach plan. A CSV manifest is
+// streamed (hashed on the way), so memory does not grow with its length; an .xlsx workbook is
+// read whole, as the zip format needs.
+func buildEstimate(o *estimateOptions, name string, in io.Reader) (*feed.Report, error) {
 	if o.unknown != "refuse" && o.unknown != "prior" {
 		return nil, fmt.Errorf("--unknown must be refuse or prior, got %q", o.unknown)
 	}
@@ -141,15 +149,25 @@ func buildEstimate(o *estimateOptions, name string, b []byte) (*feed.Report, err
 	}
 	lot := feed.NewLot(model, !o.noLines)
 	mopt := feed.ManifestOptions{Catalogue: cat, UnknownAsPrior: o.unknown == "prior"}
-	if isXLSX(name, b) {
+	h := sha256.New()
+	br := bufio.NewReaderSize(in, 64<<10)
+	head, _ := br.Peek(4)
+	if strings.EqualFold(filepath.Ext(name), ".xlsx") || bytes.HasPrefix(head, []byte("PK\x03\x04")) {
+		var b []byte
+		if b, err = io.ReadAll(io.TeeReader(br, h)); err != nil {
+			return nil, err
+		}
 		err = feed.ReadManifestXLSX(bytes.NewReader(b), name, o.sheet, mopt, lot.Add)
 	} else {
-		err = feed.ReadManifestCSV(bytes.NewReader(b), name, mopt, lot.Add)
+		err = feed.ReadManifestCSV(io.TeeReader(br, h), name, mopt, lot.Add)
 	}
 	if err != nil {
 		return nil, err
 	}
-	sum := sha256.Sum256(b)
+	if _, err := io.Copy(h, br); err != nil { // hash anything the reader left unread
+		return nil, err
+	}
+	sum := h.Sum(nil)
 	rep, _, err := lot.Estimate(feed.EstimateOptions{Seed: o.seed, Samples: o.samples, Leach: leachOpt,
 		Inputs: feed.Inputs{File: filepath.ToSlash(name), SHA256: hex.EncodeToString(sum[:]), Version: version,
 			LotID: o.lotID, Supplier: o.supplier, UnknownAsPrior: o.unknown == "prior"}})
@@ -177,8 +195,4 @@ func writeJSON(w io.Writer, v any) error {
 	enc := json.NewEncoder(w)
 	enc.SetIndent("", "  ")
 	return enc.Encode(v)
-}
-
-func isXLSX(name string, b []byte) bool {
-	return strings.EqualFold(filepath.Ext(name), ".xlsx") || bytes.HasPrefix(b, []byte("PK\x03\x04"))
 }

@@ -2,6 +2,8 @@ package main
 
 import (
 	"bytes"
+	"crypto/sha256"
+	"encoding/hex"
 	"flag"
 	"os"
 	"path/filepath"
@@ -158,5 +160,17 @@ func TestPlanFile(t *testing.T) {
 	code, _, errs = run(t, "", "demo", "--plan", bad)
 	if code == 0 || !strings.Contains(errs, "bad.plan:1: pulp-density") {
 		t.Errorf("bad plan value: %q", errs)
+	}
+}
+
+// The report's SHA-256 is the file's (checked with the standard library's hash of the bytes).
+func TestInputHash(t *testing.T) {
+	path := filepath.Join(t.TempDir(), "one.csv")
+	body := "chemistry,format,capacity,count\nLCO,pouch,3 Ah,1\n"
+	_ = os.WriteFile(path, []byte(body), 0o644)
+	_, out, _ := run(t, "", "estimate", path, "--json", "--samples", "20")
+	sum := sha256.Sum256([]byte(body))
+	if !strings.Contains(out, hex.EncodeToString(sum[:])) {
+		t.Errorf("sha256 of the input missing from the report")
 	}
 }
