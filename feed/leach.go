@@ -47,6 +47,7 @@ type Reagent struct {
 	Name       string  `json:"name"`
 	StrengthWt float64 `json:"strength_wt_pct"`
 	DensityGmL float64 `json:"density_g_per_mL"`
+	MolarMass  float64 `json:"molar_mass_g_per_mol"`
 	KgPure     Stat    `json:"kg_pure"`
 	Kg         Stat    `json:"kg"`
 	Litres     Stat    `json:"litres"`
@@ -350,7 +351,7 @@ func planLeach(s *Samples, opt LeachOptions, seed uint64) (*LeachReport, error) 
 				ratio[i] = total[i] / stoich[i]
 			}
 		}
-		rg := Reagent{Name: fmt.Sprintf("%s %g %%", name, wt), StrengthWt: wt, DensityGmL: round(rho, 4), KgPure: summarise(pure),
+		rg := Reagent{Name: fmt.Sprintf("%s %g %%", name, wt), StrengthWt: wt, DensityGmL: round(rho, 4), MolarMass: round(molMass, 4), KgPure: summarise(pure),
 			Kg: summarise(comm), Litres: summarise(litres), StoichKg: summarise(sk), Ratio: summarise(ratio)}
 		if price > 0 {
 			c := make([]float64, n)

@@ -27,6 +27,7 @@ const (
 type writer struct {
 	f                          *excelize.File
 	hdr, num, num3, pct, title int
+	edit                       int // cells a user is expected to change
 	r                          *feed.Report
 }
 
@@ -59,6 +60,8 @@ func Build(r *feed.Report) (*excelize.File, error) {
 	p2 := "0.00"
 	wr.pct = must(f.NewStyle(&excelize.Style{CustomNumFmt: &p2}))
 	wr.title = must(f.NewStyle(&excelize.Style{Font: &excelize.Font{Bold: true, Size: 14}}))
+	wr.edit = must(f.NewStyle(&excelize.Style{Fill: excelize.Fill{Type: "pattern", Pattern: 1, Color: []string{"FFF2CC"}}, CustomNumFmt: &f3,
+		Border: []excelize.Border{{Type: "left", Color: "BF9000", Style: 1}, {Type: "right", Color: "BF9000", Style: 1}, {Type: "top", Color: "BF9000", Style: 1}, {Type: "bottom", Color: "BF9000", Style: 1}}}))
 	if err != nil {
 		return nil, err
 	}
@@ -329,6 +332,8 @@ func (w *writer) leach() error {
 	_ = f.SetCellValue(s, fmt.Sprintf("A%d", row), "total reagent cost (P50)")
 	_ = f.SetCellFormula(s, fmt.Sprintf("H%d", row), fmt.Sprintf("SUM(H4:H%d)", row-1))
 	w.style(s, "B4", fmt.Sprintf("H%d", row), w.num3)
+	w.style(s, "G4", fmt.Sprintf("G%d", row-1), w.edit)
+	row = w.recipeCalculator(s, row+2)
 	row += 2
 	if err := w.header(s, row, "gas", "P50 mol", "P50 m³ (0 °C, 1 atm)", "P90 m³ (0 °C, 1 atm)"); err != nil {
 		return err
@@ -379,6 +384,55 @@ func (w *writer) leach() error {
 	_ = f.SetColWidth(s, "B", "H", 15)
 	w.printSetup(s, true)
 	return nil
+}
+
+// recipeCalculator lays out the dosing as live formulas: edit the excess factors or the free-acid
+// target and the quantities follow. Inputs are the report's P50 values; the result at the
+// default settings is close to (not exactly) the Monte Carlo P50 above, since the P50 of a sum is
+// not the sum of P50s. It returns the last row used.
+func (w *writer) recipeCalculator(s string, row int) int {
+	f, l := w.f, w.r.Leach
+	_ = f.SetCellValue(s, fmt.Sprintf("A%d", row), "Dosing calculator (edit the shaded cells; P50 inputs)")
+	_ = f.MergeCell(s, fmt.Sprintf("A%d", row), fmt.Sprintf("D%d", row))
+	w.style(s, fmt.Sprintf("A%d", row), fmt.Sprintf("D%d", row), w.hdr)
+	acid := l.Reagents[0]
+	cells := map[string]string{}
+	put := func(key, label string, v any, editable bool) {
+		row++
+		_ = w.row(s, row, label, v)
+		cells[key] = fmt.Sprintf("$B$%d", row)
+		style := w.num3
+		if editable {
+			style = w.edit
+		}
+		w.style(s, fmt.Sprintf("B%d", row), fmt.Sprintf("B%d", row), style)
+	}
+	put("ex", "acid excess (× stoichiometry)", l.Settings.AcidExcess, true)
+	put("free", "free acid target (mol/L)", l.Settings.FreeAcidMolPerL, true)
+	put("stoich", "stoichiometric acid (kg, 100 %)", acid.StoichKg.P50, false)
+	put("vol", "liquor volume (L)", l.Liquor.VolumeL.P50, false)
+	put("M", "acid molar mass (g/mol)", acid.MolarMass, false)
+	put("wt", "acid strength (wt%)", acid.StrengthWt, false)
+	put("rho", "acid density (g/mL)", acid.DensityGmL, false)
+	formula := func(label, expr string) {
+		row++
+		_ = w.row(s, row, label)
+		_ = f.SetCellFormula(s, fmt.Sprintf("B%d", row), expr)
+		w.style(s, fmt.Sprintf("B%d", row), fmt.Sprintf("B%d", row), w.num3)
+		cells[label] = fmt.Sprintf("$B$%d", row)
+	}
+	formula("acid to buy (kg)", fmt.Sprintf("(%s*%s+%s*%s*%s/1000)/(%s/100)", cells["stoich"], cells["ex"], cells["free"], cells["vol"], cells["M"], cells["wt"]))
+	formula("acid to buy (L)", fmt.Sprintf("%s/%s", cells["acid to buy (kg)"], cells["rho"]))
+	if len(l.Reagents) > 1 {
+		h := l.Reagents[1]
+		put("hex", "H2O2 excess (× stoichiometry)", l.Settings.ReductantExcess, true)
+		put("hst", "stoichiometric H2O2 (kg, 100 %)", h.StoichKg.P50, false)
+		put("hwt", "H2O2 strength (wt%)", h.StrengthWt, false)
+		put("hrho", "H2O2 density (g/mL)", h.DensityGmL, false)
+		formula("H2O2 to buy (kg)", fmt.Sprintf("%s*%s/(%s/100)", cells["hst"], cells["hex"], cells["hwt"]))
+		formula("H2O2 to buy (L)", fmt.Sprintf("%s/%s", cells["H2O2 to buy (kg)"], cells["hrho"]))
+	}
+	return row
 }
 
 func priceOf(l *feed.LeachReport, g feed.Reagent) float64 {
@@ -450,6 +504,7 @@ func (w *writer) weighIn() error {
 		return err
 	}
 	const first, last = 4, 23
+	w.style(s, fmt.Sprintf("A%d", first), fmt.Sprintf("C%d", last), w.edit)
 	for i := first; i <= last; i++ {
 		_ = f.SetCellFormula(s, fmt.Sprintf("D%d", i), fmt.Sprintf(`IF(AND(ISNUMBER(B%d),ISNUMBER(C%d)),B%d-C%d,0)`, i, i, i, i))
 	}

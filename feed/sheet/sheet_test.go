@@ -113,3 +113,48 @@ func BenchmarkWorkbook100k(b *testing.B) {
 	}
 	b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/n, "ns/line")
 }
+
+// The dosing calculator's formulas, evaluated by the calculation engine at the report's own
+// settings, give the acid the Monte Carlo quotes (to within the P50-of-a-sum difference), and an
+// edited excess factor moves the result as the formula says.
+func TestDosingCalculator(t *testing.T) {
+	r := report(t, 12)
+	f, err := sheet.Build(r)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer f.Close()
+	rows, _ := f.GetRows(sheet.Leach)
+	find := func(label string) string {
+		for i, row := range rows {
+			if len(row) > 0 && row[0] == label {
+				return fmt.Sprintf("B%d", i+1)
+			}
+		}
+		t.Fatalf("no row %q", label)
+		return ""
+	}
+	calc := func(cell string) float64 {
+		v, err := f.CalcCellValue(sheet.Leach, cell, excelize.Options{RawCellValue: true})
+		if err != nil {
+			t.Fatalf("%s: %v", cell, err)
+		}
+		var x float64
+		fmt.Sscan(v, &x)
+		return x
+	}
+	acidKg := calc(find("acid to buy (kg)"))
+	if want := r.Leach.Reagents[0].Kg.P50; acidKg < 0.99*want || acidKg > 1.01*want {
+		t.Errorf("calculator acid %.3f kg, Monte Carlo P50 %.3f kg", acidKg, want)
+	}
+	h2o2Kg := calc(find("H2O2 to buy (kg)"))
+	if want := r.Leach.Reagents[1].Kg.P50; h2o2Kg < 0.99*want || h2o2Kg > 1.01*want {
+		t.Errorf("calculator H2O2 %.3f kg, Monte Carlo P50 %.3f kg", h2o2Kg, want)
+	}
+	_ = f.SetCellValue(sheet.Leach, find("acid excess (× stoichiometry)"), 1.3)
+	acid := r.Leach.Reagents[0]
+	want := (acid.StoichKg.P50*1.3 + r.Leach.Settings.FreeAcidMolPerL*r.Leach.Liquor.VolumeL.P50*acid.MolarMass/1000) / (acid.StrengthWt / 100)
+	if got := calc(find("acid to buy (kg)")); got < want*(1-1e-9) || got > want*(1+1e-9) {
+		t.Errorf("after editing the excess: %.6f kg, want %.6f", got, want)
+	}
+}
