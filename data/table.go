@@ -1,7 +1,6 @@
 package data
 
 import (
-	"bufio"
 	"bytes"
 	"encoding/csv"
 	"errors"
@@ -41,13 +40,7 @@ func ReadTable(fsys fs.FS, name string) (*Table, error) {
 // ParseTable parses a reference table. It returns an error naming the file and line for a
 // malformed record, a duplicate or missing "source" column, or an empty table.
 func ParseTable(r io.Reader, name string) (*Table, error) {
-	br := bufio.NewReader(r)
-	if b, err := br.Peek(3); err == nil && bytes.Equal(b, []byte{0xEF, 0xBB, 0xBF}) {
-		_, _ = br.Discard(3)
-	}
-	cr := csv.NewReader(br)
-	cr.Comment = '#'
-	cr.TrimLeadingSpace = true
+	cr := NewCSVReader(SkipBOM(r), ',')
 	t := &Table{Name: name, index: map[string]int{}}
 	header, err := cr.Read()
 	if errors.Is(err, io.EOF) {

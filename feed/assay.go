@@ -1,20 +1,20 @@
 package feed
 
 import (
-	"bufio"
-	"bytes"
 	"encoding/csv"
 	"errors"
 	"fmt"
 	"io"
+	"maps"
 	"math"
 	"math/rand/v2"
-	"sort"
+	"slices"
 	"strconv"
 	"strings"
 	"unicode/utf8"
 
 	"blackmass/cathode"
+	"blackmass/data"
 )
 
 // AssayValue is one assayed element in wt% of the black mass (dry basis as the lab reports it).
@@ -52,13 +52,7 @@ var assayUnits = map[string]float64{"wt%": 1, "%": 1, "wt.%": 1, "pct": 1, "g/kg
 // optional uncertainty column (± in the same unit, a standard uncertainty). Refused: unknown
 // elements or units, negative values, duplicates, and elements summing past 100 %.
 func ReadAssay(r io.Reader, name string) (*Assay, error) {
-	br := bufio.NewReader(r)
-	if b, err := br.Peek(3); err == nil && bytes.Equal(b, []byte{0xEF, 0xBB, 0xBF}) {
-		_, _ = br.Discard(3)
-	}
-	cr := csv.NewReader(br)
-	cr.Comment = '#'
-	cr.TrimLeadingSpace = true
+	cr := data.NewCSVReader(data.SkipBOM(r), ',')
 	cr.FieldsPerRecord = -1 // the uncertainty may be left off a row
 	fail := func(line int, col, val, reason string) error {
 		return &ManifestError{File: name, Line: line, Column: col, Value: val, Reason: reason}
@@ -331,7 +325,7 @@ func QuoteFromAssay(a *Assay, opt AssayQuoteOptions) (*Report, error) {
 		r.Elements[v.Element] = amount(kg, bm)
 	}
 	for c, name := range assayColumns {
-		if maxOf(cols[c]) > 0 {
+		if slices.Max(cols[c]) > 0 {
 			r.Compounds[name] = amount(cols[c], bm)
 		}
 	}
@@ -343,7 +337,7 @@ func QuoteFromAssay(a *Assay, opt AssayQuoteOptions) (*Report, error) {
 	r.Warnings = append(r.Warnings, "quote from an assay: species are inferred from the elements ("+
 		map[TMForm]string{TMLayered: "Co/Ni/Mn as layered oxides with the assay's lithium", TMMonoxide: "Co/Ni/Mn as monoxides", TMMetal: "Co/Ni/Mn as metals"}[opt.TMForm]+
 		"; Li with Fe and P as LiFePO4, other Fe as metal, Al and Cu as metal, F as PVDF, other C as graphite, Li left over as Li2CO3)")
-	for _, el := range sortedKeys(unassigned) {
+	for _, el := range slices.Sorted(maps.Keys(unassigned)) {
 		r.Warnings = append(r.Warnings, fmt.Sprintf("%.3g wt%% %s could not be placed in a species and is left out of the leach", unassigned[el], el))
 	}
 	for _, v := range a.Values {
@@ -376,22 +370,5 @@ func drawAssay(a *Assay, seed uint64, n int) []map[string]float64 {
 		}
 		out[i] = m
 	}
-	return out
-}
-
-func maxOf(x []float64) float64 {
-	m := math.Inf(-1)
-	for _, v := range x {
-		m = math.Max(m, v)
-	}
-	return m
-}
-
-func sortedKeys[V any](m map[string]V) []string {
-	out := make([]string, 0, len(m))
-	for k := range m {
-		out = append(out, k)
-	}
-	sort.Strings(out)
 	return out
 }

@@ -2,7 +2,9 @@ package feed
 
 import (
 	"fmt"
+	"maps"
 	"math"
+	"slices"
 	"sort"
 	"sync"
 
@@ -231,7 +233,7 @@ func planLeach(s *Samples, opt LeachOptions, seed uint64) (*LeachReport, error) 
 	// Extraction draws per element, shared by all compounds (systematic).
 	ext := map[string][]float64{}
 	var ranges []ParamResult
-	for _, el := range sortedKeys(lt.extraction[route]) {
+	for _, el := range slices.Sorted(maps.Keys(lt.extraction[route])) {
 		rg := lt.extraction[route][el]
 		ext[el] = s.params.rangeValues("extraction "+route.String()+"/"+el, rg)
 		ranges = append(ranges, ParamResult{"extraction " + route.String(), el, rg.Min, rg.Mode, rg.Max, "fraction", lt.sources[route.String()+"/"+el]})
@@ -387,7 +389,7 @@ func planLeach(s *Samples, opt LeachOptions, seed uint64) (*LeachReport, error) 
 		for i := range n {
 			m3[i] = mol[i] * MolarVolumeSTPLPerMol / 1000
 		}
-		if slicesMax(mol) > 0 {
+		if slices.Max(mol) > 0 {
 			lr.Gases[name] = Gas{Mol: summarise(mol), M3STP: summarise(m3)}
 		}
 	}
@@ -401,7 +403,7 @@ func planLeach(s *Samples, opt LeachOptions, seed uint64) (*LeachReport, error) 
 		return out
 	}
 	for k, e := range elements {
-		if slicesMax(elMol[k]) > 0 {
+		if slices.Max(elMol[k]) > 0 {
 			lr.Liquor.Elements[e] = Conc{GPerL: summarise(perL(elMol[k], es.Weight(e))), MolPerL: summarise(perL(elMol[k], 1))}
 		}
 	}
@@ -410,7 +412,7 @@ func planLeach(s *Samples, opt LeachOptions, seed uint64) (*LeachReport, error) 
 	// Saturation: the salt each cation forms with the liquor anion, against its solubility.
 	for _, sl := range lt.salts {
 		k, ok := elIdx[sl.cation]
-		if !ok || sl.anion != route.Anion() || slicesMax(elMol[k]) == 0 {
+		if !ok || sl.anion != route.Anion() || slices.Max(elMol[k]) == 0 {
 			continue
 		}
 		f, _ := cathode.ParseFormula(sl.name)
@@ -456,14 +458,6 @@ func planLeach(s *Samples, opt LeachOptions, seed uint64) (*LeachReport, error) 
 	return lr, nil
 }
 
-func slicesMax(x []float64) float64 {
-	m := math.Inf(-1)
-	for _, v := range x {
-		m = math.Max(m, v)
-	}
-	return m
-}
-
 func checkLeachOptions(o *LeachOptions) error {
 	switch {
 	case o.Route == cathode.RouteInvalid:
@@ -496,7 +490,7 @@ func PlanLeachFor(kgByFormula map[string]float64, opt LeachOptions, seed uint64,
 	if samples < 1 {
 		return nil, fmt.Errorf("leach: samples must be positive")
 	}
-	keys := sortedKeys(kgByFormula)
+	keys := slices.Sorted(maps.Keys(kgByFormula))
 	cols := make([][]float64, len(keys))
 	bm := make([]float64, samples)
 	for c, k := range keys {

@@ -13,6 +13,7 @@ import (
 	"unicode/utf8"
 
 	"blackmass/cathode"
+	"blackmass/data"
 )
 
 // Format is the physical form of a manifest line.
@@ -130,18 +131,12 @@ type rowSource interface {
 // ReadManifestCSV streams a CSV manifest (comma or semicolon separated; with semicolons a decimal
 // comma is accepted) to fn, one Line at a time. name is the file name for error messages.
 func ReadManifestCSV(r io.Reader, name string, opt ManifestOptions, fn func(Line) error) error {
-	br := bufio.NewReaderSize(r, 64<<10)
-	if b, err := br.Peek(3); err == nil && bytes.Equal(b, []byte{0xEF, 0xBB, 0xBF}) {
-		_, _ = br.Discard(3)
-	}
+	br := data.SkipBOM(r)
 	sep, err := sniffSeparator(br)
 	if err != nil {
 		return &ManifestError{File: name, Reason: err.Error()}
 	}
-	cr := csv.NewReader(br)
-	cr.Comma = sep
-	cr.Comment = '#'
-	cr.TrimLeadingSpace = true
+	cr := data.NewCSVReader(br, sep)
 	cr.ReuseRecord = true
 	cr.FieldsPerRecord = 0
 	src := &csvSource{cr: cr, name: name}

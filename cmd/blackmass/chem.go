@@ -3,7 +3,9 @@ package main
 import (
 	"fmt"
 	"io"
+	"maps"
 	"math"
+	"slices"
 	"strings"
 	"text/tabwriter"
 
@@ -140,7 +142,7 @@ func writeChemText(w io.Writer, j chemJSON) {
 		fmt.Fprintln(w)
 		fmt.Fprintf(w, "    molar mass              %.3f g/mol\n", m.MolarMass)
 		var els []string
-		for _, t := range sortedKeys(m.ElementsWtPct) {
+		for _, t := range slices.Sorted(maps.Keys(m.ElementsWtPct)) {
 			els = append(els, fmt.Sprintf("%s %.3f", t, m.ElementsWtPct[t]))
 		}
 		fmt.Fprintf(w, "    elements (wt%%)          %s\n", strings.Join(els, "  "))

@@ -3,6 +3,8 @@ package main
 import (
 	"fmt"
 	"io"
+	"maps"
+	"slices"
 	"strings"
 	"text/tabwriter"
 
@@ -136,7 +138,7 @@ func writeLeachText(w io.Writer, r *feed.Report) {
 	}
 	tw = tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
 	fmt.Fprintln(tw, "gas\tP50 mol\tP50 m³ STP\tP90 m³ STP\t")
-	for _, name := range sortedKeys(l.Gases) {
+	for _, name := range slices.Sorted(maps.Keys(l.Gases)) {
 		g := l.Gases[name]
 		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t\n", name, num(g.Mol.P50), num(g.M3STP.P50), num(g.M3STP.P90))
 	}
@@ -153,7 +155,7 @@ func writeLeachText(w io.Writer, r *feed.Report) {
 	}
 	tw.Flush()
 	var sat []string
-	for _, k := range sortedKeys(l.Saturation) {
+	for _, k := range slices.Sorted(maps.Keys(l.Saturation)) {
 		sat = append(sat, fmt.Sprintf("%s %.2f", k, l.Saturation[k].P50))
 	}
 	fmt.Fprintf(w, "saturation ratio near 25 °C (P50): %s\n", strings.Join(sat, ", "))

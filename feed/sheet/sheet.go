@@ -6,6 +6,8 @@ package sheet
 import (
 	"fmt"
 	"io"
+	"maps"
+	"slices"
 
 	"github.com/xuri/excelize/v2"
 
@@ -340,7 +342,7 @@ func (w *writer) leach() error {
 	}
 	row++
 	gasFirst := row
-	for _, name := range sortedKeys(l.Gases) {
+	for _, name := range slices.Sorted(maps.Keys(l.Gases)) {
 		g := l.Gases[name]
 		_ = w.row(s, row, name, g.Mol.P50, g.M3STP.P50, g.M3STP.P90)
 		row++
@@ -375,7 +377,7 @@ func (w *writer) leach() error {
 		return err
 	}
 	satFirst := row + 1
-	for _, k := range sortedKeys(l.Saturation) {
+	for _, k := range slices.Sorted(maps.Keys(l.Saturation)) {
 		row++
 		_ = w.row(s, row, k, l.Saturation[k].P50, l.Saturation[k].P90)
 	}
