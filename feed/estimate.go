@@ -92,6 +92,9 @@ func (l *Lot) Estimate(opt EstimateOptions) (*Report, *Samples, error) {
 	if l.energyWh > 0 {
 		r.Lot.UnknownShareOfKWh = round(l.unknownWh/l.energyWh, 6)
 	}
+	if l.flagged > maxLineWarnings {
+		r.Warnings = append(r.Warnings, fmt.Sprintf("… and %d more lines whose measured mass disagrees with the nameplate (see lines_flagged_by_mass)", l.flagged-maxLineWarnings))
+	}
 	if r.Lot.UnknownShareOfKWh > 0 {
 		r.Warnings = append(r.Warnings, fmt.Sprintf("%.1f %% of the nameplate energy is of unknown chemistry: its metals come from the prior mix and carry the widest uncertainty", 100*r.Lot.UnknownShareOfKWh))
 	}

@@ -39,6 +39,15 @@ type groupKey struct {
 	format Format
 }
 
+// ptrKey finds a group from the parser's resolved chemistry without hashing its name.
+type ptrKey struct {
+	chem   *cathode.Chemistry
+	format Format
+}
+
+// maxLineWarnings caps the per-line mass warnings; the count of flagged lines is always exact.
+const maxLineWarnings = 50
+
 // group is the lines of one (chemistry, format): only sums are kept, so the Monte Carlo costs
 // groups × samples.
 type group struct {
@@ -61,6 +70,7 @@ type Lot struct {
 	mode      *paramSet // every parameter at its most likely value
 	keepLines bool
 	groups    map[groupKey]*group
+	byPtr     map[ptrKey]*group
 	order     []*group
 	lines     []LineResult
 	warnings  []string
@@ -77,7 +87,7 @@ type Lot struct {
 
 // NewLot starts an empty lot. With keepLines, each line's detail is kept for the report.
 func NewLot(m *Model, keepLines bool) *Lot {
-	return &Lot{model: m, mode: newParamSet(m, 0, 0), keepLines: keepLines, groups: map[groupKey]*group{},
+	return &Lot{model: m, mode: newParamSet(m, 0, 0), keepLines: keepLines, groups: map[groupKey]*group{}, byPtr: map[ptrKey]*group{},
 		warned: map[string]bool{}, comp: newCompounds()}
 }
 
@@ -88,24 +98,37 @@ func (l *Lot) warnOnce(key, msg string) {
 	}
 }
 
-// Add takes one manifest line. Its cost does not depend on the number of samples.
-func (l *Lot) Add(ln Line) error {
-	ch := ln.Chemistry
-	k := groupKey{ch.Key, ln.Format}
+// group returns the group of (chemistry, format), creating it on first use. Labels spelled
+// differently that resolve to the same chemistry share a group.
+func (l *Lot) group(ch *cathode.Chemistry, f Format) *group {
+	pk := ptrKey{ch, f}
+	if g, ok := l.byPtr[pk]; ok {
+		return g
+	}
+	k := groupKey{ch.Key, f}
 	g := l.groups[k]
 	if g == nil {
-		g = &group{chem: ch, format: ln.Format}
+		g = &group{chem: ch, format: f}
 		for _, c := range ch.Components {
 			g.camIdx = append(g.camIdx, l.comp.cathode(c.Entry))
 		}
 		g.modeMix = l.modeMix(ch)
-		g.bandLo, g.bandHi = l.band(ch, ln.Format)
+		g.bandLo, g.bandHi = l.band(ch, f)
 		l.groups[k] = g
 		l.order = append(l.order, g)
 		for _, n := range ch.Notes {
 			l.warnOnce("note "+n, n)
 		}
 	}
+	l.byPtr[pk] = g
+	return g
+}
+
+// Add takes one manifest line. Its cost does not depend on the number of samples, and without
+// per-line detail it keeps nothing of the line but sums.
+func (l *Lot) Add(ln Line) error {
+	ch := ln.Chemistry
+	g := l.group(ch, ln.Format)
 	cnt := float64(ln.Count)
 	g.energyWh += cnt * ln.EnergyWh
 	g.chargeAh += cnt * ln.ChargeAh
@@ -121,10 +144,7 @@ func (l *Lot) Add(ln Line) error {
 	if ch.Unknown {
 		l.unknownWh += cnt * ln.EnergyWh
 	}
-	// Most-likely breakdown of one item, for the mass check and the line detail.
 	mx := g.modeMix
-	fr, gl := l.mode.formats[ln.Format][0], l.mode.globals[0]
-	b := model(ln.EnergyWh, ln.ChargeAh, mx, fr, gl)
 	energyWh := ln.EnergyWh
 	if energyWh == 0 {
 		energyWh = ln.ChargeAh * mx.voltV
@@ -138,15 +158,20 @@ func (l *Lot) Add(ln Line) error {
 			l.flagged++
 			msg := fmt.Sprintf("%.0f Wh/kg measured, outside the plausible %.0f–%.0f Wh/kg for %s %s", measWhKg, lo, hi, ch.Key, ln.Format)
 			flags = append(flags, msg)
-			l.warnings = append(l.warnings, fmt.Sprintf("line %d (%s): %s; check the capacity, the count or the weight", ln.Num, idOr(ln), msg))
+			if l.flagged <= maxLineWarnings {
+				l.warnings = append(l.warnings, fmt.Sprintf("line %d (%s): %s; check the capacity, the count or the weight", ln.Num, idOr(ln), msg))
+			}
 		}
-	}
-	if ch.Unknown {
-		flags = append(flags, "unknown chemistry: prior mix assumed")
 	}
 	if !l.keepLines {
 		return nil
 	}
+	if ch.Unknown {
+		flags = append(flags, "unknown chemistry: prior mix assumed")
+	}
+	// Most-likely breakdown of one item, for the line detail.
+	fr, gl := l.mode.formats[ln.Format][0], l.mode.globals[0]
+	b := model(ln.EnergyWh, ln.ChargeAh, mx, fr, gl)
 	bm := make([]float64, l.comp.n())
 	b.blackMass(bm, fr, gl, g.camIdx, shares(ch))
 	els := map[string]float64{}

@@ -462,6 +462,9 @@ func (p *lineParser) number(s string) (float64, error) {
 }
 
 func (p *lineParser) integer(s string) (int, error) {
+	if n, err := strconv.Atoi(s); err == nil {
+		return n, nil
+	}
 	v, err := p.number(s)
 	if err != nil || v != math.Trunc(v) || v > math.MaxInt32 {
 		return 0, errors.New("not a whole number")
@@ -469,25 +472,24 @@ func (p *lineParser) integer(s string) (int, error) {
 	return int(v), nil
 }
 
+// unit is one accepted unit: its spelling (matched case-insensitively), the factor to the base
+// unit and the base unit's name.
+type unit struct {
+	name   string
+	factor float64
+	base   string
+}
+
 type unitTable struct {
-	factor map[string]float64 // lower-case unit -> factor to the base unit
-	base   map[string]string  // lower-case unit -> base unit name
-	want   string
+	units []unit
+	want  string
 }
 
-var capacityUnits = unitTable{
-	factor: map[string]float64{"wh": 1, "kwh": 1000, "ah": 1, "mah": 0.001},
-	base:   map[string]string{"wh": "Wh", "kwh": "Wh", "ah": "Ah", "mah": "Ah"},
-	want:   "Wh, kWh, Ah or mAh",
-}
+var capacityUnits = unitTable{units: []unit{{"wh", 1, "Wh"}, {"kwh", 1000, "Wh"}, {"ah", 1, "Ah"}, {"mah", 0.001, "Ah"}}, want: "Wh, kWh, Ah or mAh"}
 
-var massUnits = unitTable{
-	factor: map[string]float64{"g": 0.001, "kg": 1, "lb": 0.45359237, "lbs": 0.45359237},
-	base:   map[string]string{"g": "kg", "kg": "kg", "lb": "kg", "lbs": "kg"},
-	want:   "g, kg or lb",
-}
+var massUnits = unitTable{units: []unit{{"g", 0.001, "kg"}, {"kg", 1, "kg"}, {"lb", 0.45359237, "kg"}, {"lbs", 0.45359237, "kg"}}, want: "g, kg or lb"}
 
-var voltUnits = unitTable{factor: map[string]float64{"v": 1, "": 1}, base: map[string]string{"v": "V", "": "V"}, want: "V"}
+var voltUnits = unitTable{units: []unit{{"v", 1, "V"}, {"", 1, "V"}}, want: "V"}
 
 // quantity parses "3.5 Ah", "3500mAh", "1,2 kWh" (decimal comma files) into a positive value in
 // the table's base unit.
@@ -499,12 +501,9 @@ func (p *lineParser) quantity(s string, u unitTable) (float64, string, error) {
 	for i < len(s) && (s[i] >= '0' && s[i] <= '9' || s[i] == '.' || s[i] == ',' || s[i] == '-' || s[i] == '+' || s[i] == 'e' && i > 0 && i+1 < len(s) && (s[i+1] >= '0' && s[i+1] <= '9' || s[i+1] == '-')) {
 		i++
 	}
-	num, unit := strings.TrimSpace(s[:i]), strings.TrimSpace(s[i:])
-	for _, k := range []string{"wh", "kwh", "ah", "mah", "g", "kg", "lb", "lbs", "v"} {
-		if len(k) == len(unit) && strings.EqualFold(unit, k) {
-			unit = k
-			break
-		}
+	num, rest := s[:i], s[i:]
+	for len(rest) > 0 && (rest[0] == ' ' || rest[0] == '\t') {
+		rest = rest[1:]
 	}
 	if num == "" {
 		return 0, "", fmt.Errorf("no number (want a number and a unit: %s)", u.want)
@@ -513,9 +512,15 @@ func (p *lineParser) quantity(s string, u unitTable) (float64, string, error) {
 	if err != nil {
 		return 0, "", fmt.Errorf("not a number (want a number and a unit: %s)", u.want)
 	}
-	f, ok := u.factor[unit]
-	if !ok {
-		if unit == "" {
+	k := -1
+	for j, un := range u.units {
+		if len(un.name) == len(rest) && strings.EqualFold(rest, un.name) {
+			k = j
+			break
+		}
+	}
+	if k < 0 {
+		if rest == "" {
 			return 0, "", fmt.Errorf("no unit (want %s)", u.want)
 		}
 		return 0, "", fmt.Errorf("unknown unit (want %s)", u.want)
@@ -523,7 +528,7 @@ func (p *lineParser) quantity(s string, u unitTable) (float64, string, error) {
 	if v <= 0 {
 		return 0, "", errors.New("must be positive")
 	}
-	return v * f, u.base[unit], nil
+	return v * u.units[k].factor, u.units[k].base, nil
 }
 
 // parseCellsPerPack accepts a whole number ("52") or a series-parallel tag ("13s4p", "10S3P",
