@@ -88,7 +88,7 @@ func (l *Lot) Estimate(opt EstimateOptions) (*Report, *Samples, error) {
 		Warnings: append([]string(nil), l.warnings...), Safety: safetyNotes}
 	r.Inputs.Seed, r.Inputs.Samples = opt.Seed, n
 	r.Lot = LotSummary{Lines: l.nLines, Items: l.items, Cells: l.cells, NameplateKWh: round(l.energyWh/1000, 6),
-		ChargeOnlyAh: round(l.chargeAh, 6), LinesFlaggedByMass: l.flagged}
+		ChargeOnlyAh: round(l.chargeAh, 6), LinesWithMass: l.withMass, LinesFlaggedByMass: l.flagged}
 	if l.energyWh > 0 {
 		r.Lot.UnknownShareOfKWh = round(l.unknownWh/l.energyWh, 6)
 	}
@@ -112,7 +112,7 @@ func (l *Lot) Estimate(opt EstimateOptions) (*Report, *Samples, error) {
 	}
 	for gi, g := range l.order {
 		r.Groups = append(r.Groups, GroupResult{Chemistry: g.chem.Key, Format: g.format.String(), Lines: g.lines, Items: g.items,
-			NameplateKWh: round(g.energyWh/1000, 6), CathodeKg: summarise(s.groupCAM[gi]), BlackMassKg: summarise(s.groupBM[gi])})
+			NameplateKWh: round(g.energyWh/1000, 6), ChargeOnlyAh: round(g.chargeAh, 6), CathodeKg: summarise(s.groupCAM[gi]), BlackMassKg: summarise(s.groupBM[gi])})
 	}
 	r.Parameters = l.parameters()
 	r.ElementOrder = elementOrder(l.comp.elements)

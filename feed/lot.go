@@ -83,6 +83,7 @@ type Lot struct {
 	chargeAh  float64
 	unknownWh float64
 	flagged   int
+	withMass  int
 }
 
 // NewLot starts an empty lot. With keepLines, each line's detail is kept for the report.
@@ -152,6 +153,7 @@ func (l *Lot) Add(ln Line) error {
 	var flags []string
 	var measWhKg float64
 	if ln.MassKg > 0 {
+		l.withMass++
 		measWhKg = energyWh / ln.MassKg
 		lo, hi := g.bandLo, g.bandHi
 		if measWhKg < lo || measWhKg > hi {

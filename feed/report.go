@@ -35,6 +35,7 @@ type LotSummary struct {
 	NameplateKWh       float64 `json:"nameplate_kWh"`
 	ChargeOnlyAh       float64 `json:"charge_only_Ah"`
 	UnknownShareOfKWh  float64 `json:"unknown_chemistry_share_of_kWh"`
+	LinesWithMass      int     `json:"lines_with_mass"`
 	LinesFlaggedByMass int     `json:"lines_flagged_by_mass"`
 }
 
@@ -45,6 +46,7 @@ type GroupResult struct {
 	Lines        int     `json:"lines"`
 	Items        int     `json:"items"`
 	NameplateKWh float64 `json:"nameplate_kWh"`
+	ChargeOnlyAh float64 `json:"charge_only_Ah,omitempty"`
 	CathodeKg    Stat    `json:"cathode_active_kg"`
 	BlackMassKg  Stat    `json:"black_mass_kg"`
 }

@@ -32,6 +32,7 @@ func writeReportText(w io.Writer, r *feed.Report) {
 		if r.Lot.ChargeOnlyAh > 0 {
 			fmt.Fprintf(w, " + %.1f Ah given without voltage", r.Lot.ChargeOnlyAh)
 		}
+		fmt.Fprintf(w, "\nmass check: %d of %d lines with a weight fall outside their plausible Wh/kg", r.Lot.LinesFlaggedByMass, r.Lot.LinesWithMass)
 	} else {
 		fmt.Fprintf(w, "black mass weighed, composition from a lab assay")
 	}
@@ -59,9 +60,17 @@ func writeReportText(w io.Writer, r *feed.Report) {
 
 func writeGroupsText(w io.Writer, r *feed.Report) {
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
-	fmt.Fprintln(tw, "chemistry\tformat\tlines\titems\tkWh\tblack mass P50 kg")
+	fmt.Fprintln(tw, "chemistry\tformat\tlines\titems\tnameplate\tblack mass P50 kg")
 	for _, g := range r.Groups {
-		fmt.Fprintf(tw, "%s\t%s\t%d\t%d\t%.2f\t%s\n", g.Chemistry, g.Format, g.Lines, g.Items, g.NameplateKWh, num(g.BlackMassKg.P50))
+		plate := fmt.Sprintf("%.2f kWh", g.NameplateKWh)
+		if g.ChargeOnlyAh > 0 {
+			if g.NameplateKWh > 0 {
+				plate += fmt.Sprintf(" + %.0f Ah", g.ChargeOnlyAh)
+			} else {
+				plate = fmt.Sprintf("%.0f Ah", g.ChargeOnlyAh)
+			}
+		}
+		fmt.Fprintf(tw, "%s\t%s\t%d\t%d\t%s\t%s\n", g.Chemistry, g.Format, g.Lines, g.Items, plate, num(g.BlackMassKg.P50))
 	}
 	tw.Flush()
 }
