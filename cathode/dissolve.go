@@ -155,6 +155,16 @@ func Dissolve(sp Species, route Route, x Extraction) (Reaction, error) {
 	var eRed, eOx, eH2, retainedCharge float64
 	residue := map[string]float64{}
 	phosphateRetainedWithFe := 0.0
+	// On the selective route iron is oxidised as lithium leaves the olivine (LiFePO4 -> FePO4 +
+	// Li+ + e-): the share of iron oxidised follows the lithium released.
+	liReleased := 0.0
+	if route == SulfuricSelective && sp.anionic == "phosphate" {
+		xLi, err := frac("Li")
+		if err != nil {
+			return rx, err
+		}
+		liReleased = sp.Formula.Moles("Li") * xLi
+	}
 	for _, t := range sp.Formula.terms {
 		if !IsMetal(t.Symbol) {
 			continue
@@ -172,7 +182,7 @@ func Dissolve(sp Species, route Route, x Extraction) (Reaction, error) {
 			xf = 0
 			rx.UndissolvedCopper = true
 		case route == SulfuricSelective && t.Symbol == "Fe" && sp.anionic == "phosphate":
-			xf, r = 0, 3
+			xf, r = 0, s+math.Min(1, liReleased/t.Amount)
 			phosphateRetainedWithFe = t.Amount
 		}
 		if z == 0 {
@@ -209,7 +219,7 @@ func Dissolve(sp Species, route Route, x Extraction) (Reaction, error) {
 	switch sp.anionic {
 	case "phosphate":
 		keepP := math.Min(nP, math.Max(phosphateRetainedWithFe, retainedCharge/3))
-		rx.ResidueFePO4Mol = phosphateRetainedWithFe
+		rx.ResidueFePO4Mol = math.Min(phosphateRetainedWithFe, liReleased)
 		rest := retainedCharge - 3*keepP
 		keepO := 4*keepP + math.Max(rest, 0)/2
 		residue["P"] += keepP

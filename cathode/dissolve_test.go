@@ -220,3 +220,27 @@ func TestEquationText(t *testing.T) {
 		}
 	}
 }
+
+// Partial selective leach: iron is oxidised only as far as lithium leaves (LiFePO4 → FePO4 + Li+
+// + e-), so 90 % lithium extraction needs 0.45 mol H2SO4 and 0.45 mol H2O2 and leaves
+// Li0.1FePO4 (R7 scaled; Li et al. 2017 mechanism).
+func TestSelectivePartial(t *testing.T) {
+	sp, _ := cathode.NewSpecies(mustFormula(t, "LiFePO4"))
+	rx, err := cathode.Dissolve(sp, cathode.SulfuricSelective, func(s string) float64 {
+		if s == "Li" {
+			return 0.9
+		}
+		return 1
+	})
+	if err != nil {
+		t.Fatal(err)
+	}
+	approx(t, "H2SO4", rx.AcidMol, 0.45, 1e-12)
+	approx(t, "H2O2", rx.H2O2OxidantMol, 0.45, 1e-12)
+	approx(t, "FePO4", rx.ResidueFePO4Mol, 0.9, 1e-12)
+	want := map[string]float64{"Li": 0.1, "Fe": 1, "P": 1, "O": 4}
+	for _, r := range rx.Residue {
+		approx(t, "residue "+r.Symbol, r.Amount, want[r.Symbol], 1e-12)
+	}
+	checkBalance(t, "LiFePO4 90 %", rx)
+}
