@@ -36,8 +36,9 @@ func IsMetal(symbol string) bool {
 }
 
 // NewSpecies assigns oxidation states to the elements of f. It returns an error if the charges
-// cannot balance (for example "LiCoO" leaves Co at +1... which is allowed, but "LiAlO" is not),
-// or if f holds an element the leach model has no rule for.
+// cannot balance ("LiAlO" has no transition metal to take up the +2 left over), if the
+// transition metals would end outside 0..+4.5, or if f holds an element or anion mix the leach
+// model has no rule for.
 func NewSpecies(f Formula) (Species, error) {
 	sp := Species{Formula: f, state: map[string]float64{}}
 	terms := f.terms

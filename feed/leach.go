@@ -261,7 +261,7 @@ func planLeach(s *Samples, opt LeachOptions, seed uint64) (*LeachReport, error) 
 	for i := range elMol {
 		elMol[i] = make([]float64, n)
 	}
-	anion, freeH, hConsumed, chargeRes := make([]float64, n), make([]float64, n), make([]float64, n), 0.0
+	anion, freeH, chargeRes := make([]float64, n), make([]float64, n), 0.0
 	for i := range n {
 		x := func(sym string) float64 {
 			if v, ok := opt.ExtractionOverride[sym]; ok {
@@ -322,8 +322,7 @@ func planLeach(s *Samples, opt LeachOptions, seed uint64) (*LeachReport, error) 
 			gas["O2"][i] += extra / 2
 		}
 		// Free acid from the acid balance; liquor anions from the acid added.
-		hConsumed[i] = acid * route.AcidProtons()
-		freeH[i] = acidTot[i]*route.AcidProtons() - hConsumed[i]
+		freeH[i] = (acidTot[i] - acid) * route.AcidProtons()
 		anion[i] = acidTot[i]
 		if route == cathode.Hydrochloric {
 			anion[i] = acidTot[i] - 2*cl2
