@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"crypto/sha256"
 	"encoding/hex"
+	"encoding/json"
 	"flag"
 	"os"
 	"path/filepath"
@@ -172,5 +173,69 @@ func TestInputHash(t *testing.T) {
 	sum := sha256.Sum256([]byte(body))
 	if !strings.Contains(out, hex.EncodeToString(sum[:])) {
 		t.Errorf("sha256 of the input missing from the report")
+	}
+}
+
+// The JSON contract other tools rely on: elements keyed by symbol with kg and wt_pct as
+// p10/p50/p90/mean, black_mass_kg likewise, lines, warnings, inputs, and the leach object.
+func TestJSONContract(t *testing.T) {
+	_, out, _ := run(t, "", "demo", "--json", "--samples", "100")
+	var r map[string]any
+	if err := json.Unmarshal([]byte(out), &r); err != nil {
+		t.Fatal(err)
+	}
+	stat := func(what string, v any) {
+		m, ok := v.(map[string]any)
+		if !ok {
+			t.Fatalf("%s: not an object", what)
+		}
+		for _, k := range []string{"p10", "p50", "p90", "mean"} {
+			if _, ok := m[k].(float64); !ok {
+				t.Errorf("%s.%s missing", what, k)
+			}
+		}
+	}
+	stat("black_mass_kg", r["black_mass_kg"])
+	els := r["elements"].(map[string]any)
+	for _, sym := range []string{"Co", "Ni", "Mn", "Li", "Al", "Cu", "Fe", "P"} {
+		e := els[sym].(map[string]any)
+		stat(sym+".kg", e["kg"])
+		stat(sym+".wt_pct", e["wt_pct"])
+	}
+	if lines, _ := r["lines"].([]any); len(lines) != 13 {
+		t.Errorf("lines: %d", len(lines))
+	}
+	in := r["inputs"].(map[string]any)
+	for _, k := range []string{"file", "sha256", "seed", "samples", "program_version"} {
+		if _, ok := in[k]; !ok {
+			t.Errorf("inputs.%s missing", k)
+		}
+	}
+	if _, ok := r["warnings"].([]any); !ok {
+		t.Error("warnings missing")
+	}
+	l := r["leach"].(map[string]any)
+	if l["route"] != "sulfuric-peroxide" {
+		t.Errorf("leach.route = %v", l["route"])
+	}
+	for _, g := range l["reagents"].([]any) {
+		stat("reagent kg", g.(map[string]any)["kg"])
+		stat("reagent litres", g.(map[string]any)["litres"])
+	}
+	liq := l["liquor"].(map[string]any)
+	stat("volume_l", liq["volume_l"])
+	co := liq["elements"].(map[string]any)["Co"].(map[string]any)
+	stat("Co g_per_l", co["g_per_l"])
+	stat("Co mol_per_l", co["mol_per_l"])
+	stat("free acid", l["free_acid_mol_per_l"])
+	for _, k := range []string{"gases", "saturation", "warnings", "safety"} {
+		if l[k] == nil {
+			t.Errorf("leach.%s missing", k)
+		}
+	}
+	_, out, _ = run(t, "", "demo", "--json", "--samples", "100", "--no-lines")
+	r = nil
+	if err := json.Unmarshal([]byte(out), &r); err != nil || r["lines"] != nil {
+		t.Errorf("--no-lines still writes lines (%v)", err)
 	}
 }
