@@ -11,12 +11,13 @@ const (
 	cCopper
 	cSteel
 	cLiPF6
+	cPolymer
 	nFixedCompounds
 )
 
 var fixedCompounds = [nFixedCompounds]struct{ name, formula string }{
 	{"graphite", "C"}, {"carbon black", "C"}, {"PVDF binder", "C2H2F2"}, {"aluminium (foil, casing)", "Al"},
-	{"copper foil", "Cu"}, {"steel (casing, as Fe)", "Fe"}, {"LiPF6 residue", "LiPF6"},
+	{"copper foil", "Cu"}, {"steel (casing, as Fe)", "Fe"}, {"LiPF6 residue", "LiPF6"}, {"separator and film (as polyethylene)", "C2H4"},
 }
 
 // mix is a chemistry's capacity and voltage at one draw: the cathode-mass-weighted capacity and
@@ -63,7 +64,10 @@ func (b breakdown) blackMass(dst []float64, f fractions, g globals, camIdx []int
 		dst[cSteel] += b.casing * g.carryCasing
 	case casingAl:
 		dst[cAluminium] += b.casing * g.carryCasing
+	case casingPolymer:
+		dst[cPolymer] += b.casing * g.carryPolymer
 	}
+	dst[cPolymer] += b.separator * g.carryPolymer
 	dst[cLiPF6] += b.electrolyte * g.lipf6 * g.residueLiPF6
 }
 

@@ -262,3 +262,29 @@ func BenchmarkCSVOnly1M(b *testing.B) {
 	}
 	b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/n, "ns/line")
 }
+
+// Single-chemistry lots give black-mass compositions inside the typical ranges of leaching and
+// characterisation papers (REFERENCES §4b; from memory, e.g. Vanderbruggen et al., Minerals Eng.
+// 2021; Babanejad et al., J. Sustain. Metall. 2022), widened by 10 % relative because real fines
+// also carry moisture, plastics and dust that the model leaves out.
+func TestBlackMassCompositionRanges(t *testing.T) {
+	type rng struct{ lo, hi float64 }
+	for _, c := range []struct {
+		line string
+		want map[string]rng
+	}{
+		{"LCO,pouch,11 Wh", map[string]rng{"Co": {20, 35}, "Li": {3, 4.5}, "Al": {1, 6}, "Cu": {1, 6}, "C": {20, 35}, "F": {1, 3}}},
+		{"NMC622,module,5 kWh", map[string]rng{"Co": {3, 10}, "Ni": {10, 27}, "Mn": {3, 10}, "Li": {3, 4.5}, "Al": {1, 5}, "Cu": {1, 5}, "C": {30, 45}, "F": {1, 3}}},
+		{"NMC811,pouch,200 Wh", map[string]rng{"Co": {3, 10}, "Ni": {10, 27}, "Mn": {3, 10}, "Li": {3, 4.5}, "C": {30, 45}}},
+		{"NCA,cylindrical,17 Wh", map[string]rng{"Co": {4, 6}, "Ni": {22, 28}, "Li": {3, 4}, "Al": {1, 5}, "Cu": {1, 5}, "C": {30, 40}}},
+		{"LFP,prismatic,1 kWh", map[string]rng{"Fe": {18, 28}, "P": {10, 15}, "Li": {2, 3.5}, "Al": {1, 5}, "Cu": {1, 5}, "C": {25, 40}, "F": {1, 3}}},
+	} {
+		r, _ := estimate(t, "chemistry,format,capacity,count\n"+c.line+",100\n", 1, 500)
+		for el, w := range c.want {
+			got := r.Elements[el].WtPct.P50
+			if got < 0.9*w.lo || got > 1.1*w.hi {
+				t.Errorf("%s: %s %.2f wt%%, typical %g–%g", c.line, el, got, w.lo, w.hi)
+			}
+		}
+	}
+}
