@@ -39,10 +39,9 @@ func ReadManifestXLSX(r io.Reader, name, sheet string, opt ManifestOptions, fn f
 const LinesSheetName = "Lines"
 
 type xlsxSource struct {
-	rows   *excelize.Rows
-	name   string
-	line   int
-	header bool
+	rows *excelize.Rows
+	name string
+	line int
 }
 
 func (s *xlsxSource) next() ([]string, int, error) {

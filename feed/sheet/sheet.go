@@ -27,10 +27,10 @@ const (
 )
 
 type writer struct {
-	f                          *excelize.File
-	hdr, num, num3, pct, title int
-	edit                       int // cells a user is expected to change
-	r                          *feed.Report
+	f                     *excelize.File
+	hdr, num3, pct, title int
+	edit                  int // cells a user is expected to change
+	r                     *feed.Report
 }
 
 // Write builds the workbook and writes it to w.
@@ -56,7 +56,6 @@ func Build(r *feed.Report) (*excelize.File, error) {
 	}
 	wr.hdr = must(f.NewStyle(&excelize.Style{Font: &excelize.Font{Bold: true}, Fill: excelize.Fill{Type: "pattern", Pattern: 1, Color: []string{"D9E2D0"}},
 		Border: []excelize.Border{{Type: "bottom", Color: "5B6B4E", Style: 1}}, Alignment: &excelize.Alignment{WrapText: true, Vertical: "top"}}))
-	wr.num = must(f.NewStyle(&excelize.Style{NumFmt: 4}))
 	f3 := "0.000"
 	wr.num3 = must(f.NewStyle(&excelize.Style{CustomNumFmt: &f3}))
 	p2 := "0.00"
