@@ -505,7 +505,6 @@ func (w *writer) weighIn() error {
 		return err
 	}
 	const first, last = 4, 23
-	w.style(s, fmt.Sprintf("A%d", first), fmt.Sprintf("C%d", last), w.edit)
 	for i := first; i <= last; i++ {
 		_ = f.SetCellFormula(s, fmt.Sprintf("D%d", i), fmt.Sprintf(`IF(AND(ISNUMBER(B%d),ISNUMBER(C%d)),B%d-C%d,0)`, i, i, i, i))
 	}
@@ -517,6 +516,7 @@ func (w *writer) weighIn() error {
 	_ = w.row(s, last+5, "net within P10–P90?")
 	_ = f.SetCellFormula(s, fmt.Sprintf("D%d", last+5), fmt.Sprintf(`IF(D%d=0,"not weighed",IF(AND(D%d>=B%d,D%d<=D%d),"yes","NO: check the lot"))`, last+2, last+2, last+3, last+2, last+3))
 	w.style(s, fmt.Sprintf("B%d", first), fmt.Sprintf("D%d", last+4), w.num3)
+	w.style(s, fmt.Sprintf("A%d", first), fmt.Sprintf("C%d", last), w.edit) // the cells to fill in
 	_ = f.SetColWidth(s, "A", "A", 40)
 	_ = f.SetColWidth(s, "B", "D", 14)
 	w.printSetup(s, false)
