@@ -286,8 +286,8 @@ func QuoteFromAssay(a *Assay, opt AssayQuoteOptions) (*Report, error) {
 	if !(opt.BlackMassKg > 0) || opt.BlackMassKg > 1e7 {
 		return nil, fmt.Errorf("black-mass weight must be positive (got %v kg)", opt.BlackMassKg)
 	}
-	if opt.Samples < 10 || opt.Samples > 1_000_000 {
-		return nil, fmt.Errorf("samples must be from 10 to 1000000, got %d", opt.Samples)
+	if opt.Samples < 10 || opt.Samples > 200_000 {
+		return nil, fmt.Errorf("samples must be from 10 to 200000, got %d", opt.Samples)
 	}
 	n := opt.Samples
 	draws := drawAssay(a, opt.Seed, n)

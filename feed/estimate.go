@@ -37,8 +37,8 @@ func (s *Samples) CompoundFormula(i int) string { return s.comp.formulas[i] }
 
 // Estimate runs the Monte Carlo over the lot's groups and builds the report.
 func (l *Lot) Estimate(opt EstimateOptions) (*Report, *Samples, error) {
-	if opt.Samples < 10 || opt.Samples > 1_000_000 {
-		return nil, nil, fmt.Errorf("samples must be from 10 to 1000000, got %d", opt.Samples)
+	if opt.Samples < 10 || opt.Samples > 200_000 {
+		return nil, nil, fmt.Errorf("samples must be from 10 to 200000, got %d", opt.Samples)
 	}
 	if l.nLines == 0 {
 		return nil, nil, errors.New("the lot has no lines")
