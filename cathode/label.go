@@ -244,8 +244,12 @@ func classify(f Formula) string {
 			metals += t.Amount
 		}
 	}
+	tm := 0.0
+	for s := range variableState {
+		tm += f.Moles(s)
+	}
 	switch {
-	case li < 0.5 || li > 1.3:
+	case li < 0.5 || li > 1.3 || tm == 0: // no redox-active metal: not a cathode
 		return ""
 	case math.Abs(p-1) < 0.05 && math.Abs(o-4) < 0.1 && math.Abs(metals-1) < 0.1:
 		return "olivine"

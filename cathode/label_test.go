@@ -78,7 +78,7 @@ func TestParseLabelUnknownListsNearest(t *testing.T) {
 			t.Errorf("ParseLabel(%q) error %q should list three nearest labels including %s", c.label, err, c.near)
 		}
 	}
-	for _, bad := range []string{"LMO+NMC532 70/30/10", "LMO+LMO", "LMO+", "NMC 8:1", "LiAlO2x", "NaCl"} {
+	for _, bad := range []string{"LMO+NMC532 70/30/10", "LMO+LMO", "LMO+", "NMC 8:1", "LiAlO2x", "NaCl", "LiAlO2"} {
 		if _, err := cat.ParseLabel(bad); err == nil {
 			t.Errorf("ParseLabel(%q) should fail", bad)
 		}
