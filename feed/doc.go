@@ -25,4 +25,19 @@
 // per line); lines are first aggregated by (chemistry, format), so the Monte Carlo costs
 // groups × samples, not lines × samples. Each parameter has its own random stream derived from the
 // seed and the parameter's name, so adding a parameter does not shift the others.
+//
+// # Leach plan
+//
+// The black-mass draws are dissolved compound by compound with [cathode.Dissolve] on the chosen
+// route, each metal to its drawn extraction; acid, peroxide, gases, liquor volume and
+// concentrations, free acid and salt saturation follow per sample. The free acid comes from the
+// acid balance and the cations from the extraction, so the liquor's charge balance is a check,
+// not an identity.
+//
+// # Assays
+//
+// A lab assay can quote a leach without a manifest ([QuoteFromAssay]: elements mapped to likely
+// species), be set beside an estimate ([Reconcile]: differences in combined standard
+// uncertainties), or be explained as a chemistry mix ([InferMix]: weighted non-negative least
+// squares with bootstrap ranges).
 package feed
