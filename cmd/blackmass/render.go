@@ -130,7 +130,9 @@ func writeLeachText(w io.Writer, r *feed.Report) {
 	} else {
 		fmt.Fprintf(w, "dosing: acid %g× stoichiometry + %g mol/L free acid", st.AcidExcess, st.FreeAcidMolPerL)
 	}
-	if st.RecipeH2O2VolPct > 0 {
+	if len(l.Reagents) < 2 {
+		fmt.Fprintln(w, ", no peroxide")
+	} else if st.RecipeH2O2VolPct > 0 {
 		fmt.Fprintf(w, ", peroxide %g vol%% of %g %% H2O2\n", st.RecipeH2O2VolPct, st.H2O2WtPct)
 	} else {
 		fmt.Fprintf(w, ", peroxide %g× stoichiometry\n", st.ReductantExcess)
