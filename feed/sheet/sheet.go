@@ -577,7 +577,6 @@ func (w *writer) assay() error {
 	}
 	_ = f.SetColWidth(s, "A", "A", 16)
 	_ = f.SetColWidth(s, "B", "H", 14)
-	_ = f.SetColWidth(s, "G", "G", 60)
 	w.printSetup(s, true)
 	return nil
 }
