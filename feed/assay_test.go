@@ -146,6 +146,16 @@ func TestInferMixPublished(t *testing.T) {
 	if s := share(fit, "LMO", "LNMO", "NMC111", "NMC532", "NMC622"); s < 0.1 {
 		t.Errorf("Kpetemey 2023 powder: manganese chemistries %.2f, want > 0.1", s)
 	}
+	// Shin et al., Hydrometallurgy 79 (2005) 172 (numbers from memory, via Xu et al. 2008): an LCO
+	// 18650 holds 27.5 % LiCoO2 and 16 % carbon; their fines alone are LCO and graphite.
+	shin := composition(map[string]float64{"LiCoO2": 27.5 / 43.5, "C": 16 / 43.5})
+	fit, err = feed.InferMix(mustAssay(t, assayCSV(shin, 0.03)), all, 200, 1)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if s := share(fit, "LCO"); s < 0.9 {
+		t.Errorf("Shin 2005 LCO cell fines: LCO share %.2f, want > 0.9", s)
+	}
 	// Derived example (REFERENCES §4b consistency check): 55 % NMC622 + 35 % graphite gives Ni 20.0,
 	// Co 6.7, Mn 6.2, Li 3.9 wt%: the mix should be NMC.
 	nmc := map[string]float64{"Ni": 20.0, "Co": 6.7, "Mn": 6.2, "Li": 3.9, "C": 35}
