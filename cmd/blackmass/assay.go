@@ -32,7 +32,7 @@ type fitOptions struct {
 }
 
 func (f *fitOptions) bind(cmd *cobra.Command) {
-	cmd.Flags().StringVar(&f.candidates, "candidates", "", "comma-separated chemistries to fit (default: the whole catalogue)")
+	cmd.Flags().StringVar(&f.candidates, "candidates", "", "comma-separated chemistries to fit (default: the whole catalogue; for reconcile, the lot's chemistries)")
 	cmd.Flags().IntVar(&f.bootstrap, "bootstrap", 500, "bootstrap draws of the assay for the mix ranges")
 }
 
@@ -40,13 +40,17 @@ func (f *fitOptions) fit(cat *cathode.Catalogue, a *feed.Assay, seed uint64) (*f
 	cands := cat.Entries()
 	if f.candidates != "" {
 		cands = nil
+		seen := map[string]bool{}
 		for _, k := range strings.Split(f.candidates, ",") {
 			ch, err := cat.ParseLabel(strings.TrimSpace(k))
 			if err != nil {
 				return nil, fmt.Errorf("--candidates: %w", err)
 			}
 			for _, c := range ch.Components {
-				cands = append(cands, c.Entry)
+				if !seen[c.Entry.Key] {
+					seen[c.Entry.Key] = true
+					cands = append(cands, c.Entry)
+				}
 			}
 		}
 	}
@@ -141,6 +145,13 @@ func newReconcileCmd() *cobra.Command {
 			}
 			rep.Assay = a
 			rep.Reconciliation = feed.Reconcile(rep, a, threshold)
+			if fit.candidates == "" { // by default, explain the assay with the lot's own chemistries
+				var keys []string
+				for _, g := range rep.Groups {
+					keys = append(keys, g.Chemistry)
+				}
+				fit.candidates = strings.Join(keys, ",")
+			}
 			if rep.Mix, err = fit.fit(cat, a, o.seed); err != nil {
 				return err
 			}
