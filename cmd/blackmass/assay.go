@@ -110,6 +110,9 @@ func newQuoteCmd() *cobra.Command {
 	cmd.Flags().StringVar(&mass, "mass", "", "black-mass weight with unit (kg, t, g, lb)")
 	cmd.Flags().StringVar(&form, "form", "layered", "form of Co/Ni/Mn: layered (untreated), oxide (reduction-roasted) or metal")
 	_ = cmd.MarkFlagRequired("mass")
+	for _, f := range []string{"unknown", "no-lines", "sheet", "prior"} { // manifest-only flags
+		_ = cmd.Flags().MarkHidden(f)
+	}
 	fit.bind(cmd)
 	return cmd
 }
