@@ -118,16 +118,23 @@ func (r Row) Float(col string) (float64, error) {
 	return v, nil
 }
 
-// Range reads the columns prefix_min<suffix>, prefix_mode<suffix>, prefix_max<suffix> and checks
-// min <= mode <= max. suffix is the unit part of the column name, e.g. "_V".
+// Range reads the columns prefix_min<suffix>, prefix_mode<suffix>, prefix_max<suffix> (plain
+// min, mode, max when prefix is empty) and checks min <= mode <= max. suffix is the unit part of
+// the column name, e.g. "_V".
 func (r Row) Range(prefix, suffix string) (lo, mode, hi float64, err error) {
-	if lo, err = r.Float(prefix + "_min" + suffix); err != nil {
+	col := func(s string) string {
+		if prefix == "" {
+			return s + suffix
+		}
+		return prefix + "_" + s + suffix
+	}
+	if lo, err = r.Float(col("min")); err != nil {
 		return
 	}
-	if mode, err = r.Float(prefix + "_mode" + suffix); err != nil {
+	if mode, err = r.Float(col("mode")); err != nil {
 		return
 	}
-	if hi, err = r.Float(prefix + "_max" + suffix); err != nil {
+	if hi, err = r.Float(col("max")); err != nil {
 		return
 	}
 	if !(lo <= mode && mode <= hi) {

@@ -59,7 +59,7 @@ func (b breakdown) blackMass(dst []float64, f fractions, g globals, camIdx []int
 	dst[cCarbonBlack] += bc * (1 - g.binderShare)
 	dst[cAluminium] += b.al * g.carryAl
 	dst[cCopper] += b.cu * g.carryCu
-	switch f.casing_ {
+	switch f.kind {
 	case casingSteel:
 		dst[cSteel] += b.casing * g.carryCasing
 	case casingAl:

@@ -152,13 +152,7 @@ var loadLeachTables = sync.OnceValues(func() (*leachTables, error) {
 			return nil, r.Errorf("%v", err)
 		}
 		var rg cathode.Range
-		if rg.Min, err = r.Float("min"); err != nil {
-			return nil, err
-		}
-		if rg.Mode, err = r.Float("mode"); err != nil {
-			return nil, err
-		}
-		if rg.Max, err = r.Float("max"); err != nil {
+		if rg.Min, rg.Mode, rg.Max, err = r.Range("", ""); err != nil {
 			return nil, err
 		}
 		if !rg.Valid() || rg.Min < 0 || rg.Max > 1 {
@@ -181,7 +175,10 @@ func Density(reagent string, wtPct float64) (float64, error) {
 		return 0, err
 	}
 	pts := lt.density[reagent]
-	if len(pts) == 0 || wtPct < pts[0][0] || wtPct > pts[len(pts)-1][0] {
+	if len(pts) == 0 {
+		return 0, fmt.Errorf("no density table for %s", reagent)
+	}
+	if wtPct < pts[0][0] || wtPct > pts[len(pts)-1][0] {
 		return 0, fmt.Errorf("no density for %s at %g wt%% (table covers %g–%g wt%%)", reagent, wtPct, pts[0][0], pts[len(pts)-1][0])
 	}
 	for i := 1; i < len(pts); i++ {
@@ -261,7 +258,7 @@ func planLeach(s *Samples, opt LeachOptions, seed uint64) (*LeachReport, error) 
 	for i := range elMol {
 		elMol[i] = make([]float64, n)
 	}
-	anion, freeH, chargeRes := make([]float64, n), make([]float64, n), 0.0
+	anion, freeH, cationCharge, chargeRes := make([]float64, n), make([]float64, n), make([]float64, n), 0.0
 	for i := range n {
 		x := func(sym string) float64 {
 			if v, ok := opt.ExtractionOverride[sym]; ok {
@@ -296,6 +293,7 @@ func planLeach(s *Samples, opt LeachOptions, seed uint64) (*LeachReport, error) 
 				if k, ok := elIdx[ion.Symbol]; ok {
 					elMol[k][i] += ion.Mol * mol
 				}
+				cationCharge[i] += ion.Charge * ion.Mol * mol
 			}
 			elMol[elIdx["P"]][i] += rx.H3PO4Mol * mol
 			elMol[elIdx["F"]][i] += rx.HFMol * mol
@@ -327,13 +325,9 @@ func planLeach(s *Samples, opt LeachOptions, seed uint64) (*LeachReport, error) 
 		if route == cathode.Hydrochloric {
 			anion[i] = acidTot[i] - 2*cl2
 		}
-		// Charge balance of the liquor: Σ z·n(cations) + H+ = anion charge.
-		pos := freeH[i]
-		for k, e := range elements {
-			if z := map[string]float64{"Li": 1, "Co": 2, "Ni": 2, "Mn": 2, "Fe": 2, "Cu": 2, "Al": 3}[e]; z > 0 {
-				pos += z * elMol[k][i]
-			}
-		}
+		// Charge balance of the liquor: Σ z·n(cations) + H+ = anion charge, with H+ from the acid
+		// balance and the cations from the extraction.
+		pos := freeH[i] + cationCharge[i]
 		neg := anion[i] * route.AnionCharge()
 		if neg > 0 {
 			chargeRes = math.Max(chargeRes, math.Abs(pos-neg)/neg)

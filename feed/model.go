@@ -45,16 +45,8 @@ func LoadModel(fsys fs.FS) (*Model, error) {
 	m := &Model{params: map[string]*Param{}}
 	for _, r := range t.Rows {
 		p := &Param{Scope: r.Str("scope"), Name: r.Str("parameter"), Unit: r.Str("unit"), Source: r.Str("source")}
-		for _, c := range []struct {
-			col string
-			dst *float64
-		}{{"min", &p.Range.Min}, {"mode", &p.Range.Mode}, {"max", &p.Range.Max}} {
-			if *c.dst, err = r.Float(c.col); err != nil {
-				return nil, err
-			}
-		}
-		if !p.Range.Valid() {
-			return nil, r.Errorf("%s: range is not ordered min <= mode <= max", p.Name)
+		if p.Range.Min, p.Range.Mode, p.Range.Max, err = r.Range("", ""); err != nil {
+			return nil, err
 		}
 		if p.Range.Min < 0 {
 			return nil, r.Errorf("%s: negative minimum", p.Name)
@@ -130,7 +122,7 @@ type globals struct {
 // fractions are one format's cell-mass fractions at one draw.
 type fractions struct {
 	al, cu, bc, el, sep, casing float64
-	casing_                     casingKind
+	kind                        casingKind
 	overhead                    float64
 }
 
