@@ -387,7 +387,9 @@ func planLeach(s *Samples, opt LeachOptions, seed uint64) (*LeachReport, error) 
 		}
 	}
 	es := cathode.DefaultElements()
-	lr.Liquor = Liquor{VolumeL: summarise(vol), Elements: map[string]Conc{}, Anion: route.Anion(), ChargeResidual: chargeRes}
+	// The residual is reported to 1e-12: below that it is floating-point noise, which would make
+	// reports differ between machines.
+	lr.Liquor = Liquor{VolumeL: summarise(vol), Elements: map[string]Conc{}, Anion: route.Anion(), ChargeResidual: round(chargeRes, 12)}
 	perL := func(x []float64, scale float64) []float64 {
 		out := make([]float64, n)
 		for i := range n {
