@@ -53,14 +53,19 @@ func (e *Entry) TheoreticalCapacityMAhPerG() float64 {
 // Catalogue holds the known chemistries, the family defaults for formulas typed directly, and
 // the prior mix used for unknown cells.
 type Catalogue struct {
-	entries  []*Entry
-	byName   map[string]*Entry // normalised key or alias -> entry
-	families map[string]*Entry // family -> defaults (Formula empty)
-	prior    []Component
-	priorSrc string
+	entries       []*Entry
+	byName        map[string]*Entry // normalised key or alias -> entry
+	families      map[string]*Entry // structural family -> defaults (Formula empty)
+	prior         map[string][]Component
+	priorSrc      string
+	apps          map[string]*application
+	appOrder      []string
+	labelFamilies map[string]*family // normalised family label -> family
+	familyOrder   []*family
 }
 
-// LoadCatalogue reads chemistries.csv, families.csv and prior.csv from fsys.
+// LoadCatalogue reads chemistries.csv, families.csv, applications.csv, prior.csv and
+// label_families.csv from fsys.
 func LoadCatalogue(fsys fs.FS) (*Catalogue, error) {
 	c := &Catalogue{byName: map[string]*Entry{}, families: map[string]*Entry{}}
 	b, err := fs.ReadFile(fsys, "chemistries.csv")
@@ -81,11 +86,7 @@ func LoadCatalogue(fsys fs.FS) (*Catalogue, error) {
 		}
 		c.families[e.Family] = e
 	}
-	pb, err := fs.ReadFile(fsys, "prior.csv")
-	if err != nil {
-		return nil, err
-	}
-	if err := c.SetPrior(bytes.NewReader(pb), "prior.csv"); err != nil {
+	if err := c.loadPriorTables(fsys); err != nil {
 		return nil, err
 	}
 	return c, nil
@@ -154,6 +155,17 @@ func (c *Catalogue) Add(r io.Reader, name string) error {
 				e.Aliases = append(e.Aliases, a)
 			}
 		}
+		for _, a := range e.Aliases {
+			if other := c.byName[normLabel(a)]; other != nil && other.Key != key {
+				return row.Errorf("alias %q already names %s: an alias may not take over another chemistry's label", a, other.Key)
+			}
+			if IsUnknownWord(a) || c.labelFamilies[normLabel(a)] != nil {
+				return row.Errorf("alias %q is a word for an unknown or family label and would never be reached", a)
+			}
+		}
+		if other := c.byName[normLabel(key)]; other != nil && other.Key != key {
+			return row.Errorf("key %q is already an alias of %s", key, other.Key)
+		}
 		if old := c.byName[normLabel(key)]; old != nil && old.Key == key {
 			for i, x := range c.entries {
 				if x == old {
@@ -175,40 +187,6 @@ func (c *Catalogue) Add(r io.Reader, name string) error {
 	return nil
 }
 
-// SetPrior reads the mix assumed for unknown cells: columns chemistry, mass_fraction, source.
-// Fractions must be non-negative and are normalised to sum to 1.
-func (c *Catalogue) SetPrior(r io.Reader, name string) error {
-	t, err := data.ParseTable(r, name)
-	if err != nil {
-		return err
-	}
-	var comps []Component
-	sum := 0.0
-	for _, row := range t.Rows {
-		e := c.byName[normLabel(row.Str("chemistry"))]
-		if e == nil {
-			return row.Errorf("prior names %q, which is not in the catalogue", row.Str("chemistry"))
-		}
-		w, err := row.Float("mass_fraction")
-		if err != nil {
-			return err
-		}
-		if w < 0 {
-			return row.Errorf("mass_fraction must not be negative")
-		}
-		comps = append(comps, Component{e, w})
-		sum += w
-	}
-	if sum <= 0 {
-		return fmt.Errorf("%s: the prior's fractions sum to zero", name)
-	}
-	for i := range comps {
-		comps[i].MassFraction /= sum
-	}
-	c.prior, c.priorSrc = comps, name
-	return nil
-}
-
 // Entries returns the catalogue entries in file order.
 func (c *Catalogue) Entries() []*Entry { return append([]*Entry(nil), c.entries...) }
 
@@ -218,8 +196,14 @@ func (c *Catalogue) Lookup(label string) *Entry { return c.byName[normLabel(labe
 // Family returns the defaults for a family (layered, spinel, olivine), or nil.
 func (c *Catalogue) Family(name string) *Entry { return c.families[name] }
 
-// Prior returns the mix assumed for unknown cells.
-func (c *Catalogue) Prior() []Component { return append([]Component(nil), c.prior...) }
+// Prior returns the mean chemistry shares assumed for an item of unknown chemistry of the
+// application (or format) key app ("any" when unlisted).
+func (c *Catalogue) Prior(app string) []Component {
+	if c.apps[app] == nil {
+		app = "any"
+	}
+	return append([]Component(nil), c.prior[app]...)
+}
 
 // normLabel folds case and drops spaces, dashes, underscores and brackets.
 func normLabel(s string) string {
@@ -289,7 +273,11 @@ func DefaultCatalogue() (*Catalogue, error) {
 	if err != nil {
 		return nil, err
 	}
-	cp := &Catalogue{byName: map[string]*Entry{}, families: c.families, prior: c.Prior(), priorSrc: c.priorSrc}
+	cp := &Catalogue{byName: map[string]*Entry{}, families: c.families, prior: map[string][]Component{}, priorSrc: c.priorSrc,
+		apps: c.apps, appOrder: c.appOrder, labelFamilies: c.labelFamilies, familyOrder: c.familyOrder}
+	for k, v := range c.prior {
+		cp.prior[k] = append([]Component(nil), v...)
+	}
 	cp.entries = c.Entries()
 	for k, v := range c.byName {
 		cp.byName[k] = v

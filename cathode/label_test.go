@@ -16,55 +16,124 @@ func TestParseLabel(t *testing.T) {
 	}
 	for _, c := range []struct {
 		label, want string
-		unknown     bool
+		kind        cathode.Kind
 		noted       bool
 	}{
-		{"NMC811", "NMC811", false, false},
-		{"nmc811", "NMC811", false, false},
-		{"NCM 8:1:1", "NMC811", false, false},
-		{"nmc-622", "NMC622", false, false},
-		{"NMC(532)", "NMC532", false, false},
-		{"NCM523", "NMC532", false, false}, // NCM lists Ni:Co:Mn (trade usage)
-		{"NMC 5-3-2", "NMC532", false, false},
-		{"NMC333", "NMC111", false, false},
-		{"NMC111", "NMC111", false, false},
-		{"(NMC 1/1/1)", "", false, false},
-		{"NCA", "NCA", false, false},
-		{"lco", "LCO", false, false},
-		{"LiFePO4", "LFP", false, false},
-		{"LiMn2O4", "LMO", false, false},
-		{"LNMO", "LNMO", false, false},
-		{"LiNi0.9Mn0.05Co0.05O2", "LiNi0.9Mn0.05Co0.05O2", false, true},
-		{"NMC 90:5:5", "LiNi0.9Mn0.05Co0.05O2", false, true},
-		{"LMO+NMC532 70/30", "LMO+NMC532 70/30", false, false},
-		{"LMO + NMC(532) 30:70", "LMO+NMC532 30/70", false, false},
-		{"LFP+LMO", "LFP+LMO 50/50", false, true},
-		{"Li-ion", "unknown", true, true},
-		{"", "unknown", true, true},
-		{" unknown ", "unknown", true, true},
+		{"NMC811", "NMC811", cathode.KindCatalogued, false},
+		{"nmc811", "NMC811", cathode.KindCatalogued, false},
+		{"NCM 8:1:1", "NMC811", cathode.KindCatalogued, false},
+		{"nmc-622", "NMC622", cathode.KindCatalogued, false},
+		{"NMC(532)", "NMC532", cathode.KindCatalogued, false},
+		{"NCM523", "NMC532", cathode.KindCatalogued, false}, // NCM lists Ni:Co:Mn (trade usage)
+		{"NMC 5-3-2", "NMC532", cathode.KindCatalogued, false},
+		{"NMC333", "NMC111", cathode.KindCatalogued, false},
+		{"NMC111", "NMC111", cathode.KindCatalogued, false},
+		// The trade writes a grade's digits whichever letters it uses: NMC 523 is Ni5 Co2 Mn3.
+		{"NMC 523", "NMC532", cathode.KindCatalogued, true},
+		// 955 is 90:5:5 in the trade's shorthand (Ni 0.9, Co 0.05, Mn 0.05), not 9:5:5.
+		{"NCM955", "LiNi0.9Mn0.05Co0.05O2", cathode.KindFormula, true},
+		{"NMC 90:5:5", "LiNi0.9Mn0.05Co0.05O2", cathode.KindFormula, true},
+		{"NCM900505", "LiNi0.9Mn0.05Co0.05O2", cathode.KindFormula, true},
+		{"(NMC 1/1/1)", "", "", false},
+		{"NMC 234", "", "", false}, // digits that read as no ratio at all
+		{"NCA", "NCA", cathode.KindCatalogued, false},
+		{"lco", "LCO", cathode.KindCatalogued, false},
+		{"LiFePO4", "LFP", cathode.KindCatalogued, false},
+		{"LiMn2O4", "LMO", cathode.KindCatalogued, false},
+		{"LNMO", "LNMO", cathode.KindCatalogued, false},
+		{"LiNi0.9Mn0.05Co0.05O2", "LiNi0.9Mn0.05Co0.05O2", cathode.KindFormula, true},
+		{"LiNi1/3Mn1/3Co1/3O2", "NMC111", cathode.KindCatalogued, false},
+		{"NMC", "NMC (grade unknown)", cathode.KindFamily, true},
+		{"ncm", "NMC (grade unknown)", cathode.KindFamily, true},
+		{"layered oxide", "layered oxide (unknown)", cathode.KindFamily, true},
+		{"LiPo", "Li-polymer (unknown)", cathode.KindFamily, true},
+		{"Li-polymer", "Li-polymer (unknown)", cathode.KindFamily, true},
+		{"LMO+NMC532 70/30", "LMO+NMC532 70/30", cathode.KindBlend, false},
+		{"LMO + NMC(532) 30:70", "LMO+NMC532 30/70", cathode.KindBlend, false},
+		{"LMO + NMC532 (70:30)", "LMO+NMC532 70/30", cathode.KindBlend, false},
+		{"LCO+NMC 50/50", "LCO+NMC (grade unknown) 50/50", cathode.KindBlend, true},
+		{"70% LMO + 30% NMC532", "LMO+NMC532 70/30", cathode.KindBlend, false},
+		{"LMO & NMC811", "LMO+NMC811 (split unknown)", cathode.KindBlend, true},
+		{"LMO/NMC", "LMO+NMC (grade unknown) (split unknown)", cathode.KindBlend, true},
+		{"LFP+LMO", "LFP+LMO (split unknown)", cathode.KindBlend, true},
+		{"Li-ion", "unknown", cathode.KindUnknown, true},
+		{"", "unknown", cathode.KindUnknown, true},
+		{" unknown ", "unknown", cathode.KindUnknown, true},
 	} {
-		ch, err := cat.ParseLabel(c.label)
-		if c.want == "" {
-			if err == nil {
-				t.Errorf("ParseLabel(%q) = %s, want an error", c.label, ch.Key)
+		t.Run(c.label, func(t *testing.T) {
+			ch, err := cat.ParseLabel(c.label)
+			if c.want == "" {
+				if err == nil {
+					t.Errorf("ParseLabel(%q) = %s, want an error", c.label, ch.Key)
+				}
+				return
 			}
-			continue
-		}
-		if err != nil {
-			t.Errorf("ParseLabel(%q): %v", c.label, err)
-			continue
-		}
-		if ch.Key != c.want || ch.Unknown != c.unknown || (len(ch.Notes) > 0) != c.noted {
-			t.Errorf("ParseLabel(%q) = %q unknown=%v notes=%q, want %q unknown=%v noted=%v", c.label, ch.Key, ch.Unknown, ch.Notes, c.want, c.unknown, c.noted)
-		}
+			if err != nil {
+				t.Fatalf("ParseLabel(%q): %v", c.label, err)
+			}
+			if ch.Key != c.want || ch.Kind != c.kind || (len(ch.Notes) > 0) != c.noted {
+				t.Errorf("ParseLabel(%q) = %q kind=%s notes=%q, want %q kind=%s noted=%v", c.label, ch.Key, ch.Kind, ch.Notes, c.want, c.kind, c.noted)
+			}
+			if ch.Unknown != (c.kind == cathode.KindUnknown) {
+				t.Errorf("ParseLabel(%q).Unknown = %v", c.label, ch.Unknown)
+			}
+			sum := 0.0
+			for _, comp := range ch.Components {
+				sum += comp.MassFraction
+			}
+			if math.Abs(sum-1) > 1e-12 {
+				t.Errorf("ParseLabel(%q): component fractions sum to %v", c.label, sum)
+			}
+			if (c.kind == cathode.KindFamily || c.kind == cathode.KindUnknown) != ch.Uncertain() && !strings.Contains(c.want, "split unknown") && !strings.Contains(c.want, "grade unknown") {
+				t.Errorf("ParseLabel(%q).Uncertain() = %v", c.label, ch.Uncertain())
+			}
+		})
+	}
+}
+
+// The prior of an unknown item depends on what the item is, and each application's shares sum
+// to one.
+func TestUnknownByApplication(t *testing.T) {
+	cat, err := cathode.DefaultCatalogue()
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, c := range []struct{ text, app string }{
+		{"returned phone battery", "phone"}, {"old laptop packs", "laptop"}, {"cordless drill 18V", "power_tool"},
+		{"E-bike pack 36V", "ebike"}, {"EV module", "vehicle"}, {"home battery (storage)", "storage"},
+		{"ups", "storage"}, {"power_tool", "power_tool"}, {"mixed bin", ""}, {"toolbox", ""},
+	} {
+		t.Run(c.text, func(t *testing.T) {
+			if got := cat.Application(c.text); got != c.app {
+				t.Errorf("Application(%q) = %q, want %q", c.text, got, c.app)
+			}
+		})
+	}
+	for _, app := range cat.Applications() {
+		ch := cat.Unknown(app)
 		sum := 0.0
-		for _, comp := range ch.Components {
-			sum += comp.MassFraction
+		for _, x := range ch.Components {
+			sum += x.MassFraction
 		}
-		if math.Abs(sum-1) > 1e-12 {
-			t.Errorf("ParseLabel(%q): component fractions sum to %v", c.label, sum)
+		if math.Abs(sum-1) > 1e-12 || !ch.Uncertain() || !ch.Unknown {
+			t.Errorf("Unknown(%s): shares sum %v, uncertain %v", app, sum, ch.Uncertain())
 		}
 	}
+	if lfp := share(cat.Unknown("laptop"), "LFP"); lfp > 0.05 {
+		t.Errorf("laptop prior gives LFP %.2f; laptop packs are rarely LFP (from memory)", lfp)
+	}
+	if lfp := share(cat.Unknown("storage"), "LFP"); lfp < 0.5 {
+		t.Errorf("storage prior gives LFP %.2f; stationary storage is mostly LFP (from memory)", lfp)
+	}
+}
+
+func share(ch cathode.Chemistry, key string) float64 {
+	for _, x := range ch.Components {
+		if x.Entry.Key == key {
+			return x.MassFraction
+		}
+	}
+	return 0
 }
 
 func TestParseLabelUnknownListsNearest(t *testing.T) {

@@ -1,20 +1,14 @@
 package feed
 
 import (
-	"encoding/csv"
-	"errors"
 	"fmt"
-	"io"
 	"maps"
 	"math"
 	"math/rand/v2"
 	"slices"
-	"strconv"
 	"strings"
-	"unicode/utf8"
 
 	"blackmass/cathode"
-	"blackmass/data"
 )
 
 // AssayValue is one assayed element in wt% of the black mass (dry basis as the lab reports it).
@@ -44,125 +38,6 @@ func (a *Assay) WtPct(el string) (float64, bool) {
 		}
 	}
 	return 0, false
-}
-
-var assayUnits = map[string]float64{"wt%": 1, "%": 1, "wt.%": 1, "pct": 1, "g/kg": 0.1, "mg/kg": 1e-4, "ppm": 1e-4, "mg/g": 0.1}
-
-// ReadAssay reads an assay CSV: columns element, value, unit (wt%, g/kg, mg/kg or ppm) and an
-// optional uncertainty column (± in the same unit, a standard uncertainty). Refused: unknown
-// elements or units, negative values, duplicates, and elements summing past 100 %.
-func ReadAssay(r io.Reader, name string) (*Assay, error) {
-	cr := data.NewCSVReader(data.SkipBOM(r), ',')
-	cr.FieldsPerRecord = -1 // the uncertainty may be left off a row
-	fail := func(line int, col, val, reason string) error {
-		return &ManifestError{File: name, Line: line, Column: col, Value: val, Reason: reason}
-	}
-	header, err := cr.Read()
-	if errors.Is(err, io.EOF) {
-		return nil, fail(0, "", "", "empty file")
-	}
-	if err != nil {
-		return nil, wrapCSVErr(name, err)
-	}
-	idx := map[string]int{}
-	for i, h := range header {
-		k := strings.ToLower(strings.TrimSpace(h))
-		switch k {
-		case "±", "+/-", "uncertainty", "sigma", "u", "plus_minus", "error":
-			k = "uncertainty"
-		case "symbol", "analyte":
-			k = "element"
-		case "result", "content":
-			k = "value"
-		}
-		if _, dup := idx[k]; dup {
-			return nil, fail(1, "", "", fmt.Sprintf("duplicate column %q", h))
-		}
-		idx[k] = i
-	}
-	for _, c := range []string{"element", "value", "unit"} {
-		if _, ok := idx[c]; !ok {
-			return nil, fail(1, "", "", fmt.Sprintf("missing column %q (want element, value, unit and optionally uncertainty)", c))
-		}
-	}
-	es := cathode.DefaultElements()
-	a := &Assay{File: name}
-	seen := map[string]int{}
-	sum := 0.0
-	for {
-		rec, err := cr.Read()
-		if errors.Is(err, io.EOF) {
-			break
-		}
-		if err != nil {
-			return nil, wrapCSVErr(name, err)
-		}
-		line, _ := cr.FieldPos(0)
-		get := func(c string) string {
-			if i, ok := idx[c]; ok && i < len(rec) {
-				return strings.TrimSpace(rec[i])
-			}
-			return ""
-		}
-		if blank(rec) {
-			continue
-		}
-		for _, f := range rec {
-			if !utf8.ValidString(f) {
-				return nil, fail(line, "", "", "not valid UTF-8")
-			}
-		}
-		el := get("element")
-		if es.Lookup(el) == nil {
-			return nil, fail(line, "element", el, "not an element symbol (case matters: Co, not CO)")
-		}
-		if prev, dup := seen[el]; dup {
-			return nil, fail(line, "element", el, fmt.Sprintf("given twice (first on line %d)", prev))
-		}
-		seen[el] = line
-		unit := strings.ToLower(strings.ReplaceAll(get("unit"), " ", ""))
-		f, ok := assayUnits[unit]
-		if !ok {
-			return nil, fail(line, "unit", get("unit"), "unknown unit (want wt%, g/kg, mg/kg or ppm)")
-		}
-		v, err := strconv.ParseFloat(get("value"), 64)
-		if err != nil || math.IsNaN(v) || math.IsInf(v, 0) {
-			return nil, fail(line, "value", get("value"), "not a number")
-		}
-		if v < 0 {
-			return nil, fail(line, "value", get("value"), "negative")
-		}
-		av := AssayValue{Element: el, WtPct: v * f, Line: line}
-		if us := get("uncertainty"); us != "" {
-			u, err := strconv.ParseFloat(strings.TrimPrefix(us, "±"), 64)
-			if err != nil || u < 0 || math.IsNaN(u) || math.IsInf(u, 0) {
-				return nil, fail(line, "uncertainty", us, "want a non-negative number in the value's unit")
-			}
-			av.SigmaWtPct = u * f
-		} else {
-			av.SigmaWtPct, av.SigmaAssumed = DefaultAssaySigmaRel*av.WtPct, true
-		}
-		if av.WtPct > 100 {
-			return nil, fail(line, "value", get("value"), "more than 100 wt%")
-		}
-		sum += av.WtPct
-		a.Values = append(a.Values, av)
-	}
-	if len(a.Values) == 0 {
-		return nil, fail(0, "", "", "no assay rows")
-	}
-	if sum > 100.5 {
-		return nil, fail(0, "", "", fmt.Sprintf("elements sum to %.2f wt%%, past 100 %%", sum))
-	}
-	return a, nil
-}
-
-func wrapCSVErr(name string, err error) error {
-	var pe *csv.ParseError
-	if errors.As(err, &pe) {
-		return &ManifestError{File: name, Line: pe.Line, Reason: pe.Err.Error()}
-	}
-	return fmt.Errorf("%s: %w", name, err)
 }
 
 // TMForm is how the assay's Co, Ni and Mn are present in the black mass.

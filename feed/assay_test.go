@@ -9,6 +9,7 @@ import (
 
 	"blackmass/cathode"
 	"blackmass/feed"
+	"blackmass/feed/intake"
 )
 
 func assayCSV(wt map[string]float64, relSigma float64) string {
@@ -24,7 +25,7 @@ func assayCSV(wt map[string]float64, relSigma float64) string {
 
 func mustAssay(t *testing.T, s string) *feed.Assay {
 	t.Helper()
-	a, err := feed.ReadAssay(strings.NewReader(s), "assay.csv")
+	a, err := intake.ReadAssay(strings.NewReader(s), "assay.csv")
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -178,7 +179,7 @@ func TestReadAssayErrors(t *testing.T) {
 		{"element,value\nCo,1\n", "missing column \"unit\""},
 		{"", "empty"},
 	} {
-		_, err := feed.ReadAssay(strings.NewReader(c.in), "assay.csv")
+		_, err := intake.ReadAssay(strings.NewReader(c.in), "assay.csv")
 		if err == nil || !strings.Contains(err.Error(), c.want) {
 			t.Errorf("ReadAssay(%q) = %v, want %q", c.in, err, c.want)
 		}
@@ -228,4 +229,25 @@ func TestReconcile(t *testing.T) {
 			t.Errorf("Co raised 60 %%: %+v", c)
 		}
 	}
+}
+
+func FuzzReadAssay(f *testing.F) {
+	f.Add("element,value,unit,uncertainty\nCo,20,wt%,0.5\nLi,35,g/kg,\n")
+	f.Add("element,value,unit\nNi,1e5,ppm\n")
+	f.Fuzz(func(t *testing.T, s string) {
+		a, err := intake.ReadAssay(strings.NewReader(s), "fuzz.csv")
+		if err != nil {
+			return
+		}
+		sum := 0.0
+		for _, v := range a.Values {
+			if !(v.WtPct >= 0 && v.SigmaWtPct >= 0) {
+				t.Fatalf("accepted %+v", v)
+			}
+			sum += v.WtPct
+		}
+		if sum > 100.5 {
+			t.Fatalf("accepted a sum of %v wt%%", sum)
+		}
+	})
 }

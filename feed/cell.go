@@ -71,13 +71,22 @@ func (b breakdown) blackMass(dst []float64, f fractions, g globals, camIdx []int
 	dst[cLiPF6] += b.electrolyte * g.lipf6 * g.residueLiPF6
 }
 
-// mixAt returns the chemistry mix at sample s from the components' draws.
-func mixAt(comps []cathode.Component, volt, capa [][]float64, s int) mix {
+// mixAt returns the chemistry mix at sample s from the components' shares and draws.
+func mixAt(comps []cathode.Component, shares []float64, volt, capa [][]float64, s int) mix {
 	q, qv := 0.0, 0.0
-	for i, c := range comps {
+	for i := range comps {
 		qi := capa[i][s]
-		q += c.MassFraction * qi
-		qv += c.MassFraction * qi * volt[i][s]
+		q += shares[i] * qi
+		qv += shares[i] * qi * volt[i][s]
 	}
 	return mix{capMAhG: q, voltV: qv / q}
+}
+
+// fixedIndices lists the indices of the fixed (non-cathode) compounds.
+func fixedIndices() []int {
+	out := make([]int, nFixedCompounds)
+	for i := range out {
+		out[i] = i
+	}
+	return out
 }

@@ -53,17 +53,24 @@ func (l *Lot) Estimate(opt EstimateOptions) (*Report, *Samples, error) {
 	bm := make([]float64, nc)
 	for _, g := range l.order {
 		volt, capa := ps.chemDraws(g.chem)
-		sh := shares(g.chem)
+		shares := ps.shareDraws(g.chem, g.chem.Key+"/"+g.format.String(), g.items)
+		massWh := ps.massOnlyWh(g, shares)
 		cam, gbm := make([]float64, n), make([]float64, n)
 		fr := ps.formats[g.format]
+		// Only the group's own compounds can be non-zero: the fixed ones and its cathodes. Summing
+		// just those keeps the cost per group independent of how many chemistries the lot holds.
+		touched := append(fixedIndices(), g.camIdx...)
 		for i := range n {
-			clear(bm)
-			b := model(g.energyWh, g.chargeAh, mixAt(g.chem.Components, volt, capa, i), fr[i], ps.globals[i])
-			b.blackMass(bm, fr[i], ps.globals[i], g.camIdx, sh)
+			for _, c := range touched {
+				bm[c] = 0
+			}
+			b := model(g.energyWh+massWh[i], g.chargeAh, mixAt(g.chem.Components, shares[i], volt, capa, i), fr[i], ps.globals[i])
+			b.blackMass(bm, fr[i], ps.globals[i], g.camIdx, shares[i])
 			tot := 0.0
-			for c, m := range bm {
-				s.Compounds[c][i] += m / 1000
-				tot += m / 1000
+			for _, c := range touched {
+				m := bm[c] / 1000
+				s.Compounds[c][i] += m
+				tot += m
 			}
 			cam[i], gbm[i] = b.cam/1000, tot
 		}
@@ -88,7 +95,9 @@ func (l *Lot) Estimate(opt EstimateOptions) (*Report, *Samples, error) {
 		Warnings: append([]string(nil), l.warnings...), Safety: safetyNotes}
 	r.Inputs.Seed, r.Inputs.Samples = opt.Seed, n
 	r.Lot = LotSummary{Lines: l.nLines, Items: l.items, Cells: l.cells, NameplateKWh: round(l.energyWh/1000, 6),
-		ChargeOnlyAh: round(l.chargeAh, 6), LinesWithMass: l.withMass, LinesFlaggedByMass: l.flagged}
+		ChargeOnlyAh: round(l.chargeAh, 6), LinesWithMass: l.withMass, LinesFlaggedByMass: l.flagged,
+		LinesByMassOnly: l.massOnly, MassOnlyKg: round(l.massOnlyKg, 6)}
+	r.Labels = l.Labels()
 	if l.energyWh > 0 {
 		r.Lot.UnknownShareOfKWh = round(l.unknownWh/l.energyWh, 6)
 	}
@@ -97,6 +106,14 @@ func (l *Lot) Estimate(opt EstimateOptions) (*Report, *Samples, error) {
 	}
 	if r.Lot.UnknownShareOfKWh > 0 {
 		r.Warnings = append(r.Warnings, fmt.Sprintf("%.1f %% of the nameplate energy is of unknown chemistry: its metals come from the prior mix and carry the widest uncertainty", 100*r.Lot.UnknownShareOfKWh))
+	}
+	if l.massOnly > 0 {
+		r.Warnings = append(r.Warnings, fmt.Sprintf("%d lines (%.4g kg) give a mass and no capacity: their energy comes from the chemistry's plausible Wh/kg band, drawn across its whole width", l.massOnly, l.massOnlyKg))
+	}
+	for _, lb := range r.Labels {
+		if lb.Unrecognised {
+			r.Warnings = append(r.Warnings, fmt.Sprintf("label %q (%d lines, %.1f %% of the energy) was not recognised and is treated as unknown", lb.Label, lb.Lines, 100*lb.EnergyShare))
+		}
 	}
 	if l.chargeAh > 0 {
 		r.Warnings = append(r.Warnings, fmt.Sprintf("%.0f Ah were given without a voltage: the cathode mass of those lines uses charge over capacity (no voltage needed), their Wh uses the chemistry's nominal voltage", l.chargeAh))
@@ -111,7 +128,11 @@ func (l *Lot) Estimate(opt EstimateOptions) (*Report, *Samples, error) {
 		}
 	}
 	for gi, g := range l.order {
-		r.Groups = append(r.Groups, GroupResult{Chemistry: g.chem.Key, Format: g.format.String(), Lines: g.lines, Items: g.items,
+		var keys []string
+		for _, c := range g.chem.Components {
+			keys = append(keys, c.Entry.Key)
+		}
+		r.Groups = append(r.Groups, GroupResult{Chemistry: g.chem.Key, Components: keys, Format: g.format.String(), Lines: g.lines, Items: g.items,
 			NameplateKWh: round(g.energyWh/1000, 6), ChargeOnlyAh: round(g.chargeAh, 6), CathodeKg: summarise(s.groupCAM[gi]), BlackMassKg: summarise(s.groupBM[gi])})
 	}
 	r.Parameters = l.parameters()

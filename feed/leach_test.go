@@ -7,6 +7,7 @@ import (
 
 	"blackmass/cathode"
 	"blackmass/feed"
+	"blackmass/feed/intake"
 )
 
 func leachLCO(t *testing.T, mut func(*feed.LeachOptions)) *feed.LeachReport {
@@ -107,7 +108,7 @@ func leachLot(t *testing.T, route cathode.Route, pulp float64) *feed.LeachReport
 	cat, _ := cathode.DefaultCatalogue()
 	m, _ := feed.DefaultModel()
 	lot := feed.NewLot(m, false)
-	if err := feed.ReadManifestCSV(strings.NewReader(mixed), "t.csv", feed.ManifestOptions{Catalogue: cat}, lot.Add); err != nil {
+	if err := readCSV(strings.NewReader(mixed), "t.csv", intake.Options{Catalogue: cat}, lot.Add); err != nil {
 		t.Fatal(err)
 	}
 	o := feed.DefaultLeachOptions()

@@ -21,8 +21,10 @@ type LineResult struct {
 	Count           int                `json:"count"`
 	CellsPerItem    int                `json:"cells_per_item"`
 	CapacityText    string             `json:"capacity_as_given"`
+	Application     string             `json:"application,omitempty"`
 	EnergyWhPerItem float64            `json:"energy_Wh_per_item"`
 	EnergyAssumed   bool               `json:"energy_uses_assumed_voltage"`
+	EnergyFromMass  bool               `json:"energy_from_mass,omitempty"`
 	ChargeAhPerItem float64            `json:"charge_Ah_per_item,omitempty"`
 	ModelMassKgEach float64            `json:"modelled_mass_kg_per_item"`
 	MeasuredMassKg  float64            `json:"measured_mass_kg_per_item,omitempty"`
@@ -53,15 +55,17 @@ const maxLineWarnings = 50
 type group struct {
 	chem     *cathode.Chemistry
 	format   Format
-	energyWh float64 // Σ count·energy per item
-	chargeAh float64 // Σ count·charge per item (lines given in Ah with no voltage)
+	energyWh   float64 // Σ count·energy per item
+	chargeAh   float64 // Σ count·charge per item (lines given in Ah with no voltage)
+	massOnlyKg float64 // Σ count·mass of lines known by weight only
 	items    int
 	cells    int
 	lines    int
 	camIdx   []int
-	modeMix  mix     // the chemistry at its most likely capacity and voltage
-	bandLo   float64 // plausible Wh/kg band of an item
-	bandHi   float64
+	modeMix     mix     // the chemistry at its most likely capacity and voltage
+	bandLo      float64 // plausible Wh/kg band of an item
+	bandHi      float64
+	modeWhPerKg float64 // most likely Wh/kg of an item, for lines known by weight only
 }
 
 // Lot accumulates manifest lines. Add them with Add, then call Estimate.
@@ -84,12 +88,23 @@ type Lot struct {
 	unknownWh float64
 	flagged   int
 	withMass  int
+	massOnly  int
+	massOnlyKg float64
+	modeWh    float64 // Σ most likely energy, including lines known by weight only
+	labels    map[string]*labelStat
+	labelList []*labelStat
+}
+
+// labelStat counts one label's lines and most likely energy.
+type labelStat struct {
+	LabelResolution
+	modeWh float64
 }
 
 // NewLot starts an empty lot. With keepLines, each line's detail is kept for the report.
 func NewLot(m *Model, keepLines bool) *Lot {
 	return &Lot{model: m, mode: newParamSet(m, 0, 0), keepLines: keepLines, groups: map[groupKey]*group{}, byPtr: map[ptrKey]*group{},
-		warned: map[string]bool{}, comp: newCompounds()}
+		warned: map[string]bool{}, comp: newCompounds(), labels: map[string]*labelStat{}}
 }
 
 func (l *Lot) warnOnce(key, msg string) {
@@ -115,6 +130,7 @@ func (l *Lot) group(ch *cathode.Chemistry, f Format) *group {
 		}
 		g.modeMix = l.modeMix(ch)
 		g.bandLo, g.bandHi = l.band(ch, f)
+		g.modeWhPerKg = l.modeWhPerKg(ch, f)
 		l.groups[k] = g
 		l.order = append(l.order, g)
 		for _, n := range ch.Notes {
@@ -147,12 +163,20 @@ func (l *Lot) Add(ln Line) error {
 	}
 	mx := g.modeMix
 	energyWh := ln.EnergyWh
-	if energyWh == 0 {
+	switch {
+	case ln.MassOnly():
+		g.massOnlyKg += cnt * ln.MassKg
+		l.massOnly++
+		l.massOnlyKg += cnt * ln.MassKg
+		energyWh = ln.MassKg * g.modeWhPerKg
+	case energyWh == 0:
 		energyWh = ln.ChargeAh * mx.voltV
 	}
+	l.modeWh += cnt * energyWh
+	l.countLabel(ln, cnt*energyWh)
 	var flags []string
 	var measWhKg float64
-	if ln.MassKg > 0 {
+	if ln.MassKg > 0 && !ln.MassOnly() {
 		l.withMass++
 		measWhKg = energyWh / ln.MassKg
 		lo, hi := g.bandLo, g.bandHi
@@ -169,13 +193,20 @@ func (l *Lot) Add(ln Line) error {
 		return nil
 	}
 	if ch.Unknown {
-		flags = append(flags, "unknown chemistry: prior mix assumed")
+		flags = append(flags, "unknown chemistry: the prior for the item assumed")
+	}
+	if ln.MassOnly() {
+		flags = append(flags, "no capacity: energy from the mass and the chemistry's Wh/kg band")
 	}
 	// Most-likely breakdown of one item, for the line detail.
 	fr, gl := l.mode.formats[ln.Format][0], l.mode.globals[0]
-	b := model(ln.EnergyWh, ln.ChargeAh, mx, fr, gl)
+	itemWh := ln.EnergyWh
+	if ln.MassOnly() {
+		itemWh = energyWh
+	}
+	b := model(itemWh, ln.ChargeAh, mx, fr, gl)
 	bm := make([]float64, l.comp.n())
-	b.blackMass(bm, fr, gl, g.camIdx, shares(ch))
+	b.blackMass(bm, fr, gl, g.camIdx, ch.MeanShares())
 	els := map[string]float64{}
 	total := 0.0
 	for c, m := range bm {
@@ -190,11 +221,52 @@ func (l *Lot) Add(ln Line) error {
 		els[e] = round(v, 6)
 	}
 	l.lines = append(l.lines, LineResult{Line: ln.Num, ID: ln.ID, Description: ln.Description, ChemistryLabel: ln.ChemistryLabel,
-		Chemistry: ch.Key, Unknown: ch.Unknown, Format: ln.Format.String(), Count: ln.Count, CellsPerItem: ln.CellsPerItem,
-		CapacityText: ln.CapacityText, EnergyWhPerItem: round(energyWh, 4), EnergyAssumed: ln.EnergyWh == 0, ChargeAhPerItem: ln.ChargeAh,
+		Chemistry: ch.Key, Unknown: ch.Unknown, Format: ln.Format.String(), Count: ln.Count, CellsPerItem: ln.CellsPerItem, Application: ln.Application,
+		CapacityText: ln.CapacityText, EnergyWhPerItem: round(energyWh, 4), EnergyAssumed: ln.EnergyWh == 0 && !ln.MassOnly(), EnergyFromMass: ln.MassOnly(), ChargeAhPerItem: ln.ChargeAh,
 		ModelMassKgEach: round(b.item/1000, 6), MeasuredMassKg: ln.MassKg, MeasuredWhPerKg: round(measWhKg, 2),
 		CathodeKg: round(b.cam*cnt/1000, 6), BlackMassKg: round(total*cnt/1000, 6), ElementsKg: els, Flags: flags, Notes: ln.Notes})
 	return nil
+}
+
+// maxLabels bounds the labels listed in the report; the rest are counted.
+const maxLabels = 500
+
+// countLabel adds a line to its label's count.
+func (l *Lot) countLabel(ln Line, energyWh float64) {
+	st := l.labels[ln.ChemistryLabel]
+	if st == nil {
+		if len(l.labelList) >= maxLabels {
+			st = l.labels["\x00more"]
+			if st == nil {
+				st = &labelStat{LabelResolution: LabelResolution{Label: "(further labels)", ResolvedAs: "various", Kind: "various"}}
+				l.labels["\x00more"] = st
+				l.labelList = append(l.labelList, st)
+			}
+		} else {
+			st = &labelStat{LabelResolution: LabelResolution{Label: ln.ChemistryLabel, ResolvedAs: ln.Chemistry.Key, Kind: string(ln.Chemistry.Kind), Unrecognised: ln.LabelUnresolved}}
+			l.labels[ln.ChemistryLabel] = st
+			l.labelList = append(l.labelList, st)
+		}
+	}
+	if st.ResolvedAs != ln.Chemistry.Key && st.Kind != "various" {
+		// The same unknown label takes each item's prior: say so once.
+		st.ResolvedAs = "unknown (per item)"
+	}
+	st.Lines++
+	st.modeWh += energyWh
+}
+
+// Labels returns every label's resolution with its share of the lot's energy.
+func (l *Lot) Labels() []LabelResolution {
+	out := make([]LabelResolution, 0, len(l.labelList))
+	for _, st := range l.labelList {
+		r := st.LabelResolution
+		if l.modeWh > 0 {
+			r.EnergyShare = round(st.modeWh/l.modeWh, 6)
+		}
+		out = append(out, r)
+	}
+	return out
 }
 
 func idOr(ln Line) string {
@@ -209,17 +281,10 @@ func round(v float64, digits int) float64 {
 	return math.Round(v*p) / p
 }
 
-func shares(ch *cathode.Chemistry) []float64 {
-	out := make([]float64, len(ch.Components))
-	for i, c := range ch.Components {
-		out[i] = c.MassFraction
-	}
-	return out
-}
 
 func (l *Lot) modeMix(ch *cathode.Chemistry) mix {
 	volt, capa := l.mode.chemDraws(ch)
-	return mixAt(ch.Components, volt, capa, 0)
+	return mixAt(ch.Components, ch.MeanShares(), volt, capa, 0)
 }
 
 // band returns the plausible Wh/kg band of an item: the chemistry's cell band (the envelope of
@@ -236,6 +301,19 @@ func (l *Lot) band(ch *cathode.Chemistry, f Format) (lo, hi float64) {
 		hi *= 1 - p.Range.Min
 	}
 	return lo, hi
+}
+
+// modeWhPerKg is an item's most likely specific energy: the components' band modes weighted by
+// their mean shares, lowered by the most likely assembly overhead.
+func (l *Lot) modeWhPerKg(ch *cathode.Chemistry, f Format) float64 {
+	w := 0.0
+	for _, c := range ch.Components {
+		w += c.MassFraction * c.Entry.SpecificEnergyWhPerKg.Mode
+	}
+	if f.IsAssembly() {
+		w *= 1 - l.model.get(f.String(), f.String()+"_overhead").Range.Mode
+	}
+	return w
 }
 
 // chemDraws returns the voltage and capacity draws of each component of ch.

@@ -219,3 +219,30 @@ func (ps *paramSet) rangeValues(key string, r cathode.Range) []float64 {
 func (ps *paramSet) chemistry(e *cathode.Entry) (voltV, capMAhG []float64) {
 	return ps.rangeValues("chemistry "+e.Key+"/voltage", e.VoltageV), ps.rangeValues("chemistry "+e.Key+"/capacity", e.CapacityMAhPerG)
 }
+
+// massOnlyWh returns, per sample, the energy of a group's lines known by weight only: their mass
+// times the specific energy of the drawn chemistry (each component's Wh/kg drawn across its
+// plausible band, weighted by the drawn shares), lowered by the drawn overhead of an assembly.
+func (ps *paramSet) massOnlyWh(g *group, shares [][]float64) []float64 {
+	n := max(ps.d.samples, 1)
+	out := make([]float64, n)
+	if g.massOnlyKg == 0 {
+		return out
+	}
+	band := make([][]float64, len(g.chem.Components))
+	for j, c := range g.chem.Components {
+		band[j] = ps.rangeValues("chemistry "+c.Entry.Key+"/specific_energy", c.Entry.SpecificEnergyWhPerKg)
+	}
+	over := make([]float64, n)
+	if g.format.IsAssembly() {
+		over = ps.values(g.format.String(), g.format.String()+"_overhead")
+	}
+	for i := range n {
+		w := 0.0
+		for j := range band {
+			w += shares[i][j] * band[j][i]
+		}
+		out[i] = g.massOnlyKg * w * (1 - over[i])
+	}
+	return out
+}

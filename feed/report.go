@@ -25,6 +25,25 @@ type Inputs struct {
 	LotID          string `json:"lot_id,omitempty"`
 	Supplier       string `json:"supplier,omitempty"`
 	UnknownAsPrior bool   `json:"unknown_labels_as_prior"`
+	// Sheet is the sheet read from an .xlsx manifest; Sheets lists the workbook's sheets.
+	Sheet          string   `json:"sheet,omitempty"`
+	Sheets         []string `json:"sheets,omitempty"`
+	HeaderLine     int      `json:"header_line,omitempty"`
+	IgnoredColumns []string `json:"ignored_columns,omitempty"`
+}
+
+// LabelResolution is how one chemistry label of the manifest was read.
+type LabelResolution struct {
+	Label      string `json:"label"`
+	ResolvedAs string `json:"resolved_as"`
+	// Kind is catalogued, family, blend, formula or unknown.
+	Kind  string `json:"kind"`
+	Lines int    `json:"lines"`
+	// EnergyShare is the label's share of the lot's energy (nameplate, or the most likely
+	// energy of lines known by weight only).
+	EnergyShare float64 `json:"energy_share"`
+	// Unrecognised reports a label that was not understood and was read as unknown.
+	Unrecognised bool `json:"unrecognised,omitempty"`
 }
 
 // LotSummary counts what the manifest lists.
@@ -37,12 +56,16 @@ type LotSummary struct {
 	UnknownShareOfKWh  float64 `json:"unknown_chemistry_share_of_kWh"`
 	LinesWithMass      int     `json:"lines_with_mass"`
 	LinesFlaggedByMass int     `json:"lines_flagged_by_mass"`
+	// LinesByMassOnly counts lines with a mass and no capacity; MassOnlyKg is their mass.
+	LinesByMassOnly int     `json:"lines_by_mass_only"`
+	MassOnlyKg      float64 `json:"mass_only_kg"`
 }
 
 // GroupResult is one (chemistry, format) group of lines.
 type GroupResult struct {
-	Chemistry    string  `json:"chemistry"`
-	Format       string  `json:"format"`
+	Chemistry    string   `json:"chemistry"`
+	Components   []string `json:"components"` // the catalogue keys the chemistry may hold
+	Format       string   `json:"format"`
 	Lines        int     `json:"lines"`
 	Items        int     `json:"items"`
 	NameplateKWh float64 `json:"nameplate_kWh"`
@@ -71,6 +94,7 @@ type Report struct {
 	Elements    map[string]Amount `json:"elements"`
 	Compounds   map[string]Amount `json:"compounds"`
 	Groups      []GroupResult     `json:"groups"`
+	Labels      []LabelResolution `json:"labels"`
 	Lines       []LineResult      `json:"lines,omitempty"`
 	Leach       *LeachReport      `json:"leach,omitempty"`
 	// Assay, Reconciliation and Mix are present when a lab assay was given.

@@ -14,6 +14,7 @@ import (
 
 	"blackmass/cathode"
 	"blackmass/feed"
+	"blackmass/feed/intake"
 )
 
 func readAssay(path string) (*feed.Assay, []byte, error) {
@@ -21,7 +22,7 @@ func readAssay(path string) (*feed.Assay, []byte, error) {
 	if err != nil {
 		return nil, nil, err
 	}
-	a, err := feed.ReadAssay(strings.NewReader(string(b)), path)
+	a, err := intake.ReadAssay(strings.NewReader(string(b)), path)
 	return a, b, err
 }
 
@@ -68,7 +69,7 @@ func newQuoteCmd() *cobra.Command {
   blackmass quote assay.csv --mass "850 kg" --form oxide --route hydrochloric --json`,
 		Args: cobra.ExactArgs(1),
 		RunE: func(cmd *cobra.Command, args []string) error {
-			kg, err := feed.ParseMassKg(mass)
+			kg, err := intake.ParseMassKg(mass)
 			if err != nil {
 				return fmt.Errorf("--mass %q: %w", mass, err)
 			}
@@ -151,7 +152,7 @@ func newReconcileCmd() *cobra.Command {
 			if fit.candidates == "" { // by default, explain the assay with the lot's own chemistries
 				var keys []string
 				for _, g := range rep.Groups {
-					keys = append(keys, g.Chemistry)
+					keys = append(keys, g.Components...)
 				}
 				fit.candidates = strings.Join(keys, ",")
 			}

@@ -17,7 +17,11 @@ import (
 
 	"blackmass/data"
 	"blackmass/feed"
+	"blackmass/feed/intake"
 )
+
+// maxXLSXBytes bounds an .xlsx manifest, read whole as the zip format needs.
+const maxXLSXBytes = 64 << 20
 
 // demoFile is the embedded demo lot.
 const (
@@ -34,6 +38,7 @@ type estimateOptions struct {
 	noLines  bool
 	unknown  string
 	sheet    string
+	ignore   []string
 	lotID    string
 	supplier string
 	leach    leachFlags
@@ -49,7 +54,8 @@ func (o *estimateOptions) bind(cmd *cobra.Command) {
 	fl.BoolVar(&o.asJSON, "json", false, "write the full report as JSON")
 	fl.BoolVar(&o.noLines, "no-lines", false, "leave per-line detail out (for very large manifests)")
 	fl.StringVar(&o.unknown, "unknown", "refuse", "unrecognised chemistry labels: refuse, or prior (treat as unknown, prior mix)")
-	fl.StringVar(&o.sheet, "sheet", "", "sheet to read from an .xlsx manifest (default: Lines if present, else the first)")
+	fl.StringVar(&o.sheet, "sheet", "", "sheet to read from an .xlsx manifest (default: Lines if present, else the first visible sheet with a header)")
+	fl.StringSliceVar(&o.ignore, "ignore-column", nil, "leave a manifest column out of the reading (repeat, or separate with commas); every other column must be recognised")
 	fl.StringVar(&o.lotID, "lot", "", "lot id recorded in the report")
 	fl.StringVar(&o.supplier, "supplier", "", "supplier recorded in the report")
 	fl.StringVar(&o.xlsxPath, "xlsx", "", "also write the intake workbook to this .xlsx file")
@@ -148,18 +154,22 @@ func buildEstimate(o *estimateOptions, name string, in io.Reader) (*feed.Report,
 		return nil, err
 	}
 	lot := feed.NewLot(model, !o.noLines)
-	mopt := feed.ManifestOptions{Catalogue: cat, UnknownAsPrior: o.unknown == "prior"}
+	mopt := intake.Options{Catalogue: cat, UnknownAsPrior: o.unknown == "prior", IgnoreColumns: o.ignore, Sheet: o.sheet}
 	h := sha256.New()
 	br := bufio.NewReaderSize(in, 64<<10)
 	head, _ := br.Peek(4)
+	var info intake.Info
 	if strings.EqualFold(filepath.Ext(name), ".xlsx") || bytes.HasPrefix(head, []byte("PK\x03\x04")) {
 		var b []byte
-		if b, err = io.ReadAll(io.TeeReader(br, h)); err != nil {
+		if b, err = io.ReadAll(io.LimitReader(io.TeeReader(br, h), maxXLSXBytes+1)); err != nil {
 			return nil, err
 		}
-		err = feed.ReadManifestXLSX(bytes.NewReader(b), name, o.sheet, mopt, lot.Add)
+		if len(b) > maxXLSXBytes {
+			return nil, fmt.Errorf("%s: an .xlsx manifest larger than %d MB: save it as CSV, which is read as a stream", name, maxXLSXBytes>>20)
+		}
+		info, err = intake.ReadXLSX(bytes.NewReader(b), name, mopt, lot.Add)
 	} else {
-		err = feed.ReadManifestCSV(io.TeeReader(br, h), name, mopt, lot.Add)
+		info, err = intake.ReadCSV(io.TeeReader(br, h), name, mopt, lot.Add)
 	}
 	if err != nil {
 		return nil, err
@@ -170,8 +180,18 @@ func buildEstimate(o *estimateOptions, name string, in io.Reader) (*feed.Report,
 	sum := h.Sum(nil)
 	rep, _, err := lot.Estimate(feed.EstimateOptions{Seed: o.seed, Samples: o.samples, Leach: leachOpt,
 		Inputs: feed.Inputs{File: filepath.ToSlash(name), SHA256: hex.EncodeToString(sum[:]), Version: version,
-			LotID: o.lotID, Supplier: o.supplier, UnknownAsPrior: o.unknown == "prior"}})
-	return rep, err
+			LotID: o.lotID, Supplier: o.supplier, UnknownAsPrior: o.unknown == "prior",
+			Sheet: info.Sheet, Sheets: info.Sheets, HeaderLine: info.HeaderLine, IgnoredColumns: info.IgnoredColumns}})
+	if err != nil {
+		return nil, err
+	}
+	if len(info.Sheets) > 1 {
+		rep.Warnings = append([]string{fmt.Sprintf("read sheet %q of %s", info.Sheet, strings.Join(info.Sheets, ", "))}, rep.Warnings...)
+	}
+	if len(info.IgnoredColumns) > 0 {
+		rep.Warnings = append(rep.Warnings, fmt.Sprintf("columns left out as asked: %s", strings.Join(info.IgnoredColumns, ", ")))
+	}
+	return rep, nil
 }
 
 // emit writes the workbook (if asked) and then the report as JSON or text.

@@ -221,15 +221,17 @@ func (w *writer) lines() error {
 	if err != nil {
 		return err
 	}
-	_ = sw.SetColStyle(13, 17, w.num3)
+	_ = sw.SetColStyle(14, 18, w.num3)
 	_ = sw.SetColWidth(1, 1, 10)
 	_ = sw.SetColWidth(2, 2, 30)
 	_ = sw.SetColWidth(3, 3, 18)
-	_ = sw.SetColWidth(4, 17, 12)
-	_ = sw.SetColWidth(18, 18, 50)
+	_ = sw.SetColWidth(4, 18, 12)
+	_ = sw.SetColWidth(19, 19, 50)
 	_ = sw.SetPanes(&excelize.Panes{Freeze: true, YSplit: 1, TopLeftCell: "A2", ActivePane: "bottomLeft"})
-	head := []any{"id", "description", "chemistry", "format", "capacity", "capacity_basis", "cells_per_pack", "count", "mass", "notes",
-		"line", "chemistry resolved", "energy per item (Wh)", "modelled mass per item (kg)", "measured Wh/kg", "cathode active (kg)", "black mass (kg)", "flags"}
+	head := []any{"id", "description", "chemistry", "format", "capacity", "capacity_basis", "cells_per_pack", "count", "mass", "notes", "application"}
+	for _, h := range feed.DerivedLineColumns {
+		head = append(head, h)
+	}
 	if err := sw.SetRow("A1", head, excelize.RowOpts{StyleID: w.hdr, Height: 30}); err != nil {
 		return err
 	}
@@ -250,8 +252,11 @@ func (w *writer) lines() error {
 			basis = "cell"
 		}
 		cap := fmt.Sprintf("%g Wh", l.EnergyWhPerItem)
-		if l.ChargeAhPerItem > 0 {
+		switch {
+		case l.ChargeAhPerItem > 0:
 			cap = fmt.Sprintf("%g Ah", l.ChargeAhPerItem) // no voltage was given: keep the charge
+		case l.EnergyFromMass:
+			cap = "" // known by weight only: the energy is an estimate, not a nameplate
 		}
 		var whPerKg any
 		if l.MeasuredWhPerKg > 0 {
@@ -261,7 +266,7 @@ func (w *writer) lines() error {
 		if l.CellsPerItem == 0 {
 			cells = nil
 		}
-		row := []any{l.ID, l.Description, l.ChemistryLabel, l.Format, cap, basis, cells, l.Count, mass, l.Notes,
+		row := []any{l.ID, l.Description, l.ChemistryLabel, l.Format, cap, basis, cells, l.Count, mass, l.Notes, l.Application,
 			l.Line, l.Chemistry, l.EnergyWhPerItem, l.ModelMassKgEach, whPerKg, l.CathodeKg, l.BlackMassKg, flags}
 		cell, _ := excelize.CoordinatesToCellName(1, i+2)
 		if err := sw.SetRow(cell, row); err != nil {
@@ -269,7 +274,7 @@ func (w *writer) lines() error {
 		}
 	}
 	if len(r.Lines) > 0 {
-		_ = f.AutoFilter(Lines, fmt.Sprintf("A1:R%d", len(r.Lines)+1), nil)
+		_ = f.AutoFilter(Lines, fmt.Sprintf("A1:S%d", len(r.Lines)+1), nil)
 	}
 	return sw.Flush()
 }

@@ -11,6 +11,7 @@ import (
 
 	"blackmass/cathode"
 	"blackmass/feed"
+	"blackmass/feed/intake"
 	"blackmass/feed/sheet"
 )
 
@@ -25,7 +26,7 @@ func report(tb testing.TB, lines int) *feed.Report {
 	cat, _ := cathode.DefaultCatalogue()
 	m, _ := feed.DefaultModel()
 	lot := feed.NewLot(m, true)
-	if err := feed.ReadManifestCSV(strings.NewReader(b.String()), "gen.csv", feed.ManifestOptions{Catalogue: cat}, lot.Add); err != nil {
+	if _, err := intake.ReadCSV(strings.NewReader(b.String()), "gen.csv", intake.Options{Catalogue: cat}, lot.Add); err != nil {
 		tb.Fatal(err)
 	}
 	lo := feed.DefaultLeachOptions()

@@ -1,0 +1,108 @@
+package intake
+
+import (
+	"bufio"
+	"bytes"
+	"encoding/csv"
+	"errors"
+	"fmt"
+	"io"
+
+	"blackmass/data"
+	"blackmass/feed"
+)
+
+// ReadCSV streams a CSV manifest (comma or semicolon separated; with semicolons a decimal comma
+// is read as such) to fn, one line at a time. name is the file name for error messages.
+func ReadCSV(r io.Reader, name string, opt Options, fn func(feed.Line) error) (Info, error) {
+	br := data.SkipBOM(&lineLimit{r: r, max: MaxLineBytes})
+	sep, err := sniffSeparator(br)
+	if err != nil {
+		return Info{}, &Error{File: name, Reason: err.Error()}
+	}
+	cr := data.NewCSVReader(br, sep)
+	cr.ReuseRecord = true
+	cr.FieldsPerRecord = -1 // rows are checked against the header's width by the parser
+	src := &csvSource{cr: cr, name: name}
+	return readRows(src, name, opt, sep == ';', fn)
+}
+
+// errLineTooLong is returned by lineLimit for a physical line over its limit.
+var errLineTooLong = fmt.Errorf("a line longer than %d bytes", MaxLineBytes)
+
+// lineLimit fails a read once a physical line exceeds max bytes, so one huge row cannot take
+// memory in proportion to its length.
+type lineLimit struct {
+	r   io.Reader
+	max int
+	run int // bytes since the last newline
+}
+
+func (l *lineLimit) Read(p []byte) (int, error) {
+	n, err := l.r.Read(p)
+	for _, b := range p[:n] {
+		if b == '\n' || b == '\r' {
+			l.run = 0
+			continue
+		}
+		l.run++
+		if l.run > l.max {
+			return 0, errLineTooLong
+		}
+	}
+	return n, err
+}
+
+type csvSource struct {
+	cr   *csv.Reader
+	name string
+}
+
+func (s *csvSource) next() ([]string, int, error) {
+	rec, err := s.cr.Read()
+	if err != nil {
+		var pe *csv.ParseError
+		switch {
+		case errors.As(err, &pe) && errors.Is(pe.Err, errLineTooLong):
+			return nil, pe.Line, &Error{File: s.name, Line: pe.Line, Reason: errLineTooLong.Error()}
+		case errors.As(err, &pe):
+			return nil, pe.Line, &Error{File: s.name, Line: pe.Line, Reason: pe.Err.Error()}
+		case errors.Is(err, errLineTooLong):
+			return nil, 0, &Error{File: s.name, Reason: errLineTooLong.Error()}
+		}
+		return nil, 0, err
+	}
+	if len(rec) > MaxColumns {
+		line, _ := s.cr.FieldPos(0)
+		return nil, line, &Error{File: s.name, Line: line, Reason: fmt.Sprintf("more than %d columns", MaxColumns)}
+	}
+	line, _ := s.cr.FieldPos(0)
+	return rec, line, nil
+}
+
+// sniffSeparator looks at the first non-comment line: a semicolon-separated header wins if it
+// has more semicolons than commas. A file whose lines end in a lone carriage return is refused,
+// as the CSV reader would see one line.
+func sniffSeparator(br *bufio.Reader) (rune, error) {
+	b, err := br.Peek(MaxLineBytes)
+	if len(b) == 0 && err != nil {
+		if errors.Is(err, io.EOF) {
+			return 0, errors.New("empty file")
+		}
+		return 0, err
+	}
+	if !bytes.Contains(b, []byte("\n")) && bytes.Count(b, []byte("\r")) > 1 {
+		return 0, errors.New("lines end in a carriage return only (old Mac text): save the file with LF or CRLF line ends")
+	}
+	for _, ln := range bytes.Split(b, []byte("\n")) {
+		t := bytes.TrimSpace(ln)
+		if len(t) == 0 || t[0] == '#' {
+			continue
+		}
+		if bytes.Count(t, []byte(";")) > bytes.Count(t, []byte(",")) {
+			return ';', nil
+		}
+		return ',', nil
+	}
+	return ',', nil
+}

@@ -1,0 +1,505 @@
+package intake
+
+import (
+	"errors"
+	"fmt"
+	"io"
+	"math"
+	"slices"
+	"strconv"
+	"strings"
+	"unicode/utf8"
+
+	"blackmass/cathode"
+	"blackmass/feed"
+)
+
+// Options controls manifest reading.
+type Options struct {
+	Catalogue *cathode.Catalogue
+	// UnknownAsPrior treats unresolvable chemistry labels as unknown (the prior for the item)
+	// instead of refusing them; each such label is listed in the report.
+	UnknownAsPrior bool
+	// IgnoreColumns names header cells to leave out of the reading (as typed, or normalised).
+	IgnoreColumns []string
+	// Sheet is the sheet of an .xlsx workbook to read ("" chooses; see ReadXLSX).
+	Sheet string
+}
+
+// Info says what was read: which sheet, where the header was, which columns were left out.
+type Info struct {
+	Sheet          string   `json:"sheet,omitempty"`
+	Sheets         []string `json:"sheets,omitempty"`
+	HeaderLine     int      `json:"header_line"`
+	IgnoredColumns []string `json:"ignored_columns,omitempty"`
+	Lines          int      `json:"lines"`
+}
+
+// Limits on what a manifest may hold; beyond them the input is refused, not truncated.
+const (
+	MaxHeaderSearchRows = 20        // title and note rows allowed above the header
+	MaxLineBytes        = 64 << 10  // one CSV line (a manifest line is a few hundred bytes)
+	MaxColumns          = 256       // columns in a row
+	MaxTextBytes        = 4 << 10   // an id, description or notes cell
+	MaxLines            = 5_000_000 // manifest lines
+	maxCount            = 10_000_000
+	maxCellsPerItem     = 20_000
+	// Physical ranges of one item. The smallest lithium-ion cells (hearing-aid and coin cells)
+	// hold about 0.1 Wh and weigh about 1 g; the largest packs and storage modules hold a few
+	// hundred kWh and weigh a few tonnes (common practice).
+	minItemWh     = 0.01
+	maxCellWh     = 2_000
+	maxAssemblyWh = 500_000
+	minItemAh     = 0.001
+	minItemKg     = 1e-4
+	maxItemKg     = 5_000
+	minVoltageV   = 1   // below any lithium-ion cell
+	maxVoltageV   = 1500 // above any traction or storage pack
+	maxCellV      = 5    // above any lithium-ion cell's nominal voltage
+	// assumedMaxCellV is the highest nominal cell voltage, used to bound a line given in Ah only.
+	assumedMaxCellV = 4.5
+)
+
+// rowSource yields manifest records with their line numbers; io.EOF at the end.
+type rowSource interface {
+	next() (rec []string, line int, err error)
+}
+
+// readRows finds the header, then parses every line and hands it to fn.
+func readRows(src rowSource, name string, opt Options, decimalComma bool, fn func(feed.Line) error) (Info, error) {
+	var info Info
+	var hdr *header
+	var first []string
+	firstLine := 0
+	for seen := 0; hdr == nil; {
+		rec, line, err := src.next()
+		if errors.Is(err, io.EOF) {
+			if seen == 0 {
+				return info, &Error{File: name, Reason: "empty file (no header, no lines)"}
+			}
+			return info, &Error{File: name, Line: firstLine, Reason: fmt.Sprintf("no recognisable header in the first %d rows (the first held %s); want columns such as %s",
+				MaxHeaderSearchRows, quoteCells(first), strings.Join(columnNames(), ", "))}
+		}
+		if err != nil {
+			return info, err
+		}
+		if blank(rec) {
+			continue
+		}
+		if seen == 0 {
+			first, firstLine = slices.Clone(rec), line
+		}
+		seen++
+		if knownCells(rec) >= 2 {
+			if hdr, err = parseHeader(rec, opt.IgnoreColumns, name, line); err != nil {
+				return info, err
+			}
+			info.HeaderLine = line
+			for _, i := range hdr.ignored {
+				if t := strings.TrimSpace(rec[i]); t != "" {
+					info.IgnoredColumns = append(info.IgnoredColumns, t)
+				}
+			}
+			break
+		}
+		if seen >= MaxHeaderSearchRows {
+			return info, &Error{File: name, Line: firstLine, Reason: fmt.Sprintf("no recognisable header in the first %d rows (the first held %s); want columns such as %s",
+				MaxHeaderSearchRows, quoteCells(first), strings.Join(columnNames(), ", "))}
+		}
+	}
+	p := newLineParser(name, opt, decimalComma, hdr)
+	for {
+		rec, line, err := src.next()
+		if errors.Is(err, io.EOF) {
+			break
+		}
+		if err != nil {
+			return info, err
+		}
+		if blank(rec) {
+			continue
+		}
+		if info.Lines >= MaxLines {
+			return info, &Error{File: name, Line: line, Reason: fmt.Sprintf("more than %d lines: split the manifest", MaxLines)}
+		}
+		l, err := p.parse(rec, line)
+		if err != nil {
+			return info, err
+		}
+		info.Lines++
+		if err := fn(l); err != nil {
+			return info, err
+		}
+	}
+	if info.Lines == 0 {
+		return info, &Error{File: name, Line: info.HeaderLine, Reason: "header but no lines"}
+	}
+	return info, nil
+}
+
+func quoteCells(rec []string) string {
+	var q []string
+	for _, c := range rec {
+		if c = strings.TrimSpace(c); c != "" {
+			q = append(q, strconv.Quote(Printable(c, 30)))
+		}
+		if len(q) == 6 {
+			q = append(q, "…")
+			break
+		}
+	}
+	return strings.Join(q, ", ")
+}
+
+func blank(rec []string) bool {
+	for _, f := range rec {
+		if strings.TrimSpace(f) != "" {
+			return false
+		}
+	}
+	return true
+}
+
+// labelKey caches a label's resolution for an application.
+type labelKey struct{ label, app string }
+
+type lineParser struct {
+	name         string
+	opt          Options
+	decimalComma bool
+	hdr          *header
+	chem         map[labelKey]*resolved
+	formats      map[string]feed.Format
+	layouts      map[string]int
+}
+
+// resolved is a label's chemistry and whether the label was recognised.
+type resolved struct {
+	chem       *cathode.Chemistry
+	unresolved bool
+}
+
+func newLineParser(name string, opt Options, decimalComma bool, hdr *header) *lineParser {
+	return &lineParser{name: name, opt: opt, decimalComma: decimalComma, hdr: hdr,
+		chem: map[labelKey]*resolved{}, formats: map[string]feed.Format{}, layouts: map[string]int{}}
+}
+
+func (p *lineParser) get(rec []string, c Column) string {
+	i := p.hdr.pos[c]
+	if i < 0 || i >= len(rec) {
+		return ""
+	}
+	return strings.TrimSpace(rec[i])
+}
+
+func (p *lineParser) fail(line int, c Column, val, reason string) error {
+	return &Error{File: p.name, Line: line, Column: c.String(), Value: val, Reason: reason}
+}
+
+func (p *lineParser) parse(rec []string, line int) (feed.Line, error) {
+	if len(rec) > MaxColumns {
+		return feed.Line{}, &Error{File: p.name, Line: line, Reason: fmt.Sprintf("more than %d columns", MaxColumns)}
+	}
+	for i := p.hdr.width; i < len(rec); i++ {
+		if strings.TrimSpace(rec[i]) != "" {
+			return feed.Line{}, &Error{File: p.name, Line: line, Reason: fmt.Sprintf("a value in column %d, beyond the header's %d columns", i+1, p.hdr.width)}
+		}
+	}
+	for _, i := range p.hdr.ignored {
+		if i < len(rec) && strings.TrimSpace(rec[i]) != "" && i < p.hdr.width && !p.ignoredByName(i) {
+			return feed.Line{}, &Error{File: p.name, Line: line, Reason: fmt.Sprintf("a value in column %d, which has no header", i+1)}
+		}
+	}
+	for _, c := range []Column{ColID, ColDescription, ColChemistry, ColNotes, ColApplication} {
+		v := p.get(rec, c)
+		if !utf8.ValidString(v) {
+			return feed.Line{}, p.fail(line, c, "", "not valid UTF-8")
+		}
+		if len(v) > MaxTextBytes {
+			return feed.Line{}, p.fail(line, c, v, fmt.Sprintf("longer than %d bytes", MaxTextBytes))
+		}
+	}
+	l := feed.Line{Num: line, ID: p.get(rec, ColID), Description: p.get(rec, ColDescription), Notes: p.get(rec, ColNotes)}
+	if err := p.format(&l, rec, line); err != nil {
+		return l, err
+	}
+	if err := p.chemistry(&l, rec, line); err != nil {
+		return l, err
+	}
+	if err := p.count(&l, rec, line); err != nil {
+		return l, err
+	}
+	if err := p.cellsPerPack(&l, rec, line); err != nil {
+		return l, err
+	}
+	if err := p.mass(&l, rec, line); err != nil {
+		return l, err
+	}
+	if err := p.capacity(&l, rec, line); err != nil {
+		return l, err
+	}
+	return l, nil
+}
+
+// ignoredByName reports whether column i was ignored at the user's request (its values are
+// then not checked), rather than for a blank header.
+func (p *lineParser) ignoredByName(i int) bool { return p.hdr.named[i] }
+
+func (p *lineParser) format(l *feed.Line, rec []string, line int) error {
+	fs := p.get(rec, ColFormat)
+	f, ok := p.formats[fs]
+	if !ok {
+		var err error
+		if f, err = ParseFormat(fs); err != nil {
+			return p.fail(line, ColFormat, fs, err.Error())
+		}
+		p.formats[fs] = f
+	}
+	l.Format = f
+	return nil
+}
+
+// chemistry resolves the label; a label that says nothing about the cathode takes the prior of
+// the item's application (named in its own column, or by a word of the description or notes) or
+// else of its format.
+func (p *lineParser) chemistry(l *feed.Line, rec []string, line int) error {
+	l.ChemistryLabel = p.get(rec, ColChemistry)
+	appText := p.get(rec, ColApplication)
+	app := ""
+	if appText != "" {
+		if app = p.opt.Catalogue.Application(appText); app == "" {
+			return p.fail(line, ColApplication, appText, "not a known application (want phone, laptop, power tool, e-bike, vehicle or storage; or leave it blank)")
+		}
+	}
+	if app == "" {
+		app = p.opt.Catalogue.Application(l.Description + " " + l.Notes)
+	}
+	l.Application = app
+	priorKey := app
+	if priorKey == "" {
+		priorKey = l.Format.String()
+	}
+	k := labelKey{l.ChemistryLabel, ""}
+	r, ok := p.chem[k]
+	if !ok || r.chem.Unknown {
+		k.app = priorKey
+		r, ok = p.chem[k]
+	}
+	if !ok {
+		c, err := p.opt.Catalogue.ParseLabel(l.ChemistryLabel)
+		r = &resolved{}
+		switch {
+		case err != nil && !p.opt.UnknownAsPrior:
+			return p.fail(line, ColChemistry, l.ChemistryLabel, err.Error()+" (or run with --unknown prior to treat it as unknown)")
+		case err != nil:
+			c = p.opt.Catalogue.Unknown(priorKey)
+			c.Notes = append([]string{fmt.Sprintf("label %q not recognised: treated as unknown", Printable(l.ChemistryLabel, 60))}, c.Notes...)
+			r.unresolved = true
+		case c.Unknown:
+			c = p.opt.Catalogue.Unknown(priorKey)
+		default:
+			k.app = ""
+		}
+		r.chem = &c
+		p.chem[k] = r
+	}
+	l.Chemistry, l.LabelUnresolved = r.chem, r.unresolved
+	return nil
+}
+
+func (p *lineParser) count(l *feed.Line, rec []string, line int) error {
+	cs := p.get(rec, ColCount)
+	v, err := ParseNumber(cs, p.decimalComma)
+	if err != nil || v != math.Trunc(v) || v < 1 || v > maxCount {
+		return p.fail(line, ColCount, cs, fmt.Sprintf("want a whole number from 1 to %d", maxCount))
+	}
+	l.Count = int(v)
+	return nil
+}
+
+func (p *lineParser) cellsPerPack(l *feed.Line, rec []string, line int) error {
+	l.CellsPerItem = 1
+	cp := p.get(rec, ColCellsPerPack)
+	if cp == "" {
+		if l.Format.IsAssembly() {
+			l.CellsPerItem = 0
+		}
+		return nil
+	}
+	n, ok := p.layouts[cp]
+	if !ok {
+		var err error
+		if n, err = parseCellsPerPack(cp); err != nil {
+			return p.fail(line, ColCellsPerPack, cp, err.Error())
+		}
+		p.layouts[cp] = n
+	}
+	if !l.Format.IsAssembly() && n != 1 {
+		return p.fail(line, ColCellsPerPack, cp, fmt.Sprintf("a %s line is one cell per item; use format pack or module", l.Format))
+	}
+	l.CellsPerItem = n
+	return nil
+}
+
+func (p *lineParser) mass(l *feed.Line, rec []string, line int) error {
+	col := ColMass
+	ms := p.get(rec, ColMass)
+	if ms == "" {
+		col, ms = ColTotalMass, p.get(rec, ColTotalMass)
+	}
+	if ms == "" {
+		return nil
+	}
+	v, _, err := Quantity(ms, MassUnits, p.hdr.unit[col], p.decimalComma)
+	if err != nil {
+		return p.fail(line, col, ms, err.Error())
+	}
+	if col == ColTotalMass {
+		v /= float64(l.Count)
+	}
+	if v < minItemKg || v > maxItemKg {
+		return p.fail(line, col, ms, fmt.Sprintf("%.4g kg per item is outside %g to %g kg", v, minItemKg, float64(maxItemKg)))
+	}
+	l.MassKg = v
+	return nil
+}
+
+func (p *lineParser) capacity(l *feed.Line, rec []string, line int) error {
+	l.CapacityText = p.get(rec, ColCapacity)
+	if l.CapacityText == "" {
+		if l.MassKg > 0 {
+			return nil // energy from the chemistry's Wh/kg band (feed.Line.MassOnly)
+		}
+		return p.fail(line, ColCapacity, "", "give a capacity, or a mass for a line known by weight only")
+	}
+	val, unit, err := Quantity(l.CapacityText, CapacityUnits, p.hdr.unit[ColCapacity], p.decimalComma)
+	if err != nil {
+		return p.fail(line, ColCapacity, l.CapacityText, err.Error())
+	}
+	basis := strings.ToLower(p.get(rec, ColBasis))
+	switch basis {
+	case "":
+		basis = "cell"
+		if l.Format.IsAssembly() {
+			basis = "pack"
+		}
+	case "cell", "per cell", "each cell":
+		basis = "cell"
+	case "pack", "module", "per pack", "item", "whole":
+		basis = "pack"
+	default:
+		return p.fail(line, ColBasis, basis, "want cell or pack")
+	}
+	mult := 1.0
+	if basis == "cell" && l.Format.IsAssembly() {
+		if l.CellsPerItem == 0 {
+			return p.fail(line, ColCellsPerPack, "", "capacity is per cell, so cells_per_pack is needed to get the pack's capacity")
+		}
+		mult = float64(l.CellsPerItem)
+	}
+	switch unit {
+	case "Wh":
+		l.EnergyWh = val * mult
+	case "Ah":
+		if vs := p.get(rec, ColVoltage); vs != "" {
+			v, _, err := Quantity(vs, VoltUnits, "V", p.decimalComma)
+			if err != nil || v < minVoltageV || v > maxVoltageV {
+				return p.fail(line, ColVoltage, vs, fmt.Sprintf("want a nominal voltage from %g to %g V", float64(minVoltageV), float64(maxVoltageV)))
+			}
+			if basis == "cell" && v > maxCellV {
+				return p.fail(line, ColVoltage, vs, "capacity is per cell but the voltage is above any cell's (give the cell voltage or capacity_basis pack)")
+			}
+			l.VoltageV = v
+			l.EnergyWh = val * v * mult
+		} else {
+			l.ChargeAh = val * mult
+			if val*mult < minItemAh {
+				return p.fail(line, ColCapacity, l.CapacityText, fmt.Sprintf("less than %g Ah per item is below any lithium-ion cell", minItemAh))
+			}
+		}
+	}
+	perItemWh := l.EnergyWh
+	if perItemWh == 0 {
+		perItemWh = l.ChargeAh * assumedMaxCellV
+	}
+	limit := float64(maxCellWh)
+	if l.Format.IsAssembly() {
+		limit = maxAssemblyWh
+	}
+	if perItemWh > limit {
+		return p.fail(line, ColCapacity, l.CapacityText, fmt.Sprintf("%.0f Wh per item is absurd for a %s (limit %.0f Wh)", perItemWh, l.Format, limit))
+	}
+	if l.EnergyWh > 0 && l.EnergyWh < minItemWh {
+		return p.fail(line, ColCapacity, l.CapacityText, fmt.Sprintf("less than %g Wh per item is below any lithium-ion cell", minItemWh))
+	}
+	return nil
+}
+
+var formatWords = map[string]feed.Format{
+	"cylindrical": feed.Cylindrical, "cylinder": feed.Cylindrical, "cyl": feed.Cylindrical, "round": feed.Cylindrical,
+	"18650": feed.Cylindrical, "21700": feed.Cylindrical, "26650": feed.Cylindrical, "32700": feed.Cylindrical, "4680": feed.Cylindrical, "14500": feed.Cylindrical,
+	"pouch": feed.Pouch, "polymer": feed.Pouch, "soft": feed.Pouch, "lipo": feed.Pouch, "soft pack": feed.Pouch,
+	"prismatic": feed.Prismatic, "prism": feed.Prismatic, "can": feed.Prismatic,
+	"pack": feed.Pack, "battery pack": feed.Pack, "packs": feed.Pack, "battery": feed.Pack,
+	"module": feed.Module, "modules": feed.Module,
+}
+
+// ParseFormat accepts the format names and their synonyms, case-insensitively.
+func ParseFormat(s string) (feed.Format, error) {
+	if f, ok := formatWords[strings.ToLower(strings.TrimSpace(s))]; ok {
+		return f, nil
+	}
+	return feed.FormatInvalid, fmt.Errorf("unknown format (want cylindrical, pouch, prismatic, pack or module)")
+}
+
+// parseCellsPerPack accepts a whole number ("52") or a series-parallel tag ("13s4p", "10S3P",
+// "4p13s", "13S-4P"), returning the number of cells.
+func parseCellsPerPack(s string) (int, error) {
+	t := strings.ToLower(strings.NewReplacer(" ", "", "-", "", "x", "").Replace(s))
+	if n, err := strconv.Atoi(t); err == nil {
+		if n < 1 || n > maxCellsPerItem {
+			return 0, fmt.Errorf("want 1 to %d cells", maxCellsPerItem)
+		}
+		return n, nil
+	}
+	var s1, p1 int
+	rest := t
+	for rest != "" {
+		j := 0
+		for j < len(rest) && rest[j] >= '0' && rest[j] <= '9' {
+			j++
+		}
+		if j == 0 || j == len(rest) || j > 5 {
+			return 0, errors.New("want a number of cells or a series-parallel tag such as 13s4p")
+		}
+		n, _ := strconv.Atoi(rest[:j])
+		switch rest[j] {
+		case 's':
+			if s1 != 0 {
+				return 0, errors.New("series count given twice")
+			}
+			s1 = n
+		case 'p':
+			if p1 != 0 {
+				return 0, errors.New("parallel count given twice")
+			}
+			p1 = n
+		default:
+			return 0, errors.New("want a number of cells or a series-parallel tag such as 13s4p")
+		}
+		rest = rest[j+1:]
+	}
+	if s1 == 0 {
+		return 0, errors.New("a series-parallel tag needs a non-zero series count (e.g. 13s4p)")
+	}
+	if p1 == 0 {
+		if strings.Contains(t, "p") {
+			return 0, errors.New("parallel count must be at least 1")
+		}
+		p1 = 1
+	}
+	if s1*p1 > maxCellsPerItem {
+		return 0, fmt.Errorf("more than %d cells per item", maxCellsPerItem)
+	}
+	return s1 * p1, nil
+}

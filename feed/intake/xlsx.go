@@ -1,0 +1,105 @@
+package intake
+
+import (
+	"fmt"
+	"io"
+	"strings"
+
+	"github.com/xuri/excelize/v2"
+
+	"blackmass/feed"
+)
+
+// Bounds on an .xlsx manifest, so a small file cannot inflate into gigabytes.
+const (
+	MaxUnzippedBytes = 200 << 20 // all parts of the workbook, inflated
+	maxXMLInMemory   = 16 << 20  // a larger part is worked from a temporary file
+	maxSheets        = 64
+)
+
+// ReadXLSX streams the manifest on one sheet of an .xlsx workbook to fn. The sheet is
+// opt.Sheet if given; else the intake workbook's Lines sheet; else the first visible sheet with
+// a recognisable header. Cells are read as stored (a number formatted "0" is still 2.6), not as
+// displayed. Info names the sheet read and the sheets there were.
+func ReadXLSX(r io.Reader, name string, opt Options, fn func(feed.Line) error) (Info, error) {
+	f, err := excelize.OpenReader(r, excelize.Options{UnzipSizeLimit: MaxUnzippedBytes, UnzipXMLSizeLimit: maxXMLInMemory})
+	if err != nil {
+		return Info{}, &Error{File: name, Reason: "not a readable .xlsx workbook: " + err.Error()}
+	}
+	defer f.Close()
+	sheets := f.GetSheetList()
+	if len(sheets) > maxSheets {
+		return Info{}, &Error{File: name, Reason: fmt.Sprintf("more than %d sheets", maxSheets)}
+	}
+	var candidates []string
+	switch {
+	case opt.Sheet != "":
+		if idx, _ := f.GetSheetIndex(opt.Sheet); idx < 0 {
+			return Info{}, &Error{File: name, Reason: fmt.Sprintf("no sheet %q (sheets: %s)", Printable(opt.Sheet, 40), strings.Join(sheets, ", "))}
+		}
+		candidates = []string{opt.Sheet}
+	default:
+		if idx, _ := f.GetSheetIndex(feed.LinesSheetName); idx >= 0 {
+			candidates = []string{feed.LinesSheetName}
+		}
+		for _, s := range sheets {
+			if visible, _ := f.GetSheetVisible(s); visible && s != feed.LinesSheetName {
+				candidates = append(candidates, s)
+			}
+		}
+		if len(candidates) == 0 {
+			return Info{}, &Error{File: name, Reason: "no visible sheet"}
+		}
+	}
+	var firstErr error
+	for _, sheet := range candidates {
+		info, err := readSheet(f, name, sheet, opt, fn)
+		info.Sheets = sheets
+		if err == nil {
+			return info, nil
+		}
+		if info.HeaderLine > 0 || len(candidates) == 1 {
+			return info, err // the header was found on this sheet: its error stands
+		}
+		if firstErr == nil {
+			firstErr = err
+		}
+	}
+	return Info{Sheets: sheets}, &Error{File: name, Reason: fmt.Sprintf("no sheet holds a recognisable header (sheets: %s); name one with --sheet. First sheet: %v", strings.Join(sheets, ", "), firstErr)}
+}
+
+func readSheet(f *excelize.File, name, sheet string, opt Options, fn func(feed.Line) error) (Info, error) {
+	rows, err := f.Rows(sheet)
+	if err != nil {
+		return Info{Sheet: sheet}, &Error{File: name, Reason: fmt.Sprintf("sheet %q: %v", sheet, err)}
+	}
+	defer rows.Close()
+	src := &xlsxSource{rows: rows, name: name + "[" + sheet + "]"}
+	info, err := readRows(src, src.name, opt, false, fn)
+	info.Sheet = sheet
+	return info, err
+}
+
+type xlsxSource struct {
+	rows *excelize.Rows
+	name string
+	line int
+}
+
+func (s *xlsxSource) next() ([]string, int, error) {
+	for s.rows.Next() {
+		s.line++
+		rec, err := s.rows.Columns(excelize.Options{RawCellValue: true})
+		if err != nil {
+			return nil, s.line, &Error{File: s.name, Line: s.line, Reason: err.Error()}
+		}
+		if len(rec) > MaxColumns {
+			return nil, s.line, &Error{File: s.name, Line: s.line, Reason: fmt.Sprintf("more than %d columns", MaxColumns)}
+		}
+		return rec, s.line, nil
+	}
+	if err := s.rows.Error(); err != nil {
+		return nil, s.line, &Error{File: s.name, Reason: "the sheet cannot be read: " + err.Error()}
+	}
+	return nil, s.line, io.EOF
+}
