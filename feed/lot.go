@@ -53,15 +53,15 @@ const maxLineWarnings = 50
 // group is the lines of one (chemistry, format): only sums are kept, so the Monte Carlo costs
 // groups × samples.
 type group struct {
-	chem     *cathode.Chemistry
-	format   Format
-	energyWh   float64 // Σ count·energy per item
-	chargeAh   float64 // Σ count·charge per item (lines given in Ah with no voltage)
-	massOnlyKg float64 // Σ count·mass of lines known by weight only
-	items    int
-	cells    int
-	lines    int
-	camIdx   []int
+	chem        *cathode.Chemistry
+	format      Format
+	energyWh    float64 // Σ count·energy per item
+	chargeAh    float64 // Σ count·charge per item (lines given in Ah with no voltage)
+	massOnlyKg  float64 // Σ count·mass of lines known by weight only
+	items       int
+	cells       int
+	lines       int
+	camIdx      []int
 	modeMix     mix     // the chemistry at its most likely capacity and voltage
 	bandLo      float64 // plausible Wh/kg band of an item
 	bandHi      float64
@@ -70,29 +70,29 @@ type group struct {
 
 // Lot accumulates manifest lines. Add them with Add, then call Estimate.
 type Lot struct {
-	model     *Model
-	mode      *paramSet // every parameter at its most likely value
-	keepLines bool
-	groups    map[groupKey]*group
-	byPtr     map[ptrKey]*group
-	order     []*group
-	lines     []LineResult
-	warnings  []string
-	warned    map[string]bool
-	comp      *compounds
-	nLines    int
-	items     int
-	cells     int
-	energyWh  float64
-	chargeAh  float64
-	unknownWh float64
-	flagged   int
-	withMass  int
-	massOnly  int
+	model      *Model
+	mode       *paramSet // every parameter at its most likely value
+	keepLines  bool
+	groups     map[groupKey]*group
+	byPtr      map[ptrKey]*group
+	order      []*group
+	lines      []LineResult
+	warnings   []string
+	warned     map[string]bool
+	comp       *compounds
+	nLines     int
+	items      int
+	cells      int
+	energyWh   float64
+	chargeAh   float64
+	unknownWh  float64
+	flagged    int
+	withMass   int
+	massOnly   int
 	massOnlyKg float64
-	modeWh    float64 // Σ most likely energy, including lines known by weight only
-	labels    map[string]*labelStat
-	labelList []*labelStat
+	modeWh     float64 // Σ most likely energy, including lines known by weight only
+	labels     map[string]*labelStat
+	labelList  []*labelStat
 }
 
 // labelStat counts one label's lines and most likely energy.
@@ -280,7 +280,6 @@ func round(v float64, digits int) float64 {
 	p := math.Pow(10, float64(digits))
 	return math.Round(v*p) / p
 }
-
 
 func (l *Lot) modeMix(ch *cathode.Chemistry) mix {
 	volt, capa := l.mode.chemDraws(ch)

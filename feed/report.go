@@ -66,12 +66,12 @@ type GroupResult struct {
 	Chemistry    string   `json:"chemistry"`
 	Components   []string `json:"components"` // the catalogue keys the chemistry may hold
 	Format       string   `json:"format"`
-	Lines        int     `json:"lines"`
-	Items        int     `json:"items"`
-	NameplateKWh float64 `json:"nameplate_kWh"`
-	ChargeOnlyAh float64 `json:"charge_only_Ah,omitempty"`
-	CathodeKg    Stat    `json:"cathode_active_kg"`
-	BlackMassKg  Stat    `json:"black_mass_kg"`
+	Lines        int      `json:"lines"`
+	Items        int      `json:"items"`
+	NameplateKWh float64  `json:"nameplate_kWh"`
+	ChargeOnlyAh float64  `json:"charge_only_Ah,omitempty"`
+	CathodeKg    Stat     `json:"cathode_active_kg"`
+	BlackMassKg  Stat     `json:"black_mass_kg"`
 }
 
 // ParamResult is one model parameter as used.

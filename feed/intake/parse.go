@@ -53,7 +53,7 @@ const (
 	minItemAh     = 0.001
 	minItemKg     = 1e-4
 	maxItemKg     = 5_000
-	minVoltageV   = 1   // below any lithium-ion cell
+	minVoltageV   = 1    // below any lithium-ion cell
 	maxVoltageV   = 1500 // above any traction or storage pack
 	maxCellV      = 5    // above any lithium-ion cell's nominal voltage
 	// assumedMaxCellV is the highest nominal cell voltage, used to bound a line given in Ah only.
