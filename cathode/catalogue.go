@@ -107,13 +107,16 @@ func readRanges(r data.Row, e *Entry) error {
 		return err
 	}
 	e.SpecificEnergyWhPerKg.Mode = (e.SpecificEnergyWhPerKg.Min + e.SpecificEnergyWhPerKg.Max) / 2
+	// Physical ranges: lithium-ion cells run from about 1.5 V (titanate anodes) to 5 V (high-voltage
+	// spinels); practical cathode capacities from about 50 to 300 mAh/g; cell specific energies
+	// from about 20 to 500 Wh/kg (common practice, with margin).
 	switch {
-	case e.VoltageV.Min <= 0 || e.VoltageV.Max > 6:
-		return r.Errorf("voltage must lie in (0, 6] V")
-	case e.CapacityMAhPerG.Min <= 0 || e.CapacityMAhPerG.Max > 400:
-		return r.Errorf("capacity must lie in (0, 400] mAh/g")
-	case e.SpecificEnergyWhPerKg.Min <= 0 || e.SpecificEnergyWhPerKg.Min > e.SpecificEnergyWhPerKg.Max:
-		return r.Errorf("specific energy band must be positive and ordered")
+	case e.VoltageV.Min < 1 || e.VoltageV.Max > 6:
+		return r.Errorf("voltage must lie from 1 to 6 V")
+	case e.CapacityMAhPerG.Min < 10 || e.CapacityMAhPerG.Max > 400:
+		return r.Errorf("capacity must lie from 10 to 400 mAh/g")
+	case e.SpecificEnergyWhPerKg.Min < 10 || e.SpecificEnergyWhPerKg.Max > 1000 || e.SpecificEnergyWhPerKg.Min > e.SpecificEnergyWhPerKg.Max:
+		return r.Errorf("specific energy band must lie from 10 to 1000 Wh/kg, ordered")
 	}
 	return nil
 }

@@ -230,24 +230,3 @@ func TestReconcile(t *testing.T) {
 		}
 	}
 }
-
-func FuzzReadAssay(f *testing.F) {
-	f.Add("element,value,unit,uncertainty\nCo,20,wt%,0.5\nLi,35,g/kg,\n")
-	f.Add("element,value,unit\nNi,1e5,ppm\n")
-	f.Fuzz(func(t *testing.T, s string) {
-		a, err := intake.ReadAssay(strings.NewReader(s), "fuzz.csv")
-		if err != nil {
-			return
-		}
-		sum := 0.0
-		for _, v := range a.Values {
-			if !(v.WtPct >= 0 && v.SigmaWtPct >= 0) {
-				t.Fatalf("accepted %+v", v)
-			}
-			sum += v.WtPct
-		}
-		if sum > 100.5 {
-			t.Fatalf("accepted a sum of %v wt%%", sum)
-		}
-	})
-}

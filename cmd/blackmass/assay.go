@@ -34,7 +34,7 @@ type fitOptions struct {
 
 func (f *fitOptions) bind(cmd *cobra.Command) {
 	cmd.Flags().StringVar(&f.candidates, "candidates", "", "comma-separated chemistries to fit (default: the whole catalogue; for reconcile, the lot's chemistries)")
-	cmd.Flags().IntVar(&f.bootstrap, "bootstrap", 500, "bootstrap draws of the assay for the mix ranges")
+	intVar(cmd.Flags(), &f.bootstrap, "bootstrap", 500, 10, 20000, "enough for stable ranges; more only costs time", "bootstrap draws of the assay for the mix ranges")
 }
 
 func (f *fitOptions) fit(cat *cathode.Catalogue, a *feed.Assay, seed uint64) (*feed.MixFit, error) {
@@ -58,6 +58,12 @@ func (f *fitOptions) fit(cat *cathode.Catalogue, a *feed.Assay, seed uint64) (*f
 	return feed.InferMix(a, cands, f.bootstrap, seed)
 }
 
+// The black mass a quote accepts: a 1 g bench sample to a 100,000 t campaign.
+const (
+	minQuoteKg = 1e-3
+	maxQuoteKg = 1e8
+)
+
 func newQuoteCmd() *cobra.Command {
 	o := &estimateOptions{}
 	var mass, form string
@@ -71,7 +77,10 @@ func newQuoteCmd() *cobra.Command {
 		RunE: func(cmd *cobra.Command, args []string) error {
 			kg, err := intake.ParseMassKg(mass)
 			if err != nil {
-				return fmt.Errorf("--mass %q: %w", mass, err)
+				return fmt.Errorf("--mass %q: %w", intake.Printable(mass, 40), err)
+			}
+			if kg < minQuoteKg || kg > maxQuoteKg {
+				return fmt.Errorf("--mass %q: %.4g kg is outside %g g to %g t (a bench sample to a large lot)", intake.Printable(mass, 40), kg, minQuoteKg*1000, maxQuoteKg/1000)
 			}
 			tm, err := feed.ParseTMForm(form)
 			if err != nil {
@@ -163,7 +172,7 @@ func newReconcileCmd() *cobra.Command {
 		},
 	}
 	o.bind(cmd)
-	cmd.Flags().Float64Var(&threshold, "flag-sigma", 2, "flag elements whose difference exceeds this many combined standard uncertainties")
+	numberVar(cmd.Flags(), &threshold, "flag-sigma", 2, 0.1, 10, "a number of standard uncertainties", "flag elements whose difference exceeds this many combined standard uncertainties")
 	fit.bind(cmd)
 	return cmd
 }

@@ -50,7 +50,7 @@ func (o *estimateOptions) bind(cmd *cobra.Command) {
 	o.cat.bind(cmd)
 	fl := cmd.Flags()
 	fl.Uint64Var(&o.seed, "seed", 1, "Monte Carlo seed (same seed and input give the same result)")
-	fl.IntVar(&o.samples, "samples", 4000, "Monte Carlo samples")
+	intVar(fl, &o.samples, "samples", 4000, 10, 200_000, "from 10 samples, for any percentiles at all, to 200,000, beyond which memory grows for no better percentiles", "Monte Carlo samples")
 	fl.BoolVar(&o.asJSON, "json", false, "write the full report as JSON")
 	fl.BoolVar(&o.noLines, "no-lines", false, "leave per-line detail out (for very large manifests)")
 	fl.StringVar(&o.unknown, "unknown", "refuse", "unrecognised chemistry labels: refuse, or prior (treat as unknown, prior mix)")
@@ -196,6 +196,9 @@ func buildEstimate(o *estimateOptions, name string, in io.Reader) (*feed.Report,
 
 // emit writes the workbook (if asked) and then the report as JSON or text.
 func emit(w io.Writer, o *estimateOptions, rep *feed.Report) error {
+	if err := rep.CheckFinite(); err != nil {
+		return err
+	}
 	if o.xlsxPath != "" {
 		if err := writeWorkbook(o.xlsxPath, rep, o.force); err != nil {
 			return err

@@ -32,17 +32,17 @@ func (l *leachFlags) bind(cmd *cobra.Command) {
 	l.flags = fl
 	fl.StringVar(&l.planPath, "plan", "", "leach plan file: lines \"key = value\" with the leach flag names (flags on the command line win)")
 	fl.StringVar(&l.route, "route", d.Route.String(), "leach route: sulfuric-peroxide, hydrochloric or sulfuric-selective")
-	fl.Float64Var(&l.opt.AcidWtPct, "acid-strength", 0, "acid bought, wt% (default 98 for H2SO4, 32 for HCl)")
-	fl.Float64Var(&l.opt.H2O2WtPct, "h2o2-strength", d.H2O2WtPct, "hydrogen peroxide bought, wt%")
-	fl.Float64Var(&l.opt.AcidExcess, "acid-excess", d.AcidExcess, "acid as a factor over stoichiometry")
-	fl.Float64Var(&l.opt.FreeAcidMolPerL, "free-acid", d.FreeAcidMolPerL, "free acid to leave in the liquor, mol/L")
-	fl.Float64Var(&l.opt.ReductantExcess, "h2o2-excess", d.ReductantExcess, "peroxide as a factor over stoichiometry")
-	fl.Float64Var(&l.opt.PulpDensityGPerL, "pulp-density", d.PulpDensityGPerL, "black mass per litre of liquor, g/L")
-	fl.Float64Var(&l.opt.LiquorVolumeL, "liquor-volume", 0, "fixed liquor volume in L (instead of the pulp density)")
-	fl.Float64Var(&l.opt.RecipeAcidMolPerL, "acid-molarity", 0, "bench recipe: acid molarity of the lixiviant, mol/L (replaces --acid-excess and --free-acid)")
-	fl.Float64Var(&l.opt.RecipeH2O2VolPct, "h2o2-vol-pct", 0, "bench recipe: peroxide as vol% of the commercial solution (replaces --h2o2-excess)")
-	fl.Float64Var(&l.opt.AcidPricePerKg, "acid-price", 0, "price per kg of commercial acid (any currency)")
-	fl.Float64Var(&l.opt.H2O2PricePerKg, "h2o2-price", 0, "price per kg of commercial peroxide (same currency)")
+	numberVar(fl, &l.opt.AcidWtPct, "acid-strength", 0, 1, 100, "a mass fraction in per cent", "acid bought, wt% (default 98 for H2SO4, 32 for HCl)")
+	numberVar(fl, &l.opt.H2O2WtPct, "h2o2-strength", d.H2O2WtPct, 1, 100, "a mass fraction in per cent", "hydrogen peroxide bought, wt%")
+	numberVar(fl, &l.opt.AcidExcess, "acid-excess", d.AcidExcess, 0.1, 10, "a factor over stoichiometry", "acid as a factor over stoichiometry")
+	numberVar(fl, &l.opt.FreeAcidMolPerL, "free-acid", d.FreeAcidMolPerL, 0, 10, "above any practical leach liquor", "free acid to leave in the liquor, mol/L")
+	numberVar(fl, &l.opt.ReductantExcess, "h2o2-excess", d.ReductantExcess, 0, 10, "a factor over stoichiometry", "peroxide as a factor over stoichiometry")
+	numberVar(fl, &l.opt.PulpDensityGPerL, "pulp-density", d.PulpDensityGPerL, 1, 1000, "a slurry past 1000 g/L cannot be stirred", "black mass per litre of liquor, g/L")
+	numberVar(fl, &l.opt.LiquorVolumeL, "liquor-volume", 0, 0.001, 1e7, "from 1 mL to 10,000 m³", "fixed liquor volume in L (instead of the pulp density)")
+	numberVar(fl, &l.opt.RecipeAcidMolPerL, "acid-molarity", 0, 0.01, 18.4, "98 % sulfuric acid is 18.4 mol/L (CRC Handbook)", "bench recipe: acid molarity of the lixiviant, mol/L (replaces --acid-excess and --free-acid)")
+	numberVar(fl, &l.opt.RecipeH2O2VolPct, "h2o2-vol-pct", 0, 0.01, 100, "a volume fraction in per cent", "bench recipe: peroxide as vol% of the commercial solution (replaces --h2o2-excess)")
+	numberVar(fl, &l.opt.AcidPricePerKg, "acid-price", 0, 0, 1e6, "a price per kg", "price per kg of commercial acid (any currency)")
+	numberVar(fl, &l.opt.H2O2PricePerKg, "h2o2-price", 0, 0, 1e6, "a price per kg", "price per kg of commercial peroxide (same currency)")
 }
 
 // applyPlan sets, from the plan file, every leach flag not given on the command line.

@@ -6,6 +6,7 @@ import (
 	"encoding/hex"
 	"encoding/json"
 	"flag"
+	"fmt"
 	"os"
 	"path/filepath"
 	"regexp"
@@ -39,8 +40,32 @@ func golden(t *testing.T, name, got string) {
 		t.Fatalf("%v (run go test ./cmd/blackmass -update to create it)", err)
 	}
 	if string(want) != got {
-		t.Errorf("%s differs from the golden file (run with -update after checking the change):\n--- want\n%s\n--- got\n%s", name, want, got)
+		t.Errorf("%s differs from the golden file (run with -update after checking the change):\n%s", name, lineDiff(string(want), got))
 	}
+}
+
+// lineDiff lists the first lines that differ between want and got, not the whole files.
+func lineDiff(want, got string) string {
+	w, g := strings.Split(want, "\n"), strings.Split(got, "\n")
+	var b strings.Builder
+	shown := 0
+	for i := 0; i < max(len(w), len(g)) && shown < 20; i++ {
+		var wl, gl string
+		if i < len(w) {
+			wl = w[i]
+		}
+		if i < len(g) {
+			gl = g[i]
+		}
+		if wl != gl {
+			fmt.Fprintf(&b, "line %d:\n  - %s\n  + %s\n", i+1, wl, gl)
+			shown++
+		}
+	}
+	if len(w) != len(g) {
+		fmt.Fprintf(&b, "(%d lines, want %d)\n", len(g), len(w))
+	}
+	return b.String()
 }
 
 // The demo lot's JSON and terminal output are pinned by golden files.
@@ -237,5 +262,56 @@ func TestJSONContract(t *testing.T) {
 	r = nil
 	if err := json.Unmarshal([]byte(out), &r); err != nil || r["lines"] != nil {
 		t.Errorf("--no-lines still writes lines (%v)", err)
+	}
+}
+
+// Exit codes: 0 success, 1 bad input data, 2 a command line that cannot be run.
+func TestExitCodes(t *testing.T) {
+	bad := filepath.Join("..", "..", "testdata", "bad", "unknown-chemistry.csv")
+	for _, c := range []struct {
+		name string
+		args []string
+		want int
+	}{
+		{"demo", []string{"demo", "--samples", "50"}, 0},
+		{"unknown flag", []string{"--nope"}, 2},
+		{"unknown command", []string{"nosuch"}, 2},
+		{"missing argument", []string{"estimate"}, 2},
+		{"flag out of range", []string{"demo", "--pulp-density", "0"}, 2},
+		{"non-finite flag", []string{"demo", "--liquor-volume", "NaN"}, 2},
+		{"bootstrap bound", []string{"infer", "x.csv", "--bootstrap", "10000000"}, 2},
+		{"decimal comma in a flag", []string{"demo", "--samples", "50", "--pulp-density", "150,5"}, 0},
+		{"bad input data", []string{"estimate", bad}, 1},
+		{"quote mass out of range", []string{"quote", "x.csv", "--mass", "1e300 t"}, 1},
+	} {
+		t.Run(c.name, func(t *testing.T) {
+			code, _, errs := run(t, "", c.args...)
+			if code != c.want {
+				t.Errorf("exit %d, want %d (%s)", code, c.want, errs)
+			}
+		})
+	}
+}
+
+// A manifest written the way a bench writes it (Volts, Config, Qty, weight in kg in the header)
+// gives the lot its cells and its black mass, and the JSON lists each label's resolution.
+func TestBenchManifest(t *testing.T) {
+	code, out, errs := run(t, "", "estimate", "--json", "--samples", "200", filepath.Join("..", "..", "testdata", "intake", "volts-config.csv"))
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	var rep struct {
+		Lot    struct{ Cells int }
+		Labels []struct {
+			Label, ResolvedAs, Kind string
+			Lines                   int
+			EnergyShare             float64
+		}
+	}
+	if err := json.Unmarshal([]byte(out), &rep); err != nil {
+		t.Fatal(err)
+	}
+	if rep.Lot.Cells != 12*40+8*65+4*32 || len(rep.Labels) != 3 || rep.Labels[0].Kind != "catalogued" {
+		t.Errorf("cells %d labels %+v", rep.Lot.Cells, rep.Labels)
 	}
 }

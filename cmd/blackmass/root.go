@@ -1,9 +1,11 @@
 package main
 
 import (
+	"errors"
 	"fmt"
 	"io"
 	"os"
+	"strings"
 
 	"github.com/spf13/cobra"
 
@@ -13,8 +15,8 @@ import (
 // version is set at build time with -ldflags "-X main.version=...".
 var version = "dev"
 
-// Main runs the command line and returns the process exit code: 0 on success, 1 on any error
-// (printed once to stderr), 2 for a usage error.
+// Main runs the command line and returns the process exit code: 0 on success, 1 for bad input
+// data or a failed run (printed once to stderr), 2 for a usage error.
 func Main(args []string, in io.Reader, out, errOut io.Writer) int {
 	root := newRootCmd()
 	root.SetArgs(args)
@@ -23,9 +25,43 @@ func Main(args []string, in io.Reader, out, errOut io.Writer) int {
 	root.SetErr(errOut)
 	if err := root.Execute(); err != nil {
 		fmt.Fprintln(errOut, "blackmass:", err)
-		return 1
+		var ue usageError
+		if errors.As(err, &ue) || strings.HasPrefix(err.Error(), "unknown command") {
+			fmt.Fprintln(errOut, "run 'blackmass help' for usage")
+			return exitUsage
+		}
+		return exitError
 	}
-	return 0
+	return exitOK
+}
+
+// Exit codes: success, bad input or a failed run, and a command line that cannot be run.
+const (
+	exitOK    = 0
+	exitError = 1
+	exitUsage = 2
+)
+
+// usageError marks a mistake in the command line (unknown flag, bad flag value, wrong number of
+// arguments) rather than in the input data.
+type usageError struct{ error }
+
+func (u usageError) Unwrap() error { return u.error }
+
+// markUsageErrors makes flag and argument errors of every command usage errors.
+func markUsageErrors(c *cobra.Command) {
+	c.SetFlagErrorFunc(func(_ *cobra.Command, err error) error { return usageError{err} })
+	if args := c.Args; args != nil {
+		c.Args = func(cmd *cobra.Command, a []string) error {
+			if err := args(cmd, a); err != nil {
+				return usageError{err}
+			}
+			return nil
+		}
+	}
+	for _, sub := range c.Commands() {
+		markUsageErrors(sub)
+	}
 }
 
 func newRootCmd() *cobra.Command {
@@ -44,6 +80,7 @@ toxic gases (H2, Cl2, HF) are hazards: follow local codes, safety data sheets an
 	}
 	root.SetVersionTemplate("{{.Name}} {{.Version}}\n")
 	root.AddCommand(newChemCmd(), newEstimateCmd(), newDemoCmd(), newQuoteCmd(), newReconcileCmd(), newInferCmd())
+	markUsageErrors(root)
 	return root
 }
 

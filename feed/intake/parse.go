@@ -292,8 +292,7 @@ func (p *lineParser) chemistry(l *feed.Line, rec []string, line int) error {
 		case err != nil && !p.opt.UnknownAsPrior:
 			return p.fail(line, ColChemistry, l.ChemistryLabel, err.Error()+" (or run with --unknown prior to treat it as unknown)")
 		case err != nil:
-			c = p.opt.Catalogue.Unknown(priorKey)
-			c.Notes = append([]string{fmt.Sprintf("label %q not recognised: treated as unknown", Printable(l.ChemistryLabel, 60))}, c.Notes...)
+			c = p.opt.Catalogue.Unknown(priorKey) // the report lists the label with its lines and energy
 			r.unresolved = true
 		case c.Unknown:
 			c = p.opt.Catalogue.Unknown(priorKey)

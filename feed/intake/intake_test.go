@@ -1,0 +1,462 @@
+package intake_test
+
+import (
+	"bytes"
+	"errors"
+	"fmt"
+	"math"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"github.com/xuri/excelize/v2"
+
+	"blackmass/cathode"
+	"blackmass/feed"
+	"blackmass/feed/intake"
+)
+
+func catalogue(t testing.TB) *cathode.Catalogue {
+	t.Helper()
+	cat, err := cathode.DefaultCatalogue()
+	if err != nil {
+		t.Fatal(err)
+	}
+	return cat
+}
+
+// readFile reads a manifest from testdata/intake into lines.
+func readFile(t *testing.T, name string, opt intake.Options) ([]feed.Line, intake.Info, error) {
+	t.Helper()
+	b, err := os.ReadFile(filepath.Join("..", "..", "testdata", "intake", name))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if opt.Catalogue == nil {
+		opt.Catalogue = catalogue(t)
+	}
+	var lines []feed.Line
+	info, err := intake.ReadCSV(bytes.NewReader(b), name, opt, func(l feed.Line) error {
+		lines = append(lines, l)
+		return nil
+	})
+	return lines, info, err
+}
+
+// estimateLines runs the estimate over lines.
+func estimateLines(t *testing.T, lines []feed.Line, samples int) *feed.Report {
+	t.Helper()
+	m, err := feed.DefaultModel()
+	if err != nil {
+		t.Fatal(err)
+	}
+	lot := feed.NewLot(m, true)
+	for _, l := range lines {
+		if err := lot.Add(l); err != nil {
+			t.Fatal(err)
+		}
+	}
+	r, _, err := lot.Estimate(feed.EstimateOptions{Seed: 1, Samples: samples})
+	if err != nil {
+		t.Fatal(err)
+	}
+	return r
+}
+
+// Columns headed Volts and Config (and Item, Type, Form, Qty, "Weight kg", "Capacity (Ah)")
+// are read, not dropped: the packs' energy is Ah × V and their cells come from the S-P tag.
+func TestHeaderSynonymsAreRead(t *testing.T) {
+	lines, _, err := readFile(t, "volts-config.csv", intake.Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	want := []struct {
+		wh    float64
+		cells int
+		kg    float64
+	}{{14 * 36, 40, 2.9}, {17.5 * 48, 65, 4.1}, {20 * 25.6, 32, 5.2}}
+	if len(lines) != len(want) {
+		t.Fatalf("%d lines, want %d", len(lines), len(want))
+	}
+	for i, w := range want {
+		l := lines[i]
+		if math.Abs(l.EnergyWh-w.wh) > 1e-9 || l.CellsPerItem != w.cells || math.Abs(l.MassKg-w.kg) > 1e-12 {
+			t.Errorf("line %d: %g Wh, %d cells, %g kg; want %g Wh, %d cells, %g kg", l.Num, l.EnergyWh, l.CellsPerItem, l.MassKg, w.wh, w.cells, w.kg)
+		}
+	}
+	// Nameplate 24 × 504 Wh... the lot is about 15 kWh, so its black mass is tens of kg, not a
+	// few: a nameplate pack at 150–250 Wh/kg holds roughly 35–45 % of its mass as black mass
+	// (common practice).
+	r := estimateLines(t, lines, 500)
+	if r.Lot.Cells != 12*40+8*65+4*32 || r.BlackMassKg.P50 < 25 || r.BlackMassKg.P50 > 60 {
+		t.Errorf("cells %d, black mass P50 %.1f kg", r.Lot.Cells, r.BlackMassKg.P50)
+	}
+}
+
+func TestHeaderRecognition(t *testing.T) {
+	cat := catalogue(t)
+	for _, c := range []struct {
+		name, header, row string
+		wantErr           string
+		check             func(feed.Line) bool
+	}{
+		{"volts and config", "chemistry,format,capacity,Volts,Config,count", "NMC532,pack,10 Ah,36,10s3p,1", "", func(l feed.Line) bool { return l.EnergyWh == 360 && l.CellsPerItem == 30 }},
+		{"V and S-P", "Chemistry,Format,Ah,V,S-P,Pcs", "NMC532,pack,10,36,10s3p,2", "", func(l feed.Line) bool { return l.EnergyWh == 360 && l.Count == 2 }},
+		{"capacity unit in brackets", "chemistry,format,Capacity (Ah),count", "LFP,prismatic,5,1", "", func(l feed.Line) bool { return l.ChargeAh == 5 }},
+		{"a cell's unit wins", "chemistry,format,Capacity (Ah),count", "LFP,prismatic,16 Wh,1", "", func(l feed.Line) bool { return l.EnergyWh == 16 }},
+		{"mass unit in square brackets", "chemistry,format,capacity,count,Mass [lb]", "LFP,pack,500 Wh,1,10", "", func(l feed.Line) bool { return math.Abs(l.MassKg-4.5359237) < 1e-12 }},
+		{"weight kg each", "chemistry,format,capacity,qty,kg each", "LFP,pack,500 Wh,1,4", "", func(l feed.Line) bool { return l.MassKg == 4 }},
+		{"total weight", "chemistry,format,capacity,qty,Total weight (kg)", "LFP,pack,500 Wh,4,20", "", func(l feed.Line) bool { return l.MassKg == 5 }},
+		{"unknown column", "chemistry,format,capacity,count,Colour", "LFP,pack,500 Wh,1,grey", `unrecognised column(s) "Colour"`, nil},
+		{"near miss suggests", "chemistry,format,capacity,cuont", "LFP,pack,500 Wh,1", "did you mean count", nil},
+		{"two columns for one", "chemistry,format,capacity,count,qty", "LFP,pack,500 Wh,1,1", "both read as count", nil},
+		{"value under no header", "chemistry,format,capacity,count,", "LFP,pack,500 Wh,1,7", "no header", nil},
+		{"value beyond the header", "chemistry,format,capacity,count", "LFP,pack,500 Wh,1,7", "beyond the header", nil},
+		{"wrong unit kind in header", "chemistry,format,Capacity (kg),count", "LFP,pack,5,1", "not a unit of capacity", nil},
+		{"no capacity and no mass", "chemistry,format,count", "LFP,pack,1", "missing required column(s) capacity", nil},
+	} {
+		t.Run(c.name, func(t *testing.T) {
+			var got []feed.Line
+			_, err := intake.ReadCSV(strings.NewReader(c.header+"\n"+c.row+"\n"), "h.csv", intake.Options{Catalogue: cat}, func(l feed.Line) error {
+				got = append(got, l)
+				return nil
+			})
+			if c.wantErr != "" {
+				if err == nil || !strings.Contains(err.Error(), c.wantErr) {
+					t.Fatalf("error %v, want one containing %q", err, c.wantErr)
+				}
+				var ie *intake.Error
+				if !errors.As(err, &ie) || ie.File != "h.csv" {
+					t.Errorf("error %v does not name the file", err)
+				}
+				return
+			}
+			if err != nil {
+				t.Fatal(err)
+			}
+			if len(got) != 1 || !c.check(got[0]) {
+				t.Errorf("read %+v", got)
+			}
+		})
+	}
+}
+
+// A column the user names with IgnoreColumns is left out, and said to be.
+func TestIgnoreColumn(t *testing.T) {
+	if _, _, err := readFile(t, "unknown-column.csv", intake.Options{}); err == nil || !strings.Contains(err.Error(), "--ignore-column") {
+		t.Fatalf("error %v should name the flag", err)
+	}
+	lines, info, err := readFile(t, "unknown-column.csv", intake.Options{IgnoreColumns: []string{"colour"}})
+	if err != nil || len(lines) != 1 || len(info.IgnoredColumns) != 1 || info.IgnoredColumns[0] != "Colour" {
+		t.Fatalf("lines %d, info %+v, err %v", len(lines), info, err)
+	}
+}
+
+// Title and note rows above the header are skipped.
+func TestTitleRowsAboveHeader(t *testing.T) {
+	lines, info, err := readFile(t, "title-row.csv", intake.Options{})
+	if err != nil || len(lines) != 1 || info.HeaderLine != 3 || lines[0].Num != 4 {
+		t.Fatalf("lines %+v info %+v err %v", lines, info, err)
+	}
+}
+
+// Units benches write: MWh, Whr, kWh with a decimal comma, t, oz, lb; a total mass per line.
+func TestUnits(t *testing.T) {
+	lines, _, err := readFile(t, "units.csv", intake.Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	// 1 oz = 28.349523125 g and 1 lb = 0.45359237 kg exactly (NIST Handbook 44, Appendix C).
+	want := []struct{ wh, kg float64 }{{5800, 45}, {11.4, 64 * 0.028349523125 / 40}, {1500, 30 * 0.45359237 / 3}}
+	for i, w := range want {
+		if math.Abs(lines[i].EnergyWh-w.wh) > 1e-9 || math.Abs(lines[i].MassKg-w.kg) > 1e-12 {
+			t.Errorf("line %d: %g Wh %g kg, want %g Wh %g kg", lines[i].Num, lines[i].EnergyWh, lines[i].MassKg, w.wh, w.kg)
+		}
+	}
+}
+
+func TestParseNumber(t *testing.T) {
+	for _, c := range []struct {
+		in           string
+		decimalComma bool
+		want         float64
+		ok           bool
+	}{
+		{"3.5", false, 3.5, true}, {"3,5", false, 3.5, true}, {"1,234.5", false, 1234.5, true},
+		{"1,234", false, 0, false}, {"1,234", true, 1.234, true}, {"12,345,678", false, 12345678, true},
+		{"1e3", false, 1000, true}, {"NaN", false, 0, false}, {"Inf", false, 0, false}, {"0x10", false, 0, false},
+		{"1e400", false, 0, false}, {"", false, 0, false}, {"1.2.3", false, 0, false},
+	} {
+		t.Run(c.in, func(t *testing.T) {
+			v, err := intake.ParseNumber(c.in, c.decimalComma)
+			if (err == nil) != c.ok || (c.ok && v != c.want) {
+				t.Errorf("ParseNumber(%q, %v) = %v, %v", c.in, c.decimalComma, v, err)
+			}
+		})
+	}
+	for _, u := range []string{"1.2 t", "3 oz", "5 furlongs"} {
+		_, err := intake.ParseMassKg(u)
+		if strings.Contains(u, "furlongs") && (err == nil || !strings.Contains(err.Error(), "t (tonne), lb or oz")) {
+			t.Errorf("ParseMassKg(%q) error %v should list the accepted units", u, err)
+		}
+	}
+}
+
+// Lines known only by weight need no capacity; their energy comes from the chemistry's band.
+func TestWeightOnlyLines(t *testing.T) {
+	lines, _, err := readFile(t, "weight-only.csv", intake.Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !lines[0].MassOnly() || !lines[1].MassOnly() || lines[2].MassOnly() {
+		t.Fatalf("mass-only flags wrong: %+v", lines)
+	}
+	if lines[0].Application != "laptop" || !strings.HasPrefix(lines[0].Chemistry.Key, "unknown (laptop)") {
+		t.Errorf("line 1 resolved as %s for %q", lines[0].Chemistry.Key, lines[0].Application)
+	}
+	r := estimateLines(t, lines, 1000)
+	if r.Lot.LinesByMassOnly != 2 {
+		t.Errorf("lines by mass only %d", r.Lot.LinesByMassOnly)
+	}
+	// 100 × 0.32 kg + 20 × 0.65 kg = 45 kg of packs; black mass is roughly a third of a pack's
+	// mass (common practice), and the band is wide.
+	if r.BlackMassKg.P50 < 8 || r.BlackMassKg.P50 > 30 || r.BlackMassKg.P90/r.BlackMassKg.P10 < 1.15 {
+		t.Errorf("black mass %+v", r.BlackMassKg)
+	}
+}
+
+// Every label is listed once, with its lines, kind and share of the energy; every unrecognised
+// label is named, not only the first.
+func TestLabelResolutions(t *testing.T) {
+	if _, _, err := readFile(t, "labels.csv", intake.Options{}); err == nil || !strings.Contains(err.Error(), "ZZ-99") {
+		t.Fatalf("unknown label refused? %v", err)
+	}
+	lines, _, err := readFile(t, "labels.csv", intake.Options{UnknownAsPrior: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	r := estimateLines(t, lines, 200)
+	want := map[string]struct {
+		kind  string
+		lines int
+	}{
+		"NMC": {"family", 1}, "NCM955": {"formula", 1}, "NMC 523": {"catalogued", 1}, "LMO/NMC": {"blend", 1},
+		"LCO+NMC 50/50": {"blend", 1}, "LMO + NMC532 (70:30)": {"blend", 1}, "Lithium Ion Polymer": {"family", 1},
+		"ZZ-99": {"unknown", 2}, "QX": {"unknown", 1},
+	}
+	sum := 0.0
+	unrec := 0
+	for _, lb := range r.Labels {
+		w, ok := want[lb.Label]
+		if !ok || w.kind != lb.Kind || w.lines != lb.Lines {
+			t.Errorf("label %+v, want %+v", lb, w)
+		}
+		sum += lb.EnergyShare
+		if lb.Unrecognised {
+			unrec++
+		}
+	}
+	if len(r.Labels) != len(want) || math.Abs(sum-1) > 1e-5 || unrec != 2 {
+		t.Errorf("%d labels, shares sum %v, %d unrecognised", len(r.Labels), sum, unrec)
+	}
+	named := 0
+	for _, w := range r.Warnings {
+		if strings.Contains(w, `"ZZ-99"`) || strings.Contains(w, `"QX"`) {
+			named++
+		}
+	}
+	if named != 2 {
+		t.Errorf("warnings name %d of 2 unrecognised labels: %q", named, r.Warnings)
+	}
+}
+
+// Co wt% of a line's black mass, P10 and P90.
+func coBand(t *testing.T, manifest string) (p10, p90 float64) {
+	t.Helper()
+	var lines []feed.Line
+	if _, err := intake.ReadCSV(strings.NewReader(manifest), "u.csv", intake.Options{Catalogue: catalogue(t)}, func(l feed.Line) error {
+		lines = append(lines, l)
+		return nil
+	}); err != nil {
+		t.Fatal(err)
+	}
+	co := estimateLines(t, lines, 2000).Elements["Co"].WtPct
+	return co.P10, co.P90
+}
+
+// Unknown chemistry is a distribution: the band of 100 unlabelled packs must hold both an
+// LFP-like outcome (Co near 0) and an NMC-like one, and does not shrink to the prior's mean as
+// lines are added. A stated chemistry stays narrow.
+func TestUnknownChemistryBand(t *testing.T) {
+	lfpLo, lfpHi := coBand(t, "chemistry,format,capacity,count\nLFP,pack,100 Wh,100\n")
+	nmcLo, nmcHi := coBand(t, "chemistry,format,capacity,count\nNMC532,pack,100 Wh,100\n")
+	lo, hi := coBand(t, "chemistry,format,capacity,count\nLi-ion,pack,100 Wh,100\n")
+	t.Logf("Co wt%% P10–P90: LFP %.2f–%.2f, NMC532 %.2f–%.2f, unknown pack %.2f–%.2f", lfpLo, lfpHi, nmcLo, nmcHi, lo, hi)
+	if !(lo < (lfpHi+nmcLo)/2 && hi > nmcLo) {
+		t.Errorf("unknown band %.2f–%.2f does not reach from LFP-like (%.2f) to NMC-like (%.2f)", lo, hi, lfpHi, nmcLo)
+	}
+	if nmcHi-nmcLo > 1.5 {
+		t.Errorf("a stated NMC532 line's band %.2f–%.2f widened", nmcLo, nmcHi)
+	}
+	// Many lines of unknown packs: the systematic part stays.
+	var b strings.Builder
+	b.WriteString("chemistry,format,capacity,count\n")
+	for range 200 {
+		b.WriteString("Li-ion,pack,100 Wh,100\n")
+	}
+	lo2, hi2 := coBand(t, b.String())
+	if hi2-lo2 < 0.5*(hi-lo) {
+		t.Errorf("200 unknown lines narrowed the band to %.2f–%.2f from %.2f–%.2f", lo2, hi2, lo, hi)
+	}
+	// Laptop packs are rarely LFP: their band sits well above an LFP lot's.
+	llo, _ := coBand(t, "chemistry,format,capacity,count,application\nLi-ion,pack,60 Wh,100,laptop\n")
+	if llo < 3*lfpHi {
+		t.Errorf("laptop unknown P10 Co %.2f wt%% is LFP-like", llo)
+	}
+}
+
+// A workbook typed by hand: a title row above the header, numbers stored as numbers under
+// "Capacity (Ah)" and "Mass (kg)", a hidden first sheet; the sheet read is said.
+func TestReadXLSX(t *testing.T) {
+	f := excelize.NewFile()
+	_ = f.SetSheetName("Sheet1", "Old")
+	_ = f.SetSheetRow("Old", "A1", &[]any{"chemistry", "format", "capacity", "count"})
+	_ = f.SetSheetRow("Old", "A2", &[]any{"LCO", "pouch", "1 Wh", 1})
+	idx, _ := f.NewSheet("Intake")
+	f.SetActiveSheet(idx)
+	if err := f.SetSheetVisible("Old", false); err != nil {
+		t.Fatal(err)
+	}
+	_ = f.SetSheetRow("Intake", "A1", &[]any{"Harrow Lane intake, 2026-11-28"})
+	_ = f.SetSheetRow("Intake", "A3", &[]any{"ID", "Chemistry", "Format", "Capacity (Ah)", "Volts", "Qty", "Mass (kg)"})
+	_ = f.SetSheetRow("Intake", "A4", &[]any{"x1", "NMC811", "pouch", 5, 3.65, 10, 0.65})
+	_ = f.SetSheetRow("Intake", "A5", &[]any{"#7", "LFP", "prismatic", 280, nil, 1234, 5.4})
+	_ = f.SetSheetRow("Intake", "A6", &[]any{"x3", "LFP", "prismatic", 280, nil, 2.6, 5.4})
+	style, _ := f.NewStyle(&excelize.Style{NumFmt: 1}) // "0": 2.6 displays as 3
+	_ = f.SetCellStyle("Intake", "F6", "F6", style)
+	comma, _ := f.NewStyle(&excelize.Style{NumFmt: 3}) // "#,##0": 1234 displays as 1,234
+	_ = f.SetCellStyle("Intake", "F5", "F5", comma)
+	var buf bytes.Buffer
+	if err := f.Write(&buf); err != nil {
+		t.Fatal(err)
+	}
+	var got []feed.Line
+	info, err := intake.ReadXLSX(bytes.NewReader(buf.Bytes()), "hand.xlsx", intake.Options{Catalogue: catalogue(t)}, func(l feed.Line) error {
+		got = append(got, l)
+		return nil
+	})
+	// The stored 2.6 is not a whole count, whatever the format shows.
+	if err == nil || !strings.Contains(err.Error(), `hand.xlsx[Intake]:6: count "2.6"`) {
+		t.Fatalf("error %v, want the stored 2.6 refused as a count (info %+v, %d lines)", err, info, len(got))
+	}
+	if info.Sheet != "Intake" || len(got) != 2 || got[0].EnergyWh != 5*3.65 || got[0].MassKg != 0.65 || got[1].Count != 1234 || got[1].ID != "#7" {
+		t.Fatalf("info %+v, lines %+v", info, got)
+	}
+	if _, err := intake.ReadXLSX(strings.NewReader("not a zip"), "x.xlsx", intake.Options{Catalogue: catalogue(t)}, func(feed.Line) error { return nil }); err == nil {
+		t.Error("garbage accepted")
+	}
+	if _, err := intake.ReadXLSX(bytes.NewReader(buf.Bytes()), "hand.xlsx", intake.Options{Catalogue: catalogue(t), Sheet: "Nope"}, func(feed.Line) error { return nil }); err == nil || !strings.Contains(err.Error(), `no sheet "Nope"`) {
+		t.Errorf("missing sheet: %v", err)
+	}
+}
+
+// The manifest parser accepts only lines whose numbers are finite and inside their physical
+// ranges, whatever the input.
+func FuzzReadManifest(f *testing.F) {
+	f.Add("id,chemistry,format,capacity,cells_per_pack,count,mass\na,LCO,pouch,3000 mAh,,100,45 g\nb,NMC622,module,5 kWh,12s2p,3,30 kg\n")
+	f.Add("chem;format;capacity;count\nLFP;pack;1,5 kWh;2\n")
+	f.Add("chemistry,format,capacity,count,cells_per_pack\nLCO,pack,3 Ah,1,13s4p\n")
+	f.Add("Volts,Config,Type,Form,Capacity (Ah),Qty,Weight kg\n36,10s4p,NMC,pack,14,2,2.9\n")
+	f.Add("chemistry,format,capacity,count\nLCO,pouch,1e-300 Wh,1\n")
+	cat, _ := cathode.DefaultCatalogue()
+	f.Fuzz(func(t *testing.T, s string) {
+		_, _ = intake.ReadCSV(strings.NewReader(s), "fuzz.csv", intake.Options{Catalogue: cat, UnknownAsPrior: true}, func(l feed.Line) error {
+			finite := func(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) && v >= 0 }
+			if l.Count < 1 || !finite(l.EnergyWh) || !finite(l.ChargeAh) || !finite(l.MassKg) || l.EnergyWh+l.ChargeAh+l.MassKg <= 0 ||
+				(l.EnergyWh > 0 && l.EnergyWh < 0.01) || (l.MassKg > 0 && l.MassKg < 1e-4) || l.Chemistry == nil {
+				t.Fatalf("accepted a bad line: %+v", l)
+			}
+			return nil
+		})
+	})
+}
+
+// Hostile or careless input is refused quickly with an error naming the file, and the line
+// where there is one; nothing absurd gets through to the model.
+func TestHostileCSV(t *testing.T) {
+	cat := catalogue(t)
+	hdr := "chemistry,format,capacity,count\n"
+	for _, c := range []struct{ name, in, want string }{
+		{"tiny capacity (NaN downstream)", hdr + "LCO,pouch,1e-300 Wh,1\n", "below any lithium-ion cell"},
+		{"tiny charge", hdr + "LCO,pouch,1e-300 Ah,1\n", "below any lithium-ion cell"},
+		{"huge capacity", hdr + "LCO,pouch,1e300 Wh,1\n", "absurd"},
+		{"NaN capacity", hdr + "LCO,pouch,NaN Wh,1\n", "no number"},
+		{"hex count", hdr + "LCO,pouch,1 Wh,0x10\n", "whole number"},
+		{"fractional count", hdr + "LCO,pouch,1 Wh,2.5\n", "whole number"},
+		{"long line", hdr + "LCO,pouch,1 Wh," + strings.Repeat("9", intake.MaxLineBytes+10) + "\n", "longer than"},
+		{"many commas", hdr + strings.Repeat(",", 60000) + "\n", "columns"},
+		{"long label", hdr + strings.Repeat("N", 300) + ",pouch,1 Wh,1\n", "longer than"},
+		{"carriage returns only", "chemistry,format,capacity,count\rLCO,pouch,1 Wh,1\rLCO,pouch,1 Wh,1\r", "carriage return"},
+		{"control characters echoed escaped", hdr + "\x1b[2J,pouch,1 Wh,1\n", `\x1b`},
+	} {
+		t.Run(c.name, func(t *testing.T) {
+			_, err := intake.ReadCSV(strings.NewReader(c.in), "h.csv", intake.Options{Catalogue: cat}, func(feed.Line) error { return nil })
+			if err == nil || !strings.Contains(err.Error(), c.want) || !strings.Contains(err.Error(), "h.csv") {
+				t.Fatalf("error %v, want one naming h.csv and containing %q", err, c.want)
+			}
+			if strings.ContainsRune(err.Error(), 0x1b) || len(err.Error()) > 2000 {
+				t.Errorf("error echoes raw or long input: %d bytes", len(err.Error()))
+			}
+		})
+	}
+}
+
+// Distinct formula labels cost time in proportion to their number (compare ns/label across
+// the sizes).
+func BenchmarkDistinctFormulaLabels(b *testing.B) {
+	cat := catalogue(b)
+	m, _ := feed.DefaultModel()
+	for _, n := range []int{250, 1000} {
+		var sb strings.Builder
+		sb.WriteString("chemistry,format,capacity,count\n")
+		for i := range n {
+			fmt.Fprintf(&sb, "LiNi0.%04dMn0.1Co0.2O2,pouch,10 Wh,1\n", 7000+i)
+		}
+		in := sb.String()
+		b.Run(fmt.Sprint(n), func(b *testing.B) {
+			for b.Loop() {
+				lot := feed.NewLot(m, false)
+				if _, err := intake.ReadCSV(strings.NewReader(in), "d.csv", intake.Options{Catalogue: cat}, lot.Add); err != nil {
+					b.Fatal(err)
+				}
+				if _, _, err := lot.Estimate(feed.EstimateOptions{Seed: 1, Samples: 200}); err != nil {
+					b.Fatal(err)
+				}
+			}
+			b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/float64(n), "ns/label")
+		})
+	}
+}
+
+// The assay reader accepts only finite, non-negative values in range.
+func FuzzReadAssay(f *testing.F) {
+	f.Add("element,value,unit,uncertainty\nCo,20,wt%,0.5\nLi,35,g/kg,\n")
+	f.Add("element,value,unit\nNi,1e5,ppm\n")
+	f.Fuzz(func(t *testing.T, s string) {
+		a, err := intake.ReadAssay(strings.NewReader(s), "fuzz.csv")
+		if err != nil {
+			return
+		}
+		sum := 0.0
+		for _, v := range a.Values {
+			if !(v.WtPct >= 0 && v.SigmaWtPct >= 0) {
+				t.Fatalf("accepted %+v", v)
+			}
+			sum += v.WtPct
+		}
+		if sum > 100.5 {
+			t.Fatalf("accepted a sum of %v wt%%", sum)
+		}
+	})
+}
