@@ -98,14 +98,14 @@ func (l *Lot) Estimate(opt EstimateOptions) (*Report, *Samples, error) {
 		ChargeOnlyAh: round(l.chargeAh, 6), LinesWithMass: l.withMass, LinesFlaggedByMass: l.flagged,
 		LinesByMassOnly: l.massOnly, MassOnlyKg: round(l.massOnlyKg, 6)}
 	r.Labels = l.Labels()
-	if l.energyWh > 0 {
-		r.Lot.UnknownShareOfKWh = round(l.unknownWh/l.energyWh, 6)
+	if l.modeWh > 0 {
+		r.Lot.UnknownShareOfKWh = round(l.unknownWh/l.modeWh, 6)
 	}
 	if l.flagged > maxLineWarnings {
 		r.Warnings = append(r.Warnings, fmt.Sprintf("… and %d more lines whose measured mass disagrees with the nameplate (see lines_flagged_by_mass)", l.flagged-maxLineWarnings))
 	}
 	if r.Lot.UnknownShareOfKWh > 0 {
-		r.Warnings = append(r.Warnings, fmt.Sprintf("%.1f %% of the nameplate energy is of unknown chemistry: its metals come from the prior mix and carry the widest uncertainty", 100*r.Lot.UnknownShareOfKWh))
+		r.Warnings = append(r.Warnings, fmt.Sprintf("%.1f %% of the lot's energy is of unknown chemistry: its metals come from the prior for each item and carry the widest uncertainty", 100*r.Lot.UnknownShareOfKWh))
 	}
 	if l.massOnly > 0 {
 		r.Warnings = append(r.Warnings, fmt.Sprintf("%d lines (%.4g kg) give a mass and no capacity: their energy comes from the chemistry's plausible Wh/kg band, drawn across its whole width", l.massOnly, l.massOnlyKg))
@@ -133,7 +133,7 @@ func (l *Lot) Estimate(opt EstimateOptions) (*Report, *Samples, error) {
 			keys = append(keys, c.Entry.Key)
 		}
 		r.Groups = append(r.Groups, GroupResult{Chemistry: g.chem.Key, Components: keys, Format: g.format.String(), Lines: g.lines, Items: g.items,
-			NameplateKWh: round(g.energyWh/1000, 6), ChargeOnlyAh: round(g.chargeAh, 6), CathodeKg: summarise(s.groupCAM[gi]), BlackMassKg: summarise(s.groupBM[gi])})
+			NameplateKWh: round(g.energyWh/1000, 6), ChargeOnlyAh: round(g.chargeAh, 6), MassOnlyKg: round(g.massOnlyKg, 6), CathodeKg: summarise(s.groupCAM[gi]), BlackMassKg: summarise(s.groupBM[gi])})
 	}
 	r.Parameters = l.parameters()
 	r.ElementOrder = elementOrder(l.comp.elements)

@@ -158,9 +158,6 @@ func (l *Lot) Add(ln Line) error {
 	l.cells += cells
 	l.energyWh += cnt * ln.EnergyWh
 	l.chargeAh += cnt * ln.ChargeAh
-	if ch.Unknown {
-		l.unknownWh += cnt * ln.EnergyWh
-	}
 	mx := g.modeMix
 	energyWh := ln.EnergyWh
 	switch {
@@ -173,6 +170,9 @@ func (l *Lot) Add(ln Line) error {
 		energyWh = ln.ChargeAh * mx.voltV
 	}
 	l.modeWh += cnt * energyWh
+	if ch.Unknown {
+		l.unknownWh += cnt * energyWh
+	}
 	l.countLabel(ln, cnt*energyWh)
 	var flags []string
 	var measWhKg float64

@@ -70,6 +70,7 @@ type GroupResult struct {
 	Items        int      `json:"items"`
 	NameplateKWh float64  `json:"nameplate_kWh"`
 	ChargeOnlyAh float64  `json:"charge_only_Ah,omitempty"`
+	MassOnlyKg   float64  `json:"mass_only_kg,omitempty"` // items known by weight only
 	CathodeKg    Stat     `json:"cathode_active_kg"`
 	BlackMassKg  Stat     `json:"black_mass_kg"`
 }

@@ -8,7 +8,9 @@ import (
 	"strings"
 	"text/tabwriter"
 
+	"blackmass/cathode"
 	"blackmass/feed"
+	"blackmass/feed/intake"
 )
 
 // writeReportText prints the terminal summary of a report. It formats; it computes nothing.
@@ -63,6 +65,13 @@ func writeGroupsText(w io.Writer, r *feed.Report) {
 	fmt.Fprintln(tw, "chemistry\tformat\tlines\titems\tnameplate\tblack mass P50 kg")
 	for _, g := range r.Groups {
 		plate := fmt.Sprintf("%.2f kWh", g.NameplateKWh)
+		if g.MassOnlyKg > 0 {
+			if g.NameplateKWh > 0 {
+				plate += fmt.Sprintf(" + %s kg by weight", num(g.MassOnlyKg))
+			} else {
+				plate = fmt.Sprintf("%s kg by weight", num(g.MassOnlyKg))
+			}
+		}
 		if g.ChargeOnlyAh > 0 {
 			if g.NameplateKWh > 0 {
 				plate += fmt.Sprintf(" + %.0f Ah", g.ChargeOnlyAh)
@@ -71,6 +80,32 @@ func writeGroupsText(w io.Writer, r *feed.Report) {
 			}
 		}
 		fmt.Fprintf(tw, "%s\t%s\t%d\t%d\t%s\t%s\n", g.Chemistry, g.Format, g.Lines, g.Items, plate, num(g.BlackMassKg.P50))
+	}
+	tw.Flush()
+	writeLabelsText(w, r.Labels)
+}
+
+// writeLabelsText lists the labels that were not read as one catalogued chemistry: what each
+// became, on how many lines, and its share of the energy.
+func writeLabelsText(w io.Writer, labels []feed.LabelResolution) {
+	var show []feed.LabelResolution
+	for _, lb := range labels {
+		if lb.Kind != string(cathode.KindCatalogued) || lb.Label != lb.ResolvedAs {
+			show = append(show, lb)
+		}
+	}
+	if len(show) == 0 {
+		return
+	}
+	fmt.Fprintln(w, "\nlabels as read:")
+	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
+	fmt.Fprintln(tw, "  label\tread as\tkind\tlines\tenergy share")
+	for _, lb := range show {
+		kind := lb.Kind
+		if lb.Unrecognised {
+			kind = "not recognised → unknown"
+		}
+		fmt.Fprintf(tw, "  %q\t%s\t%s\t%d\t%.1f %%\n", intake.Printable(lb.Label, 40), lb.ResolvedAs, kind, lb.Lines, 100*lb.EnergyShare)
 	}
 	tw.Flush()
 }
