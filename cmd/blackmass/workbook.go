@@ -1,50 +1,121 @@
 package main
 
 import (
+	"crypto/rand"
+	"encoding/hex"
+	"errors"
 	"fmt"
+	"io/fs"
 	"os"
+	"os/signal"
 	"path/filepath"
+	"syscall"
 
 	"blackmass/feed"
 	"blackmass/feed/sheet"
 )
 
-// checkWritable refuses to go on if path exists and force is not set, before any work is done.
+// checkWritable refuses to go on, before any work is done, if the target's directory is missing
+// or path exists in any form (a file, a symlink even dangling, a FIFO) and force is not set.
 func checkWritable(path string, force bool) error {
-	if _, err := os.Stat(path); err == nil && !force {
+	dir := filepath.Dir(path)
+	if st, err := os.Stat(dir); err != nil || !st.IsDir() {
+		return fmt.Errorf("%s: the directory %s does not exist", path, dir)
+	}
+	st, err := os.Lstat(path)
+	switch {
+	case err == nil && !force:
 		return fmt.Errorf("%s exists; pass --force to overwrite it", path)
+	case err == nil && !st.Mode().IsRegular():
+		return fmt.Errorf("%s exists and is not a regular file; not overwritten even with --force", path)
+	case err != nil && !errors.Is(err, fs.ErrNotExist):
+		return fmt.Errorf("%s: %w", path, err)
 	}
 	return nil
 }
 
-// writeWorkbook writes the intake workbook atomically: a temporary file in the same directory,
-// synced, then renamed over path. A failure leaves nothing behind.
+// writeWorkbook writes the intake workbook so that no reader ever sees half a file and no file
+// is replaced without force: a temporary file in the same directory (created with the user's
+// umask), synced, then linked to path, which fails if path appeared meanwhile (the check and the
+// write are one step), or renamed over it with force (keeping the old file's mode). The
+// temporary file is removed on failure and on SIGINT or SIGTERM.
 func writeWorkbook(path string, r *feed.Report, force bool) (err error) {
 	if err := checkWritable(path, force); err != nil {
 		return err
 	}
-	tmp, err := os.CreateTemp(filepath.Dir(path), ".blackmass-*.xlsx")
+	tmpName, tmp, err := createTemp(filepath.Dir(path))
 	if err != nil {
-		return err
+		return fmt.Errorf("%s: %w", path, err)
 	}
+	stop := removeOnSignal(tmpName)
+	defer stop()
 	defer func() {
 		if err != nil {
-			_ = os.Remove(tmp.Name())
+			_ = os.Remove(tmpName)
 		}
 	}()
 	if err = sheet.Write(tmp, r); err != nil {
 		_ = tmp.Close()
-		return err
+		return fmt.Errorf("%s: %w", path, err)
 	}
 	if err = tmp.Sync(); err != nil {
 		_ = tmp.Close()
-		return err
+		return fmt.Errorf("%s: %w", path, err)
 	}
 	if err = tmp.Close(); err != nil {
-		return err
+		return fmt.Errorf("%s: %w", path, err)
 	}
-	if err = os.Chmod(tmp.Name(), 0o644); err != nil {
-		return err
+	if force {
+		if st, serr := os.Stat(path); serr == nil {
+			_ = os.Chmod(tmpName, st.Mode().Perm())
+		}
+		if err = os.Rename(tmpName, path); err != nil {
+			return fmt.Errorf("%s: %w", path, err)
+		}
+		return nil
 	}
-	return os.Rename(tmp.Name(), path)
+	if err = os.Link(tmpName, path); err != nil {
+		if errors.Is(err, fs.ErrExist) {
+			return fmt.Errorf("%s appeared while the workbook was written; pass --force to overwrite it", path)
+		}
+		return fmt.Errorf("%s: %w", path, err)
+	}
+	_ = os.Remove(tmpName)
+	return nil
+}
+
+// createTemp creates a new file beside the target with mode 0666 less the umask (as any new
+// file of the user's), under a random name.
+func createTemp(dir string) (string, *os.File, error) {
+	var b [8]byte
+	for range 10 {
+		_, _ = rand.Read(b[:])
+		name := filepath.Join(dir, ".blackmass-"+hex.EncodeToString(b[:])+".xlsx")
+		f, err := os.OpenFile(name, os.O_WRONLY|os.O_CREATE|os.O_EXCL, 0o666)
+		if errors.Is(err, fs.ErrExist) {
+			continue
+		}
+		return name, f, err
+	}
+	return "", nil, errors.New("cannot create a temporary file")
+}
+
+// removeOnSignal removes name and exits if the process is interrupted; the returned function
+// stops watching.
+func removeOnSignal(name string) func() {
+	c := make(chan os.Signal, 1)
+	signal.Notify(c, syscall.SIGINT, syscall.SIGTERM)
+	done := make(chan struct{})
+	go func() {
+		select {
+		case <-c:
+			_ = os.Remove(name)
+			os.Exit(130)
+		case <-done:
+		}
+	}()
+	return func() {
+		signal.Stop(c)
+		close(done)
+	}
 }

@@ -126,3 +126,44 @@ func abs(x float64) float64 {
 	}
 	return x
 }
+
+// The workbook is never written over an existing path of any kind without --force, the error
+// names the target before any work, new files follow the umask, and --force keeps the mode.
+func TestWorkbookTargets(t *testing.T) {
+	dir := t.TempDir()
+	demo := []string{"demo", "--samples", "50", "--xlsx"}
+	dangling := filepath.Join(dir, "dangling.xlsx")
+	if err := os.Symlink(filepath.Join(dir, "nowhere"), dangling); err != nil {
+		t.Fatal(err)
+	}
+	if code, _, errs := run(t, "", append(demo, dangling)...); code == 0 || !strings.Contains(errs, "dangling.xlsx exists") {
+		t.Errorf("dangling symlink replaced: exit %d %s", code, errs)
+	}
+	if code, _, errs := run(t, "", append(demo, filepath.Join(dir, "no", "such", "x.xlsx"))...); code == 0 || !strings.Contains(errs, "does not exist") {
+		t.Errorf("missing directory: exit %d %s", code, errs)
+	}
+	fresh := filepath.Join(dir, "fresh.xlsx")
+	if code, _, errs := run(t, "", append(demo, fresh)...); code != 0 {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	st, err := os.Stat(fresh)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if st.Mode().Perm()&0o600 != 0o600 || st.Mode().Perm()&0o002 != 0 {
+		t.Errorf("new workbook mode %v", st.Mode().Perm())
+	}
+	if err := os.Chmod(fresh, 0o600); err != nil {
+		t.Fatal(err)
+	}
+	if code, _, errs := run(t, "", append(demo, fresh, "--force")...); code != 0 {
+		t.Fatalf("--force: exit %d: %s", code, errs)
+	}
+	if st, _ := os.Stat(fresh); st.Mode().Perm() != 0o600 {
+		t.Errorf("--force changed the mode to %v", st.Mode().Perm())
+	}
+	left, _ := filepath.Glob(filepath.Join(dir, ".blackmass-*"))
+	if len(left) > 0 {
+		t.Errorf("temporary files left: %v", left)
+	}
+}
