@@ -527,20 +527,38 @@ func mustModel() *Model {
 	return m
 }
 
-// routeNotes says what the route does to a lot that mixes phosphate and oxide cathodes.
+// mixedShareNote is the share of the cathode mass below which a second cathode family is not
+// worth a route note: under 5 % it changes neither the route nor the liquor (common practice).
+const mixedShareNote = 0.05
+
+// routeNotes says what the route does to a lot that mixes phosphate and oxide cathodes in
+// amounts that matter: judged at the median of the Monte Carlo, so an unknown item's small
+// chance of holding LFP does not raise it.
 func routeNotes(s *Samples, species []cathode.Species, route cathode.Route) []string {
-	var phosphateKg, oxideKg float64
+	phos, oxide := make([]float64, s.N), make([]float64, s.N)
 	for c, sp := range species {
 		if _, tm := sp.TransitionMetalState(); !tm || sp.Formula.Moles("Li") == 0 {
 			continue
 		}
-		kg := s.Compounds[c][0]
-		switch sp.Anion() {
-		case "phosphate":
-			phosphateKg += kg
-		case "oxide":
-			oxideKg += kg
+		for i, kg := range s.Compounds[c] {
+			switch sp.Anion() {
+			case "phosphate":
+				phos[i] += kg
+			case "oxide":
+				oxide[i] += kg
+			}
 		}
+	}
+	phosphateKg, oxideKg := summarise(phos).P50, summarise(oxide).P50
+	total := phosphateKg + oxideKg
+	if total <= 0 {
+		return nil
+	}
+	if phosphateKg < mixedShareNote*total {
+		phosphateKg = 0
+	}
+	if oxideKg < mixedShareNote*total {
+		oxideKg = 0
 	}
 	switch {
 	case route == cathode.SulfuricSelective && oxideKg > 0:
