@@ -11,7 +11,9 @@ import (
 	"github.com/spf13/pflag"
 
 	"blackmass/cathode"
+	"blackmass/data"
 	"blackmass/feed"
+	"blackmass/feed/intake"
 )
 
 // leachFlags binds the leach plan's settings; defaults are feed.DefaultLeachOptions.
@@ -55,8 +57,12 @@ func (l *leachFlags) applyPlan() error {
 		return err
 	}
 	defer f.Close()
-	sc := bufio.NewScanner(f)
-	for n := 1; sc.Scan(); n++ {
+	sc := bufio.NewScanner(data.SkipBOM(f))
+	sc.Buffer(make([]byte, 0, 4096), maxPlanLine)
+	seen := map[string]int{}
+	n := 0
+	for sc.Scan() {
+		n++
 		line := strings.TrimSpace(sc.Text())
 		if line == "" || strings.HasPrefix(line, "#") {
 			continue
@@ -64,17 +70,27 @@ func (l *leachFlags) applyPlan() error {
 		key, val, ok := strings.Cut(line, "=")
 		key, val = strings.TrimSpace(key), strings.TrimSpace(val)
 		if !ok || !slices.Contains(planKeys, key) {
-			return fmt.Errorf("%s:%d: %q: want \"key = value\" with a key among %s", l.planPath, n, line, strings.Join(planKeys, ", "))
+			return fmt.Errorf("%s:%d: %q: want \"key = value\" with a key among %s", l.planPath, n, intake.Printable(line, 60), strings.Join(planKeys, ", "))
 		}
+		if first, dup := seen[key]; dup {
+			return fmt.Errorf("%s:%d: %s given twice (first on line %d)", l.planPath, n, key, first)
+		}
+		seen[key] = n
 		if l.flags.Changed(key) {
 			continue
 		}
 		if err := l.flags.Set(key, val); err != nil {
-			return fmt.Errorf("%s:%d: %s %q: %v", l.planPath, n, key, val, err)
+			return fmt.Errorf("%s:%d: %s %q: %v", l.planPath, n, key, intake.Printable(val, 40), err)
 		}
 	}
-	return sc.Err()
+	if err := sc.Err(); err != nil {
+		return fmt.Errorf("%s:%d: %v (a plan line is at most %d bytes)", l.planPath, n+1, err, maxPlanLine)
+	}
+	return nil
 }
+
+// maxPlanLine bounds a plan file's line.
+const maxPlanLine = 4096
 
 func (l *leachFlags) options() (*feed.LeachOptions, error) {
 	if err := l.applyPlan(); err != nil {

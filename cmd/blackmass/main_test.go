@@ -315,3 +315,34 @@ func TestBenchManifest(t *testing.T) {
 		t.Errorf("cells %d labels %+v", rep.Lot.Cells, rep.Labels)
 	}
 }
+
+// Plan files: a BOM is skipped; a duplicated key, an out-of-range value and an over-long line
+// are refused naming the file and line.
+func TestPlanFileErrors(t *testing.T) {
+	dir := t.TempDir()
+	for _, c := range []struct{ name, body, want string }{
+		{"bom", "\ufeffroute = hydrochloric\n", ""},
+		{"duplicate", "pulp-density = 100\npulp-density = 150\n", "plan:2: pulp-density given twice"},
+		{"range", "acid-molarity = 1e300\n", "plan:1: acid-molarity"},
+		{"zero strength", "acid-strength = 0\n", "plan:1: acid-strength"},
+		{"nan", "free-acid = NaN\n", "plan:1: free-acid"},
+		{"long line", "# " + strings.Repeat("x", 70000) + "\n", "plan:1"},
+	} {
+		t.Run(c.name, func(t *testing.T) {
+			p := filepath.Join(dir, "plan")
+			if err := os.WriteFile(p, []byte(c.body), 0o644); err != nil {
+				t.Fatal(err)
+			}
+			code, _, errs := run(t, "", "demo", "--samples", "20", "--plan", p)
+			if c.want == "" {
+				if code != 0 {
+					t.Errorf("exit %d: %s", code, errs)
+				}
+				return
+			}
+			if code == 0 || !strings.Contains(errs, c.want) {
+				t.Errorf("exit %d, %q, want %q", code, errs, c.want)
+			}
+		})
+	}
+}
