@@ -155,3 +155,10 @@ func (sp Species) TransitionMetalState() (float64, bool) {
 // Anion names how the species' non-metals leave in an acid: "oxide", "phosphate", "carbonate",
 // "hexafluorophosphate", "fluoride", or "" for metals and inert species.
 func (sp Species) Anion() string { return sp.anionic }
+
+// Metallic reports whether the species is a single metal in the zero state (foil, casing).
+func (sp Species) Metallic() bool { return sp.metallic }
+
+// AqueousCharge returns the charge of a metal's ion in an acid leach liquor in its usual lower
+// state (Fe2+, Cu2+), or 0 when there is no rule for the metal.
+func AqueousCharge(symbol string) float64 { return aqueousCharge(symbol) }

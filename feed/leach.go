@@ -6,6 +6,7 @@ import (
 	"math"
 	"slices"
 	"sort"
+	"strings"
 	"sync"
 
 	"blackmass/cathode"
@@ -34,14 +35,23 @@ type LeachOptions struct {
 	// data/extraction.csv; the key "*" sets every metal.
 	ExtractionOverride map[string]float64 `json:"extraction_override,omitempty"`
 	AcidPricePerKg     float64            `json:"acid_price_per_kg,omitempty"` // per kg of commercial acid (currency-neutral); 0: no cost
-	H2O2PricePerKg     float64            `json:"h2o2_price_per_kg,omitempty"`
+	H2O2PricePerKg     float64            `json:"h2o2_price_per_kg,omitempty"` // per kg of the reductant as bought
+	// Reductant names the reductant of the sulfuric routes (H2O2, SO2, Na2S2O5, C6H8O6, or
+	// "none"); empty means H2O2.
+	Reductant string `json:"reductant,omitempty"`
+	// RecipeReductantGPerL doses a solid or gaseous reductant in g per litre of liquor.
+	RecipeReductantGPerL float64 `json:"recipe_reductant_g_per_l,omitempty"`
+	// TemperatureC is the leach temperature; it sets the share of peroxide that decomposes.
+	TemperatureC float64 `json:"temperature_C"`
+	// GrowVolume lets the liquor volume grow to hold reagents that exceed it, instead of refusing.
+	GrowVolume bool `json:"grow_volume,omitempty"`
 }
 
 // DefaultLeachOptions is the planner's default: sulfuric acid 98 % with 30 % peroxide, acid at
 // stoichiometry plus 0.5 mol/L free acid, peroxide at 1.5× stoichiometry, 100 g/L pulp density.
 func DefaultLeachOptions() LeachOptions {
 	return LeachOptions{Route: cathode.SulfuricPeroxide, AcidWtPct: 98, H2O2WtPct: 30, AcidExcess: 1, FreeAcidMolPerL: 0.5,
-		ReductantExcess: 1.5, PulpDensityGPerL: 100}
+		ReductantExcess: 1.5, PulpDensityGPerL: 100, Reductant: "H2O2", TemperatureC: 60}
 }
 
 // Reagent is a reagent's demand.
@@ -55,7 +65,27 @@ type Reagent struct {
 	Litres     Stat    `json:"litres"`
 	Cost       *Stat   `json:"cost,omitempty"`
 	StoichKg   Stat    `json:"stoichiometric_kg_pure"`
-	Ratio      Stat    `json:"ratio_to_stoichiometry"`
+	// Ratio is the dose over what the planned extraction needs; RatioFull over what full
+	// dissolution of the lot needs.
+	Ratio     Stat `json:"ratio_to_stoichiometry"`
+	RatioFull Stat `json:"ratio_to_full_dissolution"`
+}
+
+// Limit is a reagent that limited the dissolution: in what share of the samples, and what share
+// of the planned dissolution was reached.
+type Limit struct {
+	Reagent      string  `json:"reagent"`
+	SampleShare  float64 `json:"share_of_samples"`
+	ReachedShare Stat    `json:"reached_share_of_plan"`
+}
+
+// Scrubber is the caustic to absorb the chlorine of the hydrochloric route.
+type Scrubber struct {
+	Reagent  string `json:"reagent"`
+	KgPure   Stat   `json:"kg_pure"`
+	Kg       Stat   `json:"kg"`
+	Litres   Stat   `json:"litres"`
+	Reaction string `json:"reaction"`
 }
 
 // Gas is a gas evolved.
@@ -77,6 +107,10 @@ type Liquor struct {
 	Anion          string          `json:"anion"`
 	AnionMolPerL   Stat            `json:"anion_mol_per_l"`
 	ChargeResidual float64         `json:"charge_balance_max_relative_residual"`
+	// ExtractionReached is each metal's share of the feed that dissolved with the dose given.
+	ExtractionReached map[string]Stat `json:"extraction_reached"`
+	// Fe3GPerL is the iron oxidised to Fe(III) by peroxide left after the reduction.
+	Fe3GPerL *Stat `json:"fe3_g_per_l,omitempty"`
 }
 
 // LeachReport is the leach plan of a lot.
@@ -91,6 +125,10 @@ type LeachReport struct {
 	FreeAcidMolPerL Stat            `json:"free_acid_mol_per_l"`
 	Saturation      map[string]Stat `json:"saturation"`
 	TotalCost       *Stat           `json:"total_cost,omitempty"`
+	Limiting        []Limit         `json:"limiting,omitempty"`
+	Scrubber        *Scrubber       `json:"chlorine_scrubber,omitempty"`
+	// PeroxideHeatRiseK is the adiabatic temperature rise if all the peroxide decomposed.
+	PeroxideHeatRiseK *Stat `json:"peroxide_heat_rise_K,omitempty"`
 	Warnings        []string        `json:"warnings"`
 	Safety          []string        `json:"safety"`
 	Assumptions     []string        `json:"assumptions"`
@@ -105,6 +143,8 @@ type salt struct {
 }
 
 type leachTables struct {
+	reductants []*Reductant
+	loss       []peroxideLoss
 	density    reagentTable
 	salts      []salt
 	extraction map[cathode.Route]map[string]cathode.Range
@@ -164,8 +204,48 @@ var loadLeachTables = sync.OnceValues(func() (*leachTables, error) {
 		lt.extraction[route][r.Str("element")] = rg
 		lt.sources[route.String()+"/"+r.Str("element")] = r.Str("source")
 	}
+	if lt.reductants, err = LoadReductants(dataTables{}); err != nil {
+		return nil, err
+	}
+	pt, err := data.ReadTable(data.FS, "peroxide_loss.csv")
+	if err != nil {
+		return nil, err
+	}
+	for _, r := range pt.Rows {
+		var pl peroxideLoss
+		if pl.fromC, err = r.Float("temperature_min_C"); err != nil {
+			return nil, err
+		}
+		if pl.r.Min, pl.r.Mode, pl.r.Max, err = r.Range("", ""); err != nil {
+			return nil, err
+		}
+		if pl.r.Min < 0 || pl.r.Max >= 1 {
+			return nil, r.Errorf("a decomposed share lies in [0, 1)")
+		}
+		pl.source = r.Str("source")
+		lt.loss = append(lt.loss, pl)
+	}
+	sort.Slice(lt.loss, func(i, j int) bool { return lt.loss[i].fromC < lt.loss[j].fromC })
 	return lt, nil
 })
+
+// peroxideLoss is the decomposed share of a peroxide dose from a temperature up.
+type peroxideLoss struct {
+	fromC  float64
+	r      cathode.Range
+	source string
+}
+
+// peroxideLoss returns the row that applies at temperature tC.
+func (lt *leachTables) peroxideLoss(tC float64) peroxideLoss {
+	out := lt.loss[0]
+	for _, l := range lt.loss {
+		if tC >= l.fromC {
+			out = l
+		}
+	}
+	return out
+}
 
 // Density returns the density of a reagent solution (g/mL) at strength wtPct, interpolated
 // linearly in the reagent table; an error if wtPct is outside the table.
@@ -207,8 +287,11 @@ var leachSafety = map[cathode.Route][]string{
 	},
 }
 
-// planLeach computes the leach plan for every sample of the lot's black mass.
-func planLeach(s *Samples, opt LeachOptions, seed uint64) (*LeachReport, error) {
+// planLeach computes the leach plan for every sample of the lot's black mass, in three steps:
+// the demand (what the planned extraction and full dissolution need), the dose (the planner's
+// or the bench recipe's), and what that dose actually dissolves (leachSample: limiting acid and
+// electrons), then the liquor, saturation and warnings.
+func planLeach(s *Samples, opt LeachOptions, _ uint64) (*LeachReport, error) {
 	lt, err := loadLeachTables()
 	if err != nil {
 		return nil, err
@@ -216,244 +299,501 @@ func planLeach(s *Samples, opt LeachOptions, seed uint64) (*LeachReport, error) 
 	if err := checkLeachOptions(&opt); err != nil {
 		return nil, err
 	}
-	route := opt.Route
-	acidM, h2o2M := cathode.MolarMassOf(route.Acid()), cathode.MolarMassOf("H2O2")
-	acidRho, err := Density(route.Acid(), opt.AcidWtPct)
+	p, err := newLeachPlanner(s, opt, lt)
 	if err != nil {
 		return nil, err
 	}
-	h2o2Rho, err := Density("H2O2", opt.H2O2WtPct)
-	if err != nil {
+	if err := p.run(); err != nil {
 		return nil, err
 	}
-	n := s.N
-	// Extraction draws per element, shared by all compounds (systematic).
-	ext := map[string][]float64{}
-	var ranges []ParamResult
-	for _, el := range slices.Sorted(maps.Keys(lt.extraction[route])) {
-		rg := lt.extraction[route][el]
-		ext[el] = s.params.rangeValues("extraction "+route.String()+"/"+el, rg)
-		ranges = append(ranges, ParamResult{"extraction " + route.String(), el, rg.Min, rg.Mode, rg.Max, "fraction", lt.sources[route.String()+"/"+el]})
+	return p.report()
+}
+
+// leachPlanner holds one leach plan's inputs and per-sample results.
+type leachPlanner struct {
+	s       *Samples
+	opt     LeachOptions
+	lt      *leachTables
+	route   cathode.Route
+	red     *Reductant
+	species []cathode.Species
+	molarG  []float64
+	ext     map[string][]float64
+	ranges  []ParamResult
+	lost    []float64 // share of the peroxide dose that decomposes, per sample
+	acidM   float64
+	acidRho float64
+	redRho  float64 // density of the reductant solution (peroxide), g/mL
+	n       int
+	// per sample
+	vol, acidDose, redDose, acidPlan, redPlan, acidFull, redFull, water []float64
+	res                                                                  []redoxResult
+	grown                                                                int
+}
+
+func newLeachPlanner(s *Samples, opt LeachOptions, lt *leachTables) (*leachPlanner, error) {
+	p := &leachPlanner{s: s, opt: opt, lt: lt, route: opt.Route, n: s.N, ext: map[string][]float64{}}
+	p.acidM = cathode.MolarMassOf(p.route.Acid())
+	var err error
+	if p.acidRho, err = Density(p.route.Acid(), opt.AcidWtPct); err != nil {
+		return nil, err
 	}
-	species := make([]cathode.Species, len(s.Compounds))
-	molarMass := make([]float64, len(s.Compounds))
+	if p.route != cathode.Hydrochloric && opt.Reductant != "none" {
+		if p.red, err = FindReductant(lt.reductants, opt.Reductant); err != nil {
+			return nil, err
+		}
+		if p.red.Form == "solution" {
+			if p.redRho, err = Density(p.red.Formula, opt.H2O2WtPct); err != nil {
+				return nil, err
+			}
+		}
+	}
+	for _, el := range slices.Sorted(maps.Keys(lt.extraction[p.route])) {
+		rg := lt.extraction[p.route][el]
+		p.ext[el] = s.params.rangeValues("extraction "+p.route.String()+"/"+el, rg)
+		p.ranges = append(p.ranges, ParamResult{"extraction " + p.route.String(), el, rg.Min, rg.Mode, rg.Max, "fraction", lt.sources[p.route.String()+"/"+el]})
+	}
+	loss := lt.peroxideLoss(opt.TemperatureC)
+	p.lost = s.params.rangeValues(fmt.Sprintf("peroxide loss/%g C", loss.fromC), loss.r)
+	if p.red != nil && p.red.Oxidant {
+		p.ranges = append(p.ranges, ParamResult{"peroxide", fmt.Sprintf("decomposed share at %g °C", opt.TemperatureC), loss.r.Min, loss.r.Mode, loss.r.Max, "fraction", loss.source})
+	}
+	p.species = make([]cathode.Species, len(s.Compounds))
+	p.molarG = make([]float64, len(s.Compounds))
 	for c := range s.Compounds {
 		f, err := cathode.ParseFormula(s.CompoundFormula(c))
 		if err != nil {
 			return nil, err
 		}
-		if species[c], err = cathode.NewSpecies(f); err != nil {
+		if p.species[c], err = cathode.NewSpecies(f); err != nil {
 			return nil, err
 		}
-		molarMass[c] = f.MolarMass(cathode.DefaultElements())
+		p.molarG[c] = f.MolarMass(cathode.DefaultElements())
 	}
-	elements := []string{"Li", "Co", "Ni", "Mn", "Al", "Fe", "Cu", "P", "F"}
-	elIdx := map[string]int{}
-	for i, e := range elements {
-		elIdx[e] = i
+	for _, x := range []*[]float64{&p.vol, &p.acidDose, &p.redDose, &p.acidPlan, &p.redPlan, &p.acidFull, &p.redFull, &p.water} {
+		*x = make([]float64, p.n)
 	}
-	vol, acidStoich, acidTot, h2o2Stoich, h2o2Tot := make([]float64, n), make([]float64, n), make([]float64, n), make([]float64, n), make([]float64, n)
-	gas := map[string][]float64{"H2": make([]float64, n), "O2": make([]float64, n), "Cl2": make([]float64, n), "CO2": make([]float64, n)}
-	elMol := make([][]float64, len(elements))
-	for i := range elMol {
-		elMol[i] = make([]float64, n)
+	p.res = make([]redoxResult, p.n)
+	return p, nil
+}
+
+// plan returns sample i's planned extraction of an element: the user's, else the route's draw,
+// else complete.
+func (p *leachPlanner) plan(i int) func(string) float64 {
+	return func(sym string) float64 {
+		if v, ok := p.opt.ExtractionOverride[sym]; ok {
+			return v
+		}
+		if v, ok := p.opt.ExtractionOverride["*"]; ok {
+			return v
+		}
+		if v, ok := p.ext[sym]; ok {
+			return v[min(i, len(v)-1)]
+		}
+		return 1
 	}
-	anion, freeH, cationCharge, chargeRes := make([]float64, n), make([]float64, n), make([]float64, n), 0.0
-	for i := range n {
-		x := func(sym string) float64 {
-			if v, ok := opt.ExtractionOverride[sym]; ok {
-				return v
-			}
-			if v, ok := opt.ExtractionOverride["*"]; ok {
-				return v
-			}
-			if v, ok := ext[sym]; ok {
-				return v[min(i, len(v)-1)]
-			}
-			return 1
-		}
-		var acid, red, ox, cl2 float64
-		for c, kg := range s.Compounds {
-			mol := kg[i] * 1000 / molarMass[c]
-			if mol == 0 {
-				continue
-			}
-			rx, err := cathode.Dissolve(species[c], route, x)
-			if err != nil {
-				return nil, err
-			}
-			acid += rx.AcidMol * mol
-			red += rx.H2O2ReductantMol * mol
-			ox += rx.H2O2OxidantMol * mol
-			cl2 += rx.Cl2Mol * mol
-			gas["H2"][i] += rx.H2Mol * mol
-			gas["O2"][i] += rx.O2Mol * mol
-			gas["CO2"][i] += rx.CO2Mol * mol
-			for _, ion := range rx.Cations {
-				if k, ok := elIdx[ion.Symbol]; ok {
-					elMol[k][i] += ion.Mol * mol
-				}
-				cationCharge[i] += ion.Charge * ion.Mol * mol
-			}
-			elMol[elIdx["P"]][i] += rx.H3PO4Mol * mol
-			elMol[elIdx["F"]][i] += rx.HFMol * mol
-		}
-		gas["Cl2"][i] = cl2
-		v := opt.LiquorVolumeL
-		if v == 0 {
-			v = s.BlackMass[i] * 1000 / opt.PulpDensityGPerL
-		}
-		vol[i] = v
-		acidStoich[i], h2o2Stoich[i] = acid, red+ox
-		if opt.RecipeAcidMolPerL > 0 {
-			acidTot[i] = opt.RecipeAcidMolPerL * v
-		} else {
-			acidTot[i] = acid*opt.AcidExcess + opt.FreeAcidMolPerL*v
-		}
-		if opt.RecipeH2O2VolPct > 0 {
-			h2o2Tot[i] = opt.RecipeH2O2VolPct / 100 * v * 1000 * h2o2Rho * opt.H2O2WtPct / 100 / h2o2M
-		} else {
-			h2o2Tot[i] = (red + ox) * opt.ReductantExcess
-		}
-		// Peroxide beyond what reacts decomposes: 2 H2O2 -> 2 H2O + O2.
-		if extra := h2o2Tot[i] - (red + ox); extra > 0 {
-			gas["O2"][i] += extra / 2
-		}
-		// Free acid from the acid balance; liquor anions from the acid added.
-		freeH[i] = (acidTot[i] - acid) * route.AcidProtons()
-		anion[i] = acidTot[i]
-		if route == cathode.Hydrochloric {
-			anion[i] = acidTot[i] - 2*cl2
-		}
-		// Charge balance of the liquor: Σ z·n(cations) + H+ = anion charge, with H+ from the acid
-		// balance and the cations from the extraction.
-		pos := freeH[i] + cationCharge[i]
-		neg := anion[i] * route.AnionCharge()
-		if neg > 0 {
-			chargeRes = math.Max(chargeRes, math.Abs(pos-neg)/neg)
-		}
-	}
-	lr := &LeachReport{Route: route.String(), Settings: opt, Gases: map[string]Gas{}, Saturation: map[string]Stat{},
-		GasReference: "ideal gas at 0 °C and 101.325 kPa (22.414 L/mol)", Safety: leachSafety[route], Extraction: ranges}
-	mk := func(name string, wt, rho, molMass float64, stoich, total []float64, price float64) Reagent {
-		pure, comm, litres, sk, ratio := make([]float64, n), make([]float64, n), make([]float64, n), make([]float64, n), make([]float64, n)
-		for i := range n {
-			pure[i] = total[i] * molMass / 1000
-			comm[i] = pure[i] / (wt / 100)
-			litres[i] = comm[i] / rho
-			sk[i] = stoich[i] * molMass / 1000
-			if stoich[i] > 0 {
-				ratio[i] = total[i] / stoich[i]
-			}
-		}
-		rg := Reagent{Name: fmt.Sprintf("%s %g %%", name, wt), StrengthWt: wt, DensityGmL: round(rho, 4), MolarMass: round(molMass, 4), KgPure: summarise(pure),
-			Kg: summarise(comm), Litres: summarise(litres), StoichKg: summarise(sk), Ratio: summarise(ratio)}
-		if price > 0 {
-			c := make([]float64, n)
-			for i := range n {
-				c[i] = comm[i] * price
-			}
-			st := summarise(c)
-			rg.Cost = &st
-		}
-		return rg
-	}
-	acidR := mk(route.Acid(), opt.AcidWtPct, acidRho, acidM, acidStoich, acidTot, opt.AcidPricePerKg)
-	lr.Reagents = append(lr.Reagents, acidR)
-	h2o2R := mk("H2O2", opt.H2O2WtPct, h2o2Rho, h2o2M, h2o2Stoich, h2o2Tot, opt.H2O2PricePerKg)
-	if h2o2Tot[0] > 0 || h2o2R.KgPure.P90 > 0 {
-		lr.Reagents = append(lr.Reagents, h2o2R)
-	}
-	water := make([]float64, n)
-	for i := range n {
-		water[i] = vol[i] - acidTot[i]*acidM/1000/(opt.AcidWtPct/100)/acidRho - h2o2Tot[i]*h2o2M/1000/(opt.H2O2WtPct/100)/h2o2Rho
-	}
-	lr.WaterL = summarise(water)
-	if opt.AcidPricePerKg > 0 || opt.H2O2PricePerKg > 0 {
-		tot := make([]float64, n)
-		for i := range n {
-			tot[i] = acidTot[i]*acidM/1000/(opt.AcidWtPct/100)*opt.AcidPricePerKg + h2o2Tot[i]*h2o2M/1000/(opt.H2O2WtPct/100)*opt.H2O2PricePerKg
-		}
-		st := summarise(tot)
-		lr.TotalCost = &st
-	}
-	for name, mol := range gas {
-		m3 := make([]float64, n)
-		for i := range n {
-			m3[i] = mol[i] * MolarVolumeSTPLPerMol / 1000
-		}
-		if slices.Max(mol) > 0 {
-			lr.Gases[name] = Gas{Mol: summarise(mol), M3STP: summarise(m3)}
-		}
+}
+
+func (p *leachPlanner) input(i int, plan func(string) float64, hPlus, redMol float64) redoxInput {
+	mol := make([]float64, len(p.s.Compounds))
+	for c, kg := range p.s.Compounds {
+		mol[c] = kg[i] * 1000 / p.molarG[c]
 	}
 	es := cathode.DefaultElements()
-	// The residual is reported to 1e-12: below that it is floating-point noise, which would make
-	// reports differ between machines.
-	lr.Liquor = Liquor{VolumeL: summarise(vol), Elements: map[string]Conc{}, Anion: route.Anion(), ChargeResidual: round(chargeRes, 12)}
-	perL := func(x []float64, scale float64) []float64 {
+	return redoxInput{route: p.route, species: p.species, mol: mol, plan: plan, hPlus: hPlus, red: p.red, redMol: redMol, lost: p.lost[i],
+		metalE0: func(sym string) float64 {
+			if el := es.Lookup(sym); el != nil && el.HasPotential {
+				return el.StandardPotential
+			}
+			return 0
+		}}
+}
+
+// run doses and dissolves every sample.
+func (p *leachPlanner) run() error {
+	protons := p.route.AcidProtons()
+	inf := math.Inf(1)
+	full := func(string) float64 { return 1 }
+	for i := range p.n {
+		plan := p.plan(i)
+		need, err := leachSample(p.input(i, plan, inf, inf))
+		if err != nil {
+			return err
+		}
+		fullNeed, err := leachSample(p.input(i, full, inf, inf))
+		if err != nil {
+			return err
+		}
+		p.acidPlan[i], p.acidFull[i] = need.hPlusUsed/protons, fullNeed.hPlusUsed/protons
+		p.redPlan[i], p.redFull[i] = need.redUsed+need.oxidantUsed, fullNeed.redUsed+fullNeed.oxidantUsed
+		v := p.opt.LiquorVolumeL
+		if v == 0 {
+			v = p.s.BlackMass[i] * 1000 / p.opt.PulpDensityGPerL
+		}
+		if p.opt.RecipeAcidMolPerL > 0 {
+			p.acidDose[i] = p.opt.RecipeAcidMolPerL * v
+		} else {
+			p.acidDose[i] = p.acidPlan[i]*p.opt.AcidExcess + p.opt.FreeAcidMolPerL*v
+		}
+		switch {
+		case p.red == nil:
+		case p.opt.RecipeH2O2VolPct > 0:
+			p.redDose[i] = p.opt.RecipeH2O2VolPct / 100 * v * 1000 * p.redRho * p.opt.H2O2WtPct / 100 / p.red.MolarMassGMol
+		case p.opt.RecipeReductantGPerL > 0:
+			p.redDose[i] = p.opt.RecipeReductantGPerL * v / p.red.MolarMassGMol
+		default:
+			p.redDose[i] = p.redPlan[i] * p.opt.ReductantExcess
+		}
+		// The reagents take up part of the liquor; the rest is make-up water.
+		p.water[i] = v - p.acidLitres(p.acidDose[i]) - p.redLitres(p.redDose[i])
+		if p.water[i] < 0 && p.water[i] > -1e-9*v {
+			p.water[i] = 0 // the reagents fill the volume exactly (a recipe of neat acid)
+		}
+		if p.water[i] < 0 {
+			if !p.opt.GrowVolume {
+				return fmt.Errorf("leach: the acid and reductant alone take %.4g L, more than the %.4g L of liquor the pulp density or volume gives: "+
+					"lower the dose, use stronger reagents, or let the volume grow with the reagents (--grow-volume)", v-p.water[i], v)
+			}
+			v -= p.water[i]
+			p.water[i] = 0
+			p.grown++
+		}
+		p.vol[i] = v
+		got, err := leachSample(p.input(i, plan, p.acidDose[i]*protons, p.redDose[i]))
+		if err != nil {
+			return err
+		}
+		got.anionMol = p.acidDose[i]
+		switch {
+		case p.route == cathode.Hydrochloric:
+			got.anionMol = p.acidDose[i] - 2*got.cl2
+		case p.red != nil:
+			got.anionMol += got.redUsed * p.red.SulfateMol
+		}
+		p.res[i] = got
+	}
+	return nil
+}
+
+func (p *leachPlanner) acidLitres(mol float64) float64 {
+	return mol * p.acidM / 1000 / (p.opt.AcidWtPct / 100) / p.acidRho
+}
+
+func (p *leachPlanner) redLitres(mol float64) float64 {
+	if p.red == nil || p.red.Form != "solution" {
+		return 0 // a gas or a solid takes no liquor volume to speak of
+	}
+	return mol * p.red.MolarMassGMol / 1000 / (p.opt.H2O2WtPct / 100) / p.redRho
+}
+
+// report summarises the samples.
+func (p *leachPlanner) report() (*LeachReport, error) {
+	n, opt, route := p.n, p.opt, p.route
+	lr := &LeachReport{Route: route.String(), Settings: opt, Gases: map[string]Gas{}, Saturation: map[string]Stat{},
+		GasReference: "ideal gas at 0 °C and 101.325 kPa (22.414 L/mol)", Safety: leachSafety[route], Extraction: p.ranges}
+	col := func(f func(i int) float64) []float64 {
 		out := make([]float64, n)
-		for i := range n {
-			out[i] = x[i] * scale / vol[i]
+		for i := range out {
+			out[i] = f(i)
 		}
 		return out
 	}
-	for k, e := range elements {
-		if slices.Max(elMol[k]) > 0 {
-			lr.Liquor.Elements[e] = Conc{GPerL: summarise(perL(elMol[k], es.Weight(e))), MolPerL: summarise(perL(elMol[k], 1))}
+	acidR := p.reagent(route.Acid(), opt.AcidWtPct, p.acidRho, p.acidM, p.acidDose, p.acidPlan, p.acidFull, opt.AcidPricePerKg)
+	lr.Reagents = append(lr.Reagents, acidR)
+	var redR *Reagent
+	if p.red != nil {
+		strength, rho := 100.0, 0.0
+		if p.red.Form == "solution" {
+			strength, rho = opt.H2O2WtPct, p.redRho
+		}
+		r := p.reagent(p.red.Key, strength, rho, p.red.MolarMassGMol, p.redDose, p.redPlan, p.redFull, opt.H2O2PricePerKg)
+		lr.Reagents = append(lr.Reagents, r)
+		redR = &lr.Reagents[len(lr.Reagents)-1]
+	}
+	lr.WaterL = summarise(p.water)
+	if opt.AcidPricePerKg > 0 || opt.H2O2PricePerKg > 0 {
+		st := summarise(col(func(i int) float64 {
+			c := p.acidDose[i] * p.acidM / 1000 / (opt.AcidWtPct / 100) * opt.AcidPricePerKg
+			if p.red != nil {
+				c += p.redDose[i] * p.red.MolarMassGMol / 1000 / (redStrength(p.red, opt) / 100) * opt.H2O2PricePerKg
+			}
+			return c
+		}))
+		lr.TotalCost = &st
+	}
+	gases := map[string]func(r redoxResult) float64{
+		"H2": func(r redoxResult) float64 { return r.h2 }, "O2": func(r redoxResult) float64 { return r.o2 },
+		"Cl2": func(r redoxResult) float64 { return r.cl2 }, "CO2": func(r redoxResult) float64 { return r.co2 },
+	}
+	for name, g := range gases {
+		mol := col(func(i int) float64 { return g(p.res[i]) })
+		if slices.Max(mol) > 0 {
+			lr.Gases[name] = Gas{Mol: summarise(mol), M3STP: summarise(col(func(i int) float64 { return mol[i] * MolarVolumeSTPLPerMol / 1000 }))}
 		}
 	}
-	lr.Liquor.AnionMolPerL = summarise(perL(anion, 1))
-	lr.FreeAcidMolPerL = summarise(perL(freeH, 1/route.AcidProtons()))
-	// Saturation: the salt each cation forms with the liquor anion, against its solubility.
-	for _, sl := range lt.salts {
-		k, ok := elIdx[sl.cation]
-		if !ok || sl.anion != route.Anion() || slices.Max(elMol[k]) == 0 {
+	es := cathode.DefaultElements()
+	perL := func(f func(i int) float64) []float64 { return col(func(i int) float64 { return f(i) / p.vol[i] }) }
+	chargeRes := 0.0
+	for i, r := range p.res {
+		pos := r.freeH + r.fe3Mol
+		for k, sym := range leachElements {
+			pos += cathode.AqueousCharge(sym) * r.liquorMol[k]
+		}
+		neg := r.anionMol * route.AnionCharge()
+		if neg > 0 {
+			chargeRes = math.Max(chargeRes, math.Abs(pos-neg)/neg)
+		}
+		_ = i
+	}
+	// The residual is reported to 1e-12: below that it is floating-point noise, which would make
+	// reports differ between machines.
+	lr.Liquor = Liquor{VolumeL: summarise(p.vol), Elements: map[string]Conc{}, Anion: route.Anion(), ChargeResidual: round(chargeRes, 12),
+		ExtractionReached: map[string]Stat{}}
+	for k, e := range leachElements {
+		mol := col(func(i int) float64 { return p.res[i].liquorMol[k] })
+		if slices.Max(mol) <= 0 {
+			continue
+		}
+		lr.Liquor.Elements[e] = Conc{GPerL: summarise(perL(func(i int) float64 { return mol[i] * es.Weight(e) })), MolPerL: summarise(perL(func(i int) float64 { return mol[i] }))}
+		if e != "Na" && e != "P" && e != "F" {
+			lr.Liquor.ExtractionReached[e] = summarise(col(func(i int) float64 {
+				if f := p.res[i].feedMol[k]; f > 0 {
+					return mol[i] / f
+				}
+				return 0
+			}))
+		}
+	}
+	if fe3 := col(func(i int) float64 { return p.res[i].fe3Mol }); slices.Max(fe3) > 0 {
+		st := summarise(perL(func(i int) float64 { return fe3[i] * es.Weight("Fe") }))
+		lr.Liquor.Fe3GPerL = &st
+	}
+	lr.Liquor.AnionMolPerL = summarise(perL(func(i int) float64 { return p.res[i].anionMol }))
+	lr.FreeAcidMolPerL = summarise(perL(func(i int) float64 { return p.res[i].freeH / route.AcidProtons() }))
+	p.limits(lr)
+	p.saturation(lr)
+	p.byproducts(lr)
+	p.warnings(lr, acidR, redR)
+	return lr, nil
+}
+
+func redStrength(r *Reductant, opt LeachOptions) float64 {
+	if r.Form == "solution" {
+		return opt.H2O2WtPct
+	}
+	return 100
+}
+
+// reagent summarises a reagent's dose against the planned extraction's and full dissolution's
+// needs.
+func (p *leachPlanner) reagent(name string, wt, rho, molMass float64, dose, plan, full []float64, price float64) Reagent {
+	n := p.n
+	pure, comm, litres, sk, ratio, ratioFull := make([]float64, n), make([]float64, n), make([]float64, n), make([]float64, n), make([]float64, n), make([]float64, n)
+	for i := range n {
+		pure[i] = dose[i] * molMass / 1000
+		comm[i] = pure[i] / (wt / 100)
+		if rho > 0 {
+			litres[i] = comm[i] / rho
+		}
+		sk[i] = plan[i] * molMass / 1000
+		if plan[i] > 0 {
+			ratio[i] = dose[i] / plan[i]
+		}
+		if full[i] > 0 {
+			ratioFull[i] = dose[i] / full[i]
+		}
+	}
+	rg := Reagent{Name: fmt.Sprintf("%s %g %%", name, wt), StrengthWt: wt, DensityGmL: round(rho, 4), MolarMass: round(molMass, 4), KgPure: summarise(pure),
+		Kg: summarise(comm), Litres: summarise(litres), StoichKg: summarise(sk), Ratio: summarise(ratio), RatioFull: summarise(ratioFull)}
+	if price > 0 {
+		st := summarise(col(n, func(i int) float64 { return comm[i] * price }))
+		rg.Cost = &st
+	}
+	return rg
+}
+
+func col(n int, f func(i int) float64) []float64 {
+	out := make([]float64, n)
+	for i := range out {
+		out[i] = f(i)
+	}
+	return out
+}
+
+// limits says which reagent limited the dissolution, and in how many samples.
+func (p *leachPlanner) limits(lr *LeachReport) {
+	var red, acid int
+	for _, r := range p.res {
+		if r.reductionCap < 1-1e-9 {
+			red++
+		}
+		if r.acidCap < 1-1e-9 {
+			acid++
+		}
+	}
+	share := func(k int) float64 { return round(float64(k)/float64(p.n), 4) }
+	if red > 0 {
+		what := "the electrons (metals in the feed and the reductant)"
+		if p.red != nil {
+			what = p.red.Key + " (with the metals in the feed)"
+		}
+		lr.Limiting = append(lr.Limiting, Limit{Reagent: what, SampleShare: share(red),
+			ReachedShare: summarise(col(p.n, func(i int) float64 { return p.res[i].reductionCap }))})
+	}
+	if acid > 0 {
+		lr.Limiting = append(lr.Limiting, Limit{Reagent: p.route.Acid(), SampleShare: share(acid),
+			ReachedShare: summarise(col(p.n, func(i int) float64 { return p.res[i].acidCap }))})
+	}
+}
+
+// saturation sets each salt's ratio to its solubility.
+func (p *leachPlanner) saturation(lr *LeachReport) {
+	es := cathode.DefaultElements()
+	for _, sl := range p.lt.salts {
+		k := elementIndex(sl.cation)
+		if k < 0 || sl.anion != p.route.Anion() {
 			continue
 		}
 		f, _ := cathode.ParseFormula(sl.name)
 		perSalt := f.Moles(sl.cation)
-		ratio := perL(elMol[k], f.MolarMass(es)/perSalt/(sl.gPer100g*10))
+		ratio := col(p.n, func(i int) float64 {
+			mol := p.res[i].liquorMol[k]
+			if sl.cation == "Fe" {
+				fe3 := p.res[i].fe3Mol
+				if strings.Contains(sl.name, "(SO4)3") || strings.Contains(sl.name, "Cl3") {
+					mol = fe3
+				} else {
+					mol -= fe3
+				}
+			}
+			return mol * f.MolarMass(es) / perSalt / (sl.gPer100g * 10) / p.vol[i]
+		})
+		if slices.Max(ratio) <= 0 {
+			continue
+		}
 		st := summarise(ratio)
 		lr.Saturation[sl.name] = st
-		if st.P90 > 0.8 {
-			lr.Warnings = append(lr.Warnings, fmt.Sprintf("%s reaches %.0f %% of its solubility near 25 °C (P90): lower the pulp density or expect crystallisation", sl.name, 100*st.P90))
+		if st.P90 > saturationWarn {
+			lr.Warnings = append(lr.Warnings, fmt.Sprintf("%s reaches %.0f %% of its solubility in water near 25 °C (P90; single-salt data, the shared sulfate and the acid lower it further): lower the pulp density or expect crystallisation", sl.name, 100*st.P90))
 		}
 	}
-	if lr.FreeAcidMolPerL.P10 < 0 {
-		lr.Warnings = append(lr.Warnings, fmt.Sprintf("acid is under-dosed: free acid P10 %.2f mol/L; the lot cannot fully dissolve, extraction will suffer", lr.FreeAcidMolPerL.P10))
+}
+
+// saturationWarn is the share of a salt's single-salt water solubility at which the plan warns:
+// well below 1, because the other sulfates and the free acid lower solubility (common-ion
+// effect) and the check treats 1 L of liquor as 1 kg of water (common practice).
+const saturationWarn = 0.6
+
+// Published enthalpies for the cautions: ΔfH° of H2O2(aq, unionised) −191.17 kJ/mol and of
+// H2O(l) −285.83 kJ/mol (NBS Tables of Chemical Thermodynamic Properties, J. Phys. Chem. Ref.
+// Data 11 (1982) Suppl. 2; water: CODATA Key Values 1989), so H2O2(aq) → H2O(l) + ½O2 releases
+// 94.66 kJ/mol. The liquor's heat capacity is taken as water's, 4.18 J/(g·K) (common practice).
+const (
+	peroxideDecompKJPerMol = 285.83 - 191.17
+	liquorCpJPerGK         = 4.18
+	naohPerCl2             = 2 // Cl2 + 2 NaOH → NaCl + NaOCl + H2O
+)
+
+// byproducts adds the caustic to scrub the chlorine and the heat of peroxide decomposition.
+func (p *leachPlanner) byproducts(lr *LeachReport) {
+	if g, ok := lr.Gases["Cl2"]; ok && g.Mol.P90 > 0 {
+		rho, err := Density("NaOH", 50)
+		if err == nil {
+			kg := col(p.n, func(i int) float64 { return p.res[i].cl2 * naohPerCl2 * cathode.MolarMassOf("NaOH") / 1000 })
+			lr.Scrubber = &Scrubber{Reagent: "NaOH 50 %", KgPure: summarise(kg), Kg: summarise(col(p.n, func(i int) float64 { return kg[i] / 0.5 })),
+				Litres: summarise(col(p.n, func(i int) float64 { return kg[i] / 0.5 / rho })),
+				Reaction: "Cl2 + 2 NaOH → NaCl + NaOCl + H2O (keep the scrubber caustic in excess; hypochlorite is an oxidant)"}
+		}
 	}
-	if opt.RecipeAcidMolPerL > 0 && acidR.Ratio.P50 > 4 {
+	if p.red != nil && p.red.Oxidant {
+		rise := col(p.n, func(i int) float64 {
+			q := (p.res[i].redDecomp + p.res[i].redUsed) * peroxideDecompKJPerMol * 1000 // J, as if all peroxide decomposed
+			return q / (p.vol[i] * 1000 * liquorCpJPerGK)
+		})
+		st := summarise(rise)
+		lr.PeroxideHeatRiseK = &st
+		if st.P90 > 10 {
+			lr.Warnings = append(lr.Warnings, fmt.Sprintf("peroxide decomposition can heat the liquor by up to %.0f K (P90, adiabatic, 94.7 kJ/mol H2O2): dose it gradually with cooling", st.P90))
+		}
+	}
+}
+
+// warnings adds the dose warnings.
+func (p *leachPlanner) warnings(lr *LeachReport, acidR Reagent, redR *Reagent) {
+	if p.grown > 0 {
+		lr.Warnings = append(lr.Warnings, fmt.Sprintf("the reagents alone exceed the liquor volume in %d of %d samples: the volume grew to hold them, so the pulp density is lower than asked", p.grown, p.n))
+	}
+	for _, l := range lr.Limiting {
+		lr.Warnings = append(lr.Warnings, fmt.Sprintf("%s limits the leach in %.0f %% of samples: it reaches %.0f %% (P50) of the planned dissolution", l.Reagent, 100*l.SampleShare, 100*l.ReachedShare.P50))
+	}
+	if acidR.RatioFull.P10 < 1 {
+		lr.Warnings = append(lr.Warnings, fmt.Sprintf("acid is %.2f× what full dissolution needs (P10): free acid runs out and less metal dissolves", acidR.RatioFull.P10))
+	}
+	if p.opt.RecipeAcidMolPerL > 0 && acidR.Ratio.P50 > 4 {
 		lr.Warnings = append(lr.Warnings, fmt.Sprintf("acid is %.1f× stoichiometric: grossly over-dosed (waste and neutralisation cost)", acidR.Ratio.P50))
 	}
-	if h2o2R.StoichKg.P50 > 0 {
-		if h2o2R.Ratio.P10 < 1 {
-			lr.Warnings = append(lr.Warnings, fmt.Sprintf("peroxide is %.2f× stoichiometric (P10): under-dosed, Co/Mn/Ni extraction will suffer (peroxide also decomposes in parallel)", h2o2R.Ratio.P10))
-		} else if h2o2R.Ratio.P50 > 6 {
-			lr.Warnings = append(lr.Warnings, fmt.Sprintf("peroxide is %.1f× stoichiometric: grossly over-dosed", h2o2R.Ratio.P50))
+	if redR != nil && redR.StoichKg.P50 > 0 {
+		allow := 1.0
+		if p.red.Oxidant {
+			allow = 1 / (1 - summarise(p.lost).P50)
+		}
+		if redR.RatioFull.P10 < allow {
+			lr.Warnings = append(lr.Warnings, fmt.Sprintf("%s is %.2f× what full dissolution needs (P10), below the %.2f× that allows for its decomposition at %g °C: Co, Ni and Mn extraction will fall short",
+				p.red.Key, redR.RatioFull.P10, allow, p.opt.TemperatureC))
+		} else if redR.Ratio.P50 > 6 {
+			lr.Warnings = append(lr.Warnings, fmt.Sprintf("%s is %.1f× stoichiometric: grossly over-dosed", p.red.Key, redR.Ratio.P50))
 		}
 	}
 	if g, ok := lr.Gases["Cl2"]; ok && g.Mol.P50 > 0 {
-		lr.Warnings = append(lr.Warnings, fmt.Sprintf("chlorine: about %.2f m³ Cl2 (STP, P50) evolves from the high-valent oxides", g.M3STP.P50))
+		lr.Warnings = append(lr.Warnings, fmt.Sprintf("chlorine: about %s Cl2 (STP, P50) evolves from the high-valent oxides; scrub it with caustic", formatGasVolume(g.M3STP.P50)))
 	}
-	if g, ok := lr.Gases["H2"]; ok && g.Mol.P50 > 0 {
-		lr.Warnings = append(lr.Warnings, fmt.Sprintf("hydrogen: about %.3f m³ H2 (STP, P50) from aluminium and other metals", g.M3STP.P50))
+	h2max := summarise(col(p.n, func(i int) float64 { return p.res[i].h2Potential * MolarVolumeSTPLPerMol / 1000 }))
+	if h2max.P90 > 0 {
+		h2 := 0.0
+		if g, ok := lr.Gases["H2"]; ok {
+			h2 = g.M3STP.P50
+		}
+		lead := fmt.Sprintf("hydrogen: about %s H2 (STP, P50) from aluminium and other metals once they have reduced the oxides", formatGasVolume(h2))
+		if h2 == 0 {
+			lead = "hydrogen: none once aluminium and other metals have reduced the oxides"
+		}
+		lr.Warnings = append(lr.Warnings, fmt.Sprintf("%s; up to %s (P90) if they meet the acid first: vent as for the larger", lead, formatGasVolume(h2max.P90)))
 	}
-	lr.Warnings = append(lr.Warnings, routeNotes(s, species, route)...)
+	if cu, ok := lr.Liquor.ExtractionReached["Cu"]; ok && cu.P50 < 0.5 && p.route == cathode.Hydrochloric {
+		lr.Warnings = append(lr.Warnings, "copper: without an oxidant only the copper that reduced the oxides dissolves on the hydrochloric route; the rest stays in the residue")
+	}
+	lr.Warnings = append(lr.Warnings, routeNotes(p.s, p.species, p.route)...)
 	if _, ok := lr.Liquor.Elements["F"]; ok {
 		lr.Warnings = append(lr.Warnings, "fluoride (HF) in the liquor from LiPF6 residue")
 	}
 	lr.Assumptions = []string{
-		"Acid and peroxide demand follow from each species' charge balance (cathode.Dissolve), scaled by the extraction of each metal.",
-		"Aluminium and other metals less noble than hydrogen dissolve with H2 evolution; they are not counted as reductant for the oxides.",
-		"Copper dissolves only with an oxidant: peroxide on the sulfuric routes; not at all on the hydrochloric route.",
-		"Graphite, carbon black and PVDF are inert and stay in the residue; on the selective route iron of phosphates stays as FePO4.",
+		"Acid and electron demand follow from each species' charge balance (cathode.Dissolve), scaled by the planned extraction of each metal.",
+		"The extraction reached is the lesser of the planned extraction and what the acid and the electrons dosed can dissolve.",
+		"Metals in the feed reduce the oxides first (least noble first: Al, Fe, then Cu); the reductant or chloride gives the rest; leftover Al and Fe give H2; leftover Cu needs peroxide or stays.",
+		"Peroxide left after the reduction oxidises copper metal, then Fe(II) to Fe(III); the rest decomposes to O2. Part of the peroxide dosed decomposes anyway (data/peroxide_loss.csv).",
+		"On the selective route the lithium of oxide cathodes stays with their undissolved metals; iron of phosphates stays as FePO4.",
+		"Graphite, carbon black and PVDF are inert and stay in the residue.",
 		"Free acid is what remains of the acid added after the dissolution; H3PO4 and HF are counted as undissociated.",
 		"Liquor volume is black mass over pulp density (or the volume given); reagent volumes are included in it.",
+		"Saturation compares each salt with its single-salt solubility in water near 25 °C, taking 1 L of liquor as 1 kg of water; the shared sulfate and the acid lower real solubilities, so the warning starts at 60 %.",
 	}
-	return lr, nil
+}
+
+// formatGasVolume prints a gas volume with a unit that suits its size.
+func formatGasVolume(m3 float64) string {
+	switch {
+	case m3 >= 1:
+		return fmt.Sprintf("%.3g m³", m3)
+	case m3 >= 1e-3:
+		return fmt.Sprintf("%.3g L", m3*1000)
+	}
+	return fmt.Sprintf("%.3g mL", m3*1e6)
 }
 
 func checkLeachOptions(o *LeachOptions) error {
+	if o.Reductant == "" {
+		o.Reductant = "H2O2"
+	}
 	switch {
 	case o.Route == cathode.RouteInvalid:
 		return fmt.Errorf("leach: no route")
@@ -461,6 +801,10 @@ func checkLeachOptions(o *LeachOptions) error {
 		return fmt.Errorf("leach: acid strength %g wt%% must be in (0, 100]", o.AcidWtPct)
 	case !(o.H2O2WtPct > 0 && o.H2O2WtPct <= 70):
 		return fmt.Errorf("leach: peroxide strength %g wt%% must be in (0, 70]", o.H2O2WtPct)
+	case !(o.TemperatureC >= 0 && o.TemperatureC <= 110):
+		return fmt.Errorf("leach: temperature %g °C must lie from 0 to 110 (an open acid leach boils near 105 °C)", o.TemperatureC)
+	case o.RecipeReductantGPerL < 0 || o.RecipeReductantGPerL > 500:
+		return fmt.Errorf("leach: reductant recipe %g g/L must lie from 0 to 500", o.RecipeReductantGPerL)
 	case o.AcidExcess < 1 && o.RecipeAcidMolPerL == 0:
 		return fmt.Errorf("leach: acid excess %g must be at least 1", o.AcidExcess)
 	case o.ReductantExcess < 0 || o.FreeAcidMolPerL < 0 || o.RecipeAcidMolPerL < 0 || o.RecipeH2O2VolPct < 0 || o.RecipeH2O2VolPct > 50:

@@ -18,15 +18,18 @@ import (
 
 // leachFlags binds the leach plan's settings; defaults are feed.DefaultLeachOptions.
 type leachFlags struct {
-	route    string
-	opt      feed.LeachOptions
-	planPath string
-	flags    *pflag.FlagSet
+	route      string
+	opt        feed.LeachOptions
+	planPath   string
+	extraction string
+	flags      *pflag.FlagSet
+	fromPlan   map[string]bool // keys the plan file set
 }
 
 // planKeys are the flags a plan file may set.
 var planKeys = []string{"route", "acid-strength", "h2o2-strength", "acid-excess", "free-acid", "h2o2-excess", "pulp-density",
-	"liquor-volume", "acid-molarity", "h2o2-vol-pct", "acid-price", "h2o2-price"}
+	"liquor-volume", "acid-molarity", "h2o2-vol-pct", "acid-price", "h2o2-price", "reductant", "reductant-g-per-l", "temperature",
+	"grow-volume", "extraction"}
 
 func (l *leachFlags) bind(cmd *cobra.Command) {
 	d := feed.DefaultLeachOptions()
@@ -44,11 +47,19 @@ func (l *leachFlags) bind(cmd *cobra.Command) {
 	numberVar(fl, &l.opt.RecipeAcidMolPerL, "acid-molarity", 0, 0.01, 18.4, "98 % sulfuric acid is 18.4 mol/L (CRC Handbook)", "bench recipe: acid molarity of the lixiviant, mol/L (replaces --acid-excess and --free-acid)")
 	numberVar(fl, &l.opt.RecipeH2O2VolPct, "h2o2-vol-pct", 0, 0.01, 100, "a volume fraction in per cent", "bench recipe: peroxide as vol% of the commercial solution (replaces --h2o2-excess)")
 	numberVar(fl, &l.opt.AcidPricePerKg, "acid-price", 0, 0, 1e6, "a price per kg", "price per kg of commercial acid (any currency)")
-	numberVar(fl, &l.opt.H2O2PricePerKg, "h2o2-price", 0, 0, 1e6, "a price per kg", "price per kg of commercial peroxide (same currency)")
+	numberVar(fl, &l.opt.H2O2PricePerKg, "h2o2-price", 0, 0, 1e6, "a price per kg", "price per kg of the reductant as bought (same currency)")
+	fl.StringVar(&l.opt.Reductant, "reductant", d.Reductant, "reductant of the sulfuric routes: H2O2, SO2, Na2S2O5 (metabisulfite), C6H8O6 (ascorbic acid) or none")
+	numberVar(fl, &l.opt.RecipeReductantGPerL, "reductant-g-per-l", 0, 0.01, 500, "g per litre of liquor", "bench recipe: a solid or gaseous reductant in g per litre of liquor")
+	numberVar(fl, &l.opt.TemperatureC, "temperature", d.TemperatureC, 0, 110, "an open acid leach boils near 105 °C", "leach temperature, °C (sets how much peroxide decomposes)")
+	fl.BoolVar(&l.opt.GrowVolume, "grow-volume", false, "let the liquor volume grow when the reagents alone exceed it (default: refuse)")
+	fl.StringVar(&l.extraction, "extraction", "", "your own test-leach extractions, e.g. Co=0.92,Ni=0.95,Li=0.99 (fractions or per cent; * for every metal)")
+	_ = cmd.RegisterFlagCompletionFunc("route", cobra.FixedCompletions([]string{"sulfuric-peroxide", "hydrochloric", "sulfuric-selective"}, cobra.ShellCompDirectiveNoFileComp))
+	_ = cmd.RegisterFlagCompletionFunc("reductant", cobra.FixedCompletions([]string{"H2O2", "SO2", "Na2S2O5", "C6H8O6", "none"}, cobra.ShellCompDirectiveNoFileComp))
 }
 
 // applyPlan sets, from the plan file, every leach flag not given on the command line.
 func (l *leachFlags) applyPlan() error {
+	l.fromPlan = map[string]bool{}
 	if l.planPath == "" {
 		return nil
 	}
@@ -76,6 +87,7 @@ func (l *leachFlags) applyPlan() error {
 			return fmt.Errorf("%s:%d: %s given twice (first on line %d)", l.planPath, n, key, first)
 		}
 		seen[key] = n
+		l.fromPlan[key] = true
 		if l.flags.Changed(key) {
 			continue
 		}
@@ -102,6 +114,14 @@ func (l *leachFlags) options() (*feed.LeachOptions, error) {
 	}
 	o := l.opt
 	o.Route = r
+	if err := l.conflicts(r); err != nil {
+		return nil, err
+	}
+	if l.extraction != "" {
+		if o.ExtractionOverride, err = parseExtraction(l.extraction); err != nil {
+			return nil, fmt.Errorf("--extraction: %w", err)
+		}
+	}
 	if o.AcidWtPct == 0 {
 		o.AcidWtPct = 98
 		if r == cathode.Hydrochloric {
@@ -109,4 +129,67 @@ func (l *leachFlags) options() (*feed.LeachOptions, error) {
 		}
 	}
 	return &o, nil
+}
+
+// set reports whether a leach setting was given, on the command line or in the plan file.
+func (l *leachFlags) set(key string) bool { return l.flags.Changed(key) || l.fromPlan[key] }
+
+// conflicts refuses settings that contradict each other, naming both.
+func (l *leachFlags) conflicts(route cathode.Route) error {
+	pairs := []struct{ a, b, why string }{
+		{"acid-molarity", "acid-excess", "a bench recipe fixes the acid; the excess factor belongs to the planner's dosing"},
+		{"acid-molarity", "free-acid", "a bench recipe fixes the acid; the free-acid target belongs to the planner's dosing"},
+		{"h2o2-vol-pct", "h2o2-excess", "a bench recipe fixes the peroxide; the excess factor belongs to the planner's dosing"},
+		{"reductant-g-per-l", "h2o2-excess", "a bench recipe fixes the reductant; the excess factor belongs to the planner's dosing"},
+		{"h2o2-vol-pct", "reductant-g-per-l", "give the reductant once: vol% of a peroxide solution, or g/L of a solid or gas"},
+		{"pulp-density", "liquor-volume", "the liquor volume follows from the pulp density, or is given: not both"},
+	}
+	for _, p := range pairs {
+		if l.set(p.a) && l.set(p.b) {
+			return usageError{fmt.Errorf("--%s and --%s disagree: %s", p.a, p.b, p.why)}
+		}
+	}
+	if route == cathode.Hydrochloric {
+		for _, k := range []string{"h2o2-vol-pct", "h2o2-excess", "h2o2-strength", "reductant", "reductant-g-per-l", "h2o2-price"} {
+			if l.set(k) {
+				return usageError{fmt.Errorf("--route hydrochloric and --%s disagree: the hydrochloric route adds no reductant (chloride is oxidised to Cl2)", k)}
+			}
+		}
+	}
+	if l.set("h2o2-vol-pct") && l.set("reductant") && !strings.EqualFold(l.opt.Reductant, "H2O2") {
+		return usageError{fmt.Errorf("--h2o2-vol-pct and --reductant %s disagree: vol%% doses a peroxide solution; give a solid or gas with --reductant-g-per-l", l.opt.Reductant)}
+	}
+	return nil
+}
+
+// parseExtraction reads "Co=0.92,Ni=95%,*=0.9" into fractions per element.
+func parseExtraction(s string) (map[string]float64, error) {
+	out := map[string]float64{}
+	es := cathode.DefaultElements()
+	for _, part := range strings.Split(s, ",") {
+		el, val, ok := strings.Cut(strings.TrimSpace(part), "=")
+		el, val = strings.TrimSpace(el), strings.TrimSpace(val)
+		if !ok || el == "" {
+			return nil, fmt.Errorf("%q: want ELEMENT=fraction, e.g. Co=0.92", intake.Printable(part, 30))
+		}
+		if el != "*" && (es.Lookup(el) == nil || !cathode.IsMetal(el)) {
+			return nil, fmt.Errorf("%q is not a metal symbol (case matters: Co, not CO)", intake.Printable(el, 10))
+		}
+		pct := strings.HasSuffix(val, "%")
+		v, err := intake.ParseNumber(strings.TrimSuffix(val, "%"), false)
+		if err != nil {
+			return nil, fmt.Errorf("%s=%q: %v", el, intake.Printable(val, 20), err)
+		}
+		if pct {
+			v /= 100
+		}
+		if v < 0 || v > 1 {
+			return nil, fmt.Errorf("%s=%s: an extraction lies from 0 to 1, or 0 %% to 100 %% with the sign", el, val)
+		}
+		if _, dup := out[el]; dup {
+			return nil, fmt.Errorf("%s given twice", el)
+		}
+		out[el] = v
+	}
+	return out, nil
 }

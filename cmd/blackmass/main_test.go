@@ -346,3 +346,54 @@ func TestPlanFileErrors(t *testing.T) {
 		})
 	}
 }
+
+// Leach settings that contradict each other are refused (usage, exit 2) naming both; a bench's
+// own extractions are taken from --extraction or a plan file.
+func TestLeachFlagConflictsAndExtraction(t *testing.T) {
+	for _, c := range []struct {
+		name string
+		args []string
+		want string
+	}{
+		{"hcl with peroxide", []string{"--route", "hydrochloric", "--h2o2-vol-pct", "5"}, "--route hydrochloric and --h2o2-vol-pct disagree"},
+		{"recipe and excess", []string{"--acid-molarity", "2", "--acid-excess", "1.2"}, "--acid-molarity and --acid-excess disagree"},
+		{"density and volume", []string{"--pulp-density", "150", "--liquor-volume", "2000"}, "--pulp-density and --liquor-volume disagree"},
+		{"bad extraction", []string{"--extraction", "Co=1.5"}, "extraction lies"},
+		{"not a metal", []string{"--extraction", "CO=0.9"}, "not a metal"},
+	} {
+		t.Run(c.name, func(t *testing.T) {
+			code, _, errs := run(t, "", append([]string{"demo", "--samples", "20"}, c.args...)...)
+			if code == 0 || !strings.Contains(errs, c.want) {
+				t.Errorf("exit %d, %q, want %q", code, errs, c.want)
+			}
+		})
+	}
+	code, out, errs := run(t, "", "demo", "--samples", "20", "--json", "--extraction", "Co=0.5,Ni=50%")
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	var rep struct {
+		Leach struct {
+			Liquor struct {
+				ExtractionReached map[string]struct{ P50 float64 } `json:"extraction_reached"`
+			}
+		}
+	}
+	if err := json.Unmarshal([]byte(out), &rep); err != nil {
+		t.Fatal(err)
+	}
+	for _, el := range []string{"Co", "Ni"} {
+		if x := rep.Leach.Liquor.ExtractionReached[el].P50; x > 0.5+1e-9 || x < 0.45 {
+			t.Errorf("%s extraction reached %v with --extraction %s=0.5", el, x, el)
+		}
+	}
+	dir := t.TempDir()
+	plan := filepath.Join(dir, "p.plan")
+	if err := os.WriteFile(plan, []byte("extraction = Co=0.6\nreductant = SO2\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	code, out, errs = run(t, "", "demo", "--samples", "20", "--plan", plan)
+	if code != 0 || !strings.Contains(out, "SO2") {
+		t.Errorf("plan with extraction and reductant: exit %d %s", code, errs)
+	}
+}

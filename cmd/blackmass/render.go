@@ -165,20 +165,34 @@ func writeLeachText(w io.Writer, r *feed.Report) {
 	} else {
 		fmt.Fprintf(w, "dosing: acid %g× stoichiometry + %g mol/L free acid", st.AcidExcess, st.FreeAcidMolPerL)
 	}
-	if len(l.Reagents) < 2 {
-		fmt.Fprintln(w, ", no peroxide")
-	} else if st.RecipeH2O2VolPct > 0 {
+	switch {
+	case len(l.Reagents) < 2:
+		fmt.Fprintln(w, ", no reductant")
+	case st.RecipeH2O2VolPct > 0:
 		fmt.Fprintf(w, ", peroxide %g vol%% of %g %% H2O2\n", st.RecipeH2O2VolPct, st.H2O2WtPct)
-	} else {
-		fmt.Fprintf(w, ", peroxide %g× stoichiometry\n", st.ReductantExcess)
+	case st.RecipeReductantGPerL > 0:
+		fmt.Fprintf(w, ", %s %g g/L\n", st.Reductant, st.RecipeReductantGPerL)
+	default:
+		fmt.Fprintf(w, ", %s %g× stoichiometry\n", st.Reductant, st.ReductantExcess)
 	}
+	fmt.Fprintf(w, "temperature %g °C\n", st.TemperatureC)
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
-	fmt.Fprintln(tw, "reagent\tP10 kg\tP50 kg\tP90 kg\tP50 L\t× stoich P50\t")
+	fmt.Fprintln(tw, "reagent\tP10 kg\tP50 kg\tP90 kg\tP50 L\t× plan P50\t× full P10\t")
 	for _, g := range l.Reagents {
-		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%s\t%.2f\t\n", g.Name, num(g.Kg.P10), num(g.Kg.P50), num(g.Kg.P90), num(g.Litres.P50), g.Ratio.P50)
+		litres := num(g.Litres.P50)
+		if g.DensityGmL == 0 {
+			litres = "(solid/gas)"
+		}
+		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%s\t%.2f\t%.2f\t\n", g.Name, num(g.Kg.P10), num(g.Kg.P50), num(g.Kg.P90), litres, g.Ratio.P50, g.RatioFull.P10)
 	}
-	fmt.Fprintf(tw, "make-up water\t\t\t\t%s\t\t\n", num(l.WaterL.P50))
+	fmt.Fprintf(tw, "make-up water\t\t\t\t%s\t\t\t\n", num(l.WaterL.P50))
 	tw.Flush()
+	for _, lim := range l.Limiting {
+		fmt.Fprintf(w, "limited by %s in %.0f %% of samples (reaches %.0f %% of the plan, P50)\n", lim.Reagent, 100*lim.SampleShare, 100*lim.ReachedShare.P50)
+	}
+	if sc := l.Scrubber; sc != nil {
+		fmt.Fprintf(w, "chlorine scrubber: %s kg %s (%s L, P50; %s)\n", num(sc.Kg.P50), sc.Reagent, num(sc.Litres.P50), sc.Reaction)
+	}
 	if l.TotalCost != nil {
 		fmt.Fprintf(w, "reagent cost P10/P50/P90: %.2f / %.2f / %.2f\n", l.TotalCost.P10, l.TotalCost.P50, l.TotalCost.P90)
 	}
@@ -191,13 +205,18 @@ func writeLeachText(w io.Writer, r *feed.Report) {
 	tw.Flush()
 	fmt.Fprintf(w, "liquor: %s L (P50), free acid %.2f mol/L (P50), %s %.2f mol/L\n", num(l.Liquor.VolumeL.P50), l.FreeAcidMolPerL.P50, l.Liquor.Anion, l.Liquor.AnionMolPerL.P50)
 	tw = tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
-	fmt.Fprintln(tw, "element\tP10 g/L\tP50 g/L\tP90 g/L\tP50 mol/L\t")
-	for _, sym := range r.ElementOrder {
+	fmt.Fprintln(tw, "element\tP10 g/L\tP50 g/L\tP90 g/L\tP50 mol/L\textraction P50\t")
+	order := append(slices.Clone(r.ElementOrder), "Na")
+	for _, sym := range order {
 		c, ok := l.Liquor.Elements[sym]
 		if !ok {
 			continue
 		}
-		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%.4f\t\n", sym, num(c.GPerL.P10), num(c.GPerL.P50), num(c.GPerL.P90), c.MolPerL.P50)
+		x := ""
+		if e, ok := l.Liquor.ExtractionReached[sym]; ok {
+			x = fmt.Sprintf("%.1f %%", 100*e.P50)
+		}
+		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%.4f\t%s\t\n", sym, num(c.GPerL.P10), num(c.GPerL.P50), num(c.GPerL.P90), c.MolPerL.P50, x)
 	}
 	tw.Flush()
 	var sat []string

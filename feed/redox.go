@@ -1,0 +1,350 @@
+package feed
+
+import (
+	"fmt"
+	"math"
+	"slices"
+	"strings"
+
+	"blackmass/cathode"
+	"blackmass/data"
+)
+
+// Reductant is a reagent that supplies electrons to the oxides, by its oxidation half-reaction
+// per mole (data/reductants.csv).
+type Reductant struct {
+	Key           string
+	Formula       string
+	Aliases       []string
+	ElectronsMol  float64 // e− given per mol
+	HPlusMol      float64 // H+ released per mol
+	SulfateMol    float64 // SO4²− added to the liquor per mol
+	SodiumMol     float64 // Na+ added per mol
+	O2Mol         float64 // O2 given off per mol
+	WaterMol      float64 // water released per mol (negative: taken up)
+	Oxidant       bool    // can also oxidise copper metal and Fe(II) (peroxide)
+	Form          string  // solution, gas, solid
+	MolarMassGMol float64
+	Source        string
+}
+
+// LoadReductants reads reductants.csv from the tables.
+func LoadReductants(tables interface{ ReadTable(string) (*data.Table, error) }) ([]*Reductant, error) {
+	t, err := tables.ReadTable("reductants.csv")
+	if err != nil {
+		return nil, err
+	}
+	var out []*Reductant
+	for _, r := range t.Rows {
+		rd := &Reductant{Key: r.Str("reductant"), Formula: r.Str("formula"), Oxidant: r.Str("oxidant") == "yes", Form: r.Str("form"), Source: r.Str("source")}
+		for _, a := range strings.Split(r.Str("aliases"), "|") {
+			if a = strings.TrimSpace(a); a != "" {
+				rd.Aliases = append(rd.Aliases, a)
+			}
+		}
+		for col, p := range map[string]*float64{"electrons_per_mol": &rd.ElectronsMol, "h_plus_per_mol": &rd.HPlusMol, "sulfate_per_mol": &rd.SulfateMol,
+			"sodium_per_mol": &rd.SodiumMol, "o2_per_mol": &rd.O2Mol, "water_per_mol": &rd.WaterMol} {
+			if *p, err = r.Float(col); err != nil {
+				return nil, err
+			}
+		}
+		if !(rd.ElectronsMol > 0) {
+			return nil, r.Errorf("a reductant gives electrons")
+		}
+		f, err := cathode.ParseFormula(rd.Formula)
+		if err != nil {
+			return nil, r.Errorf("%v", err)
+		}
+		rd.MolarMassGMol = f.MolarMass(cathode.DefaultElements())
+		out = append(out, rd)
+	}
+	return out, nil
+}
+
+// dataTables reads tables from the embedded data.
+type dataTables struct{}
+
+func (dataTables) ReadTable(name string) (*data.Table, error) { return data.ReadTable(data.FS, name) }
+
+// FindReductant returns the reductant named by key, formula or alias (case-insensitive).
+func FindReductant(all []*Reductant, name string) (*Reductant, error) {
+	var names []string
+	for _, r := range all {
+		for _, n := range append([]string{r.Key, r.Formula}, r.Aliases...) {
+			if strings.EqualFold(strings.TrimSpace(name), n) {
+				return r, nil
+			}
+		}
+		names = append(names, r.Key)
+	}
+	return nil, fmt.Errorf("unknown reductant %q (want %s)", name, strings.Join(names, ", "))
+}
+
+// leachElements are the elements the liquor report follows, in display order.
+var leachElements = []string{"Li", "Co", "Ni", "Mn", "Al", "Fe", "Cu", "P", "F", "Na"}
+
+func elementIndex(sym string) int { return slices.Index(leachElements, sym) }
+
+// redoxInput is one sample's black mass and dose.
+type redoxInput struct {
+	route   cathode.Route
+	species []cathode.Species
+	mol     []float64                 // per compound
+	plan    func(sym string) float64  // planned extraction (route's range or the user's)
+	hPlus   float64                   // H+ the acid supplies; +Inf: as much as needed
+	red     *Reductant                // nil: none added
+	redMol  float64                   // reductant dosed; +Inf: as much as needed
+	lost    float64                   // share of a peroxide dose that decomposes
+	metalE0 func(sym string) float64 // standard potential of the metal's couple
+}
+
+// redoxResult is what the sample's leach reached.
+type redoxResult struct {
+	feedMol      [10]float64 // per leachElements, in the feed
+	liquorMol    [10]float64 // dissolved
+	fe3Mol       float64     // of the dissolved iron, oxidised to Fe(III)
+	hPlusUsed    float64     // H+ consumed (net of what the reductant releases)
+	redUsed      float64     // reductant that reduced the oxides (mol)
+	oxidantUsed  float64     // peroxide that oxidised Cu, Fe(II) or phosphate iron (mol)
+	redDecomp    float64     // peroxide decomposed (mol)
+	h2, o2, cl2  float64
+	co2          float64
+	anionMol     float64 // SO4²− or Cl− in the liquor
+	freeH        float64 // H+ left
+	h2Potential  float64 // H2 if every metal less noble than hydrogen reacted with the acid alone
+	eNeeded      float64 // electrons the oxides took at the extraction reached
+	eFromMetals  float64 // of those, given by metals in the feed
+	reductionCap float64 // share of the planned reduction the electrons allowed (1: not limited)
+	acidCap      float64 // share of the planned dissolution the acid allowed (1: not limited)
+}
+
+// leachSample dissolves one sample's black mass with the dose given: the extraction reached is
+// the lesser of the planned extraction and what the acid and the electrons can dissolve.
+//
+// Electrons: the oxides' Co(III), Ni(III/IV) and Mn(IV) take electrons to reach M²⁺ (from the
+// charge balance, cathode.Dissolve). Metals in the feed give theirs first, the least noble first
+// (Al, Fe, Co, Ni, then Cu); the added reductant (or chloride, as Cl2, on the hydrochloric route)
+// gives the rest. Metal left over dissolves with H2 if it is less noble than hydrogen; copper left
+// needs an oxidant (peroxide) or stays. Peroxide left then oxidises Fe(II) to Fe(III) (E° 0.771 V,
+// after Cu²⁺/Cu at 0.34 V) and the remainder decomposes to O2.
+//
+// Acid: H+ taken by the solids' anions, by H2 and by the peroxide acting as oxidant, less the
+// H+ the reductant releases. Short of acid, every extraction is scaled down until the acid just
+// suffices: free acid never goes negative.
+func leachSample(in redoxInput) (redoxResult, error) {
+	fRed, fAcid := 1.0, 1.0
+	var res redoxResult
+	for iter := 0; iter < 8; iter++ {
+		r, eCap, hNeed, err := dissolveOnce(in, fRed, fAcid)
+		if err != nil {
+			return r, err
+		}
+		res = r
+		nRed, nAcid := fRed, fAcid
+		if r.eNeeded > 0 && eCap < r.eNeeded*(1-1e-12) {
+			nRed = fRed * eCap / r.eNeeded
+		}
+		if hNeed > in.hPlus*(1+1e-12) && hNeed > 0 {
+			nAcid = fAcid * in.hPlus / hNeed
+		}
+		if math.Abs(nRed-fRed) < 1e-12 && math.Abs(nAcid-fAcid) < 1e-12 {
+			break
+		}
+		fRed, fAcid = math.Max(nRed, 0), math.Max(nAcid, 0)
+	}
+	res.reductionCap, res.acidCap = fRed, fAcid
+	if res.freeH < 0 {
+		res.freeH = 0 // rounding of the last step; the acid was scaled to suffice
+	}
+	return res, nil
+}
+
+// donor is a metal of the feed that can give electrons.
+type donor struct {
+	sym     string
+	mol, z  float64
+	e0      float64
+	usedOx  float64 // electrons given to the oxides
+	toH2    float64 // electrons given to H+
+	toOxid  float64 // electrons taken by the oxidant
+	dissolv float64 // mol dissolved
+}
+
+// dissolveOnce is one pass at reduction share fRed and acid share fAcid. It returns the result,
+// the electrons available to the oxides, and the H+ needed.
+func dissolveOnce(in redoxInput, fRed, fAcid float64) (redoxResult, float64, float64, error) {
+	var r redoxResult
+	var donors []*donor
+	var hUptake, eOxNeed float64
+	for c, sp := range in.species {
+		n := in.mol[c]
+		if n <= 0 || sp.Inert() {
+			continue
+		}
+		for _, t := range sp.Formula.Terms() {
+			if k := elementIndex(t.Symbol); k >= 0 {
+				r.feedMol[k] += n * t.Amount
+			}
+		}
+		if sp.Metallic() {
+			sym := sp.Formula.Terms()[0].Symbol
+			donors = append(donors, &donor{sym: sym, mol: n * in.plan(sym) * fAcid, z: cathode.AqueousCharge(sym), e0: in.metalE0(sym)})
+			continue
+		}
+		// On the selective route an oxide's lithium stays in its lattice with the metals: it
+		// leaves only as far as the oxide itself dissolves.
+		liWithLattice := in.route == cathode.SulfuricSelective && sp.Anion() == "oxide"
+		latticeX := 0.0
+		if liWithLattice {
+			tm := 0.0
+			for _, t := range sp.Formula.Terms() {
+				if t.Symbol != "Li" && cathode.IsMetal(t.Symbol) {
+					latticeX += t.Amount * in.plan(t.Symbol)
+					tm += t.Amount
+				}
+			}
+			if tm > 0 {
+				latticeX /= tm
+			}
+		}
+		x := func(sym string) float64 {
+			v := in.plan(sym) * fAcid
+			if sym == "Li" && liWithLattice {
+				v = latticeX * fAcid * fRed
+			}
+			if sp.State(sym) > cathode.AqueousCharge(sym) && cathode.AqueousCharge(sym) > 0 {
+				v *= fRed // the reducible metals of an oxide dissolve only as far as electrons allow
+			}
+			return v
+		}
+		rx, err := cathode.Dissolve(sp, in.route, x)
+		if err != nil {
+			return r, 0, 0, err
+		}
+		hUptake += rx.HPlusMol * n
+		if in.route == cathode.Hydrochloric {
+			r.eNeeded += 2 * rx.Cl2Mol * n
+		} else {
+			r.eNeeded += 2 * rx.H2O2ReductantMol * n
+			eOxNeed += 2 * rx.H2O2OxidantMol * n
+		}
+		r.co2 += rx.CO2Mol * n
+		for _, ion := range rx.Cations {
+			if k := elementIndex(ion.Symbol); k >= 0 {
+				r.liquorMol[k] += ion.Mol * n
+			}
+		}
+		r.liquorMol[elementIndex("P")] += rx.H3PO4Mol * n
+		r.liquorMol[elementIndex("F")] += rx.HFMol * n
+	}
+	for _, d := range donors {
+		if d.e0 < 0 {
+			r.h2Potential += d.mol * d.z / 2
+		}
+	}
+	// Metals give electrons to the oxides, the least noble first.
+	slices.SortStableFunc(donors, func(a, b *donor) int { return cmpFloat(a.e0, b.e0) })
+	rem := r.eNeeded
+	for _, d := range donors {
+		give := math.Min(rem, d.mol*d.z)
+		d.usedOx, rem = give, rem-give
+		r.eFromMetals += give
+	}
+	// The reductant (or chloride) gives the rest.
+	eCap := r.eFromMetals
+	redAvail := 0.0
+	switch {
+	case in.route == cathode.Hydrochloric:
+		r.cl2 = rem / 2
+		eCap += rem
+		rem = 0
+	case in.red != nil:
+		redAvail = in.redMol
+		if in.red.Oxidant && !math.IsInf(redAvail, 1) {
+			r.redDecomp = redAvail * in.lost
+			redAvail -= r.redDecomp
+		}
+		need := rem / in.red.ElectronsMol
+		r.redUsed = math.Min(need, redAvail)
+		eCap += redAvail * in.red.ElectronsMol
+		rem -= r.redUsed * in.red.ElectronsMol
+		redAvail -= r.redUsed
+	}
+	_ = rem // a shortfall is returned as eCap < eNeeded and scales fRed
+	// Metal left over: H2 if less noble than hydrogen, else an oxidant or nothing.
+	oxidantLeft := 0.0
+	if in.red != nil && in.red.Oxidant {
+		oxidantLeft = redAvail
+	}
+	if math.IsInf(oxidantLeft, 1) {
+		oxidantLeft = 0 // "as needed" doses the reduction only; the planner adds the oxidant need below
+	}
+	eOxNeedTotal := eOxNeed
+	for _, d := range donors {
+		left := d.mol*d.z - d.usedOx
+		switch {
+		case d.e0 < 0:
+			d.toH2 = left
+			r.h2 += left / 2
+		case in.route != cathode.Hydrochloric && in.red != nil && in.red.Oxidant:
+			eOxNeedTotal += left
+			take := math.Min(left, 2*oxidantLeft)
+			if math.IsInf(in.redMol, 1) {
+				take = left
+			}
+			d.toOxid = take
+			oxidantLeft -= take / 2
+		}
+		d.dissolv = (d.usedOx + d.toH2 + d.toOxid) / d.z
+		if k := elementIndex(d.sym); k >= 0 {
+			r.liquorMol[k] += d.dissolv
+		}
+	}
+	// Phosphate iron on the selective route, then Fe(II) in the liquor, take the oxidant left.
+	oxUsedE := 0.0
+	for _, d := range donors {
+		oxUsedE += d.toOxid
+	}
+	if eOxNeed > 0 {
+		oxUsedE += eOxNeed // the selective route's oxidant need is dosed with the reagent
+	}
+	if in.route == cathode.SulfuricPeroxide && in.red != nil && in.red.Oxidant {
+		fe2 := r.liquorMol[elementIndex("Fe")]
+		if !math.IsInf(in.redMol, 1) {
+			ox := math.Min(fe2, 2*math.Max(oxidantLeft, 0))
+			r.fe3Mol = ox
+			oxidantLeft -= ox / 2
+			oxUsedE += ox
+		}
+	}
+	r.oxidantUsed = oxUsedE / 2
+	if in.red != nil && in.red.Oxidant && !math.IsInf(in.redMol, 1) {
+		leftover := math.Max(in.redMol-r.redDecomp-r.redUsed-r.oxidantUsed, 0)
+		r.redDecomp += leftover
+	}
+	// H+ balance: uptake by anions, H2, oxidant (2 H+ per H2O2 reduced to water) and Fe(III);
+	// released by the reductant.
+	hNeed := hUptake + 2*r.h2 + oxUsedE
+	if in.red != nil {
+		hNeed -= r.redUsed * in.red.HPlusMol
+	}
+	r.hPlusUsed = hNeed
+	r.freeH = in.hPlus - hNeed
+	// Gases and the liquor anion.
+	if in.red != nil {
+		r.o2 = r.redUsed*in.red.O2Mol + r.redDecomp/2
+		r.liquorMol[elementIndex("Na")] += r.redUsed * in.red.SodiumMol
+	}
+	_ = eOxNeedTotal
+	return r, eCap, hNeed, nil
+}
+
+func cmpFloat(a, b float64) int {
+	switch {
+	case a < b:
+		return -1
+	case a > b:
+		return 1
+	}
+	return 0
+}
