@@ -128,11 +128,11 @@ type LeachReport struct {
 	Limiting        []Limit         `json:"limiting,omitempty"`
 	Scrubber        *Scrubber       `json:"chlorine_scrubber,omitempty"`
 	// PeroxideHeatRiseK is the adiabatic temperature rise if all the peroxide decomposed.
-	PeroxideHeatRiseK *Stat `json:"peroxide_heat_rise_K,omitempty"`
-	Warnings        []string        `json:"warnings"`
-	Safety          []string        `json:"safety"`
-	Assumptions     []string        `json:"assumptions"`
-	Extraction      []ParamResult   `json:"extraction"`
+	PeroxideHeatRiseK *Stat         `json:"peroxide_heat_rise_K,omitempty"`
+	Warnings          []string      `json:"warnings"`
+	Safety            []string      `json:"safety"`
+	Assumptions       []string      `json:"assumptions"`
+	Extraction        []ParamResult `json:"extraction"`
 }
 
 type reagentTable map[string][][2]float64 // reagent -> sorted (wt%, density)
@@ -327,8 +327,8 @@ type leachPlanner struct {
 	n       int
 	// per sample
 	vol, acidDose, redDose, acidPlan, redPlan, acidFull, redFull, water []float64
-	res                                                                  []redoxResult
-	grown                                                                int
+	res                                                                 []redoxResult
+	grown                                                               int
 }
 
 func newLeachPlanner(s *Samples, opt LeachOptions, lt *leachTables) (*leachPlanner, error) {
@@ -701,7 +701,7 @@ func (p *leachPlanner) byproducts(lr *LeachReport) {
 		if err == nil {
 			kg := col(p.n, func(i int) float64 { return p.res[i].cl2 * naohPerCl2 * cathode.MolarMassOf("NaOH") / 1000 })
 			lr.Scrubber = &Scrubber{Reagent: "NaOH 50 %", KgPure: summarise(kg), Kg: summarise(col(p.n, func(i int) float64 { return kg[i] / 0.5 })),
-				Litres: summarise(col(p.n, func(i int) float64 { return kg[i] / 0.5 / rho })),
+				Litres:   summarise(col(p.n, func(i int) float64 { return kg[i] / 0.5 / rho })),
 				Reaction: "Cl2 + 2 NaOH → NaCl + NaOCl + H2O (keep the scrubber caustic in excess; hypochlorite is an oxidant)"}
 		}
 	}

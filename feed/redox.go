@@ -29,7 +29,9 @@ type Reductant struct {
 }
 
 // LoadReductants reads reductants.csv from the tables.
-func LoadReductants(tables interface{ ReadTable(string) (*data.Table, error) }) ([]*Reductant, error) {
+func LoadReductants(tables interface {
+	ReadTable(string) (*data.Table, error)
+}) ([]*Reductant, error) {
 	t, err := tables.ReadTable("reductants.csv")
 	if err != nil {
 		return nil, err
@@ -89,12 +91,12 @@ func elementIndex(sym string) int { return slices.Index(leachElements, sym) }
 type redoxInput struct {
 	route   cathode.Route
 	species []cathode.Species
-	mol     []float64                 // per compound
-	plan    func(sym string) float64  // planned extraction (route's range or the user's)
-	hPlus   float64                   // H+ the acid supplies; +Inf: as much as needed
-	red     *Reductant                // nil: none added
-	redMol  float64                   // reductant dosed; +Inf: as much as needed
-	lost    float64                   // share of a peroxide dose that decomposes
+	mol     []float64                // per compound
+	plan    func(sym string) float64 // planned extraction (route's range or the user's)
+	hPlus   float64                  // H+ the acid supplies; +Inf: as much as needed
+	red     *Reductant               // nil: none added
+	redMol  float64                  // reductant dosed; +Inf: as much as needed
+	lost    float64                  // share of a peroxide dose that decomposes
 	metalE0 func(sym string) float64 // standard potential of the metal's couple
 }
 
