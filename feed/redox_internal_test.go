@@ -1,0 +1,126 @@
+package feed
+
+import (
+	"math"
+	"testing"
+
+	"blackmass/cathode"
+)
+
+// Every reductant's half-reaction balances: reductant + w H2O → products + h H+ + e e−, with the
+// products SO4²− (sulfate), Na+ (sodium), O2, and for ascorbic acid dehydroascorbic acid C6H6O6.
+// Elements and charge are counted from the formulas, so a wrong column in reductants.csv fails.
+func TestReductantHalfReactionsBalance(t *testing.T) {
+	all, err := LoadReductants(dataTables{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	product := map[string]string{"C6H8O6": "C6H6O6"}
+	for _, r := range all {
+		t.Run(r.Key, func(t *testing.T) {
+			f, err := cathode.ParseFormula(r.Formula)
+			if err != nil {
+				t.Fatal(err)
+			}
+			left := map[string]float64{"H": 2 * -r.WaterMol, "O": -r.WaterMol}
+			for _, tm := range f.Terms() {
+				left[tm.Symbol] += tm.Amount
+			}
+			right := map[string]float64{"S": r.SulfateMol, "O": 4*r.SulfateMol + 2*r.O2Mol, "Na": r.SodiumMol, "H": r.HPlusMol}
+			if p, ok := product[r.Formula]; ok {
+				pf, _ := cathode.ParseFormula(p)
+				for _, tm := range pf.Terms() {
+					right[tm.Symbol] += tm.Amount
+				}
+			}
+			for _, el := range []string{"H", "O", "S", "Na", "C"} {
+				if math.Abs(left[el]-right[el]) > 1e-12 {
+					t.Errorf("%s: %g on the left, %g on the right", el, left[el], right[el])
+				}
+			}
+			charge := -2*r.SulfateMol + r.SodiumMol + r.HPlusMol - r.ElectronsMol
+			if math.Abs(charge) > 1e-12 {
+				t.Errorf("charge on the right %g, want 0", charge)
+			}
+		})
+	}
+}
+
+// Electrons close in every sample: what the metals of the solids take (their oxidation-state
+// change as they dissolve, from the species' states) equals what the metals of the feed, the
+// reductant and chloride give, less what goes to H2 and to the peroxide acting as oxidant.
+func TestLeachElectronsClose(t *testing.T) {
+	cat, err := cathode.DefaultCatalogue()
+	if err != nil {
+		t.Fatal(err)
+	}
+	reds, err := LoadReductants(dataTables{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	h2o2, _ := FindReductant(reds, "H2O2")
+	so2, _ := FindReductant(reds, "SO2")
+	for _, e := range cat.Entries() {
+		for _, route := range cathode.Routes() {
+			for _, red := range []*Reductant{h2o2, so2} {
+				for _, dose := range []float64{0.2, 0.6, 5} {
+					var species []cathode.Species
+					var mol []float64
+					for _, x := range []struct {
+						f string
+						n float64
+					}{{e.Formula.String(), 1}, {"Al", 0.1}, {"Cu", 0.1}, {"Fe", 0.05}} {
+						f, _ := cathode.ParseFormula(x.f)
+						sp, err := cathode.NewSpecies(f)
+						if err != nil {
+							t.Fatal(err)
+						}
+						species, mol = append(species, sp), append(mol, x.n)
+					}
+					r := red
+					if route == cathode.Hydrochloric {
+						r = nil
+					}
+					es := cathode.DefaultElements()
+					in := redoxInput{route: route, species: species, mol: mol, plan: func(string) float64 { return 0.9 }, hPlus: dose * 8, red: r, redMol: dose,
+						lost: 0.2, metalE0: func(s string) float64 { return es.Lookup(s).StandardPotential }}
+					res, err := leachSample(in)
+					if err != nil {
+						t.Fatal(err)
+					}
+					// Electrons taken by the oxide's metals: Σ (state − aqueous charge) over what
+					// of them dissolved, computed from the liquor and the species' states.
+					var taken float64
+					ox := species[0]
+					for _, tm := range ox.Formula.Terms() {
+						z := cathode.AqueousCharge(tm.Symbol)
+						if !cathode.IsMetal(tm.Symbol) || z == 0 || tm.Symbol == "Li" {
+							continue
+						}
+						k := elementIndex(tm.Symbol)
+						metalFromFeed := 0.0
+						for c := 1; c < len(species); c++ {
+							if species[c].Formula.Terms()[0].Symbol == tm.Symbol {
+								metalFromFeed = -1 // the same element also came as metal: skip this check
+							}
+						}
+						if metalFromFeed < 0 || k < 0 {
+							continue
+						}
+						taken += (ox.State(tm.Symbol) - z) * res.liquorMol[k]
+					}
+					if route == cathode.SulfuricSelective && ox.Anion() == "phosphate" {
+						continue // the phosphate's iron is oxidised into the residue: checked by the charge balance
+					}
+					given := res.eFromMetals + 2*res.cl2
+					if r != nil {
+						given += res.redUsed * r.ElectronsMol
+					}
+					if math.Abs(taken-given) > 1e-9*math.Max(1, math.Abs(taken)) {
+						t.Errorf("%s %s %s dose %g: oxides took %.9g e−, were given %.9g", e.Key, route, red.Key, dose, taken, given)
+					}
+				}
+			}
+		}
+	}
+}
