@@ -153,7 +153,9 @@ func buildEstimate(o *estimateOptions, name string, in io.Reader) (*feed.Report,
 	if err != nil {
 		return nil, err
 	}
-	lot := feed.NewLot(model, !o.noLines)
+	// Per-line detail is kept only for the outputs that print it (JSON and the workbook): the
+	// text report never does, and keeping it costs memory in proportion to the manifest.
+	lot := feed.NewLot(model, !o.noLines && (o.asJSON || o.xlsxPath != ""))
 	mopt := intake.Options{Catalogue: cat, UnknownAsPrior: o.unknown == "prior", IgnoreColumns: o.ignore, Sheet: o.sheet}
 	h := sha256.New()
 	br := bufio.NewReaderSize(in, 64<<10)

@@ -18,17 +18,17 @@ func writeReportText(w io.Writer, r *feed.Report) {
 	in := r.Inputs
 	title := "blackmass estimate"
 	if in.LotID != "" {
-		title += " — lot " + in.LotID
+		title += " — lot " + intake.Printable(in.LotID, 80)
 	}
 	if in.Supplier != "" {
-		title += " from " + in.Supplier
+		title += " from " + intake.Printable(in.Supplier, 80)
 	}
 	fmt.Fprintln(w, title)
 	sha := in.SHA256
 	if len(sha) > 12 {
 		sha = sha[:12] + "…"
 	}
-	fmt.Fprintf(w, "input %s (sha256 %s)\n", in.File, sha)
+	fmt.Fprintf(w, "input %s (sha256 %s)\n", intake.Printable(in.File, 200), sha)
 	if r.Lot.Lines > 0 {
 		fmt.Fprintf(w, "%d lines, %d items, %d cells, %.2f kWh nameplate", r.Lot.Lines, r.Lot.Items, r.Lot.Cells, r.Lot.NameplateKWh)
 		if r.Lot.ChargeOnlyAh > 0 {
@@ -110,6 +110,10 @@ func writeLabelsText(w io.Writer, labels []feed.LabelResolution) {
 	tw.Flush()
 }
 
+// maxPrintedRunes bounds one printed message: user text inside it (ids, labels) is escaped and
+// shortened so that it cannot drive the terminal or flood it.
+const maxPrintedRunes = 600
+
 func writeTail(w io.Writer, r *feed.Report) {
 	if r.Reconciliation != nil {
 		writeReconcileText(w, r.Reconciliation)
@@ -121,7 +125,7 @@ func writeTail(w io.Writer, r *feed.Report) {
 	if len(r.Warnings) > 0 {
 		fmt.Fprintln(w, "\nwarnings:")
 		for _, s := range r.Warnings {
-			fmt.Fprintln(w, "  - "+s)
+			fmt.Fprintln(w, "  - "+intake.Printable(s, maxPrintedRunes))
 		}
 	}
 	fmt.Fprintln(w, "\nsafety:")
@@ -225,7 +229,7 @@ func writeLeachText(w io.Writer, r *feed.Report) {
 	}
 	fmt.Fprintf(w, "saturation ratio near 25 °C (P50): %s\n", strings.Join(sat, ", "))
 	for _, s := range l.Warnings {
-		fmt.Fprintln(w, "  ! "+s)
+		fmt.Fprintln(w, "  ! "+intake.Printable(s, maxPrintedRunes))
 	}
 	fmt.Fprintln(w, "leach cautions:")
 	for _, s := range l.Safety {

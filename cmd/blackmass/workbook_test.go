@@ -1,6 +1,7 @@
 package main
 
 import (
+	"bytes"
 	"os"
 	"path/filepath"
 	"strconv"
@@ -165,5 +166,41 @@ func TestWorkbookTargets(t *testing.T) {
 	left, _ := filepath.Glob(filepath.Join(dir, ".blackmass-*"))
 	if len(left) > 0 {
 		t.Errorf("temporary files left: %v", left)
+	}
+}
+
+// The same input and seed give the same workbook bytes; a very long lot id is shortened in the
+// print header, never dropped with the caution.
+func TestWorkbookReproducibleAndHeader(t *testing.T) {
+	dir := t.TempDir()
+	long := strings.Repeat("LOT-", 80)
+	var got [2][]byte
+	for i := range got {
+		p := filepath.Join(dir, "w"+strconv.Itoa(i)+".xlsx")
+		if code, _, errs := run(t, "", "demo", "--samples", "50", "--lot", long, "--xlsx", p); code != 0 {
+			t.Fatalf("exit %d: %s", code, errs)
+		}
+		b, err := os.ReadFile(p)
+		if err != nil {
+			t.Fatal(err)
+		}
+		got[i] = b
+	}
+	if !bytes.Equal(got[0], got[1]) {
+		t.Error("two runs gave different workbook bytes")
+	}
+	f, err := excelize.OpenReader(bytes.NewReader(got[0]))
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer f.Close()
+	for _, s := range f.GetSheetList() {
+		hf, err := f.GetHeaderFooter(s)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if len(hf.OddHeader) > 255 || len(hf.OddFooter) > 255 || !strings.Contains(hf.OddFooter, "licensed practice") || !strings.Contains(hf.OddHeader, "LOT-") {
+			t.Errorf("%s: header %d chars, footer %q", s, len(hf.OddHeader), hf.OddFooter)
+		}
 	}
 }

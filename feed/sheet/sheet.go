@@ -4,6 +4,7 @@
 package sheet
 
 import (
+	"bytes"
 	"fmt"
 	"io"
 	"maps"
@@ -40,7 +41,11 @@ func Write(w io.Writer, r *feed.Report) error {
 		return err
 	}
 	defer f.Close()
-	return f.Write(w)
+	var buf bytes.Buffer
+	if err := f.Write(&buf); err != nil {
+		return err
+	}
+	return normaliseZip(buf.Bytes(), w)
 }
 
 // Build returns the workbook; the caller closes it.
@@ -195,8 +200,21 @@ func (w *writer) printSetup(sheet string, landscape bool) {
 	_ = w.f.SetPageLayout(sheet, &excelize.PageLayoutOptions{Orientation: &orient, FitToWidth: &one, FitToHeight: &auto})
 	_ = w.f.SetSheetProps(sheet, &excelize.SheetPropsOptions{FitToPage: &fit})
 	_ = w.f.SetHeaderFooter(sheet, &excelize.HeaderFooterOptions{
-		OddHeader: "&L" + escapeHF("Lot "+lot) + "&C" + escapeHF(sheet) + "&RPage &P of &N",
+		OddHeader: "&L" + escapeHF("Lot "+shorten(lot, maxHeaderLot)) + "&C" + escapeHF(sheet) + "&RPage &P of &N",
 		OddFooter: "&L" + escapeHF("blackmass "+w.r.Inputs.Version+": planning estimate; follow local codes and licensed practice")})
+}
+
+// maxHeaderLot bounds the lot id in the print header: a header or footer is limited to 255
+// characters (ECMA-376 Part 1, §18.3.1.39 oddHeader) and the caution in the footer must fit.
+const maxHeaderLot = 60
+
+// shorten cuts s to at most n runes, marking the cut with an ellipsis.
+func shorten(s string, n int) string {
+	r := []rune(s)
+	if len(r) <= n {
+		return s
+	}
+	return string(r[:n-1]) + "…"
 }
 
 func escapeHF(s string) string {
