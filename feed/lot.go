@@ -141,10 +141,21 @@ func (l *Lot) group(ch *cathode.Chemistry, f Format) *group {
 	return g
 }
 
+// MaxGroups bounds the distinct (chemistry, format) pairs of a lot: the Monte Carlo costs groups
+// × samples, and no real lot holds more than a few dozen.
+const MaxGroups = 1000
+
 // Add takes one manifest line. Its cost does not depend on the number of samples, and without
 // per-line detail it keeps nothing of the line but sums.
 func (l *Lot) Add(ln Line) error {
 	ch := ln.Chemistry
+	if len(l.order) >= MaxGroups {
+		if _, ok := l.byPtr[ptrKey{ch, ln.Format}]; !ok {
+			if _, ok := l.groups[groupKey{ch.Key, ln.Format}]; !ok {
+				return fmt.Errorf("more than %d distinct chemistries and formats in one lot; split the manifest or use fewer labels", MaxGroups)
+			}
+		}
+	}
 	g := l.group(ch, ln.Format)
 	cnt := float64(ln.Count)
 	g.energyWh += cnt * ln.EnergyWh

@@ -1,14 +1,18 @@
 package intake_test
 
 import (
+	"archive/zip"
 	"bytes"
 	"errors"
 	"fmt"
+	"io"
 	"math"
 	"os"
 	"path/filepath"
+	"runtime"
 	"strings"
 	"testing"
+	"time"
 
 	"github.com/xuri/excelize/v2"
 
@@ -459,4 +463,147 @@ func FuzzReadAssay(f *testing.F) {
 			t.Fatalf("accepted a sum of %v wt%%", sum)
 		}
 	})
+}
+
+// zipWith builds an .xlsx-like zip from a valid small workbook plus extra or replaced parts.
+func zipWith(t *testing.T, parts map[string]func(w io.Writer) error) []byte {
+	t.Helper()
+	f := excelize.NewFile()
+	_ = f.SetSheetRow("Sheet1", "A1", &[]any{"chemistry", "format", "capacity", "count"})
+	_ = f.SetSheetRow("Sheet1", "A2", &[]any{"LCO", "pouch", "10 Wh", 1})
+	var base bytes.Buffer
+	if err := f.Write(&base); err != nil {
+		t.Fatal(err)
+	}
+	zr, err := zip.NewReader(bytes.NewReader(base.Bytes()), int64(base.Len()))
+	if err != nil {
+		t.Fatal(err)
+	}
+	var out bytes.Buffer
+	zw := zip.NewWriter(&out)
+	for _, zf := range zr.File {
+		if parts[zf.Name] != nil {
+			continue
+		}
+		w, _ := zw.Create(zf.Name)
+		rc, _ := zf.Open()
+		_, _ = io.Copy(w, rc)
+		_ = rc.Close()
+	}
+	for name, fill := range parts {
+		w, _ := zw.CreateHeader(&zip.FileHeader{Name: name, Method: zip.Deflate})
+		if err := fill(w); err != nil {
+			t.Fatal(err)
+		}
+	}
+	if err := zw.Close(); err != nil {
+		t.Fatal(err)
+	}
+	return out.Bytes()
+}
+
+// repeat writes n bytes of b's pattern.
+func repeat(pattern string, n int) func(io.Writer) error {
+	return func(w io.Writer) error {
+		chunk := []byte(strings.Repeat(pattern, 1<<20/len(pattern)))
+		for written := 0; written < n; written += len(chunk) {
+			if _, err := w.Write(chunk); err != nil {
+				return err
+			}
+		}
+		return nil
+	}
+}
+
+// Decompression bombs: a small file inflating past the limit is refused, quickly and without
+// taking memory in proportion to what it would inflate to.
+func TestXLSXBombs(t *testing.T) {
+	if testing.Short() {
+		t.Skip("builds 300 MB of compressed parts")
+	}
+	cat := catalogue(t)
+	const inflated = 300 << 20 // past MaxUnzippedBytes
+	for name, parts := range map[string]map[string]func(io.Writer) error{
+		"custom properties": {"docProps/custom.xml": repeat(" ", inflated)},
+		"sheet whitespace": {"xl/worksheets/sheet1.xml": func(w io.Writer) error {
+			if _, err := io.WriteString(w, `<?xml version="1.0" encoding="UTF-8"?><worksheet xmlns="http://schemas.openxmlformats.org/spreadsheetml/2006/main"><sheetData>`); err != nil {
+				return err
+			}
+			if err := repeat(" ", inflated)(w); err != nil {
+				return err
+			}
+			_, err := io.WriteString(w, `</sheetData></worksheet>`)
+			return err
+		}},
+	} {
+		t.Run(name, func(t *testing.T) {
+			b := zipWith(t, parts)
+			if len(b) > 2<<20 {
+				t.Fatalf("the bomb is %d bytes, not small", len(b))
+			}
+			var before, after runtime.MemStats
+			runtime.GC()
+			runtime.ReadMemStats(&before)
+			start := time.Now()
+			_, err := intake.ReadXLSX(bytes.NewReader(b), "bomb.xlsx", intake.Options{Catalogue: cat}, func(feed.Line) error { return nil })
+			runtime.ReadMemStats(&after)
+			if err == nil {
+				t.Fatal("a decompression bomb was read")
+			}
+			if d := time.Since(start); d > 5*time.Second {
+				t.Errorf("took %v", d)
+			}
+			if grown := int64(after.Sys) - int64(before.Sys); grown > 200<<20 {
+				t.Errorf("memory grew by %d MB", grown>>20)
+			}
+			t.Logf("%s: refused in %v: %v", name, time.Since(start).Round(time.Millisecond), err)
+		})
+	}
+}
+
+// Hostile manifests under 10 MB: each is read or refused within 5 s and without the memory
+// growing past 200 MB, through the whole estimate.
+func TestHostileManifestCost(t *testing.T) {
+	if testing.Short() {
+		t.Skip("builds 10 MB inputs")
+	}
+	cat := catalogue(t)
+	m, _ := feed.DefaultModel()
+	hdr := "chemistry,format,capacity,count\n"
+	distinct := func() string {
+		var b strings.Builder
+		b.WriteString(hdr)
+		for i := 0; b.Len() < 9<<20; i++ {
+			fmt.Fprintf(&b, "LiNi0.%06dMn0.1Co0.2O2,pouch,10 Wh,1\n", 700000+i%99999)
+		}
+		return b.String()
+	}
+	for name, in := range map[string]string{
+		"commas":          hdr + strings.Repeat(",", 9<<20),
+		"one long line":   hdr + strings.Repeat("9", 9<<20),
+		"distinct labels": distinct(),
+		"many lines":      hdr + strings.Repeat("NMC811,cylindrical,4.8 Ah,3\n", (9<<20)/28),
+		"quotes":          hdr + `"` + strings.Repeat(`""`, 4<<20) + `"` + "\n",
+	} {
+		t.Run(name, func(t *testing.T) {
+			var before, after runtime.MemStats
+			runtime.GC()
+			runtime.ReadMemStats(&before)
+			start := time.Now()
+			lot := feed.NewLot(m, false)
+			_, err := intake.ReadCSV(strings.NewReader(in), "h.csv", intake.Options{Catalogue: cat}, lot.Add)
+			if err == nil {
+				_, _, err = lot.Estimate(feed.EstimateOptions{Seed: 1, Samples: 4000})
+			}
+			runtime.ReadMemStats(&after)
+			d := time.Since(start)
+			t.Logf("%s: %v, Sys +%d MB, %v", name, d.Round(time.Millisecond), (int64(after.Sys)-int64(before.Sys))>>20, err)
+			if d > 5*time.Second {
+				t.Errorf("took %v", d)
+			}
+			if grown := int64(after.Sys) - int64(before.Sys); grown > 200<<20 {
+				t.Errorf("memory grew by %d MB", grown>>20)
+			}
+		})
+	}
 }

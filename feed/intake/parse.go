@@ -128,7 +128,11 @@ func readRows(src rowSource, name string, opt Options, decimalComma bool, fn fun
 		}
 		info.Lines++
 		if err := fn(l); err != nil {
-			return info, err
+			var ie *Error
+			if errors.As(err, &ie) {
+				return info, err
+			}
+			return info, &Error{File: name, Line: line, Reason: err.Error()}
 		}
 	}
 	if info.Lines == 0 {
