@@ -149,6 +149,12 @@ func (c *Catalogue) Add(r io.Reader, name string) error {
 		if f.Moles("Li") <= 0 {
 			return row.Errorf("formula %s holds no lithium", f)
 		}
+		if fam := classify(f); fam == "" {
+			return row.Errorf("formula %s is not a layered LiMO2, spinel LiM2O4 or olivine LiMPO4 cathode", f.Canonical())
+		}
+		if IsUnknownWord(key) || strings.ContainsAny(key, "+&/") {
+			return row.Errorf("key %q could never be reached: it reads as an unknown chemistry or a blend", key)
+		}
 		e := &Entry{Key: key, Name: row.Str("name"), Formula: f, Species: sp, Family: row.Str("family"), Source: row.Str("source"), Catalogued: true}
 		if err := readRanges(row, e); err != nil {
 			return err

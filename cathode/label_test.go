@@ -175,3 +175,25 @@ func TestUserCatalogue(t *testing.T) {
 		t.Errorf("bad user row error = %v, want it to name mine.csv:2", err)
 	}
 }
+
+// A user catalogue cannot take over built-in labels, add unreachable keys, or pass off a
+// compound that is not a cathode.
+func TestUserCatalogueRefusals(t *testing.T) {
+	head := "key,name,formula,family,aliases,voltage_min_V,voltage_mode_V,voltage_max_V,capacity_min_mAh_g,capacity_mode_mAh_g,capacity_max_mAh_g,specific_energy_min_Wh_kg,specific_energy_max_Wh_kg,source\n"
+	for _, c := range []struct{ name, row, want string }{
+		{"alias takes over", "MYLMO,x,LiMn2O4,spinel,NMC811|LFP,3.7,3.75,3.8,100,110,120,90,160,bench", "already names"},
+		{"unknown word key", "Li-ion,x,LiMn2O4,spinel,,3.7,3.75,3.8,100,110,120,90,160,bench", "never be reached"},
+		{"blend key", "A+B,x,LiMn2O4,spinel,,3.7,3.75,3.8,100,110,120,90,160,bench", "never be reached"},
+		{"carbonate", "LC,x,Li2CO3,layered,,3.7,3.75,3.8,100,110,120,90,160,bench", "not a layered"},
+		{"aluminate", "LA,x,LiAlO2,layered,,3.7,3.75,3.8,100,110,120,90,160,bench", ""},
+		{"tiny capacity", "LT,x,LiMn2O4,spinel,,3.7,3.75,3.8,1e-300,110,120,90,160,bench", "capacity must lie"},
+	} {
+		t.Run(c.name, func(t *testing.T) {
+			cat, _ := cathode.DefaultCatalogue()
+			err := cat.Add(strings.NewReader(head+c.row+"\n"), "mine.csv")
+			if err == nil || (c.want != "" && !strings.Contains(err.Error(), c.want)) {
+				t.Errorf("error %v, want %q", err, c.want)
+			}
+		})
+	}
+}

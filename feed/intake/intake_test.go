@@ -607,3 +607,44 @@ func TestHostileManifestCost(t *testing.T) {
 		})
 	}
 }
+
+// A merged chemistry cell, or a chemistry formula with no saved result, would read as unknown on
+// the rows below: refused, naming the cell.
+func TestXLSXMergedAndFormulaCells(t *testing.T) {
+	cat := catalogue(t)
+	build := func(edit func(f *excelize.File)) []byte {
+		f := excelize.NewFile()
+		_ = f.SetSheetRow("Sheet1", "A1", &[]any{"chemistry", "format", "capacity", "count"})
+		for r := 2; r <= 4; r++ {
+			_ = f.SetSheetRow("Sheet1", fmt.Sprintf("A%d", r), &[]any{"LCO", "pouch", "10 Wh", 1})
+		}
+		edit(f)
+		var buf bytes.Buffer
+		if err := f.Write(&buf); err != nil {
+			t.Fatal(err)
+		}
+		return buf.Bytes()
+	}
+	for _, c := range []struct {
+		name string
+		edit func(f *excelize.File)
+		want string
+	}{
+		{"merged", func(f *excelize.File) {
+			_ = f.SetCellValue("Sheet1", "A3", nil)
+			_ = f.SetCellValue("Sheet1", "A4", nil)
+			_ = f.MergeCell("Sheet1", "A2", "A4")
+		}, "merged cells A2:A4"},
+		{"formula without cache", func(f *excelize.File) {
+			_ = f.SetCellValue("Sheet1", "A3", nil)
+			_ = f.SetCellFormula("Sheet1", "A3", `LOWER("LCO")`)
+		}, "formula with no saved result"},
+	} {
+		t.Run(c.name, func(t *testing.T) {
+			_, err := intake.ReadXLSX(bytes.NewReader(build(c.edit)), "m.xlsx", intake.Options{Catalogue: cat}, func(feed.Line) error { return nil })
+			if err == nil || !strings.Contains(err.Error(), c.want) {
+				t.Errorf("error %v, want %q", err, c.want)
+			}
+		})
+	}
+}

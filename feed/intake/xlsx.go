@@ -22,6 +22,10 @@ const (
 // a recognisable header. Cells are read as stored (a number formatted "0" is still 2.6), not as
 // displayed. Info names the sheet read and the sheets there were.
 func ReadXLSX(r io.Reader, name string, opt Options, fn func(feed.Line) error) (Info, error) {
+	small := false
+	if l, ok := r.(interface{ Len() int }); ok {
+		small = l.Len() <= maxCheckedBytes
+	}
 	f, err := excelize.OpenReader(r, excelize.Options{UnzipSizeLimit: MaxUnzippedBytes, UnzipXMLSizeLimit: maxXMLInMemory})
 	if err != nil {
 		return Info{}, &Error{File: name, Reason: "not a readable .xlsx workbook: " + err.Error()}
@@ -55,6 +59,9 @@ func ReadXLSX(r io.Reader, name string, opt Options, fn func(feed.Line) error) (
 	for _, sheet := range candidates {
 		info, err := readSheet(f, name, sheet, opt, fn)
 		info.Sheets = sheets
+		if err == nil && small {
+			err = checkCells(f, name, sheet, info)
+		}
 		if err == nil {
 			return info, nil
 		}
@@ -78,6 +85,46 @@ func readSheet(f *excelize.File, name, sheet string, opt Options, fn func(feed.L
 	info, err := readRows(src, src.name, opt, false, fn)
 	info.Sheet = sheet
 	return info, err
+}
+
+// maxCheckedBytes is the largest workbook whose cells are checked for merges and formulas
+// without saved results (the check loads the sheet whole; a hand-typed manifest is far smaller).
+const maxCheckedBytes = 4 << 20
+
+// maxCheckedRows bounds the rows whose chemistry cell is checked for a formula.
+const maxCheckedRows = 20000
+
+// checkCells refuses what would be misread: merged cells below the header (only their first row
+// holds the value) and chemistry cells holding a formula with no saved result (they read blank,
+// which means unknown).
+func checkCells(f *excelize.File, name, sheet string, info Info) error {
+	file := name + "[" + sheet + "]"
+	merges, err := f.GetMergeCells(sheet)
+	if err != nil {
+		return &Error{File: file, Reason: "the sheet cannot be read: " + err.Error()}
+	}
+	for _, m := range merges {
+		_, r1, err := excelize.CellNameToCoordinates(m.GetStartAxis())
+		if err == nil && r1 >= info.HeaderLine {
+			return &Error{File: file, Line: r1, Reason: fmt.Sprintf("merged cells %s:%s: only their first row holds the value; unmerge them and fill every row", m.GetStartAxis(), m.GetEndAxis())}
+		}
+	}
+	if info.chemistryColumn < 0 {
+		return nil
+	}
+	last := info.HeaderLine + min(info.Lines, maxCheckedRows) + 1
+	for row := info.HeaderLine + 1; row <= last; row++ {
+		cell, _ := excelize.CoordinatesToCellName(info.chemistryColumn+1, row)
+		v, _ := f.GetCellValue(sheet, cell, excelize.Options{RawCellValue: true})
+		if v != "" {
+			continue
+		}
+		if fm, _ := f.GetCellFormula(sheet, cell); fm != "" {
+			return &Error{File: file, Line: row, Column: "chemistry", Value: "=" + fm,
+				Reason: "a formula with no saved result reads as blank (unknown chemistry): open and save the file in a spreadsheet program, or paste the values"}
+		}
+	}
+	return nil
 }
 
 type xlsxSource struct {
