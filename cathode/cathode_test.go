@@ -82,7 +82,7 @@ func TestMolarMass(t *testing.T) {
 		{"LiNi0.8Mn0.1Co0.1O2", 97.280},
 		{"LiNi0.8Co0.15Al0.05O2", 96.082},
 		{"CoSO4·7H2O", 58.933194 + 32.06 + 4*15.999 + 7*(2*1.008+15.999)},
-		{"Al2(SO4)3", 342.131}, // REFERENCES §1 derived molar mass
+		{"Al2(SO4)3", 342.131}, // computed from CIAAW 2021 standard atomic weights (2 Al + 3 S + 12 O)
 		{"H2SO4", 98.072}, {"HCl", 36.458}, {"H2O2", 34.014}, {"LiPF6", 151.904},
 	} {
 		got := mustFormula(t, c.formula).MolarMass(es)
@@ -122,8 +122,8 @@ func TestTheoreticalCapacity(t *testing.T) {
 	// Published theoretical capacities, to the 3 significant figures the literature gives:
 	approx(t, "q(LiCoO2)", q("LiCoO2", 1), 274, 0.5)              // Nitta et al., Materials Today 18 (2015) 252, Table 1
 	approx(t, "q(LiFePO4)", q("LiFePO4", 1), 170, 0.5)            // Padhi, Nanjundaswamy, Goodenough, J. Electrochem. Soc. 144 (1997) 1188
-	approx(t, "q(LiMn2O4)", q("LiMn2O4", 1), 148, 0.5)            // battery textbooks; REFERENCES §2
-	approx(t, "q(NMC111)", q("LiNi1/3Mn1/3Co1/3O2", 1), 278, 0.5) // battery textbooks; REFERENCES §2
+	approx(t, "q(LiMn2O4)", q("LiMn2O4", 1), 148, 0.5)            // Thackeray, David, Bruce, Goodenough, Mater. Res. Bull. 18 (1983) 461 (LiMn2O4: 148 mAh/g; from memory)
+	approx(t, "q(NMC111)", q("LiNi1/3Mn1/3Co1/3O2", 1), 278, 0.5) // Ohzuku & Makimura, Chem. Lett. 30 (2001) 642 (LiCo1/3Ni1/3Mn1/3O2: 278 mAh/g; from memory)
 	approx(t, "q(graphite as LiC6)", q("C6", 1), 372, 0.5)        // battery textbooks: 372 mAh/g
 	approx(t, "q(Li4Ti5O12, 3 Li)", q("Li4Ti5O12", 3), 175, 0.5)  // battery textbooks: 175 mAh/g
 }

@@ -61,11 +61,11 @@ func TestLiteratureEquations(t *testing.T) {
 	approx(t, "H2O/LiFePO4", rx.WaterMol, 1, 1e-12)
 	approx(t, "Fe2+ in liquor", cation(rx, "Fe"), 0, 0)
 
-	// NCA: 2LiNi0.8Co0.15Al0.05O2 + 3.05H2SO4 + 0.95H2O2 -> ... (balance derived in REFERENCES §5a R3).
+	// NCA: 2LiNi0.8Co0.15Al0.05O2 + 3.05H2SO4 + 0.95H2O2 -> ... (balanced from oxidation states: Ni and Co from +3 to +2 take 0.95 e−, given by 0.475 H2O2).
 	rx = mustReact(t, "LiNi0.8Co0.15Al0.05O2", cathode.SulfuricPeroxide)
 	approx(t, "H2SO4/NCA", rx.AcidMol, 1.525, 1e-12)
 	approx(t, "H2O2/NCA", rx.H2O2ReductantMol, 0.475, 1e-12)
-	// 2LiMn2O4 + 5H2SO4 + 3H2O2 -> Li2SO4 + 4MnSO4 + 8H2O + 3O2 (REFERENCES §5a R4, balance derived).
+	// 2LiMn2O4 + 5H2SO4 + 3H2O2 -> Li2SO4 + 4MnSO4 + 8H2O + 3O2 (balanced from oxidation states: Mn from +3.5 to +2 takes 3 e− per LiMn2O4).
 	rx = mustReact(t, "LiMn2O4", cathode.SulfuricPeroxide)
 	approx(t, "H2SO4/LMO", rx.AcidMol, 2.5, 1e-12)
 	approx(t, "H2O2/LMO", rx.H2O2ReductantMol, 1.5, 1e-12)
@@ -88,7 +88,9 @@ func TestLiteratureEquations(t *testing.T) {
 }
 
 // Per kg of pure LiCoO2 at stoichiometry: 1.503 kg H2SO4 and 0.174 kg H2O2 (R1); 1.490 kg HCl and
-// 0.362 kg Cl2 (R5). REFERENCES §5b, computed from the balanced equations with CIAAW 2021.
+// 0.362 kg Cl2 (R5). Computed from the balanced equations 2LiCoO2 + 3H2SO4 + H2O2 → Li2SO4 + 2CoSO4 + 4H2O + O2
+// (Jha et al., Waste Manag. 33 (2013) 1890) and 2LiCoO2 + 8HCl → 2LiCl + 2CoCl2 + Cl2 + 4H2O
+// (Zhang et al., Hydrometallurgy 47 (1998) 259) with CIAAW 2021 atomic weights.
 func TestPerKgLiCoO2(t *testing.T) {
 	es := cathode.DefaultElements()
 	m := func(s string) float64 { return mustFormula(t, s).MolarMass(es) / 1000 } // kg/mol
@@ -118,7 +120,7 @@ func TestCobaltMetalInAzeotrope(t *testing.T) {
 }
 
 // H2 from aluminium in acid: 1.5 mol H2 per mol Al, 0.0556 mol/g, 1.246 L/g at 0 °C and 1 atm
-// (REFERENCES §10 check 13; R8 + ideal gas 22.414 L/mol, CODATA).
+// (2Al + 6H+ → 2Al³⁺ + 3H2; ideal-gas molar volume 22.413 969 L/mol, CODATA 2018).
 func TestHydrogenFromAluminium(t *testing.T) {
 	es := cathode.DefaultElements()
 	rx := mustReact(t, "Al", cathode.SulfuricPeroxide)

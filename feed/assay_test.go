@@ -157,7 +157,7 @@ func TestInferMixPublished(t *testing.T) {
 	if s := share(fit, "LCO"); s < 0.9 {
 		t.Errorf("Shin 2005 LCO cell fines: LCO share %.2f, want > 0.9", s)
 	}
-	// Derived example (REFERENCES §4b consistency check): 55 % NMC622 + 35 % graphite gives Ni 20.0,
+	// Derived example (computed from CIAAW 2021 atomic weights): 55 % NMC622 + 35 % graphite gives Ni 20.0,
 	// Co 6.7, Mn 6.2, Li 3.9 wt%: the mix should be NMC.
 	nmc := map[string]float64{"Ni": 20.0, "Co": 6.7, "Mn": 6.2, "Li": 3.9, "C": 35}
 	fit, err = feed.InferMix(mustAssay(t, assayCSV(nmc, 0.03)), all, 200, 1)
@@ -194,7 +194,8 @@ func TestReadAssayErrors(t *testing.T) {
 }
 
 // A quote from an assay of pure LiCoO2 reproduces R1: 1.503 kg H2SO4 and 0.174 kg H2O2 per kg
-// at stoichiometry (REFERENCES §5b).
+// at stoichiometry (from 2LiCoO2 + 3H2SO4 + H2O2 → Li2SO4 + 2CoSO4 + 4H2O + O2, Jha et al.,
+// Waste Manag. 33 (2013) 1890, with CIAAW 2021 atomic weights).
 func TestQuoteFromAssayLiCoO2(t *testing.T) {
 	a := mustAssay(t, assayCSV(composition(map[string]float64{"LiCoO2": 1}), 0))
 	o := feed.DefaultLeachOptions()

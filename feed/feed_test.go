@@ -74,8 +74,8 @@ func TestElementsSumToBlackMass(t *testing.T) {
 
 // Cell-level metal intensities (cathode active material of 1 kWh nameplate, most likely values)
 // fall inside published ranges. Ranges from memory of battery-material intensity studies
-// (cf. the kg/kWh tables summarised in REFERENCES §2 and the LCO/NCA book table quoted there:
-// LCO ≈0.96 kg Co/kWh, NCA ≈0.13 kg Co and 0.67 kg Ni per kWh).
+// (battery-material intensity studies, from memory: LCO ≈0.96 kg Co/kWh, NCA ≈0.13 kg Co and
+// 0.67 kg Ni per kWh).
 func TestCellMetalIntensity(t *testing.T) {
 	cat, _ := cathode.DefaultCatalogue()
 	for _, c := range []struct {
@@ -260,7 +260,7 @@ func BenchmarkCSVOnly1M(b *testing.B) {
 }
 
 // Single-chemistry lots give black-mass compositions inside the typical ranges of leaching and
-// characterisation papers (REFERENCES §4b; from memory, e.g. Vanderbruggen et al., Minerals Eng.
+// characterisation papers (from memory, e.g. Vanderbruggen et al., Minerals Eng.
 // 2021; Babanejad et al., J. Sustain. Metall. 2022), widened by 10 % relative because real fines
 // also carry moisture, plastics and dust that the model leaves out.
 func TestBlackMassCompositionRanges(t *testing.T) {
