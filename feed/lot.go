@@ -8,8 +8,9 @@ import (
 	"blackmass/cathode"
 )
 
-// LineResult is one manifest line with its parsed values and most-likely masses (every
-// parameter at its mode).
+// LineResult is one manifest line with its parsed values and its most likely masses: every
+// parameter at its mode, so they need not sum to the lot's P50 (a percentile of a sum is not the
+// sum of percentiles). The lot's distributions are in Report.Elements and Report.BlackMassKg.
 type LineResult struct {
 	Line            int                `json:"line"`
 	ID              string             `json:"id"`
@@ -29,9 +30,9 @@ type LineResult struct {
 	ModelMassKgEach float64            `json:"modelled_mass_kg_per_item"`
 	MeasuredMassKg  float64            `json:"measured_mass_kg_per_item,omitempty"`
 	MeasuredWhPerKg float64            `json:"measured_Wh_per_kg,omitempty"`
-	CathodeKg       float64            `json:"cathode_active_kg"`
-	BlackMassKg     float64            `json:"black_mass_kg"`
-	ElementsKg      map[string]float64 `json:"elements_kg"`
+	CathodeKg       float64            `json:"cathode_active_kg_most_likely"`
+	BlackMassKg     float64            `json:"black_mass_kg_most_likely"`
+	ElementsKg      map[string]float64 `json:"elements_kg_most_likely"`
 	Flags           []string           `json:"flags,omitempty"`
 	Notes           string             `json:"notes,omitempty"`
 }
