@@ -205,15 +205,6 @@ func (c *Catalogue) Lookup(label string) *Entry { return c.byName[normLabel(labe
 // Family returns the defaults for a family (layered, spinel, olivine), or nil.
 func (c *Catalogue) Family(name string) *Entry { return c.families[name] }
 
-// Prior returns the mean chemistry shares assumed for an item of unknown chemistry of the
-// application (or format) key app ("any" when unlisted).
-func (c *Catalogue) Prior(app string) []Component {
-	if c.apps[app] == nil {
-		app = "any"
-	}
-	return append([]Component(nil), c.prior[app]...)
-}
-
 // normLabel folds case and drops spaces, dashes, underscores and brackets.
 func normLabel(s string) string {
 	var b strings.Builder

@@ -3,7 +3,6 @@ package cathode
 import (
 	"fmt"
 	"io/fs"
-	"sort"
 	"sync"
 
 	"blackmass/data"
@@ -92,16 +91,6 @@ func validSymbol(s string) bool {
 
 // Lookup returns the element with the symbol, or nil.
 func (es *Elements) Lookup(symbol string) *Element { return es.bySymbol[symbol] }
-
-// Symbols returns every symbol in the table, ordered by atomic number.
-func (es *Elements) Symbols() []string {
-	out := make([]string, 0, len(es.bySymbol))
-	for s := range es.bySymbol {
-		out = append(out, s)
-	}
-	sort.Slice(out, func(i, j int) bool { return es.bySymbol[out[i]].Number < es.bySymbol[out[j]].Number })
-	return out
-}
 
 // Weight returns the atomic weight of symbol in g/mol. It panics for a symbol not in the table:
 // callers pass symbols that came out of a parsed formula or a constant of this package.

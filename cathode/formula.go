@@ -320,9 +320,6 @@ func (f Formula) Moles(symbol string) float64 {
 	return 0
 }
 
-// IsZero reports whether f is the empty formula.
-func (f Formula) IsZero() bool { return len(f.terms) == 0 }
-
 // MolarMass returns the molar mass in g/mol with the atomic weights of es.
 func (f Formula) MolarMass(es *Elements) float64 {
 	m := 0.0

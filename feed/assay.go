@@ -221,7 +221,7 @@ func QuoteFromAssay(a *Assay, opt AssayQuoteOptions) (*Report, error) {
 			break
 		}
 	}
-	lr, err := planLeach(s, opt.Leach, opt.Seed)
+	lr, err := planLeach(s, opt.Leach)
 	if err != nil {
 		return nil, err
 	}

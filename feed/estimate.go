@@ -29,9 +29,6 @@ type Samples struct {
 	groupBM   [][]float64
 }
 
-// ElementNames returns the element symbols in the order of Samples.Elements.
-func (s *Samples) ElementNames() []string { return s.comp.elements }
-
 // CompoundFormula returns compound i's formula text.
 func (s *Samples) CompoundFormula(i int) string { return s.comp.formulas[i] }
 
@@ -138,7 +135,7 @@ func (l *Lot) Estimate(opt EstimateOptions) (*Report, *Samples, error) {
 	r.Parameters = l.parameters()
 	r.ElementOrder = elementOrder(l.comp.elements)
 	if opt.Leach != nil {
-		lr, err := planLeach(s, *opt.Leach, opt.Seed)
+		lr, err := planLeach(s, *opt.Leach)
 		if err != nil {
 			return nil, nil, err
 		}
@@ -165,7 +162,9 @@ func (l *Lot) parameters() []ParamResult {
 	return out
 }
 
-var displayOrder = []string{"Li", "Co", "Ni", "Mn", "Al", "Fe", "Cu", "P", "F", "C", "O", "H"}
+// displayOrder is the order elements are shown in: the metals of value first, then the rest.
+// The leach liquor follows the same order without C, O and H (leachElements).
+var displayOrder = []string{"Li", "Co", "Ni", "Mn", "Al", "Fe", "Cu", "Na", "P", "F", "C", "O", "H"}
 
 func elementOrder(els []string) []string {
 	rank := func(s string) int {

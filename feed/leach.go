@@ -291,7 +291,7 @@ var leachSafety = map[cathode.Route][]string{
 // the demand (what the planned extraction and full dissolution need), the dose (the planner's
 // or the bench recipe's), and what that dose actually dissolves (leachSample: limiting acid and
 // electrons), then the liquor, saturation and warnings.
-func planLeach(s *Samples, opt LeachOptions, _ uint64) (*LeachReport, error) {
+func planLeach(s *Samples, opt LeachOptions) (*LeachReport, error) {
 	lt, err := loadLeachTables()
 	if err != nil {
 		return nil, err
@@ -847,7 +847,7 @@ func PlanLeachFor(kgByFormula map[string]float64, opt LeachOptions, seed uint64,
 	if err != nil {
 		return nil, err
 	}
-	return planLeach(s, opt, seed)
+	return planLeach(s, opt)
 }
 
 // columnSamples wraps compound columns (formula, kg per sample) as Samples for the leach plan.

@@ -100,9 +100,6 @@ var defaultModel = sync.OnceValues(func() (*Model, error) { return LoadModel(dat
 // DefaultModel returns the model embedded in the program.
 func DefaultModel() (*Model, error) { return defaultModel() }
 
-// Params returns every parameter in file order.
-func (m *Model) Params() []*Param { return append([]*Param(nil), m.list...) }
-
 func (m *Model) get(scope, name string) *Param { return m.params[scope+"/"+name] }
 
 // casingKind says where a format's casing metal goes.

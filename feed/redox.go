@@ -82,8 +82,22 @@ func FindReductant(all []*Reductant, name string) (*Reductant, error) {
 	return nil, fmt.Errorf("unknown reductant %q (want %s)", name, strings.Join(names, ", "))
 }
 
-// leachElements are the elements the liquor report follows, in display order.
-var leachElements = []string{"Li", "Co", "Ni", "Mn", "Al", "Fe", "Cu", "P", "F", "Na"}
+// leachElements are the elements the liquor report follows: displayOrder without C, O and H.
+var leachElements = func() []string {
+	var out []string
+	for _, s := range displayOrder {
+		if s != "C" && s != "O" && s != "H" {
+			out = append(out, s)
+		}
+	}
+	if len(out) != nLeachElements {
+		panic("feed: leachElements and nLeachElements disagree")
+	}
+	return out
+}()
+
+// nLeachElements sizes the per-sample element arrays.
+const nLeachElements = 10
 
 func elementIndex(sym string) int { return slices.Index(leachElements, sym) }
 
@@ -102,13 +116,13 @@ type redoxInput struct {
 
 // redoxResult is what the sample's leach reached.
 type redoxResult struct {
-	feedMol      [10]float64 // per leachElements, in the feed
-	liquorMol    [10]float64 // dissolved
-	fe3Mol       float64     // of the dissolved iron, oxidised to Fe(III)
-	hPlusUsed    float64     // H+ consumed (net of what the reductant releases)
-	redUsed      float64     // reductant that reduced the oxides (mol)
-	oxidantUsed  float64     // peroxide that oxidised Cu, Fe(II) or phosphate iron (mol)
-	redDecomp    float64     // peroxide decomposed (mol)
+	feedMol      [nLeachElements]float64 // per leachElements, in the feed
+	liquorMol    [nLeachElements]float64 // dissolved
+	fe3Mol       float64                 // of the dissolved iron, oxidised to Fe(III)
+	hPlusUsed    float64                 // H+ consumed (net of what the reductant releases)
+	redUsed      float64                 // reductant that reduced the oxides (mol)
+	oxidantUsed  float64                 // peroxide that oxidised Cu, Fe(II) or phosphate iron (mol)
+	redDecomp    float64                 // peroxide decomposed (mol)
 	h2, o2, cl2  float64
 	co2          float64
 	anionMol     float64 // SO4²− or Cl− in the liquor
