@@ -18,6 +18,7 @@ import (
 	"blackmass/data"
 	"blackmass/feed"
 	"blackmass/feed/intake"
+	"blackmass/feed/sheet"
 )
 
 // maxXLSXBytes bounds an .xlsx manifest, read whole as the zip format needs.
@@ -175,6 +176,9 @@ func buildEstimate(o *estimateOptions, name string, in io.Reader) (*feed.Report,
 	}
 	if err != nil {
 		return nil, err
+	}
+	if o.xlsxPath != "" && !o.noLines && info.Lines > sheet.MaxLines {
+		return nil, fmt.Errorf("%s: %d lines do not fit the workbook's Lines sheet (at most %d rows below its header): add --no-lines to leave the per-line sheet out, or split the manifest", name, info.Lines, sheet.MaxLines)
 	}
 	if _, err := io.Copy(h, br); err != nil { // hash anything the reader left unread
 		return nil, err

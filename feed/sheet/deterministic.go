@@ -24,6 +24,13 @@ func normaliseZip(in []byte, w io.Writer) error {
 	sort.Slice(files, func(i, j int) bool { return files[i].Name < files[j].Name })
 	zw := zip.NewWriter(w)
 	for _, f := range files {
+		if f.Name != "[Content_Types].xml" {
+			// Copied as compressed, without inflating and deflating again.
+			if err := zw.Copy(f); err != nil {
+				return err
+			}
+			continue
+		}
 		rc, err := f.Open()
 		if err != nil {
 			return err
@@ -33,14 +40,11 @@ func normaliseZip(in []byte, w io.Writer) error {
 		if err != nil {
 			return err
 		}
-		if f.Name == "[Content_Types].xml" {
-			body = sortContentTypes(body)
-		}
 		out, err := zw.CreateHeader(&zip.FileHeader{Name: f.Name, Method: zip.Deflate})
 		if err != nil {
 			return err
 		}
-		if _, err := out.Write(body); err != nil {
+		if _, err := out.Write(sortContentTypes(body)); err != nil {
 			return err
 		}
 	}

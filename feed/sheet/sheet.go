@@ -71,14 +71,15 @@ func Build(r *feed.Report) (*excelize.File, error) {
 	if err != nil {
 		return nil, err
 	}
-	steps := []func() error{wr.summary, wr.lines, wr.metals, wr.leach, wr.assay, wr.assumptions, wr.weighIn}
+	// The summary is made active before the Lines sheet is streamed: setting it afterwards would
+	// make the xlsx library parse the streamed sheet back into memory.
+	steps := []func() error{wr.summary, func() error { f.SetActiveSheet(0); return nil }, wr.lines, wr.metals, wr.leach, wr.assay, wr.assumptions, wr.weighIn}
 	for _, s := range steps {
 		if err := s(); err != nil {
 			f.Close()
 			return nil, err
 		}
 	}
-	f.SetActiveSheet(0)
 	lot := r.Inputs.LotID
 	if lot == "" {
 		lot = r.Inputs.File
@@ -229,8 +230,15 @@ func escapeHF(s string) string {
 	return out
 }
 
+// MaxLines is the most manifest lines the Lines sheet holds: a sheet's 1,048,576 rows (ECMA-376
+// Part 1, §18.3.1.73) less the header.
+const MaxLines = 1_048_575
+
 func (w *writer) lines() error {
 	f, r := w.f, w.r
+	if len(r.Lines) > MaxLines {
+		return fmt.Errorf("%d lines do not fit a sheet (at most %d)", len(r.Lines), MaxLines)
+	}
 	if _, err := f.NewSheet(Lines); err != nil {
 		return err
 	}

@@ -159,3 +159,43 @@ func TestDosingCalculator(t *testing.T) {
 		t.Errorf("after editing the excess: %.6f kg, want %.6f", got, want)
 	}
 }
+
+// BenchmarkWorkbook10kVsStreamFloor compares the whole 10,000-line workbook with the floor: the
+// same rows through the xlsx library's stream writer alone (report ratio = whole/floor).
+func BenchmarkWorkbook10kVsStreamFloor(b *testing.B) {
+	const n = 10_000
+	r := report(b, n)
+	b.Run("workbook", func(b *testing.B) {
+		b.ReportAllocs()
+		for b.Loop() {
+			if err := sheet.Write(io.Discard, r); err != nil {
+				b.Fatal(err)
+			}
+		}
+	})
+	b.Run("stream-floor", func(b *testing.B) {
+		b.ReportAllocs()
+		for b.Loop() {
+			f := excelize.NewFile()
+			sw, err := f.NewStreamWriter("Sheet1")
+			if err != nil {
+				b.Fatal(err)
+			}
+			for i, l := range r.Lines {
+				cell, _ := excelize.CoordinatesToCellName(1, i+1)
+				row := []any{l.ID, l.Description, l.ChemistryLabel, l.Format, l.CapacityText, "cell", l.CellsPerItem, l.Count, l.MeasuredMassKg, l.Notes, l.Application,
+					l.Line, l.Chemistry, l.EnergyWhPerItem, l.ModelMassKgEach, l.MeasuredWhPerKg, l.CathodeKg, l.BlackMassKg, ""}
+				if err := sw.SetRow(cell, row); err != nil {
+					b.Fatal(err)
+				}
+			}
+			if err := sw.Flush(); err != nil {
+				b.Fatal(err)
+			}
+			if err := f.Write(io.Discard); err != nil {
+				b.Fatal(err)
+			}
+			_ = f.Close()
+		}
+	})
+}
