@@ -6,6 +6,7 @@ import (
 	"path/filepath"
 	"strconv"
 	"strings"
+	"syscall"
 	"testing"
 
 	"github.com/xuri/excelize/v2"
@@ -202,5 +203,25 @@ func TestWorkbookReproducibleAndHeader(t *testing.T) {
 		if len(hf.OddHeader) > 255 || len(hf.OddFooter) > 255 || !strings.Contains(hf.OddFooter, "licensed practice") || !strings.Contains(hf.OddHeader, "LOT-") {
 			t.Errorf("%s: header %d chars, footer %q", s, len(hf.OddHeader), hf.OddFooter)
 		}
+	}
+}
+
+// A FIFO at the target is not a file to replace, even with --force.
+func TestWorkbookFIFOTarget(t *testing.T) {
+	p := filepath.Join(t.TempDir(), "pipe.xlsx")
+	if err := syscall.Mkfifo(p, 0o644); err != nil {
+		t.Skip("no FIFOs here:", err)
+	}
+	for _, force := range []bool{false, true} {
+		args := []string{"demo", "--samples", "20", "--xlsx", p}
+		if force {
+			args = append(args, "--force")
+		}
+		if code, _, errs := run(t, "", args...); code == 0 || !strings.Contains(errs, "pipe.xlsx exists") {
+			t.Errorf("force=%v: exit %d %s", force, code, errs)
+		}
+	}
+	if st, err := os.Lstat(p); err != nil || st.Mode()&os.ModeNamedPipe == 0 {
+		t.Errorf("the FIFO was replaced: %v %v", st.Mode(), err)
 	}
 }

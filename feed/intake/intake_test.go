@@ -648,3 +648,25 @@ func TestXLSXMergedAndFormulaCells(t *testing.T) {
 		})
 	}
 }
+
+// A sheet with a cell in the last column (XFD) on every row is refused at its first row, not
+// read at 16,384 columns a row.
+func TestXLSXWideRows(t *testing.T) {
+	f := excelize.NewFile()
+	_ = f.SetSheetRow("Sheet1", "A1", &[]any{"chemistry", "format", "capacity", "count"})
+	for r := 1; r <= 20; r++ {
+		_ = f.SetCellValue("Sheet1", fmt.Sprintf("XFD%d", r), "x")
+	}
+	var buf bytes.Buffer
+	if err := f.Write(&buf); err != nil {
+		t.Fatal(err)
+	}
+	start := time.Now()
+	_, err := intake.ReadXLSX(bytes.NewReader(buf.Bytes()), "wide.xlsx", intake.Options{Catalogue: catalogue(t)}, func(feed.Line) error { return nil })
+	if err == nil || !strings.Contains(err.Error(), "columns") {
+		t.Fatalf("error %v", err)
+	}
+	if d := time.Since(start); d > 2*time.Second {
+		t.Errorf("took %v", d)
+	}
+}
