@@ -9,6 +9,7 @@ import (
 	"strings"
 
 	"blackmass/cathode"
+	"blackmass/feed/dist"
 )
 
 // AssayValue is one assayed element in wt% of the black mass (dry basis as the lab reports it).
@@ -189,19 +190,19 @@ func QuoteFromAssay(a *Assay, opt AssayQuoteOptions) (*Report, error) {
 	if err != nil {
 		return nil, err
 	}
-	r := &Report{Inputs: opt.Inputs, Elements: map[string]Amount{}, Compounds: map[string]Amount{}, Safety: safetyNotes}
+	r := &Report{Inputs: opt.Inputs, Elements: map[string]dist.Amount{}, Compounds: map[string]dist.Amount{}, Safety: safetyNotes}
 	r.Inputs.Seed, r.Inputs.Samples = opt.Seed, n
-	r.BlackMassKg = summarise(bm)
+	r.BlackMassKg = dist.Summarise(bm)
 	for _, v := range a.Values {
 		kg := make([]float64, n)
 		for i := range n {
 			kg[i] = draws[i][v.Element] / 100 * opt.BlackMassKg
 		}
-		r.Elements[v.Element] = amount(kg, bm)
+		r.Elements[v.Element] = dist.AmountOf(kg, bm)
 	}
 	for c, name := range assayColumns {
 		if slices.Max(cols[c]) > 0 {
-			r.Compounds[name] = amount(cols[c], bm)
+			r.Compounds[name] = dist.AmountOf(cols[c], bm)
 		}
 	}
 	els := make([]string, 0, len(r.Elements))

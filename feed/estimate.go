@@ -1,9 +1,9 @@
 package feed
 
 import (
+	"blackmass/feed/dist"
 	"errors"
 	"fmt"
-	"math"
 	"slices"
 	"sort"
 )
@@ -88,15 +88,15 @@ func (l *Lot) Estimate(opt EstimateOptions) (*Report, *Samples, error) {
 			}
 		}
 	}
-	r := &Report{Inputs: opt.Inputs, Elements: map[string]Amount{}, Compounds: map[string]Amount{}, Lines: l.lines,
+	r := &Report{Inputs: opt.Inputs, Elements: map[string]dist.Amount{}, Compounds: map[string]dist.Amount{}, Lines: l.lines,
 		Warnings: append([]string(nil), l.warnings...), Safety: safetyNotes}
 	r.Inputs.Seed, r.Inputs.Samples = opt.Seed, n
-	r.Lot = LotSummary{Lines: l.nLines, Items: l.items, Cells: l.cells, NameplateKWh: round(l.energyWh/1000, 6),
-		ChargeOnlyAh: round(l.chargeAh, 6), LinesWithMass: l.withMass, LinesFlaggedByMass: l.flagged,
-		LinesByMassOnly: l.massOnly, MassOnlyKg: round(l.massOnlyKg, 6)}
+	r.Lot = LotSummary{Lines: l.nLines, Items: l.items, Cells: l.cells, NameplateKWh: dist.Round(l.energyWh/1000, 6),
+		ChargeOnlyAh: dist.Round(l.chargeAh, 6), LinesWithMass: l.withMass, LinesFlaggedByMass: l.flagged,
+		LinesByMassOnly: l.massOnly, MassOnlyKg: dist.Round(l.massOnlyKg, 6)}
 	r.Labels = l.Labels()
 	if l.modeWh > 0 {
-		r.Lot.UnknownShareOfKWh = round(l.unknownWh/l.modeWh, 6)
+		r.Lot.UnknownShareOfKWh = dist.Round(l.unknownWh/l.modeWh, 6)
 	}
 	if l.flagged > maxLineWarnings {
 		r.Warnings = append(r.Warnings, fmt.Sprintf("… and %d more lines whose measured mass disagrees with the nameplate (see lines_flagged_by_mass)", l.flagged-maxLineWarnings))
@@ -115,13 +115,13 @@ func (l *Lot) Estimate(opt EstimateOptions) (*Report, *Samples, error) {
 	if l.chargeAh > 0 {
 		r.Warnings = append(r.Warnings, fmt.Sprintf("%.0f Ah were given without a voltage: the cathode mass of those lines uses charge over capacity (no voltage needed), their Wh uses the chemistry's nominal voltage", l.chargeAh))
 	}
-	r.BlackMassKg = summarise(s.BlackMass)
+	r.BlackMassKg = dist.Summarise(s.BlackMass)
 	for e, sym := range l.comp.elements {
-		r.Elements[sym] = amount(s.Elements[e], s.BlackMass)
+		r.Elements[sym] = dist.AmountOf(s.Elements[e], s.BlackMass)
 	}
 	for c, name := range l.comp.names {
 		if slices.Max(s.Compounds[c]) > 0 {
-			r.Compounds[name] = amount(s.Compounds[c], s.BlackMass)
+			r.Compounds[name] = dist.AmountOf(s.Compounds[c], s.BlackMass)
 		}
 	}
 	for gi, g := range l.order {
@@ -130,7 +130,7 @@ func (l *Lot) Estimate(opt EstimateOptions) (*Report, *Samples, error) {
 			keys = append(keys, c.Entry.Key)
 		}
 		r.Groups = append(r.Groups, GroupResult{Chemistry: g.chem.Key, Components: keys, Format: g.format.String(), Lines: g.lines, Items: g.items,
-			NameplateKWh: round(g.energyWh/1000, 6), ChargeOnlyAh: round(g.chargeAh, 6), MassOnlyKg: round(g.massOnlyKg, 6), CathodeKg: summarise(s.groupCAM[gi]), BlackMassKg: summarise(s.groupBM[gi])})
+			NameplateKWh: dist.Round(g.energyWh/1000, 6), ChargeOnlyAh: dist.Round(g.chargeAh, 6), MassOnlyKg: dist.Round(g.massOnlyKg, 6), CathodeKg: dist.Summarise(s.groupCAM[gi]), BlackMassKg: dist.Summarise(s.groupBM[gi])})
 	}
 	r.Parameters = l.parameters()
 	r.ElementOrder = elementOrder(l.comp.elements)
@@ -181,46 +181,4 @@ func elementOrder(els []string) []string {
 		return out[i] < out[j]
 	})
 	return out
-}
-
-func amount(kg, total []float64) Amount {
-	pct := make([]float64, len(kg))
-	for i := range kg {
-		if total[i] > 0 {
-			pct[i] = 100 * kg[i] / total[i]
-		}
-	}
-	return Amount{Kg: summarise(kg), WtPct: summarise(pct)}
-}
-
-// summarise returns P10/P50/P90 (linear interpolation between order statistics, as spreadsheet
-// PERCENTILE.INC) and the mean, rounded to 9 significant digits so that reports are stable text.
-func summarise(x []float64) Stat {
-	s := slices.Clone(x)
-	slices.Sort(s)
-	mean := 0.0
-	for _, v := range s {
-		mean += v
-	}
-	mean /= float64(len(s))
-	return Stat{P10: sig(quantile(s, 0.1)), P50: sig(quantile(s, 0.5)), P90: sig(quantile(s, 0.9)), Mean: sig(mean)}
-}
-
-// quantile of sorted x at p, interpolating linearly at h = p·(n−1).
-func quantile(x []float64, p float64) float64 {
-	h := p * float64(len(x)-1)
-	lo := math.Floor(h)
-	i := int(lo)
-	if i+1 >= len(x) {
-		return x[len(x)-1]
-	}
-	return x[i] + (h-lo)*(x[i+1]-x[i])
-}
-
-func sig(v float64) float64 {
-	if v == 0 || math.IsNaN(v) || math.IsInf(v, 0) {
-		return v
-	}
-	d := 9 - int(math.Ceil(math.Log10(math.Abs(v))))
-	return round(v, d)
 }

@@ -12,6 +12,7 @@ import (
 
 	"blackmass/cathode"
 	"blackmass/feed"
+	"blackmass/feed/dist"
 	"blackmass/feed/intake"
 )
 
@@ -141,7 +142,7 @@ func atoi(s string) int {
 
 func TestPercentilesOrdered(t *testing.T) {
 	r, _ := estimate(t, mixed, 5, 1000)
-	check := func(what string, s feed.Stat) {
+	check := func(what string, s dist.Stat) {
 		if !(s.P10 <= s.P50 && s.P50 <= s.P90) {
 			t.Errorf("%s: P10 %g, P50 %g, P90 %g not ordered", what, s.P10, s.P50, s.P90)
 		}

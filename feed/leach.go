@@ -11,6 +11,7 @@ import (
 
 	"blackmass/cathode"
 	"blackmass/data"
+	"blackmass/feed/dist"
 )
 
 // MolarVolumeSTPLPerMol is the ideal-gas molar volume at 0 °C and 101.325 kPa (CODATA: 22.413 969 L/mol).
@@ -56,79 +57,79 @@ func DefaultLeachOptions() LeachOptions {
 
 // Reagent is a reagent's demand.
 type Reagent struct {
-	Name       string  `json:"name"`
-	StrengthWt float64 `json:"strength_wt_pct"`
-	DensityGmL float64 `json:"density_g_per_mL"`
-	MolarMass  float64 `json:"molar_mass_g_per_mol"`
-	KgPure     Stat    `json:"kg_pure"`
-	Kg         Stat    `json:"kg"`
-	Litres     Stat    `json:"litres"`
-	Cost       *Stat   `json:"cost,omitempty"`
-	StoichKg   Stat    `json:"stoichiometric_kg_pure"`
+	Name       string     `json:"name"`
+	StrengthWt float64    `json:"strength_wt_pct"`
+	DensityGmL float64    `json:"density_g_per_mL"`
+	MolarMass  float64    `json:"molar_mass_g_per_mol"`
+	KgPure     dist.Stat  `json:"kg_pure"`
+	Kg         dist.Stat  `json:"kg"`
+	Litres     dist.Stat  `json:"litres"`
+	Cost       *dist.Stat `json:"cost,omitempty"`
+	StoichKg   dist.Stat  `json:"stoichiometric_kg_pure"`
 	// Ratio is the dose over what the planned extraction needs; RatioFull over what full
 	// dissolution of the lot needs.
-	Ratio     Stat `json:"ratio_to_stoichiometry"`
-	RatioFull Stat `json:"ratio_to_full_dissolution"`
+	Ratio     dist.Stat `json:"ratio_to_stoichiometry"`
+	RatioFull dist.Stat `json:"ratio_to_full_dissolution"`
 }
 
 // Limit is a reagent that limited the dissolution: in what share of the samples, and what share
 // of the planned dissolution was reached.
 type Limit struct {
-	Reagent      string  `json:"reagent"`
-	SampleShare  float64 `json:"share_of_samples"`
-	ReachedShare Stat    `json:"reached_share_of_plan"`
+	Reagent      string    `json:"reagent"`
+	SampleShare  float64   `json:"share_of_samples"`
+	ReachedShare dist.Stat `json:"reached_share_of_plan"`
 }
 
 // Scrubber is the caustic to absorb the chlorine of the hydrochloric route.
 type Scrubber struct {
-	Reagent  string `json:"reagent"`
-	KgPure   Stat   `json:"kg_pure"`
-	Kg       Stat   `json:"kg"`
-	Litres   Stat   `json:"litres"`
-	Reaction string `json:"reaction"`
+	Reagent  string    `json:"reagent"`
+	KgPure   dist.Stat `json:"kg_pure"`
+	Kg       dist.Stat `json:"kg"`
+	Litres   dist.Stat `json:"litres"`
+	Reaction string    `json:"reaction"`
 }
 
 // Gas is a gas evolved.
 type Gas struct {
-	Mol   Stat `json:"mol"`
-	M3STP Stat `json:"m3_stp"`
+	Mol   dist.Stat `json:"mol"`
+	M3STP dist.Stat `json:"m3_stp"`
 }
 
 // Conc is an element's concentration in the liquor.
 type Conc struct {
-	GPerL   Stat `json:"g_per_l"`
-	MolPerL Stat `json:"mol_per_l"`
+	GPerL   dist.Stat `json:"g_per_l"`
+	MolPerL dist.Stat `json:"mol_per_l"`
 }
 
 // Liquor is the expected leach liquor.
 type Liquor struct {
-	VolumeL        Stat            `json:"volume_l"`
+	VolumeL        dist.Stat       `json:"volume_l"`
 	Elements       map[string]Conc `json:"elements"`
 	Anion          string          `json:"anion"`
-	AnionMolPerL   Stat            `json:"anion_mol_per_l"`
+	AnionMolPerL   dist.Stat       `json:"anion_mol_per_l"`
 	ChargeResidual float64         `json:"charge_balance_max_relative_residual"`
 	// ExtractionReached is each metal's share of the feed that dissolved with the dose given.
-	ExtractionReached map[string]Stat `json:"extraction_reached"`
+	ExtractionReached map[string]dist.Stat `json:"extraction_reached"`
 	// Fe3GPerL is the iron oxidised to Fe(III) by peroxide left after the reduction.
-	Fe3GPerL *Stat `json:"fe3_g_per_l,omitempty"`
+	Fe3GPerL *dist.Stat `json:"fe3_g_per_l,omitempty"`
 }
 
 // LeachReport is the leach plan of a lot.
 type LeachReport struct {
-	Route           string          `json:"route"`
-	Settings        LeachOptions    `json:"settings"`
-	Reagents        []Reagent       `json:"reagents"`
-	WaterL          Stat            `json:"make_up_water_l"`
-	Gases           map[string]Gas  `json:"gases"`
-	GasReference    string          `json:"gas_reference"`
-	Liquor          Liquor          `json:"liquor"`
-	FreeAcidMolPerL Stat            `json:"free_acid_mol_per_l"`
-	Saturation      map[string]Stat `json:"saturation"`
-	TotalCost       *Stat           `json:"total_cost,omitempty"`
-	Limiting        []Limit         `json:"limiting,omitempty"`
-	Scrubber        *Scrubber       `json:"chlorine_scrubber,omitempty"`
+	Route           string               `json:"route"`
+	Settings        LeachOptions         `json:"settings"`
+	Reagents        []Reagent            `json:"reagents"`
+	WaterL          dist.Stat            `json:"make_up_water_l"`
+	Gases           map[string]Gas       `json:"gases"`
+	GasReference    string               `json:"gas_reference"`
+	Liquor          Liquor               `json:"liquor"`
+	FreeAcidMolPerL dist.Stat            `json:"free_acid_mol_per_l"`
+	Saturation      map[string]dist.Stat `json:"saturation"`
+	TotalCost       *dist.Stat           `json:"total_cost,omitempty"`
+	Limiting        []Limit              `json:"limiting,omitempty"`
+	Scrubber        *Scrubber            `json:"chlorine_scrubber,omitempty"`
 	// PeroxideHeatRiseK is the adiabatic temperature rise if all the peroxide decomposed.
-	PeroxideHeatRiseK *Stat         `json:"peroxide_heat_rise_K,omitempty"`
+	PeroxideHeatRiseK *dist.Stat    `json:"peroxide_heat_rise_K,omitempty"`
 	Warnings          []string      `json:"warnings"`
 	Safety            []string      `json:"safety"`
 	Assumptions       []string      `json:"assumptions"`
@@ -489,7 +490,7 @@ func (p *leachPlanner) redLitres(mol float64) float64 {
 // report summarises the samples.
 func (p *leachPlanner) report() (*LeachReport, error) {
 	n, opt, route := p.n, p.opt, p.route
-	lr := &LeachReport{Route: route.String(), Settings: opt, Gases: map[string]Gas{}, Saturation: map[string]Stat{},
+	lr := &LeachReport{Route: route.String(), Settings: opt, Gases: map[string]Gas{}, Saturation: map[string]dist.Stat{},
 		GasReference: "ideal gas at 0 °C and 101.325 kPa (22.414 L/mol)", Safety: leachSafety[route], Extraction: p.ranges}
 	col := func(f func(i int) float64) []float64 {
 		out := make([]float64, n)
@@ -510,9 +511,9 @@ func (p *leachPlanner) report() (*LeachReport, error) {
 		lr.Reagents = append(lr.Reagents, r)
 		redR = &lr.Reagents[len(lr.Reagents)-1]
 	}
-	lr.WaterL = summarise(p.water)
+	lr.WaterL = dist.Summarise(p.water)
 	if opt.AcidPricePerKg > 0 || opt.H2O2PricePerKg > 0 {
-		st := summarise(col(func(i int) float64 {
+		st := dist.Summarise(col(func(i int) float64 {
 			c := p.acidDose[i] * p.acidM / 1000 / (opt.AcidWtPct / 100) * opt.AcidPricePerKg
 			if p.red != nil {
 				c += p.redDose[i] * p.red.MolarMassGMol / 1000 / (redStrength(p.red, opt) / 100) * opt.H2O2PricePerKg
@@ -528,7 +529,7 @@ func (p *leachPlanner) report() (*LeachReport, error) {
 	for name, g := range gases {
 		mol := col(func(i int) float64 { return g(p.res[i]) })
 		if slices.Max(mol) > 0 {
-			lr.Gases[name] = Gas{Mol: summarise(mol), M3STP: summarise(col(func(i int) float64 { return mol[i] * MolarVolumeSTPLPerMol / 1000 }))}
+			lr.Gases[name] = Gas{Mol: dist.Summarise(mol), M3STP: dist.Summarise(col(func(i int) float64 { return mol[i] * MolarVolumeSTPLPerMol / 1000 }))}
 		}
 	}
 	es := cathode.DefaultElements()
@@ -547,16 +548,16 @@ func (p *leachPlanner) report() (*LeachReport, error) {
 	}
 	// The residual is reported to 1e-12: below that it is floating-point noise, which would make
 	// reports differ between machines.
-	lr.Liquor = Liquor{VolumeL: summarise(p.vol), Elements: map[string]Conc{}, Anion: route.Anion(), ChargeResidual: round(chargeRes, 12),
-		ExtractionReached: map[string]Stat{}}
+	lr.Liquor = Liquor{VolumeL: dist.Summarise(p.vol), Elements: map[string]Conc{}, Anion: route.Anion(), ChargeResidual: dist.Round(chargeRes, 12),
+		ExtractionReached: map[string]dist.Stat{}}
 	for k, e := range leachElements {
 		mol := col(func(i int) float64 { return p.res[i].liquorMol[k] })
 		if slices.Max(mol) <= 0 {
 			continue
 		}
-		lr.Liquor.Elements[e] = Conc{GPerL: summarise(perL(func(i int) float64 { return mol[i] * es.Weight(e) })), MolPerL: summarise(perL(func(i int) float64 { return mol[i] }))}
+		lr.Liquor.Elements[e] = Conc{GPerL: dist.Summarise(perL(func(i int) float64 { return mol[i] * es.Weight(e) })), MolPerL: dist.Summarise(perL(func(i int) float64 { return mol[i] }))}
 		if e != "Na" && e != "P" && e != "F" {
-			lr.Liquor.ExtractionReached[e] = summarise(col(func(i int) float64 {
+			lr.Liquor.ExtractionReached[e] = dist.Summarise(col(func(i int) float64 {
 				if f := p.res[i].feedMol[k]; f > 0 {
 					return mol[i] / f
 				}
@@ -565,11 +566,11 @@ func (p *leachPlanner) report() (*LeachReport, error) {
 		}
 	}
 	if fe3 := col(func(i int) float64 { return p.res[i].fe3Mol }); slices.Max(fe3) > 0 {
-		st := summarise(perL(func(i int) float64 { return fe3[i] * es.Weight("Fe") }))
+		st := dist.Summarise(perL(func(i int) float64 { return fe3[i] * es.Weight("Fe") }))
 		lr.Liquor.Fe3GPerL = &st
 	}
-	lr.Liquor.AnionMolPerL = summarise(perL(func(i int) float64 { return p.res[i].anionMol }))
-	lr.FreeAcidMolPerL = summarise(perL(func(i int) float64 { return p.res[i].freeH / route.AcidProtons() }))
+	lr.Liquor.AnionMolPerL = dist.Summarise(perL(func(i int) float64 { return p.res[i].anionMol }))
+	lr.FreeAcidMolPerL = dist.Summarise(perL(func(i int) float64 { return p.res[i].freeH / route.AcidProtons() }))
 	p.limits(lr)
 	p.saturation(lr)
 	p.byproducts(lr)
@@ -603,10 +604,10 @@ func (p *leachPlanner) reagent(name string, wt, rho, molMass float64, dose, plan
 			ratioFull[i] = dose[i] / full[i]
 		}
 	}
-	rg := Reagent{Name: fmt.Sprintf("%s %g %%", name, wt), StrengthWt: wt, DensityGmL: round(rho, 4), MolarMass: round(molMass, 4), KgPure: summarise(pure),
-		Kg: summarise(comm), Litres: summarise(litres), StoichKg: summarise(sk), Ratio: summarise(ratio), RatioFull: summarise(ratioFull)}
+	rg := Reagent{Name: fmt.Sprintf("%s %g %%", name, wt), StrengthWt: wt, DensityGmL: dist.Round(rho, 4), MolarMass: dist.Round(molMass, 4), KgPure: dist.Summarise(pure),
+		Kg: dist.Summarise(comm), Litres: dist.Summarise(litres), StoichKg: dist.Summarise(sk), Ratio: dist.Summarise(ratio), RatioFull: dist.Summarise(ratioFull)}
 	if price > 0 {
-		st := summarise(col(n, func(i int) float64 { return comm[i] * price }))
+		st := dist.Summarise(col(n, func(i int) float64 { return comm[i] * price }))
 		rg.Cost = &st
 	}
 	return rg
@@ -631,18 +632,18 @@ func (p *leachPlanner) limits(lr *LeachReport) {
 			acid++
 		}
 	}
-	share := func(k int) float64 { return round(float64(k)/float64(p.n), 4) }
+	share := func(k int) float64 { return dist.Round(float64(k)/float64(p.n), 4) }
 	if red > 0 {
 		what := "the electrons (metals in the feed and the reductant)"
 		if p.red != nil {
 			what = p.red.Key + " (with the metals in the feed)"
 		}
 		lr.Limiting = append(lr.Limiting, Limit{Reagent: what, SampleShare: share(red),
-			ReachedShare: summarise(col(p.n, func(i int) float64 { return p.res[i].reductionCap }))})
+			ReachedShare: dist.Summarise(col(p.n, func(i int) float64 { return p.res[i].reductionCap }))})
 	}
 	if acid > 0 {
 		lr.Limiting = append(lr.Limiting, Limit{Reagent: p.route.Acid(), SampleShare: share(acid),
-			ReachedShare: summarise(col(p.n, func(i int) float64 { return p.res[i].acidCap }))})
+			ReachedShare: dist.Summarise(col(p.n, func(i int) float64 { return p.res[i].acidCap }))})
 	}
 }
 
@@ -671,7 +672,7 @@ func (p *leachPlanner) saturation(lr *LeachReport) {
 		if slices.Max(ratio) <= 0 {
 			continue
 		}
-		st := summarise(ratio)
+		st := dist.Summarise(ratio)
 		lr.Saturation[sl.name] = st
 		if st.P90 > saturationWarn {
 			lr.Warnings = append(lr.Warnings, fmt.Sprintf("%s reaches %.0f %% of its solubility in water near 25 °C (P90; single-salt data, the shared sulfate and the acid lower it further): lower the pulp density or expect crystallisation", sl.name, 100*st.P90))
@@ -700,8 +701,8 @@ func (p *leachPlanner) byproducts(lr *LeachReport) {
 		rho, err := Density("NaOH", 50)
 		if err == nil {
 			kg := col(p.n, func(i int) float64 { return p.res[i].cl2 * naohPerCl2 * cathode.MolarMassOf("NaOH") / 1000 })
-			lr.Scrubber = &Scrubber{Reagent: "NaOH 50 %", KgPure: summarise(kg), Kg: summarise(col(p.n, func(i int) float64 { return kg[i] / 0.5 })),
-				Litres:   summarise(col(p.n, func(i int) float64 { return kg[i] / 0.5 / rho })),
+			lr.Scrubber = &Scrubber{Reagent: "NaOH 50 %", KgPure: dist.Summarise(kg), Kg: dist.Summarise(col(p.n, func(i int) float64 { return kg[i] / 0.5 })),
+				Litres:   dist.Summarise(col(p.n, func(i int) float64 { return kg[i] / 0.5 / rho })),
 				Reaction: "Cl2 + 2 NaOH → NaCl + NaOCl + H2O (keep the scrubber caustic in excess; hypochlorite is an oxidant)"}
 		}
 	}
@@ -710,7 +711,7 @@ func (p *leachPlanner) byproducts(lr *LeachReport) {
 			q := (p.res[i].redDecomp + p.res[i].redUsed) * peroxideDecompKJPerMol * 1000 // J, as if all peroxide decomposed
 			return q / (p.vol[i] * 1000 * liquorCpJPerGK)
 		})
-		st := summarise(rise)
+		st := dist.Summarise(rise)
 		lr.PeroxideHeatRiseK = &st
 		if st.P90 > 10 {
 			lr.Warnings = append(lr.Warnings, fmt.Sprintf("peroxide decomposition can heat the liquor by up to %.0f K (P90, adiabatic, 94.7 kJ/mol H2O2): dose it gradually with cooling", st.P90))
@@ -735,7 +736,7 @@ func (p *leachPlanner) warnings(lr *LeachReport, acidR Reagent, redR *Reagent) {
 	if redR != nil && redR.StoichKg.P50 > 0 {
 		allow := 1.0
 		if p.red.Oxidant {
-			allow = 1 / (1 - summarise(p.lost).P50)
+			allow = 1 / (1 - dist.Summarise(p.lost).P50)
 		}
 		if redR.RatioFull.P10 < allow {
 			lr.Warnings = append(lr.Warnings, fmt.Sprintf("%s is %.2f× what full dissolution needs (P10), below the %.2f× that allows for its decomposition at %g °C: Co, Ni and Mn extraction will fall short",
@@ -747,7 +748,7 @@ func (p *leachPlanner) warnings(lr *LeachReport, acidR Reagent, redR *Reagent) {
 	if g, ok := lr.Gases["Cl2"]; ok && g.Mol.P50 > 0 {
 		lr.Warnings = append(lr.Warnings, fmt.Sprintf("chlorine: about %s Cl2 (STP, P50) evolves from the high-valent oxides; scrub it with caustic", formatGasVolume(g.M3STP.P50)))
 	}
-	h2max := summarise(col(p.n, func(i int) float64 { return p.res[i].h2Potential * MolarVolumeSTPLPerMol / 1000 }))
+	h2max := dist.Summarise(col(p.n, func(i int) float64 { return p.res[i].h2Potential * MolarVolumeSTPLPerMol / 1000 }))
 	if h2max.P90 > 0 {
 		h2 := 0.0
 		if g, ok := lr.Gases["H2"]; ok {
@@ -893,7 +894,7 @@ func routeNotes(s *Samples, species []cathode.Species, route cathode.Route) []st
 			}
 		}
 	}
-	phosphateKg, oxideKg := summarise(phos).P50, summarise(oxide).P50
+	phosphateKg, oxideKg := dist.Summarise(phos).P50, dist.Summarise(oxide).P50
 	total := phosphateKg + oxideKg
 	if total <= 0 {
 		return nil

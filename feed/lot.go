@@ -6,6 +6,7 @@ import (
 	"strings"
 
 	"blackmass/cathode"
+	"blackmass/feed/dist"
 )
 
 // LineResult is one manifest line with its parsed values and its most likely masses: every
@@ -230,13 +231,13 @@ func (l *Lot) Add(ln Line) error {
 		}
 	}
 	for e, v := range els {
-		els[e] = round(v, 6)
+		els[e] = dist.Round(v, 6)
 	}
 	l.lines = append(l.lines, LineResult{Line: ln.Num, ID: ln.ID, Description: ln.Description, ChemistryLabel: ln.ChemistryLabel,
 		Chemistry: ch.Key, Unknown: ch.Unknown, Format: ln.Format.String(), Count: ln.Count, CellsPerItem: ln.CellsPerItem, Application: ln.Application,
-		CapacityText: ln.CapacityText, EnergyWhPerItem: round(energyWh, 4), EnergyAssumed: ln.EnergyWh == 0 && !ln.MassOnly(), EnergyFromMass: ln.MassOnly(), ChargeAhPerItem: ln.ChargeAh,
-		ModelMassKgEach: round(b.item/1000, 6), MeasuredMassKg: ln.MassKg, MeasuredWhPerKg: round(measWhKg, 2),
-		CathodeKg: round(b.cam*cnt/1000, 6), BlackMassKg: round(total*cnt/1000, 6), ElementsKg: els, Flags: flags, Notes: ln.Notes})
+		CapacityText: ln.CapacityText, EnergyWhPerItem: dist.Round(energyWh, 4), EnergyAssumed: ln.EnergyWh == 0 && !ln.MassOnly(), EnergyFromMass: ln.MassOnly(), ChargeAhPerItem: ln.ChargeAh,
+		ModelMassKgEach: dist.Round(b.item/1000, 6), MeasuredMassKg: ln.MassKg, MeasuredWhPerKg: dist.Round(measWhKg, 2),
+		CathodeKg: dist.Round(b.cam*cnt/1000, 6), BlackMassKg: dist.Round(total*cnt/1000, 6), ElementsKg: els, Flags: flags, Notes: ln.Notes})
 	return nil
 }
 
@@ -274,7 +275,7 @@ func (l *Lot) Labels() []LabelResolution {
 	for _, st := range l.labelList {
 		r := st.LabelResolution
 		if l.modeWh > 0 {
-			r.EnergyShare = round(st.modeWh/l.modeWh, 6)
+			r.EnergyShare = dist.Round(st.modeWh/l.modeWh, 6)
 		}
 		out = append(out, r)
 	}
@@ -286,11 +287,6 @@ func idOr(ln Line) string {
 		return ln.ID
 	}
 	return "no id"
-}
-
-func round(v float64, digits int) float64 {
-	p := math.Pow(10, float64(digits))
-	return math.Round(v*p) / p
 }
 
 func (l *Lot) modeMix(ch *cathode.Chemistry) mix {

@@ -2,15 +2,12 @@ package feed
 
 import (
 	"fmt"
-	"hash/fnv"
 	"io/fs"
-	"math/rand/v2"
 	"sync"
-
-	"gonum.org/v1/gonum/stat/distuv"
 
 	"blackmass/cathode"
 	"blackmass/data"
+	"blackmass/feed/dist"
 )
 
 // Param is one model parameter with its range and source.
@@ -123,45 +120,16 @@ type fractions struct {
 	overhead                    float64
 }
 
-// drawer produces, for one named parameter, a reproducible stream of samples: its own PCG source
-// seeded from (seed, hash of the parameter's key).
-type drawer struct {
-	seed    uint64
-	samples int
-	cache   map[string][]float64
-}
-
-func (d *drawer) draws(key string, r cathode.Range) []float64 {
-	if v, ok := d.cache[key]; ok {
-		return v
-	}
-	out := make([]float64, d.samples)
-	if r.Max == r.Min {
-		for i := range out {
-			out[i] = r.Mode
-		}
-	} else {
-		h := fnv.New64a()
-		h.Write([]byte(key))
-		tri := distuv.NewTriangle(r.Min, r.Max, r.Mode, rand.NewPCG(d.seed, h.Sum64()))
-		for i := range out {
-			out[i] = tri.Rand()
-		}
-	}
-	d.cache[key] = out
-	return out
-}
-
 // paramSet is every parameter's draws, or its most likely value when samples == 0.
 type paramSet struct {
 	m       *Model
-	d       *drawer
+	d       *dist.Drawer
 	globals []globals
 	formats map[Format][]fractions
 }
 
 func newParamSet(m *Model, seed uint64, samples int) *paramSet {
-	ps := &paramSet{m: m, d: &drawer{seed: seed, samples: samples, cache: map[string][]float64{}}, formats: map[Format][]fractions{}}
+	ps := &paramSet{m: m, d: dist.NewDrawer(seed, samples), formats: map[Format][]fractions{}}
 	n := max(samples, 1)
 	g := make([][]float64, len(globalNames))
 	for i, name := range globalNames {
@@ -205,10 +173,7 @@ func (ps *paramSet) values(scope, name string) []float64 {
 }
 
 func (ps *paramSet) rangeValues(key string, r cathode.Range) []float64 {
-	if ps.d.samples == 0 {
-		return []float64{r.Mode}
-	}
-	return ps.d.draws(key, r)
+	return ps.d.Draws(key, r.Min, r.Mode, r.Max)
 }
 
 // chemistry returns the draws of an entry's nominal voltage (V) and practical capacity (mAh/g),
@@ -221,7 +186,7 @@ func (ps *paramSet) chemistry(e *cathode.Entry) (voltV, capMAhG []float64) {
 // times the specific energy of the drawn chemistry (each component's Wh/kg drawn across its
 // plausible band, weighted by the drawn shares), lowered by the drawn overhead of an assembly.
 func (ps *paramSet) massOnlyWh(g *group, shares [][]float64) []float64 {
-	n := max(ps.d.samples, 1)
+	n := max(ps.d.Samples(), 1)
 	out := make([]float64, n)
 	if g.massOnlyKg == 0 {
 		return out

@@ -9,6 +9,7 @@ import (
 	"gonum.org/v1/gonum/mat"
 
 	"blackmass/cathode"
+	"blackmass/feed/dist"
 )
 
 // zPerP10P90 converts a P10–P90 width to a standard deviation for a normal distribution
@@ -92,9 +93,9 @@ func Reconcile(r *Report, a *Assay, threshold float64) *Reconciliation {
 type MixComponent struct {
 	Name string `json:"name"`
 	// KgPerKg is the mass fraction of the black mass (all components).
-	KgPerKg Stat `json:"black_mass_fraction"`
+	KgPerKg dist.Stat `json:"black_mass_fraction"`
 	// CathodeShare is the share of the cathode active mass (chemistries only; sums to 1).
-	CathodeShare *Stat      `json:"cathode_share,omitempty"`
+	CathodeShare *dist.Stat `json:"cathode_share,omitempty"`
 	Interval95   [2]float64 `json:"interval_95"`
 	Best         float64    `json:"best_fit"`
 }
@@ -222,23 +223,23 @@ func InferMix(a *Assay, candidates []*cathode.Entry, draws int, seed uint64) (*M
 	}
 	fit := &MixFit{Bootstrap: draws}
 	for j, c := range cols {
-		mc := MixComponent{Name: c.name, KgPerKg: summarise(xs[j]), Best: sig(best[j])}
+		mc := MixComponent{Name: c.name, KgPerKg: dist.Summarise(xs[j]), Best: dist.Sig(best[j])}
 		sorted := slices.Sorted(slices.Values(xs[j]))
-		mc.Interval95 = [2]float64{sig(quantile(sorted, 0.025)), sig(quantile(sorted, 0.975))}
+		mc.Interval95 = [2]float64{dist.Sig(dist.Quantile(sorted, 0.025)), dist.Sig(dist.Quantile(sorted, 0.975))}
 		if c.chem {
-			st := summarise(shares[j])
+			st := dist.Summarise(shares[j])
 			mc.CathodeShare = &st
 		}
 		fit.Components = append(fit.Components, mc)
 		fit.Explained += best[j]
 	}
-	fit.Explained = sig(fit.Explained)
+	fit.Explained = dist.Sig(fit.Explained)
 	for i, v := range rows {
 		f := 0.0
 		for j, c := range cols {
 			f += 100 * c.frac[v.Element] * best[j]
 		}
-		fit.Residuals = append(fit.Residuals, Residual{Element: v.Element, WtPct: sig(v.WtPct - f), Sigma: sig((v.WtPct - f) / sigma[i])})
+		fit.Residuals = append(fit.Residuals, Residual{Element: v.Element, WtPct: dist.Sig(v.WtPct - f), Sigma: dist.Sig((v.WtPct - f) / sigma[i])})
 	}
 	fit.Notes = []string{
 		"weighted non-negative least squares (Lawson–Hanson) over the candidates' element fractions; weights 1/σ of the assay",

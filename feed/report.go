@@ -1,19 +1,6 @@
 package feed
 
-// Stat summarises a quantity's Monte Carlo distribution. Percentiles use linear interpolation
-// between order statistics (the definition of spreadsheet PERCENTILE.INC).
-type Stat struct {
-	P10  float64 `json:"p10"`
-	P50  float64 `json:"p50"`
-	P90  float64 `json:"p90"`
-	Mean float64 `json:"mean"`
-}
-
-// Amount is a mass with its share of the black mass.
-type Amount struct {
-	Kg    Stat `json:"kg"`
-	WtPct Stat `json:"wt_pct"`
-}
+import "blackmass/feed/dist"
 
 // Inputs records what produced a report, so it can be reproduced.
 type Inputs struct {
@@ -63,16 +50,16 @@ type LotSummary struct {
 
 // GroupResult is one (chemistry, format) group of lines.
 type GroupResult struct {
-	Chemistry    string   `json:"chemistry"`
-	Components   []string `json:"components"` // the catalogue keys the chemistry may hold
-	Format       string   `json:"format"`
-	Lines        int      `json:"lines"`
-	Items        int      `json:"items"`
-	NameplateKWh float64  `json:"nameplate_kWh"`
-	ChargeOnlyAh float64  `json:"charge_only_Ah,omitempty"`
-	MassOnlyKg   float64  `json:"mass_only_kg,omitempty"` // items known by weight only
-	CathodeKg    Stat     `json:"cathode_active_kg"`
-	BlackMassKg  Stat     `json:"black_mass_kg"`
+	Chemistry    string    `json:"chemistry"`
+	Components   []string  `json:"components"` // the catalogue keys the chemistry may hold
+	Format       string    `json:"format"`
+	Lines        int       `json:"lines"`
+	Items        int       `json:"items"`
+	NameplateKWh float64   `json:"nameplate_kWh"`
+	ChargeOnlyAh float64   `json:"charge_only_Ah,omitempty"`
+	MassOnlyKg   float64   `json:"mass_only_kg,omitempty"` // items known by weight only
+	CathodeKg    dist.Stat `json:"cathode_active_kg"`
+	BlackMassKg  dist.Stat `json:"black_mass_kg"`
 }
 
 // ParamResult is one model parameter as used.
@@ -89,15 +76,15 @@ type ParamResult struct {
 // Report is everything an estimate produced. Renderers (text, JSON, workbook) read it and
 // compute nothing new.
 type Report struct {
-	Inputs      Inputs            `json:"inputs"`
-	Lot         LotSummary        `json:"lot"`
-	BlackMassKg Stat              `json:"black_mass_kg"`
-	Elements    map[string]Amount `json:"elements"`
-	Compounds   map[string]Amount `json:"compounds"`
-	Groups      []GroupResult     `json:"groups"`
-	Labels      []LabelResolution `json:"labels"`
-	Lines       []LineResult      `json:"lines,omitempty"`
-	Leach       *LeachReport      `json:"leach,omitempty"`
+	Inputs      Inputs                 `json:"inputs"`
+	Lot         LotSummary             `json:"lot"`
+	BlackMassKg dist.Stat              `json:"black_mass_kg"`
+	Elements    map[string]dist.Amount `json:"elements"`
+	Compounds   map[string]dist.Amount `json:"compounds"`
+	Groups      []GroupResult          `json:"groups"`
+	Labels      []LabelResolution      `json:"labels"`
+	Lines       []LineResult           `json:"lines,omitempty"`
+	Leach       *LeachReport           `json:"leach,omitempty"`
 	// Assay, Reconciliation and Mix are present when a lab assay was given.
 	Assay          *Assay          `json:"assay,omitempty"`
 	Reconciliation *Reconciliation `json:"reconciliation,omitempty"`

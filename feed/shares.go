@@ -1,7 +1,6 @@
 package feed
 
 import (
-	"hash/fnv"
 	"math/rand/v2"
 
 	"gonum.org/v1/gonum/stat/distuv"
@@ -20,18 +19,16 @@ const maxExactItems = 64
 // alternatives, the per-item part (a few items scatter around the shares; many average out).
 // A chemistry with fixed shares gets its mean shares in every sample.
 func (ps *paramSet) shareDraws(ch *cathode.Chemistry, key string, items int) [][]float64 {
-	n := max(ps.d.samples, 1)
+	n := max(ps.d.Samples(), 1)
 	mean := ch.MeanShares()
 	out := make([][]float64, n)
-	if !ch.Uncertain() || ps.d.samples == 0 {
+	if !ch.Uncertain() || ps.d.Samples() == 0 {
 		for s := range out {
 			out[s] = mean
 		}
 		return out
 	}
-	h := fnv.New64a()
-	h.Write([]byte("shares " + key))
-	src := rand.NewPCG(ps.d.seed, h.Sum64())
+	src := ps.d.Source("shares " + key)
 	rng := rand.New(src)
 	gam := func(alpha float64) float64 {
 		return distuv.Gamma{Alpha: alpha, Beta: 1, Src: src}.Rand()

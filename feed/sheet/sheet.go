@@ -14,6 +14,7 @@ import (
 
 	"blackmass/cathode"
 	"blackmass/feed"
+	"blackmass/feed/dist"
 )
 
 // Sheet names.
@@ -131,7 +132,7 @@ func (w *writer) summary() error {
 		return err
 	}
 	row++
-	add := func(name string, st feed.Stat) error {
+	add := func(name string, st dist.Stat) error {
 		err := w.row(s, row, name, st.P10, st.P50, st.P90, st.Mean)
 		w.style(s, fmt.Sprintf("B%d", row), fmt.Sprintf("E%d", row), w.num3)
 		row++
