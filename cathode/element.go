@@ -113,3 +113,7 @@ func DefaultElements() *Elements {
 	}
 	return es
 }
+
+// DisplayOrder is the order elements are shown in: the metals a recycler is paid for first, then
+// the rest of the black mass.
+var DisplayOrder = []string{"Li", "Co", "Ni", "Mn", "Al", "Fe", "Cu", "Na", "P", "F", "C", "O", "H"}

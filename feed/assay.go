@@ -10,6 +10,7 @@ import (
 
 	"blackmass/cathode"
 	"blackmass/feed/dist"
+	"blackmass/feed/leach"
 )
 
 // AssayValue is one assayed element in wt% of the black mass (dry basis as the lab reports it).
@@ -152,7 +153,7 @@ type AssayQuoteOptions struct {
 	TMForm      TMForm
 	Seed        uint64
 	Samples     int
-	Leach       LeachOptions
+	Leach       leach.Options
 	Inputs      Inputs
 }
 
@@ -186,10 +187,6 @@ func QuoteFromAssay(a *Assay, opt AssayQuoteOptions) (*Report, error) {
 	for i := range bm {
 		bm[i] = opt.BlackMassKg
 	}
-	s, err := columnSamples(assayColumns, cols, bm, opt.Seed)
-	if err != nil {
-		return nil, err
-	}
 	r := &Report{Inputs: opt.Inputs, Elements: map[string]dist.Amount{}, Compounds: map[string]dist.Amount{}, Safety: safetyNotes}
 	r.Inputs.Seed, r.Inputs.Samples = opt.Seed, n
 	r.BlackMassKg = dist.Summarise(bm)
@@ -222,7 +219,7 @@ func QuoteFromAssay(a *Assay, opt AssayQuoteOptions) (*Report, error) {
 			break
 		}
 	}
-	lr, err := planLeach(s, opt.Leach)
+	lr, err := leach.Plan(leach.Input{Formulas: assayColumns, Kg: cols, BlackMassKg: bm, Draws: dist.NewDrawer(opt.Seed, n)}, opt.Leach)
 	if err != nil {
 		return nil, err
 	}

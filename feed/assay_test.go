@@ -10,6 +10,7 @@ import (
 	"blackmass/cathode"
 	"blackmass/feed"
 	"blackmass/feed/intake"
+	"blackmass/feed/leach"
 )
 
 func assayCSV(wt map[string]float64, relSigma float64) string {
@@ -198,14 +199,14 @@ func TestReadAssayErrors(t *testing.T) {
 // Waste Manag. 33 (2013) 1890, with CIAAW 2021 atomic weights).
 func TestQuoteFromAssayLiCoO2(t *testing.T) {
 	a := mustAssay(t, assayCSV(composition(map[string]float64{"LiCoO2": 1}), 0))
-	o := feed.DefaultLeachOptions()
+	o := leach.DefaultOptions()
 	o.ExtractionOverride = map[string]float64{"*": 1}
 	r, err := feed.QuoteFromAssay(a, feed.AssayQuoteOptions{BlackMassKg: 1, Samples: 20, Seed: 1, Leach: o})
 	if err != nil {
 		t.Fatal(err)
 	}
-	near(t, "stoich H2SO4 kg", r.Leach.Reagents[0].StoichKg.P50, 1.503, 0.0075)
-	near(t, "stoich H2O2 kg", r.Leach.Reagents[1].StoichKg.P50, 0.174, 0.001)
+	nearly(t, "stoich H2SO4 kg", r.Leach.Reagents[0].StoichKg.P50, 1.503, 0.0075)
+	nearly(t, "stoich H2O2 kg", r.Leach.Reagents[1].StoichKg.P50, 0.174, 0.001)
 	if r.Leach.Liquor.ChargeResidual > 1e-9 {
 		t.Errorf("charge residual %g", r.Leach.Liquor.ChargeResidual)
 	}

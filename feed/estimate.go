@@ -1,7 +1,9 @@
 package feed
 
 import (
+	"blackmass/cathode"
 	"blackmass/feed/dist"
+	"blackmass/feed/leach"
 	"errors"
 	"fmt"
 	"slices"
@@ -13,7 +15,7 @@ type EstimateOptions struct {
 	Seed    uint64
 	Samples int
 	Inputs  Inputs // recorded in the report as given (Seed and Samples are filled in)
-	Leach   *LeachOptions
+	Leach   *leach.Options
 }
 
 // Samples holds every Monte Carlo draw of the lot's black mass, by compound (kg), so that later
@@ -24,13 +26,9 @@ type Samples struct {
 	Elements  [][]float64 // [element][sample] kg
 	BlackMass []float64   // [sample] kg
 	comp      *compounds
-	params    *paramSet
 	groupCAM  [][]float64 // [group][sample] kg
 	groupBM   [][]float64
 }
-
-// CompoundFormula returns compound i's formula text.
-func (s *Samples) CompoundFormula(i int) string { return s.comp.formulas[i] }
 
 // Estimate runs the Monte Carlo over the lot's groups and builds the report.
 func (l *Lot) Estimate(opt EstimateOptions) (*Report, *Samples, error) {
@@ -43,7 +41,7 @@ func (l *Lot) Estimate(opt EstimateOptions) (*Report, *Samples, error) {
 	n := opt.Samples
 	ps := newParamSet(l.model, opt.Seed, n)
 	nc := l.comp.n()
-	s := &Samples{N: n, comp: l.comp, params: ps, Compounds: make([][]float64, nc), BlackMass: make([]float64, n)}
+	s := &Samples{N: n, comp: l.comp, Compounds: make([][]float64, nc), BlackMass: make([]float64, n)}
 	for c := range s.Compounds {
 		s.Compounds[c] = make([]float64, n)
 	}
@@ -135,7 +133,7 @@ func (l *Lot) Estimate(opt EstimateOptions) (*Report, *Samples, error) {
 	r.Parameters = l.parameters()
 	r.ElementOrder = elementOrder(l.comp.elements)
 	if opt.Leach != nil {
-		lr, err := planLeach(s, *opt.Leach)
+		lr, err := leach.Plan(leach.Input{Formulas: l.comp.formulas, Kg: s.Compounds, BlackMassKg: s.BlackMass, Draws: ps.d}, *opt.Leach)
 		if err != nil {
 			return nil, nil, err
 		}
@@ -145,10 +143,10 @@ func (l *Lot) Estimate(opt EstimateOptions) (*Report, *Samples, error) {
 }
 
 // parameters lists the model parameters and the chemistry parameters of the lot's chemistries.
-func (l *Lot) parameters() []ParamResult {
-	var out []ParamResult
+func (l *Lot) parameters() []dist.Param {
+	var out []dist.Param
 	for _, p := range l.model.list {
-		out = append(out, ParamResult{p.Scope, p.Name, p.Range.Min, p.Range.Mode, p.Range.Max, p.Unit, p.Source})
+		out = append(out, dist.Param{Scope: p.Scope, Name: p.Name, Min: p.Range.Min, Mode: p.Range.Mode, Max: p.Range.Max, Unit: p.Unit, Source: p.Source})
 	}
 	for _, e := range l.comp.entries {
 		if e == nil {
@@ -156,22 +154,18 @@ func (l *Lot) parameters() []ParamResult {
 		}
 		sc := "chemistry " + e.Key
 		out = append(out,
-			ParamResult{sc, "nominal_voltage", e.VoltageV.Min, e.VoltageV.Mode, e.VoltageV.Max, "V", e.Source},
-			ParamResult{sc, "practical_capacity", e.CapacityMAhPerG.Min, e.CapacityMAhPerG.Mode, e.CapacityMAhPerG.Max, "mAh/g", e.Source})
+			dist.Param{Scope: sc, Name: "nominal_voltage", Min: e.VoltageV.Min, Mode: e.VoltageV.Mode, Max: e.VoltageV.Max, Unit: "V", Source: e.Source},
+			dist.Param{Scope: sc, Name: "practical_capacity", Min: e.CapacityMAhPerG.Min, Mode: e.CapacityMAhPerG.Mode, Max: e.CapacityMAhPerG.Max, Unit: "mAh/g", Source: e.Source})
 	}
 	return out
 }
 
-// displayOrder is the order elements are shown in: the metals of value first, then the rest.
-// The leach liquor follows the same order without C, O and H (leachElements).
-var displayOrder = []string{"Li", "Co", "Ni", "Mn", "Al", "Fe", "Cu", "Na", "P", "F", "C", "O", "H"}
-
 func elementOrder(els []string) []string {
 	rank := func(s string) int {
-		if i := slices.Index(displayOrder, s); i >= 0 {
+		if i := slices.Index(cathode.DisplayOrder, s); i >= 0 {
 			return i
 		}
-		return len(displayOrder)
+		return len(cathode.DisplayOrder)
 	}
 	out := slices.Clone(els)
 	sort.SliceStable(out, func(i, j int) bool {

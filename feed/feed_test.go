@@ -14,6 +14,7 @@ import (
 	"blackmass/feed"
 	"blackmass/feed/dist"
 	"blackmass/feed/intake"
+	"blackmass/feed/leach"
 )
 
 // readCSV reads a CSV manifest into fn, dropping the reading's Info.
@@ -283,5 +284,61 @@ func TestBlackMassCompositionRanges(t *testing.T) {
 				t.Errorf("%s: %s %.2f wt%%, typical %g–%g", c.line, el, got, w.lo, w.hi)
 			}
 		}
+	}
+}
+
+// Conservation and charge balance on a real lot, every route.
+func TestLeachChargeBalanceAndScaling(t *testing.T) {
+	for _, route := range cathode.Routes() {
+		lr := leachLot(t, route, 100)
+		if lr.Liquor.ChargeResidual > 1e-9 {
+			t.Errorf("%s: liquor charge balance off by %.3g relative", route, lr.Liquor.ChargeResidual)
+		}
+		// Doubling pulp density halves the volume and doubles the concentrations.
+		lr2 := leachLot(t, route, 200)
+		nearly(t, route.String()+" volume", lr2.Liquor.VolumeL.P50, lr.Liquor.VolumeL.P50/2, 1e-6*lr.Liquor.VolumeL.P50)
+		for el, c := range lr.Liquor.Elements {
+			nearly(t, route.String()+" "+el+" g/L", lr2.Liquor.Elements[el].GPerL.P50, 2*c.GPerL.P50, 1e-6*c.GPerL.P50)
+		}
+	}
+	// Zero extraction of an element gives none of it in the liquor.
+	o := leach.DefaultOptions()
+	o.ExtractionOverride = map[string]float64{"Co": 0}
+	lr, err := leach.PlanFor(map[string]float64{"LiCoO2": 1, "LiNi0.8Mn0.1Co0.1O2": 1}, o, 1, 50)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if _, ok := lr.Liquor.Elements["Co"]; ok {
+		t.Errorf("Co in liquor with zero extraction: %+v", lr.Liquor.Elements["Co"])
+	}
+	if lr.Liquor.ChargeResidual > 1e-9 {
+		t.Errorf("partial extraction: charge residual %g", lr.Liquor.ChargeResidual)
+	}
+}
+
+func leachLot(t *testing.T, route cathode.Route, pulp float64) *leach.Report {
+	t.Helper()
+	cat, _ := cathode.DefaultCatalogue()
+	m, _ := feed.DefaultModel()
+	lot := feed.NewLot(m, false)
+	if err := readCSV(strings.NewReader(mixed), "t.csv", intake.Options{Catalogue: cat}, lot.Add); err != nil {
+		t.Fatal(err)
+	}
+	o := leach.DefaultOptions()
+	o.Route, o.PulpDensityGPerL = route, pulp
+	if route == cathode.Hydrochloric {
+		o.AcidWtPct = 32
+	}
+	r, _, err := lot.Estimate(feed.EstimateOptions{Seed: 1, Samples: 300, Leach: &o})
+	if err != nil {
+		t.Fatal(err)
+	}
+	return r.Leach
+}
+
+func nearly(t *testing.T, what string, got, want, tol float64) {
+	t.Helper()
+	if math.Abs(got-want) > tol {
+		t.Errorf("%s = %.6g, want %.6g ± %g", what, got, want, tol)
 	}
 }

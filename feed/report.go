@@ -1,6 +1,9 @@
 package feed
 
-import "blackmass/feed/dist"
+import (
+	"blackmass/feed/dist"
+	"blackmass/feed/leach"
+)
 
 // Inputs records what produced a report, so it can be reproduced.
 type Inputs struct {
@@ -62,17 +65,6 @@ type GroupResult struct {
 	BlackMassKg  dist.Stat `json:"black_mass_kg"`
 }
 
-// ParamResult is one model parameter as used.
-type ParamResult struct {
-	Scope  string  `json:"scope"`
-	Name   string  `json:"name"`
-	Min    float64 `json:"min"`
-	Mode   float64 `json:"mode"`
-	Max    float64 `json:"max"`
-	Unit   string  `json:"unit"`
-	Source string  `json:"source"`
-}
-
 // Report is everything an estimate produced. Renderers (text, JSON, workbook) read it and
 // compute nothing new.
 type Report struct {
@@ -84,12 +76,12 @@ type Report struct {
 	Groups      []GroupResult          `json:"groups"`
 	Labels      []LabelResolution      `json:"labels"`
 	Lines       []LineResult           `json:"lines,omitempty"`
-	Leach       *LeachReport           `json:"leach,omitempty"`
+	Leach       *leach.Report          `json:"leach,omitempty"`
 	// Assay, Reconciliation and Mix are present when a lab assay was given.
 	Assay          *Assay          `json:"assay,omitempty"`
 	Reconciliation *Reconciliation `json:"reconciliation,omitempty"`
 	Mix            *MixFit         `json:"mix_fit,omitempty"`
-	Parameters     []ParamResult   `json:"parameters"`
+	Parameters     []dist.Param    `json:"parameters"`
 	Warnings       []string        `json:"warnings"`
 	Safety         []string        `json:"safety"`
 	// ElementOrder lists the element symbols in display order (metals first).

@@ -12,14 +12,14 @@ import (
 
 	"blackmass/cathode"
 	"blackmass/data"
-	"blackmass/feed"
 	"blackmass/feed/intake"
+	"blackmass/feed/leach"
 )
 
-// leachFlags binds the leach plan's settings; defaults are feed.DefaultLeachOptions.
+// leachFlags binds the leach plan's settings; defaults are leach.DefaultOptions.
 type leachFlags struct {
 	route      string
-	opt        feed.LeachOptions
+	opt        leach.Options
 	planPath   string
 	extraction string
 	flags      *pflag.FlagSet
@@ -32,7 +32,7 @@ var planKeys = []string{"route", "acid-strength", "h2o2-strength", "acid-excess"
 	"grow-volume", "extraction"}
 
 func (l *leachFlags) bind(cmd *cobra.Command) {
-	d := feed.DefaultLeachOptions()
+	d := leach.DefaultOptions()
 	fl := cmd.Flags()
 	l.flags = fl
 	fl.StringVar(&l.planPath, "plan", "", "leach plan file: lines \"key = value\" with the leach flag names (flags on the command line win)")
@@ -104,7 +104,7 @@ func (l *leachFlags) applyPlan() error {
 // maxPlanLine bounds a plan file's line.
 const maxPlanLine = 4096
 
-func (l *leachFlags) options() (*feed.LeachOptions, error) {
+func (l *leachFlags) options() (*leach.Options, error) {
 	if err := l.applyPlan(); err != nil {
 		return nil, err
 	}

@@ -131,3 +131,15 @@ func (d *Drawer) Source(key string) *rand.PCG {
 	h.Write([]byte(key))
 	return rand.NewPCG(d.seed, h.Sum64())
 }
+
+// Param is one model parameter as used: its scope, name, range (minimum, most likely, maximum),
+// unit and source.
+type Param struct {
+	Scope  string  `json:"scope"`
+	Name   string  `json:"name"`
+	Min    float64 `json:"min"`
+	Mode   float64 `json:"mode"`
+	Max    float64 `json:"max"`
+	Unit   string  `json:"unit"`
+	Source string  `json:"source"`
+}

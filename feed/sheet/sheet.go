@@ -15,6 +15,7 @@ import (
 	"blackmass/cathode"
 	"blackmass/feed"
 	"blackmass/feed/dist"
+	"blackmass/feed/leach"
 )
 
 // Sheet names.
@@ -468,7 +469,7 @@ func (w *writer) recipeCalculator(s string, row int) int {
 	return row
 }
 
-func priceOf(l *feed.LeachReport, g feed.Reagent) float64 {
+func priceOf(l *leach.Report, g leach.Reagent) float64 {
 	if g.Name == l.Reagents[0].Name {
 		return l.Settings.AcidPricePerKg
 	}

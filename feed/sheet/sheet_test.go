@@ -12,6 +12,7 @@ import (
 	"blackmass/cathode"
 	"blackmass/feed"
 	"blackmass/feed/intake"
+	"blackmass/feed/leach"
 	"blackmass/feed/sheet"
 )
 
@@ -29,7 +30,7 @@ func report(tb testing.TB, lines int) *feed.Report {
 	if _, err := intake.ReadCSV(strings.NewReader(b.String()), "gen.csv", intake.Options{Catalogue: cat}, lot.Add); err != nil {
 		tb.Fatal(err)
 	}
-	lo := feed.DefaultLeachOptions()
+	lo := leach.DefaultOptions()
 	r, _, err := lot.Estimate(feed.EstimateOptions{Seed: 1, Samples: 200, Leach: &lo, Inputs: feed.Inputs{LotID: "=cmd|' /C calc'!A0", Version: "test"}})
 	if err != nil {
 		tb.Fatal(err)

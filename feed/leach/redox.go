@@ -1,4 +1,4 @@
-package feed
+package leach
 
 import (
 	"fmt"
@@ -82,10 +82,11 @@ func FindReductant(all []*Reductant, name string) (*Reductant, error) {
 	return nil, fmt.Errorf("unknown reductant %q (want %s)", name, strings.Join(names, ", "))
 }
 
-// leachElements are the elements the liquor report follows: displayOrder without C, O and H.
+// leachElements are the elements the liquor report follows: the display order without C, O
+// and H.
 var leachElements = func() []string {
 	var out []string
-	for _, s := range displayOrder {
+	for _, s := range cathode.DisplayOrder {
 		if s != "C" && s != "O" && s != "H" {
 			out = append(out, s)
 		}

@@ -1,4 +1,4 @@
-package feed_test
+package leach_test
 
 import (
 	"math"
@@ -7,18 +7,17 @@ import (
 	"testing"
 
 	"blackmass/cathode"
-	"blackmass/feed"
-	"blackmass/feed/intake"
+	"blackmass/feed/leach"
 )
 
-func leachLCO(t *testing.T, mut func(*feed.LeachOptions)) *feed.LeachReport {
+func leachLCO(t *testing.T, mut func(*leach.Options)) *leach.Report {
 	t.Helper()
-	o := feed.DefaultLeachOptions()
+	o := leach.DefaultOptions()
 	o.ExtractionOverride = map[string]float64{"*": 1}
 	if mut != nil {
 		mut(&o)
 	}
-	lr, err := feed.PlanLeachFor(map[string]float64{"LiCoO2": 1}, o, 1, 20)
+	lr, err := leach.PlanFor(map[string]float64{"LiCoO2": 1}, o, 1, 20)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -39,7 +38,7 @@ func TestLeachStoichiometryLiCoO2(t *testing.T) {
 	lr := leachLCO(t, nil)
 	near(t, "stoich kg H2SO4", lr.Reagents[0].StoichKg.P50, 1.503, 0.0075)
 	near(t, "stoich kg H2O2", lr.Reagents[1].StoichKg.P50, 0.174, 0.001)
-	lr = leachLCO(t, func(o *feed.LeachOptions) { o.Route = cathode.Hydrochloric; o.AcidWtPct = 32 })
+	lr = leachLCO(t, func(o *leach.Options) { o.Route = cathode.Hydrochloric; o.AcidWtPct = 32 })
 	near(t, "stoich kg HCl", lr.Reagents[0].StoichKg.P50, 1.490, 0.0075)
 	near(t, "kg Cl2", lr.Gases["Cl2"].Mol.P50*cathode.MolarMassOf("Cl2")/1000, 0.362, 0.002)
 }
@@ -48,7 +47,7 @@ func TestLeachStoichiometryLiCoO2(t *testing.T) {
 // 2 mol/L H2SO4 consumes 1.5 × 100/97.871 = 1.533 mol/L, leaving about 0.47 mol/L free acid,
 // when the peroxide is ample (10 vol% of 30 %).
 func TestLeachWorkedFreeAcid(t *testing.T) {
-	lr := leachLCO(t, func(o *feed.LeachOptions) { o.RecipeAcidMolPerL = 2; o.RecipeH2O2VolPct = 10 })
+	lr := leachLCO(t, func(o *leach.Options) { o.RecipeAcidMolPerL = 2; o.RecipeH2O2VolPct = 10 })
 	near(t, "free acid mol/L", lr.FreeAcidMolPerL.P50, 0.467, 0.005)
 	near(t, "Co g/L", lr.Liquor.Elements["Co"].GPerL.P50, 100*0.60215, 0.05) // Co is 60.2 wt% of LiCoO2 (CIAAW 2021)
 	near(t, "volume L", lr.Liquor.VolumeL.P50, 10, 1e-9)
@@ -62,7 +61,7 @@ func TestReagentDensities(t *testing.T) {
 		r       string
 		wt, rho float64
 	}{{"H2SO4", 98, 1.836}, {"HCl", 32, 1.159}, {"H2O2", 30, 1.11}, {"HCl", 20.2, 1.099}} {
-		d, err := feed.Density(c.r, c.wt)
+		d, err := leach.Density(c.r, c.wt)
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -72,58 +71,9 @@ func TestReagentDensities(t *testing.T) {
 	r := lr.Reagents[0]
 	near(t, "litres = kg / density", r.Litres.P50, r.Kg.P50/1.8361, 1e-6)
 	near(t, "kg commercial = kg pure / 0.98", r.Kg.P50, r.KgPure.P50/0.98, 1e-9)
-	if _, err := feed.Density("H2SO4", 5); err == nil {
+	if _, err := leach.Density("H2SO4", 5); err == nil {
 		t.Error("density outside the table should be an error")
 	}
-}
-
-// Conservation and charge balance on a real lot, every route.
-func TestLeachChargeBalanceAndScaling(t *testing.T) {
-	for _, route := range cathode.Routes() {
-		lr := leachLot(t, route, 100)
-		if lr.Liquor.ChargeResidual > 1e-9 {
-			t.Errorf("%s: liquor charge balance off by %.3g relative", route, lr.Liquor.ChargeResidual)
-		}
-		// Doubling pulp density halves the volume and doubles the concentrations.
-		lr2 := leachLot(t, route, 200)
-		near(t, route.String()+" volume", lr2.Liquor.VolumeL.P50, lr.Liquor.VolumeL.P50/2, 1e-6*lr.Liquor.VolumeL.P50)
-		for el, c := range lr.Liquor.Elements {
-			near(t, route.String()+" "+el+" g/L", lr2.Liquor.Elements[el].GPerL.P50, 2*c.GPerL.P50, 1e-6*c.GPerL.P50)
-		}
-	}
-	// Zero extraction of an element gives none of it in the liquor.
-	o := feed.DefaultLeachOptions()
-	o.ExtractionOverride = map[string]float64{"Co": 0}
-	lr, err := feed.PlanLeachFor(map[string]float64{"LiCoO2": 1, "LiNi0.8Mn0.1Co0.1O2": 1}, o, 1, 50)
-	if err != nil {
-		t.Fatal(err)
-	}
-	if _, ok := lr.Liquor.Elements["Co"]; ok {
-		t.Errorf("Co in liquor with zero extraction: %+v", lr.Liquor.Elements["Co"])
-	}
-	if lr.Liquor.ChargeResidual > 1e-9 {
-		t.Errorf("partial extraction: charge residual %g", lr.Liquor.ChargeResidual)
-	}
-}
-
-func leachLot(t *testing.T, route cathode.Route, pulp float64) *feed.LeachReport {
-	t.Helper()
-	cat, _ := cathode.DefaultCatalogue()
-	m, _ := feed.DefaultModel()
-	lot := feed.NewLot(m, false)
-	if err := readCSV(strings.NewReader(mixed), "t.csv", intake.Options{Catalogue: cat}, lot.Add); err != nil {
-		t.Fatal(err)
-	}
-	o := feed.DefaultLeachOptions()
-	o.Route, o.PulpDensityGPerL = route, pulp
-	if route == cathode.Hydrochloric {
-		o.AcidWtPct = 32
-	}
-	r, _, err := lot.Estimate(feed.EstimateOptions{Seed: 1, Samples: 300, Leach: &o})
-	if err != nil {
-		t.Fatal(err)
-	}
-	return r.Leach
 }
 
 // Jha et al., Waste Management 33 (2013) 1890: 2 mol/L H2SO4 with 5 vol% of 30 % H2O2 at 100 g/L
@@ -131,9 +81,9 @@ func leachLot(t *testing.T, route cathode.Route, pulp float64) *feed.LeachReport
 // about 0.96× what the cobalt needs, before any decomposes, so the plan must say the Co falls well
 // short of full, never exceed what the peroxide can reduce, and warn of the under-dose.
 func TestLeachJha2013PeroxideUnderDose(t *testing.T) {
-	o := feed.DefaultLeachOptions()
+	o := leach.DefaultOptions()
 	o.RecipeAcidMolPerL, o.RecipeH2O2VolPct, o.TemperatureC = 2, 5, 75
-	lr, err := feed.PlanLeachFor(map[string]float64{"LiCoO2": 1}, o, 1, 500)
+	lr, err := leach.PlanFor(map[string]float64{"LiCoO2": 1}, o, 1, 500)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -154,7 +104,7 @@ func TestLeachJha2013PeroxideUnderDose(t *testing.T) {
 	}
 }
 
-func hasWarning(lr *feed.LeachReport, s string) bool {
+func hasWarning(lr *leach.Report, s string) bool {
 	for _, w := range lr.Warnings {
 		if strings.Contains(w, s) {
 			return true
@@ -166,11 +116,11 @@ func hasWarning(lr *feed.LeachReport, s string) bool {
 // A recipe at 0.997× the true peroxide need is under-dosed against full dissolution, whatever
 // the extraction the model assumed.
 func TestLeachRatioAgainstFullDissolution(t *testing.T) {
-	o := feed.DefaultLeachOptions()
+	o := leach.DefaultOptions()
 	need := 100 / cathode.MolarMassOf("LiCoO2") / 2 // mol H2O2 per L for 100 g/L LiCoO2
 	o.RecipeAcidMolPerL = 3
 	o.RecipeH2O2VolPct = 0.997 * need * cathode.MolarMassOf("H2O2") / (1.111 * 0.30 * 1000) * 100
-	lr, err := feed.PlanLeachFor(map[string]float64{"LiCoO2": 1}, o, 1, 200)
+	lr, err := leach.PlanFor(map[string]float64{"LiCoO2": 1}, o, 1, 200)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -186,10 +136,10 @@ func TestLeachRatioAgainstFullDissolution(t *testing.T) {
 // limits the leach, free acid ends at zero and never below, and no water is negative.
 func TestLeachHydrochloricBenchRule(t *testing.T) {
 	molar := 20.2 * 10 * 1.0989 / cathode.MolarMassOf("HCl") // mol/L of the azeotrope
-	o := feed.DefaultLeachOptions()
+	o := leach.DefaultOptions()
 	o.Route, o.AcidWtPct, o.RecipeAcidMolPerL, o.LiquorVolumeL, o.PulpDensityGPerL = cathode.Hydrochloric, 20.2, molar, 0.1, 0
 	o.ExtractionOverride = map[string]float64{"*": 1}
-	metal, err := feed.PlanLeachFor(map[string]float64{"Co": 0.010}, o, 1, 20)
+	metal, err := leach.PlanFor(map[string]float64{"Co": 0.010}, o, 1, 20)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -198,7 +148,7 @@ func TestLeachHydrochloricBenchRule(t *testing.T) {
 		t.Errorf("Co metal: %.2f×, H2 %v, extraction %v", metal.Reagents[0].RatioFull.P50, metal.Gases["H2"].Mol.P50, metal.Liquor.ExtractionReached["Co"].P50)
 	}
 	kgLCO := 0.010 / 0.60215 // LiCoO2 holding 10 g Co (Co is 60.2 wt%, CIAAW 2021)
-	oxide, err := feed.PlanLeachFor(map[string]float64{"LiCoO2": kgLCO}, o, 1, 20)
+	oxide, err := leach.PlanFor(map[string]float64{"LiCoO2": kgLCO}, o, 1, 20)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -215,13 +165,13 @@ func TestLeachHydrochloricBenchRule(t *testing.T) {
 
 // Reagents that alone exceed the liquor are refused, or the volume grows if asked.
 func TestLeachReagentsExceedVolume(t *testing.T) {
-	o := feed.DefaultLeachOptions()
+	o := leach.DefaultOptions()
 	o.Route, o.AcidWtPct, o.RecipeAcidMolPerL, o.PulpDensityGPerL = cathode.Hydrochloric, 32, 12, 300
-	if _, err := feed.PlanLeachFor(map[string]float64{"LiCoO2": 1}, o, 1, 20); err == nil || !strings.Contains(err.Error(), "more than") {
+	if _, err := leach.PlanFor(map[string]float64{"LiCoO2": 1}, o, 1, 20); err == nil || !strings.Contains(err.Error(), "more than") {
 		t.Fatalf("error %v", err)
 	}
 	o.GrowVolume = true
-	lr, err := feed.PlanLeachFor(map[string]float64{"LiCoO2": 1}, o, 1, 20)
+	lr, err := leach.PlanFor(map[string]float64{"LiCoO2": 1}, o, 1, 20)
 	if err != nil || lr.WaterL.P10 < 0 || !hasWarning(lr, "volume grew") {
 		t.Fatalf("grow: %v %+v", err, lr)
 	}
@@ -231,7 +181,7 @@ func TestLeachReagentsExceedVolume(t *testing.T) {
 // Hydrometallurgy 169 (2017) 426: current collectors as reductants). On the hydrochloric route
 // the copper that reduces the oxides dissolves and cuts the Cl2 evolved.
 func TestLeachMetalsReduceOxides(t *testing.T) {
-	o := feed.DefaultLeachOptions()
+	o := leach.DefaultOptions()
 	o.ExtractionOverride = map[string]float64{"*": 1}
 	alone := leachFor(t, map[string]float64{"LiCoO2": 1}, o)
 	withCu := leachFor(t, map[string]float64{"LiCoO2": 1, "Cu": 0.1}, o)
@@ -247,9 +197,9 @@ func TestLeachMetalsReduceOxides(t *testing.T) {
 	}
 }
 
-func leachFor(t *testing.T, kg map[string]float64, o feed.LeachOptions) *feed.LeachReport {
+func leachFor(t *testing.T, kg map[string]float64, o leach.Options) *leach.Report {
 	t.Helper()
-	lr, err := feed.PlanLeachFor(kg, o, 1, 20)
+	lr, err := leach.PlanFor(kg, o, 1, 20)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -259,7 +209,7 @@ func leachFor(t *testing.T, kg map[string]float64, o feed.LeachOptions) *feed.Le
 // Excess peroxide oxidises Fe(II) to Fe(III) on the sulfuric route (Fe³⁺/Fe²⁺ E° 0.771 V) and
 // that peroxide is counted; without excess the iron stays Fe(II).
 func TestLeachIronOxidised(t *testing.T) {
-	o := feed.DefaultLeachOptions()
+	o := leach.DefaultOptions()
 	o.ExtractionOverride = map[string]float64{"*": 1}
 	o.ReductantExcess = 3
 	lr := leachFor(t, map[string]float64{"LiFePO4": 1, "LiCoO2": 1}, o)
@@ -280,7 +230,7 @@ func TestLeachIronOxidised(t *testing.T) {
 // On the selective route the lithium of oxide cathodes stays in the residue with their metals;
 // that of phosphates dissolves.
 func TestLeachSelectiveKeepsOxideLithium(t *testing.T) {
-	o := feed.DefaultLeachOptions()
+	o := leach.DefaultOptions()
 	o.Route = cathode.SulfuricSelective
 	lfp := leachFor(t, map[string]float64{"LiFePO4": 1}, o)
 	mixed := leachFor(t, map[string]float64{"LiFePO4": 1, "LiCoO2": 1}, o)
@@ -303,7 +253,7 @@ func TestLeachConservationUnderEveryDose(t *testing.T) {
 		for _, route := range cathode.Routes() {
 			for _, dose := range []float64{0.3, 0.9, 1.5} {
 				t.Run(e.Key+"/"+route.String()+"/"+strings.TrimRight(strings.TrimRight(fmtF(dose), "0"), "."), func(t *testing.T) {
-					o := feed.DefaultLeachOptions()
+					o := leach.DefaultOptions()
 					o.Route = route
 					if route == cathode.Hydrochloric {
 						o.AcidWtPct = 32
@@ -312,7 +262,7 @@ func TestLeachConservationUnderEveryDose(t *testing.T) {
 					if dose < 1 {
 						o.RecipeAcidMolPerL = dose
 					}
-					lr, err := feed.PlanLeachFor(map[string]float64{e.Formula.String(): 1, "Al": 0.05, "Cu": 0.05, "Fe": 0.02, "C": 0.4}, o, 1, 30)
+					lr, err := leach.PlanFor(map[string]float64{e.Formula.String(): 1, "Al": 0.05, "Cu": 0.05, "Fe": 0.02, "C": 0.4}, o, 1, 30)
 					if err != nil {
 						t.Fatal(err)
 					}

@@ -1,4 +1,4 @@
-package feed
+package leach
 
 import (
 	"fmt"
@@ -17,10 +17,10 @@ import (
 // MolarVolumeSTPLPerMol is the ideal-gas molar volume at 0 °C and 101.325 kPa (CODATA: 22.413 969 L/mol).
 const MolarVolumeSTPLPerMol = 22.413969
 
-// LeachOptions sets the route and the dosing. Give either the planner's form (AcidExcess and
+// Options sets the route and the dosing. Give either the planner's form (AcidExcess and
 // FreeAcidMolPerL, ReductantExcess) or the bench recipe (RecipeAcidMolPerL and RecipeH2O2VolPct);
 // PulpDensityGPerL or LiquorVolumeL fixes the volume.
-type LeachOptions struct {
+type Options struct {
 	Route            cathode.Route `json:"route"`
 	AcidWtPct        float64       `json:"acid_strength_wt_pct"`       // strength of the acid bought (e.g. 98 for H2SO4, 32 for HCl)
 	H2O2WtPct        float64       `json:"h2o2_strength_wt_pct"`       // strength of the peroxide bought (30, 35, 50)
@@ -48,10 +48,10 @@ type LeachOptions struct {
 	GrowVolume bool `json:"grow_volume,omitempty"`
 }
 
-// DefaultLeachOptions is the planner's default: sulfuric acid 98 % with 30 % peroxide, acid at
+// DefaultOptions is the planner's default: sulfuric acid 98 % with 30 % peroxide, acid at
 // stoichiometry plus 0.5 mol/L free acid, peroxide at 1.5× stoichiometry, 100 g/L pulp density.
-func DefaultLeachOptions() LeachOptions {
-	return LeachOptions{Route: cathode.SulfuricPeroxide, AcidWtPct: 98, H2O2WtPct: 30, AcidExcess: 1, FreeAcidMolPerL: 0.5,
+func DefaultOptions() Options {
+	return Options{Route: cathode.SulfuricPeroxide, AcidWtPct: 98, H2O2WtPct: 30, AcidExcess: 1, FreeAcidMolPerL: 0.5,
 		ReductantExcess: 1.5, PulpDensityGPerL: 100, Reductant: "H2O2", TemperatureC: 60}
 }
 
@@ -114,10 +114,10 @@ type Liquor struct {
 	Fe3GPerL *dist.Stat `json:"fe3_g_per_l,omitempty"`
 }
 
-// LeachReport is the leach plan of a lot.
-type LeachReport struct {
+// Report is the leach plan of a lot.
+type Report struct {
 	Route           string               `json:"route"`
-	Settings        LeachOptions         `json:"settings"`
+	Settings        Options              `json:"settings"`
 	Reagents        []Reagent            `json:"reagents"`
 	WaterL          dist.Stat            `json:"make_up_water_l"`
 	Gases           map[string]Gas       `json:"gases"`
@@ -129,11 +129,11 @@ type LeachReport struct {
 	Limiting        []Limit              `json:"limiting,omitempty"`
 	Scrubber        *Scrubber            `json:"chlorine_scrubber,omitempty"`
 	// PeroxideHeatRiseK is the adiabatic temperature rise if all the peroxide decomposed.
-	PeroxideHeatRiseK *dist.Stat    `json:"peroxide_heat_rise_K,omitempty"`
-	Warnings          []string      `json:"warnings"`
-	Safety            []string      `json:"safety"`
-	Assumptions       []string      `json:"assumptions"`
-	Extraction        []ParamResult `json:"extraction"`
+	PeroxideHeatRiseK *dist.Stat   `json:"peroxide_heat_rise_K,omitempty"`
+	Warnings          []string     `json:"warnings"`
+	Safety            []string     `json:"safety"`
+	Assumptions       []string     `json:"assumptions"`
+	Extraction        []dist.Param `json:"extraction"`
 }
 
 type reagentTable map[string][][2]float64 // reagent -> sorted (wt%, density)
@@ -288,11 +288,21 @@ var leachSafety = map[cathode.Route][]string{
 	},
 }
 
-// planLeach computes the leach plan for every sample of the lot's black mass, in three steps:
+// Input is the black mass to leach, as Monte Carlo samples: the compounds' formulas, their
+// masses per sample (kg) and the black mass per sample (kg). Draws gives the planner's own
+// parameters (extraction, peroxide loss) from the run's seeded streams.
+type Input struct {
+	Formulas    []string
+	Kg          [][]float64 // [compound][sample]
+	BlackMassKg []float64   // [sample]
+	Draws       *dist.Drawer
+}
+
+// Plan computes the leach plan for every sample of the black mass, in three steps:
 // the demand (what the planned extraction and full dissolution need), the dose (the planner's
 // or the bench recipe's), and what that dose actually dissolves (leachSample: limiting acid and
 // electrons), then the liquor, saturation and warnings.
-func planLeach(s *Samples, opt LeachOptions) (*LeachReport, error) {
+func Plan(s Input, opt Options) (*Report, error) {
 	lt, err := loadLeachTables()
 	if err != nil {
 		return nil, err
@@ -312,15 +322,15 @@ func planLeach(s *Samples, opt LeachOptions) (*LeachReport, error) {
 
 // leachPlanner holds one leach plan's inputs and per-sample results.
 type leachPlanner struct {
-	s       *Samples
-	opt     LeachOptions
+	s       Input
+	opt     Options
 	lt      *leachTables
 	route   cathode.Route
 	red     *Reductant
 	species []cathode.Species
 	molarG  []float64
 	ext     map[string][]float64
-	ranges  []ParamResult
+	ranges  []dist.Param
 	lost    []float64 // share of the peroxide dose that decomposes, per sample
 	acidM   float64
 	acidRho float64
@@ -332,8 +342,11 @@ type leachPlanner struct {
 	grown                                                               int
 }
 
-func newLeachPlanner(s *Samples, opt LeachOptions, lt *leachTables) (*leachPlanner, error) {
-	p := &leachPlanner{s: s, opt: opt, lt: lt, route: opt.Route, n: s.N, ext: map[string][]float64{}}
+func newLeachPlanner(s Input, opt Options, lt *leachTables) (*leachPlanner, error) {
+	if len(s.Formulas) != len(s.Kg) || s.Draws == nil {
+		return nil, fmt.Errorf("leach: %d formulas for %d mass columns, or no parameter draws", len(s.Formulas), len(s.Kg))
+	}
+	p := &leachPlanner{s: s, opt: opt, lt: lt, route: opt.Route, n: len(s.BlackMassKg), ext: map[string][]float64{}}
 	p.acidM = cathode.MolarMassOf(p.route.Acid())
 	var err error
 	if p.acidRho, err = Density(p.route.Acid(), opt.AcidWtPct); err != nil {
@@ -351,18 +364,18 @@ func newLeachPlanner(s *Samples, opt LeachOptions, lt *leachTables) (*leachPlann
 	}
 	for _, el := range slices.Sorted(maps.Keys(lt.extraction[p.route])) {
 		rg := lt.extraction[p.route][el]
-		p.ext[el] = s.params.rangeValues("extraction "+p.route.String()+"/"+el, rg)
-		p.ranges = append(p.ranges, ParamResult{"extraction " + p.route.String(), el, rg.Min, rg.Mode, rg.Max, "fraction", lt.sources[p.route.String()+"/"+el]})
+		p.ext[el] = s.Draws.Draws("extraction "+p.route.String()+"/"+el, rg.Min, rg.Mode, rg.Max)
+		p.ranges = append(p.ranges, dist.Param{Scope: "extraction " + p.route.String(), Name: el, Min: rg.Min, Mode: rg.Mode, Max: rg.Max, Unit: "fraction", Source: lt.sources[p.route.String()+"/"+el]})
 	}
 	loss := lt.peroxideLoss(opt.TemperatureC)
-	p.lost = s.params.rangeValues(fmt.Sprintf("peroxide loss/%g C", loss.fromC), loss.r)
+	p.lost = s.Draws.Draws(fmt.Sprintf("peroxide loss/%g C", loss.fromC), loss.r.Min, loss.r.Mode, loss.r.Max)
 	if p.red != nil && p.red.Oxidant {
-		p.ranges = append(p.ranges, ParamResult{"peroxide", fmt.Sprintf("decomposed share at %g °C", opt.TemperatureC), loss.r.Min, loss.r.Mode, loss.r.Max, "fraction", loss.source})
+		p.ranges = append(p.ranges, dist.Param{Scope: "peroxide", Name: fmt.Sprintf("decomposed share at %g °C", opt.TemperatureC), Min: loss.r.Min, Mode: loss.r.Mode, Max: loss.r.Max, Unit: "fraction", Source: loss.source})
 	}
-	p.species = make([]cathode.Species, len(s.Compounds))
-	p.molarG = make([]float64, len(s.Compounds))
-	for c := range s.Compounds {
-		f, err := cathode.ParseFormula(s.CompoundFormula(c))
+	p.species = make([]cathode.Species, len(s.Kg))
+	p.molarG = make([]float64, len(s.Kg))
+	for c := range s.Kg {
+		f, err := cathode.ParseFormula(s.Formulas[c])
 		if err != nil {
 			return nil, err
 		}
@@ -396,8 +409,8 @@ func (p *leachPlanner) plan(i int) func(string) float64 {
 }
 
 func (p *leachPlanner) input(i int, plan func(string) float64, hPlus, redMol float64) redoxInput {
-	mol := make([]float64, len(p.s.Compounds))
-	for c, kg := range p.s.Compounds {
+	mol := make([]float64, len(p.s.Kg))
+	for c, kg := range p.s.Kg {
 		mol[c] = kg[i] * 1000 / p.molarG[c]
 	}
 	es := cathode.DefaultElements()
@@ -429,7 +442,7 @@ func (p *leachPlanner) run() error {
 		p.redPlan[i], p.redFull[i] = need.redUsed+need.oxidantUsed, fullNeed.redUsed+fullNeed.oxidantUsed
 		v := p.opt.LiquorVolumeL
 		if v == 0 {
-			v = p.s.BlackMass[i] * 1000 / p.opt.PulpDensityGPerL
+			v = p.s.BlackMassKg[i] * 1000 / p.opt.PulpDensityGPerL
 		}
 		if p.opt.RecipeAcidMolPerL > 0 {
 			p.acidDose[i] = p.opt.RecipeAcidMolPerL * v
@@ -488,9 +501,9 @@ func (p *leachPlanner) redLitres(mol float64) float64 {
 }
 
 // report summarises the samples.
-func (p *leachPlanner) report() (*LeachReport, error) {
+func (p *leachPlanner) report() (*Report, error) {
 	n, opt, route := p.n, p.opt, p.route
-	lr := &LeachReport{Route: route.String(), Settings: opt, Gases: map[string]Gas{}, Saturation: map[string]dist.Stat{},
+	lr := &Report{Route: route.String(), Settings: opt, Gases: map[string]Gas{}, Saturation: map[string]dist.Stat{},
 		GasReference: "ideal gas at 0 °C and 101.325 kPa (22.414 L/mol)", Safety: leachSafety[route], Extraction: p.ranges}
 	col := func(f func(i int) float64) []float64 {
 		out := make([]float64, n)
@@ -578,7 +591,7 @@ func (p *leachPlanner) report() (*LeachReport, error) {
 	return lr, nil
 }
 
-func redStrength(r *Reductant, opt LeachOptions) float64 {
+func redStrength(r *Reductant, opt Options) float64 {
 	if r.Form == "solution" {
 		return opt.H2O2WtPct
 	}
@@ -622,7 +635,7 @@ func col(n int, f func(i int) float64) []float64 {
 }
 
 // limits says which reagent limited the dissolution, and in how many samples.
-func (p *leachPlanner) limits(lr *LeachReport) {
+func (p *leachPlanner) limits(lr *Report) {
 	var red, acid int
 	for _, r := range p.res {
 		if r.reductionCap < 1-1e-9 {
@@ -648,7 +661,7 @@ func (p *leachPlanner) limits(lr *LeachReport) {
 }
 
 // saturation sets each salt's ratio to its solubility.
-func (p *leachPlanner) saturation(lr *LeachReport) {
+func (p *leachPlanner) saturation(lr *Report) {
 	es := cathode.DefaultElements()
 	for _, sl := range p.lt.salts {
 		k := elementIndex(sl.cation)
@@ -696,7 +709,7 @@ const (
 )
 
 // byproducts adds the caustic to scrub the chlorine and the heat of peroxide decomposition.
-func (p *leachPlanner) byproducts(lr *LeachReport) {
+func (p *leachPlanner) byproducts(lr *Report) {
 	if g, ok := lr.Gases["Cl2"]; ok && g.Mol.P90 > 0 {
 		rho, err := Density("NaOH", 50)
 		if err == nil {
@@ -720,7 +733,7 @@ func (p *leachPlanner) byproducts(lr *LeachReport) {
 }
 
 // warnings adds the dose warnings.
-func (p *leachPlanner) warnings(lr *LeachReport, acidR Reagent, redR *Reagent) {
+func (p *leachPlanner) warnings(lr *Report, acidR Reagent, redR *Reagent) {
 	if p.grown > 0 {
 		lr.Warnings = append(lr.Warnings, fmt.Sprintf("the reagents alone exceed the liquor volume in %d of %d samples: the volume grew to hold them, so the pulp density is lower than asked", p.grown, p.n))
 	}
@@ -791,7 +804,7 @@ func formatGasVolume(m3 float64) string {
 	return fmt.Sprintf("%.3g mL", m3*1e6)
 }
 
-func checkLeachOptions(o *LeachOptions) error {
+func checkLeachOptions(o *Options) error {
 	if o.Reductant == "" {
 		o.Reductant = "H2O2"
 	}
@@ -823,53 +836,27 @@ func checkLeachOptions(o *LeachOptions) error {
 	return nil
 }
 
-// PlanLeachFor computes the leach plan of a black mass given directly as compounds (formula ->
-// kg), without a manifest: e.g. a pure cathode powder. The masses are taken as known; only the
-// extraction is drawn.
-func PlanLeachFor(kgByFormula map[string]float64, opt LeachOptions, seed uint64, samples int) (*LeachReport, error) {
+// PlanFor computes the leach plan of a black mass given directly as compounds (formula -> kg),
+// without a manifest: e.g. a pure cathode powder. The masses are taken as known; only the
+// planner's own parameters are drawn.
+func PlanFor(kgByFormula map[string]float64, opt Options, seed uint64, samples int) (*Report, error) {
 	if samples < 1 {
 		return nil, fmt.Errorf("leach: samples must be positive")
 	}
 	keys := slices.Sorted(maps.Keys(kgByFormula))
-	cols := make([][]float64, len(keys))
-	bm := make([]float64, samples)
+	in := Input{Formulas: keys, Kg: make([][]float64, len(keys)), BlackMassKg: make([]float64, samples), Draws: dist.NewDrawer(seed, samples)}
 	for c, k := range keys {
 		kg := kgByFormula[k]
 		if !(kg >= 0) || math.IsInf(kg, 0) {
 			return nil, fmt.Errorf("leach: %s: mass %v kg", k, kg)
 		}
-		cols[c] = make([]float64, samples)
-		for i := range cols[c] {
-			cols[c][i] = kg
-			bm[i] += kg
+		in.Kg[c] = make([]float64, samples)
+		for i := range samples {
+			in.Kg[c][i] = kg
+			in.BlackMassKg[i] += kg
 		}
 	}
-	s, err := columnSamples(keys, cols, bm, seed)
-	if err != nil {
-		return nil, err
-	}
-	return planLeach(s, opt)
-}
-
-// columnSamples wraps compound columns (formula, kg per sample) as Samples for the leach plan.
-func columnSamples(formulas []string, cols [][]float64, blackMass []float64, seed uint64) (*Samples, error) {
-	c := &compounds{elIdx: map[string]int{}, byEntry: map[string]int{}}
-	for _, k := range formulas {
-		f, err := cathode.ParseFormula(k)
-		if err != nil {
-			return nil, err
-		}
-		c.add(k, f, nil)
-	}
-	return &Samples{N: len(blackMass), comp: c, params: newParamSet(mustModel(), seed, len(blackMass)), Compounds: cols, BlackMass: blackMass}, nil
-}
-
-func mustModel() *Model {
-	m, err := DefaultModel()
-	if err != nil {
-		panic("feed: embedded model: " + err.Error())
-	}
-	return m
+	return Plan(in, opt)
 }
 
 // mixedShareNote is the share of the cathode mass below which a second cathode family is not
@@ -879,13 +866,14 @@ const mixedShareNote = 0.05
 // routeNotes says what the route does to a lot that mixes phosphate and oxide cathodes in
 // amounts that matter: judged at the median of the Monte Carlo, so an unknown item's small
 // chance of holding LFP does not raise it.
-func routeNotes(s *Samples, species []cathode.Species, route cathode.Route) []string {
-	phos, oxide := make([]float64, s.N), make([]float64, s.N)
+func routeNotes(s Input, species []cathode.Species, route cathode.Route) []string {
+	n := len(s.BlackMassKg)
+	phos, oxide := make([]float64, n), make([]float64, n)
 	for c, sp := range species {
 		if _, tm := sp.TransitionMetalState(); !tm || sp.Formula.Moles("Li") == 0 {
 			continue
 		}
-		for i, kg := range s.Compounds[c] {
+		for i, kg := range s.Kg[c] {
 			switch sp.Anion() {
 			case "phosphate":
 				phos[i] += kg
