@@ -3,6 +3,8 @@ package cathode
 import (
 	"fmt"
 	"io/fs"
+	"slices"
+	"sort"
 	"sync"
 
 	"blackmass/data"
@@ -117,3 +119,21 @@ func DefaultElements() *Elements {
 // DisplayOrder is the order elements are shown in: the metals a recycler is paid for first, then
 // the rest of the black mass.
 var DisplayOrder = []string{"Li", "Co", "Ni", "Mn", "Al", "Fe", "Cu", "Na", "P", "F", "C", "O", "H"}
+
+// SortForDisplay returns the symbols in DisplayOrder, others after them alphabetically.
+func SortForDisplay(els []string) []string {
+	rank := func(s string) int {
+		if i := slices.Index(DisplayOrder, s); i >= 0 {
+			return i
+		}
+		return len(DisplayOrder)
+	}
+	out := slices.Clone(els)
+	sort.SliceStable(out, func(i, j int) bool {
+		if rank(out[i]) != rank(out[j]) {
+			return rank(out[i]) < rank(out[j])
+		}
+		return out[i] < out[j]
+	})
+	return out
+}

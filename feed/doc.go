@@ -1,5 +1,4 @@
-// Package feed models a lot of scrap lithium-ion cells and packs: it reads the manifest, turns
-// each line's nameplate energy into the masses of its components, collects what reaches the black
+// Package feed models a lot of scrap lithium-ion cells and packs: it turns each line's nameplate energy into the masses of its components, collects what reaches the black
 // mass, and propagates the model's uncertainty with a seeded Monte Carlo.
 //
 // # Cell model
@@ -26,18 +25,10 @@
 // groups × samples, not lines × samples. Each parameter has its own random stream derived from the
 // seed and the parameter's name, so adding a parameter does not shift the others.
 //
-// # Leach plan
+// # Packages
 //
-// The black-mass draws are dissolved compound by compound with [cathode.Dissolve] on the chosen
-// route, each metal to its drawn extraction; acid, peroxide, gases, liquor volume and
-// concentrations, free acid and salt saturation follow per sample. The free acid comes from the
-// acid balance and the cations from the extraction, so the liquor's charge balance is a check,
-// not an identity.
-//
-// # Assays
-//
-// A lab assay can quote a leach without a manifest ([QuoteFromAssay]: elements mapped to likely
-// species), be set beside an estimate ([Reconcile]: differences in combined standard
-// uncertainties), or be explained as a chemistry mix ([InferMix]: weighted non-negative least
-// squares with bootstrap ranges).
+// The lot model is this package; around it, each job has its own: [blackmass/feed/intake] reads
+// manifests and assays into [Line] values, [blackmass/feed/leach] plans the leach of the drawn
+// black mass, [blackmass/feed/assay] quotes, reconciles and explains assays, [blackmass/feed/dist]
+// summarises draws, and [blackmass/feed/sheet] writes the workbook from a [Report].
 package feed

@@ -7,7 +7,6 @@ import (
 	"errors"
 	"fmt"
 	"slices"
-	"sort"
 )
 
 // EstimateOptions controls the Monte Carlo.
@@ -131,7 +130,7 @@ func (l *Lot) Estimate(opt EstimateOptions) (*Report, *Samples, error) {
 			NameplateKWh: dist.Round(g.energyWh/1000, 6), ChargeOnlyAh: dist.Round(g.chargeAh, 6), MassOnlyKg: dist.Round(g.massOnlyKg, 6), CathodeKg: dist.Summarise(s.groupCAM[gi]), BlackMassKg: dist.Summarise(s.groupBM[gi])})
 	}
 	r.Parameters = l.parameters()
-	r.ElementOrder = elementOrder(l.comp.elements)
+	r.ElementOrder = cathode.SortForDisplay(l.comp.elements)
 	if opt.Leach != nil {
 		lr, err := leach.Plan(leach.Input{Formulas: l.comp.formulas, Kg: s.Compounds, BlackMassKg: s.BlackMass, Draws: ps.d}, *opt.Leach)
 		if err != nil {
@@ -157,22 +156,5 @@ func (l *Lot) parameters() []dist.Param {
 			dist.Param{Scope: sc, Name: "nominal_voltage", Min: e.VoltageV.Min, Mode: e.VoltageV.Mode, Max: e.VoltageV.Max, Unit: "V", Source: e.Source},
 			dist.Param{Scope: sc, Name: "practical_capacity", Min: e.CapacityMAhPerG.Min, Mode: e.CapacityMAhPerG.Mode, Max: e.CapacityMAhPerG.Max, Unit: "mAh/g", Source: e.Source})
 	}
-	return out
-}
-
-func elementOrder(els []string) []string {
-	rank := func(s string) int {
-		if i := slices.Index(cathode.DisplayOrder, s); i >= 0 {
-			return i
-		}
-		return len(cathode.DisplayOrder)
-	}
-	out := slices.Clone(els)
-	sort.SliceStable(out, func(i, j int) bool {
-		if rank(out[i]) != rank(out[j]) {
-			return rank(out[i]) < rank(out[j])
-		}
-		return out[i] < out[j]
-	})
 	return out
 }

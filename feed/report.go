@@ -1,6 +1,7 @@
 package feed
 
 import (
+	"blackmass/feed/assay"
 	"blackmass/feed/dist"
 	"blackmass/feed/leach"
 )
@@ -78,12 +79,12 @@ type Report struct {
 	Lines       []LineResult           `json:"lines,omitempty"`
 	Leach       *leach.Report          `json:"leach,omitempty"`
 	// Assay, Reconciliation and Mix are present when a lab assay was given.
-	Assay          *Assay          `json:"assay,omitempty"`
-	Reconciliation *Reconciliation `json:"reconciliation,omitempty"`
-	Mix            *MixFit         `json:"mix_fit,omitempty"`
-	Parameters     []dist.Param    `json:"parameters"`
-	Warnings       []string        `json:"warnings"`
-	Safety         []string        `json:"safety"`
+	Assay          *assay.Assay          `json:"assay,omitempty"`
+	Reconciliation *assay.Reconciliation `json:"reconciliation,omitempty"`
+	Mix            *assay.MixFit         `json:"mix_fit,omitempty"`
+	Parameters     []dist.Param          `json:"parameters"`
+	Warnings       []string              `json:"warnings"`
+	Safety         []string              `json:"safety"`
 	// ElementOrder lists the element symbols in display order (metals first).
 	ElementOrder []string `json:"element_order"`
 }
@@ -95,4 +96,12 @@ var safetyNotes = []string{
 	"Black mass is a fine, conductive dust of nickel, cobalt and fluoride compounds: local exhaust ventilation and respiratory protection.",
 	"Cobalt and nickel compounds are toxic, skin and respiratory sensitisers and carcinogens.",
 	"These are planning estimates; follow local codes, the suppliers' safety data sheets and licensed practice.",
+}
+
+// QuoteReport is the report of a quote from an assay: the weighed black mass, its elements and
+// species, and the leach plan, with the inputs that produced it.
+func QuoteReport(q *assay.Quote, in Inputs) *Report {
+	in.Seed, in.Samples = q.Seed, q.Samples
+	return &Report{Inputs: in, BlackMassKg: q.BlackMassKg, Elements: q.Elements, Compounds: q.Compounds, ElementOrder: q.ElementOrder,
+		Leach: q.Leach, Warnings: q.Warnings, Safety: safetyNotes}
 }

@@ -14,10 +14,11 @@ import (
 
 	"blackmass/cathode"
 	"blackmass/feed"
+	"blackmass/feed/assay"
 	"blackmass/feed/intake"
 )
 
-func readAssay(path string) (*feed.Assay, []byte, error) {
+func readAssay(path string) (*assay.Assay, []byte, error) {
 	b, err := os.ReadFile(path)
 	if err != nil {
 		return nil, nil, err
@@ -37,7 +38,7 @@ func (f *fitOptions) bind(cmd *cobra.Command) {
 	intVar(cmd.Flags(), &f.bootstrap, "bootstrap", 500, 10, 20000, "enough for stable ranges; more only costs time", "bootstrap draws of the assay for the mix ranges")
 }
 
-func (f *fitOptions) fit(cat *cathode.Catalogue, a *feed.Assay, seed uint64) (*feed.MixFit, error) {
+func (f *fitOptions) fit(cat *cathode.Catalogue, a *assay.Assay, seed uint64) (*assay.MixFit, error) {
 	cands := cat.Entries()
 	if f.candidates != "" {
 		cands = nil
@@ -55,7 +56,7 @@ func (f *fitOptions) fit(cat *cathode.Catalogue, a *feed.Assay, seed uint64) (*f
 			}
 		}
 	}
-	return feed.InferMix(a, cands, f.bootstrap, seed)
+	return assay.InferMix(a, cands, f.bootstrap, seed)
 }
 
 // The black mass a quote accepts: a 1 g bench sample to a 100,000 t campaign.
@@ -82,7 +83,7 @@ func newQuoteCmd() *cobra.Command {
 			if kg < minQuoteKg || kg > maxQuoteKg {
 				return fmt.Errorf("--mass %q: %.4g kg is outside %g g to %g t (a bench sample to a large lot)", intake.Printable(mass, 40), kg, minQuoteKg*1000, maxQuoteKg/1000)
 			}
-			tm, err := feed.ParseTMForm(form)
+			tm, err := assay.ParseTMForm(form)
 			if err != nil {
 				return err
 			}
@@ -104,11 +105,11 @@ func newQuoteCmd() *cobra.Command {
 				return err
 			}
 			sum := sha256.Sum256(b)
-			rep, err := feed.QuoteFromAssay(a, feed.AssayQuoteOptions{BlackMassKg: kg, TMForm: tm, Seed: o.seed, Samples: o.samples, Leach: *lo,
-				Inputs: feed.Inputs{File: filepath.ToSlash(args[0]), SHA256: hex.EncodeToString(sum[:]), Version: version, LotID: o.lotID, Supplier: o.supplier}})
+			q, err := assay.QuoteFrom(a, assay.QuoteOptions{BlackMassKg: kg, TMForm: tm, Seed: o.seed, Samples: o.samples, Leach: *lo})
 			if err != nil {
 				return err
 			}
+			rep := feed.QuoteReport(q, feed.Inputs{File: filepath.ToSlash(args[0]), SHA256: hex.EncodeToString(sum[:]), Version: version, LotID: o.lotID, Supplier: o.supplier})
 			rep.Assay = a
 			if rep.Mix, err = fit.fit(cat, a, o.seed); err != nil {
 				return err
@@ -157,7 +158,7 @@ func newReconcileCmd() *cobra.Command {
 				return err
 			}
 			rep.Assay = a
-			rep.Reconciliation = feed.Reconcile(rep, a, threshold)
+			rep.Reconciliation = assay.Reconcile(rep.Elements, a, threshold)
 			if fit.candidates == "" { // by default, explain the assay with the lot's own chemistries
 				var keys []string
 				for _, g := range rep.Groups {
@@ -213,7 +214,7 @@ func newInferCmd() *cobra.Command {
 	return cmd
 }
 
-func writeMixText(w io.Writer, m *feed.MixFit) {
+func writeMixText(w io.Writer, m *assay.MixFit) {
 	fmt.Fprintf(w, "chemistry mix that best explains the assay (%d bootstrap draws)\n", m.Bootstrap)
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
 	fmt.Fprintln(tw, "component\tbest kg/kg\tP10\tP50\tP90\t95 % range\tcathode share P50\t")
@@ -237,7 +238,7 @@ func writeMixText(w io.Writer, m *feed.MixFit) {
 	}
 }
 
-func writeReconcileText(w io.Writer, rc *feed.Reconciliation) {
+func writeReconcileText(w io.Writer, rc *assay.Reconciliation) {
 	fmt.Fprintf(w, "\nestimate vs assay (flag above %.1f σ)\n", rc.Threshold)
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
 	fmt.Fprintln(tw, "element\testimate wt%\t± σ\tassay wt%\t± σ\tdifference σ\t\t")

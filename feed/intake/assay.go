@@ -10,7 +10,7 @@ import (
 
 	"blackmass/cathode"
 	"blackmass/data"
-	"blackmass/feed"
+	"blackmass/feed/assay"
 )
 
 // minAssayWtPct is the smallest non-zero assay value accepted: 0.01 ppm, below the reporting
@@ -22,7 +22,7 @@ var assayUnits = map[string]float64{"wt%": 1, "%": 1, "wt.%": 1, "pct": 1, "g/kg
 // ReadAssay reads an assay CSV: columns element, value, unit (wt%, g/kg, mg/kg or ppm) and an
 // optional uncertainty column (± in the same unit, a standard uncertainty). Refused: unknown
 // elements or units, negative values, duplicates, and elements summing past 100 %.
-func ReadAssay(r io.Reader, name string) (*feed.Assay, error) {
+func ReadAssay(r io.Reader, name string) (*assay.Assay, error) {
 	cr := data.NewCSVReader(data.SkipBOM(r), ',')
 	cr.FieldsPerRecord = -1 // the uncertainty may be left off a row
 	fail := func(line int, col, val, reason string) error {
@@ -57,7 +57,7 @@ func ReadAssay(r io.Reader, name string) (*feed.Assay, error) {
 		}
 	}
 	es := cathode.DefaultElements()
-	a := &feed.Assay{File: name}
+	a := &assay.Assay{File: name}
 	seen := map[string]int{}
 	sum := 0.0
 	for {
@@ -106,7 +106,7 @@ func ReadAssay(r io.Reader, name string) (*feed.Assay, error) {
 		if v > 0 && v*f < minAssayWtPct {
 			return nil, fail(line, "value", get("value"), fmt.Sprintf("below %g wt%% (0.01 ppm), under any lab's reporting limit: give 0", minAssayWtPct))
 		}
-		av := feed.AssayValue{Element: el, WtPct: v * f, Line: line}
+		av := assay.Value{Element: el, WtPct: v * f, Line: line}
 		if us := get("uncertainty"); us != "" {
 			u, err := ParseNumber(strings.TrimPrefix(us, "±"), false)
 			if err != nil || u < 0 || u*f > 100 {
@@ -114,7 +114,7 @@ func ReadAssay(r io.Reader, name string) (*feed.Assay, error) {
 			}
 			av.SigmaWtPct = u * f
 		} else {
-			av.SigmaWtPct, av.SigmaAssumed = feed.DefaultAssaySigmaRel*av.WtPct, true
+			av.SigmaWtPct, av.SigmaAssumed = assay.DefaultSigmaRel*av.WtPct, true
 		}
 		if av.WtPct > 100 {
 			return nil, fail(line, "value", get("value"), "more than 100 wt%")

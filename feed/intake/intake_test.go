@@ -670,3 +670,30 @@ func TestXLSXWideRows(t *testing.T) {
 		t.Errorf("took %v", d)
 	}
 }
+
+func TestReadAssayErrors(t *testing.T) {
+	for _, c := range []struct{ in, want string }{
+		{"element,value,unit\nCo,70,wt%\nNi,40,wt%\n", "past 100"},
+		{"element,value,unit\nCo,-1,wt%\n", "assay.csv:2: value \"-1\": negative"},
+		{"element,value,unit\nXy,1,wt%\n", "assay.csv:2: element \"Xy\""},
+		{"element,value,unit\nCo,1,furlongs\n", "assay.csv:2: unit \"furlongs\": unknown unit"},
+		{"element,value,unit\nCo,1,wt%\nCo,2,wt%\n", "assay.csv:3: element \"Co\": given twice"},
+		{"element,value\nCo,1\n", "missing column \"unit\""},
+		{"", "empty"},
+	} {
+		_, err := intake.ReadAssay(strings.NewReader(c.in), "assay.csv")
+		if err == nil || !strings.Contains(err.Error(), c.want) {
+			t.Errorf("ReadAssay(%q) = %v, want %q", c.in, err, c.want)
+		}
+	}
+	a, err := intake.ReadAssay(strings.NewReader("element,value,unit,±\nCo,25000,ppm,500\nLi,35,g/kg\n"), "assay.csv")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if v, _ := a.WtPct("Co"); math.Abs(v-2.5) > 1e-12 || math.Abs(a.Values[0].SigmaWtPct-0.05) > 1e-12 {
+		t.Errorf("ppm conversion: %+v", a.Values[0])
+	}
+	if v, _ := a.WtPct("Li"); math.Abs(v-3.5) > 1e-12 || !a.Values[1].SigmaAssumed {
+		t.Errorf("g/kg conversion: %+v", a.Values[1])
+	}
+}

@@ -1,4 +1,4 @@
-package feed
+package assay
 
 import (
 	"fmt"
@@ -49,12 +49,12 @@ var readings = map[string][2]string{
 	"F":  {"more fluorine than expected: binder or electrolyte residue not removed", "less fluorine than expected: thermal pretreatment removed the binder"},
 }
 
-// Reconcile compares an estimate with an assay, element by element, in units of the combined
-// standard uncertainty; |z| above threshold is flagged.
-func Reconcile(r *Report, a *Assay, threshold float64) *Reconciliation {
+// Reconcile compares an estimate (each element's wt% distribution) with an assay, element by
+// element, in units of the combined standard uncertainty; |z| above threshold is flagged.
+func Reconcile(estimate map[string]dist.Amount, a *Assay, threshold float64) *Reconciliation {
 	rc := &Reconciliation{Threshold: threshold}
 	for _, v := range a.Values {
-		est, ok := r.Elements[v.Element]
+		est, ok := estimate[v.Element]
 		c := Comparison{Element: v.Element, AssayWtPct: v.WtPct, AssaySigma: v.SigmaWtPct}
 		if !ok {
 			c.Interpretation = "not in the estimate's model (e.g. salt from brine discharge, or another contaminant)"
@@ -148,7 +148,7 @@ func InferMix(a *Assay, candidates []*cathode.Entry, draws int, seed uint64) (*M
 		}
 		cols = append(cols, column{x.name, m, false})
 	}
-	var rows []AssayValue
+	var rows []Value
 	for _, v := range a.Values {
 		used := false
 		for _, c := range cols {

@@ -1,4 +1,4 @@
-package feed_test
+package assay_test
 
 import (
 	"fmt"
@@ -8,7 +8,7 @@ import (
 	"testing"
 
 	"blackmass/cathode"
-	"blackmass/feed"
+	"blackmass/feed/assay"
 	"blackmass/feed/intake"
 	"blackmass/feed/leach"
 )
@@ -24,7 +24,7 @@ func assayCSV(wt map[string]float64, relSigma float64) string {
 	return b.String()
 }
 
-func mustAssay(t *testing.T, s string) *feed.Assay {
+func mustAssay(t *testing.T, s string) *assay.Assay {
 	t.Helper()
 	a, err := intake.ReadAssay(strings.NewReader(s), "assay.csv")
 	if err != nil {
@@ -68,7 +68,7 @@ func TestInferMixRecoversSynthetic(t *testing.T) {
 	truth := map[string]float64{"LiCoO2": 0.25, "LiNi0.8Mn0.1Co0.1O2": 0.20, "LiFePO4": 0.10, "LiMn2O4": 0.05, "C": 0.30, "C2H2F2": 0.02, "Al": 0.03, "Cu": 0.03}
 	want := map[string]float64{"LCO": 0.25, "NMC811": 0.20, "LFP": 0.10, "LMO": 0.05, "graphite": 0.30, "PVDF": 0.02, "Al": 0.03, "Cu": 0.03, "Fe (metal)": 0}
 	cands := candidates(t, "LCO", "NMC811", "LFP", "LMO")
-	fit, err := feed.InferMix(mustAssay(t, assayCSV(composition(truth), 0.02)), cands, 300, 1)
+	fit, err := assay.InferMix(mustAssay(t, assayCSV(composition(truth), 0.02)), cands, 300, 1)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -87,7 +87,7 @@ func TestInferMixRecoversSynthetic(t *testing.T) {
 		for k, v := range noisy {
 			noisy[k] = math.Max(0, v*(1+0.02*rng.NormFloat64()))
 		}
-		fit, err := feed.InferMix(mustAssay(t, assayCSV(noisy, 0.02)), cands, 200, uint64(trial))
+		fit, err := assay.InferMix(mustAssay(t, assayCSV(noisy, 0.02)), cands, 200, uint64(trial))
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -127,11 +127,11 @@ func TestInferMixPublished(t *testing.T) {
 	// alkaline Al removal, as oxides CoO 65.30, Li2O 5.39, MnO 15.78, NiO 2.17 wt%: cobalt-rich,
 	// so LCO should dominate the cathode, with a manganese chemistry beside it.
 	kp := map[string]float64{"Co": oxide("CoO", 65.30, "Co"), "Li": oxide("Li2O", 5.39, "Li"), "Mn": oxide("MnO", 15.78, "Mn"), "Ni": oxide("NiO", 2.17, "Ni")}
-	fit, err := feed.InferMix(mustAssay(t, assayCSV(kp, 0.03)), all, 200, 1)
+	fit, err := assay.InferMix(mustAssay(t, assayCSV(kp, 0.03)), all, 200, 1)
 	if err != nil {
 		t.Fatal(err)
 	}
-	share := func(f *feed.MixFit, keys ...string) float64 {
+	share := func(f *assay.MixFit, keys ...string) float64 {
 		s := 0.0
 		for _, c := range f.Components {
 			for _, k := range keys {
@@ -151,7 +151,7 @@ func TestInferMixPublished(t *testing.T) {
 	// Shin et al., Hydrometallurgy 79 (2005) 172 (numbers from memory, via Xu et al. 2008): an LCO
 	// 18650 holds 27.5 % LiCoO2 and 16 % carbon; their fines alone are LCO and graphite.
 	shin := composition(map[string]float64{"LiCoO2": 27.5 / 43.5, "C": 16 / 43.5})
-	fit, err = feed.InferMix(mustAssay(t, assayCSV(shin, 0.03)), all, 200, 1)
+	fit, err = assay.InferMix(mustAssay(t, assayCSV(shin, 0.03)), all, 200, 1)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -161,36 +161,12 @@ func TestInferMixPublished(t *testing.T) {
 	// Derived example (computed from CIAAW 2021 atomic weights): 55 % NMC622 + 35 % graphite gives Ni 20.0,
 	// Co 6.7, Mn 6.2, Li 3.9 wt%: the mix should be NMC.
 	nmc := map[string]float64{"Ni": 20.0, "Co": 6.7, "Mn": 6.2, "Li": 3.9, "C": 35}
-	fit, err = feed.InferMix(mustAssay(t, assayCSV(nmc, 0.03)), all, 200, 1)
+	fit, err = assay.InferMix(mustAssay(t, assayCSV(nmc, 0.03)), all, 200, 1)
 	if err != nil {
 		t.Fatal(err)
 	}
 	if s := share(fit, "NMC111", "NMC532", "NMC622", "NMC811", "NCA"); s < 0.85 {
 		t.Errorf("NMC622 black mass: NMC/NCA share %.2f, want > 0.85", s)
-	}
-}
-
-func TestReadAssayErrors(t *testing.T) {
-	for _, c := range []struct{ in, want string }{
-		{"element,value,unit\nCo,70,wt%\nNi,40,wt%\n", "past 100"},
-		{"element,value,unit\nCo,-1,wt%\n", "assay.csv:2: value \"-1\": negative"},
-		{"element,value,unit\nXy,1,wt%\n", "assay.csv:2: element \"Xy\""},
-		{"element,value,unit\nCo,1,furlongs\n", "assay.csv:2: unit \"furlongs\": unknown unit"},
-		{"element,value,unit\nCo,1,wt%\nCo,2,wt%\n", "assay.csv:3: element \"Co\": given twice"},
-		{"element,value\nCo,1\n", "missing column \"unit\""},
-		{"", "empty"},
-	} {
-		_, err := intake.ReadAssay(strings.NewReader(c.in), "assay.csv")
-		if err == nil || !strings.Contains(err.Error(), c.want) {
-			t.Errorf("ReadAssay(%q) = %v, want %q", c.in, err, c.want)
-		}
-	}
-	a := mustAssay(t, "element,value,unit,±\nCo,25000,ppm,500\nLi,35,g/kg\n")
-	if v, _ := a.WtPct("Co"); math.Abs(v-2.5) > 1e-12 || math.Abs(a.Values[0].SigmaWtPct-0.05) > 1e-12 {
-		t.Errorf("ppm conversion: %+v", a.Values[0])
-	}
-	if v, _ := a.WtPct("Li"); math.Abs(v-3.5) > 1e-12 || !a.Values[1].SigmaAssumed {
-		t.Errorf("g/kg conversion: %+v", a.Values[1])
 	}
 }
 
@@ -201,7 +177,7 @@ func TestQuoteFromAssayLiCoO2(t *testing.T) {
 	a := mustAssay(t, assayCSV(composition(map[string]float64{"LiCoO2": 1}), 0))
 	o := leach.DefaultOptions()
 	o.ExtractionOverride = map[string]float64{"*": 1}
-	r, err := feed.QuoteFromAssay(a, feed.AssayQuoteOptions{BlackMassKg: 1, Samples: 20, Seed: 1, Leach: o})
+	r, err := assay.QuoteFrom(a, assay.QuoteOptions{BlackMassKg: 1, Samples: 20, Seed: 1, Leach: o})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -212,23 +188,9 @@ func TestQuoteFromAssayLiCoO2(t *testing.T) {
 	}
 }
 
-func TestReconcile(t *testing.T) {
-	r, _ := estimate(t, mixed, 1, 1000)
-	wt := map[string]float64{}
-	for el, a := range r.Elements {
-		wt[el] = a.WtPct.Mean
-	}
-	rc := feed.Reconcile(r, mustAssay(t, assayCSV(wt, 0.05)), 2)
-	for _, c := range rc.Comparisons {
-		if c.Flag {
-			t.Errorf("%s flagged against its own estimate: z=%.2f", c.Element, c.Z)
-		}
-	}
-	wt["Co"] *= 1.6
-	rc = feed.Reconcile(r, mustAssay(t, assayCSV(wt, 0.05)), 2)
-	for _, c := range rc.Comparisons {
-		if c.Element == "Co" && (!c.Flag || c.Z < 2 || !strings.Contains(c.Interpretation, "more cobalt")) {
-			t.Errorf("Co raised 60 %%: %+v", c)
-		}
+func nearly(t *testing.T, what string, got, want, tol float64) {
+	t.Helper()
+	if math.Abs(got-want) > tol {
+		t.Errorf("%s = %.6g, want %.6g ± %g", what, got, want, tol)
 	}
 }

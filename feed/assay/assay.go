@@ -1,4 +1,4 @@
-package feed
+package assay
 
 import (
 	"fmt"
@@ -13,8 +13,8 @@ import (
 	"blackmass/feed/leach"
 )
 
-// AssayValue is one assayed element in wt% of the black mass (dry basis as the lab reports it).
-type AssayValue struct {
+// Value is one assayed element in wt% of the black mass (dry basis as the lab reports it).
+type Value struct {
 	Element      string  `json:"element"`
 	WtPct        float64 `json:"wt_pct"`
 	SigmaWtPct   float64 `json:"sigma_wt_pct"` // standard uncertainty
@@ -24,13 +24,13 @@ type AssayValue struct {
 
 // Assay is a lab assay of a black-mass sample.
 type Assay struct {
-	File   string       `json:"file"`
-	Values []AssayValue `json:"values"`
+	File   string  `json:"file"`
+	Values []Value `json:"values"`
 }
 
-// DefaultAssaySigmaRel is the relative standard uncertainty assumed where the lab gives none
+// DefaultSigmaRel is the relative standard uncertainty assumed where the lab gives none
 // (5 %, common practice for ICP-OES/XRF of black mass at the percent level).
-const DefaultAssaySigmaRel = 0.05
+const DefaultSigmaRel = 0.05
 
 // WtPct returns an element's assayed wt% and whether it was assayed.
 func (a *Assay) WtPct(el string) (float64, bool) {
@@ -147,19 +147,31 @@ func assaySpecies(dst []float64, wt map[string]float64, form TMForm) (unassigned
 	return unassigned
 }
 
-// AssayQuoteOptions sets a quote from an assay alone.
-type AssayQuoteOptions struct {
+// QuoteOptions sets a quote from an assay alone.
+type QuoteOptions struct {
 	BlackMassKg float64
 	TMForm      TMForm
 	Seed        uint64
 	Samples     int
 	Leach       leach.Options
-	Inputs      Inputs
 }
 
-// QuoteFromAssay builds a report for material already shredded: the assay (drawn within its
-// uncertainty) times the black-mass weight, mapped to species, then the leach plan.
-func QuoteFromAssay(a *Assay, opt AssayQuoteOptions) (*Report, error) {
+// Quote is what an assay and a weight give: the black mass and its elements and species (drawn
+// within the assay's uncertainty) and the leach plan.
+type Quote struct {
+	BlackMassKg  dist.Stat
+	Elements     map[string]dist.Amount
+	Compounds    map[string]dist.Amount
+	ElementOrder []string
+	Leach        *leach.Report
+	Warnings     []string
+	Seed         uint64
+	Samples      int
+}
+
+// QuoteFrom quotes material already shredded: the assay (drawn within its uncertainty) times the
+// black-mass weight, mapped to species, then the leach plan.
+func QuoteFrom(a *Assay, opt QuoteOptions) (*Quote, error) {
 	if !(opt.BlackMassKg > 0) || opt.BlackMassKg > 1e7 {
 		return nil, fmt.Errorf("black-mass weight must be positive (got %v kg)", opt.BlackMassKg)
 	}
@@ -187,8 +199,7 @@ func QuoteFromAssay(a *Assay, opt AssayQuoteOptions) (*Report, error) {
 	for i := range bm {
 		bm[i] = opt.BlackMassKg
 	}
-	r := &Report{Inputs: opt.Inputs, Elements: map[string]dist.Amount{}, Compounds: map[string]dist.Amount{}, Safety: safetyNotes}
-	r.Inputs.Seed, r.Inputs.Samples = opt.Seed, n
+	r := &Quote{Elements: map[string]dist.Amount{}, Compounds: map[string]dist.Amount{}, Seed: opt.Seed, Samples: n}
 	r.BlackMassKg = dist.Summarise(bm)
 	for _, v := range a.Values {
 		kg := make([]float64, n)
@@ -206,7 +217,7 @@ func QuoteFromAssay(a *Assay, opt AssayQuoteOptions) (*Report, error) {
 	for e := range r.Elements {
 		els = append(els, e)
 	}
-	r.ElementOrder = elementOrder(els)
+	r.ElementOrder = cathode.SortForDisplay(els)
 	r.Warnings = append(r.Warnings, "quote from an assay: species are inferred from the elements ("+
 		map[TMForm]string{TMLayered: "Co/Ni/Mn as layered oxides with the assay's lithium", TMMonoxide: "Co/Ni/Mn as monoxides", TMMetal: "Co/Ni/Mn as metals"}[opt.TMForm]+
 		"; Li with Fe and P as LiFePO4, other Fe as metal, Al and Cu as metal, F as PVDF, other C as graphite, Li left over as Li2CO3)")
@@ -215,7 +226,7 @@ func QuoteFromAssay(a *Assay, opt AssayQuoteOptions) (*Report, error) {
 	}
 	for _, v := range a.Values {
 		if v.SigmaAssumed {
-			r.Warnings = append(r.Warnings, fmt.Sprintf("no lab uncertainty given: %.0f %% relative assumed for every element without one", 100*DefaultAssaySigmaRel))
+			r.Warnings = append(r.Warnings, fmt.Sprintf("no lab uncertainty given: %.0f %% relative assumed for every element without one", 100*DefaultSigmaRel))
 			break
 		}
 	}
