@@ -15,6 +15,7 @@ type EstimateOptions struct {
 	Samples int
 	Inputs  Inputs // recorded in the report as given (Seed and Samples are filled in)
 	Leach   *leach.Options
+	Prices  *PriceList // nil: no value
 }
 
 // Samples holds every Monte Carlo draw of the lot's black mass, by compound (kg), so that later
@@ -137,6 +138,13 @@ func (l *Lot) Estimate(opt EstimateOptions) (*Report, *Samples, error) {
 			return nil, nil, err
 		}
 		r.Leach = lr
+	}
+	if opt.Prices != nil {
+		var cost []float64
+		if r.Leach != nil {
+			cost = r.Leach.CostPerSample
+		}
+		r.Value = valueOf(s, l.comp.elements, opt.Prices, cost, l.modeWh/1000)
 	}
 	return r, s, nil
 }

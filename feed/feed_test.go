@@ -7,6 +7,7 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"slices"
 	"strings"
 	"testing"
 
@@ -397,4 +398,67 @@ func composition(parts map[string]float64) map[string]float64 {
 	delete(out, "O")
 	delete(out, "H")
 	return out
+}
+
+// The lithium carbonate equivalent of 1 kg Li is M(Li2CO3)/(2·M(Li)) = 5.323 (the trade's LCE
+// conversion factor; computed from CIAAW 2021 atomic weights).
+func TestLCEFactor(t *testing.T) {
+	nearly(t, "LCE per kg Li", feed.LCEPerKgLi(), 5.323, 0.0005)
+}
+
+// Value: every element priced from the same draws, the lot's payable value is the sum of the
+// elements' (per sample, so its mean is the sum of means), lithium priced as LCE; without a
+// price list there is no value at all.
+func TestLotValue(t *testing.T) {
+	pl, err := intake.ReadPrices(strings.NewReader("item,basis,price_per_kg,currency,payable,source\nCo,metal,20,EUR,0.7,test\nLi,LCE,10,EUR,50%,test\nNi,metal,15,EUR,1,test\n"), "p.csv")
+	if err != nil {
+		t.Fatal(err)
+	}
+	cat, _ := cathode.DefaultCatalogue()
+	m, _ := feed.DefaultModel()
+	run := func(prices *feed.PriceList) *feed.Report {
+		lot := feed.NewLot(m, false)
+		if err := readCSV(strings.NewReader(mixed), "t.csv", intake.Options{Catalogue: cat}, lot.Add); err != nil {
+			t.Fatal(err)
+		}
+		r, _, err := lot.Estimate(feed.EstimateOptions{Seed: 2, Samples: 500, Prices: prices})
+		if err != nil {
+			t.Fatal(err)
+		}
+		return r
+	}
+	if r := run(nil); r.Value != nil {
+		t.Errorf("value without prices: %+v", r.Value)
+	}
+	r := run(pl)
+	v := r.Value
+	if v == nil || v.Currency != "EUR" || len(v.Elements) != 3 {
+		t.Fatalf("value %+v", v)
+	}
+	sum := 0.0
+	for _, e := range v.Elements {
+		sum += e.PayableVal.Mean
+		if e.Element == "Li" {
+			nearly(t, "Li priced kg", e.ProductKg.Mean, r.Elements["Li"].Kg.Mean*feed.LCEPerKgLi(), 1e-6*e.ProductKg.Mean)
+		}
+		if e.Element == "Co" {
+			nearly(t, "Co payable", e.PayableVal.Mean, r.Elements["Co"].Kg.Mean*20*0.7, 1e-6*e.PayableVal.Mean)
+		}
+	}
+	nearly(t, "payable = Σ elements (means)", v.Payable.Mean, sum, 1e-6*sum)
+	if len(v.Unpriced) == 0 || !slices.Contains(v.Unpriced, "Mn") {
+		t.Errorf("unpriced metals not listed: %v", v.Unpriced)
+	}
+	for _, bad := range []struct{ in, want string }{
+		{"item,price_per_kg,currency,payable,source\nCo,10,EUR,0.5,a\nNi,10,USD,0.5,b\n", "one currency"},
+		{"item,price_per_kg,currency,payable,source\nCo,10,EUR,1.5,a\n", "payable share"},
+		{"item,basis,price_per_kg,currency,payable,source\nCo,LCE,10,EUR,0.5,a\n", "LCE for lithium"},
+		{"item,price_per_kg,currency,payable,source\nCo,NaN,EUR,0.5,a\n", "want a price"},
+		{"item,price_per_kg,currency,payable,source\nCo,10,EUR,0.5,a\nCo,11,EUR,0.5,a\n", "priced twice"},
+		{"item,price_per_kg,currency,payable\nCo,10,EUR,0.5\n", "source"},
+	} {
+		if _, err := intake.ReadPrices(strings.NewReader(bad.in), "p.csv"); err == nil || !strings.Contains(err.Error(), bad.want) {
+			t.Errorf("ReadPrices(%q) = %v, want %q", bad.in, err, bad.want)
+		}
+	}
 }

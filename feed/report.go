@@ -78,6 +78,8 @@ type Report struct {
 	Labels      []LabelResolution      `json:"labels"`
 	Lines       []LineResult           `json:"lines,omitempty"`
 	Leach       *leach.Report          `json:"leach,omitempty"`
+	// Value is the lot's worth at the prices given; nil when no prices were given.
+	Value *Value `json:"value,omitempty"`
 	// Assay, Reconciliation and Mix are present when a lab assay was given.
 	Assay          *assay.Assay          `json:"assay,omitempty"`
 	Reconciliation *assay.Reconciliation `json:"reconciliation,omitempty"`

@@ -45,6 +45,8 @@ type estimateOptions struct {
 	leach    leachFlags
 	xlsxPath string
 	force    bool
+	prices   string
+	demo     bool // the built-in demo: prices default to the invented demo file
 }
 
 func (o *estimateOptions) bind(cmd *cobra.Command) {
@@ -61,6 +63,7 @@ func (o *estimateOptions) bind(cmd *cobra.Command) {
 	fl.StringVar(&o.supplier, "supplier", "", "supplier recorded in the report")
 	fl.StringVar(&o.xlsxPath, "xlsx", "", "also write the intake workbook to this .xlsx file")
 	fl.BoolVar(&o.force, "force", false, "overwrite an existing workbook")
+	fl.StringVar(&o.prices, "prices", "", "prices CSV (item, basis, price_per_kg, currency, payable, source): adds the lot's value")
 	o.leach.bind(cmd)
 }
 
@@ -103,6 +106,7 @@ func newDemoCmd() *cobra.Command {
 			if o.supplier == "" {
 				o.supplier = demoSupplier
 			}
+			o.demo = true
 			return runEstimate(cmd.OutOrStdout(), o, demoFile, bytes.NewReader(b))
 		},
 	}
@@ -184,7 +188,11 @@ func buildEstimate(o *estimateOptions, name string, in io.Reader) (*feed.Report,
 		return nil, err
 	}
 	sum := h.Sum(nil)
-	rep, _, err := lot.Estimate(feed.EstimateOptions{Seed: o.seed, Samples: o.samples, Leach: leachOpt,
+	prices, err := o.loadPrices()
+	if err != nil {
+		return nil, err
+	}
+	rep, _, err := lot.Estimate(feed.EstimateOptions{Seed: o.seed, Samples: o.samples, Leach: leachOpt, Prices: prices,
 		Inputs: feed.Inputs{File: filepath.ToSlash(name), SHA256: hex.EncodeToString(sum[:]), Version: version,
 			LotID: o.lotID, Supplier: o.supplier, UnknownAsPrior: o.unknown == "prior",
 			Sheet: info.Sheet, Sheets: info.Sheets, HeaderLine: info.HeaderLine, IgnoredColumns: info.IgnoredColumns}})
@@ -198,6 +206,29 @@ func buildEstimate(o *estimateOptions, name string, in io.Reader) (*feed.Report,
 		rep.Warnings = append(rep.Warnings, fmt.Sprintf("columns left out as asked: %s", strings.Join(info.IgnoredColumns, ", ")))
 	}
 	return rep, nil
+}
+
+// demoPrices is the embedded, invented price file of the demo.
+const demoPrices = "demo/prices-invented.csv"
+
+// loadPrices reads --prices (or the plan's prices key); the demo uses its invented prices.
+func (o *estimateOptions) loadPrices() (*feed.PriceList, error) {
+	switch {
+	case o.prices != "":
+		f, err := os.Open(o.prices)
+		if err != nil {
+			return nil, err
+		}
+		defer f.Close()
+		return intake.ReadPrices(f, o.prices)
+	case o.demo:
+		b, err := fs.ReadFile(data.FS, demoPrices)
+		if err != nil {
+			return nil, err
+		}
+		return intake.ReadPrices(bytes.NewReader(b), demoPrices+" (INVENTED prices, for the demo only)")
+	}
+	return nil, nil
 }
 
 // emit writes the workbook (if asked) and then the report as JSON or text.

@@ -29,7 +29,7 @@ type leachFlags struct {
 // planKeys are the flags a plan file may set.
 var planKeys = []string{"route", "acid-strength", "h2o2-strength", "acid-excess", "free-acid", "h2o2-excess", "pulp-density",
 	"liquor-volume", "acid-molarity", "h2o2-vol-pct", "acid-price", "h2o2-price", "reductant", "reductant-g-per-l", "temperature",
-	"grow-volume", "extraction"}
+	"grow-volume", "extraction", "prices"}
 
 func (l *leachFlags) bind(cmd *cobra.Command) {
 	d := leach.DefaultOptions()

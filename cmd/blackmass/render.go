@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"io"
 	"maps"
+	"math"
 	"slices"
 	"strings"
 	"text/tabwriter"
@@ -57,6 +58,7 @@ func writeReportText(w io.Writer, r *feed.Report) {
 		writeGroupsText(w, r)
 	}
 	writeLeachText(w, r)
+	writeValueText(w, r)
 	writeTail(w, r)
 }
 
@@ -108,6 +110,49 @@ func writeLabelsText(w io.Writer, labels []feed.LabelResolution) {
 		fmt.Fprintf(tw, "  %q\t%s\t%s\t%d\t%.1f %%\n", intake.Printable(lb.Label, 40), lb.ResolvedAs, kind, lb.Lines, 100*lb.EnergyShare)
 	}
 	tw.Flush()
+}
+
+// writeValueText prints the lot's value, or says there is none without prices.
+func writeValueText(w io.Writer, r *feed.Report) {
+	v := r.Value
+	if v == nil {
+		if r.Lot.Lines > 0 {
+			fmt.Fprintln(w, "\nvalue: no prices given, so no value (--prices FILE)")
+		}
+		return
+	}
+	fmt.Fprintf(w, "\nvalue (%s, prices from %s)\n", v.Currency, intake.Printable(v.PricesFile, 120))
+	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
+	fmt.Fprintf(tw, "item\tpriced kg P50\tprice/kg\tpayable\tcontained P50\tpayable P10\tpayable P50\tpayable P90\t\n")
+	for _, e := range v.Elements {
+		item := e.Element
+		if e.Basis == feed.BasisLCE {
+			item += " as LCE"
+		}
+		fmt.Fprintf(tw, "%s\t%s\t%.2f\t%.0f %%\t%s\t%s\t%s\t%s\t\n", item, num(e.ProductKg.P50), e.PricePerKg, 100*e.Payable,
+			money(e.Contained.P50), money(e.PayableVal.P10), money(e.PayableVal.P50), money(e.PayableVal.P90))
+	}
+	fmt.Fprintf(tw, "lot\t\t\t\t%s\t%s\t%s\t%s\t\n", money(v.Contained.P50), money(v.Payable.P10), money(v.Payable.P50), money(v.Payable.P90))
+	tw.Flush()
+	fmt.Fprintf(w, "payable per tonne of black mass: %s (P50)", money(v.PayablePerTonneBM.P50))
+	if v.PayablePerKWh != nil {
+		fmt.Fprintf(w, "; per kWh received: %.2f (P50)", v.PayablePerKWh.P50)
+	}
+	fmt.Fprintln(w)
+	if v.NetOfReagents != nil {
+		fmt.Fprintf(w, "reagents %s, payable net of reagents %s / %s / %s (P10/P50/P90)\n", money(v.ReagentCost.P50), money(v.NetOfReagents.P10), money(v.NetOfReagents.P50), money(v.NetOfReagents.P90))
+	}
+	for _, n := range v.Notes {
+		fmt.Fprintln(w, "  - "+n)
+	}
+}
+
+// money prints an amount of money to the unit (cents for small amounts).
+func money(x float64) string {
+	if math.Abs(x) < 100 {
+		return fmt.Sprintf("%.2f", x)
+	}
+	return fmt.Sprintf("%.0f", x)
 }
 
 // maxPrintedRunes bounds one printed message: user text inside it (ids, labels) is escaped and

@@ -126,6 +126,9 @@ type Report struct {
 	FreeAcidMolPerL dist.Stat            `json:"free_acid_mol_per_l"`
 	Saturation      map[string]dist.Stat `json:"saturation"`
 	TotalCost       *dist.Stat           `json:"total_cost,omitempty"`
+	// CostPerSample is the reagent cost of each Monte Carlo sample (for values net of reagents
+	// that move coherently with the draws); nil without prices.
+	CostPerSample []float64 `json:"-"`
 	Limiting        []Limit              `json:"limiting,omitempty"`
 	Scrubber        *Scrubber            `json:"chlorine_scrubber,omitempty"`
 	// PeroxideHeatRiseK is the adiabatic temperature rise if all the peroxide decomposed.
@@ -526,13 +529,14 @@ func (p *leachPlanner) report() (*Report, error) {
 	}
 	lr.WaterL = dist.Summarise(p.water)
 	if opt.AcidPricePerKg > 0 || opt.H2O2PricePerKg > 0 {
-		st := dist.Summarise(col(func(i int) float64 {
+		lr.CostPerSample = col(func(i int) float64 {
 			c := p.acidDose[i] * p.acidM / 1000 / (opt.AcidWtPct / 100) * opt.AcidPricePerKg
 			if p.red != nil {
 				c += p.redDose[i] * p.red.MolarMassGMol / 1000 / (redStrength(p.red, opt) / 100) * opt.H2O2PricePerKg
 			}
 			return c
-		}))
+		})
+		st := dist.Summarise(lr.CostPerSample)
 		lr.TotalCost = &st
 	}
 	gases := map[string]func(r redoxResult) float64{

@@ -1,0 +1,91 @@
+package intake
+
+import (
+	"errors"
+	"fmt"
+	"io"
+	"strings"
+
+	"blackmass/cathode"
+	"blackmass/data"
+	"blackmass/feed"
+)
+
+// maxPricePerKg bounds a price: above any battery metal's price per kg in any currency in use
+// (common practice, with a wide margin).
+const maxPricePerKg = 1e6
+
+// ReadPrices reads a prices file: columns item (an element symbol), basis (metal, or LCE for
+// lithium), price_per_kg, currency, payable (a share 0..1 or a percentage), source. Every row
+// must carry the same currency; an element may be priced once.
+func ReadPrices(r io.Reader, name string) (*feed.PriceList, error) {
+	t, err := data.ParseTable(r, name)
+	if err != nil {
+		return nil, &Error{File: name, Reason: strings.TrimPrefix(err.Error(), name+": ")}
+	}
+	for _, c := range []string{"item", "price_per_kg", "currency", "payable"} {
+		if !t.Has(c) {
+			return nil, &Error{File: name, Line: 1, Reason: fmt.Sprintf("missing column %q (want item, basis, price_per_kg, currency, payable, source)", c)}
+		}
+	}
+	pl := &feed.PriceList{File: name}
+	es := cathode.DefaultElements()
+	seen := map[string]int{}
+	for _, row := range t.Rows {
+		fail := func(col, val, reason string) error {
+			return &Error{File: name, Line: row.Line, Column: col, Value: val, Reason: reason}
+		}
+		el := row.Str("item")
+		if es.Lookup(el) == nil || !cathode.IsMetal(el) {
+			return nil, fail("item", el, "not a metal symbol (Co, Ni, Li, Mn, Cu, Al ...; case matters)")
+		}
+		if first, dup := seen[el]; dup {
+			return nil, fail("item", el, fmt.Sprintf("priced twice (first on line %d)", first))
+		}
+		seen[el] = row.Line
+		basis := row.Str("basis")
+		switch {
+		case basis == "" || strings.EqualFold(basis, feed.BasisMetal):
+			basis = feed.BasisMetal
+		case strings.EqualFold(basis, feed.BasisLCE) && el == "Li":
+			basis = feed.BasisLCE
+		default:
+			return nil, fail("basis", basis, "want metal (per kg of the element), or LCE for lithium (per kg of lithium carbonate equivalent)")
+		}
+		price, err := ParseNumber(row.Str("price_per_kg"), false)
+		if err != nil || price < 0 || price > maxPricePerKg {
+			return nil, fail("price_per_kg", row.Str("price_per_kg"), fmt.Sprintf("want a price from 0 to %g per kg", float64(maxPricePerKg)))
+		}
+		cur := strings.ToUpper(row.Str("currency"))
+		if cur == "" || len(cur) > 8 {
+			return nil, fail("currency", row.Str("currency"), "want a currency code such as EUR or USD")
+		}
+		if pl.Currency == "" {
+			pl.Currency = cur
+		} else if cur != pl.Currency {
+			return nil, fail("currency", cur, fmt.Sprintf("every row must use one currency (the first row uses %s)", pl.Currency))
+		}
+		pay, err := share(row.Str("payable"))
+		if err != nil {
+			return nil, fail("payable", row.Str("payable"), err.Error())
+		}
+		pl.Prices = append(pl.Prices, feed.Price{Element: el, Basis: basis, PerKg: price, Payable: pay, Source: row.Str("source")})
+	}
+	return pl, nil
+}
+
+// share reads a fraction 0..1, or a percentage with its sign.
+func share(s string) (float64, error) {
+	pct := strings.HasSuffix(strings.TrimSpace(s), "%")
+	v, err := ParseNumber(strings.TrimSuffix(strings.TrimSpace(s), "%"), false)
+	if err != nil {
+		return 0, errors.New("want a share from 0 to 1, or a percentage such as 75%")
+	}
+	if pct {
+		v /= 100
+	}
+	if v < 0 || v > 1 {
+		return 0, errors.New("a payable share lies from 0 to 1 (0 % to 100 %)")
+	}
+	return v, nil
+}
