@@ -129,8 +129,8 @@ type Report struct {
 	// CostPerSample is the reagent cost of each Monte Carlo sample (for values net of reagents
 	// that move coherently with the draws); nil without prices.
 	CostPerSample []float64 `json:"-"`
-	Limiting        []Limit              `json:"limiting,omitempty"`
-	Scrubber        *Scrubber            `json:"chlorine_scrubber,omitempty"`
+	Limiting      []Limit   `json:"limiting,omitempty"`
+	Scrubber      *Scrubber `json:"chlorine_scrubber,omitempty"`
 	// PeroxideHeatRiseK is the adiabatic temperature rise if all the peroxide decomposed.
 	PeroxideHeatRiseK *dist.Stat   `json:"peroxide_heat_rise_K,omitempty"`
 	Warnings          []string     `json:"warnings"`
