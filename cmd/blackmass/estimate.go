@@ -32,21 +32,22 @@ const (
 )
 
 type estimateOptions struct {
-	cat      catalogueOptions
-	seed     uint64
-	samples  int
-	asJSON   bool
-	noLines  bool
-	unknown  string
-	sheet    string
-	ignore   []string
-	lotID    string
-	supplier string
-	leach    leachFlags
-	xlsxPath string
-	force    bool
-	prices   string
-	demo     bool // the built-in demo: prices default to the invented demo file
+	cat       catalogueOptions
+	seed      uint64
+	samples   int
+	asJSON    bool
+	noLines   bool
+	unknown   string
+	sheet     string
+	ignore    []string
+	lotID     string
+	supplier  string
+	leach     leachFlags
+	xlsxPath  string
+	force     bool
+	prices    string
+	demo      bool // the built-in demo: prices default to the invented demo file
+	keepLines bool // keep per-line detail whatever the output (the register stores the lines)
 }
 
 func (o *estimateOptions) bind(cmd *cobra.Command) {
@@ -160,7 +161,7 @@ func buildEstimate(o *estimateOptions, name string, in io.Reader) (*feed.Report,
 	}
 	// Per-line detail is kept only for the outputs that print it (JSON and the workbook): the
 	// text report never does, and keeping it costs memory in proportion to the manifest.
-	lot := feed.NewLot(model, !o.noLines && (o.asJSON || o.xlsxPath != ""))
+	lot := feed.NewLot(model, o.keepLines || (!o.noLines && (o.asJSON || o.xlsxPath != "")))
 	mopt := intake.Options{Catalogue: cat, UnknownAsPrior: o.unknown == "prior", IgnoreColumns: o.ignore, Sheet: o.sheet}
 	h := sha256.New()
 	br := bufio.NewReaderSize(in, 64<<10)

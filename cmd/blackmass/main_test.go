@@ -397,3 +397,76 @@ func TestLeachFlagConflictsAndExtraction(t *testing.T) {
 		t.Errorf("plan with extraction and reductant: exit %d %s", code, errs)
 	}
 }
+
+// The lot workflow of the README on the demo lot: the register is created on first use; add,
+// assay, weigh, list, show, export and totals agree with the report; removal needs confirming.
+func TestLotWorkflow(t *testing.T) {
+	dir := t.TempDir()
+	db := filepath.Join(dir, "sub", "register.db")
+	demo := filepath.Join("..", "..", "data", "demo", "lot-KR-2611.csv")
+	step := func(stdin string, args ...string) string {
+		t.Helper()
+		code, out, errs := run(t, stdin, append(args, "--db", db)...)
+		if code != 0 {
+			t.Fatalf("%v: exit %d: %s", args, code, errs)
+		}
+		return out
+	}
+	step("", "lot", "add", demo, "--lot", "KR-2611", "--supplier", "Larkfield Municipal Drop-off Yard", "--received", "2026-11-28", "--samples", "200")
+	if code, _, errs := run(t, "", "lot", "add", demo, "--lot", "KR-2611", "--samples", "200", "--db", db); code != 1 || !strings.Contains(errs, "--replace") {
+		t.Errorf("added twice: exit %d %s", code, errs)
+	}
+	step("", "lot", "assay", "KR-2611", filepath.Join("..", "..", "testdata", "assay-KR-2611.csv"), "--lab", "Tarn Valley Assay Lab", "--date", "2026-12-01")
+	step("", "lot", "weigh", "KR-2611", "--mass", "212 kg", "--date", "2026-12-01")
+	out := step("", "lot", "list", "--json")
+	var lots []struct {
+		ID          string             `json:"lot_id"`
+		BlackMassKg float64            `json:"black_mass_kg_p50"`
+		MetalsKg    map[string]float64 `json:"metals_kg_p50"`
+		WeighedKg   float64            `json:"weighed_kg"`
+		Assays      int                `json:"assays"`
+	}
+	if err := json.Unmarshal([]byte(out), &lots); err != nil {
+		t.Fatal(err)
+	}
+	_, rep, _ := run(t, "", "demo", "--samples", "200", "--json")
+	var r struct {
+		BlackMass struct{ P50 float64 } `json:"black_mass_kg"`
+		Elements  map[string]struct {
+			Kg struct{ P50 float64 }
+		}
+	}
+	if err := json.Unmarshal([]byte(rep), &r); err != nil {
+		t.Fatal(err)
+	}
+	if len(lots) != 1 || lots[0].BlackMassKg != r.BlackMass.P50 || lots[0].MetalsKg["Co"] != r.Elements["Co"].Kg.P50 || lots[0].WeighedKg != 212 || lots[0].Assays != 1 {
+		t.Errorf("list %+v vs report black mass %v Co %v", lots, r.BlackMass.P50, r.Elements["Co"].Kg.P50)
+	}
+	if show := step("", "lot", "show", "KR-2611"); !strings.Contains(show, "Tarn Valley Assay Lab") || !strings.Contains(show, "212") {
+		t.Errorf("show: %s", show)
+	}
+	csvPath := filepath.Join(dir, "lots.csv")
+	step("", "lot", "export", "--csv", csvPath)
+	b, _ := os.ReadFile(csvPath)
+	if !strings.Contains(string(b), "KR-2611") || strings.Count(string(b), "\n") != 2 {
+		t.Errorf("export: %s", b)
+	}
+	if code, _, _ := run(t, "", "lot", "export", "--csv", csvPath, "--db", db); code == 0 {
+		t.Error("export overwrote a file without --force")
+	}
+	if tot := step("", "lot", "totals", "--month", "2026-11"); !strings.Contains(tot, "LFP") || !strings.Contains(tot, "Larkfield") {
+		t.Errorf("totals: %s", tot)
+	}
+	if code, _, _ := run(t, "no\n", "lot", "remove", "KR-2611", "--db", db); code == 0 {
+		t.Error("removed without confirmation")
+	}
+	step("KR-2611\n", "lot", "remove", "KR-2611")
+	if out := step("", "lot", "list"); !strings.Contains(out, "no lots") {
+		t.Errorf("after removal: %s", out)
+	}
+	foreign := filepath.Join(dir, "foreign.db")
+	_ = os.WriteFile(foreign, []byte("not a database, a shopping list\n"), 0o644)
+	if code, _, errs := run(t, "", "lot", "list", "--db", foreign); code != 1 || !strings.Contains(errs, "not a blackmass register") {
+		t.Errorf("foreign --db: exit %d %s", code, errs)
+	}
+}

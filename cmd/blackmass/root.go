@@ -79,7 +79,7 @@ toxic gases (H2, Cl2, HF) are hazards: follow local codes, safety data sheets an
 		SilenceErrors: true,
 	}
 	root.SetVersionTemplate("{{.Name}} {{.Version}}\n")
-	root.AddCommand(newChemCmd(), newEstimateCmd(), newDemoCmd(), newQuoteCmd(), newReconcileCmd(), newInferCmd())
+	root.AddCommand(newChemCmd(), newEstimateCmd(), newDemoCmd(), newQuoteCmd(), newReconcileCmd(), newInferCmd(), newLotCmd())
 	markUsageErrors(root)
 	return root
 }

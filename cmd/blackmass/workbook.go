@@ -5,6 +5,7 @@ import (
 	"encoding/hex"
 	"errors"
 	"fmt"
+	"io"
 	"io/fs"
 	"os"
 	"os/signal"
@@ -39,11 +40,16 @@ func checkWritable(path string, force bool) error {
 // umask), synced, then linked to path, which fails if path appeared meanwhile (the check and the
 // write are one step), or renamed over it with force (keeping the old file's mode). The
 // temporary file is removed on failure and on SIGINT or SIGTERM.
-func writeWorkbook(path string, r *feed.Report, force bool) (err error) {
+func writeWorkbook(path string, r *feed.Report, force bool) error {
+	return writeNewFile(path, force, func(w io.Writer) error { return sheet.Write(w, r) })
+}
+
+// writeNewFile writes a file the same way for every output: see writeWorkbook.
+func writeNewFile(path string, force bool, write func(io.Writer) error) (err error) {
 	if err := checkWritable(path, force); err != nil {
 		return err
 	}
-	tmpName, tmp, err := createTemp(filepath.Dir(path))
+	tmpName, tmp, err := createTemp(filepath.Dir(path), filepath.Ext(path))
 	if err != nil {
 		return fmt.Errorf("%s: %w", path, err)
 	}
@@ -54,7 +60,7 @@ func writeWorkbook(path string, r *feed.Report, force bool) (err error) {
 			_ = os.Remove(tmpName)
 		}
 	}()
-	if err = sheet.Write(tmp, r); err != nil {
+	if err = write(tmp); err != nil {
 		_ = tmp.Close()
 		return fmt.Errorf("%s: %w", path, err)
 	}
@@ -86,11 +92,11 @@ func writeWorkbook(path string, r *feed.Report, force bool) (err error) {
 
 // createTemp creates a new file beside the target with mode 0666 less the umask (as any new
 // file of the user's), under a random name.
-func createTemp(dir string) (string, *os.File, error) {
+func createTemp(dir, ext string) (string, *os.File, error) {
 	var b [8]byte
 	for range 10 {
 		_, _ = rand.Read(b[:])
-		name := filepath.Join(dir, ".blackmass-"+hex.EncodeToString(b[:])+".xlsx")
+		name := filepath.Join(dir, ".blackmass-"+hex.EncodeToString(b[:])+ext)
 		f, err := os.OpenFile(name, os.O_WRONLY|os.O_CREATE|os.O_EXCL, 0o666)
 		if errors.Is(err, fs.ErrExist) {
 			continue
