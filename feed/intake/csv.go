@@ -20,10 +20,7 @@ func ReadCSV(r io.Reader, name string, opt Options, fn func(feed.Line) error) (I
 	if err != nil {
 		return Info{}, &Error{File: name, Reason: err.Error()}
 	}
-	cr := data.NewCSVReader(br, sep)
-	cr.ReuseRecord = true
-	cr.FieldsPerRecord = -1 // rows are checked against the header's width by the parser
-	src := &csvSource{cr: cr, name: name}
+	src := &csvSource{cr: newSplitSource(br, byte(sep)), name: name}
 	return readRows(src, name, opt, sep == ';', fn)
 }
 
@@ -40,26 +37,31 @@ type lineLimit struct {
 
 func (l *lineLimit) Read(p []byte) (int, error) {
 	n, err := l.r.Read(p)
-	for _, b := range p[:n] {
-		if b == '\n' || b == '\r' {
-			l.run = 0
-			continue
+	b := p[:n]
+	for len(b) > 0 {
+		i := bytes.IndexAny(b, "\n\r")
+		if i < 0 {
+			l.run += len(b)
+			break
 		}
-		l.run++
-		if l.run > l.max {
+		if l.run+i > l.max {
 			return 0, errLineTooLong
 		}
+		l.run, b = 0, b[i+1:]
+	}
+	if l.run > l.max {
+		return 0, errLineTooLong
 	}
 	return n, err
 }
 
 type csvSource struct {
-	cr   *csv.Reader
+	cr   *splitSource
 	name string
 }
 
 func (s *csvSource) next() ([]string, int, error) {
-	rec, err := s.cr.Read()
+	rec, line, err := s.cr.Read()
 	if err != nil {
 		var pe *csv.ParseError
 		switch {
@@ -73,10 +75,8 @@ func (s *csvSource) next() ([]string, int, error) {
 		return nil, 0, err
 	}
 	if len(rec) > MaxColumns {
-		line, _ := s.cr.FieldPos(0)
 		return nil, line, &Error{File: s.name, Line: line, Reason: fmt.Sprintf("more than %d columns", MaxColumns)}
 	}
-	line, _ := s.cr.FieldPos(0)
 	return rec, line, nil
 }
 

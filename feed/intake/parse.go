@@ -178,6 +178,37 @@ type lineParser struct {
 	chem         map[labelKey]*resolved
 	formats      map[string]feed.Format
 	layouts      map[string]int
+	apps         map[string]string       // application text -> key
+	quantities   map[quantityKey]quantity // quantity text -> value, so repeated values parse once
+}
+
+// quantityKey is a quantity as typed with the column it came from (the header's unit differs).
+type quantityKey struct {
+	col  Column
+	text string
+}
+
+// quantity is a parsed quantity, or the error it gave.
+type quantity struct {
+	v    float64
+	unit string
+	err  error
+}
+
+// maxCachedQuantities bounds the cache of parsed quantities.
+const maxCachedQuantities = 4096
+
+// quantity parses s from column c with the column's units, remembering the result.
+func (p *lineParser) quantity(c Column, s string, u UnitTable, defaultUnit string) (float64, string, error) {
+	k := quantityKey{c, s}
+	if q, ok := p.quantities[k]; ok {
+		return q.v, q.unit, q.err
+	}
+	v, unit, err := Quantity(s, u, defaultUnit, p.decimalComma)
+	if len(p.quantities) < maxCachedQuantities {
+		p.quantities[k] = quantity{v, unit, err}
+	}
+	return v, unit, err
 }
 
 // resolved is a label's chemistry and whether the label was recognised.
@@ -188,7 +219,8 @@ type resolved struct {
 
 func newLineParser(name string, opt Options, decimalComma bool, hdr *header) *lineParser {
 	return &lineParser{name: name, opt: opt, decimalComma: decimalComma, hdr: hdr,
-		chem: map[labelKey]*resolved{}, formats: map[string]feed.Format{}, layouts: map[string]int{}}
+		chem: map[labelKey]*resolved{}, formats: map[string]feed.Format{}, layouts: map[string]int{}, apps: map[string]string{},
+		quantities: map[quantityKey]quantity{}}
 }
 
 func (p *lineParser) get(rec []string, c Column) string {
@@ -272,26 +304,32 @@ func (p *lineParser) format(l *feed.Line, rec []string, line int) error {
 func (p *lineParser) chemistry(l *feed.Line, rec []string, line int) error {
 	l.ChemistryLabel = p.get(rec, ColChemistry)
 	appText := p.get(rec, ColApplication)
-	app := ""
 	if appText != "" {
-		if app = p.opt.Catalogue.Application(appText); app == "" {
+		app, ok := p.apps[appText]
+		if !ok {
+			app = p.opt.Catalogue.Application(appText)
+			p.apps[appText] = app
+		}
+		if app == "" {
 			return p.fail(line, ColApplication, appText, "not a known application (want phone, laptop, power tool, e-bike, vehicle or storage; or leave it blank)")
 		}
+		l.Application = app
 	}
-	if app == "" {
-		app = p.opt.Catalogue.Application(l.Description + " " + l.Notes)
+	// A label resolved once is reused; only a label that says nothing about the cathode needs
+	// the item's application (from its column, or a word of the description or notes).
+	if r, ok := p.chem[labelKey{l.ChemistryLabel, ""}]; ok && !r.chem.Unknown {
+		l.Chemistry = r.chem
+		return nil
 	}
-	l.Application = app
-	priorKey := app
+	if l.Application == "" && (l.Description != "" || l.Notes != "") {
+		l.Application = p.opt.Catalogue.Application(l.Description + " " + l.Notes)
+	}
+	priorKey := l.Application
 	if priorKey == "" {
 		priorKey = l.Format.String()
 	}
-	k := labelKey{l.ChemistryLabel, ""}
+	k := labelKey{l.ChemistryLabel, priorKey}
 	r, ok := p.chem[k]
-	if !ok || r.chem.Unknown {
-		k.app = priorKey
-		r, ok = p.chem[k]
-	}
 	if !ok {
 		c, err := p.opt.Catalogue.ParseLabel(l.ChemistryLabel)
 		r = &resolved{}
@@ -356,7 +394,7 @@ func (p *lineParser) mass(l *feed.Line, rec []string, line int) error {
 	if ms == "" {
 		return nil
 	}
-	v, _, err := Quantity(ms, MassUnits, p.hdr.unit[col], p.decimalComma)
+	v, _, err := p.quantity(col, ms, MassUnits, p.hdr.unit[col])
 	if err != nil {
 		return p.fail(line, col, ms, err.Error())
 	}
@@ -378,7 +416,7 @@ func (p *lineParser) capacity(l *feed.Line, rec []string, line int) error {
 		}
 		return p.fail(line, ColCapacity, "", "give a capacity, or a mass for a line known by weight only")
 	}
-	val, unit, err := Quantity(l.CapacityText, CapacityUnits, p.hdr.unit[ColCapacity], p.decimalComma)
+	val, unit, err := p.quantity(ColCapacity, l.CapacityText, CapacityUnits, p.hdr.unit[ColCapacity])
 	if err != nil {
 		return p.fail(line, ColCapacity, l.CapacityText, err.Error())
 	}
@@ -408,7 +446,7 @@ func (p *lineParser) capacity(l *feed.Line, rec []string, line int) error {
 		l.EnergyWh = val * mult
 	case "Ah":
 		if vs := p.get(rec, ColVoltage); vs != "" {
-			v, _, err := Quantity(vs, VoltUnits, "V", p.decimalComma)
+			v, _, err := p.quantity(ColVoltage, vs, VoltUnits, "V")
 			if err != nil || v < minVoltageV || v > maxVoltageV {
 				return p.fail(line, ColVoltage, vs, fmt.Sprintf("want a nominal voltage from %g to %g V", float64(minVoltageV), float64(maxVoltageV)))
 			}
