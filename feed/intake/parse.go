@@ -178,7 +178,7 @@ type lineParser struct {
 	chem         map[labelKey]*resolved
 	formats      map[string]feed.Format
 	layouts      map[string]int
-	apps         map[string]string       // application text -> key
+	apps         map[string]string        // application text -> key
 	quantities   map[quantityKey]quantity // quantity text -> value, so repeated values parse once
 }
 
