@@ -187,12 +187,36 @@ type donor struct {
 	dissolv float64 // mol dissolved
 }
 
+// pass is one dissolution pass at reduction share fRed and acid share fAcid.
+type pass struct {
+	in          redoxInput
+	fRed, fAcid float64
+	r           redoxResult
+	donors      []*donor
+	hUptake     float64 // H+ taken by the solids' anions
+	eOxNeed     float64 // electrons the solids give up to an oxidant (phosphate iron, selective route)
+	eCap        float64 // electrons available to the oxides
+	oxidantLeft float64 // peroxide left after the reduction, mol
+	oxUsedE     float64 // electrons taken by the peroxide acting as oxidant
+}
+
 // dissolveOnce is one pass at reduction share fRed and acid share fAcid. It returns the result,
 // the electrons available to the oxides, and the H+ needed.
 func dissolveOnce(in redoxInput, fRed, fAcid float64) (redoxResult, float64, float64, error) {
-	var r redoxResult
-	var donors []*donor
-	var hUptake, eOxNeed float64
+	p := &pass{in: in, fRed: fRed, fAcid: fAcid}
+	if err := p.solids(); err != nil {
+		return p.r, 0, 0, err
+	}
+	p.reduce()
+	p.leftoverMetals()
+	p.oxidise()
+	hNeed := p.balance()
+	return p.r, p.eCap, hNeed, nil
+}
+
+// solids dissolves the non-metallic species (cathode.Dissolve) and lists the metals as donors.
+func (p *pass) solids() error {
+	in, r := p.in, &p.r
 	for c, sp := range in.species {
 		n := in.mol[c]
 		if n <= 0 || sp.Inert() {
@@ -205,45 +229,23 @@ func dissolveOnce(in redoxInput, fRed, fAcid float64) (redoxResult, float64, flo
 		}
 		if sp.Metallic() {
 			sym := sp.Formula.Terms()[0].Symbol
-			donors = append(donors, &donor{sym: sym, mol: n * in.plan(sym) * fAcid, z: cathode.AqueousCharge(sym), e0: in.metalE0(sym)})
+			d := &donor{sym: sym, mol: n * in.plan(sym) * p.fAcid, z: cathode.AqueousCharge(sym), e0: in.metalE0(sym)}
+			p.donors = append(p.donors, d)
+			if d.e0 < 0 {
+				r.h2Potential += d.mol * d.z / 2
+			}
 			continue
 		}
-		// On the selective route an oxide's lithium stays in its lattice with the metals: it
-		// leaves only as far as the oxide itself dissolves.
-		liWithLattice := in.route == cathode.SulfuricSelective && sp.Anion() == "oxide"
-		latticeX := 0.0
-		if liWithLattice {
-			tm := 0.0
-			for _, t := range sp.Formula.Terms() {
-				if t.Symbol != "Li" && cathode.IsMetal(t.Symbol) {
-					latticeX += t.Amount * in.plan(t.Symbol)
-					tm += t.Amount
-				}
-			}
-			if tm > 0 {
-				latticeX /= tm
-			}
-		}
-		x := func(sym string) float64 {
-			v := in.plan(sym) * fAcid
-			if sym == "Li" && liWithLattice {
-				v = latticeX * fAcid * fRed
-			}
-			if sp.State(sym) > cathode.AqueousCharge(sym) && cathode.AqueousCharge(sym) > 0 {
-				v *= fRed // the reducible metals of an oxide dissolve only as far as electrons allow
-			}
-			return v
-		}
-		rx, err := cathode.Dissolve(sp, in.route, x)
+		rx, err := cathode.Dissolve(sp, in.route, p.extraction(sp))
 		if err != nil {
-			return r, 0, 0, err
+			return err
 		}
-		hUptake += rx.HPlusMol * n
+		p.hUptake += rx.HPlusMol * n
 		if in.route == cathode.Hydrochloric {
 			r.eNeeded += 2 * rx.Cl2Mol * n
 		} else {
 			r.eNeeded += 2 * rx.H2O2ReductantMol * n
-			eOxNeed += 2 * rx.H2O2OxidantMol * n
+			p.eOxNeed += 2 * rx.H2O2OxidantMol * n
 		}
 		r.co2 += rx.CO2Mol * n
 		for _, ion := range rx.Cations {
@@ -254,106 +256,126 @@ func dissolveOnce(in redoxInput, fRed, fAcid float64) (redoxResult, float64, flo
 		r.liquorMol[elementIndex("P")] += rx.H3PO4Mol * n
 		r.liquorMol[elementIndex("F")] += rx.HFMol * n
 	}
-	for _, d := range donors {
-		if d.e0 < 0 {
-			r.h2Potential += d.mol * d.z / 2
+	return nil
+}
+
+// extraction is the share of each element of sp dissolved in this pass.
+func (p *pass) extraction(sp cathode.Species) cathode.Extraction {
+	in := p.in
+	// On the selective route an oxide's lithium stays in its lattice with the metals: it leaves
+	// only as far as the oxide itself dissolves.
+	liWithLattice := in.route == cathode.SulfuricSelective && sp.Anion() == "oxide"
+	latticeX := 0.0
+	if liWithLattice {
+		tm := 0.0
+		for _, t := range sp.Formula.Terms() {
+			if t.Symbol != "Li" && cathode.IsMetal(t.Symbol) {
+				latticeX += t.Amount * in.plan(t.Symbol)
+				tm += t.Amount
+			}
+		}
+		if tm > 0 {
+			latticeX /= tm
 		}
 	}
-	// Metals give electrons to the oxides, the least noble first.
-	slices.SortStableFunc(donors, func(a, b *donor) int { return cmpFloat(a.e0, b.e0) })
+	return func(sym string) float64 {
+		v := in.plan(sym) * p.fAcid
+		if sym == "Li" && liWithLattice {
+			v = latticeX * p.fAcid * p.fRed
+		}
+		if sp.State(sym) > cathode.AqueousCharge(sym) && cathode.AqueousCharge(sym) > 0 {
+			v *= p.fRed // the reducible metals of an oxide dissolve only as far as electrons allow
+		}
+		return v
+	}
+}
+
+// reduce gives the oxides their electrons: the metals of the feed first, the least noble first,
+// then the reductant (or chloride, as Cl2). A shortfall shows as eCap < eNeeded.
+func (p *pass) reduce() {
+	in, r := p.in, &p.r
+	slices.SortStableFunc(p.donors, func(a, b *donor) int { return cmpFloat(a.e0, b.e0) })
 	rem := r.eNeeded
-	for _, d := range donors {
+	for _, d := range p.donors {
 		give := math.Min(rem, d.mol*d.z)
 		d.usedOx, rem = give, rem-give
 		r.eFromMetals += give
 	}
-	// The reductant (or chloride) gives the rest.
-	eCap := r.eFromMetals
-	redAvail := 0.0
+	p.eCap = r.eFromMetals
 	switch {
 	case in.route == cathode.Hydrochloric:
 		r.cl2 = rem / 2
-		eCap += rem
-		rem = 0
+		p.eCap += rem
 	case in.red != nil:
-		redAvail = in.redMol
-		if in.red.Oxidant && !math.IsInf(redAvail, 1) {
-			r.redDecomp = redAvail * in.lost
-			redAvail -= r.redDecomp
+		avail := in.redMol
+		if in.red.Oxidant && !math.IsInf(avail, 1) {
+			r.redDecomp = avail * in.lost
+			avail -= r.redDecomp
 		}
-		need := rem / in.red.ElectronsMol
-		r.redUsed = math.Min(need, redAvail)
-		eCap += redAvail * in.red.ElectronsMol
-		rem -= r.redUsed * in.red.ElectronsMol
-		redAvail -= r.redUsed
+		r.redUsed = math.Min(rem/in.red.ElectronsMol, avail)
+		p.eCap += avail * in.red.ElectronsMol
+		if in.red.Oxidant && !math.IsInf(avail, 1) {
+			p.oxidantLeft = avail - r.redUsed
+		}
 	}
-	_ = rem // a shortfall is returned as eCap < eNeeded and scales fRed
-	// Metal left over: H2 if less noble than hydrogen, else an oxidant or nothing.
-	oxidantLeft := 0.0
-	if in.red != nil && in.red.Oxidant {
-		oxidantLeft = redAvail
-	}
-	if math.IsInf(oxidantLeft, 1) {
-		oxidantLeft = 0 // "as needed" doses the reduction only; the planner adds the oxidant need below
-	}
-	eOxNeedTotal := eOxNeed
-	for _, d := range donors {
+}
+
+// leftoverMetals dissolves what metal the oxides did not take: with H2 if it is less noble than
+// hydrogen; copper only with the peroxide left as oxidant (or stays in the residue).
+func (p *pass) leftoverMetals() {
+	in, r := p.in, &p.r
+	for _, d := range p.donors {
 		left := d.mol*d.z - d.usedOx
 		switch {
 		case d.e0 < 0:
 			d.toH2 = left
 			r.h2 += left / 2
 		case in.route != cathode.Hydrochloric && in.red != nil && in.red.Oxidant:
-			eOxNeedTotal += left
-			take := math.Min(left, 2*oxidantLeft)
+			take := math.Min(left, 2*p.oxidantLeft)
 			if math.IsInf(in.redMol, 1) {
-				take = left
+				take = left // "as needed": the planner doses the oxidant this takes
 			}
 			d.toOxid = take
-			oxidantLeft -= take / 2
+			p.oxidantLeft -= take / 2
+			p.oxUsedE += take
 		}
 		d.dissolv = (d.usedOx + d.toH2 + d.toOxid) / d.z
 		if k := elementIndex(d.sym); k >= 0 {
 			r.liquorMol[k] += d.dissolv
 		}
 	}
-	// Phosphate iron on the selective route, then Fe(II) in the liquor, take the oxidant left.
-	oxUsedE := 0.0
-	for _, d := range donors {
-		oxUsedE += d.toOxid
+}
+
+// oxidise spends the peroxide left: phosphate iron on the selective route (dosed with the
+// reagent), then Fe(II) in the liquor to Fe(III) on the sulfuric route; the rest decomposes.
+func (p *pass) oxidise() {
+	in, r := p.in, &p.r
+	p.oxUsedE += p.eOxNeed
+	if in.route == cathode.SulfuricPeroxide && in.red != nil && in.red.Oxidant && !math.IsInf(in.redMol, 1) {
+		ox := math.Min(r.liquorMol[elementIndex("Fe")], 2*math.Max(p.oxidantLeft, 0))
+		r.fe3Mol = ox
+		p.oxidantLeft -= ox / 2
+		p.oxUsedE += ox
 	}
-	if eOxNeed > 0 {
-		oxUsedE += eOxNeed // the selective route's oxidant need is dosed with the reagent
-	}
-	if in.route == cathode.SulfuricPeroxide && in.red != nil && in.red.Oxidant {
-		fe2 := r.liquorMol[elementIndex("Fe")]
-		if !math.IsInf(in.redMol, 1) {
-			ox := math.Min(fe2, 2*math.Max(oxidantLeft, 0))
-			r.fe3Mol = ox
-			oxidantLeft -= ox / 2
-			oxUsedE += ox
-		}
-	}
-	r.oxidantUsed = oxUsedE / 2
+	r.oxidantUsed = p.oxUsedE / 2
 	if in.red != nil && in.red.Oxidant && !math.IsInf(in.redMol, 1) {
-		leftover := math.Max(in.redMol-r.redDecomp-r.redUsed-r.oxidantUsed, 0)
-		r.redDecomp += leftover
+		r.redDecomp += math.Max(in.redMol-r.redDecomp-r.redUsed-r.oxidantUsed, 0)
 	}
-	// H+ balance: uptake by anions, H2, oxidant (2 H+ per H2O2 reduced to water) and Fe(III);
-	// released by the reductant.
-	hNeed := hUptake + 2*r.h2 + oxUsedE
+}
+
+// balance closes the H+ account (taken by the anions, by H2 and by the oxidant, 1 H+ per
+// electron; released by the reductant) and the gases, and returns the H+ needed.
+func (p *pass) balance() float64 {
+	in, r := p.in, &p.r
+	hNeed := p.hUptake + 2*r.h2 + p.oxUsedE
 	if in.red != nil {
 		hNeed -= r.redUsed * in.red.HPlusMol
-	}
-	r.hPlusUsed = hNeed
-	r.freeH = in.hPlus - hNeed
-	// Gases and the liquor anion.
-	if in.red != nil {
 		r.o2 = r.redUsed*in.red.O2Mol + r.redDecomp/2
 		r.liquorMol[elementIndex("Na")] += r.redUsed * in.red.SodiumMol
 	}
-	_ = eOxNeedTotal
-	return r, eCap, hNeed, nil
+	r.hPlusUsed = hNeed
+	r.freeH = in.hPlus - hNeed
+	return hNeed
 }
 
 func cmpFloat(a, b float64) int {
