@@ -30,7 +30,8 @@ type Samples struct {
 	groupBM   [][]float64
 }
 
-// Estimate runs the Monte Carlo over the lot's groups and builds the report.
+// Estimate runs the Monte Carlo over the lot's groups and builds the report: the draws, the
+// report of the lot and its metals, then the leach plan and the value on the same draws.
 func (l *Lot) Estimate(opt EstimateOptions) (*Report, *Samples, error) {
 	if opt.Samples < 10 || opt.Samples > 200_000 {
 		return nil, nil, fmt.Errorf("samples must be from 10 to 200000, got %d", opt.Samples)
@@ -38,8 +39,29 @@ func (l *Lot) Estimate(opt EstimateOptions) (*Report, *Samples, error) {
 	if l.nLines == 0 {
 		return nil, nil, errors.New("the lot has no lines")
 	}
-	n := opt.Samples
-	ps := newParamSet(l.model, opt.Seed, n)
+	ps := newParamSet(l.model, opt.Seed, opt.Samples)
+	s := l.draw(ps, opt.Samples)
+	r := l.report(s, opt)
+	if opt.Leach != nil {
+		lr, err := leach.Plan(leach.Input{Formulas: l.comp.formulas, Kg: s.Compounds, BlackMassKg: s.BlackMass, Draws: ps.d}, *opt.Leach)
+		if err != nil {
+			return nil, nil, err
+		}
+		r.Leach = lr
+	}
+	if opt.Prices != nil {
+		var cost []float64
+		if r.Leach != nil {
+			cost = r.Leach.CostPerSample
+		}
+		r.Value = valueOf(s, l.comp.elements, opt.Prices, cost, l.modeWh/1000)
+	}
+	return r, s, nil
+}
+
+// draw runs the Monte Carlo: n samples of every group's black mass by compound, then the
+// elements. Its cost is groups × samples, whatever the number of lines.
+func (l *Lot) draw(ps *paramSet, n int) *Samples {
 	nc := l.comp.n()
 	s := &Samples{N: n, comp: l.comp, Compounds: make([][]float64, nc), BlackMass: make([]float64, n)}
 	for c := range s.Compounds {
@@ -86,9 +108,14 @@ func (l *Lot) Estimate(opt EstimateOptions) (*Report, *Samples, error) {
 			}
 		}
 	}
+	return s
+}
+
+// report summarises the draws with the lot's counts, labels and warnings.
+func (l *Lot) report(s *Samples, opt EstimateOptions) *Report {
 	r := &Report{Inputs: opt.Inputs, Elements: map[string]dist.Amount{}, Compounds: map[string]dist.Amount{}, Lines: l.lines,
 		Warnings: append([]string(nil), l.warnings...), Safety: safetyNotes}
-	r.Inputs.Seed, r.Inputs.Samples = opt.Seed, n
+	r.Inputs.Seed, r.Inputs.Samples = opt.Seed, s.N
 	r.Lot = LotSummary{Lines: l.nLines, Items: l.items, Cells: l.cells, NameplateKWh: dist.Round(l.energyWh/1000, 6),
 		ChargeOnlyAh: dist.Round(l.chargeAh, 6), LinesWithMass: l.withMass, LinesFlaggedByMass: l.flagged,
 		LinesByMassOnly: l.massOnly, MassOnlyKg: dist.Round(l.massOnlyKg, 6)}
@@ -96,23 +123,7 @@ func (l *Lot) Estimate(opt EstimateOptions) (*Report, *Samples, error) {
 	if l.modeWh > 0 {
 		r.Lot.UnknownShareOfKWh = dist.Round(l.unknownWh/l.modeWh, 6)
 	}
-	if l.flagged > maxLineWarnings {
-		r.Warnings = append(r.Warnings, fmt.Sprintf("… and %d more lines whose measured mass disagrees with the nameplate (see lines_flagged_by_mass)", l.flagged-maxLineWarnings))
-	}
-	if r.Lot.UnknownShareOfKWh > 0 {
-		r.Warnings = append(r.Warnings, fmt.Sprintf("%.1f %% of the lot's energy is of unknown chemistry: its metals come from the prior for each item and carry the widest uncertainty", 100*r.Lot.UnknownShareOfKWh))
-	}
-	if l.massOnly > 0 {
-		r.Warnings = append(r.Warnings, fmt.Sprintf("%d lines (%.4g kg) give a mass and no capacity: their energy comes from the chemistry's plausible Wh/kg band, drawn across its whole width", l.massOnly, l.massOnlyKg))
-	}
-	for _, lb := range r.Labels {
-		if lb.Unrecognised {
-			r.Warnings = append(r.Warnings, fmt.Sprintf("label %q (%d lines, %.1f %% of the energy) was not recognised and is treated as unknown", lb.Label, lb.Lines, 100*lb.EnergyShare))
-		}
-	}
-	if l.chargeAh > 0 {
-		r.Warnings = append(r.Warnings, fmt.Sprintf("%.0f Ah were given without a voltage: the cathode mass of those lines uses charge over capacity (no voltage needed), their Wh uses the chemistry's nominal voltage", l.chargeAh))
-	}
+	r.Warnings = append(r.Warnings, l.lotWarnings(r)...)
 	r.BlackMassKg = dist.Summarise(s.BlackMass)
 	for e, sym := range l.comp.elements {
 		r.Elements[sym] = dist.AmountOf(s.Elements[e], s.BlackMass)
@@ -128,25 +139,35 @@ func (l *Lot) Estimate(opt EstimateOptions) (*Report, *Samples, error) {
 			keys = append(keys, c.Entry.Key)
 		}
 		r.Groups = append(r.Groups, GroupResult{Chemistry: g.chem.Key, Components: keys, Format: g.format.String(), Lines: g.lines, Items: g.items,
-			NameplateKWh: dist.Round(g.energyWh/1000, 6), ChargeOnlyAh: dist.Round(g.chargeAh, 6), MassOnlyKg: dist.Round(g.massOnlyKg, 6), CathodeKg: dist.Summarise(s.groupCAM[gi]), BlackMassKg: dist.Summarise(s.groupBM[gi])})
+			NameplateKWh: dist.Round(g.energyWh/1000, 6), ChargeOnlyAh: dist.Round(g.chargeAh, 6), MassOnlyKg: dist.Round(g.massOnlyKg, 6),
+			CathodeKg: dist.Summarise(s.groupCAM[gi]), BlackMassKg: dist.Summarise(s.groupBM[gi])})
 	}
 	r.Parameters = l.parameters()
 	r.ElementOrder = cathode.SortForDisplay(l.comp.elements)
-	if opt.Leach != nil {
-		lr, err := leach.Plan(leach.Input{Formulas: l.comp.formulas, Kg: s.Compounds, BlackMassKg: s.BlackMass, Draws: ps.d}, *opt.Leach)
-		if err != nil {
-			return nil, nil, err
-		}
-		r.Leach = lr
+	return r
+}
+
+// lotWarnings are the warnings about the lot as a whole.
+func (l *Lot) lotWarnings(r *Report) []string {
+	var w []string
+	if l.flagged > maxLineWarnings {
+		w = append(w, fmt.Sprintf("… and %d more lines whose measured mass disagrees with the nameplate (see lines_flagged_by_mass)", l.flagged-maxLineWarnings))
 	}
-	if opt.Prices != nil {
-		var cost []float64
-		if r.Leach != nil {
-			cost = r.Leach.CostPerSample
-		}
-		r.Value = valueOf(s, l.comp.elements, opt.Prices, cost, l.modeWh/1000)
+	if r.Lot.UnknownShareOfKWh > 0 {
+		w = append(w, fmt.Sprintf("%.1f %% of the lot's energy is of unknown chemistry: its metals come from the prior for each item and carry the widest uncertainty", 100*r.Lot.UnknownShareOfKWh))
 	}
-	return r, s, nil
+	if l.massOnly > 0 {
+		w = append(w, fmt.Sprintf("%d lines (%.4g kg) give a mass and no capacity: their energy comes from the chemistry's plausible Wh/kg band, drawn across its whole width", l.massOnly, l.massOnlyKg))
+	}
+	for _, lb := range r.Labels {
+		if lb.Unrecognised {
+			w = append(w, fmt.Sprintf("label %q (%d lines, %.1f %% of the energy) was not recognised and is treated as unknown", lb.Label, lb.Lines, 100*lb.EnergyShare))
+		}
+	}
+	if l.chargeAh > 0 {
+		w = append(w, fmt.Sprintf("%.0f Ah were given without a voltage: the cathode mass of those lines uses charge over capacity (no voltage needed), their Wh uses the chemistry's nominal voltage", l.chargeAh))
+	}
+	return w
 }
 
 // parameters lists the model parameters and the chemistry parameters of the lot's chemistries.
