@@ -130,6 +130,10 @@ type Extraction func(symbol string) float64
 // the anions (s: state in the solid, r: state in the residue), and e = Σ released·(s−z) +
 // Σ retained·(s−r) electrons (z: charge in the liquor) come from the route's reductant (e > 0),
 // from H+ as H2 for metals that are less noble than hydrogen, or go to the route's oxidant.
+//
+// It is one function of three passes (the metals, then the anions, then the redox partners)
+// because each pass sums what the next needs (released and retained charge, electrons); split,
+// the sums would have to travel between the parts.
 func Dissolve(sp Species, route Route, x Extraction) (Reaction, error) {
 	rx := Reaction{Species: sp, Route: route}
 	if _, ok := routeNames[route]; !ok {

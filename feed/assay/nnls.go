@@ -10,6 +10,9 @@ import (
 // nnls solves min ‖A x − b‖₂ subject to x ≥ 0 by the active-set method of Lawson and Hanson
 // (Solving Least Squares Problems, 1974, ch. 23), for small dense problems. Columns are scaled to
 // unit norm internally; a zero column gets x = 0. It returns the solution and the residual norm.
+//
+// It follows the published algorithm's steps (Lawson & Hanson, Solving Least Squares Problems,
+// 1974, ch. 23) in one function so that each can be checked against the book.
 func nnls(A *mat.Dense, b []float64) ([]float64, float64, error) {
 	m, n := A.Dims()
 	if len(b) != m {

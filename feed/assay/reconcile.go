@@ -126,63 +126,18 @@ func InferMix(a *Assay, candidates []*cathode.Entry, draws int, seed uint64) (*M
 	if draws < 10 {
 		return nil, fmt.Errorf("infer: at least 10 bootstrap draws")
 	}
-	es := cathode.DefaultElements()
-	type column struct {
-		name string
-		frac map[string]float64
-		chem bool
-	}
-	var cols []column
-	for _, e := range candidates {
-		m := map[string]float64{}
-		for _, t := range e.Formula.MassFractions(es) {
-			m[t.Symbol] = t.Amount
-		}
-		cols = append(cols, column{e.Key, m, true})
-	}
-	for _, x := range []struct{ name, formula string }{{"graphite", "C"}, {"PVDF", "C2H2F2"}, {"Al", "Al"}, {"Cu", "Cu"}, {"Fe (metal)", "Fe"}} {
-		f, _ := cathode.ParseFormula(x.formula)
-		m := map[string]float64{}
-		for _, t := range f.MassFractions(es) {
-			m[t.Symbol] = t.Amount
-		}
-		cols = append(cols, column{x.name, m, false})
-	}
+	cols := mixColumns(candidates)
 	var rows []Value
 	for _, v := range a.Values {
-		used := false
-		for _, c := range cols {
-			if c.frac[v.Element] > 0 {
-				used = true
-			}
-		}
-		if used {
+		if slices.ContainsFunc(cols, func(c mixColumn) bool { return c.frac[v.Element] > 0 }) {
 			rows = append(rows, v)
 		}
 	}
 	if len(rows) < 2 {
 		return nil, fmt.Errorf("infer: the assay has fewer than two elements the candidates contain")
 	}
-	// A floor on σ keeps an element reported as exactly 0 ± 0 from dominating the fit.
-	sigma := make([]float64, len(rows))
-	for i, v := range rows {
-		sigma[i] = math.Max(v.SigmaWtPct, 0.01)
-	}
-	A := mat.NewDense(len(rows), len(cols), nil)
-	for i, v := range rows {
-		for j, c := range cols {
-			A.Set(i, j, 100*c.frac[v.Element]/sigma[i])
-		}
-	}
-	solve := func(vals []float64) ([]float64, error) {
-		b := make([]float64, len(rows))
-		for i := range rows {
-			b[i] = vals[i] / sigma[i]
-		}
-		x, _, err := nnls(A, b)
-		return x, err
-	}
-	best, err := solve(func() []float64 {
+	ws := newWeightedSystem(cols, rows)
+	best, err := ws.solve(func() []float64 {
 		v := make([]float64, len(rows))
 		for i, r := range rows {
 			v[i] = r.WtPct
@@ -192,34 +147,9 @@ func InferMix(a *Assay, candidates []*cathode.Entry, draws int, seed uint64) (*M
 	if err != nil {
 		return nil, err
 	}
-	rng := rand.New(rand.NewPCG(seed, 0xf17))
-	xs := make([][]float64, len(cols))
-	shares := make([][]float64, len(cols))
-	vals := make([]float64, len(rows))
-	for range draws {
-		for i, r := range rows {
-			vals[i] = math.Max(0, r.WtPct+r.SigmaWtPct*rng.NormFloat64())
-		}
-		x, err := solve(vals)
-		if err != nil {
-			return nil, err
-		}
-		chemSum := 0.0
-		for j, c := range cols {
-			if c.chem {
-				chemSum += x[j]
-			}
-		}
-		for j, c := range cols {
-			xs[j] = append(xs[j], x[j])
-			if c.chem {
-				s := 0.0
-				if chemSum > 0 {
-					s = x[j] / chemSum
-				}
-				shares[j] = append(shares[j], s)
-			}
-		}
+	xs, shares, err := ws.bootstrap(draws, seed)
+	if err != nil {
+		return nil, err
 	}
 	fit := &MixFit{Bootstrap: draws}
 	for j, c := range cols {
@@ -239,7 +169,7 @@ func InferMix(a *Assay, candidates []*cathode.Entry, draws int, seed uint64) (*M
 		for j, c := range cols {
 			f += 100 * c.frac[v.Element] * best[j]
 		}
-		fit.Residuals = append(fit.Residuals, Residual{Element: v.Element, WtPct: dist.Sig(v.WtPct - f), Sigma: dist.Sig((v.WtPct - f) / sigma[i])})
+		fit.Residuals = append(fit.Residuals, Residual{Element: v.Element, WtPct: dist.Sig(v.WtPct - f), Sigma: dist.Sig((v.WtPct - f) / ws.sigma[i])})
 	}
 	fit.Notes = []string{
 		"weighted non-negative least squares (Lawson–Hanson) over the candidates' element fractions; weights 1/σ of the assay",
@@ -247,4 +177,96 @@ func InferMix(a *Assay, candidates []*cathode.Entry, draws int, seed uint64) (*M
 		"the explained mass fraction leaves out what the candidates lack (moisture, plastics, oxygen of other species)",
 	}
 	return fit, nil
+}
+
+// mixColumn is one column of the fit: a candidate cathode, or another black-mass component.
+type mixColumn struct {
+	name string
+	frac map[string]float64 // element mass fractions
+	chem bool
+}
+
+// mixColumns lists the candidates and the other components of black mass.
+func mixColumns(candidates []*cathode.Entry) []mixColumn {
+	es := cathode.DefaultElements()
+	var cols []mixColumn
+	add := func(name string, f cathode.Formula, chem bool) {
+		m := map[string]float64{}
+		for _, t := range f.MassFractions(es) {
+			m[t.Symbol] = t.Amount
+		}
+		cols = append(cols, mixColumn{name, m, chem})
+	}
+	for _, e := range candidates {
+		add(e.Key, e.Formula, true)
+	}
+	for _, x := range []struct{ name, formula string }{{"graphite", "C"}, {"PVDF", "C2H2F2"}, {"Al", "Al"}, {"Cu", "Cu"}, {"Fe (metal)", "Fe"}} {
+		f, _ := cathode.ParseFormula(x.formula) // fixed, valid formulas
+		add(x.name, f, false)
+	}
+	return cols
+}
+
+// weightedSystem is the fit's matrix, each assay row weighted by 1/σ.
+type weightedSystem struct {
+	cols  []mixColumn
+	rows  []Value
+	sigma []float64
+	A     *mat.Dense
+}
+
+func newWeightedSystem(cols []mixColumn, rows []Value) *weightedSystem {
+	ws := &weightedSystem{cols: cols, rows: rows, sigma: make([]float64, len(rows)), A: mat.NewDense(len(rows), len(cols), nil)}
+	for i, v := range rows {
+		// A floor on σ keeps an element reported as exactly 0 ± 0 from dominating the fit.
+		ws.sigma[i] = math.Max(v.SigmaWtPct, 0.01)
+		for j, c := range cols {
+			ws.A.Set(i, j, 100*c.frac[v.Element]/ws.sigma[i])
+		}
+	}
+	return ws
+}
+
+// solve fits the assay values vals (wt%).
+func (ws *weightedSystem) solve(vals []float64) ([]float64, error) {
+	b := make([]float64, len(ws.rows))
+	for i := range ws.rows {
+		b[i] = vals[i] / ws.sigma[i]
+	}
+	x, _, err := nnls(ws.A, b)
+	return x, err
+}
+
+// bootstrap refits draws of the assay within its uncertainty: each column's fitted kg per kg,
+// and each candidate's share of the cathode.
+func (ws *weightedSystem) bootstrap(draws int, seed uint64) (xs, shares [][]float64, err error) {
+	rng := rand.New(rand.NewPCG(seed, 0xf17))
+	xs, shares = make([][]float64, len(ws.cols)), make([][]float64, len(ws.cols))
+	vals := make([]float64, len(ws.rows))
+	for range draws {
+		for i, r := range ws.rows {
+			vals[i] = math.Max(0, r.WtPct+r.SigmaWtPct*rng.NormFloat64())
+		}
+		x, err := ws.solve(vals)
+		if err != nil {
+			return nil, nil, err
+		}
+		chemSum := 0.0
+		for j, c := range ws.cols {
+			if c.chem {
+				chemSum += x[j]
+			}
+		}
+		for j, c := range ws.cols {
+			xs[j] = append(xs[j], x[j])
+			if c.chem {
+				s := 0.0
+				if chemSum > 0 {
+					s = x[j] / chemSum
+				}
+				shares[j] = append(shares[j], s)
+			}
+		}
+	}
+	return xs, shares, nil
 }

@@ -35,26 +35,9 @@ func ReadAssay(r io.Reader, name string) (*assay.Assay, error) {
 	if err != nil {
 		return nil, wrapCSV(name, err)
 	}
-	idx := map[string]int{}
-	for i, h := range header {
-		k := strings.ToLower(strings.TrimSpace(h))
-		switch k {
-		case "±", "+/-", "uncertainty", "sigma", "u", "plus_minus", "error":
-			k = "uncertainty"
-		case "symbol", "analyte":
-			k = "element"
-		case "result", "content":
-			k = "value"
-		}
-		if _, dup := idx[k]; dup {
-			return nil, fail(1, "", "", fmt.Sprintf("duplicate column %q", h))
-		}
-		idx[k] = i
-	}
-	for _, c := range []string{"element", "value", "unit"} {
-		if _, ok := idx[c]; !ok {
-			return nil, fail(1, "", "", fmt.Sprintf("missing column %q (want element, value, unit and optionally uncertainty)", c))
-		}
+	idx, err := assayHeader(header, name)
+	if err != nil {
+		return nil, err
 	}
 	es := cathode.DefaultElements()
 	a := &assay.Assay{File: name}
@@ -137,4 +120,41 @@ func wrapCSV(name string, err error) error {
 		return &Error{File: name, Line: pe.Line, Reason: pe.Err.Error()}
 	}
 	return fmt.Errorf("%s: %w", name, err)
+}
+
+// assayInfoColumns are columns labs add that carry no value the reading needs; they are read
+// past, by name, so that no other column is dropped unseen.
+var assayInfoColumns = map[string]bool{"lab": true, "sample": true, "sample_id": true, "method": true, "lod": true, "loq": true,
+	"notes": true, "note": true, "comment": true, "comments": true, "date": true}
+
+// assayHeader maps the assay's columns (with their synonyms); an unknown column is an error.
+func assayHeader(header []string, name string) (map[string]int, error) {
+	idx := map[string]int{}
+	for i, h := range header {
+		k := strings.ToLower(strings.TrimSpace(h))
+		switch k {
+		case "±", "+/-", "uncertainty", "sigma", "u", "plus_minus", "error":
+			k = "uncertainty"
+		case "symbol", "analyte":
+			k = "element"
+		case "result", "content":
+			k = "value"
+		case "element", "value", "unit":
+		default:
+			if assayInfoColumns[strings.ReplaceAll(k, " ", "_")] || k == "" {
+				continue
+			}
+			return nil, &Error{File: name, Line: 1, Reason: fmt.Sprintf("unrecognised column %q (want element, value, unit, uncertainty; lab, sample, method, LOD, notes are read past)", Printable(h, 40))}
+		}
+		if _, dup := idx[k]; dup {
+			return nil, &Error{File: name, Line: 1, Reason: fmt.Sprintf("duplicate column %q", Printable(h, 40))}
+		}
+		idx[k] = i
+	}
+	for _, c := range []string{"element", "value", "unit"} {
+		if _, ok := idx[c]; !ok {
+			return nil, &Error{File: name, Line: 1, Reason: fmt.Sprintf("missing column %q (want element, value, unit and optionally uncertainty)", c)}
+		}
+	}
+	return idx, nil
 }
