@@ -34,7 +34,7 @@ type fitOptions struct {
 }
 
 func (f *fitOptions) bind(cmd *cobra.Command) {
-	cmd.Flags().StringVar(&f.candidates, "candidates", "", "comma-separated chemistries to fit (default: the whole catalogue; for reconcile, the lot's chemistries)")
+	cmd.Flags().StringVar(&f.candidates, "candidates", "", "comma-separated chemistries to fit (default: the whole catalogue; reconcile uses the lot's own)")
 	intVar(cmd.Flags(), &f.bootstrap, "bootstrap", 500, 10, 20000, "enough for stable ranges; more only costs time", "bootstrap draws of the assay for the mix ranges")
 }
 
@@ -65,10 +65,15 @@ const (
 	maxQuoteKg = 1e8
 )
 
+// quoteOptions are the quote command's settings.
+type quoteOptions struct {
+	estimateOptions
+	mass, form string
+	fit        fitOptions
+}
+
 func newQuoteCmd() *cobra.Command {
-	o := &estimateOptions{}
-	var mass, form string
-	var fit fitOptions
+	o := &quoteOptions{}
 	cmd := &cobra.Command{
 		Use:   "quote ASSAY.csv --mass WEIGHT",
 		Short: "Quote the leach of black mass already shredded, from a lab assay and its weight",
@@ -76,142 +81,169 @@ func newQuoteCmd() *cobra.Command {
   blackmass quote assay.csv --mass "850 kg" --form oxide --route hydrochloric --json`,
 		Args: cobra.ExactArgs(1),
 		RunE: func(cmd *cobra.Command, args []string) error {
-			kg, err := intake.ParseMassKg(mass)
-			if err != nil {
-				return fmt.Errorf("--mass %q: %w", intake.Printable(mass, 40), err)
-			}
-			if kg < minQuoteKg || kg > maxQuoteKg {
-				return fmt.Errorf("--mass %q: %.4g kg is outside %g g to %g t (a bench sample to a large lot)", intake.Printable(mass, 40), kg, minQuoteKg*1000, maxQuoteKg/1000)
-			}
-			tm, err := assay.ParseTMForm(form)
-			if err != nil {
-				return err
-			}
-			if o.xlsxPath != "" {
-				if err := checkWritable(o.xlsxPath, o.force); err != nil {
-					return err
-				}
-			}
-			a, b, err := readAssay(args[0])
-			if err != nil {
-				return err
-			}
-			lo, err := o.leach.options()
-			if err != nil {
-				return err
-			}
-			cat, err := o.cat.load()
-			if err != nil {
-				return err
-			}
-			sum := sha256.Sum256(b)
-			q, err := assay.QuoteFrom(a, assay.QuoteOptions{BlackMassKg: kg, TMForm: tm, Seed: o.seed, Samples: o.samples, Leach: *lo})
-			if err != nil {
-				return err
-			}
-			rep := feed.QuoteReport(q, feed.Inputs{File: filepath.ToSlash(args[0]), SHA256: hex.EncodeToString(sum[:]), Version: version, LotID: o.lotID, Supplier: o.supplier})
-			rep.Assay = a
-			if rep.Mix, err = fit.fit(cat, a, o.seed); err != nil {
-				return err
-			}
-			return emit(cmd.OutOrStdout(), o, rep)
+			return runQuote(cmd.OutOrStdout(), o, args[0])
 		},
 	}
 	o.bind(cmd)
-	cmd.Flags().StringVar(&mass, "mass", "", "black-mass weight with unit (kg, t, g, lb)")
-	cmd.Flags().StringVar(&form, "form", "layered", "form of Co/Ni/Mn: layered (untreated), oxide (reduction-roasted) or metal")
+	cmd.Flags().StringVar(&o.mass, "mass", "", "black-mass weight with unit (kg, t, g, lb, oz)")
+	cmd.Flags().StringVar(&o.form, "form", "layered", "form of Co/Ni/Mn: layered (untreated), oxide (reduction-roasted) or metal")
+	_ = cmd.RegisterFlagCompletionFunc("form", cobra.FixedCompletions([]string{"layered", "oxide", "metal"}, cobra.ShellCompDirectiveNoFileComp))
 	_ = cmd.MarkFlagRequired("mass")
-	for _, f := range []string{"unknown", "no-lines", "sheet", "prior"} { // manifest-only flags
+	for _, f := range []string{"unknown", "no-lines", "sheet", "prior", "ignore-column", "prices"} { // manifest-only flags
 		_ = cmd.Flags().MarkHidden(f)
 	}
-	fit.bind(cmd)
+	o.fit.bind(cmd)
 	return cmd
 }
 
+// runQuote quotes the leach of a weighed black mass from its assay.
+func runQuote(w io.Writer, o *quoteOptions, path string) error {
+	kg, err := intake.ParseMassKg(o.mass)
+	if err != nil {
+		return fmt.Errorf("--mass %q: %w", intake.Printable(o.mass, 40), err)
+	}
+	if kg < minQuoteKg || kg > maxQuoteKg {
+		return fmt.Errorf("--mass %q: %.4g kg is outside %g g to %g t (a bench sample to a large lot)", intake.Printable(o.mass, 40), kg, minQuoteKg*1000, maxQuoteKg/1000)
+	}
+	tm, err := assay.ParseTMForm(o.form)
+	if err != nil {
+		return err
+	}
+	if o.xlsxPath != "" {
+		if err := checkWritable(o.xlsxPath, o.force); err != nil {
+			return err
+		}
+	}
+	a, b, err := readAssay(path)
+	if err != nil {
+		return err
+	}
+	lo, err := o.leach.options()
+	if err != nil {
+		return err
+	}
+	cat, err := o.cat.load()
+	if err != nil {
+		return err
+	}
+	sum := sha256.Sum256(b)
+	q, err := assay.QuoteFrom(a, assay.QuoteOptions{BlackMassKg: kg, TMForm: tm, Seed: o.seed, Samples: o.samples, Leach: *lo})
+	if err != nil {
+		return err
+	}
+	rep := feed.QuoteReport(q, feed.Inputs{File: filepath.ToSlash(path), SHA256: hex.EncodeToString(sum[:]), Version: version, LotID: o.lotID, Supplier: o.supplier})
+	rep.Assay = a
+	if rep.Mix, err = o.fit.fit(cat, a, o.seed); err != nil {
+		return err
+	}
+	return emit(w, &o.estimateOptions, rep)
+}
+
+// reconcileOptions are the reconcile command's settings.
+type reconcileOptions struct {
+	estimateOptions
+	threshold float64
+	fit       fitOptions
+}
+
 func newReconcileCmd() *cobra.Command {
-	o := &estimateOptions{}
-	var threshold float64
-	var fit fitOptions
+	o := &reconcileOptions{}
 	cmd := &cobra.Command{
-		Use:   "reconcile MANIFEST ASSAY.csv",
-		Short: "Set a lot's estimate beside a lab assay of its black mass, element by element",
-		Args:  cobra.ExactArgs(2),
+		Use:     "reconcile MANIFEST ASSAY.csv",
+		Short:   "Set a lot's estimate beside a lab assay of its black mass, element by element",
+		Example: `  blackmass reconcile data/demo/lot-KR-2611.csv testdata/assay-KR-2611.csv
+  blackmass reconcile lot.csv assay.csv --flag-sigma 3 --json`,
+		Args:    cobra.ExactArgs(2),
 		RunE: func(cmd *cobra.Command, args []string) error {
-			if !(threshold > 0) {
-				return fmt.Errorf("--flag-sigma must be positive")
-			}
-			a, _, err := readAssay(args[1])
-			if err != nil {
-				return err
-			}
 			name, in, closeIn, err := openInput(cmd, args[0])
 			if err != nil {
 				return err
 			}
 			defer closeIn()
-			rep, err := buildEstimate(o, name, in)
-			if err != nil {
-				return err
-			}
-			cat, err := o.cat.load()
-			if err != nil {
-				return err
-			}
-			rep.Assay = a
-			rep.Reconciliation = assay.Reconcile(rep.Elements, a, threshold)
-			if fit.candidates == "" { // by default, explain the assay with the lot's own chemistries
-				var keys []string
-				for _, g := range rep.Groups {
-					keys = append(keys, g.Components...)
-				}
-				fit.candidates = strings.Join(keys, ",")
-			}
-			if rep.Mix, err = fit.fit(cat, a, o.seed); err != nil {
-				return err
-			}
-			return emit(cmd.OutOrStdout(), o, rep)
+			return runReconcile(cmd.OutOrStdout(), o, name, in, args[1])
 		},
 	}
 	o.bind(cmd)
-	numberVar(cmd.Flags(), &threshold, "flag-sigma", 2, 0.1, 10, "a number of standard uncertainties", "flag elements whose difference exceeds this many combined standard uncertainties")
-	fit.bind(cmd)
+	numberVar(cmd.Flags(), &o.threshold, "flag-sigma", 2, 0.1, 10, "a number of standard uncertainties", "flag elements whose difference exceeds this many combined standard uncertainties")
+	o.fit.bind(cmd)
 	return cmd
 }
 
+// runReconcile estimates the lot and sets it beside the assay.
+func runReconcile(w io.Writer, o *reconcileOptions, name string, in io.Reader, assayPath string) error {
+	a, _, err := readAssay(assayPath)
+	if err != nil {
+		return err
+	}
+	rep, err := buildEstimate(&o.estimateOptions, name, in)
+	if err != nil {
+		return err
+	}
+	cat, err := o.cat.load()
+	if err != nil {
+		return err
+	}
+	rep.Assay = a
+	rep.Reconciliation = assay.Reconcile(rep.Elements, a, o.threshold)
+	if o.fit.candidates == "" { // by default, explain the assay with the lot's own chemistries
+		var keys []string
+		for _, g := range rep.Groups {
+			keys = append(keys, g.Components...)
+		}
+		o.fit.candidates = strings.Join(keys, ",")
+	}
+	if rep.Mix, err = o.fit.fit(cat, a, o.seed); err != nil {
+		return err
+	}
+	return emit(w, &o.estimateOptions, rep)
+}
+
+// inferOptions are the infer command's settings.
+type inferOptions struct {
+	cat    catalogueOptions
+	fit    fitOptions
+	seed   uint64
+	asJSON bool
+}
+
 func newInferCmd() *cobra.Command {
-	var cat catalogueOptions
-	var fit fitOptions
-	var seed uint64
-	var asJSON bool
+	o := &inferOptions{}
 	cmd := &cobra.Command{
-		Use:   "infer ASSAY.csv",
-		Short: "Infer the chemistry mix that best explains a black-mass assay (non-negative least squares)",
-		Args:  cobra.ExactArgs(1),
+		Use:     "infer ASSAY.csv",
+		Short:   "Infer the chemistry mix that best explains a black-mass assay (non-negative least squares)",
+		Example: `  blackmass infer testdata/assay-KR-2611.csv
+  blackmass infer assay.csv --candidates NMC622,LFP,LCO --bootstrap 2000 --json`,
+		Args:    cobra.ExactArgs(1),
 		RunE: func(cmd *cobra.Command, args []string) error {
-			a, _, err := readAssay(args[0])
-			if err != nil {
-				return err
-			}
-			c, err := cat.load()
-			if err != nil {
-				return err
-			}
-			m, err := fit.fit(c, a, seed)
-			if err != nil {
-				return err
-			}
-			if asJSON {
-				return writeJSON(cmd.OutOrStdout(), m)
-			}
-			writeMixText(cmd.OutOrStdout(), m)
-			return nil
+			return runInfer(cmd.OutOrStdout(), o, args[0])
 		},
 	}
-	cat.bind(cmd)
-	fit.bind(cmd)
-	cmd.Flags().Uint64Var(&seed, "seed", 1, "bootstrap seed")
-	cmd.Flags().BoolVar(&asJSON, "json", false, "write JSON")
+	o.cat.bind(cmd)
+	o.fit.bind(cmd)
+	cmd.Flags().Uint64Var(&o.seed, "seed", 1, "bootstrap seed")
+	cmd.Flags().BoolVar(&o.asJSON, "json", false, "write JSON")
 	return cmd
+}
+
+// runInfer fits the chemistry mix to the assay.
+func runInfer(w io.Writer, o *inferOptions, path string) error {
+	a, _, err := readAssay(path)
+	if err != nil {
+		return err
+	}
+	c, err := o.cat.load()
+	if err != nil {
+		return err
+	}
+	m, err := o.fit.fit(c, a, o.seed)
+	if err != nil {
+		return err
+	}
+	if o.asJSON {
+		return writeJSON(w, m)
+	}
+	writeMixText(w, m)
+	return nil
 }
 
 func writeMixText(w io.Writer, m *assay.MixFit) {

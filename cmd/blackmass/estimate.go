@@ -94,8 +94,11 @@ func newDemoCmd() *cobra.Command {
 	o := &estimateOptions{}
 	cmd := &cobra.Command{
 		Use:   "demo",
-		Short: "Run the estimate on the built-in demo lot (an invented scenario)",
-		Args:  cobra.NoArgs,
+		Short: "Run the estimate on the built-in demo lot (an invented scenario, with invented prices)",
+		Example: `  blackmass demo
+  blackmass demo --xlsx KR-2611.xlsx --acid-price 0.25 --h2o2-price 0.8
+  blackmass demo --route hydrochloric --json`,
+		Args: cobra.NoArgs,
 		RunE: func(cmd *cobra.Command, args []string) error {
 			b, err := fs.ReadFile(data.FS, demoFile)
 			if err != nil {
