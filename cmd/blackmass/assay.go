@@ -149,11 +149,11 @@ type reconcileOptions struct {
 func newReconcileCmd() *cobra.Command {
 	o := &reconcileOptions{}
 	cmd := &cobra.Command{
-		Use:     "reconcile MANIFEST ASSAY.csv",
-		Short:   "Set a lot's estimate beside a lab assay of its black mass, element by element",
+		Use:   "reconcile MANIFEST ASSAY.csv",
+		Short: "Set a lot's estimate beside a lab assay of its black mass, element by element",
 		Example: `  blackmass reconcile data/demo/lot-KR-2611.csv testdata/assay-KR-2611.csv
   blackmass reconcile lot.csv assay.csv --flag-sigma 3 --json`,
-		Args:    cobra.ExactArgs(2),
+		Args: cobra.ExactArgs(2),
 		RunE: func(cmd *cobra.Command, args []string) error {
 			name, in, closeIn, err := openInput(cmd, args[0])
 			if err != nil {
@@ -209,11 +209,11 @@ type inferOptions struct {
 func newInferCmd() *cobra.Command {
 	o := &inferOptions{}
 	cmd := &cobra.Command{
-		Use:     "infer ASSAY.csv",
-		Short:   "Infer the chemistry mix that best explains a black-mass assay (non-negative least squares)",
+		Use:   "infer ASSAY.csv",
+		Short: "Infer the chemistry mix that best explains a black-mass assay (non-negative least squares)",
 		Example: `  blackmass infer testdata/assay-KR-2611.csv
   blackmass infer assay.csv --candidates NMC622,LFP,LCO --bootstrap 2000 --json`,
-		Args:    cobra.ExactArgs(1),
+		Args: cobra.ExactArgs(1),
 		RunE: func(cmd *cobra.Command, args []string) error {
 			return runInfer(cmd.OutOrStdout(), o, args[0])
 		},
