@@ -58,6 +58,7 @@ func (o *estimateOptions) bind(cmd *cobra.Command) {
 	fl.BoolVar(&o.asJSON, "json", false, "write the full report as JSON")
 	fl.BoolVar(&o.noLines, "no-lines", false, "leave per-line detail out (for very large manifests)")
 	fl.StringVar(&o.unknown, "unknown", "refuse", "unrecognised chemistry labels: refuse, or prior (treat as unknown, prior mix)")
+	_ = cmd.RegisterFlagCompletionFunc("unknown", cobra.FixedCompletions([]string{"refuse", "prior"}, cobra.ShellCompDirectiveNoFileComp))
 	fl.StringVar(&o.sheet, "sheet", "", "sheet to read from an .xlsx manifest (default: Lines if present, else the first visible sheet with a header)")
 	fl.StringSliceVar(&o.ignore, "ignore-column", nil, "leave a manifest column out of the reading (repeat, or separate with commas); every other column must be recognised")
 	fl.StringVar(&o.lotID, "lot", "", "lot id recorded in the report")

@@ -12,6 +12,8 @@ import (
 	"regexp"
 	"strings"
 	"testing"
+
+	"github.com/spf13/cobra"
 )
 
 var update = flag.Bool("update", false, "rewrite the golden files in testdata/")
@@ -468,5 +470,33 @@ func TestLotWorkflow(t *testing.T) {
 	_ = os.WriteFile(foreign, []byte("not a database, a shopping list\n"), 0o644)
 	if code, _, errs := run(t, "", "lot", "list", "--db", foreign); code != 1 || !strings.Contains(errs, "not a blackmass register") {
 		t.Errorf("foreign --db: exit %d %s", code, errs)
+	}
+}
+
+// BenchmarkTextReportMemory: the text report keeps no per-line detail, so it costs what
+// --no-lines costs (compare B/op of the two; JSON keeps the lines and costs more).
+func BenchmarkTextReportMemory(b *testing.B) {
+	var m strings.Builder
+	m.WriteString("id,chemistry,format,capacity,cells_per_pack,count,mass\n")
+	for i := range 100_000 {
+		fmt.Fprintf(&m, "L%d,NMC811,cylindrical,4.8 Ah,,7,69 g\n", i)
+	}
+	in := m.String()
+	for _, c := range []struct {
+		name string
+		set  func(o *estimateOptions)
+	}{{"text", func(*estimateOptions) {}}, {"no-lines", func(o *estimateOptions) { o.noLines = true }}, {"json", func(o *estimateOptions) { o.asJSON = true }}} {
+		b.Run(c.name, func(b *testing.B) {
+			b.ReportAllocs()
+			for b.Loop() {
+				o := &estimateOptions{}
+				o.bind(&cobra.Command{}) // the flags' defaults
+				o.samples = 1000
+				c.set(o)
+				if _, err := buildEstimate(o, "m.csv", strings.NewReader(in)); err != nil {
+					b.Fatal(err)
+				}
+			}
+		})
 	}
 }
