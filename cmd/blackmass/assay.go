@@ -73,7 +73,7 @@ type quoteOptions struct {
 }
 
 func newQuoteCmd() *cobra.Command {
-	o := &quoteOptions{}
+	o := &quoteOptions{estimateOptions: estimateOptions{command: "quote"}}
 	cmd := &cobra.Command{
 		Use:   "quote ASSAY.csv --mass WEIGHT",
 		Short: "Quote the leach of black mass already shredded, from a lab assay and its weight",
@@ -147,7 +147,7 @@ type reconcileOptions struct {
 }
 
 func newReconcileCmd() *cobra.Command {
-	o := &reconcileOptions{}
+	o := &reconcileOptions{estimateOptions: estimateOptions{command: "reconcile"}}
 	cmd := &cobra.Command{
 		Use:   "reconcile MANIFEST ASSAY.csv",
 		Short: "Set a lot's estimate beside a lab assay of its black mass, element by element",

@@ -47,7 +47,9 @@ type estimateOptions struct {
 	force     bool
 	prices    string
 	demo      bool // the built-in demo: prices default to the invented demo file
-	keepLines bool // keep per-line detail whatever the output (the register stores the lines)
+	keepLines bool   // keep per-line detail whatever the output (the register stores the lines)
+	quiet     bool   // the summary only
+	command   string // the command's name, for the report's header
 }
 
 func (o *estimateOptions) bind(cmd *cobra.Command) {
@@ -57,6 +59,7 @@ func (o *estimateOptions) bind(cmd *cobra.Command) {
 	intVar(fl, &o.samples, "samples", 4000, 10, 200_000, "from 10 samples, for any percentiles at all, to 200,000, beyond which memory grows for no better percentiles", "Monte Carlo samples")
 	fl.BoolVar(&o.asJSON, "json", false, "write the full report as JSON")
 	fl.BoolVar(&o.noLines, "no-lines", false, "leave per-line detail out (for very large manifests)")
+	fl.BoolVarP(&o.quiet, "quiet", "q", false, "print the summary only")
 	fl.StringVar(&o.unknown, "unknown", "refuse", "unrecognised chemistry labels: refuse, or prior (treat as unknown, prior mix)")
 	_ = cmd.RegisterFlagCompletionFunc("unknown", cobra.FixedCompletions([]string{"refuse", "prior"}, cobra.ShellCompDirectiveNoFileComp))
 	fl.StringVar(&o.sheet, "sheet", "", "sheet to read from an .xlsx manifest (default: Lines if present, else the first visible sheet with a header)")
@@ -70,7 +73,7 @@ func (o *estimateOptions) bind(cmd *cobra.Command) {
 }
 
 func newEstimateCmd() *cobra.Command {
-	o := &estimateOptions{}
+	o := &estimateOptions{command: "estimate"}
 	cmd := &cobra.Command{
 		Use:   "estimate MANIFEST|-",
 		Short: "Estimate a lot's black mass, metals and leach from a manifest (.csv or .xlsx)",
@@ -92,7 +95,7 @@ func newEstimateCmd() *cobra.Command {
 }
 
 func newDemoCmd() *cobra.Command {
-	o := &estimateOptions{}
+	o := &estimateOptions{command: "demo"}
 	cmd := &cobra.Command{
 		Use:   "demo",
 		Short: "Run the estimate on the built-in demo lot (an invented scenario, with invented prices)",
@@ -249,7 +252,7 @@ func emit(w io.Writer, o *estimateOptions, rep *feed.Report) error {
 	if o.asJSON {
 		return writeJSON(w, rep)
 	}
-	writeReportText(w, rep)
+	writeReportText(w, rep, o.command, o.quiet)
 	if o.xlsxPath != "" {
 		fmt.Fprintf(w, "\nIntake workbook written to %s\n", o.xlsxPath)
 	}

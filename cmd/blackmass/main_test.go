@@ -500,3 +500,40 @@ func BenchmarkTextReportMemory(b *testing.B) {
 		})
 	}
 }
+
+// Each command names itself; a 200 g bench sample and a 20 t lot both print in units that read
+// (g and mL for the one, t and m³ for the other); --quiet prints the summary only.
+func TestScreensScale(t *testing.T) {
+	assay := filepath.Join("..", "..", "testdata", "assay-KR-2611.csv")
+	for _, c := range []struct {
+		mass      string
+		want, not []string
+	}{
+		{"200 g", []string{"black mass: 200 g", "mL", "Co 19."}, []string{"0.2 kg", "0.000"}},
+		{"20t", []string{"black mass: 20.0 t", "m³", " t ("}, []string{"20000 kg"}},
+	} {
+		t.Run(c.mass, func(t *testing.T) {
+			code, out, errs := run(t, "", "quote", assay, "--mass", c.mass, "--samples", "100", "--quiet")
+			if code != 0 {
+				t.Fatalf("exit %d: %s", code, errs)
+			}
+			if !strings.HasPrefix(out, "blackmass quote") || strings.Contains(out, "\ndetail") {
+				t.Errorf("header or quiet wrong:\n%s", out)
+			}
+			for _, s := range c.want {
+				if !strings.Contains(out, s) {
+					t.Errorf("missing %q in:\n%s", s, out)
+				}
+			}
+			for _, s := range c.not {
+				if strings.Contains(out, s) {
+					t.Errorf("unexpected %q in:\n%s", s, out)
+				}
+			}
+		})
+	}
+	_, out, _ := run(t, "", "reconcile", filepath.Join("..", "..", "data", "demo", "lot-KR-2611.csv"), assay, "--samples", "50")
+	if !strings.HasPrefix(out, "blackmass reconcile") {
+		t.Errorf("reconcile header: %.40q", out)
+	}
+}

@@ -14,10 +14,47 @@ import (
 	"blackmass/feed/intake"
 )
 
-// writeReportText prints the terminal summary of a report. It formats; it computes nothing.
-func writeReportText(w io.Writer, r *feed.Report) {
+// writeReportText prints a report for the terminal: a short summary first (the lot, its black
+// mass and key metals, the reagents, the value, and every warning), then, unless quiet, the
+// detail. command names the command that made it. It formats; it computes nothing.
+func writeReportText(w io.Writer, r *feed.Report, command string, quiet bool) {
+	writeSummaryText(w, r, command)
+	if quiet {
+		fmt.Fprintln(w, "\nsafety: "+r.Safety[len(r.Safety)-1])
+		return
+	}
+	fmt.Fprintln(w, "\ndetail")
 	in := r.Inputs
-	title := "blackmass estimate"
+	fmt.Fprintf(w, "Monte Carlo: %d samples, seed %d; P10/P50/P90 = 10th/50th/90th percentiles\n", in.Samples, in.Seed)
+	if r.Lot.Lines > 0 {
+		fmt.Fprintf(w, "mass check: %d of %d lines with a weight fall outside their plausible Wh/kg\n", r.Lot.LinesFlaggedByMass, r.Lot.LinesWithMass)
+	}
+	fmt.Fprintln(w)
+	u, f := massUnit(r.BlackMassKg.P50)
+	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
+	fmt.Fprintf(tw, "element\tP10 %s\tP50 %s\tP90 %s\tP10 wt%%\tP50 wt%%\tP90 wt%%\t\n", u, u, u)
+	fmt.Fprintf(tw, "black mass\t%s\t%s\t%s\t\t\t\t\n", num(f*r.BlackMassKg.P10), num(f*r.BlackMassKg.P50), num(f*r.BlackMassKg.P90))
+	for _, sym := range r.ElementOrder {
+		a := r.Elements[sym]
+		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%.2f\t%.2f\t%.2f\t\n", sym, num(f*a.Kg.P10), num(f*a.Kg.P50), num(f*a.Kg.P90), a.WtPct.P10, a.WtPct.P50, a.WtPct.P90)
+	}
+	tw.Flush()
+	fmt.Fprintln(w)
+	if len(r.Groups) > 0 {
+		writeGroupsText(w, r)
+	}
+	writeLeachText(w, r)
+	writeValueText(w, r)
+	writeTail(w, r)
+}
+
+// keyMetalsShown are the metals the summary names.
+var keyMetalsShown = []string{"Co", "Ni", "Li", "Mn"}
+
+// writeSummaryText prints the summary: what a bench decides on.
+func writeSummaryText(w io.Writer, r *feed.Report, command string) {
+	in := r.Inputs
+	title := "blackmass " + command
 	if in.LotID != "" {
 		title += " — lot " + intake.Printable(in.LotID, 80)
 	}
@@ -31,35 +68,60 @@ func writeReportText(w io.Writer, r *feed.Report) {
 	}
 	fmt.Fprintf(w, "input %s (sha256 %s)\n", intake.Printable(in.File, 200), sha)
 	if r.Lot.Lines > 0 {
-		fmt.Fprintf(w, "%d lines, %d items, %d cells, %.2f kWh nameplate", r.Lot.Lines, r.Lot.Items, r.Lot.Cells, r.Lot.NameplateKWh)
+		fmt.Fprintf(w, "lot: %d lines, %d items, %d cells, %s nameplate", r.Lot.Lines, r.Lot.Items, r.Lot.Cells, fmtEnergy(r.Lot.NameplateKWh))
 		if r.Lot.ChargeOnlyAh > 0 {
-			fmt.Fprintf(w, " + %.1f Ah given without voltage", r.Lot.ChargeOnlyAh)
+			fmt.Fprintf(w, " + %s Ah given without voltage", num(r.Lot.ChargeOnlyAh))
 		}
-		fmt.Fprintf(w, "\nmass check: %d of %d lines with a weight fall outside their plausible Wh/kg", r.Lot.LinesFlaggedByMass, r.Lot.LinesWithMass)
+		if r.Lot.MassOnlyKg > 0 {
+			fmt.Fprintf(w, " + %s known by weight only", fmtMass(r.Lot.MassOnlyKg))
+		}
+		fmt.Fprintln(w)
 	} else {
-		fmt.Fprintf(w, "black mass weighed, composition from a lab assay")
+		fmt.Fprintln(w, "black mass weighed, composition from a lab assay")
 	}
-	fmt.Fprintf(w, "\nMonte Carlo: %d samples, seed %d; P10/P50/P90 = 10th/50th/90th percentiles\n\n", in.Samples, in.Seed)
+	b := r.BlackMassKg
+	fmt.Fprintf(w, "black mass: %s (P10–P90 %s–%s)\n", fmtMass(b.P50), fmtMass(b.P10), fmtMass(b.P90))
+	var metals []string
+	for _, el := range keyMetalsShown {
+		if a, ok := r.Elements[el]; ok && a.Kg.P90 > 0 {
+			metals = append(metals, fmt.Sprintf("%s %s (%s–%s, %.1f wt%%)", el, fmtMass(a.Kg.P50), num(a.Kg.P10*unitFactor(a.Kg.P50)), num(a.Kg.P90*unitFactor(a.Kg.P50)), a.WtPct.P50))
+		}
+	}
+	if len(metals) > 0 {
+		fmt.Fprintln(w, "metals (P50, P10–P90): "+strings.Join(metals, "; "))
+	}
+	if l := r.Leach; l != nil {
+		var parts []string
+		for _, g := range l.Reagents {
+			p := g.Name + " " + fmtMass(g.Kg.P50)
+			if g.DensityGmL > 0 {
+				p += " (" + fmtVolume(g.Litres.P50) + ")"
+			}
+			parts = append(parts, p)
+		}
+		parts = append(parts, "make-up water "+fmtVolume(l.WaterL.P50))
+		fmt.Fprintf(w, "leach (%s): %s\n", l.Route, strings.Join(parts, ", "))
+	}
+	if v := r.Value; v != nil {
+		fmt.Fprintf(w, "value: payable %s %s (P10–P90 %s–%s), prices from %s\n", money(v.Payable.P50), v.Currency, money(v.Payable.P10), money(v.Payable.P90), intake.Printable(v.PricesFile, 100))
+	}
+	var warn []string
+	warn = append(warn, r.Warnings...)
+	if r.Leach != nil {
+		warn = append(warn, r.Leach.Warnings...)
+	}
+	if len(warn) > 0 {
+		fmt.Fprintln(w, "warnings:")
+		for _, s := range warn {
+			fmt.Fprintln(w, "  ! "+intake.Printable(s, maxPrintedRunes))
+		}
+	}
+}
 
-	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
-	fmt.Fprintln(tw, "black mass\tP10 kg\tP50 kg\tP90 kg\t")
-	fmt.Fprintf(tw, "total\t%s\t%s\t%s\t\n", num(r.BlackMassKg.P10), num(r.BlackMassKg.P50), num(r.BlackMassKg.P90))
-	tw.Flush()
-	fmt.Fprintln(w)
-	tw = tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
-	fmt.Fprintln(tw, "element\tP10 kg\tP50 kg\tP90 kg\tP10 wt%\tP50 wt%\tP90 wt%\t")
-	for _, sym := range r.ElementOrder {
-		a := r.Elements[sym]
-		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%.2f\t%.2f\t%.2f\t\n", sym, num(a.Kg.P10), num(a.Kg.P50), num(a.Kg.P90), a.WtPct.P10, a.WtPct.P50, a.WtPct.P90)
-	}
-	tw.Flush()
-	fmt.Fprintln(w)
-	if len(r.Groups) > 0 {
-		writeGroupsText(w, r)
-	}
-	writeLeachText(w, r)
-	writeValueText(w, r)
-	writeTail(w, r)
+// unitFactor is the factor of the mass unit that suits kg.
+func unitFactor(kg float64) float64 {
+	_, f := massUnit(kg)
+	return f
 }
 
 func writeGroupsText(w io.Writer, r *feed.Report) {
@@ -167,36 +229,12 @@ func writeTail(w io.Writer, r *feed.Report) {
 		fmt.Fprintln(w)
 		writeMixText(w, r.Mix)
 	}
-	if len(r.Warnings) > 0 {
-		fmt.Fprintln(w, "\nwarnings:")
-		for _, s := range r.Warnings {
-			fmt.Fprintln(w, "  - "+intake.Printable(s, maxPrintedRunes))
-		}
-	}
 	fmt.Fprintln(w, "\nsafety:")
 	for _, s := range r.Safety {
 		fmt.Fprintln(w, "  - "+s)
 	}
 }
 
-// num prints a mass with 3 significant figures, without exponent notation.
-func num(v float64) string {
-	switch {
-	case v == 0:
-		return "0"
-	case v >= 100 || v <= -100:
-		return fmt.Sprintf("%.0f", v)
-	case v >= 10 || v <= -10:
-		return fmt.Sprintf("%.1f", v)
-	case v >= 1 || v <= -1:
-		return fmt.Sprintf("%.2f", v)
-	}
-	s := fmt.Sprintf("%.3g", v)
-	if strings.Contains(s, "e") {
-		return fmt.Sprintf("%.6f", v)
-	}
-	return s
-}
 
 func writeLeachText(w io.Writer, r *feed.Report) {
 	l := r.Leach
@@ -273,9 +311,6 @@ func writeLeachText(w io.Writer, r *feed.Report) {
 		sat = append(sat, fmt.Sprintf("%s %.2f", k, l.Saturation[k].P50))
 	}
 	fmt.Fprintf(w, "saturation ratio near 25 °C (P50): %s\n", strings.Join(sat, ", "))
-	for _, s := range l.Warnings {
-		fmt.Fprintln(w, "  ! "+intake.Printable(s, maxPrintedRunes))
-	}
 	fmt.Fprintln(w, "leach cautions:")
 	for _, s := range l.Safety {
 		fmt.Fprintln(w, "  - "+s)
