@@ -46,7 +46,7 @@ type estimateOptions struct {
 	xlsxPath  string
 	force     bool
 	prices    string
-	demo      bool // the built-in demo: prices default to the invented demo file
+	demo      bool   // the built-in demo: prices default to the invented demo file
 	keepLines bool   // keep per-line detail whatever the output (the register stores the lines)
 	quiet     bool   // the summary only
 	command   string // the command's name, for the report's header

@@ -235,7 +235,6 @@ func writeTail(w io.Writer, r *feed.Report) {
 	}
 }
 
-
 func writeLeachText(w io.Writer, r *feed.Report) {
 	l := r.Leach
 	if l == nil {
