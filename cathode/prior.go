@@ -45,6 +45,7 @@ type application struct {
 // family is a label naming a family of cathodes with uncertain member.
 type family struct {
 	key           string
+	words         []string // as written in label_families.csv
 	members       []Component
 	concentration float64
 	source        string
@@ -96,6 +97,7 @@ func (c *Catalogue) loadPriorTables(fsys fs.FS) error {
 			for _, w := range strings.Split(r.Str("words"), "|") {
 				if w = strings.TrimSpace(w); w != "" {
 					c.labelFamilies[normLabel(w)] = f
+					f.words = append(f.words, w)
 				}
 			}
 			c.familyOrder = append(c.familyOrder, f)
@@ -306,4 +308,19 @@ func checkShares(comps []Component) bool {
 		sum += x.MassFraction
 	}
 	return math.Abs(sum-1) < 1e-9
+}
+
+// FamilyLabel is a family label and the words that name it.
+type FamilyLabel struct {
+	Key   string   `json:"family"`
+	Words []string `json:"words"`
+}
+
+// FamilyLabels lists the family labels.
+func (c *Catalogue) FamilyLabels() []FamilyLabel {
+	var out []FamilyLabel
+	for _, f := range c.familyOrder {
+		out = append(out, FamilyLabel{Key: f.key, Words: slices.Clone(f.words)})
+	}
+	return out
 }

@@ -16,18 +16,27 @@ import (
 
 func newChemCmd() *cobra.Command {
 	var cat catalogueOptions
-	var asJSON bool
+	var asJSON, list bool
 	cmd := &cobra.Command{
-		Use:   "chem LABEL|FORMULA...",
+		Use:   "chem LABEL|FORMULA... | --list",
 		Short: "Show composition, capacity and leach stoichiometry of cathode chemistries",
 		Example: `  blackmass chem NMC811 LCO LFP
   blackmass chem "NCM 8:1:1" "LMO+NMC532 70/30" LiNi0.9Mn0.05Co0.05O2
-  blackmass chem --json LiCoO2`,
-		Args: cobra.MinimumNArgs(1),
+  blackmass chem --json LiCoO2
+  blackmass chem --list`,
+		Args: func(cmd *cobra.Command, args []string) error {
+			if list {
+				return cobra.NoArgs(cmd, args)
+			}
+			return cobra.MinimumNArgs(1)(cmd, args)
+		},
 		RunE: func(cmd *cobra.Command, args []string) error {
 			c, err := cat.load()
 			if err != nil {
 				return err
+			}
+			if list {
+				return writeCatalogueList(cmd.OutOrStdout(), c, asJSON)
 			}
 			var out []chemJSON
 			for _, a := range args {
@@ -60,6 +69,7 @@ func newChemCmd() *cobra.Command {
 	}
 	cat.bind(cmd)
 	cmd.Flags().BoolVar(&asJSON, "json", false, "write JSON (one object per label)")
+	cmd.Flags().BoolVar(&list, "list", false, "list the catalogue: chemistries, family labels and the applications of the unknown-chemistry prior")
 	return cmd
 }
 
@@ -129,10 +139,25 @@ func newMaterialJSON(p cathode.Profile, frac float64) materialJSON {
 	return m
 }
 
+// compactAbove is the number of components above which chem prints one line per component
+// (a family, a blend or the unknown prior) rather than each one's full profile.
+const compactAbove = 2
+
 func writeChemText(w io.Writer, j chemJSON) {
 	fmt.Fprintf(w, "%s  →  %s\n", j.Label, j.Key)
 	for _, n := range j.Notes {
 		fmt.Fprintf(w, "  note: %s\n", n)
+	}
+	if len(j.Components) > compactAbove {
+		tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
+		fmt.Fprintln(tw, "\n  component\tmean share\tformula\tcapacity mAh/g\tCo wt%\tNi wt%\tMn wt%\tLi wt%")
+		for _, m := range j.Components {
+			fmt.Fprintf(tw, "  %s\t%.1f %%\t%s\t%g\t%.1f\t%.1f\t%.1f\t%.2f\n", m.Key, 100*m.MassFraction, m.Formula, m.PracticalCapacity.Mode,
+				m.ElementsWtPct["Co"], m.ElementsWtPct["Ni"], m.ElementsWtPct["Mn"], m.ElementsWtPct["Li"])
+		}
+		tw.Flush()
+		fmt.Fprintln(w, "  (blackmass chem KEY for a component's full profile and leach stoichiometry)")
+		return
 	}
 	for _, m := range j.Components {
 		fmt.Fprintf(w, "\n  %s  %s (%s)", m.Formula, m.Name, m.Family)
@@ -165,4 +190,40 @@ func writeChemText(w io.Writer, j chemJSON) {
 			fmt.Fprintf(w, "    %-20s %s\n", r.Route, r.Equation)
 		}
 	}
+}
+
+// writeCatalogueList lists what labels resolve to: the catalogued chemistries, the family labels
+// and the applications the unknown-chemistry prior knows.
+func writeCatalogueList(w io.Writer, c *cathode.Catalogue, asJSON bool) error {
+	type entryJSON struct {
+		Key          string   `json:"key"`
+		Name         string   `json:"name"`
+		Formula      string   `json:"formula"`
+		Family       string   `json:"family"`
+		Aliases      []string `json:"aliases"`
+		CapacityMode float64  `json:"capacity_mode_mAh_g"`
+		VoltageMode  float64  `json:"voltage_mode_V"`
+	}
+	var entries []entryJSON
+	for _, e := range c.Entries() {
+		entries = append(entries, entryJSON{e.Key, e.Name, e.Formula.String(), e.Family, e.Aliases, e.CapacityMAhPerG.Mode, e.VoltageV.Mode})
+	}
+	families := c.FamilyLabels()
+	apps := c.Applications()
+	if asJSON {
+		return writeJSON(w, map[string]any{"chemistries": entries, "family_labels": families, "applications": apps})
+	}
+	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
+	fmt.Fprintln(tw, "key\tformula\tfamily\tcapacity mAh/g\tV\taliases")
+	for _, e := range entries {
+		fmt.Fprintf(tw, "%s\t%s\t%s\t%g\t%g\t%s\n", e.Key, e.Formula, e.Family, e.CapacityMode, e.VoltageMode, strings.Join(e.Aliases, ", "))
+	}
+	tw.Flush()
+	fmt.Fprintln(w, "\nfamily labels (member uncertain):")
+	for _, f := range families {
+		fmt.Fprintf(w, "  %s: %s\n", f.Key, strings.Join(f.Words, ", "))
+	}
+	fmt.Fprintf(w, "\nunknown chemistry takes the prior of its application or format: %s\n", strings.Join(apps, ", "))
+	fmt.Fprintln(w, "NMC/NCM ratios (NCM 8:1:1, NMC 622, NCM955), formulas (LiNi0.9Mn0.05Co0.05O2) and blends (LMO+NMC532 70/30) resolve too.")
+	return nil
 }

@@ -537,3 +537,19 @@ func TestScreensScale(t *testing.T) {
 		t.Errorf("reconcile header: %.40q", out)
 	}
 }
+
+// chem --list names every catalogued chemistry and the family labels; a generic label prints
+// one line per possible member instead of every member's whole profile.
+func TestChemListAndCompact(t *testing.T) {
+	code, out, errs := run(t, "", "chem", "--list")
+	if code != 0 || !strings.Contains(out, "NMC811") || !strings.Contains(out, "LiPo") || !strings.Contains(out, "laptop") {
+		t.Fatalf("exit %d %s\n%s", code, errs, out)
+	}
+	_, out, _ = run(t, "", "chem", "Li-ion")
+	if n := strings.Count(out, "\n"); n > 20 || !strings.Contains(out, "LFP") {
+		t.Errorf("chem Li-ion: %d lines\n%s", n, out)
+	}
+	if code, _, _ := run(t, "", "chem", "--list", "LCO"); code != 2 {
+		t.Errorf("--list with a label: exit %d, want 2", code)
+	}
+}
