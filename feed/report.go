@@ -80,6 +80,8 @@ type Report struct {
 	Leach       *leach.Report          `json:"leach,omitempty"`
 	// Value is the lot's worth at the prices given; nil when no prices were given.
 	Value *Value `json:"value,omitempty"`
+	// Order is what to order for the leach, in the containers named.
+	Order *OrderSheet `json:"order,omitempty"`
 	// Assay, Reconciliation and Mix are present when a lab assay was given.
 	Assay          *assay.Assay          `json:"assay,omitempty"`
 	Reconciliation *assay.Reconciliation `json:"reconciliation,omitempty"`

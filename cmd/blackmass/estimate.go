@@ -239,8 +239,22 @@ func (o *estimateOptions) loadPrices() (*feed.PriceList, error) {
 	return nil, nil
 }
 
-// emit writes the workbook (if asked) and then the report as JSON or text.
+// emit adds the order sheet, then writes the workbook (if asked) and the report as JSON or text.
 func emit(w io.Writer, o *estimateOptions, rep *feed.Report) error {
+	if rep.Leach != nil {
+		cs, err := o.leach.containerList()
+		if err != nil {
+			return err
+		}
+		cur := rep.Leach.Settings.Currency
+		if v := rep.Value; v != nil {
+			if cur != "" && !strings.EqualFold(cur, v.Currency) {
+				return usageError{fmt.Errorf("--currency %s and the prices file's %s disagree: give the reagent prices in %s", cur, v.Currency, v.Currency)}
+			}
+			cur = v.Currency
+		}
+		rep.Order = feed.Order(rep, cs, cur)
+	}
 	if err := rep.CheckFinite(); err != nil {
 		return err
 	}

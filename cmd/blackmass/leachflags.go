@@ -12,6 +12,7 @@ import (
 
 	"blackmass/cathode"
 	"blackmass/data"
+	"blackmass/feed"
 	"blackmass/feed/intake"
 	"blackmass/feed/leach"
 )
@@ -22,6 +23,7 @@ type leachFlags struct {
 	opt        leach.Options
 	planPath   string
 	extraction string
+	containers string
 	flags      *pflag.FlagSet
 	fromPlan   map[string]bool // keys the plan file set
 }
@@ -29,7 +31,7 @@ type leachFlags struct {
 // planKeys are the flags a plan file may set.
 var planKeys = []string{"route", "acid-strength", "h2o2-strength", "acid-excess", "free-acid", "h2o2-excess", "pulp-density",
 	"liquor-volume", "acid-molarity", "h2o2-vol-pct", "acid-price", "h2o2-price", "reductant", "reductant-g-per-l", "temperature",
-	"grow-volume", "extraction", "prices"}
+	"grow-volume", "extraction", "prices", "currency", "containers"}
 
 func (l *leachFlags) bind(cmd *cobra.Command) {
 	d := leach.DefaultOptions()
@@ -51,6 +53,8 @@ func (l *leachFlags) bind(cmd *cobra.Command) {
 	fl.StringVar(&l.opt.Reductant, "reductant", d.Reductant, "reductant of the sulfuric routes: H2O2, SO2, Na2S2O5 (metabisulfite), C6H8O6 (ascorbic acid) or none")
 	numberVar(fl, &l.opt.RecipeReductantGPerL, "reductant-g-per-l", 0, 0.01, 500, "g per litre of liquor", "bench recipe: a solid or gaseous reductant in g per litre of liquor")
 	numberVar(fl, &l.opt.TemperatureC, "temperature", d.TemperatureC, 0, 110, "an open acid leach boils near 105 °C", "leach temperature, °C (sets how much peroxide decomposes)")
+	fl.StringVar(&l.opt.Currency, "currency", "", "currency of the reagent prices (EUR, USD ...), shown with every cost")
+	fl.StringVar(&l.containers, "containers", "25 L can, 200 L drum, 1000 L IBC, 25 kg bag", "packages reagents are bought in, for the order sheet (capacity, L or kg, name; comma-separated)")
 	fl.BoolVar(&l.opt.GrowVolume, "grow-volume", false, "let the liquor volume grow when the reagents alone exceed it (default: refuse)")
 	fl.StringVar(&l.extraction, "extraction", "", "your own test-leach extractions, e.g. Co=0.92,Ni=0.95,Li=0.99 (fractions or per cent; * for every metal)")
 	_ = cmd.RegisterFlagCompletionFunc("route", cobra.FixedCompletions([]string{"sulfuric-peroxide", "hydrochloric", "sulfuric-selective"}, cobra.ShellCompDirectiveNoFileComp))
@@ -190,6 +194,22 @@ func parseExtraction(s string) (map[string]float64, error) {
 			return nil, fmt.Errorf("%s given twice", el)
 		}
 		out[el] = v
+	}
+	return out, nil
+}
+
+// containerList parses --containers.
+func (l *leachFlags) containerList() ([]feed.Container, error) {
+	var out []feed.Container
+	for _, part := range strings.Split(l.containers, ",") {
+		if part = strings.TrimSpace(part); part == "" {
+			continue
+		}
+		c, err := feed.ParseContainer(part)
+		if err != nil {
+			return nil, fmt.Errorf("--containers: %w", err)
+		}
+		out = append(out, c)
 	}
 	return out, nil
 }

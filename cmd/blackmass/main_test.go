@@ -553,3 +553,44 @@ func TestChemListAndCompact(t *testing.T) {
 		t.Errorf("--list with a label: exit %d, want 2", code)
 	}
 }
+
+// The order sheet lists every reagent, priced or not, in the containers named, to its P90.
+func TestOrderSheet(t *testing.T) {
+	code, out, errs := run(t, "", "demo", "--samples", "100", "--json", "--acid-price", "0.25", "--containers", "20 L jerrycan, 1000 L IBC")
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	var rep struct {
+		Order struct {
+			Currency string
+			Reagents []struct {
+				Reagent    string
+				Kg         struct{ P90 float64 }
+				Litres     *struct{ P90 float64 }
+				Containers []struct {
+					Container string
+					Count     int
+				}
+				CostP90 *float64 `json:"cost_p90"`
+			}
+			Unpriced []string
+		}
+	}
+	if err := json.Unmarshal([]byte(out), &rep); err != nil {
+		t.Fatal(err)
+	}
+	o := rep.Order
+	if len(o.Reagents) != 2 || o.Currency != "EUR" || len(o.Unpriced) != 1 || o.Reagents[0].CostP90 == nil || o.Reagents[1].CostP90 != nil {
+		t.Fatalf("order %+v", o)
+	}
+	acid := o.Reagents[0]
+	if c := acid.Containers[0]; c.Container != "20 L jerrycan" || float64(c.Count) < acid.Litres.P90/20 || float64(c.Count-1) >= acid.Litres.P90/20 {
+		t.Errorf("containers %+v for %v L", acid.Containers, acid.Litres.P90)
+	}
+	if code, _, errs := run(t, "", "demo", "--samples", "20", "--currency", "USD"); code != 2 || !strings.Contains(errs, "disagree") {
+		t.Errorf("currency clash with the prices file: exit %d %s", code, errs)
+	}
+	if code, _, _ := run(t, "", "demo", "--samples", "20", "--containers", "big barrel"); code == 0 {
+		t.Error("bad container accepted")
+	}
+}

@@ -44,8 +44,43 @@ func writeReportText(w io.Writer, r *feed.Report, command string, quiet bool) {
 		writeGroupsText(w, r)
 	}
 	writeLeachText(w, r)
+	writeOrderText(w, r.Order)
 	writeValueText(w, r)
 	writeTail(w, r)
+}
+
+// writeOrderText prints the order sheet: each reagent for the lot and per tonne of black mass,
+// in the containers named, with its price or the lack of one.
+func writeOrderText(w io.Writer, o *feed.OrderSheet) {
+	if o == nil || len(o.Lines) == 0 {
+		return
+	}
+	cur := o.Currency
+	if cur == "" {
+		cur = "(no currency given)"
+	}
+	fmt.Fprintf(w, "\norder sheet (%s):\n", o.Basis)
+	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
+	fmt.Fprintln(tw, "  reagent\tfor the lot P50 / P90\tper t black mass\tcontainers (P90)\tcost P90")
+	for _, l := range o.Lines {
+		amount := fmtMass(l.Kg.P50) + " / " + fmtMass(l.Kg.P90)
+		if l.Litres != nil {
+			amount += " (" + fmtVolume(l.Litres.P50) + " / " + fmtVolume(l.Litres.P90) + ")"
+		}
+		var cs []string
+		for _, c := range l.Containers {
+			cs = append(cs, fmt.Sprintf("%d × %s", c.Count, c.Container))
+		}
+		cost := "no price given"
+		if l.CostP90 != nil {
+			cost = money(*l.CostP90) + " " + cur
+		}
+		fmt.Fprintf(tw, "  %s\t%s\t%s\t%s\t%s\n", l.Reagent, amount, fmtMass(l.KgPerTonneBM), strings.Join(cs, " or "), cost)
+	}
+	tw.Flush()
+	if len(o.Unpriced) > 0 {
+		fmt.Fprintf(w, "  not priced: %s (their cost is left out of every total)\n", strings.Join(o.Unpriced, ", "))
+	}
 }
 
 // keyMetalsShown are the metals the summary names.
@@ -280,7 +315,11 @@ func writeLeachText(w io.Writer, r *feed.Report) {
 		fmt.Fprintf(w, "chlorine scrubber: %s kg %s (%s L, P50; %s)\n", num(sc.Kg.P50), sc.Reagent, num(sc.Litres.P50), sc.Reaction)
 	}
 	if l.TotalCost != nil {
-		fmt.Fprintf(w, "reagent cost P10/P50/P90: %.2f / %.2f / %.2f\n", l.TotalCost.P10, l.TotalCost.P50, l.TotalCost.P90)
+		cur := l.Settings.Currency
+		if cur == "" {
+			cur = "(no currency given)"
+		}
+		fmt.Fprintf(w, "reagent cost P10/P50/P90: %s / %s / %s %s\n", money(l.TotalCost.P10), money(l.TotalCost.P50), money(l.TotalCost.P90), cur)
 	}
 	tw = tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
 	fmt.Fprintln(tw, "gas\tP50 mol\tP50 m³ STP\tP90 m³ STP\t")

@@ -44,6 +44,8 @@ type Options struct {
 	RecipeReductantGPerL float64 `json:"recipe_reductant_g_per_l,omitempty"`
 	// TemperatureC is the leach temperature; it sets the share of peroxide that decomposes.
 	TemperatureC float64 `json:"temperature_C"`
+	// Currency names the currency of the reagent prices ("" when not said).
+	Currency string `json:"currency,omitempty"`
 	// GrowVolume lets the liquor volume grow to hold reagents that exceed it, instead of refusing.
 	GrowVolume bool `json:"grow_volume,omitempty"`
 }
