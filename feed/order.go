@@ -21,13 +21,13 @@ var DefaultContainers = []Container{{Name: "25 L can", Litres: 25}, {Name: "200 
 // in each container that suits its form (litre containers for liquids, kg packages for solids
 // and gases bought by weight).
 type OrderLine struct {
-	Reagent        string           `json:"reagent"`
-	Kg             dist.Stat        `json:"kg"`
-	Litres         *dist.Stat       `json:"litres,omitempty"`
-	KgPerTonneBM   float64          `json:"kg_per_tonne_black_mass_p50"`
-	Containers     []ContainerCount `json:"containers"`
-	PricePerKg     float64          `json:"price_per_kg,omitempty"`
-	CostP90        *float64         `json:"cost_p90,omitempty"`
+	Reagent      string           `json:"reagent"`
+	Kg           dist.Stat        `json:"kg"`
+	Litres       *dist.Stat       `json:"litres,omitempty"`
+	KgPerTonneBM float64          `json:"kg_per_tonne_black_mass_p50"`
+	Containers   []ContainerCount `json:"containers"`
+	PricePerKg   float64          `json:"price_per_kg,omitempty"`
+	CostP90      *float64         `json:"cost_p90,omitempty"`
 }
 
 // ContainerCount is how many of a container hold the reagent's P90 amount.
