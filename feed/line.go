@@ -44,6 +44,8 @@ type Line struct {
 	ChargeAh       float64 // per item, when capacity was in Ah/mAh with no voltage
 	VoltageV       float64 // nominal voltage as given (0: not given)
 	CapacityText   string  // as typed
+	CapacityGiven  string  // the capacity as read, in Wh or Ah, of what the basis says ("" for weight only)
+	CapacityBasis  string  // "cell" or "pack": what the capacity is of
 	CellsPerItem   int     // 1 for loose cells; from cells_per_pack for packs (0: not given)
 	Count          int
 	MassKg         float64 // measured mass per item; 0 if not given

@@ -22,7 +22,10 @@ type LineResult struct {
 	Format          string             `json:"format"`
 	Count           int                `json:"count"`
 	CellsPerItem    int                `json:"cells_per_item"`
-	CapacityText    string             `json:"capacity_as_given"`
+	CapacityText    string             `json:"capacity_as_typed"`
+	CapacityGiven   string             `json:"capacity"`       // as read, in Wh or Ah
+	CapacityBasis   string             `json:"capacity_basis"` // cell or pack
+	VoltageV        float64            `json:"voltage_V,omitempty"`
 	Application     string             `json:"application,omitempty"`
 	EnergyWhPerItem float64            `json:"energy_Wh_per_item"`
 	EnergyAssumed   bool               `json:"energy_uses_assumed_voltage"`
@@ -235,7 +238,7 @@ func (l *Lot) Add(ln Line) error {
 	}
 	l.lines = append(l.lines, LineResult{Line: ln.Num, ID: ln.ID, Description: ln.Description, ChemistryLabel: ln.ChemistryLabel,
 		Chemistry: ch.Key, Unknown: ch.Unknown, Format: ln.Format.String(), Count: ln.Count, CellsPerItem: ln.CellsPerItem, Application: ln.Application,
-		CapacityText: ln.CapacityText, EnergyWhPerItem: dist.Round(energyWh, 4), EnergyAssumed: ln.EnergyWh == 0 && !ln.MassOnly(), EnergyFromMass: ln.MassOnly(), ChargeAhPerItem: ln.ChargeAh,
+		CapacityText: ln.CapacityText, CapacityGiven: ln.CapacityGiven, CapacityBasis: ln.CapacityBasis, VoltageV: ln.VoltageV, EnergyWhPerItem: dist.Round(energyWh, 4), EnergyAssumed: ln.EnergyWh == 0 && !ln.MassOnly(), EnergyFromMass: ln.MassOnly(), ChargeAhPerItem: ln.ChargeAh,
 		ModelMassKgEach: dist.Round(b.item/1000, 6), MeasuredMassKg: ln.MassKg, MeasuredWhPerKg: dist.Round(measWhKg, 2),
 		CathodeKg: dist.Round(b.cam*cnt/1000, 6), BlackMassKg: dist.Round(total*cnt/1000, 6), ElementsKg: els, Flags: flags, Notes: ln.Notes})
 	return nil

@@ -49,6 +49,7 @@ type estimateOptions struct {
 	demo      bool   // the built-in demo: prices default to the invented demo file
 	keepLines bool   // keep per-line detail whatever the output (the register stores the lines)
 	quiet     bool   // the summary only
+	paper     string // the workbook's paper: a4 or letter
 	command   string // the command's name, for the report's header
 }
 
@@ -68,6 +69,8 @@ func (o *estimateOptions) bind(cmd *cobra.Command) {
 	fl.StringVar(&o.supplier, "supplier", "", "supplier recorded in the report")
 	fl.StringVar(&o.xlsxPath, "xlsx", "", "also write the intake workbook to this .xlsx file")
 	fl.BoolVar(&o.force, "force", false, "overwrite an existing workbook")
+	fl.StringVar(&o.paper, "paper", "a4", "the workbook's paper size: a4 or letter")
+	_ = cmd.RegisterFlagCompletionFunc("paper", cobra.FixedCompletions([]string{"a4", "letter"}, cobra.ShellCompDirectiveNoFileComp))
 	fl.StringVar(&o.prices, "prices", "", "prices CSV (item, basis, price_per_kg, currency, payable, source): adds the lot's value")
 	o.leach.bind(cmd)
 }
@@ -259,7 +262,15 @@ func emit(w io.Writer, o *estimateOptions, rep *feed.Report) error {
 		return err
 	}
 	if o.xlsxPath != "" {
-		if err := writeWorkbook(o.xlsxPath, rep, o.force); err != nil {
+		paper := sheet.PaperA4
+		switch strings.ToLower(o.paper) {
+		case "a4", "":
+		case "letter":
+			paper = sheet.PaperLetter
+		default:
+			return usageError{fmt.Errorf("--paper %q: want a4 or letter", intake.Printable(o.paper, 20))}
+		}
+		if err := writeWorkbook(o.xlsxPath, rep, o.force, paper); err != nil {
 			return err
 		}
 	}

@@ -119,7 +119,7 @@ func readRows(src rowSource, name string, opt Options, decimalComma bool, fn fun
 		if err != nil {
 			return info, err
 		}
-		if blank(rec) {
+		if blank(rec) || p.onlyIgnored(rec) {
 			continue
 		}
 		if info.Lines >= MaxLines {
@@ -280,6 +280,17 @@ func (p *lineParser) parse(rec []string, line int) (feed.Line, error) {
 	return l, nil
 }
 
+// onlyIgnored reports whether a row holds values in left-out columns only (a totals row of the
+// intake workbook, say): it is no manifest line.
+func (p *lineParser) onlyIgnored(rec []string) bool {
+	for i, v := range rec {
+		if strings.TrimSpace(v) != "" && !p.hdr.named[i] {
+			return false
+		}
+	}
+	return true
+}
+
 // ignoredByName reports whether column i was ignored at the user's request (its values are
 // then not checked), rather than for a blank header.
 func (p *lineParser) ignoredByName(i int) bool { return p.hdr.named[i] }
@@ -434,6 +445,7 @@ func (p *lineParser) capacity(l *feed.Line, rec []string, line int) error {
 	default:
 		return p.fail(line, ColBasis, basis, "want cell or pack")
 	}
+	l.CapacityBasis, l.CapacityGiven = basis, strconv.FormatFloat(val, 'g', 6, 64)+" "+unit
 	mult := 1.0
 	if basis == "cell" && l.Format.IsAssembly() {
 		if l.CellsPerItem == 0 {

@@ -9,6 +9,8 @@ import (
 	"io"
 	"maps"
 	"slices"
+	"strconv"
+	"strings"
 
 	"github.com/xuri/excelize/v2"
 
@@ -30,6 +32,9 @@ const (
 )
 
 type writer struct {
+	paper                 int // PaperA4 or PaperLetter
+	editText              int // an input cell for text (a date, a name)
+	formulas              []formulaCell
 	f                     *excelize.File
 	hdr, num3, pct, title int
 	edit                  int // cells a user is expected to change
@@ -37,23 +42,57 @@ type writer struct {
 }
 
 // Write builds the workbook and writes it to w.
-func Write(w io.Writer, r *feed.Report) error {
-	f, err := Build(r)
+func Write(w io.Writer, r *feed.Report) error { return WriteOn(w, r, PaperA4) }
+
+// WriteOn is Write on the paper given (PaperA4 or PaperLetter).
+func WriteOn(w io.Writer, r *feed.Report, paper int) error {
+	f, formulas, err := build(r, paper)
 	if err != nil {
 		return err
 	}
 	defer f.Close()
+	cached, err := cachedValues(f, formulas)
+	if err != nil {
+		return err
+	}
 	var buf bytes.Buffer
 	if err := f.Write(&buf); err != nil {
 		return err
 	}
-	return normaliseZip(buf.Bytes(), w)
+	return normaliseZip(buf.Bytes(), w, cached)
+}
+
+// cachedValues computes every formula at the report's values, by worksheet part.
+func cachedValues(f *excelize.File, formulas []formulaCell) (map[string]map[string]cachedValue, error) {
+	parts := map[string]string{}
+	for id, name := range f.GetSheetMap() {
+		parts[name] = fmt.Sprintf("xl/worksheets/sheet%d.xml", id)
+	}
+	out := map[string]map[string]cachedValue{}
+	for _, fc := range formulas {
+		v, err := f.CalcCellValue(fc.sheet, fc.cell, excelize.Options{RawCellValue: true})
+		if err != nil {
+			return nil, fmt.Errorf("workbook: %s!%s: %w", fc.sheet, fc.cell, err)
+		}
+		part := parts[fc.sheet]
+		if out[part] == nil {
+			out[part] = map[string]cachedValue{}
+		}
+		_, nerr := strconv.ParseFloat(v, 64)
+		out[part][fc.cell] = cachedValue{text: v, number: nerr == nil && v != ""}
+	}
+	return out, nil
 }
 
 // Build returns the workbook; the caller closes it.
 func Build(r *feed.Report) (*excelize.File, error) {
+	f, _, err := build(r, PaperA4)
+	return f, err
+}
+
+func build(r *feed.Report, paper int) (*excelize.File, []formulaCell, error) {
 	f := excelize.NewFile()
-	wr := &writer{f: f, r: r}
+	wr := &writer{f: f, r: r, paper: paper}
 	var err error
 	must := func(id int, e error) int {
 		if e != nil && err == nil {
@@ -68,10 +107,12 @@ func Build(r *feed.Report) (*excelize.File, error) {
 	p2 := "0.00"
 	wr.pct = must(f.NewStyle(&excelize.Style{CustomNumFmt: &p2}))
 	wr.title = must(f.NewStyle(&excelize.Style{Font: &excelize.Font{Bold: true, Size: 14}}))
+	wr.editText = must(f.NewStyle(&excelize.Style{Fill: excelize.Fill{Type: "pattern", Pattern: 1, Color: []string{"FFF2CC"}},
+		Border: []excelize.Border{{Type: "bottom", Color: "BF9000", Style: 1}}}))
 	wr.edit = must(f.NewStyle(&excelize.Style{Fill: excelize.Fill{Type: "pattern", Pattern: 1, Color: []string{"FFF2CC"}}, CustomNumFmt: &f3,
 		Border: []excelize.Border{{Type: "left", Color: "BF9000", Style: 1}, {Type: "right", Color: "BF9000", Style: 1}, {Type: "top", Color: "BF9000", Style: 1}, {Type: "bottom", Color: "BF9000", Style: 1}}}))
 	if err != nil {
-		return nil, err
+		return nil, nil, err
 	}
 	// The summary is made active before the Lines sheet is streamed: setting it afterwards would
 	// make the xlsx library parse the streamed sheet back into memory.
@@ -79,7 +120,7 @@ func Build(r *feed.Report) (*excelize.File, error) {
 	for _, s := range steps {
 		if err := s(); err != nil {
 			f.Close()
-			return nil, err
+			return nil, nil, err
 		}
 	}
 	lot := r.Inputs.LotID
@@ -88,7 +129,7 @@ func Build(r *feed.Report) (*excelize.File, error) {
 	}
 	_ = f.SetDocProps(&excelize.DocProperties{Title: "Intake sheet " + lot, Creator: "blackmass " + r.Inputs.Version,
 		Created: "2000-01-01T00:00:00Z", Modified: "2000-01-01T00:00:00Z"})
-	return f, nil
+	return f, wr.formulas, nil
 }
 
 func (w *writer) row(sheet string, row int, vals ...any) error {
@@ -108,6 +149,16 @@ func (w *writer) header(sheet string, row int, vals ...any) error {
 
 func (w *writer) style(sheet, from, to string, id int) { _ = w.f.SetCellStyle(sheet, from, to, id) }
 
+// formulaCell is a cell holding a formula, whose value is stored with it when the workbook is
+// written (cachedValues), so viewers that do not recalculate still show it.
+type formulaCell struct{ sheet, cell string }
+
+// formula sets a formula and remembers the cell.
+func (w *writer) formula(sheet, cell, expr string) {
+	_ = w.f.SetCellFormula(sheet, cell, expr)
+	w.formulas = append(w.formulas, formulaCell{sheet, cell})
+}
+
 func (w *writer) summary() error {
 	f, r := w.f, w.r
 	if err := f.SetSheetName("Sheet1", Summary); err != nil {
@@ -119,15 +170,20 @@ func (w *writer) summary() error {
 	w.style(s, "A1", "A1", w.title)
 	rows := [][]any{
 		{"Lot id", in.LotID}, {"Supplier", in.Supplier}, {"Received (date)", ""}, {"Operator", ""},
-		{"Manifest file", in.File}, {"Manifest SHA-256", in.SHA256},
-		{"Lines / items / cells", fmt.Sprintf("%d / %d / %d", r.Lot.Lines, r.Lot.Items, r.Lot.Cells)},
-		{"Nameplate energy (kWh)", r.Lot.NameplateKWh},
+		{"Input file", in.File}, {"Input SHA-256", in.SHA256},
+	}
+	if r.Lot.Lines > 0 {
+		rows = append(rows, []any{"Lines / items / cells", fmt.Sprintf("%d / %d / %d", r.Lot.Lines, r.Lot.Items, r.Lot.Cells)},
+			[]any{"Nameplate energy (kWh)", r.Lot.NameplateKWh})
+	} else {
+		rows = append(rows, []any{"Black mass", "weighed; composition from a lab assay"})
 	}
 	for i, v := range rows {
 		if err := w.row(s, 3+i, v...); err != nil {
 			return err
 		}
 	}
+	w.style(s, "B5", "B6", w.editText) // received and operator: filled in at the bench
 	row := 3 + len(rows) + 1
 	if err := w.header(s, row, "Quantity", "P10", "P50", "P90", "Mean"); err != nil {
 		return err
@@ -187,20 +243,41 @@ func (w *writer) summary() error {
 	return nil
 }
 
-// printSetup fits a sheet to one page width (portrait or landscape) with the lot id and page
-// number in the header.
+// Paper sizes of the print setup (ECMA-376 Part 1, §18.3.1.63 pageSetup paperSize).
+const (
+	PaperA4     = 9
+	PaperLetter = 1
+)
+
+// printSetup sets a sheet's page: the paper, portrait or landscape, fitted to one page width,
+// the lot id and page number in the header and the planning caution in the footer.
 func (w *writer) printSetup(sheet string, landscape bool) {
-	fit := true
+	w.pageSetup(sheet, landscape, true)
+}
+
+// pageSetup is printSetup with the choice of fitting the width: a wide sheet (the lines) prints
+// at 100 % across pages instead, its header row and id column repeated on every page.
+func (w *writer) pageSetup(sheet string, landscape, fitWidth bool) {
+	fit := fitWidth
 	one, auto := 1, 0
 	orient := "portrait"
 	if landscape {
 		orient = "landscape"
 	}
+	paper := w.paper
+	if paper == 0 {
+		paper = PaperA4
+	}
+	_ = w.f.SetPageLayout(sheet, &excelize.PageLayoutOptions{Size: &paper})
 	lot := w.r.Inputs.LotID
 	if lot == "" {
 		lot = w.r.Inputs.File
 	}
-	_ = w.f.SetPageLayout(sheet, &excelize.PageLayoutOptions{Orientation: &orient, FitToWidth: &one, FitToHeight: &auto})
+	if fitWidth {
+		_ = w.f.SetPageLayout(sheet, &excelize.PageLayoutOptions{Orientation: &orient, FitToWidth: &one, FitToHeight: &auto})
+	} else {
+		_ = w.f.SetPageLayout(sheet, &excelize.PageLayoutOptions{Orientation: &orient})
+	}
 	_ = w.f.SetSheetProps(sheet, &excelize.SheetPropsOptions{FitToPage: &fit})
 	_ = w.f.SetHeaderFooter(sheet, &excelize.HeaderFooterOptions{
 		OddHeader: "&L" + escapeHF("Lot "+shorten(lot, maxHeaderLot)) + "&C" + escapeHF(sheet) + "&RPage &P of &N",
@@ -244,65 +321,49 @@ func (w *writer) lines() error {
 	if _, err := f.NewSheet(Lines); err != nil {
 		return err
 	}
-	w.printSetup(Lines, true) // page setup goes in before the stream writer takes the sheet
+	w.pageSetup(Lines, true, false) // page setup goes in before the stream writer takes the sheet
+	_ = f.SetDefinedName(&excelize.DefinedName{Name: "_xlnm.Print_Titles", RefersTo: "'" + Lines + "'!$A:$A,'" + Lines + "'!$1:$1", Scope: Lines})
 	sw, err := f.NewStreamWriter(Lines)
 	if err != nil {
 		return err
 	}
-	_ = sw.SetColStyle(14, 18, w.num3)
-	_ = sw.SetColWidth(1, 1, 10)
-	_ = sw.SetColWidth(2, 2, 30)
-	_ = sw.SetColWidth(3, 3, 18)
-	_ = sw.SetColWidth(4, 18, 12)
-	_ = sw.SetColWidth(19, 19, 50)
-	_ = sw.SetPanes(&excelize.Panes{Freeze: true, YSplit: 1, TopLeftCell: "A2", ActivePane: "bottomLeft"})
-	head := []any{"id", "description", "chemistry", "format", "capacity", "capacity_basis", "cells_per_pack", "count", "mass", "notes", "application"}
+	widths := []float64{12, 28, 16, 11, 11, 9, 9, 9, 8, 10, 28, 12, 6, 18, 12, 12, 10, 12, 12, 50}
+	for i, wd := range widths {
+		_ = sw.SetColWidth(i+1, i+1, wd)
+	}
+	_ = sw.SetColStyle(15, 19, w.num3)
+	_ = sw.SetPanes(&excelize.Panes{Freeze: true, XSplit: 1, YSplit: 1, TopLeftCell: "B2", ActivePane: "bottomRight"})
+	// The first columns are the manifest's own, headed so the sheet reads back as a manifest;
+	// the rest are computed (feed.DerivedLineColumns) and are read past.
+	head := []any{"id", "description", "chemistry", "format", "capacity", "capacity basis", "voltage (V)", "cells per pack", "count", "mass (kg)", "notes", "application"}
 	for _, h := range feed.DerivedLineColumns {
 		head = append(head, h)
 	}
-	if err := sw.SetRow("A1", head, excelize.RowOpts{StyleID: w.hdr, Height: 30}); err != nil {
+	if err := sw.SetRow("A1", head, excelize.RowOpts{StyleID: w.hdr, Height: 45}); err != nil {
 		return err
 	}
 	for i, l := range r.Lines {
-		mass := ""
-		if l.MeasuredMassKg > 0 {
-			mass = fmt.Sprintf("%g kg", l.MeasuredMassKg)
-		}
-		flags := ""
-		for j, fl := range l.Flags {
-			if j > 0 {
-				flags += "; "
-			}
-			flags += fl
-		}
-		basis := "pack"
-		if l.Format == "cylindrical" || l.Format == "pouch" || l.Format == "prismatic" {
-			basis = "cell"
-		}
-		cap := fmt.Sprintf("%g Wh", l.EnergyWhPerItem)
-		switch {
-		case l.ChargeAhPerItem > 0:
-			cap = fmt.Sprintf("%g Ah", l.ChargeAhPerItem) // no voltage was given: keep the charge
-		case l.EnergyFromMass:
-			cap = "" // known by weight only: the energy is an estimate, not a nameplate
-		}
-		var whPerKg any
-		if l.MeasuredWhPerKg > 0 {
-			whPerKg = l.MeasuredWhPerKg
-		}
-		cells := any(l.CellsPerItem)
-		if l.CellsPerItem == 0 {
-			cells = nil
-		}
-		row := []any{l.ID, l.Description, l.ChemistryLabel, l.Format, cap, basis, cells, l.Count, mass, l.Notes, l.Application,
-			l.Line, l.Chemistry, l.EnergyWhPerItem, l.ModelMassKgEach, whPerKg, l.CathodeKg, l.BlackMassKg, flags}
+		flags := strings.Join(l.Flags, "; ")
+		row := []any{text(l.ID), text(l.Description), text(l.ChemistryLabel), l.Format, l.CapacityGiven, l.CapacityBasis, opt(l.VoltageV),
+			optInt(l.CellsPerItem), l.Count, opt(l.MeasuredMassKg), text(l.Notes), l.Application,
+			l.Line, l.Chemistry, l.EnergyWhPerItem, l.ModelMassKgEach, opt(l.MeasuredWhPerKg), l.CathodeKg, l.BlackMassKg, flags}
 		cell, _ := excelize.CoordinatesToCellName(1, i+2)
 		if err := sw.SetRow(cell, row); err != nil {
 			return err
 		}
 	}
+	// A totals row from the report, in the computed columns only, so that the sheet read back
+	// as a manifest passes over it (a row with nothing in the manifest's own columns).
 	if len(r.Lines) > 0 {
-		_ = f.AutoFilter(Lines, fmt.Sprintf("A1:S%d", len(r.Lines)+1), nil)
+		cell, _ := excelize.CoordinatesToCellName(13, len(r.Lines)+2)
+		total := []any{"lot", fmt.Sprintf("%d items", r.Lot.Items), r.Lot.NameplateKWh * 1000, nil, nil, nil, r.BlackMassKg.P50,
+			fmt.Sprintf("black mass P50 of the lot (P10 %.3f, P90 %.3f kg); lines above are most likely values", r.BlackMassKg.P10, r.BlackMassKg.P90)}
+		if err := sw.SetRow(cell, total, excelize.RowOpts{StyleID: w.hdr}); err != nil {
+			return err
+		}
+	}
+	if len(r.Lines) > 0 {
+		_ = f.AutoFilter(Lines, fmt.Sprintf("A1:T%d", len(r.Lines)+1), nil)
 	}
 	return sw.Flush()
 }
@@ -360,11 +421,11 @@ func (w *writer) leach() error {
 		if err := w.row(s, row, g.Name, g.Kg.P10, g.Kg.P50, g.Kg.P90, g.Litres.P50, g.Ratio.P50, priceOf(l, g)); err != nil {
 			return err
 		}
-		_ = f.SetCellFormula(s, fmt.Sprintf("H%d", row), fmt.Sprintf("C%d*G%d", row, row))
+		w.formula(s, fmt.Sprintf("H%d", row), fmt.Sprintf("C%d*G%d", row, row))
 		row++
 	}
 	_ = f.SetCellValue(s, fmt.Sprintf("A%d", row), "total reagent cost (P50)")
-	_ = f.SetCellFormula(s, fmt.Sprintf("H%d", row), fmt.Sprintf("SUM(H4:H%d)", row-1))
+	w.formula(s, fmt.Sprintf("H%d", row), fmt.Sprintf("SUM(H4:H%d)", row-1))
 	w.style(s, "B4", fmt.Sprintf("H%d", row), w.num3)
 	w.style(s, "G4", fmt.Sprintf("G%d", row-1), w.edit)
 	row = w.recipeCalculator(s, row+2)
@@ -420,13 +481,21 @@ func (w *writer) leach() error {
 	return nil
 }
 
-// recipeCalculator lays out the dosing as live formulas: edit the excess factors or the free-acid
-// target and the quantities follow. Inputs are the report's P50 values; the result at the
-// default settings is close to (not exactly) the Monte Carlo P50 above, since the P50 of a sum is
-// not the sum of P50s. It returns the last row used.
+// recipeCalculator lays out the dosing as live formulas, in the mode the plan used: the
+// planner's (excess over stoichiometry, free-acid target) or the bench recipe's (acid molarity,
+// peroxide vol%). Edit the shaded cells and the quantities and the make-up water follow. Inputs
+// are the report's P50 values: in recipe mode the result equals the Monte Carlo P50 above; in
+// planner mode it is close to it (the P50 of a sum is not the sum of P50s). It returns the last
+// row used.
 func (w *writer) recipeCalculator(s string, row int) int {
 	f, l := w.f, w.r.Leach
-	_ = f.SetCellValue(s, fmt.Sprintf("A%d", row), "Dosing calculator (edit the shaded cells; P50 inputs)")
+	st := l.Settings
+	recipe := st.RecipeAcidMolPerL > 0
+	title := "Dosing calculator, planner mode (edit the shaded cells; P50 inputs)"
+	if recipe {
+		title = "Dosing calculator, bench-recipe mode (edit the shaded cells; P50 inputs)"
+	}
+	_ = f.SetCellValue(s, fmt.Sprintf("A%d", row), title)
 	_ = f.MergeCell(s, fmt.Sprintf("A%d", row), fmt.Sprintf("D%d", row))
 	w.style(s, fmt.Sprintf("A%d", row), fmt.Sprintf("D%d", row), w.hdr)
 	acid := l.Reagents[0]
@@ -441,31 +510,57 @@ func (w *writer) recipeCalculator(s string, row int) int {
 		}
 		w.style(s, fmt.Sprintf("B%d", row), fmt.Sprintf("B%d", row), style)
 	}
-	put("ex", "acid excess (× stoichiometry)", l.Settings.AcidExcess, true)
-	put("free", "free acid target (mol/L)", l.Settings.FreeAcidMolPerL, true)
-	put("stoich", "stoichiometric acid (kg, 100 %)", acid.StoichKg.P50, false)
-	put("vol", "liquor volume (L)", l.Liquor.VolumeL.P50, false)
-	put("M", "acid molar mass (g/mol)", acid.MolarMass, false)
-	put("wt", "acid strength (wt%)", acid.StrengthWt, false)
-	put("rho", "acid density (g/mL)", acid.DensityGmL, false)
-	formula := func(label, expr string) {
+	formula := func(key, label, expr string) {
 		row++
 		_ = w.row(s, row, label)
-		_ = f.SetCellFormula(s, fmt.Sprintf("B%d", row), expr)
+		w.formula(s, fmt.Sprintf("B%d", row), expr)
 		w.style(s, fmt.Sprintf("B%d", row), fmt.Sprintf("B%d", row), w.num3)
-		cells[label] = fmt.Sprintf("$B$%d", row)
+		cells[key] = fmt.Sprintf("$B$%d", row)
 	}
-	formula("acid to buy (kg)", fmt.Sprintf("(%s*%s+%s*%s*%s/1000)/(%s/100)", cells["stoich"], cells["ex"], cells["free"], cells["vol"], cells["M"], cells["wt"]))
-	formula("acid to buy (L)", fmt.Sprintf("%s/%s", cells["acid to buy (kg)"], cells["rho"]))
+	put("vol", "liquor volume (L)", l.Liquor.VolumeL.P50, true)
+	put("wt", "acid strength (wt%)", acid.StrengthWt, true)
+	put("rho", "acid density at that strength (g/mL)", acid.DensityGmL, true)
+	put("M", "acid molar mass (g/mol)", acid.MolarMass, false)
+	if recipe {
+		put("molar", "acid in the lixiviant (mol/L)", st.RecipeAcidMolPerL, true)
+		formula("akg", "acid to buy (kg)", fmt.Sprintf("%s*%s*%s/1000/(%s/100)", cells["molar"], cells["vol"], cells["M"], cells["wt"]))
+	} else {
+		put("ex", "acid excess (× stoichiometry)", st.AcidExcess, true)
+		put("free", "free acid target (mol/L)", st.FreeAcidMolPerL, true)
+		put("stoich", "stoichiometric acid (kg, 100 %)", acid.StoichKg.P50, false)
+		formula("akg", "acid to buy (kg)", fmt.Sprintf("(%s*%s+%s*%s*%s/1000)/(%s/100)", cells["stoich"], cells["ex"], cells["free"], cells["vol"], cells["M"], cells["wt"]))
+	}
+	formula("al", "acid to buy (L)", fmt.Sprintf("%s/%s", cells["akg"], cells["rho"]))
+	water := fmt.Sprintf("%s-%s", cells["vol"], cells["al"])
 	if len(l.Reagents) > 1 {
 		h := l.Reagents[1]
-		put("hex", "H2O2 excess (× stoichiometry)", l.Settings.ReductantExcess, true)
-		put("hst", "stoichiometric H2O2 (kg, 100 %)", h.StoichKg.P50, false)
-		put("hwt", "H2O2 strength (wt%)", h.StrengthWt, false)
-		put("hrho", "H2O2 density (g/mL)", h.DensityGmL, false)
-		formula("H2O2 to buy (kg)", fmt.Sprintf("%s*%s/(%s/100)", cells["hst"], cells["hex"], cells["hwt"]))
-		formula("H2O2 to buy (L)", fmt.Sprintf("%s/%s", cells["H2O2 to buy (kg)"], cells["hrho"]))
+		name := st.Reductant
+		if h.DensityGmL > 0 {
+			put("hwt", name+" strength (wt%)", h.StrengthWt, true)
+			put("hrho", name+" density at that strength (g/mL)", h.DensityGmL, true)
+		}
+		switch {
+		case st.RecipeH2O2VolPct > 0:
+			put("hvol", name+" in the lixiviant (vol% of the commercial solution)", st.RecipeH2O2VolPct, true)
+			formula("hkg", name+" to buy (kg)", fmt.Sprintf("%s/100*%s*%s", cells["hvol"], cells["vol"], cells["hrho"]))
+		case st.RecipeReductantGPerL > 0:
+			put("hgl", name+" in the lixiviant (g/L)", st.RecipeReductantGPerL, true)
+			formula("hkg", name+" to buy (kg)", fmt.Sprintf("%s*%s/1000", cells["hgl"], cells["vol"]))
+		default:
+			put("hex", name+" excess (× stoichiometry)", st.ReductantExcess, true)
+			put("hst", "stoichiometric "+name+" (kg, 100 %)", h.StoichKg.P50, false)
+			if h.DensityGmL > 0 {
+				formula("hkg", name+" to buy (kg)", fmt.Sprintf("%s*%s/(%s/100)", cells["hst"], cells["hex"], cells["hwt"]))
+			} else {
+				formula("hkg", name+" to buy (kg)", fmt.Sprintf("%s*%s", cells["hst"], cells["hex"]))
+			}
+		}
+		if h.DensityGmL > 0 {
+			formula("hl", name+" to buy (L)", fmt.Sprintf("%s/%s", cells["hkg"], cells["hrho"]))
+			water += "-" + cells["hl"]
+		}
 	}
+	formula("water", "make-up water (L)", water)
 	return row
 }
 
@@ -539,15 +634,21 @@ func (w *writer) weighIn() error {
 	}
 	const first, last = 4, 23
 	for i := first; i <= last; i++ {
-		_ = f.SetCellFormula(s, fmt.Sprintf("D%d", i), fmt.Sprintf(`IF(AND(ISNUMBER(B%d),ISNUMBER(C%d)),B%d-C%d,0)`, i, i, i, i))
+		// Blank until both weights are in: an empty row is not a weighing of 0 kg.
+		w.formula(s, fmt.Sprintf("D%d", i), fmt.Sprintf(`IF(AND(ISNUMBER(B%d),ISNUMBER(C%d)),B%d-C%d,"")`, i, i, i, i))
 	}
 	_ = w.row(s, last+2, "total net (kg)")
-	_ = f.SetCellFormula(s, fmt.Sprintf("D%d", last+2), fmt.Sprintf("SUM(D%d:D%d)", first, last))
+	w.formula(s, fmt.Sprintf("D%d", last+2), fmt.Sprintf(`IF(COUNT(D%d:D%d)=0,"",SUM(D%d:D%d))`, first, last, first, last))
 	_ = w.row(s, last+3, "estimated black mass P10 / P50 / P90 (kg)", r.BlackMassKg.P10, r.BlackMassKg.P50, r.BlackMassKg.P90)
 	_ = w.row(s, last+4, "difference net − P50 (kg)")
-	_ = f.SetCellFormula(s, fmt.Sprintf("D%d", last+4), fmt.Sprintf("D%d-C%d", last+2, last+3))
+	w.formula(s, fmt.Sprintf("D%d", last+4), fmt.Sprintf(`IF(D%d="","",D%d-C%d)`, last+2, last+2, last+3))
 	_ = w.row(s, last+5, "net within P10–P90?")
-	_ = f.SetCellFormula(s, fmt.Sprintf("D%d", last+5), fmt.Sprintf(`IF(D%d=0,"not weighed",IF(AND(D%d>=B%d,D%d<=D%d),"yes","NO: check the lot"))`, last+2, last+2, last+3, last+2, last+3))
+	w.formula(s, fmt.Sprintf("D%d", last+5), fmt.Sprintf(`IF(D%d="","not weighed",IF(AND(D%d>=B%d,D%d<=D%d),"yes","NO: check the lot"))`, last+2, last+2, last+3, last+2, last+3))
+	for i, label := range []string{"weighed on (date)", "weighed by (name)", "signature"} {
+		row := last + 7 + 2*i
+		_ = w.row(s, row, label)
+		w.style(s, fmt.Sprintf("B%d", row), fmt.Sprintf("D%d", row), w.editText)
+	}
 	w.style(s, fmt.Sprintf("B%d", first), fmt.Sprintf("D%d", last+4), w.num3)
 	w.style(s, fmt.Sprintf("A%d", first), fmt.Sprintf("C%d", last), w.edit) // the cells to fill in
 	_ = f.SetColWidth(s, "A", "A", 40)
@@ -613,3 +714,21 @@ func (w *writer) assay() error {
 	w.printSetup(s, true)
 	return nil
 }
+
+// opt leaves a cell empty for a value that was not given (0).
+func opt(v float64) any {
+	if v == 0 {
+		return nil
+	}
+	return v
+}
+
+func optInt(v int) any {
+	if v == 0 {
+		return nil
+	}
+	return v
+}
+
+// text is user text for a cell: as typed, and never read as a formula.
+func text(s string) any { return excelize.Cell{Value: s} }

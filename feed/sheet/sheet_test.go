@@ -1,9 +1,11 @@
 package sheet_test
 
 import (
+	"archive/zip"
 	"bytes"
 	"fmt"
 	"io"
+	"regexp"
 	"strings"
 	"testing"
 
@@ -18,6 +20,11 @@ import (
 
 func report(tb testing.TB, lines int) *feed.Report {
 	tb.Helper()
+	return reportWith(tb, lines, leach.DefaultOptions())
+}
+
+func reportWith(tb testing.TB, lines int, lo leach.Options) *feed.Report {
+	tb.Helper()
 	var b strings.Builder
 	b.WriteString("id,description,chemistry,format,capacity,cells_per_pack,count,mass\n")
 	rows := []string{"LCO,pouch,3000 mAh,,3,45 g", "NMC811,cylindrical,4.8 Ah,,7,69 g", "LFP,pack,960 Wh,15s4p,1,9 kg", "NMC622,module,5.2 kWh,12s2p,1,31 kg"}
@@ -30,7 +37,6 @@ func report(tb testing.TB, lines int) *feed.Report {
 	if _, err := intake.ReadCSV(strings.NewReader(b.String()), "gen.csv", intake.Options{Catalogue: cat}, lot.Add); err != nil {
 		tb.Fatal(err)
 	}
-	lo := leach.DefaultOptions()
 	r, _, err := lot.Estimate(feed.EstimateOptions{Seed: 1, Samples: 200, Leach: &lo, Inputs: feed.Inputs{LotID: "=cmd|' /C calc'!A0", Version: "test"}})
 	if err != nil {
 		tb.Fatal(err)
@@ -52,10 +58,10 @@ func TestWorkbookContent(t *testing.T) {
 	}
 	defer f.Close()
 	rows, err := f.GetRows(sheet.Lines, excelize.Options{RawCellValue: true})
-	if err != nil || len(rows) != 41 {
+	if err != nil || len(rows) != 42 { // header, 40 lines, the totals row
 		t.Fatalf("lines sheet: %d rows, %v", len(rows), err)
 	}
-	for _, c := range []string{"H2", "N2", "O2", "Q2", "R2"} { // count, energy, modelled mass, cathode, black mass
+	for _, c := range []string{"I2", "O2", "P2", "R2", "S2"} { // count, energy, modelled mass, cathode, black mass
 		if typ, _ := f.GetCellType(sheet.Lines, c); typ == excelize.CellTypeInlineString || typ == excelize.CellTypeSharedString {
 			t.Errorf("Lines!%s is stored as text", c)
 		}
@@ -120,44 +126,57 @@ func BenchmarkWorkbook100k(b *testing.B) {
 // settings, give the acid the Monte Carlo quotes (to within the P50-of-a-sum difference), and an
 // edited excess factor moves the result as the formula says.
 func TestDosingCalculator(t *testing.T) {
-	r := report(t, 12)
-	f, err := sheet.Build(r)
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer f.Close()
-	rows, _ := f.GetRows(sheet.Leach)
-	find := func(label string) string {
-		for i, row := range rows {
-			if len(row) > 0 && row[0] == label {
-				return fmt.Sprintf("B%d", i+1)
+	recipe := leach.DefaultOptions()
+	recipe.RecipeAcidMolPerL, recipe.RecipeH2O2VolPct = 2.5, 4
+	for _, c := range []struct {
+		name string
+		opt  leach.Options
+		tol  float64 // relative: the planner's P50 of a sum differs from the sum of P50s
+	}{{"planner", leach.DefaultOptions(), 0.01}, {"recipe", recipe, 1e-6}} {
+		t.Run(c.name, func(t *testing.T) {
+			r := reportWith(t, 12, c.opt)
+			f, err := sheet.Build(r)
+			if err != nil {
+				t.Fatal(err)
 			}
-		}
-		t.Fatalf("no row %q", label)
-		return ""
-	}
-	calc := func(cell string) float64 {
-		v, err := f.CalcCellValue(sheet.Leach, cell, excelize.Options{RawCellValue: true})
-		if err != nil {
-			t.Fatalf("%s: %v", cell, err)
-		}
-		var x float64
-		fmt.Sscan(v, &x)
-		return x
-	}
-	acidKg := calc(find("acid to buy (kg)"))
-	if want := r.Leach.Reagents[0].Kg.P50; acidKg < 0.99*want || acidKg > 1.01*want {
-		t.Errorf("calculator acid %.3f kg, Monte Carlo P50 %.3f kg", acidKg, want)
-	}
-	h2o2Kg := calc(find("H2O2 to buy (kg)"))
-	if want := r.Leach.Reagents[1].Kg.P50; h2o2Kg < 0.99*want || h2o2Kg > 1.01*want {
-		t.Errorf("calculator H2O2 %.3f kg, Monte Carlo P50 %.3f kg", h2o2Kg, want)
-	}
-	_ = f.SetCellValue(sheet.Leach, find("acid excess (× stoichiometry)"), 1.3)
-	acid := r.Leach.Reagents[0]
-	want := (acid.StoichKg.P50*1.3 + r.Leach.Settings.FreeAcidMolPerL*r.Leach.Liquor.VolumeL.P50*acid.MolarMass/1000) / (acid.StrengthWt / 100)
-	if got := calc(find("acid to buy (kg)")); got < want*(1-1e-9) || got > want*(1+1e-9) {
-		t.Errorf("after editing the excess: %.6f kg, want %.6f", got, want)
+			defer f.Close()
+			rows, _ := f.GetRows(sheet.Leach)
+			find := func(label string) string {
+				for i, row := range rows {
+					if len(row) > 0 && row[0] == label {
+						return fmt.Sprintf("B%d", i+1)
+					}
+				}
+				t.Fatalf("no row %q", label)
+				return ""
+			}
+			calc := func(cell string) float64 {
+				v, err := f.CalcCellValue(sheet.Leach, cell, excelize.Options{RawCellValue: true})
+				if err != nil {
+					t.Fatalf("%s: %v", cell, err)
+				}
+				var x float64
+				fmt.Sscan(v, &x)
+				return x
+			}
+			near := func(what string, got, want float64) {
+				if got < want*(1-c.tol) || got > want*(1+c.tol) {
+					t.Errorf("%s: calculator %.6g, report %.6g", what, got, want)
+				}
+			}
+			near("acid kg", calc(find("acid to buy (kg)")), r.Leach.Reagents[0].Kg.P50)
+			near("H2O2 kg", calc(find("H2O2 to buy (kg)")), r.Leach.Reagents[1].Kg.P50)
+			if c.name == "recipe" {
+				near("make-up water L", calc(find("make-up water (L)")), r.Leach.WaterL.P50)
+				return
+			}
+			_ = f.SetCellValue(sheet.Leach, find("acid excess (× stoichiometry)"), 1.3)
+			acid := r.Leach.Reagents[0]
+			want := (acid.StoichKg.P50*1.3 + r.Leach.Settings.FreeAcidMolPerL*r.Leach.Liquor.VolumeL.P50*acid.MolarMass/1000) / (acid.StrengthWt / 100)
+			if got := calc(find("acid to buy (kg)")); got < want*(1-1e-9) || got > want*(1+1e-9) {
+				t.Errorf("after editing the excess: %.6f kg, want %.6f", got, want)
+			}
+		})
 	}
 }
 
@@ -199,4 +218,61 @@ func BenchmarkWorkbook10kVsStreamFloor(b *testing.B) {
 			_ = f.Close()
 		}
 	})
+}
+
+// Print setup: A4 by default (Letter on request), the lines sheet at 100 % with its header row
+// and id column repeated on every page; every formula stored with its value (read from the raw
+// XML, as a viewer that does not recalculate would).
+func TestPrintSetupAndCachedValues(t *testing.T) {
+	r := report(t, 8)
+	for _, c := range []struct {
+		paper int
+		name  string
+	}{{sheet.PaperA4, "A4"}, {sheet.PaperLetter, "Letter"}} {
+		t.Run(c.name, func(t *testing.T) {
+			var buf bytes.Buffer
+			if err := sheet.WriteOn(&buf, r, c.paper); err != nil {
+				t.Fatal(err)
+			}
+			f, err := excelize.OpenReader(bytes.NewReader(buf.Bytes()))
+			if err != nil {
+				t.Fatal(err)
+			}
+			defer f.Close()
+			for _, s := range f.GetSheetList() {
+				pl, err := f.GetPageLayout(s)
+				if err != nil || pl.Size == nil || *pl.Size != c.paper {
+					t.Errorf("%s: paper %v, want %d (%v)", s, pl.Size, c.paper, err)
+				}
+			}
+			names := f.GetDefinedName()
+			found := false
+			for _, n := range names {
+				if n.Name == "_xlnm.Print_Titles" && n.Scope == sheet.Lines && strings.Contains(n.RefersTo, "$1:$1") {
+					found = true
+				}
+			}
+			if !found {
+				t.Errorf("no print titles on the lines sheet: %+v", names)
+			}
+			zr, err := zip.NewReader(bytes.NewReader(buf.Bytes()), int64(buf.Len()))
+			if err != nil {
+				t.Fatal(err)
+			}
+			formulas, withValue := 0, 0
+			for _, zf := range zr.File {
+				if !strings.HasPrefix(zf.Name, "xl/worksheets/") {
+					continue
+				}
+				rc, _ := zf.Open()
+				b, _ := io.ReadAll(rc)
+				_ = rc.Close()
+				formulas += strings.Count(string(b), "<f>")
+				withValue += len(regexp.MustCompile(`</f><v>[^<]*</v>`).FindAll(b, -1))
+			}
+			if formulas == 0 || formulas != withValue {
+				t.Errorf("%d formulas, %d stored with their value", formulas, withValue)
+			}
+		})
+	}
 }
