@@ -65,4 +65,12 @@ const LinesSheetName = "Lines"
 // DerivedLineColumns are the headers of the computed columns the intake workbook writes beside
 // a line's own; reading the workbook back as a manifest leaves them out.
 var DerivedLineColumns = []string{"line", "chemistry resolved", "energy per item (Wh)", "modelled mass per item (kg)",
-	"measured Wh/kg", "cathode active (kg)", "black mass (kg)", "flags"}
+	"measured Wh/kg", "cathode active, most likely (kg)", "black mass, most likely (kg)", "flags"}
+
+// formerDerivedLineColumns are computed-column headers of earlier workbooks, still read past.
+var formerDerivedLineColumns = []string{"cathode active (kg)", "black mass (kg)"}
+
+// ComputedLineColumns lists every header of a computed column, current and former.
+func ComputedLineColumns() []string {
+	return append(append([]string(nil), DerivedLineColumns...), formerDerivedLineColumns...)
+}

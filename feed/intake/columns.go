@@ -187,7 +187,7 @@ func recogniseHeader(h string) (headerCell, bool) {
 // workbook read back as a manifest leaves them out.
 var derived = func() map[string]bool {
 	m := map[string]bool{}
-	for _, h := range feed.DerivedLineColumns {
+	for _, h := range feed.ComputedLineColumns() {
 		k, _ := normaliseHeader(h)
 		m[k] = true
 	}

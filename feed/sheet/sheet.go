@@ -34,6 +34,7 @@ const (
 type writer struct {
 	paper                 int // PaperA4 or PaperLetter
 	editText              int // an input cell for text (a date, a name)
+	wrap                  int // wrapped text, top-aligned
 	formulas              []formulaCell
 	f                     *excelize.File
 	hdr, num3, pct, title int
@@ -107,6 +108,7 @@ func build(r *feed.Report, paper int) (*excelize.File, []formulaCell, error) {
 	p2 := "0.00"
 	wr.pct = must(f.NewStyle(&excelize.Style{CustomNumFmt: &p2}))
 	wr.title = must(f.NewStyle(&excelize.Style{Font: &excelize.Font{Bold: true, Size: 14}}))
+	wr.wrap = must(f.NewStyle(&excelize.Style{Alignment: &excelize.Alignment{WrapText: true, Vertical: "top"}}))
 	wr.editText = must(f.NewStyle(&excelize.Style{Fill: excelize.Fill{Type: "pattern", Pattern: 1, Color: []string{"FFF2CC"}},
 		Border: []excelize.Border{{Type: "bottom", Color: "BF9000", Style: 1}}}))
 	wr.edit = must(f.NewStyle(&excelize.Style{Fill: excelize.Fill{Type: "pattern", Pattern: 1, Color: []string{"FFF2CC"}}, CustomNumFmt: &f3,
@@ -232,7 +234,7 @@ func (w *writer) summary() error {
 			list = append(append([]string{}, list...), r.Leach.Warnings...)
 		}
 		for _, t := range list {
-			_ = f.SetCellValue(s, fmt.Sprintf("A%d", row), t)
+			w.paragraph(s, row, "E", t, summaryLineChars)
 			row++
 		}
 		row++
@@ -241,6 +243,21 @@ func (w *writer) summary() error {
 	_ = f.SetColWidth(s, "B", "E", 14)
 	w.printSetup(s, false)
 	return nil
+}
+
+// summaryLineChars is about how many characters a line of the summary's merged A:E cells holds
+// at 10 pt (34 + 4 × 14 column widths).
+const summaryLineChars = 95
+
+// paragraph writes a long text across columns A..last of a row, wrapped, the row tall enough for
+// its lines, so that it prints at full size instead of shrinking the page to fit.
+func (w *writer) paragraph(sheet string, row int, last, text string, lineChars int) {
+	a, b := fmt.Sprintf("A%d", row), fmt.Sprintf("%s%d", last, row)
+	_ = w.f.SetCellStr(sheet, a, text)
+	_ = w.f.MergeCell(sheet, a, b)
+	_ = w.f.SetCellStyle(sheet, a, b, w.wrap)
+	lines := (len([]rune(text)) + lineChars - 1) / lineChars
+	_ = w.f.SetRowHeight(sheet, row, float64(max(lines, 1))*13.5)
 }
 
 // Paper sizes of the print setup (ECMA-376 Part 1, §18.3.1.63 pageSetup paperSize).
@@ -395,10 +412,31 @@ func (w *writer) metals() error {
 	w.style(s, "F2", fmt.Sprintf("H%d", last), w.pct)
 	_ = f.SetColWidth(s, "A", "H", 12)
 	w.printSetup(s, true)
-	return f.AddChart(s, "J2", &excelize.Chart{Type: excelize.Col,
-		Series: []excelize.ChartSeries{{Name: "Metals!$C$1", Categories: fmt.Sprintf("Metals!$A$2:$A$%d", max(metals, 2)), Values: fmt.Sprintf("Metals!$C$2:$C$%d", max(metals, 2))}},
-		Title:  excelize.ChartTitle{Paragraph: []excelize.RichTextRun{{Text: "Metals in the black mass, P50 (kg)"}}},
-		Legend: excelize.ChartLegend{Position: "none"}, Dimension: excelize.ChartDimension{Width: 640, Height: 320}})
+	return w.rangeChart(s, fmt.Sprintf("A%d", last+3), "Metals in the black mass: P50 with P10–P90 (kg)", 2, max(metals, 2), "B", "C", "D")
+}
+
+// rangeChart draws a column's P50 as points with a line from P10 to P90 in each category (a
+// high-low chart: the xlsx library has no error bars), labels dark enough to print. first and
+// last are the data rows; the columns hold P10, P50 and P90, the categories are in A.
+func (w *writer) rangeChart(s, at, title string, first, last int, p10, p50, p90 string) error {
+	ref := func(col string) string { return fmt.Sprintf("'%s'!$%s$%d:$%s$%d", s, col, first, col, last) }
+	cats := ref("A")
+	dark := excelize.Font{Color: "000000", Size: 10}
+	marker := func(symbol string, size int) excelize.ChartMarker {
+		return excelize.ChartMarker{Symbol: symbol, Size: size, Fill: excelize.Fill{Type: "pattern", Pattern: 1, Color: []string{"1F3864"}}}
+	}
+	none := excelize.LineOptions{Type: excelize.LineNone}
+	return w.f.AddChart(s, at, &excelize.Chart{Type: excelize.Line,
+		Series: []excelize.ChartSeries{
+			{Name: "P10", Categories: cats, Values: ref(p10), Line: none, Marker: marker("dash", 7)},
+			{Name: "P50", Categories: cats, Values: ref(p50), Line: none, Marker: marker("circle", 6)},
+			{Name: "P90", Categories: cats, Values: ref(p90), Line: none, Marker: marker("dash", 7)},
+		},
+		Title:     excelize.ChartTitle{Paragraph: []excelize.RichTextRun{{Text: title, Font: &excelize.Font{Color: "000000", Size: 12, Bold: true}}}},
+		Legend:    excelize.ChartLegend{Position: "none"},
+		XAxis:     excelize.ChartAxis{HighLowLines: true, Font: dark},
+		YAxis:     excelize.ChartAxis{MajorGridLines: true, Font: dark},
+		Dimension: excelize.ChartDimension{Width: 600, Height: 230}})
 }
 
 func (w *writer) leach() error {
@@ -458,13 +496,7 @@ func (w *writer) leach() error {
 		_ = w.row(s, row, sym, c.GPerL.P10, c.GPerL.P50, c.GPerL.P90, c.MolPerL.P50)
 	}
 	w.style(s, fmt.Sprintf("B%d", first), fmt.Sprintf("E%d", row), w.num3)
-	chartAt := fmt.Sprintf("G%d", first)
-	if err := f.AddChart(s, chartAt, &excelize.Chart{Type: excelize.Col,
-		Series: []excelize.ChartSeries{{Name: fmt.Sprintf("Leach!$C$%d", first-1), Categories: fmt.Sprintf("Leach!$A$%d:$A$%d", first, row), Values: fmt.Sprintf("Leach!$C$%d:$C$%d", first, row)}},
-		Title:  excelize.ChartTitle{Paragraph: []excelize.RichTextRun{{Text: "Leach liquor, P50 (g/L)"}}},
-		Legend: excelize.ChartLegend{Position: "none"}}); err != nil {
-		return err
-	}
+	liquorFirst, liquorLast := first, row
 	row += 2
 	if err := w.header(s, row, "salt", "saturation ratio P50", "P90"); err != nil {
 		return err
@@ -478,7 +510,7 @@ func (w *writer) leach() error {
 	_ = f.SetColWidth(s, "A", "A", 26)
 	_ = f.SetColWidth(s, "B", "H", 15)
 	w.printSetup(s, true)
-	return nil
+	return w.rangeChart(s, fmt.Sprintf("A%d", row+3), "Leach liquor: P50 with P10–P90 (g/L)", liquorFirst, liquorLast, "B", "C", "D")
 }
 
 // recipeCalculator lays out the dosing as live formulas, in the mode the plan used: the
