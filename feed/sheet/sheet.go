@@ -625,28 +625,51 @@ func (w *writer) assumptions() error {
 		}
 	}
 	row := len(info) + 2
-	if err := w.header(s, row, "scope", "parameter", "min", "most likely", "max", "unit", "source"); err != nil {
+	if err := w.header(s, row, "what", "applies to", "min", "most likely", "max", "unit", "source", "key"); err != nil {
 		return err
 	}
-	for _, p := range r.Parameters {
+	first := row + 1
+	params := append(slices.Clone(r.Parameters), func() []dist.Param {
+		if r.Leach != nil {
+			return r.Leach.Extraction
+		}
+		return nil
+	}()...)
+	// Sources repeated row after row ("from memory") are said once, in a note below the table.
+	memory := 0
+	for _, p := range params {
 		row++
-		if err := w.row(s, row, p.Scope, p.Name, p.Min, p.Mode, p.Max, p.Unit, p.Source); err != nil {
+		src := p.Source
+		if src == "from memory" {
+			src, memory = "from memory ¹", memory+1
+		}
+		if err := w.row(s, row, plainWords(p.Name), p.Scope, p.Min, p.Mode, p.Max, p.Unit, src, p.Name); err != nil {
 			return err
 		}
+		// Wrapped sources need their rows tall enough: viewers do not grow rows on opening.
+		if lines := (len([]rune(src)) + sourceLineChars - 1) / sourceLineChars; lines > 1 {
+			_ = f.SetRowHeight(s, row, float64(lines)*12.75)
+		}
+	}
+	w.style(s, fmt.Sprintf("G%d", first), fmt.Sprintf("G%d", row), w.wrap)
+	w.style(s, fmt.Sprintf("C%d", first), fmt.Sprintf("E%d", row), w.num3)
+	if memory > 0 {
+		row += 2
+		_ = w.row(s, row, fmt.Sprintf("¹ %d values rest on the developers' recollection of the literature, not on a source checked line by line: replace them with your own teardown and assay data where they matter.", memory))
 	}
 	if l := r.Leach; l != nil {
-		for _, p := range l.Extraction {
-			row++
-			_ = w.row(s, row, p.Scope, p.Name, p.Min, p.Mode, p.Max, p.Unit, p.Source)
-		}
+		row++
 		for _, a := range l.Assumptions {
 			row++
-			_ = w.row(s, row, "leach model", a)
+			w.paragraph(s, row, "H", "Leach model: "+a, 150)
 		}
 	}
-	_ = f.SetColWidth(s, "A", "B", 28)
-	_ = f.SetColWidth(s, "C", "F", 11)
-	_ = f.SetColWidth(s, "G", "G", 90)
+	_ = f.SetColWidth(s, "A", "A", 34)
+	_ = f.SetColWidth(s, "B", "B", 20)
+	_ = f.SetColWidth(s, "C", "E", 10)
+	_ = f.SetColWidth(s, "F", "F", 12)
+	_ = f.SetColWidth(s, "G", "G", 60)
+	_ = f.SetColWidth(s, "H", "H", 18)
 	w.printSetup(s, true)
 	return nil
 }
@@ -764,3 +787,19 @@ func optInt(v int) any {
 
 // text is user text for a cell: as typed, and never read as a formula.
 func text(s string) any { return excelize.Cell{Value: s} }
+
+// sourceLineChars is about how many characters a line of the 60-wide source column holds.
+const sourceLineChars = 66
+
+// plainWords turns a parameter key ("carryover_al_foil") into words a bench reads.
+func plainWords(key string) string {
+	words := map[string]string{"np": "N/P", "al": "aluminium", "cu": "copper", "lipf6": "LiPF6", "pvdf": "PVDF", "cam": "cathode active material"}
+	parts := strings.Split(key, "_")
+	for i, p := range parts {
+		if w, ok := words[p]; ok {
+			parts[i] = w
+		}
+	}
+	out := strings.Join(parts, " ")
+	return strings.ToUpper(out[:1]) + out[1:]
+}
