@@ -6,6 +6,7 @@ import (
 	"encoding/csv"
 	"errors"
 	"io"
+	"strings"
 	"unicode"
 	"unicode/utf8"
 
@@ -23,7 +24,6 @@ type splitSource struct {
 	sep    byte
 	line   int // lines consumed so far
 	rec    []string
-	buf    []byte
 	cr     *csv.Reader // after the first quote
 	offset int         // lines consumed before cr took over
 	err    error
@@ -103,26 +103,27 @@ func (s *splitSource) Read() ([]string, int, error) {
 	}
 }
 
-// split cuts a quote-free line at the separator, trimming each field's leading white space.
+// split cuts a quote-free line at the separator, trimming each field's leading white space. The
+// line is made a string once and the fields are slices of it (one allocation a line, as
+// encoding/csv with ReuseRecord).
 func (s *splitSource) split(line []byte) []string {
 	s.rec = s.rec[:0]
-	s.buf = append(s.buf[:0], line...)
-	b := s.buf
+	str := string(line)
 	for {
-		i := bytes.IndexByte(b, s.sep)
-		field := b
+		i := strings.IndexByte(str, s.sep)
+		field := str
 		if i >= 0 {
-			field = b[:i]
+			field = str[:i]
 		}
-		s.rec = append(s.rec, string(trimLeftSpace(field)))
+		s.rec = append(s.rec, trimLeftSpace(field))
 		if i < 0 {
 			return s.rec
 		}
-		b = b[i+1:]
+		str = str[i+1:]
 	}
 }
 
-func trimLeftSpace(b []byte) []byte {
+func trimLeftSpace(b string) string {
 	for len(b) > 0 {
 		if b[0] < utf8.RuneSelf {
 			if b[0] != ' ' && b[0] != '\t' && b[0] != '\n' && b[0] != '\v' && b[0] != '\f' && b[0] != '\r' {
@@ -131,7 +132,7 @@ func trimLeftSpace(b []byte) []byte {
 			b = b[1:]
 			continue
 		}
-		r, n := utf8.DecodeRune(b)
+		r, n := utf8.DecodeRuneInString(b)
 		if !unicode.IsSpace(r) {
 			return b
 		}
