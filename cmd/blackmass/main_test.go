@@ -594,3 +594,26 @@ func TestOrderSheet(t *testing.T) {
 		t.Error("bad container accepted")
 	}
 }
+
+// Help groups the flags (input, model, leach, costs, output) and every command has examples.
+func TestHelpGroupsAndExamples(t *testing.T) {
+	_, out, _ := run(t, "", "estimate", "--help")
+	last := -1
+	for _, h := range []string{"Examples:", "Input:", "Model:", "Leach:", "Costs and value:", "Output:"} {
+		i := strings.Index(out, h)
+		if i < 0 || i < last {
+			t.Errorf("help: %q missing or out of order", h)
+		}
+		last = i
+	}
+	var walk func(c *cobra.Command)
+	walk = func(c *cobra.Command) {
+		if c.Runnable() && c.Example == "" && c.Name() != "help" && c.Name() != "completion" && c.Parent() != nil && c.Parent().Name() != "completion" {
+			t.Errorf("%s has no example", c.CommandPath())
+		}
+		for _, s := range c.Commands() {
+			walk(s)
+		}
+	}
+	walk(newRootCmd())
+}

@@ -79,6 +79,7 @@ toxic gases (H2, Cl2, HF) are hazards: follow local codes, safety data sheets an
 		SilenceErrors: true,
 	}
 	root.SetVersionTemplate("{{.Name}} {{.Version}}\n")
+	root.SetUsageTemplate(usageTemplate)
 	root.AddCommand(newChemCmd(), newEstimateCmd(), newDemoCmd(), newQuoteCmd(), newReconcileCmd(), newInferCmd(), newLotCmd())
 	markUsageErrors(root)
 	return root
@@ -92,7 +93,7 @@ type catalogueOptions struct {
 
 func (o *catalogueOptions) bind(cmd *cobra.Command) {
 	cmd.Flags().StringVar(&o.catalogPath, "catalog", "", "extra chemistry catalogue CSV (same columns as data/chemistries.csv)")
-	cmd.Flags().StringVar(&o.priorPath, "prior", "", "chemistry mix CSV assumed for unknown cells (columns chemistry,mass_fraction,source)")
+	cmd.Flags().StringVar(&o.priorPath, "prior", "", "unknown-chemistry shares CSV (columns application, chemistry, share, source), replacing data/prior.csv rows")
 }
 
 func (o *catalogueOptions) load() (*cathode.Catalogue, error) {
