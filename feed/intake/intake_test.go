@@ -405,6 +405,7 @@ func TestHostileCSV(t *testing.T) {
 		{"long label", hdr + strings.Repeat("N", 300) + ",pouch,1 Wh,1\n", "longer than"},
 		{"carriage returns only", "chemistry,format,capacity,count\rLCO,pouch,1 Wh,1\rLCO,pouch,1 Wh,1\r", "carriage return"},
 		{"control characters echoed escaped", hdr + "\x1b[2J,pouch,1 Wh,1\n", `\x1b`},
+		{"control character in an id", "id,chemistry,format,capacity,count\nab\x07c,LCO,pouch,1 Wh,1\n", "U+0007"},
 	} {
 		t.Run(c.name, func(t *testing.T) {
 			_, err := intake.ReadCSV(strings.NewReader(c.in), "h.csv", intake.Options{Catalogue: cat}, func(feed.Line) error { return nil })

@@ -8,6 +8,7 @@ import (
 	"slices"
 	"strconv"
 	"strings"
+	"unicode"
 	"unicode/utf8"
 
 	"blackmass/cathode"
@@ -257,6 +258,10 @@ func (p *lineParser) parse(rec []string, line int) (feed.Line, error) {
 		if len(v) > MaxTextBytes {
 			return feed.Line{}, p.fail(line, c, v, fmt.Sprintf("longer than %d bytes", MaxTextBytes))
 		}
+		if i := strings.IndexFunc(v, badControl); i >= 0 {
+			r, _ := utf8.DecodeRuneInString(v[i:])
+			return feed.Line{}, p.fail(line, c, v, fmt.Sprintf("holds a control character (U+%04X) that a workbook cannot keep", r))
+		}
 	}
 	l := feed.Line{Num: line, ID: p.get(rec, ColID), Description: p.get(rec, ColDescription), Notes: p.get(rec, ColNotes)}
 	if err := p.format(&l, rec, line); err != nil {
@@ -290,6 +295,9 @@ func (p *lineParser) onlyIgnored(rec []string) bool {
 	}
 	return true
 }
+
+// badControl reports the control characters refused in text: all but tab, which a workbook keeps.
+func badControl(r rune) bool { return unicode.IsControl(r) && r != '\t' }
 
 // ignoredByName reports whether column i was ignored at the user's request (its values are
 // then not checked), rather than for a blank header.
