@@ -6,12 +6,16 @@ import (
 	"encoding/json"
 	"fmt"
 	"io"
+	"io/fs"
 	"math"
+	"regexp"
 	"slices"
 	"strings"
 	"testing"
+	"testing/fstest"
 
 	"blackmass/cathode"
+	"blackmass/data"
 	"blackmass/feed"
 	"blackmass/feed/assay"
 	"blackmass/feed/dist"
@@ -460,5 +464,42 @@ func TestLotValue(t *testing.T) {
 		if _, err := intake.ReadPrices(strings.NewReader(bad.in), "p.csv"); err == nil || !strings.Contains(err.Error(), bad.want) {
 			t.Errorf("ReadPrices(%q) = %v, want %q", bad.in, err, bad.want)
 		}
+	}
+}
+
+// The tables are passed in, not global: a lot estimated with tables of its own (here a model
+// whose cathode recovery is cut to half and an extraction table capping Co at 50 %) gives
+// results that follow those tables.
+func TestOwnTables(t *testing.T) {
+	own := fstest.MapFS{}
+	err := fs.WalkDir(data.FS, ".", func(path string, d fs.DirEntry, err error) error {
+		if err != nil || d.IsDir() {
+			return err
+		}
+		b, err := fs.ReadFile(data.FS, path)
+		own[path] = &fstest.MapFile{Data: b}
+		return err
+	})
+	if err != nil {
+		t.Fatal(err)
+	}
+	ext := string(own["extraction.csv"].Data)
+	ext = regexp.MustCompile(`(?m)^sulfuric-peroxide,Co,[^\n]*$`).ReplaceAllString(ext, "sulfuric-peroxide,Co,0.49,0.5,0.51,test table")
+	own["extraction.csv"] = &fstest.MapFile{Data: []byte(ext)}
+	tb, err := feed.LoadTables(own)
+	if err != nil {
+		t.Fatal(err)
+	}
+	lot := feed.NewLot(tb.Model, false)
+	if err := readCSV(strings.NewReader("chemistry,format,capacity,count\nLCO,pouch,11 Wh,100\n"), "t.csv", intake.Options{Catalogue: tb.Catalogue}, lot.Add); err != nil {
+		t.Fatal(err)
+	}
+	lo := leach.DefaultOptions()
+	r, _, err := lot.Estimate(feed.EstimateOptions{Seed: 1, Samples: 100, Leach: &lo, LeachTables: tb.Leach})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if x := r.Leach.Liquor.ExtractionReached["Co"].P50; x > 0.52 {
+		t.Errorf("Co extraction %v with a table capping it at 0.51", x)
 	}
 }

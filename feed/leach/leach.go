@@ -2,6 +2,7 @@ package leach
 
 import (
 	"fmt"
+	"io/fs"
 	"maps"
 	"math"
 	"slices"
@@ -148,7 +149,10 @@ type salt struct {
 	gPer100g            float64
 }
 
-type leachTables struct {
+// Tables are the leach planner's reference tables: reagent densities, salt solubilities,
+// extraction ranges per route, reductants and peroxide loss. Load them with LoadTables from any
+// fs.FS (a test can hand in its own); DefaultTables are the embedded ones.
+type Tables struct {
 	reductants []*Reductant
 	loss       []peroxideLoss
 	density    reagentTable
@@ -157,9 +161,14 @@ type leachTables struct {
 	sources    map[string]string // "route/element" -> source
 }
 
-var loadLeachTables = sync.OnceValues(func() (*leachTables, error) {
-	lt := &leachTables{density: reagentTable{}, extraction: map[cathode.Route]map[string]cathode.Range{}, sources: map[string]string{}}
-	t, err := data.ReadTable(data.FS, "reagents.csv")
+// DefaultTables returns the embedded tables (read once).
+var DefaultTables = sync.OnceValues(func() (*Tables, error) { return LoadTables(data.FS) })
+
+// LoadTables reads reagents.csv, solubility.csv, extraction.csv, reductants.csv and
+// peroxide_loss.csv from fsys.
+func LoadTables(fsys fs.FS) (*Tables, error) {
+	lt := &Tables{density: reagentTable{}, extraction: map[cathode.Route]map[string]cathode.Range{}, sources: map[string]string{}}
+	t, err := data.ReadTable(fsys, "reagents.csv")
 	if err != nil {
 		return nil, err
 	}
@@ -177,7 +186,7 @@ var loadLeachTables = sync.OnceValues(func() (*leachTables, error) {
 	for _, v := range lt.density {
 		sort.Slice(v, func(i, j int) bool { return v[i][0] < v[j][0] })
 	}
-	st, err := data.ReadTable(data.FS, "solubility.csv")
+	st, err := data.ReadTable(fsys, "solubility.csv")
 	if err != nil {
 		return nil, err
 	}
@@ -188,7 +197,7 @@ var loadLeachTables = sync.OnceValues(func() (*leachTables, error) {
 		}
 		lt.salts = append(lt.salts, salt{r.Str("salt"), r.Str("cation"), r.Str("anion"), g})
 	}
-	et, err := data.ReadTable(data.FS, "extraction.csv")
+	et, err := data.ReadTable(fsys, "extraction.csv")
 	if err != nil {
 		return nil, err
 	}
@@ -210,10 +219,10 @@ var loadLeachTables = sync.OnceValues(func() (*leachTables, error) {
 		lt.extraction[route][r.Str("element")] = rg
 		lt.sources[route.String()+"/"+r.Str("element")] = r.Str("source")
 	}
-	if lt.reductants, err = LoadReductants(dataTables{}); err != nil {
+	if lt.reductants, err = LoadReductants(fsTables{fsys}); err != nil {
 		return nil, err
 	}
-	pt, err := data.ReadTable(data.FS, "peroxide_loss.csv")
+	pt, err := data.ReadTable(fsys, "peroxide_loss.csv")
 	if err != nil {
 		return nil, err
 	}
@@ -233,7 +242,7 @@ var loadLeachTables = sync.OnceValues(func() (*leachTables, error) {
 	}
 	sort.Slice(lt.loss, func(i, j int) bool { return lt.loss[i].fromC < lt.loss[j].fromC })
 	return lt, nil
-})
+}
 
 // peroxideLoss is the decomposed share of a peroxide dose from a temperature up.
 type peroxideLoss struct {
@@ -243,7 +252,7 @@ type peroxideLoss struct {
 }
 
 // peroxideLoss returns the row that applies at temperature tC.
-func (lt *leachTables) peroxideLoss(tC float64) peroxideLoss {
+func (lt *Tables) peroxideLoss(tC float64) peroxideLoss {
 	out := lt.loss[0]
 	for _, l := range lt.loss {
 		if tC >= l.fromC {
@@ -256,10 +265,15 @@ func (lt *leachTables) peroxideLoss(tC float64) peroxideLoss {
 // Density returns the density of a reagent solution (g/mL) at strength wtPct, interpolated
 // linearly in the reagent table; an error if wtPct is outside the table.
 func Density(reagent string, wtPct float64) (float64, error) {
-	lt, err := loadLeachTables()
+	lt, err := DefaultTables()
 	if err != nil {
 		return 0, err
 	}
+	return lt.Density(reagent, wtPct)
+}
+
+// Density is the package-level Density on these tables.
+func (lt *Tables) Density(reagent string, wtPct float64) (float64, error) {
 	pts := lt.density[reagent]
 	if len(pts) == 0 {
 		return 0, fmt.Errorf("no density table for %s", reagent)
@@ -301,6 +315,7 @@ type Input struct {
 	Kg          [][]float64 // [compound][sample]
 	BlackMassKg []float64   // [sample]
 	Draws       *dist.Drawer
+	Tables      *Tables // nil: DefaultTables
 }
 
 // Plan computes the leach plan for every sample of the black mass, in three steps:
@@ -308,9 +323,12 @@ type Input struct {
 // or the bench recipe's), and what that dose actually dissolves (leachSample: limiting acid and
 // electrons), then the liquor, saturation and warnings.
 func Plan(s Input, opt Options) (*Report, error) {
-	lt, err := loadLeachTables()
-	if err != nil {
-		return nil, err
+	lt := s.Tables
+	if lt == nil {
+		var err error
+		if lt, err = DefaultTables(); err != nil {
+			return nil, err
+		}
 	}
 	if err := checkLeachOptions(&opt); err != nil {
 		return nil, err
@@ -329,7 +347,7 @@ func Plan(s Input, opt Options) (*Report, error) {
 type leachPlanner struct {
 	s       Input
 	opt     Options
-	lt      *leachTables
+	lt      *Tables
 	route   cathode.Route
 	red     *Reductant
 	species []cathode.Species
@@ -347,14 +365,14 @@ type leachPlanner struct {
 	grown                                                               int
 }
 
-func newLeachPlanner(s Input, opt Options, lt *leachTables) (*leachPlanner, error) {
+func newLeachPlanner(s Input, opt Options, lt *Tables) (*leachPlanner, error) {
 	if len(s.Formulas) != len(s.Kg) || s.Draws == nil {
 		return nil, fmt.Errorf("leach: %d formulas for %d mass columns, or no parameter draws", len(s.Formulas), len(s.Kg))
 	}
 	p := &leachPlanner{s: s, opt: opt, lt: lt, route: opt.Route, n: len(s.BlackMassKg), ext: map[string][]float64{}}
 	p.acidM = cathode.MolarMassOf(p.route.Acid())
 	var err error
-	if p.acidRho, err = Density(p.route.Acid(), opt.AcidWtPct); err != nil {
+	if p.acidRho, err = lt.Density(p.route.Acid(), opt.AcidWtPct); err != nil {
 		return nil, err
 	}
 	if p.route != cathode.Hydrochloric && opt.Reductant != "none" {
@@ -362,7 +380,7 @@ func newLeachPlanner(s Input, opt Options, lt *leachTables) (*leachPlanner, erro
 			return nil, err
 		}
 		if p.red.Form == "solution" {
-			if p.redRho, err = Density(p.red.Formula, opt.H2O2WtPct); err != nil {
+			if p.redRho, err = lt.Density(p.red.Formula, opt.H2O2WtPct); err != nil {
 				return nil, err
 			}
 		}
@@ -717,7 +735,7 @@ const (
 // byproducts adds the caustic to scrub the chlorine and the heat of peroxide decomposition.
 func (p *leachPlanner) byproducts(lr *Report) {
 	if g, ok := lr.Gases["Cl2"]; ok && g.Mol.P90 > 0 {
-		rho, err := Density("NaOH", 50)
+		rho, err := p.lt.Density("NaOH", 50)
 		if err == nil {
 			kg := col(p.n, func(i int) float64 { return p.res[i].cl2 * naohPerCl2 * cathode.MolarMassOf("NaOH") / 1000 })
 			lr.Scrubber = &Scrubber{Reagent: "NaOH 50 %", KgPure: dist.Summarise(kg), Kg: dist.Summarise(col(p.n, func(i int) float64 { return kg[i] / 0.5 })),

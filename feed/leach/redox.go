@@ -2,6 +2,7 @@ package leach
 
 import (
 	"fmt"
+	"io/fs"
 	"math"
 	"slices"
 	"strings"
@@ -63,10 +64,10 @@ func LoadReductants(tables interface {
 	return out, nil
 }
 
-// dataTables reads tables from the embedded data.
-type dataTables struct{}
+// fsTables reads tables from a file system.
+type fsTables struct{ fsys fs.FS }
 
-func (dataTables) ReadTable(name string) (*data.Table, error) { return data.ReadTable(data.FS, name) }
+func (t fsTables) ReadTable(name string) (*data.Table, error) { return data.ReadTable(t.fsys, name) }
 
 // FindReductant returns the reductant named by key, formula or alias (case-insensitive).
 func FindReductant(all []*Reductant, name string) (*Reductant, error) {

@@ -5,13 +5,14 @@ import (
 	"testing"
 
 	"blackmass/cathode"
+	"blackmass/data"
 )
 
 // Every reductant's half-reaction balances: reductant + w H2O → products + h H+ + e e−, with the
 // products SO4²− (sulfate), Na+ (sodium), O2, and for ascorbic acid dehydroascorbic acid C6H6O6.
 // Elements and charge are counted from the formulas, so a wrong column in reductants.csv fails.
 func TestReductantHalfReactionsBalance(t *testing.T) {
-	all, err := LoadReductants(dataTables{})
+	all, err := LoadReductants(fsTables{data.FS})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -54,7 +55,7 @@ func TestLeachElectronsClose(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	reds, err := LoadReductants(dataTables{})
+	reds, err := LoadReductants(fsTables{data.FS})
 	if err != nil {
 		t.Fatal(err)
 	}
