@@ -45,6 +45,7 @@ type Chemistry struct {
 var unknownWords = map[string]bool{
 	"": true, "UNKNOWN": true, "LIION": true, "LITHIUMION": true, "LI": true, "?": true,
 	"N/A": true, "NA": true, "UNLABELLED": true, "UNLABELED": true, "LIIONBATTERY": true, "LITHIUM": true,
+	"BATTERY": true, "BATTERIES": true, "LIIONBATTERIES": true, "LITHIUMIONBATTERY": true,
 }
 
 // IsUnknownWord reports whether label is one of the words that mean an unknown chemistry
@@ -72,6 +73,16 @@ func (c *Catalogue) ParseLabel(label string) (Chemistry, error) {
 	if IsUnknownWord(label) {
 		return c.Unknown(""), nil
 	}
+	if ch, err := c.parseCore(label); err == nil || !errors.Is(err, ErrUnknownLabel) {
+		return ch, err
+	} else if alt, ok := c.reword(label); ok {
+		return alt, nil
+	} else {
+		return Chemistry{}, err
+	}
+}
+
+func (c *Catalogue) parseCore(label string) (Chemistry, error) {
 	if e := c.Lookup(label); e != nil {
 		return single(e, KindCatalogued, nil), nil
 	}
@@ -86,6 +97,45 @@ func (c *Catalogue) ParseLabel(label string) (Chemistry, error) {
 		return Chemistry{}, err
 	}
 	return single(e, kind, notes), nil
+}
+
+// genericWords say that a label is about a lithium-ion battery without naming its cathode
+// ("Li-ion NMC", "LFP battery", "NCA cells").
+var genericWords = regexp.MustCompile(`(?i)\b(li-?ion|lithium[- ]ion|rechargeable|battery|batteries|cells?|packs?|modules?)\b`)
+
+// parenthetical is a label with a second name in brackets: "LiFePO4 (LFP)", "LFP (lithium iron
+// phosphate)".
+var parenthetical = regexp.MustCompile(`^\s*([^()]+?)\s*\(([^()]+)\)\s*$`)
+
+// reword tries a label that failed as written in the forms benches write: without the generic
+// words around the cathode's name, or by either name of "A (B)" when both agree. It reports
+// whether one resolved.
+func (c *Catalogue) reword(label string) (Chemistry, bool) {
+	if m := parenthetical.FindStringSubmatch(label); m != nil {
+		a, errA := c.parseCore(m[1])
+		b, errB := c.parseCore(m[2])
+		switch {
+		case errA == nil && errB == nil && a.Key == b.Key:
+			return a, true
+		case errA == nil && errB != nil && !strings.ContainsAny(m[2], "0123456789:/"):
+			a.Notes = append(a.Notes, fmt.Sprintf("%q: read as %s; the bracket %q was not understood", label, a.Key, m[2]))
+			return a, true
+		case errB == nil && errA != nil:
+			b.Notes = append(b.Notes, fmt.Sprintf("%q: read as %s from the bracket", label, b.Key))
+			return b, true
+		}
+		return Chemistry{}, false
+	}
+	stripped := strings.TrimSpace(genericWords.ReplaceAllString(label, " "))
+	if stripped == "" || stripped == strings.TrimSpace(label) {
+		return Chemistry{}, false
+	}
+	ch, err := c.parseCore(strings.Join(strings.Fields(stripped), " "))
+	if err != nil {
+		return Chemistry{}, false
+	}
+	ch.Notes = append(ch.Notes, fmt.Sprintf("%q: read as %s", label, ch.Key))
+	return ch, true
 }
 
 func single(e *Entry, kind Kind, notes []string) Chemistry {

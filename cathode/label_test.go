@@ -197,3 +197,27 @@ func TestUserCatalogueRefusals(t *testing.T) {
 		})
 	}
 }
+
+// Labels as they arrive on paperwork: generic words around the cathode's name, a second name in
+// brackets; a bracket that disagrees is refused.
+func TestParseLabelReworded(t *testing.T) {
+	cat, _ := cathode.DefaultCatalogue()
+	for _, c := range []struct{ label, want string }{
+		{"Li-ion NMC", "NMC (grade unknown)"}, {"LFP battery", "LFP"}, {"NCA cells", "NCA"},
+		{"LiFePO4 (LFP)", "LFP"}, {"LFP (lithium iron phosphate)", "LFP"}, {"Lithium-ion LCO pack", "LCO"},
+		{"NMC811 (high nickel)", "NMC811"}, {"LCO (LFP)", ""}, {"battery", "unknown"},
+	} {
+		t.Run(c.label, func(t *testing.T) {
+			ch, err := cat.ParseLabel(c.label)
+			if c.want == "" {
+				if err == nil {
+					t.Errorf("%q read as %s, want refused", c.label, ch.Key)
+				}
+				return
+			}
+			if err != nil || ch.Key != c.want {
+				t.Errorf("%q = %q, %v; want %q", c.label, ch.Key, err, c.want)
+			}
+		})
+	}
+}

@@ -467,9 +467,8 @@ func TestLotValue(t *testing.T) {
 	}
 }
 
-// The tables are passed in, not global: a lot estimated with tables of its own (here a model
-// whose cathode recovery is cut to half and an extraction table capping Co at 50 %) gives
-// results that follow those tables.
+// The tables are passed in, not global: a lot estimated with tables of its own (here an
+// extraction table capping Co at about 50 %) gives results that follow those tables.
 func TestOwnTables(t *testing.T) {
 	own := fstest.MapFS{}
 	err := fs.WalkDir(data.FS, ".", func(path string, d fs.DirEntry, err error) error {
