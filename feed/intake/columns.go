@@ -23,6 +23,8 @@ const (
 	ColBasis
 	ColVoltage
 	ColCellsPerPack
+	ColSeries
+	ColParallel
 	ColCount
 	ColMass
 	ColTotalMass
@@ -50,6 +52,8 @@ var columns = [numColumns]columnSpec{
 	ColVoltage:     {"voltage", []string{"voltage", "volts", "volt", "v", "nominal_voltage", "v_nom", "vnom", "nominal_v", "rated_voltage", "nom_voltage", "voltage_nominal", "cell_v", "cell_voltage", "pack_v", "pack_voltage", "module_voltage"}, &VoltUnits, "nominal V of what the capacity is of"},
 	ColCellsPerPack: {"cells_per_pack", []string{"cells_per_pack", "cells", "layout", "configuration", "config", "s_p", "sp", "s_p_config", "series_parallel",
 		"cell_count", "cells_per_item", "cells_per_module", "topology", "cells_pack", "cells_in_pack", "arrangement"}, nil, "a number of cells or a series-parallel tag such as 13s4p"},
+	ColSeries:    {"series", []string{"series", "s_count", "cells_in_series", "series_cells", "n_series", "in_series"}, nil, "cells in series (with parallel: cells per pack = series × parallel)"},
+	ColParallel:  {"parallel", []string{"parallel", "p_count", "cells_in_parallel", "parallel_cells", "n_parallel", "in_parallel"}, nil, "cells in parallel"},
 	ColCount:     {"count", []string{"count", "qty", "quantity", "pieces", "pcs", "units", "no_of_items", "num", "n", "qty_pcs", "quantity_pcs", "number_of_items", "items", "nr", "ea"}, nil, "items received"},
 	ColMass:      {"mass", []string{"mass", "weight", "mass_each", "weight_each", "unit_weight", "unit_mass", "mass_per_item", "weight_per_item", "each", "item_weight", "item_mass", "wt", "mass_per_unit", "weight_per_unit", "weight_per_pack", "weight_per_cell"}, &MassUnits, "measured mass of one item"},
 	ColTotalMass: {"total_mass", []string{"total_mass", "total_weight", "line_weight", "line_mass", "weight_total", "mass_total", "total_wt"}, &MassUnits, "measured mass of all the line's items"},

@@ -114,6 +114,8 @@ func TestHeaderRecognition(t *testing.T) {
 		{"mass unit in square brackets", "chemistry,format,capacity,count,Mass [lb]", "LFP,pack,500 Wh,1,10", "", func(l feed.Line) bool { return math.Abs(l.MassKg-4.5359237) < 1e-12 }},
 		{"weight kg each", "chemistry,format,capacity,qty,kg each", "LFP,pack,500 Wh,1,4", "", func(l feed.Line) bool { return l.MassKg == 4 }},
 		{"total weight", "chemistry,format,capacity,qty,Total weight (kg)", "LFP,pack,500 Wh,4,20", "", func(l feed.Line) bool { return l.MassKg == 5 }},
+		{"series and parallel columns", "chemistry,format,capacity,Series,Parallel,qty", "NMC532,pack,3 Ah,13,4,1", "", func(l feed.Line) bool { return l.CellsPerItem == 52 }},
+		{"series alone", "chemistry,format,capacity,cells in series,qty", "NMC532,pack,3 Ah,10,1", "", func(l feed.Line) bool { return l.CellsPerItem == 10 }},
 		{"unknown column", "chemistry,format,capacity,count,Colour", "LFP,pack,500 Wh,1,grey", `unrecognised column(s) "Colour"`, nil},
 		{"near miss suggests", "chemistry,format,capacity,cuont", "LFP,pack,500 Wh,1", "did you mean count", nil},
 		{"two columns for one", "chemistry,format,capacity,count,qty", "LFP,pack,500 Wh,1,1", "both read as count", nil},

@@ -383,6 +383,20 @@ func (p *lineParser) count(l *feed.Line, rec []string, line int) error {
 func (p *lineParser) cellsPerPack(l *feed.Line, rec []string, line int) error {
 	l.CellsPerItem = 1
 	cp := p.get(rec, ColCellsPerPack)
+	if ss, ps := p.get(rec, ColSeries), p.get(rec, ColParallel); ss != "" || ps != "" {
+		tag, err := seriesParallel(ss, ps)
+		if err != nil {
+			return p.fail(line, ColSeries, ss+"/"+ps, err.Error())
+		}
+		if cp != "" {
+			n1, err1 := parseCellsPerPack(cp)
+			n2, _ := parseCellsPerPack(tag)
+			if err1 == nil && n1 != n2 {
+				return p.fail(line, ColCellsPerPack, cp, fmt.Sprintf("disagrees with series × parallel = %d", n2))
+			}
+		}
+		cp = tag
+	}
 	if cp == "" {
 		if l.Format.IsAssembly() {
 			l.CellsPerItem = 0
@@ -514,6 +528,25 @@ func ParseFormat(s string) (feed.Format, error) {
 		return f, nil
 	}
 	return feed.FormatInvalid, fmt.Errorf("unknown format (want cylindrical, pouch, prismatic, pack or module)")
+}
+
+// seriesParallel makes a series-parallel tag of separate series and parallel counts.
+func seriesParallel(series, parallel string) (string, error) {
+	if series == "" {
+		return "", errors.New("a parallel count needs the series count too")
+	}
+	for _, v := range []string{series, parallel} {
+		if v == "" {
+			continue
+		}
+		if n, err := strconv.Atoi(v); err != nil || n < 1 || n > maxCellsPerItem {
+			return "", fmt.Errorf("want whole numbers of cells from 1 to %d", maxCellsPerItem)
+		}
+	}
+	if parallel == "" {
+		parallel = "1"
+	}
+	return series + "s" + parallel + "p", nil
 }
 
 // parseCellsPerPack accepts a whole number ("52") or a series-parallel tag ("13s4p", "10S3P",
