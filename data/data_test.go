@@ -53,3 +53,30 @@ func TestParseTableErrors(t *testing.T) {
 		t.Errorf("unordered range: %v", err)
 	}
 }
+
+// The share of rows whose source is published (not "from memory", "common practice" or an
+// assumption) is reported per table, so that progress in grounding the model shows.
+func TestPublishedSourceShare(t *testing.T) {
+	names, _ := fs.Glob(data.FS, "*.csv")
+	total, published := 0, 0
+	for _, n := range names {
+		tb, err := data.ReadTable(data.FS, n)
+		if err != nil {
+			t.Fatal(err)
+		}
+		p := 0
+		for _, r := range tb.Rows {
+			src := strings.ToLower(r.Str("source"))
+			if !strings.Contains(src, "from memory") && !strings.Contains(src, "common practice") && !strings.Contains(src, "assumption") && !strings.Contains(src, "invented") {
+				p++
+			}
+		}
+		t.Logf("%-22s %3d of %3d rows cite a published source", n, p, len(tb.Rows))
+		total += len(tb.Rows)
+		published += p
+	}
+	t.Logf("all tables: %d of %d rows (%.0f %%) cite a published source", published, total, 100*float64(published)/float64(total))
+	if published == 0 {
+		t.Error("no row cites a published source")
+	}
+}
