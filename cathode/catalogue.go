@@ -223,7 +223,7 @@ func (c *Catalogue) nearest(label string, n int) []string {
 	q := normLabel(label)
 	best := map[string]int{}
 	for name, e := range c.byName {
-		d := editDistance(q, name)
+		d := EditDistance(q, name)
 		if old, ok := best[e.Key]; !ok || d < old {
 			best[e.Key] = d
 		}
@@ -244,8 +244,12 @@ func (c *Catalogue) nearest(label string, n int) []string {
 	return keys
 }
 
-func editDistance(a, b string) int {
+// EditDistance is the Levenshtein distance between a and b, in runes (the first 64 of a).
+func EditDistance(a, b string) int {
 	ra, rb := []rune(a), []rune(b)
+	if len(ra) > 64 {
+		ra = ra[:64] // a label or header is short; a long one costs no more than this
+	}
 	prev := make([]int, len(rb)+1)
 	cur := make([]int, len(rb)+1)
 	for j := range prev {

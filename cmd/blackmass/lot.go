@@ -101,6 +101,24 @@ func (lo *lotOptions) open() (*register.Register, error) {
 
 func today() string { return time.Now().Format(time.DateOnly) }
 
+// with opens the register, runs fn on it and closes it.
+func (lo *lotOptions) with(fn func(*register.Register) error) error {
+	reg, err := lo.open()
+	if err != nil {
+		return err
+	}
+	defer reg.Close()
+	return fn(reg)
+}
+
+// bindFilter binds the flags that narrow a listing.
+func bindFilter(cmd *cobra.Command, f *register.Filter) {
+	cmd.Flags().StringVar(&f.Supplier, "supplier", "", "only this supplier")
+	cmd.Flags().StringVar(&f.From, "from", "", "received on or after, YYYY-MM-DD")
+	cmd.Flags().StringVar(&f.To, "to", "", "received on or before, YYYY-MM-DD")
+	cmd.Flags().StringVar(&f.Chemistry, "chemistry", "", "only lots holding this chemistry (part of its name)")
+}
+
 func newLotAddCmd(lo *lotOptions) *cobra.Command {
 	o := &estimateOptions{}
 	var received string
@@ -184,22 +202,17 @@ func newLotListCmd(lo *lotOptions) *cobra.Command {
 			return runLotList(cmd.OutOrStdout(), lo, f)
 		},
 	}
-	cmd.Flags().StringVar(&f.Supplier, "supplier", "", "only this supplier")
-	cmd.Flags().StringVar(&f.From, "from", "", "received on or after, YYYY-MM-DD")
-	cmd.Flags().StringVar(&f.To, "to", "", "received on or before, YYYY-MM-DD")
-	cmd.Flags().StringVar(&f.Chemistry, "chemistry", "", "only lots holding this chemistry (part of its name)")
+	bindFilter(cmd, &f)
 	cmd.Flags().BoolVar(&lo.asJSON, "json", false, "write JSON")
 	return cmd
 }
 
 func runLotList(w io.Writer, lo *lotOptions, f register.Filter) error {
-	reg, err := lo.open()
-	if err != nil {
+	var lots []register.Summary
+	if err := lo.with(func(reg *register.Register) (err error) {
+		lots, err = reg.List(context.Background(), f)
 		return err
-	}
-	defer reg.Close()
-	lots, err := reg.List(context.Background(), f)
-	if err != nil {
+	}); err != nil {
 		return err
 	}
 	if lo.asJSON {
@@ -241,13 +254,11 @@ func newLotShowCmd(lo *lotOptions) *cobra.Command {
 }
 
 func runLotShow(w io.Writer, lo *lotOptions, id string) error {
-	reg, err := lo.open()
-	if err != nil {
+	var d *register.Detail
+	if err := lo.with(func(reg *register.Register) (err error) {
+		d, err = reg.Show(context.Background(), id)
 		return err
-	}
-	defer reg.Close()
-	d, err := reg.Show(context.Background(), id)
-	if err != nil {
+	}); err != nil {
 		return err
 	}
 	if lo.asJSON {
@@ -373,10 +384,7 @@ func newLotExportCmd(lo *lotOptions) *cobra.Command {
 	cmd.Flags().StringVar(&csvPath, "csv", "", "write CSV to this file")
 	cmd.Flags().StringVar(&xlsxPath, "xlsx", "", "write an .xlsx workbook to this file")
 	cmd.Flags().BoolVar(&force, "force", false, "overwrite an existing file")
-	cmd.Flags().StringVar(&f.Supplier, "supplier", "", "only this supplier")
-	cmd.Flags().StringVar(&f.From, "from", "", "received on or after, YYYY-MM-DD")
-	cmd.Flags().StringVar(&f.To, "to", "", "received on or before, YYYY-MM-DD")
-	cmd.Flags().StringVar(&f.Chemistry, "chemistry", "", "only lots holding this chemistry")
+	bindFilter(cmd, &f)
 	return cmd
 }
 
@@ -421,12 +429,11 @@ func optp(p *float64) any {
 }
 
 func runLotExport(w io.Writer, lo *lotOptions, f register.Filter, csvPath, xlsxPath string, force bool) error {
-	reg, err := lo.open()
-	if err != nil {
+	var lots []register.Summary
+	err := lo.with(func(reg *register.Register) (err error) {
+		lots, err = reg.List(context.Background(), f)
 		return err
-	}
-	defer reg.Close()
-	lots, err := reg.List(context.Background(), f)
+	})
 	if err != nil {
 		return err
 	}
@@ -514,13 +521,11 @@ func newLotTotalsCmd(lo *lotOptions) *cobra.Command {
 }
 
 func runLotTotals(w io.Writer, lo *lotOptions, month string) error {
-	reg, err := lo.open()
-	if err != nil {
+	var t *register.Totals
+	if err := lo.with(func(reg *register.Register) (err error) {
+		t, err = reg.MonthTotals(context.Background(), month)
 		return err
-	}
-	defer reg.Close()
-	t, err := reg.MonthTotals(context.Background(), month)
-	if err != nil {
+	}); err != nil {
 		return err
 	}
 	if lo.asJSON {

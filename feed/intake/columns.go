@@ -7,6 +7,7 @@ import (
 	"strings"
 	"unicode"
 
+	"blackmass/cathode"
 	"blackmass/feed"
 )
 
@@ -203,7 +204,7 @@ func nearestColumns(h string, n int) []string {
 	key, _ := normaliseHeader(h)
 	best := map[string]int{}
 	for syn, c := range synonymIndex {
-		d := editDistance(key, syn)
+		d := cathode.EditDistance(key, syn)
 		if old, ok := best[columns[c].name]; !ok || d < old {
 			best[columns[c].name] = d
 		}
@@ -219,30 +220,6 @@ func nearestColumns(h string, n int) []string {
 		return names[i] < names[j]
 	})
 	return names[:min(n, len(names))]
-}
-
-func editDistance(a, b string) int {
-	ra, rb := []rune(a), []rune(b)
-	if len(ra) > 64 {
-		ra = ra[:64]
-	}
-	prev := make([]int, len(rb)+1)
-	cur := make([]int, len(rb)+1)
-	for j := range prev {
-		prev[j] = j
-	}
-	for i := 1; i <= len(ra); i++ {
-		cur[0] = i
-		for j := 1; j <= len(rb); j++ {
-			cost := 1
-			if ra[i-1] == rb[j-1] {
-				cost = 0
-			}
-			cur[j] = min(prev[j]+1, cur[j-1]+1, prev[j-1]+cost)
-		}
-		prev, cur = cur, prev
-	}
-	return prev[len(rb)]
 }
 
 // header is a recognised header row: the position of each column (-1 if absent), the units
