@@ -17,7 +17,6 @@ import (
 	"blackmass/cathode"
 	"blackmass/data"
 	"blackmass/feed"
-	"blackmass/feed/assay"
 	"blackmass/feed/dist"
 	"blackmass/feed/intake"
 	"blackmass/feed/leach"
@@ -347,61 +346,6 @@ func nearly(t *testing.T, what string, got, want, tol float64) {
 	if math.Abs(got-want) > tol {
 		t.Errorf("%s = %.6g, want %.6g ± %g", what, got, want, tol)
 	}
-}
-
-func TestReconcile(t *testing.T) {
-	r, _ := estimate(t, mixed, 1, 1000)
-	wt := map[string]float64{}
-	for el, a := range r.Elements {
-		wt[el] = a.WtPct.Mean
-	}
-	rc := assay.Reconcile(r.Elements, mustAssay(t, assayCSV(wt, 0.05)), 2)
-	for _, c := range rc.Comparisons {
-		if c.Flag {
-			t.Errorf("%s flagged against its own estimate: z=%.2f", c.Element, c.Z)
-		}
-	}
-	wt["Co"] *= 1.6
-	rc = assay.Reconcile(r.Elements, mustAssay(t, assayCSV(wt, 0.05)), 2)
-	for _, c := range rc.Comparisons {
-		if c.Element == "Co" && (!c.Flag || c.Z < 2 || !strings.Contains(c.Interpretation, "more cobalt")) {
-			t.Errorf("Co raised 60 %%: %+v", c)
-		}
-	}
-}
-
-func assayCSV(wt map[string]float64, relSigma float64) string {
-	var b strings.Builder
-	b.WriteString("element,value,unit,uncertainty\n")
-	for _, el := range []string{"Li", "Co", "Ni", "Mn", "Al", "Fe", "Cu", "P", "C", "F"} {
-		if v, ok := wt[el]; ok {
-			fmt.Fprintf(&b, "%s,%.6f,wt%%,%.6f\n", el, v, math.Max(v*relSigma, 0.005))
-		}
-	}
-	return b.String()
-}
-func mustAssay(t *testing.T, s string) *assay.Assay {
-	t.Helper()
-	a, err := intake.ReadAssay(strings.NewReader(s), "assay.csv")
-	if err != nil {
-		t.Fatal(err)
-	}
-	return a
-}
-
-// composition returns wt% by element of a black mass made of the given formulas (mass fractions).
-func composition(parts map[string]float64) map[string]float64 {
-	es := cathode.DefaultElements()
-	out := map[string]float64{}
-	for formula, w := range parts {
-		f, _ := cathode.ParseFormula(formula)
-		for _, t := range f.MassFractions(es) {
-			out[t.Symbol] += 100 * w * t.Amount
-		}
-	}
-	delete(out, "O")
-	delete(out, "H")
-	return out
 }
 
 // The lithium carbonate equivalent of 1 kg Li is M(Li2CO3)/(2·M(Li)) = 5.323 (the trade's LCE

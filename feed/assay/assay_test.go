@@ -9,6 +9,7 @@ import (
 
 	"blackmass/cathode"
 	"blackmass/feed/assay"
+	"blackmass/feed/dist"
 	"blackmass/feed/intake"
 	"blackmass/feed/leach"
 )
@@ -192,5 +193,29 @@ func nearly(t *testing.T, what string, got, want, tol float64) {
 	t.Helper()
 	if math.Abs(got-want) > tol {
 		t.Errorf("%s = %.6g, want %.6g ± %g", what, got, want, tol)
+	}
+}
+
+// An assay equal to the estimate agrees within the threshold; Co raised by 60 % is flagged with
+// its reading. The estimate is a synthetic distribution (P10/P90 at ±1.28 σ of a normal).
+func TestReconcile(t *testing.T) {
+	est := map[string]dist.Amount{}
+	wt := map[string]float64{"Co": 8, "Ni": 14, "Li": 3.8, "Mn": 4.3, "C": 35}
+	for el, v := range wt {
+		sd := 0.05 * v
+		est[el] = dist.Amount{WtPct: dist.Stat{P10: v - 1.2816*sd, P50: v, P90: v + 1.2816*sd, Mean: v}}
+	}
+	rc := assay.Reconcile(est, mustAssay(t, assayCSV(wt, 0.05)), 2)
+	for _, c := range rc.Comparisons {
+		if c.Flag {
+			t.Errorf("%s flagged against its own estimate: z=%.2f", c.Element, c.Z)
+		}
+	}
+	wt["Co"] *= 1.6
+	rc = assay.Reconcile(est, mustAssay(t, assayCSV(wt, 0.05)), 2)
+	for _, c := range rc.Comparisons {
+		if c.Element == "Co" && (!c.Flag || c.Z < 2 || !strings.Contains(c.Interpretation, "more cobalt")) {
+			t.Errorf("Co raised 60 %%: %+v", c)
+		}
 	}
 }
