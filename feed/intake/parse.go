@@ -179,37 +179,40 @@ type lineParser struct {
 	chem         map[labelKey]*resolved
 	formats      map[string]feed.Format
 	layouts      map[string]int
-	apps         map[string]string        // application text -> key
-	quantities   map[quantityKey]quantity // quantity text -> value, so repeated values parse once
+	apps         map[string]string               // application text -> key
+	quantities   [numColumns]map[string]quantity // per column, quantity text -> value, so repeated values parse once
 }
 
-// quantityKey is a quantity as typed with the column it came from (the header's unit differs).
-type quantityKey struct {
-	col  Column
-	text string
-}
-
-// quantity is a parsed quantity, or the error it gave.
+// quantity is a parsed quantity, or the error it gave, with its text in the base unit.
 type quantity struct {
-	v    float64
-	unit string
-	err  error
+	v     float64
+	unit  string
+	err   error
+	given string // "4.4 Ah": the value in its base unit, as the report shows it
 }
 
 // maxCachedQuantities bounds the cache of parsed quantities.
 const maxCachedQuantities = 4096
 
 // quantity parses s from column c with the column's units, remembering the result.
-func (p *lineParser) quantity(c Column, s string, u UnitTable, defaultUnit string) (float64, string, error) {
-	k := quantityKey{c, s}
-	if q, ok := p.quantities[k]; ok {
-		return q.v, q.unit, q.err
+func (p *lineParser) quantity(c Column, s string, u UnitTable, defaultUnit string) quantity {
+	m := p.quantities[c]
+	if m == nil {
+		m = map[string]quantity{}
+		p.quantities[c] = m
+	}
+	if q, ok := m[s]; ok {
+		return q
 	}
 	v, unit, err := Quantity(s, u, defaultUnit, p.decimalComma)
-	if len(p.quantities) < maxCachedQuantities {
-		p.quantities[k] = quantity{v, unit, err}
+	q := quantity{v: v, unit: unit, err: err}
+	if err == nil {
+		q.given = strconv.FormatFloat(v, 'g', 6, 64) + " " + unit
 	}
-	return v, unit, err
+	if len(m) < maxCachedQuantities {
+		m[s] = q
+	}
+	return q
 }
 
 // resolved is a label's chemistry and whether the label was recognised.
@@ -220,8 +223,7 @@ type resolved struct {
 
 func newLineParser(name string, opt Options, decimalComma bool, hdr *header) *lineParser {
 	return &lineParser{name: name, opt: opt, decimalComma: decimalComma, hdr: hdr,
-		chem: map[labelKey]*resolved{}, formats: map[string]feed.Format{}, layouts: map[string]int{}, apps: map[string]string{},
-		quantities: map[quantityKey]quantity{}}
+		chem: map[labelKey]*resolved{}, formats: map[string]feed.Format{}, layouts: map[string]int{}, apps: map[string]string{}}
 }
 
 func (p *lineParser) get(rec []string, c Column) string {
@@ -250,8 +252,11 @@ func (p *lineParser) parse(rec []string, line int) (feed.Line, error) {
 			return feed.Line{}, &Error{File: p.name, Line: line, Reason: fmt.Sprintf("a value in column %d, which has no header", i+1)}
 		}
 	}
-	for _, c := range []Column{ColID, ColDescription, ColChemistry, ColNotes, ColApplication} {
+	for _, c := range textColumns {
 		v := p.get(rec, c)
+		if plainASCII(v) && len(v) <= MaxTextBytes {
+			continue // the common case, checked in one pass
+		}
 		if !utf8.ValidString(v) {
 			return feed.Line{}, p.fail(line, c, "", "not valid UTF-8")
 		}
@@ -290,6 +295,19 @@ func (p *lineParser) parse(rec []string, line int) (feed.Line, error) {
 func (p *lineParser) onlyIgnored(rec []string) bool {
 	for i, v := range rec {
 		if strings.TrimSpace(v) != "" && !p.hdr.named[i] {
+			return false
+		}
+	}
+	return true
+}
+
+// textColumns are the columns kept as typed.
+var textColumns = []Column{ColID, ColDescription, ColChemistry, ColNotes, ColApplication}
+
+// plainASCII reports whether s is printable ASCII (tab allowed): nothing to check further.
+func plainASCII(s string) bool {
+	for i := 0; i < len(s); i++ {
+		if b := s[i]; b >= 0x7f || (b < 0x20 && b != '\t') {
 			return false
 		}
 	}
@@ -372,6 +390,10 @@ func (p *lineParser) chemistry(l *feed.Line, rec []string, line int) error {
 
 func (p *lineParser) count(l *feed.Line, rec []string, line int) error {
 	cs := p.get(rec, ColCount)
+	if n, err := strconv.Atoi(cs); err == nil && n >= 1 && n <= maxCount && cs[0] != '+' {
+		l.Count = n // the common case: a plain whole number
+		return nil
+	}
 	v, err := ParseNumber(cs, p.decimalComma)
 	if err != nil || v != math.Trunc(v) || v < 1 || v > maxCount {
 		return p.fail(line, ColCount, cs, fmt.Sprintf("want a whole number from 1 to %d", maxCount))
@@ -427,10 +449,11 @@ func (p *lineParser) mass(l *feed.Line, rec []string, line int) error {
 	if ms == "" {
 		return nil
 	}
-	v, _, err := p.quantity(col, ms, MassUnits, p.hdr.unit[col])
-	if err != nil {
-		return p.fail(line, col, ms, err.Error())
+	q := p.quantity(col, ms, MassUnits, p.hdr.unit[col])
+	if q.err != nil {
+		return p.fail(line, col, ms, q.err.Error())
 	}
+	v := q.v
 	if col == ColTotalMass {
 		v /= float64(l.Count)
 	}
@@ -449,10 +472,11 @@ func (p *lineParser) capacity(l *feed.Line, rec []string, line int) error {
 		}
 		return p.fail(line, ColCapacity, "", "give a capacity, or a mass for a line known by weight only")
 	}
-	val, unit, err := p.quantity(ColCapacity, l.CapacityText, CapacityUnits, p.hdr.unit[ColCapacity])
-	if err != nil {
-		return p.fail(line, ColCapacity, l.CapacityText, err.Error())
+	q := p.quantity(ColCapacity, l.CapacityText, CapacityUnits, p.hdr.unit[ColCapacity])
+	if q.err != nil {
+		return p.fail(line, ColCapacity, l.CapacityText, q.err.Error())
 	}
+	val, unit := q.v, q.unit
 	basis := strings.ToLower(p.get(rec, ColBasis))
 	switch basis {
 	case "":
@@ -467,7 +491,7 @@ func (p *lineParser) capacity(l *feed.Line, rec []string, line int) error {
 	default:
 		return p.fail(line, ColBasis, basis, "want cell or pack")
 	}
-	l.CapacityBasis, l.CapacityGiven = basis, strconv.FormatFloat(val, 'g', 6, 64)+" "+unit
+	l.CapacityBasis, l.CapacityGiven = basis, q.given
 	mult := 1.0
 	if basis == "cell" && l.Format.IsAssembly() {
 		if l.CellsPerItem == 0 {
@@ -480,8 +504,9 @@ func (p *lineParser) capacity(l *feed.Line, rec []string, line int) error {
 		l.EnergyWh = val * mult
 	case "Ah":
 		if vs := p.get(rec, ColVoltage); vs != "" {
-			v, _, err := p.quantity(ColVoltage, vs, VoltUnits, "V")
-			if err != nil || v < minVoltageV || v > maxVoltageV {
+			vq := p.quantity(ColVoltage, vs, VoltUnits, "V")
+			v := vq.v
+			if vq.err != nil || v < minVoltageV || v > maxVoltageV {
 				return p.fail(line, ColVoltage, vs, fmt.Sprintf("want a nominal voltage from %g to %g V", float64(minVoltageV), float64(maxVoltageV)))
 			}
 			if basis == "cell" && v > maxCellV {
