@@ -319,16 +319,23 @@ func writeLeachText(w io.Writer, r *feed.Report) {
 		if cur == "" {
 			cur = "(no currency given)"
 		}
-		fmt.Fprintf(w, "reagent cost P10/P50/P90: %s / %s / %s %s\n", money(l.TotalCost.P10), money(l.TotalCost.P50), money(l.TotalCost.P90), cur)
+		fmt.Fprintf(w, "reagent cost P10/P50/P90: %s / %s / %s %s", money(l.TotalCost.P10), money(l.TotalCost.P50), money(l.TotalCost.P90), cur)
+		if r.Order != nil && len(r.Order.Unpriced) > 0 {
+			fmt.Fprintf(w, " (without %s: no price given)", strings.Join(r.Order.Unpriced, ", "))
+		}
+		fmt.Fprintln(w)
 	}
 	tw = tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
-	fmt.Fprintln(tw, "gas\tP50 mol\tP50 m³ STP\tP90 m³ STP\t")
+	fmt.Fprintln(tw, "gas (0 °C, 1 atm)\tP50 mol\tP50 volume\tP90 volume\t")
 	for _, name := range slices.Sorted(maps.Keys(l.Gases)) {
 		g := l.Gases[name]
-		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t\n", name, num(g.Mol.P50), num(g.M3STP.P50), num(g.M3STP.P90))
+		if g.Mol.P90 <= 0 {
+			continue
+		}
+		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t\n", name, num(g.Mol.P50), fmtVolume(1000*g.M3STP.P50), fmtVolume(1000*g.M3STP.P90))
 	}
 	tw.Flush()
-	fmt.Fprintf(w, "liquor: %s L (P50), free acid %.2f mol/L (P50), %s %.2f mol/L\n", num(l.Liquor.VolumeL.P50), l.FreeAcidMolPerL.P50, l.Liquor.Anion, l.Liquor.AnionMolPerL.P50)
+	fmt.Fprintf(w, "liquor: %s (P50), free acid %.2f mol/L (P50), %s %.2f mol/L\n", fmtVolume(l.Liquor.VolumeL.P50), l.FreeAcidMolPerL.P50, l.Liquor.Anion, l.Liquor.AnionMolPerL.P50)
 	tw = tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
 	fmt.Fprintln(tw, "element\tP10 g/L\tP50 g/L\tP90 g/L\tP50 mol/L\textraction P50\t")
 	order := append(slices.Clone(r.ElementOrder), "Na")
