@@ -43,7 +43,7 @@ type Entry struct {
 }
 
 // MolarMassGPerMol returns the molar mass of the material.
-func (e *Entry) MolarMassGPerMol() float64 { return e.Formula.MolarMass(DefaultElements()) }
+func (e *Entry) MolarMassGPerMol() float64 { return e.Formula.MolarMass(e.Formula.Elements()) }
 
 // TheoreticalCapacityMAhPerG returns n·F/(3.6·M) with n the lithium per formula unit.
 func (e *Entry) TheoreticalCapacityMAhPerG() float64 {
@@ -53,6 +53,7 @@ func (e *Entry) TheoreticalCapacityMAhPerG() float64 {
 // Catalogue holds the known chemistries, the family defaults for formulas typed directly, and
 // the prior mix used for unknown cells.
 type Catalogue struct {
+	es            *Elements // the atomic weights the catalogue's formulas are read with
 	entries       []*Entry
 	byName        map[string]*Entry // normalised key or alias -> entry
 	families      map[string]*Entry // structural family -> defaults (Formula empty)
@@ -67,7 +68,11 @@ type Catalogue struct {
 // LoadCatalogue reads chemistries.csv, families.csv, applications.csv, prior.csv and
 // label_families.csv from fsys.
 func LoadCatalogue(fsys fs.FS) (*Catalogue, error) {
-	c := &Catalogue{byName: map[string]*Entry{}, families: map[string]*Entry{}}
+	es, err := LoadElements(fsys)
+	if err != nil {
+		return nil, err
+	}
+	c := &Catalogue{es: es, byName: map[string]*Entry{}, families: map[string]*Entry{}}
 	b, err := fs.ReadFile(fsys, "chemistries.csv")
 	if err != nil {
 		return nil, err
@@ -138,7 +143,7 @@ func (c *Catalogue) Add(r io.Reader, name string) error {
 		if key == "" {
 			return row.Errorf("empty key")
 		}
-		f, err := ParseFormula(row.Str("formula"))
+		f, err := c.elements().ParseFormula(row.Str("formula"))
 		if err != nil {
 			return row.Errorf("%v", err)
 		}
@@ -194,6 +199,14 @@ func (c *Catalogue) Add(r io.Reader, name string) error {
 		}
 	}
 	return nil
+}
+
+// elements returns the catalogue's atomic-weight table.
+func (c *Catalogue) elements() *Elements {
+	if c.es != nil {
+		return c.es
+	}
+	return DefaultElements()
 }
 
 // Entries returns the catalogue entries in file order.
@@ -277,7 +290,7 @@ func DefaultCatalogue() (*Catalogue, error) {
 	if err != nil {
 		return nil, err
 	}
-	cp := &Catalogue{byName: map[string]*Entry{}, families: c.families, prior: map[string][]Component{}, priorSrc: c.priorSrc,
+	cp := &Catalogue{es: c.es, byName: map[string]*Entry{}, families: c.families, prior: map[string][]Component{}, priorSrc: c.priorSrc,
 		apps: c.apps, appOrder: c.appOrder, labelFamilies: c.labelFamilies, familyOrder: c.familyOrder}
 	for k, v := range c.prior {
 		cp.prior[k] = append([]Component(nil), v...)

@@ -2,9 +2,12 @@ package cathode_test
 
 import (
 	"errors"
+	"io/fs"
 	"math"
+	"regexp"
 	"strings"
 	"testing"
+	"testing/fstest"
 
 	"blackmass/cathode"
 	"blackmass/data"
@@ -175,5 +178,39 @@ func TestParseFormulaForms(t *testing.T) {
 	f := mustFormula(t, "LiNi0.8Mn0.1Co0.1O2")
 	if got := f.Canonical(); got != "LiNi0.8Mn0.1Co0.1O2" {
 		t.Errorf("Canonical = %q", got)
+	}
+}
+
+// The atomic weights travel with what was read with them: a catalogue loaded from tables of its
+// own computes molar masses and leach stoichiometry from those tables, not from the embedded
+// ones.
+func TestOwnAtomicWeights(t *testing.T) {
+	own := fstest.MapFS{}
+	if err := fs.WalkDir(data.FS, ".", func(path string, d fs.DirEntry, err error) error {
+		if err != nil || d.IsDir() {
+			return err
+		}
+		b, err := fs.ReadFile(data.FS, path)
+		own[path] = &fstest.MapFile{Data: b}
+		return err
+	}); err != nil {
+		t.Fatal(err)
+	}
+	aw := regexp.MustCompile(`(?m)^(Co,cobalt,27,)58\.933194`).ReplaceAllString(string(own["atomic_weights.csv"].Data), "${1}60")
+	own["atomic_weights.csv"] = &fstest.MapFile{Data: []byte(aw)}
+	cat, err := cathode.LoadCatalogue(own)
+	if err != nil {
+		t.Fatal(err)
+	}
+	e := cat.Lookup("LCO")
+	if m := e.MolarMassGPerMol(); math.Abs(m-(97.871-58.933194+60)) > 0.01 {
+		t.Errorf("LiCoO2 with Co = 60: molar mass %v", m)
+	}
+	rx, err := cathode.Dissolve(e.Species, cathode.SulfuricPeroxide, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if perKg := rx.PerKg(1); math.Abs(perKg-1000/e.MolarMassGPerMol()) > 1e-9 {
+		t.Errorf("per kg uses another table: %v", perKg)
 	}
 }

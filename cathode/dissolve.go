@@ -145,7 +145,7 @@ func Dissolve(sp Species, route Route, x Extraction) (Reaction, error) {
 		}
 		return rx, nil
 	}
-	es := DefaultElements()
+	es := sp.Formula.Elements() // potentials from the table the formula was read with
 	frac := func(sym string) (float64, error) {
 		if x == nil {
 			return 1, nil
@@ -315,5 +315,5 @@ func (rx Reaction) LiquorCharge() float64 {
 
 // PerKg converts per-mol amounts to per-kg-of-species: returns mol per kg for a per-mol amount.
 func (rx Reaction) PerKg(molPerMol float64) float64 {
-	return molPerMol * 1000 / rx.Species.Formula.MolarMass(DefaultElements())
+	return molPerMol * 1000 / rx.Species.Formula.MolarMass(rx.Species.Formula.Elements())
 }

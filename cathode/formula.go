@@ -46,6 +46,15 @@ type Term struct {
 type Formula struct {
 	text  string
 	terms []Term
+	es    *Elements // the table the formula was parsed with (nil: the default)
+}
+
+// Elements returns the atomic-weight table the formula was parsed with.
+func (f Formula) Elements() *Elements {
+	if f.es != nil {
+		return f.es
+	}
+	return DefaultElements()
 }
 
 // maxFormulaLen bounds the input so that parsing stays cheap whatever a user types.
@@ -63,7 +72,7 @@ func (es *Elements) ParseFormula(s string) (Formula, error) {
 	if err := p.parse(); err != nil {
 		return Formula{}, err
 	}
-	f := Formula{text: strings.TrimSpace(s)}
+	f := Formula{text: strings.TrimSpace(s), es: es}
 	for _, sym := range p.order {
 		f.terms = append(f.terms, Term{sym, p.acc[sym]})
 	}

@@ -292,7 +292,7 @@ func (c *Catalogue) material(label string) (*Entry, Kind, []string, error) {
 	if e, kind, notes, ok, err := c.ratio(label); ok || err != nil {
 		return e, kind, notes, err
 	}
-	if f, err := ParseFormula(label); err == nil {
+	if f, err := c.elements().ParseFormula(label); err == nil {
 		return c.fromFormula(label, f)
 	}
 	return nil, "", nil, fmt.Errorf("%w %q; nearest known: %s", ErrUnknownLabel, label, strings.Join(c.nearest(label, 3), ", "))
@@ -343,7 +343,7 @@ func (c *Catalogue) ratio(label string) (*Entry, Kind, []string, bool, error) {
 			text += t.Symbol + strconv.FormatFloat(t.Amount, 'g', 6, 64)
 		}
 	}
-	f, err := ParseFormula(text + "O2")
+	f, err := c.elements().ParseFormula(text + "O2")
 	if err != nil {
 		return nil, "", nil, true, err
 	}

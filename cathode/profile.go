@@ -33,7 +33,7 @@ type Profile struct {
 
 // Describe computes the Profile of e on every route.
 func Describe(e *Entry) (Profile, error) {
-	es := DefaultElements()
+	es := e.Formula.Elements()
 	p := Profile{Entry: e, MolarMassGPerMol: e.MolarMassGPerMol(), MassFractions: e.Formula.MassFractions(es),
 		TheoreticalCapacityMAhPerG: e.TheoreticalCapacityMAhPerG(), TransitionMetalState: math.NaN()}
 	if s, ok := e.Species.TransitionMetalState(); ok {

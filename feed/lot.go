@@ -361,9 +361,8 @@ func newCompounds() *compounds {
 func (c *compounds) n() int { return len(c.names) }
 
 func (c *compounds) add(name string, f cathode.Formula, e *cathode.Entry) int {
-	es := cathode.DefaultElements()
 	fr := make([]float64, len(c.elements))
-	for _, t := range f.MassFractions(es) {
+	for _, t := range f.MassFractions(f.Elements()) {
 		i, ok := c.elIdx[t.Symbol]
 		if !ok {
 			i = len(c.elements)

@@ -405,7 +405,7 @@ func newLeachPlanner(s Input, opt Options, lt *Tables) (*leachPlanner, error) {
 		if p.species[c], err = cathode.NewSpecies(f); err != nil {
 			return nil, err
 		}
-		p.molarG[c] = f.MolarMass(cathode.DefaultElements())
+		p.molarG[c] = f.MolarMass(f.Elements())
 	}
 	for _, x := range []*[]float64{&p.vol, &p.acidDose, &p.redDose, &p.acidPlan, &p.redPlan, &p.acidFull, &p.redFull, &p.water} {
 		*x = make([]float64, p.n)

@@ -58,7 +58,7 @@ func LoadReductants(tables interface {
 		if err != nil {
 			return nil, r.Errorf("%v", err)
 		}
-		rd.MolarMassGMol = f.MolarMass(cathode.DefaultElements())
+		rd.MolarMassGMol = f.MolarMass(f.Elements())
 		out = append(out, rd)
 	}
 	return out, nil
