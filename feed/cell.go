@@ -36,7 +36,10 @@ type breakdown struct {
 func model(energyWh, chargeAh float64, mx mix, f fractions, g globals) breakdown {
 	qAhG := mx.capMAhG / 1000
 	var b breakdown
-	b.cam = energyWh/(mx.voltV*qAhG) + chargeAh/qAhG
+	// The nameplate is what the full cell delivers: a share (utilisation) of what its cathode
+	// holds, the rest lost to the anode's first-cycle film or held back by the rating.
+	b.cam = (energyWh/mx.voltV + chargeAh) / (qAhG * g.utilisation)
+	// The anode is sized against the cathode's whole first-charge capacity.
 	capAh := b.cam * qAhG
 	b.graphite = capAh * g.np / (g.qGraphiteMAhG / 1000)
 	inactive := f.al + f.cu + f.bc + f.el + f.sep + f.casing

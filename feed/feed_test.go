@@ -79,40 +79,6 @@ func TestElementsSumToBlackMass(t *testing.T) {
 	}
 }
 
-// Cell-level metal intensities (cathode active material of 1 kWh nameplate, most likely values)
-// fall inside published ranges. Ranges from memory of battery-material intensity studies
-// (battery-material intensity studies, from memory: LCO ≈0.96 kg Co/kWh, NCA ≈0.13 kg Co and
-// 0.67 kg Ni per kWh).
-func TestCellMetalIntensity(t *testing.T) {
-	cat, _ := cathode.DefaultCatalogue()
-	for _, c := range []struct {
-		chem, format, el string
-		lo, hi           float64 // kg per kWh
-	}{
-		{"NMC622", "module", "Co", 0.15, 0.25},
-		{"NMC622", "module", "Ni", 0.50, 0.65},
-		{"NMC811", "pouch", "Co", 0.06, 0.12},
-		{"LFP", "prismatic", "Li", 0.08, 0.11},
-		{"LCO", "pouch", "Co", 0.90, 1.20},
-		{"NCA", "cylindrical", "Co", 0.11, 0.15},
-		{"NCA", "cylindrical", "Ni", 0.60, 0.75},
-	} {
-		r, _ := estimate(t, fmt.Sprintf("chemistry,format,capacity,count\n%s,%s,1 kWh,1\n", c.chem, c.format), 1, 2000)
-		cam := r.Groups[0].CathodeKg.P50
-		e := cat.Lookup(c.chem)
-		var frac float64
-		for _, tm := range e.Formula.MassFractions(cathode.DefaultElements()) {
-			if tm.Symbol == c.el {
-				frac = tm.Amount
-			}
-		}
-		got := cam * frac
-		if got < c.lo || got > c.hi {
-			t.Errorf("%s: %.3f kg %s per kWh, want %.2f–%.2f", c.chem, got, c.el, c.lo, c.hi)
-		}
-	}
-}
-
 // Doubling every count doubles every mass exactly, for lines of stated chemistry. (Lines of
 // unknown chemistry are left out: their items each hold one chemistry, so twice the items
 // scatter less around the prior, by design.)

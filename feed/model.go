@@ -26,7 +26,8 @@ type Model struct {
 }
 
 var globalNames = []string{"np_ratio", "graphite_capacity", "lipf6_in_electrolyte", "binder_share", "recovery_cathode",
-	"recovery_graphite", "recovery_binder_carbon", "carryover_al_foil", "carryover_cu_foil", "carryover_casing", "residue_lipf6", "carryover_polymer"}
+	"recovery_graphite", "recovery_binder_carbon", "carryover_al_foil", "carryover_cu_foil", "carryover_casing", "residue_lipf6", "carryover_polymer",
+	"cathode_utilisation"}
 
 var formatFractionNames = []string{"al_foil", "cu_foil", "binder_carbon", "electrolyte", "separator"}
 
@@ -111,6 +112,9 @@ const (
 // globals are the "all" parameters at one draw.
 type globals struct {
 	np, qGraphiteMAhG, lipf6, binderShare, recCAM, recGraphite, recBC, carryAl, carryCu, carryCasing, residueLiPF6, carryPolymer float64
+	// utilisation is the share of the cathode's half-cell capacity the cell delivers at its
+	// nameplate (first-cycle lithium loss to the anode, rating margin).
+	utilisation float64
 }
 
 // fractions are one format's cell-mass fractions at one draw.
@@ -137,7 +141,7 @@ func newParamSet(m *Model, seed uint64, samples int) *paramSet {
 	}
 	ps.globals = make([]globals, n)
 	for s := range n {
-		ps.globals[s] = globals{g[0][s], g[1][s], g[2][s], g[3][s], g[4][s], g[5][s], g[6][s], g[7][s], g[8][s], g[9][s], g[10][s], g[11][s]}
+		ps.globals[s] = globals{g[0][s], g[1][s], g[2][s], g[3][s], g[4][s], g[5][s], g[6][s], g[7][s], g[8][s], g[9][s], g[10][s], g[11][s], g[12][s]}
 	}
 	for _, f := range Formats() {
 		sc := f.String()

@@ -126,6 +126,7 @@ func InferMix(a *Assay, candidates []*cathode.Entry, draws int, seed uint64) (*M
 	if draws < 10 {
 		return nil, fmt.Errorf("infer: at least 10 bootstrap draws")
 	}
+	candidates, merged := distinctCompositions(candidates)
 	cols := mixColumns(candidates)
 	var rows []Value
 	for _, v := range a.Values {
@@ -171,12 +172,30 @@ func InferMix(a *Assay, candidates []*cathode.Entry, draws int, seed uint64) (*M
 		}
 		fit.Residuals = append(fit.Residuals, Residual{Element: v.Element, WtPct: dist.Sig(v.WtPct - f), Sigma: dist.Sig((v.WtPct - f) / ws.sigma[i])})
 	}
-	fit.Notes = []string{
+	fit.Notes = append(merged, []string{
 		"weighted non-negative least squares (Lawson–Hanson) over the candidates' element fractions; weights 1/σ of the assay",
 		"candidates whose element fractions are near combinations of others (e.g. NMC grades) share the signal: read their ranges, not only the best fit",
 		"the explained mass fraction leaves out what the candidates lack (moisture, plastics, oxygen of other species)",
-	}
+	}...)
 	return fit, nil
+}
+
+// distinctCompositions keeps the first of candidates that share one composition (cells of two
+// eras of the same cathode): an assay cannot tell them apart. It returns a note per merge.
+func distinctCompositions(candidates []*cathode.Entry) ([]*cathode.Entry, []string) {
+	var out []*cathode.Entry
+	var notes []string
+	first := map[string]string{}
+	for _, c := range candidates {
+		k := c.Formula.Canonical()
+		if kept, ok := first[k]; ok {
+			notes = append(notes, fmt.Sprintf("%s has the composition of %s (%s); an assay cannot tell them apart, so it is fitted as %s", c.Key, kept, k, kept))
+			continue
+		}
+		first[k] = c.Key
+		out = append(out, c)
+	}
+	return out, notes
 }
 
 // mixColumn is one column of the fit: a candidate cathode, or another black-mass component.
