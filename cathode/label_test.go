@@ -38,6 +38,10 @@ func TestParseLabel(t *testing.T) {
 		{"NMC 234", "", "", false}, // digits that read as no ratio at all
 		{"NCA", "NCA", cathode.KindCatalogued, false},
 		{"lco", "LCO", cathode.KindCatalogued, false},
+		{"LCO 4.2 V", "LCO-4.2V", cathode.KindCatalogued, false},
+		{"high-voltage LCO", "LCO-HV", cathode.KindCatalogued, false},
+		{"LCO (4.4V)", "LCO-HV", cathode.KindCatalogued, false},
+		{"LiCoO2", "LCO", cathode.KindCatalogued, false}, // a formula alone says no era
 		{"LiFePO4", "LFP", cathode.KindCatalogued, false},
 		{"LiMn2O4", "LMO", cathode.KindCatalogued, false},
 		{"LNMO", "LNMO", cathode.KindCatalogued, false},
