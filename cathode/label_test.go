@@ -42,6 +42,9 @@ func TestParseLabel(t *testing.T) {
 		{"high-voltage LCO", "LCO-HV", cathode.KindCatalogued, false},
 		{"LCO (4.4V)", "LCO-HV", cathode.KindCatalogued, false},
 		{"LiCoO2", "LCO", cathode.KindCatalogued, false}, // a formula alone says no era
+		{"LFP (current)", "LFP-current", cathode.KindCatalogued, false},
+		{"older LFP", "LFP-early", cathode.KindCatalogued, false},
+		{"LiFePO4", "LFP", cathode.KindCatalogued, false},
 		{"LiFePO4", "LFP", cathode.KindCatalogued, false},
 		{"LiMn2O4", "LMO", cathode.KindCatalogued, false},
 		{"LNMO", "LNMO", cathode.KindCatalogued, false},

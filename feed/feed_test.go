@@ -412,3 +412,21 @@ func TestOwnTables(t *testing.T) {
 		t.Errorf("Co extraction %v with a table capping it at 0.51", x)
 	}
 }
+
+// Cells of an older era hold more cathode per kWh than current ones of the same cathode: lower
+// voltage and capacity (derived: kg per kWh = 1 / (V × mAh/g)). The era-unknown label lies between.
+func TestEraChangesCathodePerKWh(t *testing.T) {
+	for _, c := range []struct{ older, unstated, current, format string }{
+		{"LCO-4.2V", "LCO", "LCO-HV", "pouch"},
+		{"LFP-early", "LFP", "LFP-current", "prismatic"},
+	} {
+		cam := func(label string) float64 {
+			r, _ := estimate(t, fmt.Sprintf("chemistry,format,capacity,count\n%s,%s,1 kWh,1\n", label, c.format), 1, 2000)
+			return r.Groups[0].CathodeKg.P50
+		}
+		o, u, n := cam(c.older), cam(c.unstated), cam(c.current)
+		if !(o > 1.1*n && u > n && u < o) {
+			t.Errorf("%s %.3f, %s %.3f, %s %.3f kg cathode per kWh: want older > unstated > current", c.older, o, c.unstated, u, c.current, n)
+		}
+	}
+}
