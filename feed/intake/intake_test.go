@@ -739,3 +739,48 @@ func FuzzSplitMatchesCSV(f *testing.F) {
 		}
 	})
 }
+
+// readString reads a CSV manifest from a string.
+func readString(t *testing.T, in string) ([]feed.Line, error) {
+	t.Helper()
+	var lines []feed.Line
+	_, err := intake.ReadCSV(strings.NewReader(in), "m.csv", intake.Options{Catalogue: catalogue(t)}, func(l feed.Line) error {
+		lines = append(lines, l)
+		return nil
+	})
+	return lines, err
+}
+
+// Lines alike but for their id are parsed once and reused: each reads exactly as it would alone,
+// with its own number and id, and an id that would be refused alone is refused on reuse too.
+func TestAlikeLinesReadAsAlone(t *testing.T) {
+	const hdr = "id,chemistry,format,capacity,count,mass,notes\n"
+	rows := []string{"A1,NMC811,pouch,3 Ah,2,45 g,from bay 4", "A2,NMC811,pouch,3 Ah,2,45 g,from bay 4", "B1,LFP,pack,960 Wh,1,9 kg,", "A3,NMC811,pouch,3 Ah,2,45 g,from bay 4", "A4,NMC811,pouch,3 Ah,2,46 g,from bay 4"}
+	all, err := readString(t, hdr+strings.Join(rows, "\n")+"\n")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(all) != len(rows) {
+		t.Fatalf("%d lines, want %d", len(all), len(rows))
+	}
+	for i, r := range rows {
+		alone, err := readString(t, hdr+r+"\n")
+		if err != nil {
+			t.Fatal(err)
+		}
+		want := alone[0]
+		want.Num = i + 2
+		got := all[i]
+		if got.Chemistry.Key != want.Chemistry.Key {
+			t.Errorf("line %d: chemistry %s, alone %s", i+2, got.Chemistry.Key, want.Chemistry.Key)
+		}
+		got.Chemistry, want.Chemistry = nil, nil
+		if got != want {
+			t.Errorf("line %d reads %+v, alone %+v", i+2, got, want)
+		}
+	}
+	_, err = readString(t, hdr+rows[0]+"\n"+strings.Replace(rows[1], "A2", "A\x072", 1)+"\n")
+	if err == nil || !strings.Contains(err.Error(), "control character") || !strings.Contains(err.Error(), ":3") {
+		t.Errorf("a control character in a reused line's id: %v", err)
+	}
+}

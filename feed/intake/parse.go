@@ -1,6 +1,7 @@
 package intake
 
 import (
+	"encoding/binary"
 	"errors"
 	"fmt"
 	"io"
@@ -126,7 +127,7 @@ func readRows(src rowSource, name string, opt Options, decimalComma bool, fn fun
 		if info.Lines >= MaxLines {
 			return info, &Error{File: name, Line: line, Reason: fmt.Sprintf("more than %d lines: split the manifest", MaxLines)}
 		}
-		l, err := p.parse(rec, line)
+		l, err := p.parseAlike(rec, line)
 		if err != nil {
 			return info, err
 		}
@@ -181,6 +182,8 @@ type lineParser struct {
 	layouts      map[string]int
 	apps         map[string]string               // application text -> key
 	quantities   [numColumns]map[string]quantity // per column, quantity text -> value, so repeated values parse once
+	alike        map[string]feed.Line            // parsed lines by their fields other than the id (parseAlike)
+	keyBuf       []byte
 }
 
 // quantity is a parsed quantity, or the error it gave, with its text in the base unit.
@@ -223,7 +226,8 @@ type resolved struct {
 
 func newLineParser(name string, opt Options, decimalComma bool, hdr *header) *lineParser {
 	return &lineParser{name: name, opt: opt, decimalComma: decimalComma, hdr: hdr,
-		chem: map[labelKey]*resolved{}, formats: map[string]feed.Format{}, layouts: map[string]int{}, apps: map[string]string{}}
+		chem: map[labelKey]*resolved{}, formats: map[string]feed.Format{}, layouts: map[string]int{}, apps: map[string]string{},
+		alike: map[string]feed.Line{}}
 }
 
 func (p *lineParser) get(rec []string, c Column) string {
@@ -253,19 +257,8 @@ func (p *lineParser) parse(rec []string, line int) (feed.Line, error) {
 		}
 	}
 	for _, c := range textColumns {
-		v := p.get(rec, c)
-		if plainASCII(v) && len(v) <= MaxTextBytes {
-			continue // the common case, checked in one pass
-		}
-		if !utf8.ValidString(v) {
-			return feed.Line{}, p.fail(line, c, "", "not valid UTF-8")
-		}
-		if len(v) > MaxTextBytes {
-			return feed.Line{}, p.fail(line, c, v, fmt.Sprintf("longer than %d bytes", MaxTextBytes))
-		}
-		if i := strings.IndexFunc(v, badControl); i >= 0 {
-			r, _ := utf8.DecodeRuneInString(v[i:])
-			return feed.Line{}, p.fail(line, c, v, fmt.Sprintf("holds a control character (U+%04X) that a workbook cannot keep", r))
+		if err := p.checkText(c, p.get(rec, c), line); err != nil {
+			return feed.Line{}, err
 		}
 	}
 	l := feed.Line{Num: line, ID: p.get(rec, ColID), Description: p.get(rec, ColDescription), Notes: p.get(rec, ColNotes)}
@@ -288,6 +281,59 @@ func (p *lineParser) parse(rec []string, line int) (feed.Line, error) {
 		return l, err
 	}
 	return l, nil
+}
+
+// checkText refuses text that is not UTF-8, too long, or holds a control character.
+func (p *lineParser) checkText(c Column, v string, line int) error {
+	if plainASCII(v) && len(v) <= MaxTextBytes {
+		return nil // the common case, checked in one pass
+	}
+	if !utf8.ValidString(v) {
+		return p.fail(line, c, "", "not valid UTF-8")
+	}
+	if len(v) > MaxTextBytes {
+		return p.fail(line, c, v, fmt.Sprintf("longer than %d bytes", MaxTextBytes))
+	}
+	if i := strings.IndexFunc(v, badControl); i >= 0 {
+		r, _ := utf8.DecodeRuneInString(v[i:])
+		return p.fail(line, c, v, fmt.Sprintf("holds a control character (U+%04X) that a workbook cannot keep", r))
+	}
+	return nil
+}
+
+// maxRememberedLines bounds the lines parseAlike remembers.
+const maxRememberedLines = 4096
+
+// parseAlike parses a record, or reuses the parse of an earlier record whose every field but the
+// id was the same: a manifest lists many alike items under their own ids, and everything a line
+// holds besides its number and id follows from those fields alone. Only lines that parsed are
+// remembered, so every error is found by parse itself.
+func (p *lineParser) parseAlike(rec []string, line int) (feed.Line, error) {
+	idPos := p.hdr.pos[ColID]
+	if idPos < 0 {
+		return p.parse(rec, line)
+	}
+	p.keyBuf = p.keyBuf[:0]
+	for i, f := range rec {
+		if i == idPos {
+			f = ""
+		}
+		p.keyBuf = binary.AppendUvarint(p.keyBuf, uint64(len(f)))
+		p.keyBuf = append(p.keyBuf, f...)
+	}
+	if l, ok := p.alike[string(p.keyBuf)]; ok {
+		id := p.get(rec, ColID)
+		if err := p.checkText(ColID, id, line); err != nil {
+			return feed.Line{}, err
+		}
+		l.Num, l.ID = line, id
+		return l, nil
+	}
+	l, err := p.parse(rec, line)
+	if err == nil && len(p.alike) < maxRememberedLines {
+		p.alike[string(p.keyBuf)] = l
+	}
+	return l, err
 }
 
 // onlyIgnored reports whether a row holds values in left-out columns only (a totals row of the
