@@ -199,6 +199,11 @@ func (c *Catalogue) parseBlend(label string) (Chemistry, bool, error) {
 		}
 		resolved[i] = ch
 	}
+	for _, w := range perPart {
+		if !(w > 0) || w > 1e6 {
+			return Chemistry{}, true, fmt.Errorf("blend %q: share %g %% must be a positive number: %w", label, w, ErrUnknownLabel)
+		}
+	}
 	switch {
 	case len(perPart) > 0 && len(perPart) != len(parts):
 		return Chemistry{}, true, fmt.Errorf("blend %q: give a share for every component or for none: %w", label, ErrUnknownLabel)

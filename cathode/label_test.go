@@ -36,6 +36,8 @@ func TestParseLabel(t *testing.T) {
 		{"NCM900505", "LiNi0.9Mn0.05Co0.05O2", cathode.KindFormula, true},
 		{"(NMC 1/1/1)", "", "", false},
 		{"NMC 234", "", "", false}, // digits that read as no ratio at all
+		{"0% LCO & 100% NMC811", "", "", false}, // a part of no share is no part (found by fuzzing: NaN shares)
+		{"0%LCO&NMC0%", "", "", false},
 		{"NCA", "NCA", cathode.KindCatalogued, false},
 		{"lco", "LCO", cathode.KindCatalogued, false},
 		{"LCO 4.2 V", "LCO-4.2V", cathode.KindCatalogued, false},
