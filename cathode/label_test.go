@@ -35,7 +35,7 @@ func TestParseLabel(t *testing.T) {
 		{"NMC 90:5:5", "LiNi0.9Mn0.05Co0.05O2", cathode.KindFormula, true},
 		{"NCM900505", "LiNi0.9Mn0.05Co0.05O2", cathode.KindFormula, true},
 		{"(NMC 1/1/1)", "", "", false},
-		{"NMC 234", "", "", false}, // digits that read as no ratio at all
+		{"NMC 234", "", "", false},              // digits that read as no ratio at all
 		{"0% LCO & 100% NMC811", "", "", false}, // a part of no share is no part (found by fuzzing: NaN shares)
 		{"0%LCO&NMC0%", "", "", false},
 		{"NCA", "NCA", cathode.KindCatalogued, false},
