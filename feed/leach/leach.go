@@ -159,15 +159,31 @@ type Tables struct {
 	salts      []salt
 	extraction map[cathode.Route]map[string]cathode.Range
 	sources    map[string]string // "route/element" -> source
+	// elements are the atomic weights and potentials read from the same files.
+	elements *cathode.Elements
 }
 
 // DefaultTables returns the embedded tables (read once).
 var DefaultTables = sync.OnceValues(func() (*Tables, error) { return LoadTables(data.FS) })
 
+// molarMassG is the molar mass (g/mol) of a formula this package names (an acid, caustic), with
+// the tables' atomic weights. Those formulas are constants, so an error is a programming error.
+func (lt *Tables) molarMassG(formula string) float64 {
+	f, err := lt.elements.ParseFormula(formula)
+	if err != nil {
+		panic("leach: " + formula + ": " + err.Error())
+	}
+	return f.MolarMass(lt.elements)
+}
+
 // LoadTables reads reagents.csv, solubility.csv, extraction.csv, reductants.csv and
 // peroxide_loss.csv from fsys.
 func LoadTables(fsys fs.FS) (*Tables, error) {
-	lt := &Tables{density: reagentTable{}, extraction: map[cathode.Route]map[string]cathode.Range{}, sources: map[string]string{}}
+	es, err := cathode.LoadElements(fsys)
+	if err != nil {
+		return nil, err
+	}
+	lt := &Tables{density: reagentTable{}, extraction: map[cathode.Route]map[string]cathode.Range{}, sources: map[string]string{}, elements: es}
 	t, err := data.ReadTable(fsys, "reagents.csv")
 	if err != nil {
 		return nil, err
@@ -219,7 +235,7 @@ func LoadTables(fsys fs.FS) (*Tables, error) {
 		lt.extraction[route][r.Str("element")] = rg
 		lt.sources[route.String()+"/"+r.Str("element")] = r.Str("source")
 	}
-	if lt.reductants, err = LoadReductants(fsTables{fsys}); err != nil {
+	if lt.reductants, err = LoadReductants(fsTables{fsys}, es); err != nil {
 		return nil, err
 	}
 	pt, err := data.ReadTable(fsys, "peroxide_loss.csv")
@@ -370,7 +386,7 @@ func newLeachPlanner(s Input, opt Options, lt *Tables) (*leachPlanner, error) {
 		return nil, fmt.Errorf("leach: %d formulas for %d mass columns, or no parameter draws", len(s.Formulas), len(s.Kg))
 	}
 	p := &leachPlanner{s: s, opt: opt, lt: lt, route: opt.Route, n: len(s.BlackMassKg), ext: map[string][]float64{}}
-	p.acidM = cathode.MolarMassOf(p.route.Acid())
+	p.acidM = lt.molarMassG(p.route.Acid())
 	var err error
 	if p.acidRho, err = lt.Density(p.route.Acid(), opt.AcidWtPct); err != nil {
 		return nil, err
@@ -398,7 +414,7 @@ func newLeachPlanner(s Input, opt Options, lt *Tables) (*leachPlanner, error) {
 	p.species = make([]cathode.Species, len(s.Kg))
 	p.molarG = make([]float64, len(s.Kg))
 	for c := range s.Kg {
-		f, err := cathode.ParseFormula(s.Formulas[c])
+		f, err := lt.elements.ParseFormula(s.Formulas[c])
 		if err != nil {
 			return nil, err
 		}
@@ -436,7 +452,7 @@ func (p *leachPlanner) input(i int, plan func(string) float64, hPlus, redMol flo
 	for c, kg := range p.s.Kg {
 		mol[c] = kg[i] * 1000 / p.molarG[c]
 	}
-	es := cathode.DefaultElements()
+	es := p.lt.elements
 	return redoxInput{route: p.route, species: p.species, mol: mol, plan: plan, hPlus: hPlus, red: p.red, redMol: redMol, lost: p.lost[i],
 		metalE0: func(sym string) float64 {
 			if el := es.Lookup(sym); el != nil && el.HasPotential {
@@ -569,7 +585,7 @@ func (p *leachPlanner) report() (*Report, error) {
 			lr.Gases[name] = Gas{Mol: dist.Summarise(mol), M3STP: dist.Summarise(col(func(i int) float64 { return mol[i] * MolarVolumeSTPLPerMol / 1000 }))}
 		}
 	}
-	es := cathode.DefaultElements()
+	es := p.lt.elements
 	perL := func(f func(i int) float64) []float64 { return col(func(i int) float64 { return f(i) / p.vol[i] }) }
 	chargeRes := 0.0
 	for i, r := range p.res {
@@ -686,13 +702,13 @@ func (p *leachPlanner) limits(lr *Report) {
 
 // saturation sets each salt's ratio to its solubility.
 func (p *leachPlanner) saturation(lr *Report) {
-	es := cathode.DefaultElements()
+	es := p.lt.elements
 	for _, sl := range p.lt.salts {
 		k := elementIndex(sl.cation)
 		if k < 0 || sl.anion != p.route.Anion() {
 			continue
 		}
-		f, _ := cathode.ParseFormula(sl.name)
+		f, _ := es.ParseFormula(sl.name)
 		perSalt := f.Moles(sl.cation)
 		ratio := col(p.n, func(i int) float64 {
 			mol := p.res[i].liquorMol[k]
@@ -737,7 +753,7 @@ func (p *leachPlanner) byproducts(lr *Report) {
 	if g, ok := lr.Gases["Cl2"]; ok && g.Mol.P90 > 0 {
 		rho, err := p.lt.Density("NaOH", 50)
 		if err == nil {
-			kg := col(p.n, func(i int) float64 { return p.res[i].cl2 * naohPerCl2 * cathode.MolarMassOf("NaOH") / 1000 })
+			kg := col(p.n, func(i int) float64 { return p.res[i].cl2 * naohPerCl2 * p.lt.molarMassG("NaOH") / 1000 })
 			lr.Scrubber = &Scrubber{Reagent: "NaOH 50 %", KgPure: dist.Summarise(kg), Kg: dist.Summarise(col(p.n, func(i int) float64 { return kg[i] / 0.5 })),
 				Litres:   dist.Summarise(col(p.n, func(i int) float64 { return kg[i] / 0.5 / rho })),
 				Reaction: "Cl2 + 2 NaOH → NaCl + NaOCl + H2O (keep the scrubber caustic in excess; hypochlorite is an oxidant)"}

@@ -29,10 +29,11 @@ type Reductant struct {
 	Source        string
 }
 
-// LoadReductants reads reductants.csv from the tables.
+// LoadReductants reads reductants.csv from the tables; formulas are read with the atomic
+// weights es.
 func LoadReductants(tables interface {
 	ReadTable(string) (*data.Table, error)
-}) ([]*Reductant, error) {
+}, es *cathode.Elements) ([]*Reductant, error) {
 	t, err := tables.ReadTable("reductants.csv")
 	if err != nil {
 		return nil, err
@@ -54,11 +55,11 @@ func LoadReductants(tables interface {
 		if !(rd.ElectronsMol > 0) {
 			return nil, r.Errorf("a reductant gives electrons")
 		}
-		f, err := cathode.ParseFormula(rd.Formula)
+		f, err := es.ParseFormula(rd.Formula)
 		if err != nil {
 			return nil, r.Errorf("%v", err)
 		}
-		rd.MolarMassGMol = f.MolarMass(f.Elements())
+		rd.MolarMassGMol = f.MolarMass(es)
 		out = append(out, rd)
 	}
 	return out, nil

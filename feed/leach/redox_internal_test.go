@@ -1,8 +1,11 @@
 package leach
 
 import (
+	"io/fs"
 	"math"
+	"strings"
 	"testing"
+	"testing/fstest"
 
 	"blackmass/cathode"
 	"blackmass/data"
@@ -12,7 +15,7 @@ import (
 // products SO4²− (sulfate), Na+ (sodium), O2, and for ascorbic acid dehydroascorbic acid C6H6O6.
 // Elements and charge are counted from the formulas, so a wrong column in reductants.csv fails.
 func TestReductantHalfReactionsBalance(t *testing.T) {
-	all, err := LoadReductants(fsTables{data.FS})
+	all, err := LoadReductants(fsTables{data.FS}, cathode.DefaultElements())
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -55,7 +58,7 @@ func TestLeachElectronsClose(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	reds, err := LoadReductants(fsTables{data.FS})
+	reds, err := LoadReductants(fsTables{data.FS}, cathode.DefaultElements())
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -124,4 +127,40 @@ func TestLeachElectronsClose(t *testing.T) {
 			}
 		}
 	}
+}
+
+// The leach tables read their atomic weights from the same files: a changed sulfur weight
+// changes the acid's and a reductant's molar mass (H2SO4 = 2 H + S + 4 O, CIAAW 2021 H 1.008,
+// O 15.999, here with S = 33).
+func TestLeachTablesOwnAtomicWeights(t *testing.T) {
+	own := fstest.MapFS{}
+	if err := fs.WalkDir(data.FS, ".", func(path string, d fs.DirEntry, err error) error {
+		if err != nil || d.IsDir() {
+			return err
+		}
+		b, err := fs.ReadFile(data.FS, path)
+		own[path] = &fstest.MapFile{Data: b}
+		return err
+	}); err != nil {
+		t.Fatal(err)
+	}
+	aw := strings.Replace(string(own["atomic_weights.csv"].Data), "S,sulfur,16,32.06,", "S,sulfur,16,33,", 1)
+	own["atomic_weights.csv"] = &fstest.MapFile{Data: []byte(aw)}
+	lt, err := LoadTables(own)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if m, want := lt.molarMassG("H2SO4"), 2*1.008+33+4*15.999; math.Abs(m-want) > 1e-9 {
+		t.Errorf("H2SO4 with S = 33: %v g/mol, want %v", m, want)
+	}
+	for _, r := range lt.reductants {
+		if strings.Contains(r.Formula, "S") && !strings.Contains(r.Formula, "Si") {
+			f, _ := cathode.DefaultElements().ParseFormula(r.Formula)
+			if math.Abs(r.MolarMassGMol-f.MolarMass(cathode.DefaultElements())-f.Moles("S")*(33-32.06)) > 1e-9 {
+				t.Errorf("%s: %v g/mol does not use S = 33", r.Key, r.MolarMassGMol)
+			}
+			return
+		}
+	}
+	t.Error("no sulfur reductant in the table")
 }
