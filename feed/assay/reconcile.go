@@ -207,7 +207,7 @@ type mixColumn struct {
 
 // mixColumns lists the candidates and the other components of black mass.
 func mixColumns(candidates []*cathode.Entry) []mixColumn {
-	es := cathode.DefaultElements()
+	es := candidates[0].Formula.Elements() // the atomic weights the candidates were read with
 	var cols []mixColumn
 	add := func(name string, f cathode.Formula, chem bool) {
 		m := map[string]float64{}
@@ -220,7 +220,7 @@ func mixColumns(candidates []*cathode.Entry) []mixColumn {
 		add(e.Key, e.Formula, true)
 	}
 	for _, x := range []struct{ name, formula string }{{"graphite", "C"}, {"PVDF", "C2H2F2"}, {"Al", "Al"}, {"Cu", "Cu"}, {"Fe (metal)", "Fe"}} {
-		f, _ := cathode.ParseFormula(x.formula) // fixed, valid formulas
+		f, _ := es.ParseFormula(x.formula) // fixed, valid formulas
 		add(x.name, f, false)
 	}
 	return cols
