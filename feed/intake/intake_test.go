@@ -784,3 +784,26 @@ func TestAlikeLinesReadAsAlone(t *testing.T) {
 		t.Errorf("a control character in a reused line's id: %v", err)
 	}
 }
+
+// Text kept from a line (id, label, notes) stays as read after many more lines have been read:
+// the splitter's buffers are never rewritten under a kept string.
+func TestKeptTextOutlivesTheReading(t *testing.T) {
+	var b strings.Builder
+	b.WriteString("id,chemistry,format,capacity,count,notes\n")
+	const n = 5000
+	for i := range n {
+		fmt.Fprintf(&b, "ID-%05d,NMC811,pouch,%d Wh,1,note %d\n", i, 10+i%7, i)
+	}
+	lines, err := readString(t, b.String())
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(lines) != n {
+		t.Fatalf("%d lines, want %d", len(lines), n)
+	}
+	for i, l := range lines {
+		if l.ID != fmt.Sprintf("ID-%05d", i) || l.Notes != fmt.Sprintf("note %d", i) || l.ChemistryLabel != "NMC811" {
+			t.Fatalf("line %d reads back as %q %q %q", i+2, l.ID, l.Notes, l.ChemistryLabel)
+		}
+	}
+}

@@ -9,6 +9,7 @@ import (
 	"strings"
 	"unicode"
 	"unicode/utf8"
+	"unsafe"
 
 	"blackmass/data"
 )
@@ -27,7 +28,14 @@ type splitSource struct {
 	cr     *csv.Reader // after the first quote
 	offset int         // lines consumed before cr took over
 	err    error
+	// arena holds the text of the lines split so far. Fields are strings into it; it is only
+	// ever appended to, never rewritten, so they stay valid, and a full arena is left to the
+	// strings that still use it. One allocation serves many lines.
+	arena []byte
 }
+
+// arenaBytes is the size of one arena: a few hundred manifest lines.
+const arenaBytes = 32 << 10
 
 func newSplitSource(br *bufio.Reader, sep byte) *splitSource {
 	return &splitSource{br: br, sep: sep}
@@ -104,11 +112,10 @@ func (s *splitSource) Read() ([]string, int, error) {
 }
 
 // split cuts a quote-free line at the separator, trimming each field's leading white space. The
-// line is made a string once and the fields are slices of it (one allocation a line, as
-// encoding/csv with ReuseRecord).
+// line is copied into the arena once and the fields are slices of it.
 func (s *splitSource) split(line []byte) []string {
 	s.rec = s.rec[:0]
-	str := string(line)
+	str := s.keep(line)
 	for {
 		i := strings.IndexByte(str, s.sep)
 		field := str
@@ -121,6 +128,20 @@ func (s *splitSource) split(line []byte) []string {
 		}
 		str = str[i+1:]
 	}
+}
+
+// keep copies line into the arena and returns it as a string that shares the arena's memory.
+func (s *splitSource) keep(line []byte) string {
+	if len(line) == 0 {
+		return ""
+	}
+	if len(line) > cap(s.arena)-len(s.arena) {
+		s.arena = make([]byte, 0, max(arenaBytes, len(line)))
+	}
+	start := len(s.arena)
+	s.arena = append(s.arena, line...)
+	// Safe: these bytes are never written again (the arena only grows, then is replaced).
+	return unsafe.String(&s.arena[start], len(line))
 }
 
 func trimLeftSpace(b string) string {
