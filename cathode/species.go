@@ -5,6 +5,11 @@ import (
 	"math"
 )
 
+// maxAverageTMState bounds the average transition-metal oxidation state a cathode species may
+// imply: fully delithiated layered oxides reach +4, and nothing in a lithium-ion cathode goes
+// beyond +4.5 (common practice).
+const maxAverageTMState = 4.5
+
 // fixedState holds the oxidation states blackmass assumes for elements other than the transition
 // metals. The transition metals of [variableState] share whatever charge is left.
 var fixedState = map[string]float64{
@@ -124,8 +129,8 @@ func NewSpecies(f Formula) (Species, error) {
 		return sp, nil
 	}
 	avg := -fixed / varMoles
-	if avg < 0 || avg > 4.5 {
-		return sp, fmt.Errorf("species %s: the transition metals would average %+.3g, outside 0..+4.5", f.text, avg)
+	if avg < 0 || avg > maxAverageTMState {
+		return sp, fmt.Errorf("species %s: the transition metals would average %+.3g, outside 0..+%g", f.text, avg, maxAverageTMState)
 	}
 	for _, t := range terms {
 		if variableState[t.Symbol] {

@@ -10,6 +10,12 @@ import (
 	"blackmass/feed/dist"
 )
 
+// maxInactiveShare bounds the sum of a format's largest inactive fractions (foils, binder,
+// electrolyte, separator, casing): at or above it too little of the cell is left for the
+// electrodes for the model to mean anything (commercial cells are 50-70 % active material;
+// common practice).
+const maxInactiveShare = 0.8
+
 // Param is one model parameter with its range and source.
 type Param struct {
 	Scope  string // "all", a format name, or "chemistry <key>"
@@ -83,7 +89,7 @@ func LoadModel(fsys fs.FS) (*Model, error) {
 		if casings != 1 {
 			return nil, fmt.Errorf("model.csv: format %s needs exactly one of %v", f, casingNames)
 		}
-		if sum >= 0.8 {
+		if sum >= maxInactiveShare {
 			return nil, fmt.Errorf("model.csv: format %s: inactive fractions can reach %.2f of the cell, leaving too little for electrodes", f, sum)
 		}
 		if f.IsAssembly() && m.params[f.String()+"/"+f.String()+"_overhead"] == nil {

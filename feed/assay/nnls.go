@@ -7,6 +7,11 @@ import (
 	"gonum.org/v1/gonum/mat"
 )
 
+// float64Epsilon is the float64 machine epsilon (2^-52). The stopping tolerance of the
+// Lawson–Hanson iteration (Solving Least Squares Problems, 1974, ch. 23) scales with it and with
+// the norms of A and b, the usual choice of NNLS implementations (from memory).
+const float64Epsilon = 0x1p-52
+
 // nnls solves min ‖A x − b‖₂ subject to x ≥ 0 by the active-set method of Lawson and Hanson
 // (Solving Least Squares Problems, 1974, ch. 23), for small dense problems. Columns are scaled to
 // unit norm internally; a zero column gets x = 0. It returns the solution and the residual norm.
@@ -30,7 +35,7 @@ func nnls(A *mat.Dense, b []float64) ([]float64, float64, error) {
 		}
 	}
 	bv := mat.NewVecDense(m, append([]float64(nil), b...))
-	tol := 10 * float64(max(m, n)) * 2.220446049250313e-16 * mat.Norm(As, 1) * mat.Norm(bv, 2)
+	tol := 10 * float64(max(m, n)) * float64Epsilon * mat.Norm(As, 1) * mat.Norm(bv, 2)
 	x := make([]float64, n)
 	passive, blocked := make([]bool, n), make([]bool, n)
 	w := make([]float64, n)

@@ -12,6 +12,10 @@ import (
 	"blackmass/feed/dist"
 )
 
+// minSigmaWtPct is the smallest assay uncertainty the mix fit weights by (wt%), about the
+// reporting limit of ICP-OES for major elements in black mass (common practice).
+const minSigmaWtPct = 0.01
+
 // zPerP10P90 converts a P10–P90 width to a standard deviation for a normal distribution
 // (P90 − P10 = 2·1.2816 σ).
 const zPerP10P90 = 2 * 1.2815515655446004
@@ -238,7 +242,7 @@ func newWeightedSystem(cols []mixColumn, rows []Value) *weightedSystem {
 	ws := &weightedSystem{cols: cols, rows: rows, sigma: make([]float64, len(rows)), A: mat.NewDense(len(rows), len(cols), nil)}
 	for i, v := range rows {
 		// A floor on σ keeps an element reported as exactly 0 ± 0 from dominating the fit.
-		ws.sigma[i] = math.Max(v.SigmaWtPct, 0.01)
+		ws.sigma[i] = math.Max(v.SigmaWtPct, minSigmaWtPct)
 		for j, c := range cols {
 			ws.A.Set(i, j, 100*c.frac[v.Element]/ws.sigma[i])
 		}

@@ -746,16 +746,23 @@ const (
 	peroxideDecompKJPerMol = 285.83 - 191.17
 	liquorCpJPerGK         = 4.18
 	naohPerCl2             = 2 // Cl2 + 2 NaOH → NaCl + NaOCl + H2O
+	// scrubberNaOHWtPct is the caustic strength the scrubber is quoted in (the common
+	// commercial 50 % solution).
+	scrubberNaOHWtPct = 50
+	// copperLeftWarnBelow is the copper extraction (P50) below which the hydrochloric route
+	// warns that copper stays in the residue.
+	copperLeftWarnBelow = 0.5
 )
 
 // byproducts adds the caustic to scrub the chlorine and the heat of peroxide decomposition.
 func (p *leachPlanner) byproducts(lr *Report) {
 	if g, ok := lr.Gases["Cl2"]; ok && g.Mol.P90 > 0 {
-		rho, err := p.lt.Density("NaOH", 50)
+		rho, err := p.lt.Density("NaOH", scrubberNaOHWtPct)
 		if err == nil {
 			kg := col(p.n, func(i int) float64 { return p.res[i].cl2 * naohPerCl2 * p.lt.molarMassG("NaOH") / 1000 })
-			lr.Scrubber = &Scrubber{Reagent: "NaOH 50 %", KgPure: dist.Summarise(kg), Kg: dist.Summarise(col(p.n, func(i int) float64 { return kg[i] / 0.5 })),
-				Litres:   dist.Summarise(col(p.n, func(i int) float64 { return kg[i] / 0.5 / rho })),
+			w := scrubberNaOHWtPct / 100.0
+			lr.Scrubber = &Scrubber{Reagent: fmt.Sprintf("NaOH %d %%", scrubberNaOHWtPct), KgPure: dist.Summarise(kg), Kg: dist.Summarise(col(p.n, func(i int) float64 { return kg[i] / w })),
+				Litres:   dist.Summarise(col(p.n, func(i int) float64 { return kg[i] / w / rho })),
 				Reaction: "Cl2 + 2 NaOH → NaCl + NaOCl + H2O (keep the scrubber caustic in excess; hypochlorite is an oxidant)"}
 		}
 	}
@@ -813,7 +820,7 @@ func (p *leachPlanner) warnings(lr *Report, acidR Reagent, redR *Reagent) {
 		}
 		lr.Warnings = append(lr.Warnings, fmt.Sprintf("%s; up to %s (P90) if they meet the acid first: vent as for the larger", lead, formatGasVolume(h2max.P90)))
 	}
-	if cu, ok := lr.Liquor.ExtractionReached["Cu"]; ok && cu.P50 < 0.5 && p.route == cathode.Hydrochloric {
+	if cu, ok := lr.Liquor.ExtractionReached["Cu"]; ok && cu.P50 < copperLeftWarnBelow && p.route == cathode.Hydrochloric {
 		lr.Warnings = append(lr.Warnings, "copper: without an oxidant only the copper that reduced the oxides dissolves on the hydrochloric route; the rest stays in the residue")
 	}
 	lr.Warnings = append(lr.Warnings, routeNotes(p.s, p.species, p.route)...)
