@@ -8,6 +8,9 @@ import (
 	"strings"
 )
 
+// coulombsPerMAh is the charge of one mAh: 1e-3 A × 3600 s.
+const coulombsPerMAh = 3.6
+
 // Parse errors wrapped by [FormulaError].
 var (
 	ErrEmptyFormula   = errors.New("empty formula")
@@ -352,5 +355,5 @@ func (f Formula) MassFractions(es *Elements) []Term {
 // TheoreticalCapacityMAhPerG returns q = n·F/(3.6·M) in mAh/g for n electrons (lithium ions)
 // exchanged per formula unit, with F in C/mol and M the molar mass in g/mol.
 func TheoreticalCapacityMAhPerG(electronsPerFormula, molarMassGPerMol float64) float64 {
-	return electronsPerFormula * FaradayCPerMol / (3.6 * molarMassGPerMol)
+	return electronsPerFormula * FaradayCPerMol / (coulombsPerMAh * molarMassGPerMol)
 }

@@ -11,6 +11,14 @@ import (
 	"blackmass/data"
 )
 
+// Bounds on a Dirichlet concentration: below 0.5 the draws pile onto single members (a prior
+// that says "one of them, no idea which" more strongly than any scrap stream warrants); above
+// 1000 the shares are fixed for every practical purpose.
+const (
+	minConcentration = 0.5
+	maxConcentration = 1000.0
+)
+
 // Kind says how a chemistry label was resolved.
 type Kind string
 
@@ -63,8 +71,8 @@ func (c *Catalogue) loadPriorTables(fsys fs.FS) error {
 		if a.concentration, err = r.Float("concentration"); err != nil {
 			return err
 		}
-		if !(a.concentration >= 0.5 && a.concentration <= 1000) {
-			return r.Errorf("concentration must lie from 0.5 to 1000")
+		if !(a.concentration >= minConcentration && a.concentration <= maxConcentration) {
+			return r.Errorf("concentration must lie from %g to %g", minConcentration, maxConcentration)
 		}
 		for _, w := range strings.Split(r.Str("words"), "|") {
 			if w = strings.ToLower(strings.TrimSpace(w)); w != "" {
@@ -113,8 +121,8 @@ func (c *Catalogue) loadPriorTables(fsys fs.FS) error {
 		if f.concentration, err = r.Float("concentration"); err != nil {
 			return err
 		}
-		if !(share > 0 && share <= 1) || !(f.concentration >= 0.5 && f.concentration <= 1000) {
-			return r.Errorf("share must lie in (0, 1] and concentration from 0.5 to 1000")
+		if !(share > 0 && share <= 1) || !(f.concentration >= minConcentration && f.concentration <= maxConcentration) {
+			return r.Errorf("share must lie in (0, 1] and concentration from %g to %g", minConcentration, maxConcentration)
 		}
 		f.members = append(f.members, Component{e, share})
 	}

@@ -13,6 +13,10 @@ import (
 	"blackmass/feed/assay"
 )
 
+// maxAssaySumWtPct is the highest total an assay's elements may reach: 100 % plus the rounding
+// of a closed analysis.
+const maxAssaySumWtPct = 100.5
+
 // minAssayWtPct is the smallest non-zero assay value accepted: 0.01 ppm, below the reporting
 // limit of ICP-OES and ICP-MS black-mass assays (common practice).
 const minAssayWtPct = 1e-6
@@ -108,7 +112,7 @@ func ReadAssay(r io.Reader, name string) (*assay.Assay, error) {
 	if len(a.Values) == 0 {
 		return nil, fail(0, "", "", "no assay rows")
 	}
-	if sum > 100.5 {
+	if sum > maxAssaySumWtPct {
 		return nil, fail(0, "", "", fmt.Sprintf("elements sum to %.2f wt%%, past 100 %%", sum))
 	}
 	return a, nil
