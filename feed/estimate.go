@@ -56,7 +56,7 @@ func (l *Lot) Estimate(opt EstimateOptions) (*Report, *Samples, error) {
 		if r.Leach != nil {
 			cost = r.Leach.CostPerSample
 		}
-		r.Value = valueOf(s, l.comp.elements, opt.Prices, cost, l.modeWh/1000)
+		r.Value = valueOf(l.comp.elements, s.Elements, s.BlackMass, opt.Prices, cost, l.modeWh/1000)
 	}
 	return r, s, nil
 }

@@ -17,6 +17,7 @@ import (
 	"blackmass/cathode"
 	"blackmass/data"
 	"blackmass/feed"
+	"blackmass/feed/assay"
 	"blackmass/feed/dist"
 	"blackmass/feed/intake"
 	"blackmass/feed/leach"
@@ -428,5 +429,43 @@ func TestEraChangesCathodePerKWh(t *testing.T) {
 		if !(o > 1.1*n && u > n && u < o) {
 			t.Errorf("%s %.3f, %s %.3f, %s %.3f kg cathode per kWh: want older > unstated > current", c.older, o, c.unstated, u, c.current, n)
 		}
+	}
+}
+
+// A quote from an assay is valued on the same draws as its metals: 100 kg of black mass at
+// 10 wt% Co (σ 0.2) and 3.5 wt% Li, Co at 20 per kg with 70 % payable, Li at 10 per kg LCE
+// with 50 % payable. LCE per kg Li = M(Li2CO3) / (2 M(Li)), from CIAAW 2021 atomic weights.
+func TestQuoteValue(t *testing.T) {
+	pl, err := intake.ReadPrices(strings.NewReader("item,basis,price_per_kg,currency,payable,source\nCo,metal,20,EUR,0.7,test\nLi,LCE,10,EUR,0.5,test\n"), "p.csv")
+	if err != nil {
+		t.Fatal(err)
+	}
+	a, err := intake.ReadAssay(strings.NewReader("element,value,unit,uncertainty\nCo,10,wt%,0.2\nLi,3.5,wt%,0.1\nC,40,wt%,1\n"), "a.csv")
+	if err != nil {
+		t.Fatal(err)
+	}
+	q, err := assay.QuoteFrom(a, assay.QuoteOptions{BlackMassKg: 100, Samples: 400, Seed: 3, Leach: leach.DefaultOptions()})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if r := feed.QuoteReport(q, feed.Inputs{}, nil); r.Value != nil {
+		t.Errorf("value without prices: %+v", r.Value)
+	}
+	v := feed.QuoteReport(q, feed.Inputs{}, pl).Value
+	if v == nil || len(v.Elements) != 2 {
+		t.Fatalf("value %+v", v)
+	}
+	for _, e := range v.Elements {
+		switch e.Element {
+		case "Co":
+			nearly(t, "Co payable (mean)", e.PayableVal.Mean, q.Elements["Co"].Kg.Mean*20*0.7, 1e-7*e.PayableVal.Mean) // summaries keep 9 significant digits
+			nearly(t, "Co payable near 10 kg × 20 × 0.7", e.PayableVal.P50, 140, 3)
+		case "Li":
+			nearly(t, "Li as LCE (kg)", e.ProductKg.Mean, q.Elements["Li"].Kg.Mean*feed.LCEPerKgLi(), 1e-7*e.ProductKg.Mean)
+		}
+	}
+	nearly(t, "payable per tonne of black mass", v.PayablePerTonneBM.Mean, v.Payable.Mean*10, 1e-6*v.Payable.Mean)
+	if v.PayablePerKWh != nil {
+		t.Error("a quote from an assay has no energy to value per kWh")
 	}
 }

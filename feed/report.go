@@ -103,9 +103,23 @@ var safetyNotes = []string{
 }
 
 // QuoteReport is the report of a quote from an assay: the weighed black mass, its elements and
-// species, and the leach plan, with the inputs that produced it.
-func QuoteReport(q *assay.Quote, in Inputs) *Report {
+// species, and the leach plan, with the inputs that produced it; and, with prices, its value on
+// the same draws.
+func QuoteReport(q *assay.Quote, in Inputs, prices *PriceList) *Report {
 	in.Seed, in.Samples = q.Seed, q.Samples
-	return &Report{Inputs: in, BlackMassKg: q.BlackMassKg, Elements: q.Elements, Compounds: q.Compounds, ElementOrder: q.ElementOrder,
+	r := &Report{Inputs: in, BlackMassKg: q.BlackMassKg, Elements: q.Elements, Compounds: q.Compounds, ElementOrder: q.ElementOrder,
 		Leach: q.Leach, Warnings: q.Warnings, Safety: safetyNotes}
+	if prices != nil {
+		els := q.ElementOrder
+		kg := make([][]float64, len(els))
+		for i, e := range els {
+			kg[i] = q.ElementDraws[e]
+		}
+		var cost []float64
+		if q.Leach != nil {
+			cost = q.Leach.CostPerSample
+		}
+		r.Value = valueOf(els, kg, q.BlackMassDraws, prices, cost, 0)
+	}
+	return r
 }

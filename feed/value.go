@@ -67,10 +67,11 @@ type Value struct {
 	Notes             []string   `json:"notes"`
 }
 
-// valueOf prices the samples. reagentCost is the leach's cost per sample (nil: not priced);
-// energyKWh the lot's energy received (0: unknown).
-func valueOf(s *Samples, elements []string, pl *PriceList, reagentCost []float64, energyKWh float64) *Value {
-	n := s.N
+// valueOf prices the draws: elementKg[e][i] kg of elements[e] and blackMassKg[i] in sample i.
+// reagentCost is the leach's cost per sample (nil: not priced); energyKWh the lot's energy
+// received (0: unknown, as for a quote from an assay).
+func valueOf(elements []string, elementKg [][]float64, blackMassKg []float64, pl *PriceList, reagentCost []float64, energyKWh float64) *Value {
+	n := len(blackMassKg)
 	v := &Value{Currency: pl.Currency, PricesFile: pl.File}
 	contained, payable := make([]float64, n), make([]float64, n)
 	priced := map[string]bool{}
@@ -87,7 +88,7 @@ func valueOf(s *Samples, elements []string, pl *PriceList, reagentCost []float64
 		}
 		kg, con, pay := make([]float64, n), make([]float64, n), make([]float64, n)
 		for i := range n {
-			kg[i] = s.Elements[e][i] * factor
+			kg[i] = elementKg[e][i] * factor
 			con[i] = kg[i] * p.PerKg
 			pay[i] = con[i] * p.Payable
 			contained[i] += con[i]
@@ -99,8 +100,8 @@ func valueOf(s *Samples, elements []string, pl *PriceList, reagentCost []float64
 	v.Contained, v.Payable = dist.Summarise(contained), dist.Summarise(payable)
 	perT := make([]float64, n)
 	for i := range n {
-		if s.BlackMass[i] > 0 {
-			perT[i] = payable[i] / (s.BlackMass[i] / 1000)
+		if blackMassKg[i] > 0 {
+			perT[i] = payable[i] / (blackMassKg[i] / 1000)
 		}
 	}
 	v.PayablePerTonneBM = dist.Summarise(perT)

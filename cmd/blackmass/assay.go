@@ -89,7 +89,7 @@ func newQuoteCmd() *cobra.Command {
 	cmd.Flags().StringVar(&o.form, "form", "layered", "form of Co/Ni/Mn: layered (untreated), oxide (reduction-roasted) or metal")
 	_ = cmd.RegisterFlagCompletionFunc("form", cobra.FixedCompletions([]string{"layered", "oxide", "metal"}, cobra.ShellCompDirectiveNoFileComp))
 	_ = cmd.MarkFlagRequired("mass")
-	for _, f := range []string{"unknown", "no-lines", "sheet", "prior", "ignore-column", "prices"} { // manifest-only flags
+	for _, f := range []string{"unknown", "no-lines", "sheet", "prior", "ignore-column"} { // manifest-only flags
 		_ = cmd.Flags().MarkHidden(f)
 	}
 	o.fit.bind(cmd)
@@ -131,7 +131,11 @@ func runQuote(w io.Writer, o *quoteOptions, path string) error {
 	if err != nil {
 		return err
 	}
-	rep := feed.QuoteReport(q, feed.Inputs{File: filepath.ToSlash(path), SHA256: hex.EncodeToString(sum[:]), Version: version, LotID: o.lotID, Supplier: o.supplier})
+	prices, err := o.loadPrices()
+	if err != nil {
+		return err
+	}
+	rep := feed.QuoteReport(q, feed.Inputs{File: filepath.ToSlash(path), SHA256: hex.EncodeToString(sum[:]), Version: version, LotID: o.lotID, Supplier: o.supplier}, prices)
 	rep.Assay = a
 	if rep.Mix, err = o.fit.fit(cat, a, o.seed); err != nil {
 		return err

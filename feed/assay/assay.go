@@ -167,6 +167,10 @@ type Quote struct {
 	Warnings     []string
 	Seed         uint64
 	Samples      int
+	// ElementDraws and BlackMassDraws are the samples behind Elements and BlackMassKg (kg), for
+	// pricing the same draws.
+	ElementDraws   map[string][]float64 `json:"-"`
+	BlackMassDraws []float64            `json:"-"`
 }
 
 // QuoteFrom quotes material already shredded: the assay (drawn within its uncertainty) times the
@@ -199,7 +203,8 @@ func QuoteFrom(a *Assay, opt QuoteOptions) (*Quote, error) {
 	for i := range bm {
 		bm[i] = opt.BlackMassKg
 	}
-	r := &Quote{Elements: map[string]dist.Amount{}, Compounds: map[string]dist.Amount{}, Seed: opt.Seed, Samples: n}
+	r := &Quote{Elements: map[string]dist.Amount{}, Compounds: map[string]dist.Amount{}, Seed: opt.Seed, Samples: n,
+		ElementDraws: map[string][]float64{}, BlackMassDraws: bm}
 	r.BlackMassKg = dist.Summarise(bm)
 	for _, v := range a.Values {
 		kg := make([]float64, n)
@@ -207,6 +212,7 @@ func QuoteFrom(a *Assay, opt QuoteOptions) (*Quote, error) {
 			kg[i] = draws[i][v.Element] / 100 * opt.BlackMassKg
 		}
 		r.Elements[v.Element] = dist.AmountOf(kg, bm)
+		r.ElementDraws[v.Element] = kg
 	}
 	for c, name := range assayColumns {
 		if slices.Max(cols[c]) > 0 {
