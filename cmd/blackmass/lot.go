@@ -111,6 +111,16 @@ func (lo *lotOptions) with(fn func(*register.Register) error) error {
 	return fn(reg)
 }
 
+// lotQuery opens the register, asks it one thing and closes it.
+func lotQuery[T any](lo *lotOptions, ask func(context.Context, *register.Register) (T, error)) (T, error) {
+	var out T
+	err := lo.with(func(reg *register.Register) (err error) {
+		out, err = ask(context.Background(), reg)
+		return err
+	})
+	return out, err
+}
+
 // bindFilter binds the flags that narrow a listing.
 func bindFilter(cmd *cobra.Command, f *register.Filter) {
 	cmd.Flags().StringVar(&f.Supplier, "supplier", "", "only this supplier")
@@ -208,11 +218,10 @@ func newLotListCmd(lo *lotOptions) *cobra.Command {
 }
 
 func runLotList(w io.Writer, lo *lotOptions, f register.Filter) error {
-	var lots []register.Summary
-	if err := lo.with(func(reg *register.Register) (err error) {
-		lots, err = reg.List(context.Background(), f)
-		return err
-	}); err != nil {
+	lots, err := lotQuery(lo, func(ctx context.Context, reg *register.Register) ([]register.Summary, error) {
+		return reg.List(ctx, f)
+	})
+	if err != nil {
 		return err
 	}
 	if lo.asJSON {
@@ -254,11 +263,10 @@ func newLotShowCmd(lo *lotOptions) *cobra.Command {
 }
 
 func runLotShow(w io.Writer, lo *lotOptions, id string) error {
-	var d *register.Detail
-	if err := lo.with(func(reg *register.Register) (err error) {
-		d, err = reg.Show(context.Background(), id)
-		return err
-	}); err != nil {
+	d, err := lotQuery(lo, func(ctx context.Context, reg *register.Register) (*register.Detail, error) {
+		return reg.Show(ctx, id)
+	})
+	if err != nil {
 		return err
 	}
 	if lo.asJSON {
@@ -429,10 +437,8 @@ func optp(p *float64) any {
 }
 
 func runLotExport(w io.Writer, lo *lotOptions, f register.Filter, csvPath, xlsxPath string, force bool) error {
-	var lots []register.Summary
-	err := lo.with(func(reg *register.Register) (err error) {
-		lots, err = reg.List(context.Background(), f)
-		return err
+	lots, err := lotQuery(lo, func(ctx context.Context, reg *register.Register) ([]register.Summary, error) {
+		return reg.List(ctx, f)
 	})
 	if err != nil {
 		return err
@@ -521,11 +527,10 @@ func newLotTotalsCmd(lo *lotOptions) *cobra.Command {
 }
 
 func runLotTotals(w io.Writer, lo *lotOptions, month string) error {
-	var t *register.Totals
-	if err := lo.with(func(reg *register.Register) (err error) {
-		t, err = reg.MonthTotals(context.Background(), month)
-		return err
-	}); err != nil {
+	t, err := lotQuery(lo, func(ctx context.Context, reg *register.Register) (*register.Totals, error) {
+		return reg.MonthTotals(ctx, month)
+	})
+	if err != nil {
 		return err
 	}
 	if lo.asJSON {
