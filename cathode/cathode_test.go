@@ -2,15 +2,14 @@ package cathode_test
 
 import (
 	"errors"
-	"io/fs"
 	"math"
 	"regexp"
 	"strings"
 	"testing"
-	"testing/fstest"
 
 	"blackmass/cathode"
 	"blackmass/data"
+	"blackmass/data/datatest"
 )
 
 func approx(t *testing.T, what string, got, want, tol float64) {
@@ -185,19 +184,9 @@ func TestParseFormulaForms(t *testing.T) {
 // own computes molar masses and leach stoichiometry from those tables, not from the embedded
 // ones.
 func TestOwnAtomicWeights(t *testing.T) {
-	own := fstest.MapFS{}
-	if err := fs.WalkDir(data.FS, ".", func(path string, d fs.DirEntry, err error) error {
-		if err != nil || d.IsDir() {
-			return err
-		}
-		b, err := fs.ReadFile(data.FS, path)
-		own[path] = &fstest.MapFile{Data: b}
-		return err
-	}); err != nil {
-		t.Fatal(err)
-	}
-	aw := regexp.MustCompile(`(?m)^(Co,cobalt,27,)58\.933194`).ReplaceAllString(string(own["atomic_weights.csv"].Data), "${1}60")
-	own["atomic_weights.csv"] = &fstest.MapFile{Data: []byte(aw)}
+	own := datatest.Edited(t, map[string]func(string) string{"atomic_weights.csv": func(s string) string {
+		return regexp.MustCompile(`(?m)^(Co,cobalt,27,)58\.933194`).ReplaceAllString(s, "${1}60")
+	}})
 	cat, err := cathode.LoadCatalogue(own)
 	if err != nil {
 		t.Fatal(err)

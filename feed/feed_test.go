@@ -6,16 +6,14 @@ import (
 	"encoding/json"
 	"fmt"
 	"io"
-	"io/fs"
 	"math"
 	"regexp"
 	"slices"
 	"strings"
 	"testing"
-	"testing/fstest"
 
 	"blackmass/cathode"
-	"blackmass/data"
+	"blackmass/data/datatest"
 	"blackmass/feed"
 	"blackmass/feed/assay"
 	"blackmass/feed/dist"
@@ -381,21 +379,9 @@ func TestLotValue(t *testing.T) {
 // The tables are passed in, not global: a lot estimated with tables of its own (here an
 // extraction table capping Co at about 50 %) gives results that follow those tables.
 func TestOwnTables(t *testing.T) {
-	own := fstest.MapFS{}
-	err := fs.WalkDir(data.FS, ".", func(path string, d fs.DirEntry, err error) error {
-		if err != nil || d.IsDir() {
-			return err
-		}
-		b, err := fs.ReadFile(data.FS, path)
-		own[path] = &fstest.MapFile{Data: b}
-		return err
-	})
-	if err != nil {
-		t.Fatal(err)
-	}
-	ext := string(own["extraction.csv"].Data)
-	ext = regexp.MustCompile(`(?m)^sulfuric-peroxide,Co,[^\n]*$`).ReplaceAllString(ext, "sulfuric-peroxide,Co,0.49,0.5,0.51,test table")
-	own["extraction.csv"] = &fstest.MapFile{Data: []byte(ext)}
+	own := datatest.Edited(t, map[string]func(string) string{"extraction.csv": func(s string) string {
+		return regexp.MustCompile(`(?m)^sulfuric-peroxide,Co,[^\n]*$`).ReplaceAllString(s, "sulfuric-peroxide,Co,0.49,0.5,0.51,test table")
+	}})
 	tb, err := feed.LoadTables(own)
 	if err != nil {
 		t.Fatal(err)

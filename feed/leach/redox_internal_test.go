@@ -1,14 +1,13 @@
 package leach
 
 import (
-	"io/fs"
 	"math"
 	"strings"
 	"testing"
-	"testing/fstest"
 
 	"blackmass/cathode"
 	"blackmass/data"
+	"blackmass/data/datatest"
 )
 
 // Every reductant's half-reaction balances: reductant + w H2O → products + h H+ + e e−, with the
@@ -133,19 +132,9 @@ func TestLeachElectronsClose(t *testing.T) {
 // changes the acid's and a reductant's molar mass (H2SO4 = 2 H + S + 4 O, CIAAW 2021 H 1.008,
 // O 15.999, here with S = 33).
 func TestLeachTablesOwnAtomicWeights(t *testing.T) {
-	own := fstest.MapFS{}
-	if err := fs.WalkDir(data.FS, ".", func(path string, d fs.DirEntry, err error) error {
-		if err != nil || d.IsDir() {
-			return err
-		}
-		b, err := fs.ReadFile(data.FS, path)
-		own[path] = &fstest.MapFile{Data: b}
-		return err
-	}); err != nil {
-		t.Fatal(err)
-	}
-	aw := strings.Replace(string(own["atomic_weights.csv"].Data), "S,sulfur,16,32.06,", "S,sulfur,16,33,", 1)
-	own["atomic_weights.csv"] = &fstest.MapFile{Data: []byte(aw)}
+	own := datatest.Edited(t, map[string]func(string) string{"atomic_weights.csv": func(s string) string {
+		return strings.Replace(s, "S,sulfur,16,32.06,", "S,sulfur,16,33,", 1)
+	}})
 	lt, err := LoadTables(own)
 	if err != nil {
 		t.Fatal(err)
