@@ -6,51 +6,40 @@ import (
 	"strings"
 )
 
-// massUnit picks the unit that reads well for masses of the size of refKg: g for a bench
-// sample, kg for a lot, t for a large one.
-func massUnit(refKg float64) (name string, perKg float64) {
-	switch a := math.Abs(refKg); {
+// unitLadder is a unit with the units a thousand times smaller and larger: a quantity is shown
+// in the smaller one below 1 and in the larger one from 10,000.
+type unitLadder struct{ small, base, large string }
+
+var (
+	massUnits   = unitLadder{"g", "kg", "t"}
+	volumeUnits = unitLadder{"mL", "L", "m³"}
+	energyUnits = unitLadder{"Wh", "kWh", "MWh"}
+)
+
+// pick returns the unit that reads well for quantities of the size of ref (in the base unit)
+// and how many of it make one base unit.
+func (l unitLadder) pick(ref float64) (name string, perBase float64) {
+	switch a := math.Abs(ref); {
 	case a > 0 && a < 1:
-		return "g", 1000
+		return l.small, 1000
 	case a >= 10_000:
-		return "t", 0.001
+		return l.large, 0.001
 	}
-	return "kg", 1
+	return l.base, 1
 }
 
-// fmtMass prints a mass with three significant figures in the unit that suits it.
-func fmtMass(kg float64) string {
-	u, f := massUnit(kg)
-	return num(kg*f) + " " + u
+// format prints v (in the base unit) with three significant figures in the unit that suits it.
+func (l unitLadder) format(v float64) string {
+	u, f := l.pick(v)
+	return num(v*f) + " " + u
 }
 
-// volumeUnit picks mL, L or m³ for volumes of the size of refL.
-func volumeUnit(refL float64) (name string, perL float64) {
-	switch a := math.Abs(refL); {
-	case a > 0 && a < 1:
-		return "mL", 1000
-	case a >= 10_000:
-		return "m³", 0.001
-	}
-	return "L", 1
-}
+// massUnit picks g for a bench sample, kg for a lot, t for a large one.
+func massUnit(refKg float64) (name string, perKg float64) { return massUnits.pick(refKg) }
 
-// fmtVolume prints a volume with three significant figures in the unit that suits it.
-func fmtVolume(l float64) string {
-	u, f := volumeUnit(l)
-	return num(l*f) + " " + u
-}
-
-// fmtEnergy prints an energy in Wh, kWh or MWh with three significant figures.
-func fmtEnergy(kWh float64) string {
-	switch a := math.Abs(kWh); {
-	case a > 0 && a < 1:
-		return num(kWh*1000) + " Wh"
-	case a >= 10_000:
-		return num(kWh/1000) + " MWh"
-	}
-	return num(kWh) + " kWh"
-}
+func fmtMass(kg float64) string    { return massUnits.format(kg) }
+func fmtVolume(l float64) string   { return volumeUnits.format(l) }
+func fmtEnergy(kWh float64) string { return energyUnits.format(kWh) }
 
 // num prints a number with three significant figures, without exponent notation; anything
 // smaller than a billionth prints as 0 (never "-0.000").
