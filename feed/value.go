@@ -67,6 +67,10 @@ type Value struct {
 	Notes             []string   `json:"notes"`
 }
 
+// PayableMetals are the metals of black mass a buyer commonly pays for (common practice); a
+// value lists those without a price, and the register's listings show them.
+var PayableMetals = []string{"Co", "Ni", "Li", "Mn", "Cu", "Al"}
+
 // valueOf prices the draws: elementKg[e][i] kg of elements[e] and blackMassKg[i] in sample i.
 // reagentCost is the leach's cost per sample (nil: not priced); energyKWh the lot's energy
 // received (0: unknown, as for a quote from an assay).
@@ -121,7 +125,7 @@ func valueOf(elements []string, elementKg [][]float64, blackMassKg []float64, pl
 	} else {
 		v.Notes = append(v.Notes, "no reagent prices given: no value net of reagents (--acid-price, --h2o2-price)")
 	}
-	for _, el := range []string{"Co", "Ni", "Li", "Mn", "Cu", "Al"} {
+	for _, el := range PayableMetals {
 		if !priced[el] && slices.Contains(elements, el) {
 			v.Unpriced = append(v.Unpriced, el)
 		}
