@@ -78,7 +78,8 @@ func newQuoteCmd() *cobra.Command {
 		Use:   "quote ASSAY.csv --mass WEIGHT",
 		Short: "Quote the leach of black mass already shredded, from a lab assay and its weight",
 		Example: `  blackmass quote assay.csv --mass 1.2t
-  blackmass quote assay.csv --mass "850 kg" --form oxide --route hydrochloric --json`,
+  blackmass quote assay.csv --mass "850 kg" --form oxide --route hydrochloric --json
+  blackmass quote assay.csv --mass 236kg --prices prices.csv`,
 		Args: cobra.ExactArgs(1),
 		RunE: func(cmd *cobra.Command, args []string) error {
 			return runQuote(cmd.OutOrStdout(), o, args[0])
