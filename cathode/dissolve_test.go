@@ -74,7 +74,7 @@ func TestLiteratureEquations(t *testing.T) {
 	approx(t, "H2SO4/LFP full", rx.AcidMol, 1.5, 1e-12)
 	approx(t, "H2O2/LFP full", rx.H2O2ReductantMol+rx.H2O2OxidantMol, 0, 1e-12)
 	approx(t, "H3PO4/LFP full", rx.H3PO4Mol, 1, 1e-12)
-	// 2Al + 3H2SO4 -> Al2(SO4)3 + 3H2 (R8), and Cu + H2O2 + H2SO4 -> CuSO4 + 2H2O (R10).
+	// Balanced by hand: 2Al + 3H2SO4 -> Al2(SO4)3 + 3H2, and Cu + H2O2 + H2SO4 -> CuSO4 + 2H2O.
 	rx = mustReact(t, "Al", cathode.SulfuricPeroxide)
 	approx(t, "H2SO4/Al", rx.AcidMol, 1.5, 1e-12)
 	approx(t, "H2/Al", rx.H2Mol, 1.5, 1e-12)
@@ -87,8 +87,8 @@ func TestLiteratureEquations(t *testing.T) {
 	}
 }
 
-// Per kg of pure LiCoO2 at stoichiometry: 1.503 kg H2SO4 and 0.174 kg H2O2 (R1); 1.490 kg HCl and
-// 0.362 kg Cl2 (R5). Computed from the balanced equations 2LiCoO2 + 3H2SO4 + H2O2 → Li2SO4 + 2CoSO4 + 4H2O + O2
+// Per kg of pure LiCoO2 at stoichiometry: 1.503 kg H2SO4 and 0.174 kg H2O2; 1.490 kg HCl and
+// 0.362 kg Cl2. Computed from the balanced equations 2LiCoO2 + 3H2SO4 + H2O2 → Li2SO4 + 2CoSO4 + 4H2O + O2
 // (Jha et al., Waste Manag. 33 (2013) 1890) and 2LiCoO2 + 8HCl → 2LiCl + 2CoCl2 + Cl2 + 4H2O
 // (Zhang et al., Hydrometallurgy 47 (1998) 259) with CIAAW 2021 atomic weights.
 func TestPerKgLiCoO2(t *testing.T) {

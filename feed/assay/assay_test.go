@@ -183,7 +183,7 @@ func TestInferMixPublished(t *testing.T) {
 	}
 }
 
-// A quote from an assay of pure LiCoO2 reproduces R1: 1.503 kg H2SO4 and 0.174 kg H2O2 per kg
+// A quote from an assay of pure LiCoO2 reproduces the sulfuric-peroxide stoichiometry: 1.503 kg H2SO4 and 0.174 kg H2O2 per kg
 // at stoichiometry (from 2LiCoO2 + 3H2SO4 + H2O2 → Li2SO4 + 2CoSO4 + 4H2O + O2, Jha et al.,
 // Waste Manag. 33 (2013) 1890, with CIAAW 2021 atomic weights).
 func TestQuoteFromAssayLiCoO2(t *testing.T) {

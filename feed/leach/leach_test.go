@@ -31,8 +31,8 @@ func near(t *testing.T, what string, got, want, tol float64) {
 	}
 }
 
-// Per kg of pure LiCoO2 at stoichiometry: 1.503 kg H2SO4 and 0.174 kg H2O2 (R1), 1.490 kg HCl
-// and 0.362 kg Cl2 (R5), from the balanced equations of Jha et al., Waste Manag. 33 (2013) 1890 and Zhang et al.,
+// Per kg of pure LiCoO2 at stoichiometry: 1.503 kg H2SO4 and 0.174 kg H2O2, 1.490 kg HCl
+// and 0.362 kg Cl2, from the balanced equations of Jha et al., Waste Manag. 33 (2013) 1890 and Zhang et al.,
 // Hydrometallurgy 47 (1998) 259, with CIAAW 2021 atomic weights.
 func TestLeachStoichiometryLiCoO2(t *testing.T) {
 	lr := leachLCO(t, nil)
