@@ -20,6 +20,9 @@ var fixedCompounds = [nFixedCompounds]struct{ name, formula string }{
 	{"copper foil", "Cu"}, {"steel (casing, as Fe)", "Fe"}, {"LiPF6 residue", "LiPF6"}, {"separator and film (as polyethylene)", "C2H4"},
 }
 
+// cmPerUm converts a foil thickness in µm to cm.
+const cmPerUm = 1e-4
+
 // mix is a chemistry's capacity and voltage at one draw: the cathode-mass-weighted capacity and
 // the capacity-weighted voltage of its components.
 type mix struct {
@@ -42,10 +45,14 @@ func model(energyWh, chargeAh float64, mx mix, f fractions, g globals) breakdown
 	// The anode is sized against the cathode's whole first-charge capacity.
 	capAh := b.cam * qAhG
 	b.graphite = capAh * g.np / (g.qGraphiteMAhG / 1000)
-	inactive := f.al + f.cu + f.bc + f.el + f.sep + f.casing
-	b.cell = (b.cam + b.graphite) / (1 - inactive)
-	b.al, b.cu, b.bc = f.al*b.cell, f.cu*b.cell, f.bc*b.cell
-	b.electrolyte, b.separator, b.casing = f.el*b.cell, f.sep*b.cell, f.casing*b.cell
+	// Both sides of each foil are coated: the foil area is the cathode's capacity over twice the
+	// areal capacity. The anode foil is taken as the same area (its overhang is a few per cent).
+	foilCm2 := capAh * 1000 / (2 * f.arealMAhCm2)
+	b.al = foilCm2 * f.alUm * cmPerUm * g.rhoAlGCm3
+	b.cu = foilCm2 * f.cuUm * cmPerUm * g.rhoCuGCm3
+	b.electrolyte = f.elGPerAh * capAh * g.utilisation
+	b.cell = (b.cam + b.graphite + b.al + b.cu + b.electrolyte) / (1 - f.bc - f.sep - f.casing)
+	b.bc, b.separator, b.casing = f.bc*b.cell, f.sep*b.cell, f.casing*b.cell
 	b.item = b.cell / (1 - f.overhead)
 	return b
 }

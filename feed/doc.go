@@ -6,10 +6,12 @@
 // Cathode active mass is nameplate energy over nominal voltage and practical specific capacity,
 // CAM = E / (V·q) (or charge over q when only Ah is known). Nameplate is used, never state of
 // health: a worn cell still holds all its cathode. Anode graphite follows from the cathode's
-// capacity through the N/P ratio and graphite's practical capacity. Foils, binder and conductive
-// carbon, electrolyte, separator and casing are fractions of the cell mass per format, so the cell
-// mass is (CAM + graphite) / (1 − Σ fractions). Packs and modules add an overhead that never
-// reaches the black mass.
+// capacity through the N/P ratio and graphite's practical capacity. The current collectors follow
+// from the same capacity: foil area = capacity / (2 × areal capacity), both sides coated, times
+// each foil's thickness and density; the electrolyte is a fill per nameplate Ah. Binder and
+// conductive carbon, separator and casing are fractions of the cell mass per format, so the cell
+// mass is (CAM + graphite + foils + electrolyte) / (1 − Σ fractions). Packs and modules add an
+// overhead that never reaches the black mass.
 //
 // # Black mass
 //

@@ -10,11 +10,11 @@ import (
 	"blackmass/feed/dist"
 )
 
-// maxInactiveShare bounds the sum of a format's largest inactive fractions (foils, binder,
-// electrolyte, separator, casing): at or above it too little of the cell is left for the
-// electrodes for the model to mean anything (commercial cells are 50-70 % active material;
+// maxInactiveShare bounds the sum of a format's largest cell-mass fractions (binder and carbon,
+// separator, casing): at or above it too little of the cell is left for the electrodes, foils
+// and electrolyte for the model to mean anything (commercial cells are 50-75 % active material;
 // common practice).
-const maxInactiveShare = 0.8
+const maxInactiveShare = 0.6
 
 // Param is one model parameter with its range and source.
 type Param struct {
@@ -33,9 +33,14 @@ type Model struct {
 
 var globalNames = []string{"np_ratio", "graphite_capacity", "lipf6_in_electrolyte", "binder_share", "recovery_cathode",
 	"recovery_graphite", "recovery_binder_carbon", "carryover_al_foil", "carryover_cu_foil", "carryover_casing", "residue_lipf6", "carryover_polymer",
-	"cathode_utilisation"}
+	"cathode_utilisation", "al_density", "cu_density"}
 
-var formatFractionNames = []string{"al_foil", "cu_foil", "binder_carbon", "electrolyte", "separator"}
+// formatFractionNames are a format's parameters that are fractions of the cell mass.
+var formatFractionNames = []string{"binder_carbon", "separator"}
+
+// formatDesignNames are a format's parameters sized by the cell's capacity: areal capacity per
+// coated side (mAh/cm²), foil thicknesses (µm), electrolyte fill (g per nameplate Ah).
+var formatDesignNames = []string{"areal_capacity", "al_foil_thickness", "cu_foil_thickness", "electrolyte_per_ah"}
 
 var casingNames = []string{"casing_steel", "casing_al", "casing_polymer"}
 
@@ -79,6 +84,15 @@ func LoadModel(fsys fs.FS) (*Model, error) {
 			}
 			sum += p.Range.Max
 		}
+		for _, n := range formatDesignNames {
+			p := m.params[f.String()+"/"+n]
+			if p == nil {
+				return nil, fmt.Errorf("model.csv: missing parameter %s/%s", f, n)
+			}
+			if p.Range.Min <= 0 {
+				return nil, fmt.Errorf("model.csv: %s/%s must be positive", f, n)
+			}
+		}
 		casings := 0
 		for _, n := range casingNames {
 			if p := m.params[f.String()+"/"+n]; p != nil {
@@ -121,13 +135,17 @@ type globals struct {
 	// utilisation is the share of the cathode's half-cell capacity the cell delivers at its
 	// nameplate (first-cycle lithium loss to the anode, rating margin).
 	utilisation float64
+	// Densities of the current collectors' metals, g/cm³.
+	rhoAlGCm3, rhoCuGCm3 float64
 }
 
-// fractions are one format's cell-mass fractions at one draw.
+// fractions are one format's design at one draw: the current collectors and electrolyte sized by
+// capacity, the rest as fractions of the cell mass.
 type fractions struct {
-	al, cu, bc, el, sep, casing float64
-	kind                        casingKind
-	overhead                    float64
+	arealMAhCm2, alUm, cuUm, elGPerAh float64
+	bc, sep, casing                   float64
+	kind                              casingKind
+	overhead                          float64
 }
 
 // paramSet is every parameter's draws, or its most likely value when samples == 0.
@@ -147,11 +165,12 @@ func newParamSet(m *Model, seed uint64, samples int) *paramSet {
 	}
 	ps.globals = make([]globals, n)
 	for s := range n {
-		ps.globals[s] = globals{g[0][s], g[1][s], g[2][s], g[3][s], g[4][s], g[5][s], g[6][s], g[7][s], g[8][s], g[9][s], g[10][s], g[11][s], g[12][s]}
+		ps.globals[s] = globals{g[0][s], g[1][s], g[2][s], g[3][s], g[4][s], g[5][s], g[6][s], g[7][s], g[8][s], g[9][s], g[10][s], g[11][s], g[12][s], g[13][s], g[14][s]}
 	}
 	for _, f := range Formats() {
 		sc := f.String()
-		al, cu, bc, el, sep := ps.values(sc, "al_foil"), ps.values(sc, "cu_foil"), ps.values(sc, "binder_carbon"), ps.values(sc, "electrolyte"), ps.values(sc, "separator")
+		areal, al, cu, el := ps.values(sc, "areal_capacity"), ps.values(sc, "al_foil_thickness"), ps.values(sc, "cu_foil_thickness"), ps.values(sc, "electrolyte_per_ah")
+		bc, sep := ps.values(sc, "binder_carbon"), ps.values(sc, "separator")
 		var cas []float64
 		var kind casingKind
 		for k, n := range casingNames {
@@ -165,7 +184,7 @@ func newParamSet(m *Model, seed uint64, samples int) *paramSet {
 		}
 		fr := make([]fractions, n)
 		for s := range n {
-			fr[s] = fractions{al[s], cu[s], bc[s], el[s], sep[s], cas[s], kind, over[s]}
+			fr[s] = fractions{areal[s], al[s], cu[s], el[s], bc[s], sep[s], cas[s], kind, over[s]}
 		}
 		ps.formats[f] = fr
 	}

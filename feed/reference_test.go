@@ -57,8 +57,17 @@ func referenceFormat(t *testing.T, name string) Format {
 	return FormatInvalid
 }
 
-// cellDraws models one item of nameplate energyWh of the chemistry and format at every draw.
-func cellDraws(t *testing.T, label string, f Format, energyWh float64) ([]breakdown, []globals) {
+// cellDraw is one Monte Carlo draw of a modelled item: its breakdown, the global parameters and
+// the chemistry mix it was drawn at.
+type cellDraw struct {
+	b  breakdown
+	g  globals
+	mx mix
+}
+
+// cellDraws models one item of nameplate energyWh and/or chargeAh of the chemistry and format at
+// every draw.
+func cellDraws(t *testing.T, label string, f Format, energyWh, chargeAh float64) []cellDraw {
 	t.Helper()
 	cat, err := cathode.DefaultCatalogue()
 	if err != nil {
@@ -75,11 +84,21 @@ func cellDraws(t *testing.T, label string, f Format, energyWh float64) ([]breakd
 	ps := newParamSet(m, 1, referenceSamples)
 	volt, capa := ps.chemDraws(&ch)
 	shares := ps.shareDraws(&ch, ch.Key+"/"+f.String(), 1)
-	out := make([]breakdown, referenceSamples)
+	out := make([]cellDraw, referenceSamples)
 	for i := range out {
-		out[i] = model(energyWh, 0, mixAt(ch.Components, shares[i], volt, capa, i), ps.formats[f][i], ps.globals[i])
+		mx := mixAt(ch.Components, shares[i], volt, capa, i)
+		out[i] = cellDraw{b: model(energyWh, chargeAh, mx, ps.formats[f][i], ps.globals[i]), g: ps.globals[i], mx: mx}
 	}
-	return out, ps.globals
+	return out
+}
+
+// referenceOptional is a column's number, 0 when the cell is empty.
+func referenceOptional(t *testing.T, r data.Row, col string) float64 {
+	t.Helper()
+	if strings.TrimSpace(r.Str(col)) == "" {
+		return 0
+	}
+	return referenceFloat(t, r, col)
 }
 
 // coverage counts published values inside the model's bands.
@@ -110,9 +129,12 @@ func outside(v, lo, hi float64) float64 {
 	return 0
 }
 
-// componentShare is a named component of a cell as a fraction of the cell mass.
-func componentShare(t *testing.T, b breakdown, g globals, name string) float64 {
+// cellQuantity is a named quantity of a modelled cell of nameplate energyWh and/or chargeAh in
+// the unit the reference row gives: a component's share of the cell mass (%), the cell's specific
+// energy (Wh/kg) or its electrolyte per amp-hour (g/Ah).
+func cellQuantity(t *testing.T, d cellDraw, energyWh, chargeAh float64, name, unit string) float64 {
 	t.Helper()
+	b, g := d.b, d.g
 	var m float64
 	switch name {
 	case "cathode_active":
@@ -131,31 +153,48 @@ func componentShare(t *testing.T, b breakdown, g globals, name string) float64 {
 		m = b.electrolyte
 	case "polymer":
 		m = b.separator + b.bc*g.binderShare
+	case "specific_energy":
+		if unit != "Wh/kg" {
+			t.Fatalf("specific_energy in %q, want Wh/kg", unit)
+		}
+		return (energyWh + chargeAh*d.mx.voltV) / (b.cell / 1000)
+	case "electrolyte_per_ah":
+		if unit != "g/Ah" {
+			t.Fatalf("electrolyte_per_ah in %q, want g/Ah", unit)
+		}
+		return b.electrolyte / (chargeAh + energyWh/d.mx.voltV)
 	default:
 		t.Fatalf("unknown component %q", name)
 	}
-	return m / b.cell
+	if unit != "%" {
+		t.Fatalf("%s in %q, want %%", name, unit)
+	}
+	return 100 * m / b.cell
 }
 
-// Published teardowns of named cells: component mass fractions.
+// Published teardowns of named cells: component mass fractions, specific energy, electrolyte fill.
 func TestReferenceCellDesigns(t *testing.T) {
 	tab := readReference(t, "cell_designs.csv")
 	cov := coverage{name: "cell designs"}
 	for _, r := range tab.Rows {
 		f := referenceFormat(t, r.Str("format"))
-		bs, gs := cellDraws(t, r.Str("chemistry"), f, 10)
-		x := make([]float64, len(bs))
-		for i, b := range bs {
-			x[i] = 100 * componentShare(t, b, gs[i], r.Str("component"))
+		wh, ah := referenceOptional(t, r, "nameplate_wh"), referenceOptional(t, r, "nameplate_ah")
+		if wh+ah <= 0 {
+			t.Fatalf("%s: no nameplate Wh or Ah", r.Str("cell"))
+		}
+		ds := cellDraws(t, r.Str("chemistry"), f, wh, ah)
+		x := make([]float64, len(ds))
+		for i, d := range ds {
+			x[i] = cellQuantity(t, d, wh, ah, r.Str("component"), r.Str("unit"))
 		}
 		st := dist.Summarise(x)
-		pub := referenceFloat(t, r, "wt_pct")
+		pub, unit := referenceFloat(t, r, "value"), r.Str("unit")
 		off := outside(pub, st.P10, st.P90)
 		cov.add(off == 0)
-		t.Logf("%-28s %-15s %-14s published %6.2f %%  model P10–P90 %6.2f–%6.2f  [%s]", r.Str("cell"), r.Str("chemistry"), r.Str("component"), pub, st.P10, st.P90, r.Str("basis"))
+		t.Logf("%-28s %-15s %-18s published %6.2f %-5s  model P10–P90 %6.2f–%6.2f  [%s]", r.Str("cell"), r.Str("chemistry"), r.Str("component"), pub, unit, st.P10, st.P90, r.Str("basis"))
 		if tol := referenceFloat(t, r, "tolerance"); off > tol {
-			t.Errorf("%s %s: published %.2f %% is %.0f %% outside the model's %.2f–%.2f (tolerance %.0f %%; %s)",
-				r.Str("cell"), r.Str("component"), pub, 100*off, st.P10, st.P90, 100*tol, r.Str("source"))
+			t.Errorf("%s %s: published %.2f %s is %.0f %% outside the model's %.2f–%.2f (tolerance %.0f %%; %s)",
+				r.Str("cell"), r.Str("component"), pub, unit, 100*off, st.P10, st.P90, 100*tol, r.Str("source"))
 		}
 	}
 	report(cov)
@@ -183,10 +222,10 @@ func TestReferenceMetalIntensity(t *testing.T) {
 		if frac == 0 {
 			t.Fatalf("%s holds no %s", e.Key, r.Str("element"))
 		}
-		bs, _ := cellDraws(t, e.Key, referenceFormat(t, r.Str("format")), 1000)
-		x := make([]float64, len(bs))
-		for i, b := range bs {
-			x[i] = b.cam / 1000 * frac
+		ds := cellDraws(t, e.Key, referenceFormat(t, r.Str("format")), 1000, 0)
+		x := make([]float64, len(ds))
+		for i, d := range ds {
+			x[i] = d.b.cam / 1000 * frac
 		}
 		st := dist.Summarise(x)
 		pub := referenceFloat(t, r, "kg_per_kWh")
@@ -271,7 +310,7 @@ func TestReferenceRowsHaveSources(t *testing.T) {
 			if strings.TrimSpace(r.Str("source")) == "" || strings.TrimSpace(r.Str("basis")) == "" {
 				t.Errorf("%s: a row without source or basis", n)
 			}
-			for _, col := range []string{"wt_pct", "kg_per_kWh", "min_wt_pct"} {
+			for _, col := range []string{"value", "kg_per_kWh", "min_wt_pct"} {
 				if v, err := r.Float(col); err == nil && (math.IsNaN(v) || v <= 0) {
 					t.Errorf("%s: %s %v", n, col, v)
 				}
