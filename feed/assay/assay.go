@@ -73,10 +73,28 @@ func ParseTMForm(s string) (TMForm, error) {
 var assayColumns = []string{"LiCoO2", "LiNiO2", "LiMnO2", "CoO2", "NiO2", "MnO2", "CoO", "NiO", "MnO", "Co", "Ni", "Mn",
 	"LiFePO4", "FePO4", "Li2CO3", "Fe", "Al", "Cu", "C2H2F2", "C"}
 
-// assaySpecies maps one assay draw (wt% by element) to kg of each assay column per kg of black
-// mass, writing into dst. It returns the wt% of assayed elements it could not place.
-func assaySpecies(dst []float64, wt map[string]float64, form TMForm) (unassigned map[string]float64) {
-	es := cathode.DefaultElements()
+// speciesMapper maps assay draws to species with one table of atomic weights.
+type speciesMapper struct {
+	es       *cathode.Elements
+	molarKgs []float64 // kg/mol of each assay column
+}
+
+func newSpeciesMapper(lt *leach.Tables) (*speciesMapper, error) {
+	m := &speciesMapper{es: lt.Elements(), molarKgs: make([]float64, len(assayColumns))}
+	for i, c := range assayColumns {
+		g, err := lt.MolarMassG(c)
+		if err != nil {
+			return nil, fmt.Errorf("assay species %s: %w", c, err)
+		}
+		m.molarKgs[i] = g / 1000
+	}
+	return m, nil
+}
+
+// species maps one assay draw (wt% by element) to kg of each assay column per kg of black mass,
+// writing into dst. It returns the wt% of assayed elements it could not place.
+func (sm *speciesMapper) species(dst []float64, wt map[string]float64, form TMForm) (unassigned map[string]float64) {
+	es := sm.es
 	clear(dst)
 	mol := func(el string) float64 { return wt[el] * 10 / es.Weight(el) } // mol per kg
 	put := func(col string, n float64) {
@@ -85,7 +103,7 @@ func assaySpecies(dst []float64, wt map[string]float64, form TMForm) (unassigned
 		}
 		for i, c := range assayColumns {
 			if c == col {
-				dst[i] += n * cathode.MolarMassOf(c) / 1000
+				dst[i] += n * sm.molarKgs[i]
 				return
 			}
 		}
@@ -154,6 +172,9 @@ type QuoteOptions struct {
 	Seed        uint64
 	Samples     int
 	Leach       leach.Options
+	// Tables are the leach tables, whose atomic weights also map the assay to species (nil:
+	// the embedded tables).
+	Tables *leach.Tables
 }
 
 // Quote is what an assay and a weight give: the black mass and its elements and species (drawn
@@ -182,6 +203,17 @@ func QuoteFrom(a *Assay, opt QuoteOptions) (*Quote, error) {
 	if opt.Samples < 10 || opt.Samples > 200_000 {
 		return nil, fmt.Errorf("samples must be from 10 to 200000, got %d", opt.Samples)
 	}
+	lt := opt.Tables
+	if lt == nil {
+		var err error
+		if lt, err = leach.DefaultTables(); err != nil {
+			return nil, err
+		}
+	}
+	sm, err := newSpeciesMapper(lt)
+	if err != nil {
+		return nil, err
+	}
 	n := opt.Samples
 	draws := drawAssay(a, opt.Seed, n)
 	cols := make([][]float64, len(assayColumns))
@@ -191,7 +223,7 @@ func QuoteFrom(a *Assay, opt QuoteOptions) (*Quote, error) {
 	row := make([]float64, len(assayColumns))
 	unassigned := map[string]float64{}
 	for i := range n {
-		un := assaySpecies(row, draws[i], opt.TMForm)
+		un := sm.species(row, draws[i], opt.TMForm)
 		for c, v := range row {
 			cols[c][i] = v * opt.BlackMassKg
 		}
@@ -236,7 +268,7 @@ func QuoteFrom(a *Assay, opt QuoteOptions) (*Quote, error) {
 			break
 		}
 	}
-	lr, err := leach.Plan(leach.Input{Formulas: assayColumns, Kg: cols, BlackMassKg: bm, Draws: dist.NewDrawer(opt.Seed, n)}, opt.Leach)
+	lr, err := leach.Plan(leach.Input{Formulas: assayColumns, Kg: cols, BlackMassKg: bm, Draws: dist.NewDrawer(opt.Seed, n), Tables: lt}, opt.Leach)
 	if err != nil {
 		return nil, err
 	}

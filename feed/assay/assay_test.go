@@ -10,6 +10,7 @@ import (
 	"testing"
 
 	"blackmass/cathode"
+	"blackmass/data/datatest"
 	"blackmass/feed/assay"
 	"blackmass/feed/dist"
 	"blackmass/feed/intake"
@@ -229,5 +230,38 @@ func TestReconcile(t *testing.T) {
 		if c.Element == "Co" && (!c.Flag || c.Z < 2 || !strings.Contains(c.Interpretation, "more cobalt")) {
 			t.Errorf("Co raised 60 %%: %+v", c)
 		}
+	}
+}
+
+// A quote maps the assay to species with the atomic weights of the tables it is given: with Co
+// set to 60 in an edited table, 10 wt% Co as LiCoO2 weighs 100/60 mol/kg × M(LiCoO2) with Co = 60.
+func TestQuoteUsesItsTablesAtomicWeights(t *testing.T) {
+	own := datatest.Edited(t, map[string]func(string) string{"atomic_weights.csv": func(s string) string {
+		return strings.Replace(s, "Co,cobalt,27,58.933194,", "Co,cobalt,27,60,", 1)
+	}})
+	lt, err := leach.LoadTables(own)
+	if err != nil {
+		t.Fatal(err)
+	}
+	// Li in excess of Co, so every Co is LiCoO2 (the rest of the Li is carbonate).
+	a := mustAssay(t, assayCSV(map[string]float64{"Co": 10, "Li": 2}, 0))
+	for _, c := range []struct {
+		name   string
+		tables *leach.Tables
+		coG    float64 // CIAAW 2021: Co 58.933194; Li 6.94 and O 15.999 in both
+	}{
+		{"embedded tables", nil, 58.933194},
+		{"Co = 60", lt, 60},
+	} {
+		t.Run(c.name, func(t *testing.T) {
+			q, err := assay.QuoteFrom(a, assay.QuoteOptions{BlackMassKg: 1, Samples: 10, Seed: 1, Leach: leach.DefaultOptions(), Tables: c.tables})
+			if err != nil {
+				t.Fatal(err)
+			}
+			want := 100 / c.coG * (6.94 + c.coG + 2*15.999) / 1000
+			// The assay is drawn within its 0.005 wt% floor of uncertainty: 2e-4 kg allows that and
+			// still tells the two weights apart (0.0011 kg).
+			nearly(t, "LiCoO2 kg", q.Compounds["LiCoO2"].Kg.P50, want, 2e-4)
+		})
 	}
 }

@@ -169,11 +169,23 @@ var DefaultTables = sync.OnceValues(func() (*Tables, error) { return LoadTables(
 // molarMassG is the molar mass (g/mol) of a formula this package names (an acid, caustic), with
 // the tables' atomic weights. Those formulas are constants, so an error is a programming error.
 func (lt *Tables) molarMassG(formula string) float64 {
-	f, err := lt.elements.ParseFormula(formula)
+	m, err := lt.MolarMassG(formula)
 	if err != nil {
 		panic("leach: " + formula + ": " + err.Error())
 	}
-	return f.MolarMass(lt.elements)
+	return m
+}
+
+// Elements returns the atomic weights the tables were read with.
+func (lt *Tables) Elements() *cathode.Elements { return lt.elements }
+
+// MolarMassG is the molar mass (g/mol) of a formula with the tables' atomic weights.
+func (lt *Tables) MolarMassG(formula string) (float64, error) {
+	f, err := lt.elements.ParseFormula(formula)
+	if err != nil {
+		return 0, err
+	}
+	return f.MolarMass(lt.elements), nil
 }
 
 // LoadTables reads reagents.csv, solubility.csv, extraction.csv, reductants.csv and
