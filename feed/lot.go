@@ -71,6 +71,11 @@ type group struct {
 	bandLo      float64 // plausible Wh/kg band of an item
 	bandHi      float64
 	modeWhPerKg float64 // most likely Wh/kg of an item, for lines known by weight only
+	// lastLabel and lastStat are the label of the group's previous line and its count: lines
+	// of a group mostly repeat one label, and comparing the strings (often one and the same
+	// string) is cheaper than hashing it.
+	lastLabel string
+	lastStat  *labelStat
 }
 
 // Lot accumulates manifest lines. Add them with Add, then call Estimate.
@@ -189,7 +194,7 @@ func (l *Lot) Add(ln Line) error {
 	if ch.Unknown {
 		l.unknownWh += cnt * energyWh
 	}
-	l.countLabel(ln, cnt*energyWh)
+	l.countLabel(g, ln, cnt*energyWh)
 	var flags []string
 	var measWhKg float64
 	if ln.MassKg > 0 && !ln.MassOnly() {
@@ -247,8 +252,24 @@ func (l *Lot) Add(ln Line) error {
 // maxLabels bounds the labels listed in the report; the rest are counted.
 const maxLabels = 500
 
-// countLabel adds a line to its label's count.
-func (l *Lot) countLabel(ln Line, energyWh float64) {
+// countLabel adds a line of group g to its label's count.
+func (l *Lot) countLabel(g *group, ln Line, energyWh float64) {
+	st := g.lastStat
+	if st == nil || g.lastLabel != ln.ChemistryLabel {
+		st = l.labelStat(ln)
+		g.lastLabel, g.lastStat = ln.ChemistryLabel, st
+	}
+	if st.ResolvedAs != ln.Chemistry.Key && st.Kind != "various" {
+		// The same unknown label takes each item's prior: say so once.
+		st.ResolvedAs = "unknown (per item)"
+	}
+	st.Lines++
+	st.modeWh += energyWh
+}
+
+// labelStat returns the count of a line's label, adding it (or the catch-all of further labels)
+// the first time.
+func (l *Lot) labelStat(ln Line) *labelStat {
 	st := l.labels[ln.ChemistryLabel]
 	if st == nil {
 		if len(l.labelList) >= maxLabels {
@@ -264,12 +285,7 @@ func (l *Lot) countLabel(ln Line, energyWh float64) {
 			l.labelList = append(l.labelList, st)
 		}
 	}
-	if st.ResolvedAs != ln.Chemistry.Key && st.Kind != "various" {
-		// The same unknown label takes each item's prior: say so once.
-		st.ResolvedAs = "unknown (per item)"
-	}
-	st.Lines++
-	st.modeWh += energyWh
+	return st
 }
 
 // Labels returns every label's resolution with its share of the lot's energy.

@@ -39,12 +39,23 @@ func (l *lineLimit) Read(p []byte) (int, error) {
 	n, err := l.r.Read(p)
 	b := p[:n]
 	for len(b) > 0 {
-		i := bytes.IndexAny(b, "\n\r")
+		// Lines end at '\n' (found fast); a '\r' also ends one, which matters only where the
+		// run up to the next '\n' would exceed the limit, or at the end of the read, whose run
+		// the next read continues.
+		i := bytes.IndexByte(b, '\n')
+		seg := b
+		if i >= 0 {
+			seg = b[:i]
+		}
+		if i >= 0 && l.run+len(seg) <= l.max {
+			l.run += len(seg)
+		} else if l.crRun(seg) {
+			return 0, errLineTooLong
+		}
 		if i < 0 {
-			l.run += len(b)
 			break
 		}
-		if l.run+i > l.max {
+		if l.run > l.max {
 			return 0, errLineTooLong
 		}
 		l.run, b = 0, b[i+1:]
@@ -53,6 +64,22 @@ func (l *lineLimit) Read(p []byte) (int, error) {
 		return 0, errLineTooLong
 	}
 	return n, err
+}
+
+// crRun adds seg, which holds no '\n', to the run, restarting it after each '\r'. It reports
+// whether a line ended by a '\r' exceeded the limit.
+func (l *lineLimit) crRun(seg []byte) bool {
+	for {
+		j := bytes.IndexByte(seg, '\r')
+		if j < 0 {
+			l.run += len(seg)
+			return false
+		}
+		if l.run+j > l.max {
+			return true
+		}
+		l.run, seg = 0, seg[j+1:]
+	}
 }
 
 type csvSource struct {
