@@ -169,6 +169,9 @@ func (l *leachFlags) conflicts(route cathode.Route) error {
 // parseExtraction reads "Co=0.92,Ni=95%,*=0.9" into fractions per element.
 func parseExtraction(s string) (map[string]float64, error) {
 	out := map[string]float64{}
+	// Only the symbols are checked here (is it an element, is it a metal), and those are
+	// IUPAC's, not a table a user edits; the weights that turn wt% into moles come later, from
+	// the tables the calculation is given.
 	es := cathode.DefaultElements()
 	for _, part := range strings.Split(s, ",") {
 		el, val, ok := strings.Cut(strings.TrimSpace(part), "=")

@@ -43,6 +43,9 @@ func ReadAssay(r io.Reader, name string) (*assay.Assay, error) {
 	if err != nil {
 		return nil, err
 	}
+	// Only the symbols are checked here (is it an element, is it a metal), and those are
+	// IUPAC's, not a table a user edits; the weights that turn wt% into moles come later, from
+	// the tables the calculation is given.
 	es := cathode.DefaultElements()
 	a := &assay.Assay{File: name}
 	seen := map[string]int{}

@@ -29,6 +29,9 @@ func ReadPrices(r io.Reader, name string) (*feed.PriceList, error) {
 		}
 	}
 	pl := &feed.PriceList{File: name}
+	// Only the symbols are checked here (is it an element, is it a metal), and those are
+	// IUPAC's, not a table a user edits; the weights that turn wt% into moles come later, from
+	// the tables the calculation is given.
 	es := cathode.DefaultElements()
 	seen := map[string]int{}
 	for _, row := range t.Rows {
