@@ -83,7 +83,7 @@ const sourceLineChars = 66
 
 // plainWords turns a parameter key ("carryover_al_foil") into words a bench reads.
 func plainWords(key string) string {
-	words := map[string]string{"np": "N/P", "al": "aluminium", "cu": "copper", "lipf6": "LiPF6", "pvdf": "PVDF", "cam": "cathode active material"}
+	words := map[string]string{"np": "N/P", "al": "aluminium", "cu": "copper", "lipf6": "LiPF6", "pvdf": "PVDF", "cam": "cathode active material", "ah": "Ah"}
 	parts := strings.Split(key, "_")
 	for i, p := range parts {
 		if w, ok := words[p]; ok {
