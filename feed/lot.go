@@ -85,6 +85,8 @@ type Lot struct {
 	keepLines  bool
 	groups     map[groupKey]*group
 	byPtr      map[ptrKey]*group
+	recent     [recentGroups]recentGroup
+	nextRecent int
 	order      []*group
 	lines      []LineResult
 	warnings   []string
@@ -128,7 +130,15 @@ func (l *Lot) warnOnce(key, msg string) {
 // differently that resolve to the same chemistry share a group.
 func (l *Lot) group(ch *cathode.Chemistry, f Format) *group {
 	pk := ptrKey{ch, f}
+	// A lot holds a few (chemistry, format) pairs: comparing pointers with the recent ones is
+	// cheaper than hashing.
+	for i := range l.recent {
+		if l.recent[i].key == pk {
+			return l.recent[i].g
+		}
+	}
 	if g, ok := l.byPtr[pk]; ok {
+		l.remember(pk, g)
 		return g
 	}
 	k := groupKey{ch.Key, f}
@@ -148,7 +158,23 @@ func (l *Lot) group(ch *cathode.Chemistry, f Format) *group {
 		}
 	}
 	l.byPtr[pk] = g
+	l.remember(pk, g)
 	return g
+}
+
+// recentGroups is how many (chemistry, format) pairs group compares before hashing.
+const recentGroups = 8
+
+// remember puts a pair among the recent ones, replacing them in turn.
+func (l *Lot) remember(pk ptrKey, g *group) {
+	l.recent[l.nextRecent] = recentGroup{pk, g}
+	l.nextRecent = (l.nextRecent + 1) % recentGroups
+}
+
+// recentGroup is a pair group found lately.
+type recentGroup struct {
+	key ptrKey
+	g   *group
 }
 
 // MaxGroups bounds the distinct (chemistry, format) pairs of a lot: the Monte Carlo costs groups

@@ -87,6 +87,9 @@ type csvSource struct {
 	name string
 }
 
+// rawLine is the splitter's: the text of the last record's line and its fields' offsets.
+func (s *csvSource) rawLine() (string, []int) { return s.cr.rawLine() }
+
 func (s *csvSource) next() ([]string, int, error) {
 	rec, line, err := s.cr.Read()
 	if err != nil {

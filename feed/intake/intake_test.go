@@ -754,32 +754,50 @@ func readString(t *testing.T, in string) ([]feed.Line, error) {
 // Lines alike but for their id are parsed once and reused: each reads exactly as it would alone,
 // with its own number and id, and an id that would be refused alone is refused on reuse too.
 func TestAlikeLinesReadAsAlone(t *testing.T) {
+	for _, c := range []struct {
+		name, hdr string
+		rows      []string
+	}{
+		{"id first", "id,chemistry,format,capacity,count,mass,notes\n",
+			[]string{"A1,NMC811,pouch,3 Ah,2,45 g,from bay 4", "A2,NMC811,pouch,3 Ah,2,45 g,from bay 4", "B1,LFP,pack,960 Wh,1,9 kg,", "A3,NMC811,pouch,3 Ah,2,45 g,from bay 4", "A4,NMC811,pouch,3 Ah,2,46 g,from bay 4"}},
+		{"id in the middle", "chemistry,format,id,capacity,count\n",
+			[]string{"NMC811,pouch,A1,3 Ah,2", "NMC811,pouch,A22,3 Ah,2", "NMC811,pouch,A3,3 Ah,3", "NMC811,pouch,,3 Ah,2", "NMC811,pouch,A5,3 Ah,2"}},
+		{"id last", "chemistry,format,capacity,count,id\n",
+			[]string{"LFP,pack,960 Wh,1,P1", "LFP,pack,960 Wh,1,P2", "LFP,pack,960 Wh,1", "LFP,pack,960 Wh,2,P4"}},
+		{"leading spaces", "id, chemistry, format, capacity, count\n",
+			[]string{"A1, NMC811, pouch, 3 Ah, 2", " A2, NMC811, pouch, 3 Ah, 2", "A3,NMC811, pouch, 3 Ah, 2", "  A4, NMC811,  pouch, 3 Ah, 2"}},
+		{"after a quoted line (encoding/csv reads)", "id,chemistry,format,capacity,count,notes\n",
+			[]string{`Q1,NMC811,pouch,3 Ah,2,"a, b"`, "A1,NMC811,pouch,3 Ah,2,x", "A2,NMC811,pouch,3 Ah,2,x", `A3,NMC811,pouch,3 Ah,2,"x"`}},
+	} {
+		t.Run(c.name, func(t *testing.T) {
+			all, err := readString(t, c.hdr+strings.Join(c.rows, "\n")+"\n")
+			if err != nil {
+				t.Fatal(err)
+			}
+			if len(all) != len(c.rows) {
+				t.Fatalf("%d lines, want %d", len(all), len(c.rows))
+			}
+			for i, r := range c.rows {
+				alone, err := readString(t, c.hdr+r+"\n")
+				if err != nil {
+					t.Fatal(err)
+				}
+				want := alone[0]
+				want.Num = i + 2
+				got := all[i]
+				if got.Chemistry.Key != want.Chemistry.Key {
+					t.Errorf("line %d: chemistry %s, alone %s", i+2, got.Chemistry.Key, want.Chemistry.Key)
+				}
+				got.Chemistry, want.Chemistry = nil, nil
+				if got != want {
+					t.Errorf("line %d reads %+v, alone %+v", i+2, got, want)
+				}
+			}
+		})
+	}
 	const hdr = "id,chemistry,format,capacity,count,mass,notes\n"
-	rows := []string{"A1,NMC811,pouch,3 Ah,2,45 g,from bay 4", "A2,NMC811,pouch,3 Ah,2,45 g,from bay 4", "B1,LFP,pack,960 Wh,1,9 kg,", "A3,NMC811,pouch,3 Ah,2,45 g,from bay 4", "A4,NMC811,pouch,3 Ah,2,46 g,from bay 4"}
-	all, err := readString(t, hdr+strings.Join(rows, "\n")+"\n")
-	if err != nil {
-		t.Fatal(err)
-	}
-	if len(all) != len(rows) {
-		t.Fatalf("%d lines, want %d", len(all), len(rows))
-	}
-	for i, r := range rows {
-		alone, err := readString(t, hdr+r+"\n")
-		if err != nil {
-			t.Fatal(err)
-		}
-		want := alone[0]
-		want.Num = i + 2
-		got := all[i]
-		if got.Chemistry.Key != want.Chemistry.Key {
-			t.Errorf("line %d: chemistry %s, alone %s", i+2, got.Chemistry.Key, want.Chemistry.Key)
-		}
-		got.Chemistry, want.Chemistry = nil, nil
-		if got != want {
-			t.Errorf("line %d reads %+v, alone %+v", i+2, got, want)
-		}
-	}
-	_, err = readString(t, hdr+rows[0]+"\n"+strings.Replace(rows[1], "A2", "A\x072", 1)+"\n")
+	row := "A1,NMC811,pouch,3 Ah,2,45 g,from bay 4"
+	_, err := readString(t, hdr+row+"\n"+strings.Replace(row, "A1", "A\x072", 1)+"\n")
 	if err == nil || !strings.Contains(err.Error(), "control character") || !strings.Contains(err.Error(), ":3") {
 		t.Errorf("a control character in a reused line's id: %v", err)
 	}

@@ -11,6 +11,7 @@ import (
 	"strings"
 	"unicode"
 	"unicode/utf8"
+	"unsafe"
 
 	"blackmass/cathode"
 	"blackmass/feed"
@@ -69,6 +70,12 @@ type rowSource interface {
 	next() (rec []string, line int, err error)
 }
 
+// rawLiner is a row source that can give the text a record was split from (and each field's
+// offset in it), so alike lines are found without re-encoding their fields; "" when it cannot.
+type rawLiner interface {
+	rawLine() (raw string, starts []int)
+}
+
 // readRows finds the header, then parses every line and hands it to fn.
 func readRows(src rowSource, name string, opt Options, decimalComma bool, fn func(feed.Line) error) (Info, error) {
 	var info Info
@@ -113,6 +120,7 @@ func readRows(src rowSource, name string, opt Options, decimalComma bool, fn fun
 		}
 	}
 	p := newLineParser(name, opt, decimalComma, hdr)
+	rl, _ := src.(rawLiner)
 	for {
 		rec, line, err := src.next()
 		if errors.Is(err, io.EOF) {
@@ -127,7 +135,12 @@ func readRows(src rowSource, name string, opt Options, decimalComma bool, fn fun
 		if info.Lines >= MaxLines {
 			return info, &Error{File: name, Line: line, Reason: fmt.Sprintf("more than %d lines: split the manifest", MaxLines)}
 		}
-		l, err := p.parseAlike(rec, line)
+		var raw string
+		var starts []int
+		if rl != nil {
+			raw, starts = rl.rawLine()
+		}
+		l, err := p.parseAlike(rec, line, raw, starts)
 		if err != nil {
 			return info, err
 		}
@@ -183,6 +196,7 @@ type lineParser struct {
 	apps         map[string]string               // application text -> key
 	quantities   [numColumns]map[string]quantity // per column, quantity text -> value, so repeated values parse once
 	alike        map[string]feed.Line            // parsed lines by their fields other than the id (parseAlike)
+	alikeRaw     map[string]feed.Line            // parsed lines by their text without the id (parseAlike)
 	keyBuf       []byte
 }
 
@@ -227,7 +241,7 @@ type resolved struct {
 func newLineParser(name string, opt Options, decimalComma bool, hdr *header) *lineParser {
 	return &lineParser{name: name, opt: opt, decimalComma: decimalComma, hdr: hdr,
 		chem: map[labelKey]*resolved{}, formats: map[string]feed.Format{}, layouts: map[string]int{}, apps: map[string]string{},
-		alike: map[string]feed.Line{}}
+		alike: map[string]feed.Line{}, alikeRaw: map[string]feed.Line{}}
 }
 
 func (p *lineParser) get(rec []string, c Column) string {
@@ -308,20 +322,39 @@ const maxRememberedLines = 4096
 // id was the same: a manifest lists many alike items under their own ids, and everything a line
 // holds besides its number and id follows from those fields alone. Only lines that parsed are
 // remembered, so every error is found by parse itself.
-func (p *lineParser) parseAlike(rec []string, line int) (feed.Line, error) {
+//
+// When the record was split from raw (starts: each field's offset in it), the key is raw with
+// the id's text cut out, the separators kept: equal keys split into equal fields but the id. With
+// the id first that is a substring, and looking it up copies nothing. Otherwise the key encodes
+// each field with its length.
+func (p *lineParser) parseAlike(rec []string, line int, raw string, starts []int) (feed.Line, error) {
 	idPos := p.hdr.pos[ColID]
 	if idPos < 0 {
 		return p.parse(rec, line)
 	}
-	p.keyBuf = p.keyBuf[:0]
-	for i, f := range rec {
-		if i == idPos {
-			f = ""
+	memo, key := p.alike, ""
+	switch {
+	case raw != "" && idPos < len(rec) && len(starts) == len(rec):
+		memo = p.alikeRaw
+		st, en := starts[idPos], starts[idPos]+len(rec[idPos])
+		if st == 0 {
+			key = raw[en:]
+		} else {
+			p.keyBuf = append(append(p.keyBuf[:0], raw[:st]...), raw[en:]...)
+			key = unsafeString(p.keyBuf)
 		}
-		p.keyBuf = binary.AppendUvarint(p.keyBuf, uint64(len(f)))
-		p.keyBuf = append(p.keyBuf, f...)
+	default:
+		p.keyBuf = p.keyBuf[:0]
+		for i, f := range rec {
+			if i == idPos {
+				f = ""
+			}
+			p.keyBuf = binary.AppendUvarint(p.keyBuf, uint64(len(f)))
+			p.keyBuf = append(p.keyBuf, f...)
+		}
+		key = unsafeString(p.keyBuf)
 	}
-	if l, ok := p.alike[string(p.keyBuf)]; ok {
+	if l, ok := memo[key]; ok {
 		id := p.get(rec, ColID)
 		if err := p.checkText(ColID, id, line); err != nil {
 			return feed.Line{}, err
@@ -330,10 +363,20 @@ func (p *lineParser) parseAlike(rec []string, line int) (feed.Line, error) {
 		return l, nil
 	}
 	l, err := p.parse(rec, line)
-	if err == nil && len(p.alike) < maxRememberedLines {
-		p.alike[string(p.keyBuf)] = l
+	if err == nil && len(memo) < maxRememberedLines {
+		// The key shares memory with the arena or the key buffer: the map keeps a copy.
+		memo[strings.Clone(key)] = l
 	}
 	return l, err
+}
+
+// unsafeString views b as a string for a map lookup; the caller neither keeps it nor lets b
+// change while it is in use.
+func unsafeString(b []byte) string {
+	if len(b) == 0 {
+		return ""
+	}
+	return unsafe.String(&b[0], len(b))
 }
 
 // onlyIgnored reports whether a row holds values in left-out columns only (a totals row of the

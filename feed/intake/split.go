@@ -32,6 +32,10 @@ type splitSource struct {
 	// ever appended to, never rewritten, so they stay valid, and a full arena is left to the
 	// strings that still use it. One allocation serves many lines.
 	arena []byte
+	// raw is the text of the line the last record was split from (in the arena), and starts
+	// holds each field's offset in it after trimming; raw is "" once encoding/csv reads.
+	raw    string
+	starts []int
 }
 
 // arenaBytes is the size of one arena: a few hundred manifest lines.
@@ -44,6 +48,7 @@ func newSplitSource(br *bufio.Reader, sep byte) *splitSource {
 // Read returns the next record and the line it starts on, or io.EOF. The record is reused by
 // the next call.
 func (s *splitSource) Read() ([]string, int, error) {
+	s.raw = ""
 	if s.cr != nil {
 		rec, err := s.cr.Read()
 		if err != nil {
@@ -114,21 +119,29 @@ func (s *splitSource) Read() ([]string, int, error) {
 // split cuts a quote-free line at the separator, trimming each field's leading white space. The
 // line is copied into the arena once and the fields are slices of it.
 func (s *splitSource) split(line []byte) []string {
-	s.rec = s.rec[:0]
+	s.rec, s.starts = s.rec[:0], s.starts[:0]
 	str := s.keep(line)
+	s.raw = str
+	at := 0
 	for {
 		i := strings.IndexByte(str, s.sep)
 		field := str
 		if i >= 0 {
 			field = str[:i]
 		}
-		s.rec = append(s.rec, trimLeftSpace(field))
+		f := trimLeftSpace(field)
+		s.rec = append(s.rec, f)
+		s.starts = append(s.starts, at+len(field)-len(f))
 		if i < 0 {
 			return s.rec
 		}
-		str = str[i+1:]
+		str, at = str[i+1:], at+i+1
 	}
 }
+
+// rawLine returns the text of the line the last record was split from and each field's offset
+// in it, or "" when the record came from encoding/csv (a quoted line, or any line after one).
+func (s *splitSource) rawLine() (string, []int) { return s.raw, s.starts }
 
 // keep copies line into the arena and returns it as a string that shares the arena's memory.
 func (s *splitSource) keep(line []byte) string {
