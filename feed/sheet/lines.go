@@ -12,6 +12,9 @@ import (
 // Part 1, §18.3.1.73) less the header.
 const MaxLines = 1_048_575
 
+// lines makes the Lines sheet, empty, in its place among the tabs, with its page setup; its
+// rows are streamed last (streamLines), once every formula elsewhere has been computed: the
+// formula engine reads every sheet, and would parse the streamed rows back into memory.
 func (w *writer) lines() error {
 	f, r := w.f, w.r
 	if r.Lot.Lines == 0 {
@@ -25,6 +28,15 @@ func (w *writer) lines() error {
 	}
 	w.pageSetup(Lines, true, false) // page setup goes in before the stream writer takes the sheet
 	_ = f.SetDefinedName(&excelize.DefinedName{Name: "_xlnm.Print_Titles", RefersTo: "'" + Lines + "'!$A:$A,'" + Lines + "'!$1:$1", Scope: Lines})
+	return nil
+}
+
+// streamLines writes the Lines sheet's rows through the stream writer.
+func (w *writer) streamLines() error {
+	f, r := w.f, w.r
+	if r.Lot.Lines == 0 {
+		return nil
+	}
 	sw, err := f.NewStreamWriter(Lines)
 	if err != nil {
 		return err

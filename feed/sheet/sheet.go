@@ -42,13 +42,16 @@ func Write(w io.Writer, r *feed.Report) error { return WriteOn(w, r, PaperA4) }
 
 // WriteOn is Write on the paper given (PaperA4 or PaperLetter).
 func WriteOn(w io.Writer, r *feed.Report, paper int) error {
-	f, formulas, err := build(r, paper)
+	f, formulas, streamLines, err := build(r, paper)
 	if err != nil {
 		return err
 	}
 	defer f.Close()
 	cached, err := cachedValues(f, formulas)
 	if err != nil {
+		return err
+	}
+	if err := streamLines(); err != nil {
 		return err
 	}
 	var buf bytes.Buffer
@@ -82,14 +85,22 @@ func cachedValues(f *excelize.File, formulas []formulaCell) (map[string]map[stri
 
 // Build returns the workbook; the caller closes it.
 func Build(r *feed.Report) (*excelize.File, error) {
-	f, _, err := build(r, PaperA4)
-	return f, err
+	f, _, streamLines, err := build(r, PaperA4)
+	if err != nil {
+		return nil, err
+	}
+	if err := streamLines(); err != nil {
+		f.Close()
+		return nil, err
+	}
+	return f, nil
 }
 
-func build(r *feed.Report, paper int) (*excelize.File, []formulaCell, error) {
-	f := excelize.NewFile()
+// build makes every sheet but the Lines sheet's rows, which the returned streamLines writes:
+// the caller computes the formulas first (see writer.lines).
+func build(r *feed.Report, paper int) (f *excelize.File, formulas []formulaCell, streamLines func() error, err error) {
+	f = excelize.NewFile()
 	wr := &writer{f: f, r: r, paper: paper}
-	var err error
 	must := func(id int, e error) int {
 		if e != nil && err == nil {
 			err = e
@@ -110,7 +121,7 @@ func build(r *feed.Report, paper int) (*excelize.File, []formulaCell, error) {
 	wr.edit = must(f.NewStyle(&excelize.Style{Fill: excelize.Fill{Type: "pattern", Pattern: 1, Color: []string{"FFF2CC"}}, CustomNumFmt: &f3,
 		Border: []excelize.Border{{Type: "left", Color: "BF9000", Style: 1}, {Type: "right", Color: "BF9000", Style: 1}, {Type: "top", Color: "BF9000", Style: 1}, {Type: "bottom", Color: "BF9000", Style: 1}}}))
 	if err != nil {
-		return nil, nil, err
+		return nil, nil, nil, err
 	}
 	// The summary is made active before the Lines sheet is streamed: setting it afterwards would
 	// make the xlsx library parse the streamed sheet back into memory.
@@ -118,7 +129,7 @@ func build(r *feed.Report, paper int) (*excelize.File, []formulaCell, error) {
 	for _, s := range steps {
 		if err := s(); err != nil {
 			f.Close()
-			return nil, nil, err
+			return nil, nil, nil, err
 		}
 	}
 	lot := r.Inputs.LotID
@@ -127,7 +138,7 @@ func build(r *feed.Report, paper int) (*excelize.File, []formulaCell, error) {
 	}
 	_ = f.SetDocProps(&excelize.DocProperties{Title: "Intake sheet " + lot, Creator: "blackmass " + r.Inputs.Version,
 		Created: "2000-01-01T00:00:00Z", Modified: "2000-01-01T00:00:00Z"})
-	return f, wr.formulas, nil
+	return f, wr.formulas, wr.streamLines, nil
 }
 
 func (w *writer) row(sheet string, row int, vals ...any) error {
