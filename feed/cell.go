@@ -36,7 +36,7 @@ type breakdown struct {
 }
 
 // model computes the item breakdown from nameplate energy (Wh) and/or charge (Ah).
-func model(energyWh, chargeAh float64, mx mix, f fractions, g globals) breakdown {
+func model(energyWh, chargeAh float64, mx mix, f design, g globals) breakdown {
 	qAhG := mx.capMAhG / 1000
 	var b breakdown
 	// The nameplate is what the full cell delivers: a share (utilisation) of what its cathode
@@ -59,7 +59,7 @@ func model(energyWh, chargeAh float64, mx mix, f fractions, g globals) breakdown
 
 // blackMass adds the black-mass compounds of b (grams) into dst (fixed compounds first, then the
 // cathode materials at camIdx with shares camShare).
-func (b breakdown) blackMass(dst []float64, f fractions, g globals, camIdx []int, camShare []float64) {
+func (b breakdown) blackMass(dst []float64, f design, g globals, camIdx []int, camShare []float64) {
 	for i, k := range camIdx {
 		dst[k] += b.cam * camShare[i] * g.recCAM
 	}

@@ -11,7 +11,7 @@ func TestFoilsFromAreaAndThickness(t *testing.T) {
 	// Densities at 20 °C: Al 2.70 g/cm³, Cu 8.96 g/cm³ (CRC Handbook of Chemistry and Physics,
 	// section 4, density of the elements).
 	g := globals{np: 1.1, qGraphiteMAhG: 350, utilisation: 0.9, rhoAlGCm3: 2.70, rhoCuGCm3: 8.96}
-	f := fractions{arealMAhCm2: 2, alUm: 15, cuUm: 10, elGPerAh: 1.5, bc: 0.03, sep: 0.03, casing: 0.2}
+	f := design{arealMAhCm2: 2, alUm: 15, cuUm: 10, elGPerAh: 1.5, bc: 0.03, sep: 0.03, casing: 0.2}
 	// 0.9 Ah at 3.6 V (3.24 Wh) from a 150 mAh/g cathode used at 90 %: 6.667 g of cathode holding
 	// 1 Ah, coated 2 mAh/cm² a side on both sides of 250 cm² of each foil.
 	b := model(3.24, 0, mix{capMAhG: 150, voltV: 3.6}, f, g)

@@ -44,7 +44,7 @@ var formatDesignNames = []string{"areal_capacity", "al_foil_thickness", "cu_foil
 
 var casingNames = []string{"casing_steel", "casing_al", "casing_polymer"}
 
-// LoadModel reads model.csv from fsys and checks that every format has its fractions and exactly
+// LoadModel reads model.csv from fsys and checks that every format has its design parameters and exactly
 // one casing material, and that the fractions leave room for the active materials.
 func LoadModel(fsys fs.FS) (*Model, error) {
 	t, err := data.ReadTable(fsys, "model.csv")
@@ -139,9 +139,9 @@ type globals struct {
 	rhoAlGCm3, rhoCuGCm3 float64
 }
 
-// fractions are one format's design at one draw: the current collectors and electrolyte sized by
+// design is one format's cell design at one draw: the current collectors and electrolyte sized by
 // capacity, the rest as fractions of the cell mass.
-type fractions struct {
+type design struct {
 	arealMAhCm2, alUm, cuUm, elGPerAh float64
 	bc, sep, casing                   float64
 	kind                              casingKind
@@ -153,11 +153,11 @@ type paramSet struct {
 	m       *Model
 	d       *dist.Drawer
 	globals []globals
-	formats map[Format][]fractions
+	formats map[Format][]design
 }
 
 func newParamSet(m *Model, seed uint64, samples int) *paramSet {
-	ps := &paramSet{m: m, d: dist.NewDrawer(seed, samples), formats: map[Format][]fractions{}}
+	ps := &paramSet{m: m, d: dist.NewDrawer(seed, samples), formats: map[Format][]design{}}
 	n := max(samples, 1)
 	g := make([][]float64, len(globalNames))
 	for i, name := range globalNames {
@@ -182,9 +182,9 @@ func newParamSet(m *Model, seed uint64, samples int) *paramSet {
 		if f.IsAssembly() {
 			over = ps.values(sc, sc+"_overhead")
 		}
-		fr := make([]fractions, n)
+		fr := make([]design, n)
 		for s := range n {
-			fr[s] = fractions{areal[s], al[s], cu[s], el[s], bc[s], sep[s], cas[s], kind, over[s]}
+			fr[s] = design{areal[s], al[s], cu[s], el[s], bc[s], sep[s], cas[s], kind, over[s]}
 		}
 		ps.formats[f] = fr
 	}
