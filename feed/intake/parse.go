@@ -197,7 +197,7 @@ type lineParser struct {
 	quantities   [numColumns]map[string]quantity // per column, quantity text -> value, so repeated values parse once
 	alike        map[string]feed.Line            // parsed lines by their fields other than the id (parseAlike)
 	alikeRaw     map[string]feed.Line            // parsed lines by their text without the id (parseAlike)
-	keyBuf       []byte
+	keyBuf       []byte                          // parseAlike's alone: its key may view this buffer until the line is remembered
 }
 
 // quantity is a parsed quantity, or the error it gave, with its text in the base unit.
