@@ -27,13 +27,23 @@ func ReadCSV(r io.Reader, name string, opt Options, fn func(feed.Line) error) (I
 // errLineTooLong is returned by lineLimit for a physical line over its limit.
 var errLineTooLong = fmt.Errorf("a line longer than %d bytes", MaxLineBytes)
 
+// lineLengthError is errLineTooLong at a line: the physical line (1-based) that ran over.
+type lineLengthError struct{ line int }
+
+func (e *lineLengthError) Error() string { return errLineTooLong.Error() }
+func (e *lineLengthError) Unwrap() error { return errLineTooLong }
+
 // lineLimit fails a read once a physical line exceeds max bytes, so one huge row cannot take
 // memory in proportion to its length.
 type lineLimit struct {
-	r   io.Reader
-	max int
-	run int // bytes since the last newline
+	r     io.Reader
+	max   int
+	run   int // bytes since the last newline
+	lines int // newlines read so far
 }
+
+// tooLong is the error for the line being read.
+func (l *lineLimit) tooLong() error { return &lineLengthError{line: l.lines + 1} }
 
 func (l *lineLimit) Read(p []byte) (int, error) {
 	n, err := l.r.Read(p)
@@ -50,18 +60,18 @@ func (l *lineLimit) Read(p []byte) (int, error) {
 		if i >= 0 && l.run+len(seg) <= l.max {
 			l.run += len(seg)
 		} else if l.crRun(seg) {
-			return 0, errLineTooLong
+			return 0, l.tooLong()
 		}
 		if i < 0 {
 			break
 		}
 		if l.run > l.max {
-			return 0, errLineTooLong
+			return 0, l.tooLong()
 		}
-		l.run, b = 0, b[i+1:]
+		l.run, b, l.lines = 0, b[i+1:], l.lines+1
 	}
 	if l.run > l.max {
-		return 0, errLineTooLong
+		return 0, l.tooLong()
 	}
 	return n, err
 }
@@ -94,9 +104,11 @@ func (s *csvSource) next() ([]string, int, error) {
 	rec, line, err := s.cr.Read()
 	if err != nil {
 		var pe *csv.ParseError
+		var le *lineLengthError
 		switch {
-		case errors.As(err, &pe) && errors.Is(pe.Err, errLineTooLong):
-			return nil, pe.Line, &Error{File: s.name, Line: pe.Line, Reason: errLineTooLong.Error()}
+		case errors.As(err, &le):
+			// The guard counts the physical lines it has passed: name the one that ran over.
+			return nil, le.line, &Error{File: s.name, Line: le.line, Reason: errLineTooLong.Error()}
 		case errors.As(err, &pe):
 			return nil, pe.Line, &Error{File: s.name, Line: pe.Line, Reason: pe.Err.Error()}
 		case errors.Is(err, errLineTooLong):
