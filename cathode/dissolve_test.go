@@ -5,6 +5,7 @@ import (
 	"testing"
 
 	"blackmass/cathode"
+	"blackmass/cathode/cathodetest"
 )
 
 func mustReact(t testing.TB, formula string, route cathode.Route) cathode.Reaction {
@@ -132,10 +133,7 @@ func TestHydrogenFromAluminium(t *testing.T) {
 // Every catalogue entry and every other black-mass species, on every route, at full and partial
 // extraction, conserves every element and closes the liquor's charge balance.
 func TestConservation(t *testing.T) {
-	cat, err := cathode.DefaultCatalogue()
-	if err != nil {
-		t.Fatal(err)
-	}
+	cat := cathodetest.Catalogue(t)
 	var formulas []string
 	for _, e := range cat.Entries() {
 		formulas = append(formulas, e.Formula.String())

@@ -35,12 +35,16 @@ func ExampleDissolve() {
 }
 
 func ExampleCatalogue_ParseLabel() {
-	cat, _ := cathode.DefaultCatalogue()
+	cat, err := cathode.DefaultCatalogue()
+	if err != nil {
+		fmt.Println(err)
+		return
+	}
 	for _, label := range []string{"NCM 5:2:3", "LMO+NMC532 70/30", "Li-ion"} {
 		ch, _ := cat.ParseLabel(label)
 		fmt.Printf("%-18q %s (%d components, unknown=%v)\n", label, ch.Key, len(ch.Components), ch.Unknown)
 	}
-	_, err := cat.ParseLabel("NMC812x")
+	_, err = cat.ParseLabel("NMC812x")
 	fmt.Println(err)
 	// Output:
 	// "NCM 5:2:3"        NMC532 (1 components, unknown=false)

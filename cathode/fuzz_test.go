@@ -5,6 +5,7 @@ import (
 	"testing"
 
 	"blackmass/cathode"
+	"blackmass/cathode/cathodetest"
 )
 
 func FuzzParseFormula(f *testing.F) {
@@ -47,10 +48,7 @@ func FuzzParseFormula(f *testing.F) {
 }
 
 func FuzzParseLabel(f *testing.F) {
-	cat, err := cathode.DefaultCatalogue()
-	if err != nil {
-		f.Fatal(err)
-	}
+	cat := cathodetest.Catalogue(f)
 	for _, s := range []string{"NMC811", "NCM 8:1:1", "LMO+NMC532 70/30", "Li-ion", "LiNi0.9Mn0.05Co0.05O2", "nmc(9.5.5)", "+", "NMC 0:0:0"} {
 		f.Add(s)
 	}

@@ -7,13 +7,11 @@ import (
 	"testing"
 
 	"blackmass/cathode"
+	"blackmass/cathode/cathodetest"
 )
 
 func TestParseLabel(t *testing.T) {
-	cat, err := cathode.DefaultCatalogue()
-	if err != nil {
-		t.Fatal(err)
-	}
+	cat := cathodetest.Catalogue(t)
 	for _, c := range []struct {
 		label, want string
 		kind        cathode.Kind
@@ -103,10 +101,7 @@ func TestParseLabel(t *testing.T) {
 // The prior of an unknown item depends on what the item is, and each application's shares sum
 // to one.
 func TestUnknownByApplication(t *testing.T) {
-	cat, err := cathode.DefaultCatalogue()
-	if err != nil {
-		t.Fatal(err)
-	}
+	cat := cathodetest.Catalogue(t)
 	for _, c := range []struct{ text, app string }{
 		{"returned phone battery", "phone"}, {"old laptop packs", "laptop"}, {"cordless drill 18V", "power_tool"},
 		{"E-bike pack 36V", "ebike"}, {"EV module", "vehicle"}, {"home battery (storage)", "storage"},
@@ -146,7 +141,7 @@ func share(ch cathode.Chemistry, key string) float64 {
 }
 
 func TestParseLabelUnknownListsNearest(t *testing.T) {
-	cat, _ := cathode.DefaultCatalogue()
+	cat := cathodetest.Catalogue(t)
 	for _, c := range []struct{ label, near string }{{"NMC812x", "NMC811"}, {"LFO", "LFP"}, {"NCAA", "NCA"}} {
 		_, err := cat.ParseLabel(c.label)
 		if !errors.Is(err, cathode.ErrUnknownLabel) {
@@ -164,7 +159,7 @@ func TestParseLabelUnknownListsNearest(t *testing.T) {
 }
 
 func TestUserCatalogue(t *testing.T) {
-	cat, _ := cathode.DefaultCatalogue()
+	cat := cathodetest.Catalogue(t)
 	user := "key,name,formula,family,aliases,voltage_min_V,voltage_mode_V,voltage_max_V,capacity_min_mAh_g,capacity_mode_mAh_g,capacity_max_mAh_g,specific_energy_min_Wh_kg,specific_energy_max_Wh_kg,source\n" +
 		"LMFP,lithium manganese iron phosphate,LiMn0.6Fe0.4PO4,olivine,,3.6,3.7,3.8,140,150,155,120,200,bench test data\n"
 	if err := cat.Add(strings.NewReader(user), "mine.csv"); err != nil {
@@ -175,7 +170,7 @@ func TestUserCatalogue(t *testing.T) {
 		t.Fatalf("ParseLabel(lmfp) = %v, %v", ch.Key, err)
 	}
 	// The default catalogue is not changed by a copy's additions.
-	fresh, _ := cathode.DefaultCatalogue()
+	fresh := cathodetest.Catalogue(t)
 	if fresh.Lookup("LMFP") != nil {
 		t.Error("DefaultCatalogue shares state between copies")
 	}
@@ -198,7 +193,7 @@ func TestUserCatalogueRefusals(t *testing.T) {
 		{"tiny capacity", "LT,x,LiMn2O4,spinel,,3.7,3.75,3.8,1e-300,110,120,90,160,bench", "capacity must lie"},
 	} {
 		t.Run(c.name, func(t *testing.T) {
-			cat, _ := cathode.DefaultCatalogue()
+			cat := cathodetest.Catalogue(t)
 			err := cat.Add(strings.NewReader(head+c.row+"\n"), "mine.csv")
 			if err == nil || (c.want != "" && !strings.Contains(err.Error(), c.want)) {
 				t.Errorf("error %v, want %q", err, c.want)
@@ -210,7 +205,7 @@ func TestUserCatalogueRefusals(t *testing.T) {
 // Labels as they arrive on paperwork: generic words around the cathode's name, a second name in
 // brackets; a bracket that disagrees is refused.
 func TestParseLabelReworded(t *testing.T) {
-	cat, _ := cathode.DefaultCatalogue()
+	cat := cathodetest.Catalogue(t)
 	for _, c := range []struct{ label, want string }{
 		{"Li-ion NMC", "NMC (grade unknown)"}, {"LFP battery", "LFP"}, {"NCA cells", "NCA"},
 		{"LiFePO4 (LFP)", "LFP"}, {"LFP (lithium iron phosphate)", "LFP"}, {"Lithium-ion LCO pack", "LCO"},

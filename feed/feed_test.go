@@ -15,6 +15,7 @@ import (
 	"time"
 
 	"blackmass/cathode"
+	"blackmass/cathode/cathodetest"
 	"blackmass/data/datatest"
 	"blackmass/feed"
 	"blackmass/feed/assay"
@@ -29,16 +30,20 @@ func readCSV(r io.Reader, name string, opt intake.Options, fn func(feed.Line) er
 	return err
 }
 
-func estimate(t testing.TB, manifest string, seed uint64, samples int) (*feed.Report, *feed.Samples) {
+// embedded returns the embedded catalogue and model.
+func embedded(t testing.TB) (*cathode.Catalogue, *feed.Model) {
 	t.Helper()
-	cat, err := cathode.DefaultCatalogue()
-	if err != nil {
-		t.Fatal(err)
-	}
+	cat := cathodetest.Catalogue(t)
 	m, err := feed.DefaultModel()
 	if err != nil {
 		t.Fatal(err)
 	}
+	return cat, m
+}
+
+func estimate(t testing.TB, manifest string, seed uint64, samples int) (*feed.Report, *feed.Samples) {
+	t.Helper()
+	cat, m := embedded(t)
 	lot := feed.NewLot(m, true)
 	if err := readCSV(strings.NewReader(manifest), "test.csv", intake.Options{Catalogue: cat}, lot.Add); err != nil {
 		t.Fatal(err)
@@ -200,14 +205,7 @@ func genManifest(n int) []byte {
 func BenchmarkEstimate1M(b *testing.B) {
 	const n = 1_000_000
 	in := genManifest(n)
-	cat, err := cathode.DefaultCatalogue()
-	if err != nil {
-		b.Fatal(err)
-	}
-	m, err := feed.DefaultModel()
-	if err != nil {
-		b.Fatal(err)
-	}
+	cat, m := embedded(b)
 	b.SetBytes(int64(len(in)))
 	b.ReportAllocs()
 	var estimateNs, csvNs int64
@@ -302,8 +300,7 @@ func TestLeachChargeBalanceAndScaling(t *testing.T) {
 
 func leachLot(t *testing.T, route cathode.Route, pulp float64) *leach.Report {
 	t.Helper()
-	cat, _ := cathode.DefaultCatalogue()
-	m, _ := feed.DefaultModel()
+	cat, m := embedded(t)
 	lot := feed.NewLot(m, false)
 	if err := readCSV(strings.NewReader(mixed), "t.csv", intake.Options{Catalogue: cat}, lot.Add); err != nil {
 		t.Fatal(err)
@@ -341,8 +338,7 @@ func TestLotValue(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	cat, _ := cathode.DefaultCatalogue()
-	m, _ := feed.DefaultModel()
+	cat, m := embedded(t)
 	run := func(prices *feed.PriceList) *feed.Report {
 		lot := feed.NewLot(m, false)
 		if err := readCSV(strings.NewReader(mixed), "t.csv", intake.Options{Catalogue: cat}, lot.Add); err != nil {

@@ -15,7 +15,7 @@ import (
 	"strings"
 	"testing"
 
-	"blackmass/cathode"
+	"blackmass/cathode/cathodetest"
 	"blackmass/data"
 	"blackmass/feed/dist"
 )
@@ -69,10 +69,7 @@ type cellDraw struct {
 // every draw.
 func cellDraws(t *testing.T, label string, f Format, energyWh, chargeAh float64) []cellDraw {
 	t.Helper()
-	cat, err := cathode.DefaultCatalogue()
-	if err != nil {
-		t.Fatal(err)
-	}
+	cat := cathodetest.Catalogue(t)
 	ch, err := cat.ParseLabel(label)
 	if err != nil {
 		t.Fatal(err)
@@ -203,10 +200,7 @@ func TestReferenceCellDesigns(t *testing.T) {
 // Published cell-level metal intensities (kg metal per kWh nameplate, in the cathode).
 func TestReferenceMetalIntensity(t *testing.T) {
 	tab := readReference(t, "intensities.csv")
-	cat, err := cathode.DefaultCatalogue()
-	if err != nil {
-		t.Fatal(err)
-	}
+	cat := cathodetest.Catalogue(t)
 	cov := coverage{name: "metal intensities"}
 	for _, r := range tab.Rows {
 		e := cat.Lookup(r.Str("chemistry"))
@@ -242,10 +236,7 @@ func TestReferenceMetalIntensity(t *testing.T) {
 // Published black-mass assays by feed: the model's P50 lies inside the published range.
 func TestReferenceBlackMass(t *testing.T) {
 	tab := readReference(t, "black_mass.csv")
-	cat, err := cathode.DefaultCatalogue()
-	if err != nil {
-		t.Fatal(err)
-	}
+	cat := cathodetest.Catalogue(t)
 	m, err := DefaultModel()
 	if err != nil {
 		t.Fatal(err)

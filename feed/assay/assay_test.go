@@ -10,6 +10,7 @@ import (
 	"testing"
 
 	"blackmass/cathode"
+	"blackmass/cathode/cathodetest"
 	"blackmass/data/datatest"
 	"blackmass/feed/assay"
 	"blackmass/feed/dist"
@@ -53,7 +54,8 @@ func composition(parts map[string]float64) map[string]float64 {
 }
 
 func candidates(t *testing.T, keys ...string) []*cathode.Entry {
-	cat, _ := cathode.DefaultCatalogue()
+	t.Helper()
+	cat := cathodetest.Catalogue(t)
 	var out []*cathode.Entry
 	for _, k := range keys {
 		e := cat.Lookup(k)
@@ -121,7 +123,7 @@ func TestInferMixRecoversSynthetic(t *testing.T) {
 
 // Published black-mass compositions give plausible mixes.
 func TestInferMixPublished(t *testing.T) {
-	cat, _ := cathode.DefaultCatalogue()
+	cat := cathodetest.Catalogue(t)
 	all := cat.Entries()
 	es := cathode.DefaultElements()
 	oxide := func(ox string, pct float64, el string) float64 {

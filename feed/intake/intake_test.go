@@ -17,19 +17,20 @@ import (
 
 	"github.com/xuri/excelize/v2"
 
-	"blackmass/cathode"
+	"blackmass/cathode/cathodetest"
 	"blackmass/data"
 	"blackmass/feed"
 	"blackmass/feed/intake"
 )
 
-func catalogue(t testing.TB) *cathode.Catalogue {
+// model returns the embedded cell model.
+func model(t testing.TB) *feed.Model {
 	t.Helper()
-	cat, err := cathode.DefaultCatalogue()
+	m, err := feed.DefaultModel()
 	if err != nil {
 		t.Fatal(err)
 	}
-	return cat
+	return m
 }
 
 // readFile reads a manifest from testdata/intake into lines.
@@ -40,7 +41,7 @@ func readFile(t *testing.T, name string, opt intake.Options) ([]feed.Line, intak
 		t.Fatal(err)
 	}
 	if opt.Catalogue == nil {
-		opt.Catalogue = catalogue(t)
+		opt.Catalogue = cathodetest.Catalogue(t)
 	}
 	var lines []feed.Line
 	info, err := intake.ReadCSV(bytes.NewReader(b), name, opt, func(l feed.Line) error {
@@ -101,7 +102,7 @@ func TestHeaderSynonymsAreRead(t *testing.T) {
 }
 
 func TestHeaderRecognition(t *testing.T) {
-	cat := catalogue(t)
+	cat := cathodetest.Catalogue(t)
 	for _, c := range []struct {
 		name, header, row string
 		wantErr           string
@@ -283,7 +284,7 @@ func TestLabelResolutions(t *testing.T) {
 func coBand(t *testing.T, manifest string) (p10, p90 float64) {
 	t.Helper()
 	var lines []feed.Line
-	if _, err := intake.ReadCSV(strings.NewReader(manifest), "u.csv", intake.Options{Catalogue: catalogue(t)}, func(l feed.Line) error {
+	if _, err := intake.ReadCSV(strings.NewReader(manifest), "u.csv", intake.Options{Catalogue: cathodetest.Catalogue(t)}, func(l feed.Line) error {
 		lines = append(lines, l)
 		return nil
 	}); err != nil {
@@ -350,7 +351,7 @@ func TestReadXLSX(t *testing.T) {
 		t.Fatal(err)
 	}
 	var got []feed.Line
-	info, err := intake.ReadXLSX(bytes.NewReader(buf.Bytes()), "hand.xlsx", intake.Options{Catalogue: catalogue(t)}, func(l feed.Line) error {
+	info, err := intake.ReadXLSX(bytes.NewReader(buf.Bytes()), "hand.xlsx", intake.Options{Catalogue: cathodetest.Catalogue(t)}, func(l feed.Line) error {
 		got = append(got, l)
 		return nil
 	})
@@ -361,10 +362,10 @@ func TestReadXLSX(t *testing.T) {
 	if info.Sheet != "Intake" || len(got) != 2 || got[0].EnergyWh != 5*3.65 || got[0].MassKg != 0.65 || got[1].Count != 1234 || got[1].ID != "#7" {
 		t.Fatalf("info %+v, lines %+v", info, got)
 	}
-	if _, err := intake.ReadXLSX(strings.NewReader("not a zip"), "x.xlsx", intake.Options{Catalogue: catalogue(t)}, func(feed.Line) error { return nil }); err == nil {
+	if _, err := intake.ReadXLSX(strings.NewReader("not a zip"), "x.xlsx", intake.Options{Catalogue: cathodetest.Catalogue(t)}, func(feed.Line) error { return nil }); err == nil {
 		t.Error("garbage accepted")
 	}
-	if _, err := intake.ReadXLSX(bytes.NewReader(buf.Bytes()), "hand.xlsx", intake.Options{Catalogue: catalogue(t), Sheet: "Nope"}, func(feed.Line) error { return nil }); err == nil || !strings.Contains(err.Error(), `no sheet "Nope"`) {
+	if _, err := intake.ReadXLSX(bytes.NewReader(buf.Bytes()), "hand.xlsx", intake.Options{Catalogue: cathodetest.Catalogue(t), Sheet: "Nope"}, func(feed.Line) error { return nil }); err == nil || !strings.Contains(err.Error(), `no sheet "Nope"`) {
 		t.Errorf("missing sheet: %v", err)
 	}
 }
@@ -377,7 +378,7 @@ func FuzzReadManifest(f *testing.F) {
 	f.Add("chemistry,format,capacity,count,cells_per_pack\nLCO,pack,3 Ah,1,13s4p\n")
 	f.Add("Volts,Config,Type,Form,Capacity (Ah),Qty,Weight kg\n36,10s4p,NMC,pack,14,2,2.9\n")
 	f.Add("chemistry,format,capacity,count\nLCO,pouch,1e-300 Wh,1\n")
-	cat, _ := cathode.DefaultCatalogue()
+	cat := cathodetest.Catalogue(f)
 	f.Fuzz(func(t *testing.T, s string) {
 		_, _ = intake.ReadCSV(strings.NewReader(s), "fuzz.csv", intake.Options{Catalogue: cat, UnknownAsPrior: true}, func(l feed.Line) error {
 			finite := func(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) && v >= 0 }
@@ -393,7 +394,7 @@ func FuzzReadManifest(f *testing.F) {
 // Hostile or careless input is refused quickly with an error naming the file, and the line
 // where there is one; nothing absurd gets through to the model.
 func TestHostileCSV(t *testing.T) {
-	cat := catalogue(t)
+	cat := cathodetest.Catalogue(t)
 	hdr := "chemistry,format,capacity,count\n"
 	for _, c := range []struct{ name, in, want string }{
 		{"tiny capacity (NaN downstream)", hdr + "LCO,pouch,1e-300 Wh,1\n", "below any lithium-ion cell"},
@@ -425,8 +426,8 @@ func TestHostileCSV(t *testing.T) {
 // Distinct formula labels cost time in proportion to their number (compare ns/label across
 // the sizes).
 func BenchmarkDistinctFormulaLabels(b *testing.B) {
-	cat := catalogue(b)
-	m, _ := feed.DefaultModel()
+	cat := cathodetest.Catalogue(b)
+	m := model(b)
 	for _, n := range []int{250, 1000} {
 		var sb strings.Builder
 		sb.WriteString("chemistry,format,capacity,count\n")
@@ -527,7 +528,7 @@ func TestXLSXBombs(t *testing.T) {
 	if testing.Short() {
 		t.Skip("builds 300 MB of compressed parts")
 	}
-	cat := catalogue(t)
+	cat := cathodetest.Catalogue(t)
 	const inflated = 300 << 20 // past MaxUnzippedBytes
 	for name, parts := range map[string]map[string]func(io.Writer) error{
 		"custom properties": {"docProps/custom.xml": repeat(" ", inflated)},
@@ -573,8 +574,8 @@ func TestHostileManifestCost(t *testing.T) {
 	if testing.Short() {
 		t.Skip("builds 10 MB inputs")
 	}
-	cat := catalogue(t)
-	m, _ := feed.DefaultModel()
+	cat := cathodetest.Catalogue(t)
+	m := model(t)
 	hdr := "chemistry,format,capacity,count\n"
 	distinct := func() string {
 		var b strings.Builder
@@ -617,7 +618,7 @@ func TestHostileManifestCost(t *testing.T) {
 // A merged chemistry cell, or a chemistry formula with no saved result, would read as unknown on
 // the rows below: refused, naming the cell.
 func TestXLSXMergedAndFormulaCells(t *testing.T) {
-	cat := catalogue(t)
+	cat := cathodetest.Catalogue(t)
 	build := func(edit func(f *excelize.File)) []byte {
 		f := excelize.NewFile()
 		_ = f.SetSheetRow("Sheet1", "A1", &[]any{"chemistry", "format", "capacity", "count"})
@@ -668,7 +669,7 @@ func TestXLSXWideRows(t *testing.T) {
 		t.Fatal(err)
 	}
 	start := time.Now()
-	_, err := intake.ReadXLSX(bytes.NewReader(buf.Bytes()), "wide.xlsx", intake.Options{Catalogue: catalogue(t)}, func(feed.Line) error { return nil })
+	_, err := intake.ReadXLSX(bytes.NewReader(buf.Bytes()), "wide.xlsx", intake.Options{Catalogue: cathodetest.Catalogue(t)}, func(feed.Line) error { return nil })
 	if err == nil || !strings.Contains(err.Error(), "columns") {
 		t.Fatalf("error %v", err)
 	}
@@ -745,7 +746,7 @@ func FuzzSplitMatchesCSV(f *testing.F) {
 func readString(t *testing.T, in string) ([]feed.Line, error) {
 	t.Helper()
 	var lines []feed.Line
-	_, err := intake.ReadCSV(strings.NewReader(in), "m.csv", intake.Options{Catalogue: catalogue(t)}, func(l feed.Line) error {
+	_, err := intake.ReadCSV(strings.NewReader(in), "m.csv", intake.Options{Catalogue: cathodetest.Catalogue(t)}, func(l feed.Line) error {
 		lines = append(lines, l)
 		return nil
 	})

@@ -7,6 +7,7 @@ import (
 	"testing"
 
 	"blackmass/cathode"
+	"blackmass/cathode/cathodetest"
 	"blackmass/feed/leach"
 )
 
@@ -245,10 +246,7 @@ func TestLeachSelectiveKeepsOxideLithium(t *testing.T) {
 // Every catalogue entry, every route, full and under-dosed: the liquor balances its charge, no
 // element leaves more than the feed held, free acid and water are never negative.
 func TestLeachConservationUnderEveryDose(t *testing.T) {
-	cat, err := cathode.DefaultCatalogue()
-	if err != nil {
-		t.Fatal(err)
-	}
+	cat := cathodetest.Catalogue(t)
 	for _, e := range cat.Entries() {
 		for _, route := range cathode.Routes() {
 			for _, dose := range []float64{0.3, 0.9, 1.5} {

@@ -6,6 +6,7 @@ import (
 	"testing"
 
 	"blackmass/cathode"
+	"blackmass/cathode/cathodetest"
 	"blackmass/data"
 	"blackmass/data/datatest"
 )
@@ -53,10 +54,7 @@ func TestReductantHalfReactionsBalance(t *testing.T) {
 // change as they dissolve, from the species' states) equals what the metals of the feed, the
 // reductant and chloride give, less what goes to H2 and to the peroxide acting as oxidant.
 func TestLeachElectronsClose(t *testing.T) {
-	cat, err := cathode.DefaultCatalogue()
-	if err != nil {
-		t.Fatal(err)
-	}
+	cat := cathodetest.Catalogue(t)
 	reds, err := LoadReductants(fsTables{data.FS}, cathode.DefaultElements())
 	if err != nil {
 		t.Fatal(err)
@@ -144,7 +142,10 @@ func TestLeachTablesOwnAtomicWeights(t *testing.T) {
 	}
 	for _, r := range lt.reductants {
 		if strings.Contains(r.Formula, "S") && !strings.Contains(r.Formula, "Si") {
-			f, _ := cathode.DefaultElements().ParseFormula(r.Formula)
+			f, err := cathode.DefaultElements().ParseFormula(r.Formula)
+			if err != nil {
+				t.Fatal(err)
+			}
 			if math.Abs(r.MolarMassGMol-f.MolarMass(cathode.DefaultElements())-f.Moles("S")*(33-32.06)) > 1e-9 {
 				t.Errorf("%s: %v g/mol does not use S = 33", r.Key, r.MolarMassGMol)
 			}

@@ -13,7 +13,7 @@ import (
 
 	"github.com/xuri/excelize/v2"
 
-	"blackmass/cathode"
+	"blackmass/cathode/cathodetest"
 	"blackmass/feed"
 	"blackmass/feed/intake"
 	"blackmass/feed/leach"
@@ -33,8 +33,11 @@ func reportWith(tb testing.TB, lines int, lo leach.Options) *feed.Report {
 	for i := range lines {
 		fmt.Fprintf(&b, "L%d,item %d,%s\n", i, i, rows[i%len(rows)])
 	}
-	cat, _ := cathode.DefaultCatalogue()
-	m, _ := feed.DefaultModel()
+	cat := cathodetest.Catalogue(tb)
+	m, err := feed.DefaultModel()
+	if err != nil {
+		tb.Fatal(err)
+	}
 	lot := feed.NewLot(m, true)
 	if _, err := intake.ReadCSV(strings.NewReader(b.String()), "gen.csv", intake.Options{Catalogue: cat}, lot.Add); err != nil {
 		tb.Fatal(err)
