@@ -244,3 +244,36 @@ func TestSelectivePartial(t *testing.T) {
 	}
 	checkBalance(t, "LiFePO4 90 %", rx)
 }
+
+// Layered and spinel oxides holding nickel take Mn(IV) and Co(III) with nickel the rest: Ni(II)
+// in NMC111 and LiNi0.5Mn1.5O4, between +2 and +3 in the nickel-rich grades (X-ray absorption:
+// Koyama et al., J. Power Sources 119-121 (2003) 644, from memory); a lithium-poor oxide's nickel
+// takes the charge the lithium left; where nickel would fall below +2 every metal averages.
+func TestOxidationStatesOfNickelOxides(t *testing.T) {
+	for _, c := range []struct {
+		name, formula string
+		want          map[string]float64
+	}{
+		{"NMC111: Ni(II) with Mn(IV)", "LiNi1/3Mn1/3Co1/3O2", map[string]float64{"Ni": 2, "Mn": 4, "Co": 3}},
+		{"NMC532", "LiNi0.5Mn0.3Co0.2O2", map[string]float64{"Ni": 2.4, "Mn": 4, "Co": 3}},
+		{"NMC811", "LiNi0.8Mn0.1Co0.1O2", map[string]float64{"Ni": 2.875, "Mn": 4, "Co": 3}},
+		{"NCA: Ni(III)", "LiNi0.8Co0.15Al0.05O2", map[string]float64{"Ni": 3, "Co": 3}},
+		{"high-voltage spinel", "LiNi0.5Mn1.5O4", map[string]float64{"Ni": 2, "Mn": 4}},
+		{"half-delithiated NMC111", "Li0.5Ni1/3Mn1/3Co1/3O2", map[string]float64{"Ni": 3.5, "Mn": 4, "Co": 3}},
+		{"no nickel: LMO averages", "LiMn2O4", map[string]float64{"Mn": 3.5}},
+		{"nickel would fall below +2: average", "LiNi0.5Mn0.5O1.9", map[string]float64{"Ni": 2.8, "Mn": 2.8}},
+		{"iron present: average", "LiNi0.5Fe0.5O2", map[string]float64{"Ni": 3, "Fe": 3}},
+	} {
+		t.Run(c.name, func(t *testing.T) {
+			sp, err := cathode.NewSpecies(mustFormula(t, c.formula))
+			if err != nil {
+				t.Fatal(err)
+			}
+			for el, want := range c.want {
+				if got := sp.State(el); math.Abs(got-want) > 1e-12 {
+					t.Errorf("%s %+.4f, want %+.4f", el, got, want)
+				}
+			}
+		})
+	}
+}

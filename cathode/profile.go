@@ -28,6 +28,7 @@ type Profile struct {
 	MassFractions              []Term // element mass fractions (0..1)
 	TheoreticalCapacityMAhPerG float64
 	TransitionMetalState       float64 // average oxidation state of Mn/Fe/Co/Ni/Cu; NaN if none
+	States                     []Term  // each transition metal's oxidation state, in formula order
 	Routes                     []RouteProfile
 }
 
@@ -38,6 +39,11 @@ func Describe(e *Entry) (Profile, error) {
 		TheoreticalCapacityMAhPerG: e.TheoreticalCapacityMAhPerG(), TransitionMetalState: math.NaN()}
 	if s, ok := e.Species.TransitionMetalState(); ok {
 		p.TransitionMetalState = s
+		for _, t := range e.Formula.Terms() {
+			if variableState[t.Symbol] {
+				p.States = append(p.States, Term{Symbol: t.Symbol, Amount: e.Species.State(t.Symbol)})
+			}
+		}
 	}
 	h2o2 := mustMass(es, "H2O2")
 	for _, r := range Routes() {

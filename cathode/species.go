@@ -21,8 +21,9 @@ var fixedState = map[string]float64{
 var variableState = map[string]bool{"Mn": true, "Fe": true, "Co": true, "Ni": true, "Cu": true}
 
 // Species is a solid compound in the black mass with the oxidation state of every element.
-// Transition metals get the average state the charge balance leaves them; which of them carries
-// which state does not change the leach demand, only their sum does.
+// Transition metals share the charge the other elements leave them (see [NewSpecies] for how).
+// Their sum sets the leach's whole demand for acid and electrons; which metal carries which
+// state sets what dissolves when the electrons run short: Ni(II) needs none, Mn(IV) two.
 type Species struct {
 	Formula  Formula
 	state    map[string]float64
@@ -40,8 +41,13 @@ func IsMetal(symbol string) bool {
 	return true
 }
 
-// NewSpecies assigns oxidation states to the elements of f. It returns an error if the charges
-// cannot balance ("LiAlO" has no transition metal to take up the +2 left over), if the
+// NewSpecies assigns oxidation states to the elements of f. The transition metals share the
+// charge left by the others: in an oxide holding nickel with cobalt and/or manganese and no other
+// transition metal, Mn takes +4 and Co +3 and nickel the rest, as long as that leaves nickel
+// between +2 and +4 (the states of layered NMC and of the LiNi0.5Mn1.5O4 spinel established by
+// X-ray absorption: Ni(II) and Mn(IV) in NMC111, Ni between +2 and +3 in the nickel-rich grades;
+// Koyama et al., J. Power Sources 119-121 (2003) 644, from memory); otherwise every transition
+// metal takes the average. It returns an error if the charges cannot balance ("LiAlO" has no transition metal to take up the +2 left over), if the
 // transition metals would end outside 0..+4.5, or if f holds an element or anion mix the leach
 // model has no rule for.
 func NewSpecies(f Formula) (Species, error) {
@@ -132,6 +138,9 @@ func NewSpecies(f Formula) (Species, error) {
 	if avg < 0 || avg > maxAverageTMState {
 		return sp, fmt.Errorf("species %s: the transition metals would average %+.3g, outside 0..+%g", f.text, avg, maxAverageTMState)
 	}
+	if sp.anionic == "oxide" && nickelTakesTheRest(sp, f, -fixed) {
+		return sp, nil
+	}
 	for _, t := range terms {
 		if variableState[t.Symbol] {
 			sp.state[t.Symbol] = avg
@@ -140,7 +149,42 @@ func NewSpecies(f Formula) (Species, error) {
 	return sp, nil
 }
 
-// State returns the oxidation state of symbol in the solid (the average for transition metals).
+// Preferred states of Mn and Co in an oxide that holds nickel (see NewSpecies).
+const (
+	oxideMnState = 4
+	oxideCoState = 3
+	minNiState   = 2
+	maxNiState   = 4
+)
+
+// nickelTakesTheRest gives Mn +4 and Co +3 and nickel the charge left (tmCharge in all), if f's
+// transition metals are nickel with Mn and/or Co only and nickel lands between +2 and +4. It
+// reports whether it did.
+func nickelTakesTheRest(sp Species, f Formula, tmCharge float64) bool {
+	ni, mn, co := f.Moles("Ni"), f.Moles("Mn"), f.Moles("Co")
+	if ni == 0 || mn+co == 0 {
+		return false
+	}
+	for _, t := range f.terms {
+		if variableState[t.Symbol] && t.Symbol != "Ni" && t.Symbol != "Mn" && t.Symbol != "Co" {
+			return false
+		}
+	}
+	niState := (tmCharge - oxideMnState*mn - oxideCoState*co) / ni
+	if niState < minNiState-1e-9 || niState > maxNiState+1e-9 {
+		return false
+	}
+	sp.state["Ni"] = niState
+	if mn > 0 {
+		sp.state["Mn"] = oxideMnState
+	}
+	if co > 0 {
+		sp.state["Co"] = oxideCoState
+	}
+	return true
+}
+
+// State returns the oxidation state of symbol in the solid.
 func (sp Species) State(symbol string) float64 { return sp.state[symbol] }
 
 // Inert reports whether nothing in the species dissolves (graphite, polymers).
@@ -149,12 +193,17 @@ func (sp Species) Inert() bool { return sp.inert }
 // TransitionMetalState returns the mole-weighted average oxidation state of the transition
 // metals, and false if the species has none.
 func (sp Species) TransitionMetalState() (float64, bool) {
+	var sum, n float64
 	for _, t := range sp.Formula.terms {
 		if variableState[t.Symbol] {
-			return sp.state[t.Symbol], true
+			sum += sp.state[t.Symbol] * t.Amount
+			n += t.Amount
 		}
 	}
-	return 0, false
+	if n == 0 {
+		return 0, false
+	}
+	return sum / n, true
 }
 
 // Anion names how the species' non-metals leave in an acid: "oxide", "phosphate", "carbonate",

@@ -105,8 +105,15 @@ type materialJSON struct {
 	NominalVoltage       rangeJSON          `json:"nominal_voltage_V"`
 	SpecificEnergy       [2]float64         `json:"cell_specific_energy_band_Wh_kg"`
 	TransitionMetalState *float64           `json:"transition_metal_oxidation_state,omitempty"`
+	States               []stateJSON        `json:"oxidation_states,omitempty"`
 	Source               string             `json:"source"`
 	Routes               []routeJSON        `json:"routes"`
+}
+
+// stateJSON is one transition metal's oxidation state in the solid.
+type stateJSON struct {
+	Element string  `json:"element"`
+	State   float64 `json:"state"`
 }
 
 type chemJSON struct {
@@ -129,6 +136,9 @@ func newMaterialJSON(p cathode.Profile, frac float64) materialJSON {
 	if !math.IsNaN(p.TransitionMetalState) {
 		s := p.TransitionMetalState
 		m.TransitionMetalState = &s
+		for _, t := range p.States {
+			m.States = append(m.States, stateJSON{t.Symbol, t.Amount})
+		}
 	}
 	for _, t := range p.MassFractions {
 		m.ElementsWtPct[t.Symbol] = 100 * t.Amount
@@ -172,7 +182,11 @@ func writeChemText(w io.Writer, j chemJSON) {
 		}
 		fmt.Fprintf(w, "    elements (wt%%)          %s\n", strings.Join(els, "  "))
 		if m.TransitionMetalState != nil {
-			fmt.Fprintf(w, "    transition-metal state  %+.3f (average)\n", *m.TransitionMetalState)
+			var each []string
+			for _, st := range m.States {
+				each = append(each, fmt.Sprintf("%s %+.3g", st.Element, st.State))
+			}
+			fmt.Fprintf(w, "    oxidation states        %s (average %+.3f)\n", strings.Join(each, ", "), *m.TransitionMetalState)
 		}
 		fmt.Fprintf(w, "    theoretical capacity    %.1f mAh/g\n", m.TheoreticalCapacity)
 		fmt.Fprintf(w, "    practical capacity      %g / %g / %g mAh/g (min / most likely / max)\n", m.PracticalCapacity.Min, m.PracticalCapacity.Mode, m.PracticalCapacity.Max)

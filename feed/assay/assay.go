@@ -69,8 +69,10 @@ func ParseTMForm(s string) (TMForm, error) {
 
 // assayColumns are the species an assay is mapped to, in a fixed order so that every Monte
 // Carlo sample fills the same columns. A layered oxide Li_yMO2 is split into y·LiMO2 +
-// (1−y)·MO2 per metal: its mass and its charge balance are linear in that split.
-var assayColumns = []string{"LiCoO2", "LiNiO2", "LiMnO2", "CoO2", "NiO2", "MnO2", "CoO", "NiO", "MnO", "Co", "Ni", "Mn",
+// (1−y)·MO2: its mass and its charge balance are linear in that split. Nickel pairs with
+// manganese first as LiNi0.5Mn0.5O2, Ni(II) with Mn(IV) as in NMC (see cathode.NewSpecies); the
+// nickel, manganese and cobalt left are LiMO2 each.
+var assayColumns = []string{"LiCoO2", "LiNiO2", "LiMnO2", "CoO2", "NiO2", "MnO2", "LiNi0.5Mn0.5O2", "Ni0.5Mn0.5O2", "CoO", "NiO", "MnO", "Co", "Ni", "Mn",
 	"LiFePO4", "FePO4", "Li2CO3", "Fe", "Al", "Cu", "C2H2F2", "C"}
 
 // speciesMapper maps assay draws to species with one table of atomic weights.
@@ -124,6 +126,10 @@ func (sm *speciesMapper) species(dst []float64, wt map[string]float64, form TMFo
 		if tmTotal > 0 {
 			y = math.Min(1, li/tmTotal)
 		}
+		pair := math.Min(tm["Ni"], tm["Mn"]) // mol of each paired
+		put("LiNi0.5Mn0.5O2", y*2*pair)
+		put("Ni0.5Mn0.5O2", (1-y)*2*pair)
+		tm["Ni"], tm["Mn"] = tm["Ni"]-pair, tm["Mn"]-pair
 		for _, m := range []string{"Co", "Ni", "Mn"} {
 			put("Li"+m+"O2", y*tm[m])
 			put(m+"O2", (1-y)*tm[m])
@@ -257,7 +263,7 @@ func QuoteFrom(a *Assay, opt QuoteOptions) (*Quote, error) {
 	}
 	r.ElementOrder = cathode.SortForDisplay(els)
 	r.Warnings = append(r.Warnings, "quote from an assay: species are inferred from the elements ("+
-		map[TMForm]string{TMLayered: "Co/Ni/Mn as layered oxides with the assay's lithium", TMMonoxide: "Co/Ni/Mn as monoxides", TMMetal: "Co/Ni/Mn as metals"}[opt.TMForm]+
+		map[TMForm]string{TMLayered: "Co/Ni/Mn as layered oxides with the assay's lithium, Ni(II) paired with Mn(IV) as in NMC", TMMonoxide: "Co/Ni/Mn as monoxides", TMMetal: "Co/Ni/Mn as metals"}[opt.TMForm]+
 		"; Li with Fe and P as LiFePO4, other Fe as metal, Al and Cu as metal, F as PVDF, other C as graphite, Li left over as Li2CO3)")
 	for _, el := range slices.Sorted(maps.Keys(unassigned)) {
 		r.Warnings = append(r.Warnings, fmt.Sprintf("%.3g wt%% %s could not be placed in a species and is left out of the leach", unassigned[el], el))

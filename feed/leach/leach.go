@@ -43,7 +43,8 @@ type Options struct {
 	Reductant string `json:"reductant,omitempty"`
 	// RecipeReductantGPerL doses a solid or gaseous reductant in g per litre of liquor.
 	RecipeReductantGPerL float64 `json:"recipe_reductant_g_per_l,omitempty"`
-	// TemperatureC is the leach temperature; it sets the share of peroxide that decomposes.
+	// TemperatureC is the leach temperature; it sets the share of peroxide that decomposes and
+	// how much of the oxides' reduction their own oxygen gives when short of reductant.
 	TemperatureC float64 `json:"temperature_C"`
 	// Currency names the currency of the reagent prices ("" when not said).
 	Currency string `json:"currency,omitempty"`
@@ -154,7 +155,8 @@ type salt struct {
 // fs.FS (a test can hand in its own); DefaultTables are the embedded ones.
 type Tables struct {
 	reductants []*Reductant
-	loss       []peroxideLoss
+	loss       []byTemperature // share of a peroxide dose that decomposes
+	lattice    []byTemperature // share of the oxides' reduction their own oxygen gives (as O2)
 	density    reagentTable
 	salts      []salt
 	extraction map[cathode.Route]map[string]cathode.Range
@@ -189,7 +191,7 @@ func (lt *Tables) MolarMassG(formula string) (float64, error) {
 }
 
 // LoadTables reads reagents.csv, solubility.csv, extraction.csv, reductants.csv and
-// peroxide_loss.csv from fsys.
+// peroxide_loss.csv and lattice_oxygen.csv from fsys.
 func LoadTables(fsys fs.FS) (*Tables, error) {
 	es, err := cathode.LoadElements(fsys)
 	if err != nil {
@@ -250,45 +252,64 @@ func LoadTables(fsys fs.FS) (*Tables, error) {
 	if lt.reductants, err = LoadReductants(fsTables{fsys}, es); err != nil {
 		return nil, err
 	}
-	pt, err := data.ReadTable(fsys, "peroxide_loss.csv")
-	if err != nil {
+	if lt.loss, err = readByTemperature(fsys, "peroxide_loss.csv", false); err != nil {
 		return nil, err
 	}
-	for _, r := range pt.Rows {
-		var pl peroxideLoss
-		if pl.fromC, err = r.Float("temperature_min_C"); err != nil {
-			return nil, err
-		}
-		if pl.r.Min, pl.r.Mode, pl.r.Max, err = r.Range("", ""); err != nil {
-			return nil, err
-		}
-		if pl.r.Min < 0 || pl.r.Max >= 1 {
-			return nil, r.Errorf("a decomposed share lies in [0, 1)")
-		}
-		pl.source = r.Str("source")
-		lt.loss = append(lt.loss, pl)
+	if lt.lattice, err = readByTemperature(fsys, "lattice_oxygen.csv", true); err != nil {
+		return nil, err
 	}
-	sort.Slice(lt.loss, func(i, j int) bool { return lt.loss[i].fromC < lt.loss[j].fromC })
 	return lt, nil
 }
 
-// peroxideLoss is the decomposed share of a peroxide dose from a temperature up.
-type peroxideLoss struct {
+// byTemperature is a share that applies from a temperature up to the next row's.
+type byTemperature struct {
 	fromC  float64
 	r      cathode.Range
 	source string
 }
 
-// peroxideLoss returns the row that applies at temperature tC.
-func (lt *Tables) peroxideLoss(tC float64) peroxideLoss {
-	out := lt.loss[0]
-	for _, l := range lt.loss {
+// readByTemperature reads a table of shares by temperature (temperature_min_C, min, mode, max,
+// source), sorted by temperature. A share lies in [0, 1), or [0, 1] when upToOne.
+func readByTemperature(fsys fs.FS, name string, upToOne bool) ([]byTemperature, error) {
+	t, err := data.ReadTable(fsys, name)
+	if err != nil {
+		return nil, err
+	}
+	var out []byTemperature
+	for _, r := range t.Rows {
+		var b byTemperature
+		if b.fromC, err = r.Float("temperature_min_C"); err != nil {
+			return nil, err
+		}
+		if b.r.Min, b.r.Mode, b.r.Max, err = r.Range("", ""); err != nil {
+			return nil, err
+		}
+		if b.r.Min < 0 || b.r.Max > 1 || (!upToOne && b.r.Max == 1) {
+			return nil, r.Errorf("a share lies in [0, 1%s", map[bool]string{true: "]", false: ")"}[upToOne])
+		}
+		b.source = r.Str("source")
+		out = append(out, b)
+	}
+	sort.Slice(out, func(i, j int) bool { return out[i].fromC < out[j].fromC })
+	return out, nil
+}
+
+// at returns the row of rows that applies at temperature tC.
+func at(rows []byTemperature, tC float64) byTemperature {
+	out := rows[0]
+	for _, l := range rows {
 		if tC >= l.fromC {
 			out = l
 		}
 	}
 	return out
 }
+
+// peroxideLoss returns the decomposed share of a peroxide dose at temperature tC.
+func (lt *Tables) peroxideLoss(tC float64) byTemperature { return at(lt.loss, tC) }
+
+// latticeOxygen returns the share of the oxides' reduction their own oxygen gives at tC.
+func (lt *Tables) latticeOxygen(tC float64) byTemperature { return at(lt.lattice, tC) }
 
 // Density returns the density of a reagent solution (g/mL) at strength wtPct, interpolated
 // linearly in the reagent table; an error if wtPct is outside the table.
@@ -383,6 +404,7 @@ type leachPlanner struct {
 	ext     map[string][]float64
 	ranges  []dist.Param
 	lost    []float64 // share of the peroxide dose that decomposes, per sample
+	lattice []float64 // share of the planned reduction the oxides' own oxygen can give, per sample
 	acidM   float64
 	acidRho float64
 	redRho  float64 // density of the reductant solution (peroxide), g/mL
@@ -422,6 +444,12 @@ func newLeachPlanner(s Input, opt Options, lt *Tables) (*leachPlanner, error) {
 	p.lost = s.Draws.Draws(fmt.Sprintf("peroxide loss/%g C", loss.fromC), loss.r.Min, loss.r.Mode, loss.r.Max)
 	if p.red != nil && p.red.Oxidant {
 		p.ranges = append(p.ranges, dist.Param{Scope: "peroxide", Name: fmt.Sprintf("decomposed share at %g °C", opt.TemperatureC), Min: loss.r.Min, Mode: loss.r.Mode, Max: loss.r.Max, Unit: "fraction", Source: loss.source})
+	}
+	lat := lt.latticeOxygen(opt.TemperatureC)
+	p.lattice = s.Draws.Draws(fmt.Sprintf("lattice oxygen/%g C", lat.fromC), lat.r.Min, lat.r.Mode, lat.r.Max)
+	if p.route != cathode.Hydrochloric {
+		p.ranges = append(p.ranges, dist.Param{Scope: "oxides", Name: fmt.Sprintf("reduction their own oxygen gives at %g °C (as O2, when short of reductant)", opt.TemperatureC),
+			Min: lat.r.Min, Mode: lat.r.Mode, Max: lat.r.Max, Unit: "fraction", Source: lat.source})
 	}
 	p.species = make([]cathode.Species, len(s.Kg))
 	p.molarG = make([]float64, len(s.Kg))
@@ -465,7 +493,7 @@ func (p *leachPlanner) input(i int, plan func(string) float64, hPlus, redMol flo
 		mol[c] = kg[i] * 1000 / p.molarG[c]
 	}
 	es := p.lt.elements
-	return redoxInput{route: p.route, species: p.species, mol: mol, plan: plan, hPlus: hPlus, red: p.red, redMol: redMol, lost: p.lost[i],
+	return redoxInput{route: p.route, species: p.species, mol: mol, plan: plan, hPlus: hPlus, red: p.red, redMol: redMol, lost: p.lost[i], lattice: p.lattice[i],
 		metalE0: func(sym string) float64 {
 			if el := es.Lookup(sym); el != nil && el.HasPotential {
 				return el.StandardPotential
@@ -843,6 +871,8 @@ func (p *leachPlanner) warnings(lr *Report, acidR Reagent, redR *Reagent) {
 		"Acid and electron demand follow from each species' charge balance (cathode.Dissolve), scaled by the planned extraction of each metal.",
 		"The extraction reached is the lesser of the planned extraction and what the acid and the electrons dosed can dissolve.",
 		"Metals in the feed reduce the oxides first (least noble first: Al, Fe, then Cu); the reductant or chloride gives the rest; leftover Al and Fe give H2; leftover Cu needs peroxide or stays.",
+		"Short of reductant on the sulfuric routes, the oxides' own oxygen gives part of the reduction, leaving as O2 (a share that grows with temperature: data/lattice_oxygen.csv).",
+		"Oxidation states: Mn(IV) and Co(III) in oxides that hold nickel, nickel the rest (Ni(II) in NMC111 needs no reductant); other oxides share the average.",
 		"Peroxide left after the reduction oxidises copper metal, then Fe(II) to Fe(III); the rest decomposes to O2. Part of the peroxide dosed decomposes anyway (data/peroxide_loss.csv).",
 		"On the selective route the lithium of oxide cathodes stays with their undissolved metals; iron of phosphates stays as FePO4.",
 		"Graphite, carbon black and PVDF are inert and stay in the residue.",

@@ -114,6 +114,7 @@ type redoxInput struct {
 	red     *Reductant               // nil: none added
 	redMol  float64                  // reductant dosed; +Inf: as much as needed
 	lost    float64                  // share of a peroxide dose that decomposes
+	lattice float64                  // share of the planned reduction the oxides' own oxygen can give
 	metalE0 func(sym string) float64 // standard potential of the metal's couple
 }
 
@@ -133,6 +134,7 @@ type redoxResult struct {
 	h2Potential  float64 // H2 if every metal less noble than hydrogen reacted with the acid alone
 	eNeeded      float64 // electrons the oxides took at the extraction reached
 	eFromMetals  float64 // of those, given by metals in the feed
+	eFromLattice float64 // of those, given by the oxides' own oxygen (as O2)
 	reductionCap float64 // share of the planned reduction the electrons allowed (1: not limited)
 	acidCap      float64 // share of the planned dissolution the acid allowed (1: not limited)
 }
@@ -143,18 +145,29 @@ type redoxResult struct {
 // Electrons: the oxides' Co(III), Ni(III/IV) and Mn(IV) take electrons to reach M²⁺ (from the
 // charge balance, cathode.Dissolve). Metals in the feed give theirs first, the least noble first
 // (Al, Fe, Co, Ni, then Cu); the added reductant (or chloride, as Cl2, on the hydrochloric route)
-// gives the rest. Metal left over dissolves with H2 if it is less noble than hydrogen; copper left
+// gives the rest. On the sulfuric routes, what is still short the oxides' own oxygen can give,
+// leaving as O2, up to a share of the planned reduction that depends on temperature
+// (data/lattice_oxygen.csv). Metal left over dissolves with H2 if it is less noble than hydrogen; copper left
 // needs an oxidant (peroxide) or stays. Peroxide left then oxidises Fe(II) to Fe(III) (E° 0.771 V,
 // after Cu²⁺/Cu at 0.34 V) and the remainder decomposes to O2.
 //
 // Acid: H+ taken by the solids' anions, by H2 and by the peroxide acting as oxidant, less the
 // H+ the reductant releases. Short of acid, every extraction is scaled down until the acid just
 // suffices: free acid never goes negative.
+// maxLeachIterations bounds the passes leachSample takes to find the shares the electrons and
+// the acid allow; each pass moves both toward the fixed point, and a few suffice.
+const maxLeachIterations = 60
+
 func leachSample(in redoxInput) (redoxResult, error) {
 	fRed, fAcid := 1.0, 1.0
 	var res redoxResult
-	for iter := 0; iter < 8; iter++ {
-		r, eCap, hNeed, err := dissolveOnce(in, fRed, fAcid)
+	// The electrons the planned dissolution takes: the lattice oxygen's share is of these.
+	planned, _, _, err := dissolveOnce(in, 1, 1, 0)
+	if err != nil {
+		return planned, err
+	}
+	for iter := 0; iter < maxLeachIterations; iter++ {
+		r, eCap, hNeed, err := dissolveOnce(in, fRed, fAcid, in.lattice*planned.eNeeded*fAcid)
 		if err != nil {
 			return r, err
 		}
@@ -200,12 +213,14 @@ type pass struct {
 	eCap        float64 // electrons available to the oxides
 	oxidantLeft float64 // peroxide left after the reduction, mol
 	oxUsedE     float64 // electrons taken by the peroxide acting as oxidant
+	latticeCap  float64 // electrons the oxides' own oxygen can give
 }
 
-// dissolveOnce is one pass at reduction share fRed and acid share fAcid. It returns the result,
-// the electrons available to the oxides, and the H+ needed.
-func dissolveOnce(in redoxInput, fRed, fAcid float64) (redoxResult, float64, float64, error) {
-	p := &pass{in: in, fRed: fRed, fAcid: fAcid}
+// dissolveOnce is one pass at reduction share fRed and acid share fAcid, the oxides' own oxygen
+// able to give latticeCap electrons. It returns the result, the electrons available to the
+// oxides, and the H+ needed.
+func dissolveOnce(in redoxInput, fRed, fAcid, latticeCap float64) (redoxResult, float64, float64, error) {
+	p := &pass{in: in, fRed: fRed, fAcid: fAcid, latticeCap: latticeCap}
 	if err := p.solids(); err != nil {
 		return p.r, 0, 0, err
 	}
@@ -293,7 +308,8 @@ func (p *pass) extraction(sp cathode.Species) cathode.Extraction {
 }
 
 // reduce gives the oxides their electrons: the metals of the feed first, the least noble first,
-// then the reductant (or chloride, as Cl2). A shortfall shows as eCap < eNeeded.
+// then the reductant (or chloride, as Cl2), then on the sulfuric routes the oxides' own oxygen. A
+// shortfall shows as eCap < eNeeded.
 func (p *pass) reduce() {
 	in, r := p.in, &p.r
 	slices.SortStableFunc(p.donors, func(a, b *donor) int { return cmpFloat(a.e0, b.e0) })
@@ -316,9 +332,14 @@ func (p *pass) reduce() {
 		}
 		r.redUsed = math.Min(rem/in.red.ElectronsMol, avail)
 		p.eCap += avail * in.red.ElectronsMol
+		rem -= r.redUsed * in.red.ElectronsMol
 		if in.red.Oxidant && !math.IsInf(avail, 1) {
 			p.oxidantLeft = avail - r.redUsed
 		}
+	}
+	if in.route != cathode.Hydrochloric {
+		r.eFromLattice = math.Min(math.Max(rem, 0), p.latticeCap)
+		p.eCap += p.latticeCap
 	}
 }
 
@@ -366,13 +387,15 @@ func (p *pass) oxidise() {
 }
 
 // balance closes the H+ account (taken by the anions, by H2 and by the oxidant, 1 H+ per
-// electron; released by the reductant) and the gases, and returns the H+ needed.
+// electron; released by the reductant, and 1 per electron the oxides' own oxygen gives, whose
+// oxide ions leave as O2 instead of water) and the gases, and returns the H+ needed.
 func (p *pass) balance() float64 {
 	in, r := p.in, &p.r
-	hNeed := p.hUptake + 2*r.h2 + p.oxUsedE
+	hNeed := p.hUptake + 2*r.h2 + p.oxUsedE - r.eFromLattice
+	r.o2 = r.eFromLattice / 4
 	if in.red != nil {
 		hNeed -= r.redUsed * in.red.HPlusMol
-		r.o2 = r.redUsed*in.red.O2Mol + r.redDecomp/2
+		r.o2 += r.redUsed*in.red.O2Mol + r.redDecomp/2
 		r.liquorMol[elementIndex("Na")] += r.redUsed * in.red.SodiumMol
 	}
 	r.hPlusUsed = hNeed

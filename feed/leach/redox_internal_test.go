@@ -84,7 +84,7 @@ func TestLeachElectronsClose(t *testing.T) {
 					}
 					es := cathode.DefaultElements()
 					in := redoxInput{route: route, species: species, mol: mol, plan: func(string) float64 { return 0.9 }, hPlus: dose * 8, red: r, redMol: dose,
-						lost: 0.2, metalE0: func(s string) float64 { return es.Lookup(s).StandardPotential }}
+						lost: 0.2, lattice: 0.3, metalE0: func(s string) float64 { return es.Lookup(s).StandardPotential }}
 					res, err := leachSample(in)
 					if err != nil {
 						t.Fatal(err)
@@ -113,7 +113,11 @@ func TestLeachElectronsClose(t *testing.T) {
 					if route == cathode.SulfuricSelective && ox.Anion() == "phosphate" {
 						continue // the phosphate's iron is oxidised into the residue: checked by the charge balance
 					}
-					given := res.eFromMetals + 2*res.cl2
+					// The oxides' own oxygen gives electrons (as O2) on the sulfuric routes only.
+					if route == cathode.Hydrochloric && res.eFromLattice != 0 {
+						t.Errorf("%s hydrochloric: %g e− from the oxides' oxygen", e.Key, res.eFromLattice)
+					}
+					given := res.eFromMetals + 2*res.cl2 + res.eFromLattice
 					if r != nil {
 						given += res.redUsed * r.ElectronsMol
 					}
@@ -153,4 +157,46 @@ func TestLeachTablesOwnAtomicWeights(t *testing.T) {
 		}
 	}
 	t.Error("no sulfur reductant in the table")
+}
+
+// Acid alone on LiCoO2, the oxide's own oxygen giving every electron: 4 LiCoO2 + 6 H2SO4 →
+// 2 Li2SO4 + 4 CoSO4 + 6 H2O + O2, so 3 H+ and 1/4 O2 per LiCoO2 (balanced by hand from the
+// oxidation states: Co(III) → Co(II) takes 1 e−, 2 O(−II) → O2 gives 4).
+func TestLatticeOxygenAcidOnlyLiCoO2(t *testing.T) {
+	f, err := cathode.ParseFormula("LiCoO2")
+	if err != nil {
+		t.Fatal(err)
+	}
+	sp, err := cathode.NewSpecies(f)
+	if err != nil {
+		t.Fatal(err)
+	}
+	es := cathode.DefaultElements()
+	in := redoxInput{route: cathode.SulfuricPeroxide, species: []cathode.Species{sp}, mol: []float64{1}, plan: func(string) float64 { return 1 },
+		hPlus: math.Inf(1), lattice: 1, metalE0: func(s string) float64 { return es.Lookup(s).StandardPotential }}
+	res, err := leachSample(in)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, c := range []struct {
+		what      string
+		got, want float64
+	}{
+		{"Co dissolved (mol)", res.liquorMol[elementIndex("Co")], 1},
+		{"H+ used (mol)", res.hPlusUsed, 3},
+		{"O2 (mol)", res.o2, 0.25},
+		{"electrons from the lattice", res.eFromLattice, 1},
+	} {
+		if math.Abs(c.got-c.want) > 1e-9 {
+			t.Errorf("%s = %.9g, want %g", c.what, c.got, c.want)
+		}
+	}
+	// With none of it, nothing reduces the Co(III): it stays in the residue.
+	in.lattice = 0
+	if res, err = leachSample(in); err != nil {
+		t.Fatal(err)
+	}
+	if co := res.liquorMol[elementIndex("Co")]; co > 1e-9 {
+		t.Errorf("Co dissolved without any electrons: %g mol", co)
+	}
 }
