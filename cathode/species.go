@@ -47,9 +47,9 @@ func IsMetal(symbol string) bool {
 // between +2 and +4 (the states of layered NMC and of the LiNi0.5Mn1.5O4 spinel established by
 // X-ray absorption: Ni(II) and Mn(IV) in NMC111, Ni between +2 and +3 in the nickel-rich grades;
 // Koyama et al., J. Power Sources 119-121 (2003) 644, from memory); otherwise every transition
-// metal takes the average. It returns an error if the charges cannot balance ("LiAlO" has no transition metal to take up the +2 left over), if the
-// transition metals would end outside 0..+4.5, or if f holds an element or anion mix the leach
-// model has no rule for.
+// metal takes the average. It returns an error if the charges cannot balance ("LiAlO" has no
+// transition metal to take up the +2 left over), if the transition metals would end outside
+// 0..+4.5, or if f holds an element or anion mix the leach model has no rule for.
 func NewSpecies(f Formula) (Species, error) {
 	sp := Species{Formula: f, state: map[string]float64{}}
 	terms := f.terms

@@ -139,6 +139,10 @@ type redoxResult struct {
 	acidCap      float64 // share of the planned dissolution the acid allowed (1: not limited)
 }
 
+// maxLeachIterations bounds the passes leachSample takes to find the shares the electrons and
+// the acid allow; each pass moves both toward the fixed point, and a few suffice.
+const maxLeachIterations = 60
+
 // leachSample dissolves one sample's black mass with the dose given: the extraction reached is
 // the lesser of the planned extraction and what the acid and the electrons can dissolve.
 //
@@ -147,17 +151,13 @@ type redoxResult struct {
 // (Al, Fe, Co, Ni, then Cu); the added reductant (or chloride, as Cl2, on the hydrochloric route)
 // gives the rest. On the sulfuric routes, what is still short the oxides' own oxygen can give,
 // leaving as O2, up to a share of the planned reduction that depends on temperature
-// (data/lattice_oxygen.csv). Metal left over dissolves with H2 if it is less noble than hydrogen; copper left
-// needs an oxidant (peroxide) or stays. Peroxide left then oxidises Fe(II) to Fe(III) (E° 0.771 V,
+// (data/lattice_oxygen.csv). Metal left over dissolves with H2 if it is less noble than
+// hydrogen; copper left needs an oxidant (peroxide) or stays. Peroxide left then oxidises Fe(II) to Fe(III) (E° 0.771 V,
 // after Cu²⁺/Cu at 0.34 V) and the remainder decomposes to O2.
 //
 // Acid: H+ taken by the solids' anions, by H2 and by the peroxide acting as oxidant, less the
 // H+ the reductant releases. Short of acid, every extraction is scaled down until the acid just
 // suffices: free acid never goes negative.
-// maxLeachIterations bounds the passes leachSample takes to find the shares the electrons and
-// the acid allow; each pass moves both toward the fixed point, and a few suffice.
-const maxLeachIterations = 60
-
 func leachSample(in redoxInput) (redoxResult, error) {
 	fRed, fAcid := 1.0, 1.0
 	var res redoxResult
