@@ -6,11 +6,13 @@ import (
 	"slices"
 )
 
-// NewSplitSourceForTest exposes the splitter to the differential fuzz test.
-func NewSplitSourceForTest(r io.Reader, sep byte) func() ([]string, int, error) {
+// NewSplitSourceForTest exposes the splitter to the differential fuzz test. Each record comes
+// with the line it was split from ("" when encoding/csv read it) and each field's offset in it.
+func NewSplitSourceForTest(r io.Reader, sep byte) func() ([]string, int, string, []int, error) {
 	s := newSplitSource(bufio.NewReaderSize(r, 64<<10), sep)
-	return func() ([]string, int, error) {
+	return func() ([]string, int, string, []int, error) {
 		rec, line, err := s.Read()
-		return slices.Clone(rec), line, err
+		raw, starts := s.rawLine()
+		return slices.Clone(rec), line, raw, slices.Clone(starts), err
 	}
 }

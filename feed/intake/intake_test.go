@@ -725,7 +725,7 @@ func FuzzSplitMatchesCSV(f *testing.F) {
 			if werr == nil {
 				wline, _ = want.FieldPos(0)
 			}
-			gr, gline, gerr := got()
+			gr, gline, raw, starts, gerr := got()
 			if (werr == nil) != (gerr == nil) {
 				t.Fatalf("record %d: csv err %v, split err %v (%q vs %q)", i, werr, gerr, wr, gr)
 			}
@@ -737,6 +737,18 @@ func FuzzSplitMatchesCSV(f *testing.F) {
 			}
 			if !slices.Equal(wr, gr) || wline != gline {
 				t.Fatalf("record %d: csv %q at line %d, split %q at line %d", i, wr, wline, gr, gline)
+			}
+			// A split record's fields lie in its line at their offsets (alike lines are found
+			// by the line's text without the id).
+			if raw != "" {
+				if len(starts) != len(gr) {
+					t.Fatalf("record %d: %d offsets for %d fields", i, len(starts), len(gr))
+				}
+				for k, f := range gr {
+					if starts[k]+len(f) > len(raw) || raw[starts[k]:starts[k]+len(f)] != f {
+						t.Fatalf("record %d field %d: %q not at offset %d of %q", i, k, f, starts[k], raw)
+					}
+				}
 			}
 		}
 	})
