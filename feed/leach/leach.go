@@ -448,7 +448,8 @@ func newLeachPlanner(s Input, opt Options, lt *Tables) (*leachPlanner, error) {
 	lat := lt.latticeOxygen(opt.TemperatureC)
 	p.lattice = s.Draws.Draws(fmt.Sprintf("lattice oxygen/%g C", lat.fromC), lat.r.Min, lat.r.Mode, lat.r.Max)
 	if p.route != cathode.Hydrochloric {
-		p.ranges = append(p.ranges, dist.Param{Scope: "oxides", Name: fmt.Sprintf("reduction their own oxygen gives at %g °C (as O2, when short of reductant)", opt.TemperatureC),
+		// The share of the oxides' reduction their own oxygen gives (as O2) when short of reductant.
+		p.ranges = append(p.ranges, dist.Param{Scope: "oxide oxygen", Name: fmt.Sprintf("reduction share at %g °C", opt.TemperatureC),
 			Min: lat.r.Min, Mode: lat.r.Mode, Max: lat.r.Max, Unit: "fraction", Source: lat.source})
 	}
 	p.species = make([]cathode.Species, len(s.Kg))
