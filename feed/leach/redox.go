@@ -161,15 +161,20 @@ const maxLeachIterations = 60
 func leachSample(in redoxInput) (redoxResult, error) {
 	fRed, fAcid := 1.0, 1.0
 	var res redoxResult
-	// The electrons the planned dissolution takes: the lattice oxygen's share is of these.
-	planned, _, _, err := dissolveOnce(in, 1, 1, 0)
-	if err != nil {
-		return planned, err
-	}
+	// The lattice oxygen's share is of the electrons the planned dissolution takes: those of the
+	// first pass, at full reduction and acid.
+	planned := 0.0
 	for iter := 0; iter < maxLeachIterations; iter++ {
-		r, eCap, hNeed, err := dissolveOnce(in, fRed, fAcid, in.lattice*planned.eNeeded*fAcid)
+		latticeCap := in.lattice * planned * fAcid
+		if iter == 0 {
+			latticeCap = latticeOfThisPass
+		}
+		r, eCap, hNeed, err := dissolveOnce(in, fRed, fAcid, latticeCap)
 		if err != nil {
 			return r, err
+		}
+		if iter == 0 {
+			planned = r.eNeeded
 		}
 		res = r
 		nRed, nAcid := fRed, fAcid
@@ -216,13 +221,20 @@ type pass struct {
 	latticeCap  float64 // electrons the oxides' own oxygen can give
 }
 
+// latticeOfThisPass asks dissolveOnce to size the lattice oxygen's electrons on the pass's own
+// demand (the first pass, at full reduction and acid, is the planned dissolution).
+const latticeOfThisPass = -1
+
 // dissolveOnce is one pass at reduction share fRed and acid share fAcid, the oxides' own oxygen
-// able to give latticeCap electrons. It returns the result, the electrons available to the
-// oxides, and the H+ needed.
+// able to give latticeCap electrons (or latticeOfThisPass). It returns the result, the electrons
+// available to the oxides, and the H+ needed.
 func dissolveOnce(in redoxInput, fRed, fAcid, latticeCap float64) (redoxResult, float64, float64, error) {
 	p := &pass{in: in, fRed: fRed, fAcid: fAcid, latticeCap: latticeCap}
 	if err := p.solids(); err != nil {
 		return p.r, 0, 0, err
+	}
+	if latticeCap == latticeOfThisPass {
+		p.latticeCap = in.lattice * p.r.eNeeded
 	}
 	p.reduce()
 	p.leftoverMetals()
