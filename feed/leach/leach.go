@@ -151,7 +151,7 @@ type salt struct {
 }
 
 // Tables are the leach planner's reference tables: reagent densities, salt solubilities,
-// extraction ranges per route, reductants and peroxide loss. Load them with LoadTables from any
+// extraction ranges per route, reductants, peroxide loss and lattice oxygen. Load them with LoadTables from any
 // fs.FS (a test can hand in its own); DefaultTables are the embedded ones.
 type Tables struct {
 	reductants []*Reductant
