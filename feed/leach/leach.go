@@ -151,8 +151,8 @@ type salt struct {
 }
 
 // Tables are the leach planner's reference tables: reagent densities, salt solubilities,
-// extraction ranges per route, reductants, peroxide loss and lattice oxygen. Load them with LoadTables from any
-// fs.FS (a test can hand in its own); DefaultTables are the embedded ones.
+// extraction ranges per route, reductants, peroxide loss and lattice oxygen. Load them with
+// LoadTables from any fs.FS (a test can hand in its own); DefaultTables are the embedded ones.
 type Tables struct {
 	reductants []*Reductant
 	loss       []byTemperature // share of a peroxide dose that decomposes
