@@ -728,12 +728,12 @@ func (p *leachPlanner) limits(lr *Report) {
 	}
 	share := func(k int) float64 { return dist.Round(float64(k)/float64(p.n), 4) }
 	if red > 0 {
-		what := "the electrons (metals in the feed and the oxides' own oxygen; no reductant)"
+		what := "the electron supply (metals in the feed and the oxides' own oxygen; no reductant)"
 		if p.red != nil {
 			what = p.red.Key + " (with the metals in the feed and the oxides' own oxygen)"
 		}
 		if p.route == cathode.Hydrochloric {
-			what = "the electrons (metals in the feed and the chloride)"
+			what = "the electron supply (metals in the feed and the chloride)"
 		}
 		lr.Limiting = append(lr.Limiting, Limit{Reagent: what, SampleShare: share(red),
 			ReachedShare: dist.Summarise(col(p.n, func(i int) float64 { return p.res[i].reductionCap }))})
