@@ -200,3 +200,24 @@ func TestLatticeOxygenAcidOnlyLiCoO2(t *testing.T) {
 		t.Errorf("Co dissolved without any electrons: %g mol", co)
 	}
 }
+
+// The peroxide loss near boiling is the 80 °C row carried 10 °C up by the table's rule: the
+// decomposition rate doubles every 10 °C, and for first-order decay the share left squares.
+func TestPeroxideLossNearBoilingFollowsTheDoubling(t *testing.T) {
+	lt, err := DefaultTables()
+	if err != nil {
+		t.Fatal(err)
+	}
+	at80, at90 := lt.peroxideLoss(80), lt.peroxideLoss(90)
+	if at90.fromC != 90 || at80.fromC != 80 {
+		t.Fatalf("rows from %g and %g °C, want 80 and 90", at80.fromC, at90.fromC)
+	}
+	for _, c := range []struct {
+		name     string
+		low, hot float64
+	}{{"min", at80.r.Min, at90.r.Min}, {"mode", at80.r.Mode, at90.r.Mode}, {"max", at80.r.Max, at90.r.Max}} {
+		if want := 1 - (1-c.low)*(1-c.low); math.Abs(c.hot-want) > 0.005 {
+			t.Errorf("%s: %.3f at 90 °C, want %.3f from %.3f at 80 °C", c.name, c.hot, want, c.low)
+		}
+	}
+}
