@@ -39,11 +39,7 @@ func Describe(e *Entry) (Profile, error) {
 		TheoreticalCapacityMAhPerG: e.TheoreticalCapacityMAhPerG(), TransitionMetalState: math.NaN()}
 	if s, ok := e.Species.TransitionMetalState(); ok {
 		p.TransitionMetalState = s
-		for _, t := range e.Formula.Terms() {
-			if variableState[t.Symbol] {
-				p.States = append(p.States, Term{Symbol: t.Symbol, Amount: e.Species.State(t.Symbol)})
-			}
-		}
+		p.States = e.Species.TransitionMetalStates()
 	}
 	h2o2 := mustMass(es, "H2O2")
 	for _, r := range Routes() {

@@ -190,15 +190,25 @@ func (sp Species) State(symbol string) float64 { return sp.state[symbol] }
 // Inert reports whether nothing in the species dissolves (graphite, polymers).
 func (sp Species) Inert() bool { return sp.inert }
 
+// TransitionMetalStates returns each transition metal's oxidation state, in formula order.
+func (sp Species) TransitionMetalStates() []Term {
+	var out []Term
+	for _, t := range sp.Formula.terms {
+		if variableState[t.Symbol] {
+			out = append(out, Term{Symbol: t.Symbol, Amount: sp.state[t.Symbol]})
+		}
+	}
+	return out
+}
+
 // TransitionMetalState returns the mole-weighted average oxidation state of the transition
 // metals, and false if the species has none.
 func (sp Species) TransitionMetalState() (float64, bool) {
 	var sum, n float64
-	for _, t := range sp.Formula.terms {
-		if variableState[t.Symbol] {
-			sum += sp.state[t.Symbol] * t.Amount
-			n += t.Amount
-		}
+	for _, st := range sp.TransitionMetalStates() {
+		mol := sp.Formula.Moles(st.Symbol)
+		sum += st.Amount * mol
+		n += mol
 	}
 	if n == 0 {
 		return 0, false

@@ -52,10 +52,26 @@ type Options struct {
 	GrowVolume bool `json:"grow_volume,omitempty"`
 }
 
+// Strengths of the commercial acids a bench buys (common practice): concentrated sulfuric acid
+// and the usual 32 % hydrochloric acid.
+const (
+	sulfuricAcidWtPct     = 98
+	hydrochloricAcidWtPct = 32
+)
+
+// DefaultAcidWtPct is the strength of the acid a route is usually dosed with: 98 % H2SO4 on the
+// sulfuric routes, 32 % HCl on the hydrochloric route.
+func DefaultAcidWtPct(r cathode.Route) float64 {
+	if r == cathode.Hydrochloric {
+		return hydrochloricAcidWtPct
+	}
+	return sulfuricAcidWtPct
+}
+
 // DefaultOptions is the planner's default: sulfuric acid 98 % with 30 % peroxide, acid at
 // stoichiometry plus 0.5 mol/L free acid, peroxide at 1.5× stoichiometry, 100 g/L pulp density.
 func DefaultOptions() Options {
-	return Options{Route: cathode.SulfuricPeroxide, AcidWtPct: 98, H2O2WtPct: 30, AcidExcess: 1, FreeAcidMolPerL: 0.5,
+	return Options{Route: cathode.SulfuricPeroxide, AcidWtPct: DefaultAcidWtPct(cathode.SulfuricPeroxide), H2O2WtPct: 30, AcidExcess: 1, FreeAcidMolPerL: 0.5,
 		ReductantExcess: 1.5, PulpDensityGPerL: 100, Reductant: "H2O2", TemperatureC: 60}
 }
 
@@ -284,8 +300,11 @@ func readByTemperature(fsys fs.FS, name string, upToOne bool) ([]byTemperature, 
 		if b.r.Min, b.r.Mode, b.r.Max, err = r.Range("", ""); err != nil {
 			return nil, err
 		}
-		if b.r.Min < 0 || b.r.Max > 1 || (!upToOne && b.r.Max == 1) {
-			return nil, r.Errorf("a share lies in [0, 1%s", map[bool]string{true: "]", false: ")"}[upToOne])
+		if b.r.Min < 0 || b.r.Max > 1 {
+			return nil, r.Errorf("a share lies from 0 to 1")
+		}
+		if !upToOne && b.r.Max == 1 {
+			return nil, r.Errorf("a share lies from 0 up to, not including, 1")
 		}
 		b.source = r.Str("source")
 		out = append(out, b)
