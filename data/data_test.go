@@ -2,6 +2,7 @@ package data_test
 
 import (
 	"io/fs"
+	"regexp"
 	"strings"
 	"testing"
 
@@ -54,29 +55,86 @@ func TestParseTableErrors(t *testing.T) {
 	}
 }
 
-// The share of rows whose source is published (not "from memory", "common practice" or an
-// assumption) is reported per table, so that progress in grounding the model shows.
+// recalledMarkers mark a number that rests on recall or judgment rather than a published source.
+var recalledMarkers = []string{"from memory", "common practice", "assumption", "invented"}
+
+// citation finds a publication year or a handbook or standard named in a source.
+var citation = regexp.MustCompile(`\b(18|19|20)\d\d\b|CRC|Perry|CODATA|CIAAW|IUPAC|NIST`)
+
+func recalled(s string) bool {
+	s = strings.ToLower(s)
+	for _, m := range recalledMarkers {
+		if strings.Contains(s, m) {
+			return true
+		}
+	}
+	return false
+}
+
+// sourceTier sorts a row's source into three tiers: "published" when no part of it is marked as
+// recalled; "anchored" when some numbers are recalled but a part (between semicolons) cites a
+// publication without such a mark (a published value inside a range whose other ends are
+// judgment); "recalled" otherwise.
+func sourceTier(src string) string {
+	if !recalled(src) {
+		return "published"
+	}
+	for _, part := range strings.Split(src, ";") {
+		if !recalled(part) && citation.MatchString(part) {
+			return "anchored"
+		}
+	}
+	return "recalled"
+}
+
+func TestSourceTier(t *testing.T) {
+	for src, want := range map[string]string{
+		"CRC Handbook, section 4": "published",
+		"H2O2 → O2 + 2H+ + 2e−":   "published",
+		"from memory":             "recalled",
+		"Noh et al. J. Power Sources 233 (2013) 121 (from memory)":          "recalled",
+		"capacity 160 (Nitta et al. 2015, Table 1); bounds from memory":     "anchored",
+		"mode from memory; a published cell has 1.04 (Frith et al. 2023)":   "anchored",
+		"share of casing metal ending up in the fines; common practice":     "recalled",
+		"Perry's Table 2-122 (36.4 at 20 °C); value at 25 °C from memory":   "anchored",
+		"from memory: the 80 °C row carried up by the doubling (Arrhenius)": "recalled",
+	} {
+		if got := sourceTier(src); got != want {
+			t.Errorf("sourceTier(%q) = %s, want %s", src, got, want)
+		}
+	}
+}
+
+// The share of rows whose numbers are all published, and of rows citing a published value at all,
+// is reported per table, so that progress in grounding the model shows; the floors below are the
+// shares reached so far and may only rise.
 func TestPublishedSourceShare(t *testing.T) {
+	const minPublished, minCiting = 0.20, 0.35
 	names, _ := fs.Glob(data.FS, "*.csv")
-	total, published := 0, 0
+	total, published, anchored := 0, 0, 0
 	for _, n := range names {
 		tb, err := data.ReadTable(data.FS, n)
 		if err != nil {
 			t.Fatal(err)
 		}
-		p := 0
+		p, a := 0, 0
 		for _, r := range tb.Rows {
-			src := strings.ToLower(r.Str("source"))
-			if !strings.Contains(src, "from memory") && !strings.Contains(src, "common practice") && !strings.Contains(src, "assumption") && !strings.Contains(src, "invented") {
+			switch sourceTier(r.Str("source")) {
+			case "published":
 				p++
+			case "anchored":
+				a++
 			}
 		}
-		t.Logf("%-22s %3d of %3d rows cite a published source", n, p, len(tb.Rows))
+		t.Logf("%-22s %3d rows: %3d published, %3d with a published value inside judged bounds", n, len(tb.Rows), p, a)
 		total += len(tb.Rows)
 		published += p
+		anchored += a
 	}
-	t.Logf("all tables: %d of %d rows (%.0f %%) cite a published source", published, total, 100*float64(published)/float64(total))
-	if published == 0 {
-		t.Error("no row cites a published source")
+	share := func(n int) float64 { return float64(n) / float64(total) }
+	t.Logf("all tables: %d rows; %d (%.0f %%) published throughout, %d (%.0f %%) cite a published source at all",
+		total, published, 100*share(published), published+anchored, 100*share(published+anchored))
+	if share(published) < minPublished || share(published+anchored) < minCiting {
+		t.Errorf("published shares fell: %.2f and %.2f, floors %.2f and %.2f", share(published), share(published+anchored), minPublished, minCiting)
 	}
 }
