@@ -353,9 +353,9 @@ func writeLeachText(w io.Writer, r *feed.Report) {
 	tw.Flush()
 	var sat []string
 	for _, k := range slices.Sorted(maps.Keys(l.Saturation)) {
-		sat = append(sat, fmt.Sprintf("%s %.2f", k, l.Saturation[k].P50))
+		sat = append(sat, fmt.Sprintf("%s %.2f at %g °C", k, l.Saturation[k].P50, l.SaturationAtC[k]))
 	}
-	fmt.Fprintf(w, "saturation ratio near 25 °C (P50): %s\n", strings.Join(sat, ", "))
+	fmt.Fprintf(w, "saturation ratio where least soluble between 20 °C and the leach (P50): %s\n", strings.Join(sat, ", "))
 	fmt.Fprintln(w, "leach cautions:")
 	for _, s := range l.Safety {
 		fmt.Fprintln(w, "  - "+s)

@@ -7,6 +7,7 @@ import (
 	"math"
 	"slices"
 	"sort"
+	"strconv"
 	"strings"
 	"sync"
 
@@ -145,7 +146,10 @@ type Report struct {
 	Liquor          Liquor               `json:"liquor"`
 	FreeAcidMolPerL dist.Stat            `json:"free_acid_mol_per_l"`
 	Saturation      map[string]dist.Stat `json:"saturation"`
-	TotalCost       *dist.Stat           `json:"total_cost,omitempty"`
+	// SaturationAtC is, per salt, the temperature between the filtered liquor's and the leach's
+	// at which it is least soluble: the temperature its saturation ratio is taken at.
+	SaturationAtC map[string]float64 `json:"saturation_at_C"`
+	TotalCost     *dist.Stat         `json:"total_cost,omitempty"`
 	// CostPerSample is the reagent cost of each Monte Carlo sample (for values net of reagents
 	// that move coherently with the draws); nil without prices.
 	CostPerSample []float64 `json:"-"`
@@ -161,10 +165,54 @@ type Report struct {
 
 type reagentTable map[string][][2]float64 // reagent -> sorted (wt%, density)
 
+// salt is a liquor salt and its solubility in water against temperature.
 type salt struct {
 	name, cation, anion string
-	gPer100g            float64
+	// curve is (temperature °C, g per 100 g water), sorted by temperature.
+	curve [][2]float64
 }
+
+// solubilityPrefix and solubilitySuffix frame solubility.csv's columns, g_per_100g_water_<T>C.
+const solubilityPrefix, solubilitySuffix = "g_per_100g_water_", "C"
+
+// gPer100gAt is the solubility at tC, interpolated linearly and held flat beyond the curve's ends.
+func (sl salt) gPer100gAt(tC float64) float64 {
+	c := sl.curve
+	if tC <= c[0][0] {
+		return c[0][1]
+	}
+	for i := 1; i < len(c); i++ {
+		if tC <= c[i][0] {
+			f := (tC - c[i-1][0]) / (c[i][0] - c[i-1][0])
+			return c[i-1][1] + f*(c[i][1]-c[i-1][1])
+		}
+	}
+	return c[len(c)-1][1]
+}
+
+// leastSoluble is the least solubility over [loC, hiC] and the temperature it falls at. On a
+// piecewise-linear curve the least lies at an end of the interval or at a point of the curve.
+func (sl salt) leastSoluble(loC, hiC float64) (gPer100g, atC float64) {
+	gPer100g, atC = sl.gPer100gAt(loC), loC
+	try := func(t float64) {
+		if g := sl.gPer100gAt(t); g < gPer100g {
+			gPer100g, atC = g, t
+		}
+	}
+	for _, pt := range sl.curve {
+		if pt[0] > loC && pt[0] < hiC {
+			try(pt[0])
+		}
+	}
+	try(hiC)
+	return gPer100g, atC
+}
+
+// anionWord names a liquor anion in prose.
+var anionWord = map[string]string{"SO4": "sulfate", "Cl": "chloride"}
+
+// filteredLiquorC is the temperature a filtered liquor cools to in the plant (common practice).
+const filteredLiquorC = 20.0
 
 // Tables are the leach planner's reference tables: reagent densities, salt solubilities,
 // extraction ranges per route, reductants, peroxide loss and lattice oxygen. Load them with
@@ -237,11 +285,30 @@ func LoadTables(fsys fs.FS) (*Tables, error) {
 		return nil, err
 	}
 	for _, r := range st.Rows {
-		g, err := r.Float("g_per_100g_water")
-		if err != nil {
-			return nil, err
+		sl := salt{name: r.Str("salt"), cation: r.Str("cation"), anion: r.Str("anion")}
+		for _, col := range st.Header {
+			num, ok := strings.CutPrefix(col, solubilityPrefix)
+			if !ok || r.Str(col) == "" {
+				continue
+			}
+			tC, err := strconv.ParseFloat(strings.TrimSuffix(num, strings.ToLower(solubilitySuffix)), 64)
+			if err != nil || !strings.HasSuffix(num, strings.ToLower(solubilitySuffix)) {
+				return nil, r.Errorf("column %s: want %s<temperature>%s", col, solubilityPrefix, solubilitySuffix)
+			}
+			g, err := r.Float(col)
+			if err != nil {
+				return nil, err
+			}
+			if g <= 0 {
+				return nil, r.Errorf("column %s: a solubility must be positive", col)
+			}
+			sl.curve = append(sl.curve, [2]float64{tC, g})
 		}
-		lt.salts = append(lt.salts, salt{r.Str("salt"), r.Str("cation"), r.Str("anion"), g})
+		if len(sl.curve) == 0 {
+			return nil, r.Errorf("%s: no solubility given", sl.name)
+		}
+		sort.Slice(sl.curve, func(i, j int) bool { return sl.curve[i][0] < sl.curve[j][0] })
+		lt.salts = append(lt.salts, sl)
 	}
 	et, err := data.ReadTable(fsys, "extraction.csv")
 	if err != nil {
@@ -602,7 +669,7 @@ func (p *leachPlanner) redLitres(mol float64) float64 {
 // report summarises the samples.
 func (p *leachPlanner) report() (*Report, error) {
 	n, opt, route := p.n, p.opt, p.route
-	lr := &Report{Route: route.String(), Settings: opt, Gases: map[string]Gas{}, Saturation: map[string]dist.Stat{},
+	lr := &Report{Route: route.String(), Settings: opt, Gases: map[string]Gas{}, Saturation: map[string]dist.Stat{}, SaturationAtC: map[string]float64{},
 		GasReference: "ideal gas at 0 °C and 101.325 kPa (22.414 L/mol)", Safety: leachSafety[route], Extraction: p.ranges}
 	col := func(f func(i int) float64) []float64 {
 		out := make([]float64, n)
@@ -773,6 +840,7 @@ func (p *leachPlanner) saturation(lr *Report) {
 		}
 		f, _ := es.ParseFormula(sl.name)
 		perSalt := f.Moles(sl.cation)
+		gPer100g, atC := sl.leastSoluble(min(filteredLiquorC, p.opt.TemperatureC), max(filteredLiquorC, p.opt.TemperatureC))
 		ratio := col(p.n, func(i int) float64 {
 			mol := p.res[i].liquorMol[k]
 			if sl.cation == "Fe" {
@@ -783,15 +851,17 @@ func (p *leachPlanner) saturation(lr *Report) {
 					mol -= fe3
 				}
 			}
-			return mol * f.MolarMass(es) / perSalt / (sl.gPer100g * 10) / p.vol[i]
+			return mol * f.MolarMass(es) / perSalt / (gPer100g * 10) / p.vol[i]
 		})
 		if slices.Max(ratio) <= 0 {
 			continue
 		}
 		st := dist.Summarise(ratio)
 		lr.Saturation[sl.name] = st
+		lr.SaturationAtC[sl.name] = atC
 		if st.P90 > saturationWarn {
-			lr.Warnings = append(lr.Warnings, fmt.Sprintf("%s reaches %.0f %% of its solubility in water near 25 °C (P90; single-salt data, the shared sulfate and the acid lower it further): lower the pulp density or expect crystallisation", sl.name, 100*st.P90))
+			lr.Warnings = append(lr.Warnings, fmt.Sprintf("%s reaches %.0f %% of its solubility in water at %g °C, the least between the filtered liquor's %g °C and the leach's %g °C (P90; single-salt data, the shared %s and the acid lower it further): lower the pulp density or expect crystallisation",
+				sl.name, 100*st.P90, atC, filteredLiquorC, p.opt.TemperatureC, anionWord[sl.anion]))
 		}
 	}
 }
@@ -901,7 +971,7 @@ func (p *leachPlanner) warnings(lr *Report, acidR Reagent, redR *Reagent) {
 		"Graphite, carbon black and PVDF are inert and stay in the residue.",
 		"Free acid is what remains of the acid added after the dissolution; H3PO4 and HF are counted as undissociated.",
 		"Liquor volume is black mass over pulp density (or the volume given); reagent volumes are included in it.",
-		"Saturation compares each salt with its single-salt solubility in water near 25 °C, taking 1 L of liquor as 1 kg of water; the shared sulfate and the acid lower real solubilities, so the warning starts at 60 %.",
+		"Saturation compares each salt with its single-salt solubility in water (CRC Handbook, 0-100 °C) at the temperature between the filtered liquor's 20 °C and the leach's where it is least (hot for Li2SO4 and MnSO4, cool for NiSO4), taking 1 L of liquor as 1 kg of water; the shared sulfate and the acid lower real solubilities, so the warning starts at 60 %.",
 	}
 }
 

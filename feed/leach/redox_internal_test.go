@@ -221,3 +221,47 @@ func TestPeroxideLossNearBoilingFollowsTheDoubling(t *testing.T) {
 		}
 	}
 }
+
+// Solubility against temperature, g per 100 g water, from the CRC Handbook of Chemistry and
+// Physics, 91st ed. (2010), 8-112 to 8-117 (the table's mass % converted): Li2SO4 34.23 at 25 °C,
+// 31.23 at 90 °C and 30.89 at 100 °C (retrograde); MnSO4 62.87 at 20 °C and 40.45 at 90 °C;
+// NiSO4 37.74 at 20 °C, rising; Al2(SO4)3 37.93 at 0 °C and 38.5 at 25 °C (no 20 °C value).
+func TestSolubilityCurvesFromTheHandbook(t *testing.T) {
+	lt, err := DefaultTables()
+	if err != nil {
+		t.Fatal(err)
+	}
+	salts := map[string]salt{}
+	for _, sl := range lt.salts {
+		salts[sl.name] = sl
+	}
+	for _, c := range []struct {
+		salt     string
+		tC, want float64
+	}{
+		{"Li2SO4", 25, 34.23},
+		{"Li2SO4", 90, 31.23},
+		{"Li2SO4", 95, (31.23 + 30.89) / 2}, // linear between the 90 and 100 °C values
+		{"Li2SO4", 120, 30.89},              // held flat beyond the table
+		{"MnSO4", 90, 40.45},
+		{"Al2(SO4)3", 20, 37.93 + 0.8*(38.5-37.93)}, // between 0 and 25 °C across the gap
+	} {
+		if got := salts[c.salt].gPer100gAt(c.tC); math.Abs(got-c.want) > 1e-9 {
+			t.Errorf("%s at %g °C: %v g/100 g water, want %v", c.salt, c.tC, got, c.want)
+		}
+	}
+	for _, c := range []struct {
+		salt              string
+		lo, hi, want, atC float64
+	}{
+		{"MnSO4", 20, 90, 40.45, 90}, // falls when hot: the hot leach binds
+		{"NiSO4", 20, 90, 37.74, 20}, // rises: the cooled liquor binds
+		{"CoSO4", 20, 90, 35.32, 20}, // peaks near 60 °C, least at 20 °C
+		{"MnSO4", 20, 25, 62.87, 20},
+	} {
+		g, at := salts[c.salt].leastSoluble(c.lo, c.hi)
+		if math.Abs(g-c.want) > 1e-9 || at != c.atC {
+			t.Errorf("%s between %g and %g °C: least %v at %g °C, want %v at %g °C", c.salt, c.lo, c.hi, g, at, c.want, c.atC)
+		}
+	}
+}

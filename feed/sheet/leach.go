@@ -66,13 +66,13 @@ func (w *writer) leach() error {
 	w.style(s, fmt.Sprintf("B%d", first), fmt.Sprintf("E%d", row), w.num3)
 	liquorFirst, liquorLast := first, row
 	row += 2
-	if err := w.header(s, row, "salt", "saturation ratio P50", "P90"); err != nil {
+	if err := w.header(s, row, "salt", "saturation ratio P50", "P90", "least soluble at °C"); err != nil {
 		return err
 	}
 	satFirst := row + 1
 	for _, k := range slices.Sorted(maps.Keys(l.Saturation)) {
 		row++
-		_ = w.row(s, row, k, l.Saturation[k].P50, l.Saturation[k].P90)
+		_ = w.row(s, row, k, l.Saturation[k].P50, l.Saturation[k].P90, l.SaturationAtC[k])
 	}
 	w.style(s, fmt.Sprintf("B%d", satFirst), fmt.Sprintf("C%d", row), w.num3)
 	_ = f.SetColWidth(s, "A", "A", 36)
