@@ -912,13 +912,26 @@ func (p *leachPlanner) byproducts(lr *Report) {
 	}
 }
 
+// samplePct prints a share of samples as a percentage, saying "under 1 %" rather than rounding a
+// few samples to 0.
+func samplePct(share float64) string {
+	if share > 0 && share < 0.005 {
+		return "under 1 %"
+	}
+	return fmt.Sprintf("%.0f %%", math.Round(100*share))
+}
+
 // warnings adds the dose warnings.
 func (p *leachPlanner) warnings(lr *Report, acidR Reagent, redR *Reagent) {
 	if p.grown > 0 {
 		lr.Warnings = append(lr.Warnings, fmt.Sprintf("the reagents alone exceed the liquor volume in %d of %d samples: the volume grew to hold them, so the pulp density is lower than asked", p.grown, p.n))
 	}
+	redShort := 0.0 // share of samples the reductant (with the feed's metals and the oxides' oxygen) limits
 	for _, l := range lr.Limiting {
-		lr.Warnings = append(lr.Warnings, fmt.Sprintf("%s limits the leach in %.0f %% of samples: it reaches %.0f %% (P50) of the planned dissolution", l.Reagent, 100*l.SampleShare, 100*l.ReachedShare.P50))
+		lr.Warnings = append(lr.Warnings, fmt.Sprintf("%s limits the leach in %s of samples: it reaches %.0f %% (P50) of the planned dissolution", l.Reagent, samplePct(l.SampleShare), 100*l.ReachedShare.P50))
+		if p.red != nil && strings.HasPrefix(l.Reagent, p.red.Key) {
+			redShort = l.SampleShare
+		}
 	}
 	if acidR.RatioFull.P10 < 1 {
 		lr.Warnings = append(lr.Warnings, fmt.Sprintf("acid is %.2f× what full dissolution needs (P10): free acid runs out and less metal dissolves", acidR.RatioFull.P10))
@@ -932,8 +945,12 @@ func (p *leachPlanner) warnings(lr *Report, acidR Reagent, redR *Reagent) {
 			allow = 1 / (1 - dist.Summarise(p.lost).P50)
 		}
 		if redR.RatioFull.P10 < allow {
-			lr.Warnings = append(lr.Warnings, fmt.Sprintf("%s is %.2f× what full dissolution needs (P10), below the %.2f× that allows for its decomposition at %g °C: Co, Ni and Mn extraction will fall short",
-				p.red.Key, redR.RatioFull.P10, allow, p.opt.TemperatureC))
+			outcome := "Co, Ni and Mn extraction will fall short"
+			if redShort < 0.1 {
+				outcome = "in this plan the oxides' own oxygen makes up the rest (data/lattice_oxygen.csv); where they give less, Co, Ni and Mn extraction falls short"
+			}
+			lr.Warnings = append(lr.Warnings, fmt.Sprintf("%s is %.2f× what full dissolution needs (P10), below the %.2f× that allows for its decomposition at %g °C: %s",
+				p.red.Key, redR.RatioFull.P10, allow, p.opt.TemperatureC, outcome))
 		} else if redR.Ratio.P50 > 6 {
 			lr.Warnings = append(lr.Warnings, fmt.Sprintf("%s is %.1f× stoichiometric: grossly over-dosed", p.red.Key, redR.Ratio.P50))
 		}

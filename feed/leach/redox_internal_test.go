@@ -265,3 +265,11 @@ func TestSolubilityCurvesFromTheHandbook(t *testing.T) {
 		}
 	}
 }
+
+func TestSamplePct(t *testing.T) {
+	for share, want := range map[float64]string{0: "0 %", 0.002: "under 1 %", 0.005: "1 %", 0.25: "25 %", 1: "100 %"} {
+		if got := samplePct(share); got != want {
+			t.Errorf("samplePct(%v) = %q, want %q", share, got, want)
+		}
+	}
+}
