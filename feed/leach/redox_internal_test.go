@@ -273,3 +273,20 @@ func TestSamplePct(t *testing.T) {
 		}
 	}
 }
+
+// A solubility table with a bad column or value is refused, naming the file, line and column.
+func TestSolubilityTableErrors(t *testing.T) {
+	for name, edit := range map[string]func(string) string{
+		"negative": func(s string) string { return strings.Replace(s, "Li2SO4,Li,SO4,35.69,", "Li2SO4,Li,SO4,-35.69,", 1) },
+		"no unit":  func(s string) string { return strings.Replace(s, "g_per_100g_water_0C,", "g_per_100g_water_0,", 1) },
+		"empty": func(s string) string {
+			return strings.Replace(s, "Li2SO4,Li,SO4,35.69,34.95,34.41,34.23,33.87,33.33,32.98,32.45,32.1,31.58,31.23,30.89,", "Li2SO4,Li,SO4,,,,,,,,,,,,,", 1)
+		},
+	} {
+		_, err := LoadTables(datatest.Edited(t, map[string]func(string) string{"solubility.csv": edit}))
+		t.Logf("%s: %v", name, err)
+		if err == nil || !strings.Contains(err.Error(), "solubility.csv:") {
+			t.Errorf("%s: %v", name, err)
+		}
+	}
+}
