@@ -50,10 +50,12 @@ func (w *writer) order() error {
 		_ = w.row(s, row, l.Reagent, l.Kg.P50, l.Kg.P90, lp50, lp90, l.KgPerTonneBM, strings.Join(cs, " or "), price, cost)
 	}
 	_ = f.SetColWidth(s, "A", "A", 30)
-	_ = f.SetColWidth(s, "B", "F", 13)
+	_ = f.SetColWidth(s, "B", "E", 13)
+	_ = f.SetColWidth(s, "F", "F", 17)
 	_ = f.SetColWidth(s, "G", "G", 48)
 	_ = f.SetColWidth(s, "H", "I", 14)
 	w.style(s, "B4", fmt.Sprintf("F%d", row), w.num3)
+	w.style(s, "G4", fmt.Sprintf("G%d", row), w.textAfterNumber)
 	w.printSetup(s, true)
 	return nil
 }

@@ -29,6 +29,7 @@ type writer struct {
 	paper                 int // PaperA4 or PaperLetter
 	editText              int // an input cell for text (a date, a name)
 	wrap                  int // wrapped text, top-aligned
+	textAfterNumber       int // wrapped text indented from a right-aligned number to its left
 	alert                 int // a disagreement to notice
 	formulas              []formulaCell
 	f                     *excelize.File
@@ -116,6 +117,7 @@ func build(r *feed.Report, paper int) (f *excelize.File, formulas []formulaCell,
 	wr.title = must(f.NewStyle(&excelize.Style{Font: &excelize.Font{Bold: true, Size: 14}}))
 	wr.alert = must(f.NewStyle(&excelize.Style{Fill: excelize.Fill{Type: "pattern", Pattern: 1, Color: []string{"F4CCCC"}}, Font: &excelize.Font{Bold: true, Color: "7F0000"}, CustomNumFmt: &f3}))
 	wr.wrap = must(f.NewStyle(&excelize.Style{Alignment: &excelize.Alignment{WrapText: true, Vertical: "top"}}))
+	wr.textAfterNumber = must(f.NewStyle(&excelize.Style{Alignment: &excelize.Alignment{Horizontal: "left", WrapText: true, Vertical: "top", Indent: 1}}))
 	wr.editText = must(f.NewStyle(&excelize.Style{Fill: excelize.Fill{Type: "pattern", Pattern: 1, Color: []string{"FFF2CC"}},
 		Border: []excelize.Border{{Type: "bottom", Color: "BF9000", Style: 1}}}))
 	wr.edit = must(f.NewStyle(&excelize.Style{Fill: excelize.Fill{Type: "pattern", Pattern: 1, Color: []string{"FFF2CC"}}, CustomNumFmt: &f3,
