@@ -30,6 +30,7 @@ type writer struct {
 	editText              int // an input cell for text (a date, a name)
 	wrap                  int // wrapped text, top-aligned
 	textAfterNumber       int // wrapped text indented from a right-aligned number to its left
+	money, moneyTotal     int // an amount of money, and one on a total row
 	alert                 int // a disagreement to notice
 	formulas              []formulaCell
 	f                     *excelize.File
@@ -117,6 +118,10 @@ func build(r *feed.Report, paper int) (f *excelize.File, formulas []formulaCell,
 	wr.title = must(f.NewStyle(&excelize.Style{Font: &excelize.Font{Bold: true, Size: 14}}))
 	wr.alert = must(f.NewStyle(&excelize.Style{Fill: excelize.Fill{Type: "pattern", Pattern: 1, Color: []string{"F4CCCC"}}, Font: &excelize.Font{Bold: true, Color: "7F0000"}, CustomNumFmt: &f3}))
 	wr.wrap = must(f.NewStyle(&excelize.Style{Alignment: &excelize.Alignment{WrapText: true, Vertical: "top"}}))
+	m2 := "#,##0.00"
+	wr.money = must(f.NewStyle(&excelize.Style{CustomNumFmt: &m2}))
+	wr.moneyTotal = must(f.NewStyle(&excelize.Style{Font: &excelize.Font{Bold: true}, Fill: excelize.Fill{Type: "pattern", Pattern: 1, Color: []string{"D9E2D0"}},
+		Border: []excelize.Border{{Type: "bottom", Color: "5B6B4E", Style: 1}}, CustomNumFmt: &m2}))
 	wr.textAfterNumber = must(f.NewStyle(&excelize.Style{Alignment: &excelize.Alignment{Horizontal: "left", WrapText: true, Vertical: "top", Indent: 1}}))
 	wr.editText = must(f.NewStyle(&excelize.Style{Fill: excelize.Fill{Type: "pattern", Pattern: 1, Color: []string{"FFF2CC"}},
 		Border: []excelize.Border{{Type: "bottom", Color: "BF9000", Style: 1}}}))

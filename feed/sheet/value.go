@@ -41,10 +41,14 @@ func (w *writer) value() error {
 		}
 		_ = w.row(s, row, item, e.ProductKg.P50, e.PricePerKg, e.Payable, e.Contained.P50, e.PayableVal.P10, e.PayableVal.P50, e.PayableVal.P90, e.Source)
 	}
+	w.style(s, "B4", fmt.Sprintf("B%d", row), w.num3)
+	w.style(s, "E4", fmt.Sprintf("H%d", row), w.money)
+	w.style(s, "I4", fmt.Sprintf("I%d", row), w.textAfterNumber)
 	row++
 	_ = w.row(s, row, "lot", nil, nil, nil, v.Contained.P50, v.Payable.P10, v.Payable.P50, v.Payable.P90)
-	w.style(s, fmt.Sprintf("A%d", row), fmt.Sprintf("H%d", row), w.hdr)
+	w.style(s, fmt.Sprintf("A%d", row), fmt.Sprintf("H%d", row), w.moneyTotal)
 	row += 2
+	sums := row
 	_ = w.row(s, row, "payable per tonne of black mass (P50)", v.PayablePerTonneBM.P50)
 	if v.PayablePerKWh != nil {
 		row++
@@ -56,6 +60,7 @@ func (w *writer) value() error {
 		row++
 		_ = w.row(s, row, "payable net of reagents P10 / P50 / P90", v.NetOfReagents.P10, v.NetOfReagents.P50, v.NetOfReagents.P90)
 	}
+	w.style(s, fmt.Sprintf("B%d", sums), fmt.Sprintf("D%d", row), w.money)
 	for _, n := range v.Notes {
 		row++
 		_ = w.row(s, row, n)
