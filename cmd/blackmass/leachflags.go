@@ -52,7 +52,7 @@ func (l *leachFlags) bind(cmd *cobra.Command) {
 	numberVar(fl, &l.opt.H2O2PricePerKg, "h2o2-price", 0, 0, 1e6, "a price per kg", "price per kg of the reductant as bought (same currency)")
 	fl.StringVar(&l.opt.Reductant, "reductant", d.Reductant, "reductant of the sulfuric routes: H2O2, SO2, Na2S2O5 (metabisulfite), C6H8O6 (ascorbic acid) or none")
 	numberVar(fl, &l.opt.RecipeReductantGPerL, "reductant-g-per-l", 0, 0.01, 500, "g per litre of liquor", "bench recipe: a solid or gaseous reductant in g per litre of liquor")
-	numberVar(fl, &l.opt.TemperatureC, "temperature", d.TemperatureC, 0, 110, "an open acid leach boils near 105 °C", "leach temperature, °C (sets how much peroxide decomposes, and how much the oxides' own oxygen reduces them when short of reductant)")
+	numberVar(fl, &l.opt.TemperatureC, "temperature", d.TemperatureC, 0, 110, "an open acid leach boils near 105 °C", "leach temperature, °C (sets how much peroxide decomposes, how much the oxides' own oxygen reduces them when short of reductant, and the hot end of the saturation check)")
 	fl.StringVar(&l.opt.Currency, "currency", "", "currency of the reagent prices (EUR, USD ...), shown with every cost")
 	fl.StringVar(&l.containers, "containers", "25 L can, 200 L drum, 1000 L IBC, 25 kg bag", "packages reagents are bought in, for the order sheet (capacity, L or kg, name; comma-separated)")
 	fl.BoolVar(&l.opt.GrowVolume, "grow-volume", false, "let the liquor volume grow when the reagents alone exceed it (default: refuse)")

@@ -172,8 +172,8 @@ type salt struct {
 	curve [][2]float64
 }
 
-// solubilityPrefix and solubilitySuffix frame solubility.csv's columns, g_per_100g_water_<T>C.
-const solubilityPrefix, solubilitySuffix = "g_per_100g_water_", "C"
+// solubilityPrefix starts solubility.csv's columns, g_per_100g_water_<T>C.
+const solubilityPrefix = "g_per_100g_water_"
 
 // gPer100gAt is the solubility at tC, interpolated linearly and held flat beyond the curve's ends.
 func (sl salt) gPer100gAt(tC float64) float64 {
@@ -291,9 +291,10 @@ func LoadTables(fsys fs.FS) (*Tables, error) {
 			if !ok || r.Str(col) == "" {
 				continue
 			}
-			tC, err := strconv.ParseFloat(strings.TrimSuffix(num, strings.ToLower(solubilitySuffix)), 64)
-			if err != nil || !strings.HasSuffix(num, strings.ToLower(solubilitySuffix)) {
-				return nil, r.Errorf("column %s: want %s<temperature>%s", col, solubilityPrefix, solubilitySuffix)
+			degrees, inC := strings.CutSuffix(num, "c") // the table's headers are lower-cased
+			tC, err := strconv.ParseFloat(degrees, 64)
+			if err != nil || !inC {
+				return nil, r.Errorf("column %s: want %s<temperature>C", col, solubilityPrefix)
 			}
 			g, err := r.Float(col)
 			if err != nil {
