@@ -913,6 +913,10 @@ func (p *leachPlanner) byproducts(lr *Report) {
 	}
 }
 
+// shortfallSampleShare is the share of samples in which the reductant must limit the leach before
+// the plan calls the extraction short: one outcome in ten, the same margin as ordering to P90.
+const shortfallSampleShare = 0.1
+
 // samplePct prints a share of samples as a percentage, saying "under 1 %" rather than rounding a
 // few samples to 0.
 func samplePct(share float64) string {
@@ -947,7 +951,7 @@ func (p *leachPlanner) warnings(lr *Report, acidR Reagent, redR *Reagent) {
 		}
 		if redR.RatioFull.P10 < allow {
 			outcome := "Co, Ni and Mn extraction will fall short"
-			if redShort < 0.1 {
+			if redShort < shortfallSampleShare {
 				outcome = "in this plan the oxides' own oxygen makes up the rest (data/lattice_oxygen.csv); where they give less, Co, Ni and Mn extraction falls short"
 			}
 			lr.Warnings = append(lr.Warnings, fmt.Sprintf("%s is %.2f× what full dissolution needs (P10), below the %.2f× that allows for its decomposition at %g °C: %s",
