@@ -8,14 +8,14 @@ import (
 	"os"
 	"path/filepath"
 	"strings"
-	"text/tabwriter"
 
 	"github.com/spf13/cobra"
 
 	"blackmass/cathode"
-	"blackmass/feed"
 	"blackmass/feed/assay"
 	"blackmass/feed/intake"
+	"blackmass/feed/run"
+	"blackmass/feed/text"
 )
 
 func readAssay(path string) (*assay.Assay, []byte, error) {
@@ -38,25 +38,26 @@ func (f *fitOptions) bind(cmd *cobra.Command) {
 	intVar(cmd.Flags(), &f.bootstrap, "bootstrap", 500, 10, 20000, "enough for stable ranges; more only costs time", "bootstrap draws of the assay for the mix ranges")
 }
 
-func (f *fitOptions) fit(cat *cathode.Catalogue, a *assay.Assay, seed uint64) (*assay.MixFit, error) {
-	cands := cat.Entries()
-	if f.candidates != "" {
-		cands = nil
-		seen := map[string]bool{}
-		for _, k := range strings.Split(f.candidates, ",") {
-			ch, err := cat.ParseLabel(strings.TrimSpace(k))
-			if err != nil {
-				return nil, fmt.Errorf("--candidates: %w", err)
-			}
-			for _, c := range ch.Components {
-				if !seen[c.Entry.Key] {
-					seen[c.Entry.Key] = true
-					cands = append(cands, c.Entry)
-				}
+// options reads --candidates (nil when not given) and --bootstrap.
+func (f *fitOptions) options(cat *cathode.Catalogue) (*run.MixOptions, error) {
+	mx := &run.MixOptions{Bootstrap: f.bootstrap}
+	if f.candidates == "" {
+		return mx, nil
+	}
+	seen := map[string]bool{}
+	for _, k := range strings.Split(f.candidates, ",") {
+		ch, err := cat.ParseLabel(strings.TrimSpace(k))
+		if err != nil {
+			return nil, usageError{fmt.Errorf("--candidates: %w", err)}
+		}
+		for _, c := range ch.Components {
+			if !seen[c.Entry.Key] {
+				seen[c.Entry.Key] = true
+				mx.Candidates = append(mx.Candidates, c.Entry)
 			}
 		}
 	}
-	return assay.InferMix(a, cands, f.bootstrap, seed)
+	return mx, nil
 }
 
 // The black mass a quote accepts: a 1 g bench sample to a 100,000 t campaign.
@@ -101,14 +102,15 @@ func newQuoteCmd() *cobra.Command {
 func runQuote(w io.Writer, o *quoteOptions, path string) error {
 	kg, err := intake.ParseMassKg(o.mass)
 	if err != nil {
-		return fmt.Errorf("--mass %q: %w", intake.Printable(o.mass, 40), err)
+		return usageError{fmt.Errorf("--mass %q: %w", intake.Printable(o.mass, 40), err)}
 	}
 	if kg < minQuoteKg || kg > maxQuoteKg {
-		return fmt.Errorf("--mass %q: %.4g kg is outside %g g to %g t (a bench sample to a large lot)", intake.Printable(o.mass, 40), kg, minQuoteKg*1000, maxQuoteKg/1000)
+		return usageError{fmt.Errorf("--mass %q: %.4g kg is outside %g g to %g t (a bench sample to a large lot)",
+			intake.Printable(o.mass, 40), kg, minQuoteKg*1000, maxQuoteKg/1000)}
 	}
 	tm, err := assay.ParseTMForm(o.form)
 	if err != nil {
-		return err
+		return usageError{err}
 	}
 	if o.xlsxPath != "" {
 		if err := checkWritable(o.xlsxPath, o.force); err != nil {
@@ -119,26 +121,17 @@ func runQuote(w io.Writer, o *quoteOptions, path string) error {
 	if err != nil {
 		return err
 	}
-	lo, err := o.leach.options()
+	t, ro, err := o.runOptions()
 	if err != nil {
 		return err
 	}
-	cat, err := o.cat.load()
-	if err != nil {
+	if ro.Mix, err = o.fit.options(t.Catalogue); err != nil {
 		return err
 	}
 	sum := sha256.Sum256(b)
-	q, err := assay.QuoteFrom(a, assay.QuoteOptions{BlackMassKg: kg, TMForm: tm, Seed: o.seed, Samples: o.samples, Leach: *lo})
+	ro.Inputs.File, ro.Inputs.SHA256 = filepath.ToSlash(path), hex.EncodeToString(sum[:])
+	rep, err := run.Quote(t, ro, a, assay.QuoteOptions{BlackMassKg: kg, TMForm: tm})
 	if err != nil {
-		return err
-	}
-	prices, err := o.loadPrices()
-	if err != nil {
-		return err
-	}
-	rep := feed.QuoteReport(q, feed.Inputs{File: filepath.ToSlash(path), SHA256: hex.EncodeToString(sum[:]), Version: version, LotID: o.lotID, Supplier: o.supplier}, prices)
-	rep.Assay = a
-	if rep.Mix, err = o.fit.fit(cat, a, o.seed); err != nil {
 		return err
 	}
 	return emit(w, &o.estimateOptions, rep)
@@ -180,24 +173,17 @@ func runReconcile(w io.Writer, o *reconcileOptions, name string, in io.Reader, a
 	if err != nil {
 		return err
 	}
-	rep, err := buildEstimate(&o.estimateOptions, name, in)
+	t, ro, err := o.runOptions()
 	if err != nil {
 		return err
 	}
-	cat, err := o.cat.load()
-	if err != nil {
+	// By default the assay is explained with the lot's own chemistries (nil candidates).
+	if ro.Mix, err = o.fit.options(t.Catalogue); err != nil {
 		return err
 	}
-	rep.Assay = a
-	rep.Reconciliation = assay.Reconcile(rep.Elements, a, o.threshold)
-	if o.fit.candidates == "" { // by default, explain the assay with the lot's own chemistries
-		var keys []string
-		for _, g := range rep.Groups {
-			keys = append(keys, g.Components...)
-		}
-		o.fit.candidates = strings.Join(keys, ",")
-	}
-	if rep.Mix, err = o.fit.fit(cat, a, o.seed); err != nil {
+	ro.Assay, ro.FlagSigma = a, o.threshold
+	rep, err := run.Estimate(t, ro, run.Manifest{Name: name, R: in})
+	if err != nil {
 		return err
 	}
 	return emit(w, &o.estimateOptions, rep)
@@ -236,63 +222,24 @@ func runInfer(w io.Writer, o *inferOptions, path string) error {
 	if err != nil {
 		return err
 	}
-	c, err := o.cat.load()
+	t, err := o.cat.tables()
 	if err != nil {
 		return err
 	}
-	m, err := o.fit.fit(c, a, o.seed)
+	mx, err := o.fit.options(t.Catalogue)
+	if err != nil {
+		return err
+	}
+	if mx.Candidates == nil {
+		mx.Candidates = t.Catalogue.Entries()
+	}
+	m, err := assay.InferMix(a, mx.Candidates, mx.Bootstrap, o.seed)
 	if err != nil {
 		return err
 	}
 	if o.asJSON {
 		return writeJSON(w, m)
 	}
-	writeMixText(w, m)
+	text.WriteMix(w, m)
 	return nil
-}
-
-func writeMixText(w io.Writer, m *assay.MixFit) {
-	fmt.Fprintf(w, "chemistry mix that best explains the assay (%d bootstrap draws)\n", m.Bootstrap)
-	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
-	fmt.Fprintln(tw, "component\tbest kg/kg\tP10\tP50\tP90\t95 % range\tcathode share P50\t")
-	for _, c := range m.Components {
-		share := ""
-		if c.CathodeShare != nil {
-			share = fmt.Sprintf("%.3f", c.CathodeShare.P50)
-		}
-		fmt.Fprintf(tw, "%s\t%.4f\t%.4f\t%.4f\t%.4f\t%.4f–%.4f\t%s\t\n", c.Name, c.Best, c.KgPerKg.P10, c.KgPerKg.P50, c.KgPerKg.P90, c.Interval95[0], c.Interval95[1], share)
-	}
-	tw.Flush()
-	fmt.Fprintf(w, "explained mass fraction %.3f\n", m.Explained)
-	tw = tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
-	fmt.Fprintln(tw, "element\tassay − fit wt%\tin σ\t")
-	for _, r := range m.Residuals {
-		fmt.Fprintf(tw, "%s\t%+.3f\t%+.2f\t\n", r.Element, r.WtPct, r.Sigma)
-	}
-	tw.Flush()
-	for _, n := range m.Notes {
-		fmt.Fprintln(w, "  note: "+n)
-	}
-}
-
-func writeReconcileText(w io.Writer, rc *assay.Reconciliation) {
-	fmt.Fprintf(w, "\nestimate vs assay (flag above %.1f σ)\n", rc.Threshold)
-	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
-	fmt.Fprintln(tw, "element\testimate wt%\t± σ\tassay wt%\t± σ\tdifference σ\t\t")
-	for _, c := range rc.Comparisons {
-		flag := ""
-		if c.Flag {
-			flag = "DISAGREES"
-		}
-		if c.Interpretation != "" && !c.Flag {
-			flag = "not modelled"
-		}
-		fmt.Fprintf(tw, "%s\t%.2f\t%.2f\t%.2f\t%.2f\t%+.1f\t%s\t\n", c.Element, c.EstimateWtPct, c.EstimateSigma, c.AssayWtPct, c.AssaySigma, c.Z, flag)
-	}
-	tw.Flush()
-	for _, c := range rc.Comparisons {
-		if c.Flag {
-			fmt.Fprintf(w, "  %s: %s\n", c.Element, c.Interpretation)
-		}
-	}
 }

@@ -31,10 +31,11 @@ func newChemCmd() *cobra.Command {
 			return cobra.MinimumNArgs(1)(cmd, args)
 		},
 		RunE: func(cmd *cobra.Command, args []string) error {
-			c, err := cat.load()
+			t, err := cat.tables()
 			if err != nil {
 				return err
 			}
+			c := t.Catalogue
 			if list {
 				return writeCatalogueList(cmd.OutOrStdout(), c, asJSON)
 			}

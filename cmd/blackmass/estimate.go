@@ -1,28 +1,24 @@
 package main
 
 import (
-	"bufio"
 	"bytes"
-	"crypto/sha256"
-	"encoding/hex"
 	"encoding/json"
 	"fmt"
 	"io"
 	"io/fs"
 	"os"
-	"path/filepath"
 	"strings"
 
 	"github.com/spf13/cobra"
 
 	"blackmass/data"
-	"blackmass/feed"
 	"blackmass/feed/intake"
+	"blackmass/feed/report"
+	"blackmass/feed/run"
 	"blackmass/feed/sheet"
+	"blackmass/feed/text"
+	"blackmass/feed/value"
 )
-
-// maxXLSXBytes bounds an .xlsx manifest, read whole as the zip format needs.
-const maxXLSXBytes = 64 << 20
 
 // demoFile is the embedded demo lot.
 const (
@@ -143,87 +139,58 @@ func runEstimate(w io.Writer, o *estimateOptions, name string, in io.Reader) err
 			return err
 		}
 	}
-	rep, err := buildEstimate(o, name, in)
+	t, ro, err := o.runOptions()
+	if err != nil {
+		return err
+	}
+	rep, err := run.Estimate(t, ro, run.Manifest{Name: name, R: in})
 	if err != nil {
 		return err
 	}
 	return emit(w, o, rep)
 }
 
-// buildEstimate reads a manifest and runs the estimate with the leach plan. A CSV manifest is
-// streamed (hashed on the way), so memory does not grow with its length; an .xlsx workbook is
-// read whole, as the zip format needs.
-func buildEstimate(o *estimateOptions, name string, in io.Reader) (*feed.Report, error) {
+// runOptions loads the tables (with the user's catalogue and prior) and turns the flags into a
+// run's options.
+func (o *estimateOptions) runOptions() (*run.Tables, run.Options, error) {
+	var ro run.Options
 	if o.unknown != "refuse" && o.unknown != "prior" {
-		return nil, fmt.Errorf("--unknown must be refuse or prior, got %q", o.unknown)
+		return nil, ro, usageError{fmt.Errorf("--unknown must be refuse or prior, got %q", intake.Printable(o.unknown, 20))}
 	}
-	cat, err := o.cat.load()
+	t, err := o.cat.tables()
 	if err != nil {
-		return nil, err
-	}
-	model, err := feed.DefaultModel()
-	if err != nil {
-		return nil, err
+		return nil, ro, err
 	}
 	leachOpt, err := o.leach.options()
 	if err != nil {
-		return nil, err
+		return nil, ro, err
 	}
-	// Per-line detail is kept only for the outputs that print it (JSON and the workbook): the
-	// text report never does, and keeping it costs memory in proportion to the manifest.
-	lot := feed.NewLot(model, o.keepLines || (!o.noLines && (o.asJSON || o.xlsxPath != "")))
-	mopt := intake.Options{Catalogue: cat, UnknownAsPrior: o.unknown == "prior", IgnoreColumns: o.ignore, Sheet: o.sheet}
-	h := sha256.New()
-	br := bufio.NewReaderSize(in, 64<<10)
-	head, _ := br.Peek(4)
-	var info intake.Info
-	if strings.EqualFold(filepath.Ext(name), ".xlsx") || bytes.HasPrefix(head, []byte("PK\x03\x04")) {
-		var b []byte
-		if b, err = io.ReadAll(io.LimitReader(io.TeeReader(br, h), maxXLSXBytes+1)); err != nil {
-			return nil, err
-		}
-		if len(b) > maxXLSXBytes {
-			return nil, fmt.Errorf("%s: an .xlsx manifest larger than %d MB: save it as CSV, which is read as a stream", name, maxXLSXBytes>>20)
-		}
-		info, err = intake.ReadXLSX(bytes.NewReader(b), name, mopt, lot.Add)
-	} else {
-		info, err = intake.ReadCSV(io.TeeReader(br, h), name, mopt, lot.Add)
-	}
+	cs, err := o.leach.containerList()
 	if err != nil {
-		return nil, err
+		return nil, ro, err
 	}
-	if o.xlsxPath != "" && !o.noLines && info.Lines > sheet.MaxLines {
-		return nil, fmt.Errorf("%s: %d lines do not fit the workbook's Lines sheet (at most %d rows below its header): add --no-lines to leave the per-line sheet out, or split the manifest", name, info.Lines, sheet.MaxLines)
-	}
-	if _, err := io.Copy(h, br); err != nil { // hash anything the reader left unread
-		return nil, err
-	}
-	sum := h.Sum(nil)
 	prices, err := o.loadPrices()
 	if err != nil {
-		return nil, err
+		return nil, ro, err
 	}
-	rep, _, err := lot.Estimate(feed.EstimateOptions{Seed: o.seed, Samples: o.samples, Leach: leachOpt, Prices: prices,
-		Inputs: feed.Inputs{File: filepath.ToSlash(name), SHA256: hex.EncodeToString(sum[:]), Version: version,
-			LotID: o.lotID, Supplier: o.supplier, UnknownAsPrior: o.unknown == "prior",
-			Sheet: info.Sheet, Sheets: info.Sheets, HeaderLine: info.HeaderLine, IgnoredColumns: info.IgnoredColumns}})
-	if err != nil {
-		return nil, err
+	ro = run.Options{Seed: o.seed, Samples: o.samples, Leach: leachOpt, Prices: prices, Containers: cs,
+		// Per-line detail is kept only for the outputs that print it (JSON and the workbook): the
+		// text report never does, and keeping it costs memory in proportion to the manifest.
+		KeepLines:      o.keepLines || (!o.noLines && (o.asJSON || o.xlsxPath != "")),
+		UnknownAsPrior: o.unknown == "prior", IgnoreColumns: o.ignore, Sheet: o.sheet,
+		Inputs: report.Inputs{Version: version, LotID: o.lotID, Supplier: o.supplier}}
+	if o.xlsxPath != "" && !o.noLines {
+		ro.MaxLines = sheet.MaxLines
+		ro.MaxLinesReason = "they do not fit the workbook's Lines sheet: add --no-lines to leave the per-line sheet out, or split the manifest"
 	}
-	if len(info.Sheets) > 1 {
-		rep.Warnings = append([]string{fmt.Sprintf("read sheet %q of %s", info.Sheet, strings.Join(info.Sheets, ", "))}, rep.Warnings...)
-	}
-	if len(info.IgnoredColumns) > 0 {
-		rep.Warnings = append(rep.Warnings, fmt.Sprintf("columns left out as asked: %s", strings.Join(info.IgnoredColumns, ", ")))
-	}
-	return rep, nil
+	return t, ro, nil
 }
 
 // demoPrices is the embedded, invented price file of the demo.
 const demoPrices = "demo/prices-invented.csv"
 
 // loadPrices reads --prices (or the plan's prices key); the demo uses its invented prices.
-func (o *estimateOptions) loadPrices() (*feed.PriceList, error) {
+func (o *estimateOptions) loadPrices() (*value.PriceList, error) {
 	switch {
 	case o.prices != "":
 		f, err := os.Open(o.prices)
@@ -242,25 +209,8 @@ func (o *estimateOptions) loadPrices() (*feed.PriceList, error) {
 	return nil, nil
 }
 
-// emit adds the order sheet, then writes the workbook (if asked) and the report as JSON or text.
-func emit(w io.Writer, o *estimateOptions, rep *feed.Report) error {
-	if rep.Leach != nil {
-		cs, err := o.leach.containerList()
-		if err != nil {
-			return err
-		}
-		cur := rep.Leach.Settings.Currency
-		if v := rep.Value; v != nil {
-			if cur != "" && !strings.EqualFold(cur, v.Currency) {
-				return usageError{fmt.Errorf("--currency %s and the prices file's %s disagree: give the reagent prices in %s", cur, v.Currency, v.Currency)}
-			}
-			cur = v.Currency
-		}
-		rep.Order = feed.Order(rep, cs, cur)
-	}
-	if err := rep.CheckFinite(); err != nil {
-		return err
-	}
+// emit writes the workbook (if asked) and the report as JSON or text.
+func emit(w io.Writer, o *estimateOptions, rep *report.Report) error {
 	if o.xlsxPath != "" {
 		paper := sheet.PaperA4
 		switch strings.ToLower(o.paper) {
@@ -277,7 +227,7 @@ func emit(w io.Writer, o *estimateOptions, rep *feed.Report) error {
 	if o.asJSON {
 		return writeJSON(w, rep)
 	}
-	writeReportText(w, rep, o.command, o.quiet)
+	text.Write(w, rep, o.command, o.quiet)
 	if o.xlsxPath != "" {
 		fmt.Fprintf(w, "\nIntake workbook written to %s\n", o.xlsxPath)
 	}

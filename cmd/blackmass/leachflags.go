@@ -12,9 +12,9 @@ import (
 
 	"blackmass/cathode"
 	"blackmass/data"
-	"blackmass/feed"
 	"blackmass/feed/intake"
 	"blackmass/feed/leach"
+	"blackmass/feed/value"
 )
 
 // leachFlags binds the leach plan's settings; defaults are leach.DefaultOptions.
@@ -199,13 +199,13 @@ func parseExtraction(s string) (map[string]float64, error) {
 }
 
 // containerList parses --containers.
-func (l *leachFlags) containerList() ([]feed.Container, error) {
-	var out []feed.Container
+func (l *leachFlags) containerList() ([]value.Container, error) {
+	var out []value.Container
 	for _, part := range strings.Split(l.containers, ",") {
 		if part = strings.TrimSpace(part); part == "" {
 			continue
 		}
-		c, err := feed.ParseContainer(part)
+		c, err := value.ParseContainer(part)
 		if err != nil {
 			return nil, fmt.Errorf("--containers: %w", err)
 		}

@@ -20,9 +20,11 @@ import (
 	"github.com/spf13/cobra"
 	"github.com/xuri/excelize/v2"
 
-	"blackmass/feed"
 	"blackmass/feed/intake"
 	"blackmass/feed/register"
+	"blackmass/feed/run"
+	"blackmass/feed/text"
+	"blackmass/feed/value"
 )
 
 // maxManifestBytes bounds a manifest kept in the register (its bytes are stored).
@@ -159,11 +161,12 @@ func runLotAdd(w io.Writer, lo *lotOptions, o *estimateOptions, path, received s
 		return err
 	}
 	o.keepLines = true
-	rep, err := buildEstimate(o, path, bytes.NewReader(b))
+	t, ro, err := o.runOptions()
 	if err != nil {
 		return err
 	}
-	if err := rep.CheckFinite(); err != nil {
+	rep, err := run.Estimate(t, ro, run.Manifest{Name: path, R: bytes.NewReader(b)})
+	if err != nil {
 		return err
 	}
 	reg, err := lo.open()
@@ -178,7 +181,7 @@ func runLotAdd(w io.Writer, lo *lotOptions, o *estimateOptions, path, received s
 		return err
 	}
 	fmt.Fprintf(w, "lot %s recorded (version %d) in %s: %d items, %.2f kWh, black mass %s kg (P50)\n", intake.Printable(o.lotID, 64), v, reg.Path(),
-		rep.Lot.Items, rep.Lot.NameplateKWh, num(rep.BlackMassKg.P50))
+		rep.Lot.Items, rep.Lot.NameplateKWh, text.Num(rep.BlackMassKg.P50))
 	return nil
 }
 
@@ -234,14 +237,14 @@ func runLotList(w io.Writer, lo *lotOptions, f register.Filter) error {
 	for _, l := range lots {
 		pay := "—"
 		if l.Payable != nil {
-			pay = money(*l.Payable) + " " + l.Currency
+			pay = text.Money(*l.Payable) + " " + l.Currency
 		}
 		weighed := "—"
 		if l.WeighedKg > 0 {
-			weighed = num(l.WeighedKg)
+			weighed = text.Num(l.WeighedKg)
 		}
 		fmt.Fprintf(tw, "%s\t%s\t%s\t%d\t%.1f\t%s\t%s\t%s\t%s\t%d\t%s\t%s\n", intake.Printable(l.ID, 40), l.Received, intake.Printable(l.Supplier, 40), l.Items,
-			l.NameplateKWh, num(l.BlackMassKg), num(l.MetalsKg["Co"]), num(l.MetalsKg["Ni"]), num(l.MetalsKg["Li"]), l.Assays, weighed, pay)
+			l.NameplateKWh, text.Num(l.BlackMassKg), text.Num(l.MetalsKg["Co"]), text.Num(l.MetalsKg["Ni"]), text.Num(l.MetalsKg["Li"]), l.Assays, weighed, pay)
 	}
 	return tw.Flush()
 }
@@ -273,22 +276,22 @@ func runLotShow(w io.Writer, lo *lotOptions, id string) error {
 	fmt.Fprintf(w, "blackmass lot %s (version %d of %v)\n", intake.Printable(d.ID, 64), d.Version, d.Versions)
 	fmt.Fprintf(w, "received %s from %s; added %s by blackmass %s\n", d.Received, intake.Printable(d.Supplier, 80), d.AddedAt, d.ToolVersion)
 	fmt.Fprintf(w, "manifest %s (sha256 %s…), %d lines, %d items, %.2f kWh\n", intake.Printable(d.ManifestName, 80), d.ManifestSHA256[:12], d.Lines, d.Items, d.NameplateKWh)
-	fmt.Fprintf(w, "black mass %s kg (P50)\n", num(d.BlackMassKg))
+	fmt.Fprintf(w, "black mass %s kg (P50)\n", text.Num(d.BlackMassKg))
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
 	fmt.Fprintln(tw, "metal\testimate kg P50\tlatest assay wt%\t")
-	for _, el := range feed.PayableMetals {
+	for _, el := range value.PayableMetals {
 		a := "—"
 		if v, ok := d.AssayWtPct[el]; ok {
 			a = fmt.Sprintf("%.2f", v)
 		}
-		fmt.Fprintf(tw, "%s\t%s\t%s\t\n", el, num(d.MetalsKg[el]), a)
+		fmt.Fprintf(tw, "%s\t%s\t%s\t\n", el, text.Num(d.MetalsKg[el]), a)
 	}
 	tw.Flush()
 	for _, a := range d.AssayList {
 		fmt.Fprintf(w, "assay %d: %s, %s (%s)\n", a.ID, intake.Printable(a.Lab, 60), a.AssayedOn, intake.Printable(a.FileName, 60))
 	}
 	for _, wg := range d.Weighings {
-		fmt.Fprintf(w, "weighed %s: %s kg %s\n", wg.On, num(wg.Kg), intake.Printable(wg.Note, 80))
+		fmt.Fprintf(w, "weighed %s: %s kg %s\n", wg.On, text.Num(wg.Kg), intake.Printable(wg.Note, 80))
 	}
 	for _, a := range d.Audit {
 		fmt.Fprintf(w, "  %s %s: %s\n", a.At, a.Action, intake.Printable(a.Detail, 200))
@@ -361,7 +364,7 @@ func newLotWeighCmd(lo *lotOptions) *cobra.Command {
 			if err := reg.Weigh(context.Background(), args[0], on, kg, note); err != nil {
 				return err
 			}
-			fmt.Fprintf(cmd.OutOrStdout(), "lot %s weighed: %s kg on %s\n", intake.Printable(args[0], 64), num(kg), on)
+			fmt.Fprintf(cmd.OutOrStdout(), "lot %s weighed: %s kg on %s\n", intake.Printable(args[0], 64), text.Num(kg), on)
 			return nil
 		},
 	}
@@ -397,20 +400,20 @@ func newLotExportCmd(lo *lotOptions) *cobra.Command {
 // exportRows lays the lots out as rows: the header first.
 func exportRows(lots []register.Summary) [][]any {
 	head := []any{"lot", "version", "received", "supplier", "items", "nameplate kWh", "black mass kg (P50)", "weighed kg"}
-	for _, el := range feed.PayableMetals {
+	for _, el := range value.PayableMetals {
 		head = append(head, el+" kg (P50)")
 	}
-	for _, el := range feed.PayableMetals {
+	for _, el := range value.PayableMetals {
 		head = append(head, el+" assay wt%")
 	}
 	head = append(head, "assay lab", "assays", "currency", "payable value (P50)", "reagent cost (P50)", "chemistries")
 	rows := [][]any{head}
 	for _, l := range lots {
 		row := []any{l.ID, l.Version, l.Received, l.Supplier, l.Items, l.NameplateKWh, l.BlackMassKg, opt(l.WeighedKg > 0, l.WeighedKg)}
-		for _, el := range feed.PayableMetals {
+		for _, el := range value.PayableMetals {
 			row = append(row, l.MetalsKg[el])
 		}
-		for _, el := range feed.PayableMetals {
+		for _, el := range value.PayableMetals {
 			v, ok := l.AssayWtPct[el]
 			row = append(row, opt(ok, v))
 		}
@@ -538,13 +541,13 @@ func runLotTotals(w io.Writer, lo *lotOptions, month string) error {
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
 	fmt.Fprintln(tw, "  chemistry\tlots\titems\tkWh\tblack mass kg (P50)")
 	for _, c := range t.ByChemistry {
-		fmt.Fprintf(tw, "  %s\t%d\t%d\t%.1f\t%s\n", c.Chemistry, c.Lots, c.Items, c.NameplateKWh, num(c.BlackMassKg))
+		fmt.Fprintf(tw, "  %s\t%d\t%d\t%.1f\t%s\n", c.Chemistry, c.Lots, c.Items, c.NameplateKWh, text.Num(c.BlackMassKg))
 	}
 	tw.Flush()
 	fmt.Fprintln(w, "\nmetal in the yard (every lot in the register, P50 kg):")
-	for _, el := range feed.PayableMetals {
+	for _, el := range value.PayableMetals {
 		if kg, ok := t.InYardKg[el]; ok {
-			fmt.Fprintf(w, "  %s %s\n", el, num(kg))
+			fmt.Fprintf(w, "  %s %s\n", el, text.Num(kg))
 		}
 	}
 	fmt.Fprintln(w, "\nestimate against assay, by supplier (mean assay − estimate, wt%):")
@@ -553,7 +556,7 @@ func runLotTotals(w io.Writer, lo *lotOptions, month string) error {
 	}
 	for _, s := range t.BySupplier {
 		var parts []string
-		for _, el := range feed.PayableMetals {
+		for _, el := range value.PayableMetals {
 			if d, ok := s.MeanDiffPct[el]; ok {
 				parts = append(parts, fmt.Sprintf("%s %+.2f", el, d))
 			}

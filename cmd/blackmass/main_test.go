@@ -1,6 +1,7 @@
 package main
 
 import (
+	"blackmass/feed/run"
 	"bytes"
 	"crypto/sha256"
 	"encoding/hex"
@@ -18,7 +19,7 @@ import (
 
 var update = flag.Bool("update", false, "rewrite the golden files in testdata/")
 
-func run(t *testing.T, stdin string, args ...string) (code int, stdout, stderr string) {
+func cli(t *testing.T, stdin string, args ...string) (code int, stdout, stderr string) {
 	t.Helper()
 	var out, errb bytes.Buffer
 	code = Main(args, strings.NewReader(stdin), &out, &errb)
@@ -72,12 +73,12 @@ func lineDiff(want, got string) string {
 
 // The demo lot's JSON and terminal output are pinned by golden files.
 func TestDemoGolden(t *testing.T) {
-	code, out, errs := run(t, "", "demo", "--json", "--samples", "2000")
+	code, out, errs := cli(t, "", "demo", "--json", "--samples", "2000")
 	if code != 0 {
 		t.Fatalf("exit %d: %s", code, errs)
 	}
 	golden(t, "demo.json", out)
-	code, out, errs = run(t, "", "demo", "--samples", "2000")
+	code, out, errs = cli(t, "", "demo", "--samples", "2000")
 	if code != 0 {
 		t.Fatalf("exit %d: %s", code, errs)
 	}
@@ -100,7 +101,7 @@ func TestBadManifests(t *testing.T) {
 	lineRef := regexp.MustCompile(`\.csv:\d+: `)
 	for _, f := range files {
 		base := filepath.Base(f)
-		code, out, errs := run(t, "", "estimate", f, "--samples", "50")
+		code, out, errs := cli(t, "", "estimate", f, "--samples", "50")
 		if code == 0 || out != "" {
 			t.Errorf("%s: exit %d, stdout %q; want a failure and no output", base, code, out)
 			continue
@@ -115,26 +116,26 @@ func TestBadManifests(t *testing.T) {
 }
 
 func TestUnknownLabelError(t *testing.T) {
-	code, _, errs := run(t, "", "estimate", filepath.Join("..", "..", "testdata", "bad", "unknown-chemistry.csv"))
+	code, _, errs := cli(t, "", "estimate", filepath.Join("..", "..", "testdata", "bad", "unknown-chemistry.csv"))
 	if code == 0 || !strings.Contains(errs, "unknown-chemistry.csv:2: chemistry \"NMC812x\"") || !strings.Contains(errs, "NMC811") {
 		t.Errorf("got %q", errs)
 	}
-	code, out, errs := run(t, "", "estimate", "--unknown", "prior", "--samples", "50", filepath.Join("..", "..", "testdata", "bad", "unknown-chemistry.csv"))
+	code, out, errs := cli(t, "", "estimate", "--unknown", "prior", "--samples", "50", filepath.Join("..", "..", "testdata", "bad", "unknown-chemistry.csv"))
 	if code != 0 || !strings.Contains(out, "not recognised") {
 		t.Errorf("--unknown prior: exit %d, %q %q", code, out, errs)
 	}
 }
 
 func TestStdinAndChem(t *testing.T) {
-	code, out, errs := run(t, "chemistry,format,capacity,count\nLFP,prismatic,280 Ah,1\n", "estimate", "-", "--samples", "100", "--json")
+	code, out, errs := cli(t, "chemistry,format,capacity,count\nLFP,prismatic,280 Ah,1\n", "estimate", "-", "--samples", "100", "--json")
 	if code != 0 || !strings.Contains(out, `"black_mass_kg"`) || !strings.Contains(out, `"file": "stdin"`) {
 		t.Errorf("stdin: exit %d %q %q", code, out, errs)
 	}
-	code, out, _ = run(t, "", "chem", "--json", "NCM 8:1:1")
+	code, out, _ = cli(t, "", "chem", "--json", "NCM 8:1:1")
 	if code != 0 || !strings.Contains(out, `"molar_mass_g_mol"`) || !strings.Contains(out, `"theoretical_capacity_mAh_g"`) || !strings.Contains(out, `"key": "NMC811"`) {
 		t.Errorf("chem --json: %q", out)
 	}
-	code, _, errs = run(t, "", "chem", "NMC812x")
+	code, _, errs = cli(t, "", "chem", "NMC812x")
 	if code == 0 || !strings.Contains(errs, "nearest known") {
 		t.Errorf("chem unknown: %q", errs)
 	}
@@ -142,24 +143,24 @@ func TestStdinAndChem(t *testing.T) {
 
 func TestAssayCommands(t *testing.T) {
 	assay := filepath.Join("..", "..", "testdata", "assay-KR-2611.csv")
-	code, out, errs := run(t, "", "quote", assay, "--mass", "1.2 t", "--samples", "200", "--json")
+	code, out, errs := cli(t, "", "quote", assay, "--mass", "1.2 t", "--samples", "200", "--json")
 	if code != 0 || !strings.Contains(out, `"leach"`) || !strings.Contains(out, `"mix_fit"`) {
 		t.Fatalf("quote: exit %d %s", code, errs)
 	}
-	code, out, errs = run(t, "", "reconcile", filepath.Join("..", "..", "data", "demo", "lot-KR-2611.csv"), assay, "--samples", "300")
+	code, out, errs = cli(t, "", "reconcile", filepath.Join("..", "..", "data", "demo", "lot-KR-2611.csv"), assay, "--samples", "300")
 	if code != 0 || !strings.Contains(out, "estimate vs assay") || !strings.Contains(out, "not modelled") {
 		t.Fatalf("reconcile: exit %d %s\n%s", code, errs, out)
 	}
-	code, out, errs = run(t, "", "infer", assay, "--candidates", "LCO,NMC622,LFP", "--bootstrap", "50")
+	code, out, errs = cli(t, "", "infer", assay, "--candidates", "LCO,NMC622,LFP", "--bootstrap", "50")
 	if code != 0 || !strings.Contains(out, "NMC622") || strings.Contains(out, "NCA") {
 		t.Fatalf("infer: exit %d %s\n%s", code, errs, out)
 	}
-	if code, _, errs = run(t, "", "quote", assay); code == 0 || !strings.Contains(errs, "mass") {
+	if code, _, errs = cli(t, "", "quote", assay); code == 0 || !strings.Contains(errs, "mass") {
 		t.Errorf("quote without --mass: %q", errs)
 	}
 	dir := t.TempDir()
 	xl := filepath.Join(dir, "q.xlsx")
-	if code, _, errs = run(t, "", "quote", assay, "--mass", "500kg", "--samples", "100", "--xlsx", xl); code != 0 {
+	if code, _, errs = cli(t, "", "quote", assay, "--mass", "500kg", "--samples", "100", "--xlsx", xl); code != 0 {
 		t.Fatalf("quote --xlsx: %s", errs)
 	}
 	if _, err := os.Stat(xl); err != nil {
@@ -169,23 +170,23 @@ func TestAssayCommands(t *testing.T) {
 
 func TestPlanFile(t *testing.T) {
 	plan := filepath.Join("..", "..", "testdata", "plans", "quarry-lane-standard.plan")
-	code, out, errs := run(t, "", "demo", "--plan", plan, "--samples", "100", "--json")
+	code, out, errs := cli(t, "", "demo", "--plan", plan, "--samples", "100", "--json")
 	if code != 0 || !strings.Contains(out, `"recipe_acid_mol_per_l": 2`) || !strings.Contains(out, `"name": "H2SO4 96 %"`) {
 		t.Fatalf("plan: exit %d %s", code, errs)
 	}
 	// A flag on the command line wins over the plan.
-	code, out, _ = run(t, "", "demo", "--plan", plan, "--acid-strength", "93", "--samples", "100", "--json")
+	code, out, _ = cli(t, "", "demo", "--plan", plan, "--acid-strength", "93", "--samples", "100", "--json")
 	if code != 0 || !strings.Contains(out, `"name": "H2SO4 93 %"`) {
 		t.Errorf("command line did not override the plan")
 	}
 	bad := filepath.Join(t.TempDir(), "bad.plan")
 	_ = os.WriteFile(bad, []byte("# ok\nroute = sulfuric-peroxide\ncolour = blue\n"), 0o644)
-	code, _, errs = run(t, "", "demo", "--plan", bad)
+	code, _, errs = cli(t, "", "demo", "--plan", bad)
 	if code == 0 || !strings.Contains(errs, "bad.plan:3:") {
 		t.Errorf("bad plan: %q", errs)
 	}
 	_ = os.WriteFile(bad, []byte("pulp-density = lots\n"), 0o644)
-	code, _, errs = run(t, "", "demo", "--plan", bad)
+	code, _, errs = cli(t, "", "demo", "--plan", bad)
 	if code == 0 || !strings.Contains(errs, "bad.plan:1: pulp-density") {
 		t.Errorf("bad plan value: %q", errs)
 	}
@@ -196,7 +197,7 @@ func TestInputHash(t *testing.T) {
 	path := filepath.Join(t.TempDir(), "one.csv")
 	body := "chemistry,format,capacity,count\nLCO,pouch,3 Ah,1\n"
 	_ = os.WriteFile(path, []byte(body), 0o644)
-	_, out, _ := run(t, "", "estimate", path, "--json", "--samples", "20")
+	_, out, _ := cli(t, "", "estimate", path, "--json", "--samples", "20")
 	sum := sha256.Sum256([]byte(body))
 	if !strings.Contains(out, hex.EncodeToString(sum[:])) {
 		t.Errorf("sha256 of the input missing from the report")
@@ -206,7 +207,7 @@ func TestInputHash(t *testing.T) {
 // The JSON contract other tools rely on: elements keyed by symbol with kg and wt_pct as
 // p10/p50/p90/mean, black_mass_kg likewise, lines, warnings, inputs, and the leach object.
 func TestJSONContract(t *testing.T) {
-	_, out, _ := run(t, "", "demo", "--json", "--samples", "100")
+	_, out, _ := cli(t, "", "demo", "--json", "--samples", "100")
 	var r map[string]any
 	if err := json.Unmarshal([]byte(out), &r); err != nil {
 		t.Fatal(err)
@@ -260,7 +261,7 @@ func TestJSONContract(t *testing.T) {
 			t.Errorf("leach.%s missing", k)
 		}
 	}
-	_, out, _ = run(t, "", "demo", "--json", "--samples", "100", "--no-lines")
+	_, out, _ = cli(t, "", "demo", "--json", "--samples", "100", "--no-lines")
 	r = nil
 	if err := json.Unmarshal([]byte(out), &r); err != nil || r["lines"] != nil {
 		t.Errorf("--no-lines still writes lines (%v)", err)
@@ -284,10 +285,10 @@ func TestExitCodes(t *testing.T) {
 		{"bootstrap bound", []string{"infer", "x.csv", "--bootstrap", "10000000"}, 2},
 		{"decimal comma in a flag", []string{"demo", "--samples", "50", "--pulp-density", "150,5"}, 0},
 		{"bad input data", []string{"estimate", bad}, 1},
-		{"quote mass out of range", []string{"quote", "x.csv", "--mass", "1e300 t"}, 1},
+		{"quote mass out of range", []string{"quote", "x.csv", "--mass", "1e300 t"}, 2}, // a flag out of its range is a usage error
 	} {
 		t.Run(c.name, func(t *testing.T) {
-			code, _, errs := run(t, "", c.args...)
+			code, _, errs := cli(t, "", c.args...)
 			if code != c.want {
 				t.Errorf("exit %d, want %d (%s)", code, c.want, errs)
 			}
@@ -298,7 +299,7 @@ func TestExitCodes(t *testing.T) {
 // A manifest written the way a bench writes it (Volts, Config, Qty, weight in kg in the header)
 // gives the lot its cells and its black mass, and the JSON lists each label's resolution.
 func TestBenchManifest(t *testing.T) {
-	code, out, errs := run(t, "", "estimate", "--json", "--samples", "200", filepath.Join("..", "..", "testdata", "intake", "volts-config.csv"))
+	code, out, errs := cli(t, "", "estimate", "--json", "--samples", "200", filepath.Join("..", "..", "testdata", "intake", "volts-config.csv"))
 	if code != 0 {
 		t.Fatalf("exit %d: %s", code, errs)
 	}
@@ -335,7 +336,7 @@ func TestPlanFileErrors(t *testing.T) {
 			if err := os.WriteFile(p, []byte(c.body), 0o644); err != nil {
 				t.Fatal(err)
 			}
-			code, _, errs := run(t, "", "demo", "--samples", "20", "--plan", p)
+			code, _, errs := cli(t, "", "demo", "--samples", "20", "--plan", p)
 			if c.want == "" {
 				if code != 0 {
 					t.Errorf("exit %d: %s", code, errs)
@@ -364,13 +365,13 @@ func TestLeachFlagConflictsAndExtraction(t *testing.T) {
 		{"not a metal", []string{"--extraction", "CO=0.9"}, "not a metal"},
 	} {
 		t.Run(c.name, func(t *testing.T) {
-			code, _, errs := run(t, "", append([]string{"demo", "--samples", "20"}, c.args...)...)
+			code, _, errs := cli(t, "", append([]string{"demo", "--samples", "20"}, c.args...)...)
 			if code == 0 || !strings.Contains(errs, c.want) {
 				t.Errorf("exit %d, %q, want %q", code, errs, c.want)
 			}
 		})
 	}
-	code, out, errs := run(t, "", "demo", "--samples", "20", "--json", "--extraction", "Co=0.5,Ni=50%")
+	code, out, errs := cli(t, "", "demo", "--samples", "20", "--json", "--extraction", "Co=0.5,Ni=50%")
 	if code != 0 {
 		t.Fatalf("exit %d: %s", code, errs)
 	}
@@ -394,7 +395,7 @@ func TestLeachFlagConflictsAndExtraction(t *testing.T) {
 	if err := os.WriteFile(plan, []byte("extraction = Co=0.6\nreductant = SO2\n"), 0o644); err != nil {
 		t.Fatal(err)
 	}
-	code, out, errs = run(t, "", "demo", "--samples", "20", "--plan", plan)
+	code, out, errs = cli(t, "", "demo", "--samples", "20", "--plan", plan)
 	if code != 0 || !strings.Contains(out, "SO2") {
 		t.Errorf("plan with extraction and reductant: exit %d %s", code, errs)
 	}
@@ -408,14 +409,14 @@ func TestLotWorkflow(t *testing.T) {
 	demo := filepath.Join("..", "..", "data", "demo", "lot-KR-2611.csv")
 	step := func(stdin string, args ...string) string {
 		t.Helper()
-		code, out, errs := run(t, stdin, append(args, "--db", db)...)
+		code, out, errs := cli(t, stdin, append(args, "--db", db)...)
 		if code != 0 {
 			t.Fatalf("%v: exit %d: %s", args, code, errs)
 		}
 		return out
 	}
 	step("", "lot", "add", demo, "--lot", "KR-2611", "--supplier", "Larkfield Municipal Drop-off Yard", "--received", "2026-11-28", "--samples", "200")
-	if code, _, errs := run(t, "", "lot", "add", demo, "--lot", "KR-2611", "--samples", "200", "--db", db); code != 1 || !strings.Contains(errs, "--replace") {
+	if code, _, errs := cli(t, "", "lot", "add", demo, "--lot", "KR-2611", "--samples", "200", "--db", db); code != 1 || !strings.Contains(errs, "--replace") {
 		t.Errorf("added twice: exit %d %s", code, errs)
 	}
 	step("", "lot", "assay", "KR-2611", filepath.Join("..", "..", "testdata", "assay-KR-2611.csv"), "--lab", "Tarn Valley Assay Lab", "--date", "2026-12-01")
@@ -431,7 +432,7 @@ func TestLotWorkflow(t *testing.T) {
 	if err := json.Unmarshal([]byte(out), &lots); err != nil {
 		t.Fatal(err)
 	}
-	_, rep, _ := run(t, "", "demo", "--samples", "200", "--json")
+	_, rep, _ := cli(t, "", "demo", "--samples", "200", "--json")
 	var r struct {
 		BlackMass struct{ P50 float64 } `json:"black_mass_kg"`
 		Elements  map[string]struct {
@@ -453,13 +454,13 @@ func TestLotWorkflow(t *testing.T) {
 	if !strings.Contains(string(b), "KR-2611") || strings.Count(string(b), "\n") != 2 {
 		t.Errorf("export: %s", b)
 	}
-	if code, _, _ := run(t, "", "lot", "export", "--csv", csvPath, "--db", db); code == 0 {
+	if code, _, _ := cli(t, "", "lot", "export", "--csv", csvPath, "--db", db); code == 0 {
 		t.Error("export overwrote a file without --force")
 	}
 	if tot := step("", "lot", "totals", "--month", "2026-11"); !strings.Contains(tot, "LFP") || !strings.Contains(tot, "Larkfield") {
 		t.Errorf("totals: %s", tot)
 	}
-	if code, _, _ := run(t, "no\n", "lot", "remove", "KR-2611", "--db", db); code == 0 {
+	if code, _, _ := cli(t, "no\n", "lot", "remove", "KR-2611", "--db", db); code == 0 {
 		t.Error("removed without confirmation")
 	}
 	step("KR-2611\n", "lot", "remove", "KR-2611")
@@ -468,7 +469,7 @@ func TestLotWorkflow(t *testing.T) {
 	}
 	foreign := filepath.Join(dir, "foreign.db")
 	_ = os.WriteFile(foreign, []byte("not a database, a shopping list\n"), 0o644)
-	if code, _, errs := run(t, "", "lot", "list", "--db", foreign); code != 1 || !strings.Contains(errs, "not a blackmass register") {
+	if code, _, errs := cli(t, "", "lot", "list", "--db", foreign); code != 1 || !strings.Contains(errs, "not a blackmass register") {
 		t.Errorf("foreign --db: exit %d %s", code, errs)
 	}
 }
@@ -493,7 +494,11 @@ func BenchmarkTextReportMemory(b *testing.B) {
 				o.bind(&cobra.Command{}) // the flags' defaults
 				o.samples = 1000
 				c.set(o)
-				if _, err := buildEstimate(o, "m.csv", strings.NewReader(in)); err != nil {
+				t, ro, err := o.runOptions()
+				if err != nil {
+					b.Fatal(err)
+				}
+				if _, err := run.Estimate(t, ro, run.Manifest{Name: "m.csv", R: strings.NewReader(in)}); err != nil {
 					b.Fatal(err)
 				}
 			}
@@ -513,7 +518,7 @@ func TestScreensScale(t *testing.T) {
 		{"20t", []string{"black mass: 20.0 t", "m³", " t ("}, []string{"20000 kg"}},
 	} {
 		t.Run(c.mass, func(t *testing.T) {
-			code, out, errs := run(t, "", "quote", assay, "--mass", c.mass, "--samples", "100", "--quiet")
+			code, out, errs := cli(t, "", "quote", assay, "--mass", c.mass, "--samples", "100", "--quiet")
 			if code != 0 {
 				t.Fatalf("exit %d: %s", code, errs)
 			}
@@ -532,7 +537,7 @@ func TestScreensScale(t *testing.T) {
 			}
 		})
 	}
-	_, out, _ := run(t, "", "reconcile", filepath.Join("..", "..", "data", "demo", "lot-KR-2611.csv"), assay, "--samples", "50")
+	_, out, _ := cli(t, "", "reconcile", filepath.Join("..", "..", "data", "demo", "lot-KR-2611.csv"), assay, "--samples", "50")
 	if !strings.HasPrefix(out, "blackmass reconcile") {
 		t.Errorf("reconcile header: %.40q", out)
 	}
@@ -541,22 +546,22 @@ func TestScreensScale(t *testing.T) {
 // chem --list names every catalogued chemistry and the family labels; a generic label prints
 // one line per possible member instead of every member's whole profile.
 func TestChemListAndCompact(t *testing.T) {
-	code, out, errs := run(t, "", "chem", "--list")
+	code, out, errs := cli(t, "", "chem", "--list")
 	if code != 0 || !strings.Contains(out, "NMC811") || !strings.Contains(out, "LiPo") || !strings.Contains(out, "laptop") {
 		t.Fatalf("exit %d %s\n%s", code, errs, out)
 	}
-	_, out, _ = run(t, "", "chem", "Li-ion")
+	_, out, _ = cli(t, "", "chem", "Li-ion")
 	if n := strings.Count(out, "\n"); n > 20 || !strings.Contains(out, "LFP") {
 		t.Errorf("chem Li-ion: %d lines\n%s", n, out)
 	}
-	if code, _, _ := run(t, "", "chem", "--list", "LCO"); code != 2 {
+	if code, _, _ := cli(t, "", "chem", "--list", "LCO"); code != 2 {
 		t.Errorf("--list with a label: exit %d, want 2", code)
 	}
 }
 
 // The order sheet lists every reagent, priced or not, in the containers named, to its P90.
 func TestOrderSheet(t *testing.T) {
-	code, out, errs := run(t, "", "demo", "--samples", "100", "--json", "--acid-price", "0.25", "--containers", "20 L jerrycan, 1000 L IBC")
+	code, out, errs := cli(t, "", "demo", "--samples", "100", "--json", "--acid-price", "0.25", "--containers", "20 L jerrycan, 1000 L IBC")
 	if code != 0 {
 		t.Fatalf("exit %d: %s", code, errs)
 	}
@@ -587,17 +592,17 @@ func TestOrderSheet(t *testing.T) {
 	if c := acid.Containers[0]; c.Container != "20 L jerrycan" || float64(c.Count) < acid.Litres.P90/20 || float64(c.Count-1) >= acid.Litres.P90/20 {
 		t.Errorf("containers %+v for %v L", acid.Containers, acid.Litres.P90)
 	}
-	if code, _, errs := run(t, "", "demo", "--samples", "20", "--currency", "USD"); code != 2 || !strings.Contains(errs, "disagree") {
+	if code, _, errs := cli(t, "", "demo", "--samples", "20", "--currency", "USD"); code != 2 || !strings.Contains(errs, "disagree") {
 		t.Errorf("currency clash with the prices file: exit %d %s", code, errs)
 	}
-	if code, _, _ := run(t, "", "demo", "--samples", "20", "--containers", "big barrel"); code == 0 {
+	if code, _, _ := cli(t, "", "demo", "--samples", "20", "--containers", "big barrel"); code == 0 {
 		t.Error("bad container accepted")
 	}
 }
 
 // Help groups the flags (input, model, leach, costs, output) and every command has examples.
 func TestHelpGroupsAndExamples(t *testing.T) {
-	_, out, _ := run(t, "", "estimate", "--help")
+	_, out, _ := cli(t, "", "estimate", "--help")
 	last := -1
 	for _, h := range []string{"Examples:", "Input:", "Model:", "Leach:", "Costs and value:", "Output:"} {
 		i := strings.Index(out, h)

@@ -10,6 +10,7 @@ import (
 	"github.com/spf13/cobra"
 
 	"blackmass/cathode"
+	"blackmass/feed/run"
 )
 
 // version is set at build time with -ldflags "-X main.version=...".
@@ -26,7 +27,8 @@ func Main(args []string, in io.Reader, out, errOut io.Writer) int {
 	if err := root.Execute(); err != nil {
 		fmt.Fprintln(errOut, "blackmass:", err)
 		var ue usageError
-		if errors.As(err, &ue) || strings.HasPrefix(err.Error(), "unknown command") {
+		var oe *run.OptionError
+		if errors.As(err, &ue) || errors.As(err, &oe) || strings.HasPrefix(err.Error(), "unknown command") {
 			fmt.Fprintln(errOut, "run 'blackmass help' for usage")
 			return exitUsage
 		}
@@ -96,30 +98,39 @@ func (o *catalogueOptions) bind(cmd *cobra.Command) {
 	cmd.Flags().StringVar(&o.priorPath, "prior", "", "unknown-chemistry shares CSV (columns application, chemistry, share, source), replacing data/prior.csv rows")
 }
 
-func (o *catalogueOptions) load() (*cathode.Catalogue, error) {
-	cat, err := cathode.DefaultCatalogue()
+// tables loads the embedded tables once, the user's catalogue and prior added to them.
+func (o *catalogueOptions) tables() (*run.Tables, error) {
+	t, err := run.DefaultTables()
 	if err != nil {
 		return nil, err
 	}
+	if err := o.extend(t.Catalogue); err != nil {
+		return nil, err
+	}
+	return t, nil
+}
+
+// extend adds --catalog and --prior to the catalogue.
+func (o *catalogueOptions) extend(cat *cathode.Catalogue) error {
 	if o.catalogPath != "" {
 		f, err := os.Open(o.catalogPath)
 		if err != nil {
-			return nil, err
+			return err
 		}
 		defer f.Close()
 		if err := cat.Add(f, o.catalogPath); err != nil {
-			return nil, err
+			return err
 		}
 	}
 	if o.priorPath != "" {
 		f, err := os.Open(o.priorPath)
 		if err != nil {
-			return nil, err
+			return err
 		}
 		defer f.Close()
 		if err := cat.SetPrior(f, o.priorPath); err != nil {
-			return nil, err
+			return err
 		}
 	}
-	return cat, nil
+	return nil
 }

@@ -12,7 +12,7 @@ import (
 	"path/filepath"
 	"syscall"
 
-	"blackmass/feed"
+	"blackmass/feed/report"
 	"blackmass/feed/sheet"
 )
 
@@ -40,7 +40,7 @@ func checkWritable(path string, force bool) error {
 // umask), synced, then linked to path, which fails if path appeared meanwhile (the check and the
 // write are one step), or renamed over it with force (keeping the old file's mode). The
 // temporary file is removed on failure and on SIGINT or SIGTERM.
-func writeWorkbook(path string, r *feed.Report, force bool, paper int) error {
+func writeWorkbook(path string, r *report.Report, force bool, paper int) error {
 	return writeNewFile(path, force, func(w io.Writer) error { return sheet.WriteOn(w, r, paper) })
 }
 

@@ -22,7 +22,7 @@ func TestWorkbook(t *testing.T) {
 	if err := os.WriteFile(manifest, []byte(csv), 0o644); err != nil {
 		t.Fatal(err)
 	}
-	if code, _, errs := run(t, "", "estimate", manifest, "--samples", "200", "--xlsx", path, "--acid-price", "0.3", "--h2o2-price", "0.9"); code != 0 {
+	if code, _, errs := cli(t, "", "estimate", manifest, "--samples", "200", "--xlsx", path, "--acid-price", "0.3", "--h2o2-price", "0.9"); code != 0 {
 		t.Fatalf("exit %d: %s", code, errs)
 	}
 	f, err := excelize.OpenFile(path)
@@ -71,19 +71,19 @@ func TestWorkbook(t *testing.T) {
 	}
 	// Never overwritten without --force; nothing left behind.
 	before, _ := os.ReadFile(path)
-	if code, out, errs := run(t, "", "estimate", manifest, "--samples", "200", "--xlsx", path); code == 0 || !strings.Contains(errs, "--force") || out != "" {
+	if code, out, errs := cli(t, "", "estimate", manifest, "--samples", "200", "--xlsx", path); code == 0 || !strings.Contains(errs, "--force") || out != "" {
 		t.Errorf("overwrite without --force: exit %d, %q", code, errs)
 	}
 	after, _ := os.ReadFile(path)
 	if string(before) != string(after) {
 		t.Error("existing workbook changed")
 	}
-	if code, _, errs := run(t, "", "estimate", manifest, "--samples", "200", "--xlsx", path, "--force"); code != 0 {
+	if code, _, errs := cli(t, "", "estimate", manifest, "--samples", "200", "--xlsx", path, "--force"); code != 0 {
 		t.Errorf("--force: %s", errs)
 	}
 	// A failed run leaves nothing behind.
 	bad := filepath.Join(dir, "bad.xlsx")
-	if code, _, _ := run(t, "", "estimate", filepath.Join("..", "..", "testdata", "bad", "ragged.csv"), "--xlsx", bad); code == 0 {
+	if code, _, _ := cli(t, "", "estimate", filepath.Join("..", "..", "testdata", "bad", "ragged.csv"), "--xlsx", bad); code == 0 {
 		t.Error("bad manifest succeeded")
 	}
 	entries, _ := os.ReadDir(dir)
@@ -93,8 +93,8 @@ func TestWorkbook(t *testing.T) {
 		}
 	}
 	// The workbook reads back as a manifest (its lines sheet) and gives the same estimate.
-	_, a, _ := run(t, "", "estimate", manifest, "--samples", "200", "--json", "--no-lines")
-	_, b, errs := run(t, "", "estimate", path, "--samples", "200", "--json", "--no-lines")
+	_, a, _ := cli(t, "", "estimate", manifest, "--samples", "200", "--json", "--no-lines")
+	_, b, errs := cli(t, "", "estimate", path, "--samples", "200", "--json", "--no-lines")
 	ja, jb := blackMassLine(a), blackMassLine(b)
 	if ja == "" || ja != jb {
 		t.Errorf("re-read workbook: %q vs %q (%s)", ja, jb, errs)
@@ -138,14 +138,14 @@ func TestWorkbookTargets(t *testing.T) {
 	if err := os.Symlink(filepath.Join(dir, "nowhere"), dangling); err != nil {
 		t.Fatal(err)
 	}
-	if code, _, errs := run(t, "", append(demo, dangling)...); code == 0 || !strings.Contains(errs, "dangling.xlsx exists") {
+	if code, _, errs := cli(t, "", append(demo, dangling)...); code == 0 || !strings.Contains(errs, "dangling.xlsx exists") {
 		t.Errorf("dangling symlink replaced: exit %d %s", code, errs)
 	}
-	if code, _, errs := run(t, "", append(demo, filepath.Join(dir, "no", "such", "x.xlsx"))...); code == 0 || !strings.Contains(errs, "does not exist") {
+	if code, _, errs := cli(t, "", append(demo, filepath.Join(dir, "no", "such", "x.xlsx"))...); code == 0 || !strings.Contains(errs, "does not exist") {
 		t.Errorf("missing directory: exit %d %s", code, errs)
 	}
 	fresh := filepath.Join(dir, "fresh.xlsx")
-	if code, _, errs := run(t, "", append(demo, fresh)...); code != 0 {
+	if code, _, errs := cli(t, "", append(demo, fresh)...); code != 0 {
 		t.Fatalf("exit %d: %s", code, errs)
 	}
 	st, err := os.Stat(fresh)
@@ -158,7 +158,7 @@ func TestWorkbookTargets(t *testing.T) {
 	if err := os.Chmod(fresh, 0o600); err != nil {
 		t.Fatal(err)
 	}
-	if code, _, errs := run(t, "", append(demo, fresh, "--force")...); code != 0 {
+	if code, _, errs := cli(t, "", append(demo, fresh, "--force")...); code != 0 {
 		t.Fatalf("--force: exit %d: %s", code, errs)
 	}
 	if st, _ := os.Stat(fresh); st.Mode().Perm() != 0o600 {
@@ -178,7 +178,7 @@ func TestWorkbookReproducibleAndHeader(t *testing.T) {
 	var got [2][]byte
 	for i := range got {
 		p := filepath.Join(dir, "w"+strconv.Itoa(i)+".xlsx")
-		if code, _, errs := run(t, "", "demo", "--samples", "50", "--lot", long, "--xlsx", p); code != 0 {
+		if code, _, errs := cli(t, "", "demo", "--samples", "50", "--lot", long, "--xlsx", p); code != 0 {
 			t.Fatalf("exit %d: %s", code, errs)
 		}
 		b, err := os.ReadFile(p)
@@ -217,7 +217,7 @@ func TestWorkbookFIFOTarget(t *testing.T) {
 		if force {
 			args = append(args, "--force")
 		}
-		if code, _, errs := run(t, "", args...); code == 0 || !strings.Contains(errs, "pipe.xlsx exists") {
+		if code, _, errs := cli(t, "", args...); code == 0 || !strings.Contains(errs, "pipe.xlsx exists") {
 			t.Errorf("force=%v: exit %d %s", force, code, errs)
 		}
 	}

@@ -8,7 +8,7 @@ import (
 	"unicode"
 
 	"blackmass/cathode"
-	"blackmass/feed"
+	"blackmass/feed/manifest"
 )
 
 // Column identifies a manifest column.
@@ -192,7 +192,7 @@ func recogniseHeader(h string) (headerCell, bool) {
 // workbook read back as a manifest leaves them out.
 var derived = func() map[string]bool {
 	m := map[string]bool{}
-	for _, h := range feed.ComputedLineColumns() {
+	for _, h := range manifest.ComputedLineColumns() {
 		k, _ := normaliseHeader(h)
 		m[k] = true
 	}

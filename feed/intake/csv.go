@@ -9,12 +9,12 @@ import (
 	"io"
 
 	"blackmass/data"
-	"blackmass/feed"
+	"blackmass/feed/manifest"
 )
 
 // ReadCSV streams a CSV manifest (comma or semicolon separated; with semicolons a decimal comma
 // is read as such) to fn, one line at a time. name is the file name for error messages.
-func ReadCSV(r io.Reader, name string, opt Options, fn func(feed.Line) error) (Info, error) {
+func ReadCSV(r io.Reader, name string, opt Options, fn func(manifest.Line) error) (Info, error) {
 	br := data.SkipBOM(&lineLimit{r: r, max: MaxLineBytes})
 	sep, err := sniffSeparator(br)
 	if err != nil {

@@ -19,14 +19,15 @@ import (
 
 	"blackmass/cathode/cathodetest"
 	"blackmass/data"
-	"blackmass/feed"
 	"blackmass/feed/intake"
+	"blackmass/feed/lot"
+	"blackmass/feed/manifest"
 )
 
 // model returns the embedded cell model.
-func model(t testing.TB) *feed.Model {
+func model(t testing.TB) *lot.Model {
 	t.Helper()
-	m, err := feed.DefaultModel()
+	m, err := lot.DefaultModel()
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -34,7 +35,7 @@ func model(t testing.TB) *feed.Model {
 }
 
 // readFile reads a manifest from testdata/intake into lines.
-func readFile(t *testing.T, name string, opt intake.Options) ([]feed.Line, intake.Info, error) {
+func readFile(t *testing.T, name string, opt intake.Options) ([]manifest.Line, intake.Info, error) {
 	t.Helper()
 	b, err := os.ReadFile(filepath.Join("..", "..", "testdata", "intake", name))
 	if err != nil {
@@ -43,8 +44,8 @@ func readFile(t *testing.T, name string, opt intake.Options) ([]feed.Line, intak
 	if opt.Catalogue == nil {
 		opt.Catalogue = cathodetest.Catalogue(t)
 	}
-	var lines []feed.Line
-	info, err := intake.ReadCSV(bytes.NewReader(b), name, opt, func(l feed.Line) error {
+	var lines []manifest.Line
+	info, err := intake.ReadCSV(bytes.NewReader(b), name, opt, func(l manifest.Line) error {
 		lines = append(lines, l)
 		return nil
 	})
@@ -52,19 +53,19 @@ func readFile(t *testing.T, name string, opt intake.Options) ([]feed.Line, intak
 }
 
 // estimateLines runs the estimate over lines.
-func estimateLines(t *testing.T, lines []feed.Line, samples int) *feed.Report {
+func estimateLines(t *testing.T, lines []manifest.Line, samples int) *lot.Result {
 	t.Helper()
-	m, err := feed.DefaultModel()
+	m, err := lot.DefaultModel()
 	if err != nil {
 		t.Fatal(err)
 	}
-	lot := feed.NewLot(m, true)
+	lot := lot.NewLot(m, true)
 	for _, l := range lines {
 		if err := lot.Add(l); err != nil {
 			t.Fatal(err)
 		}
 	}
-	r, _, err := lot.Estimate(feed.EstimateOptions{Seed: 1, Samples: samples})
+	r, _, err := lot.Estimate(1, samples)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -106,17 +107,17 @@ func TestHeaderRecognition(t *testing.T) {
 	for _, c := range []struct {
 		name, header, row string
 		wantErr           string
-		check             func(feed.Line) bool
+		check             func(manifest.Line) bool
 	}{
-		{"volts and config", "chemistry,format,capacity,Volts,Config,count", "NMC532,pack,10 Ah,36,10s3p,1", "", func(l feed.Line) bool { return l.EnergyWh == 360 && l.CellsPerItem == 30 }},
-		{"V and S-P", "Chemistry,Format,Ah,V,S-P,Pcs", "NMC532,pack,10,36,10s3p,2", "", func(l feed.Line) bool { return l.EnergyWh == 360 && l.Count == 2 }},
-		{"capacity unit in brackets", "chemistry,format,Capacity (Ah),count", "LFP,prismatic,5,1", "", func(l feed.Line) bool { return l.ChargeAh == 5 }},
-		{"a cell's unit wins", "chemistry,format,Capacity (Ah),count", "LFP,prismatic,16 Wh,1", "", func(l feed.Line) bool { return l.EnergyWh == 16 }},
-		{"mass unit in square brackets", "chemistry,format,capacity,count,Mass [lb]", "LFP,pack,500 Wh,1,10", "", func(l feed.Line) bool { return math.Abs(l.MassKg-4.5359237) < 1e-12 }},
-		{"weight kg each", "chemistry,format,capacity,qty,kg each", "LFP,pack,500 Wh,1,4", "", func(l feed.Line) bool { return l.MassKg == 4 }},
-		{"total weight", "chemistry,format,capacity,qty,Total weight (kg)", "LFP,pack,500 Wh,4,20", "", func(l feed.Line) bool { return l.MassKg == 5 }},
-		{"series and parallel columns", "chemistry,format,capacity,Series,Parallel,qty", "NMC532,pack,3 Ah,13,4,1", "", func(l feed.Line) bool { return l.CellsPerItem == 52 }},
-		{"series alone", "chemistry,format,capacity,cells in series,qty", "NMC532,pack,3 Ah,10,1", "", func(l feed.Line) bool { return l.CellsPerItem == 10 }},
+		{"volts and config", "chemistry,format,capacity,Volts,Config,count", "NMC532,pack,10 Ah,36,10s3p,1", "", func(l manifest.Line) bool { return l.EnergyWh == 360 && l.CellsPerItem == 30 }},
+		{"V and S-P", "Chemistry,Format,Ah,V,S-P,Pcs", "NMC532,pack,10,36,10s3p,2", "", func(l manifest.Line) bool { return l.EnergyWh == 360 && l.Count == 2 }},
+		{"capacity unit in brackets", "chemistry,format,Capacity (Ah),count", "LFP,prismatic,5,1", "", func(l manifest.Line) bool { return l.ChargeAh == 5 }},
+		{"a cell's unit wins", "chemistry,format,Capacity (Ah),count", "LFP,prismatic,16 Wh,1", "", func(l manifest.Line) bool { return l.EnergyWh == 16 }},
+		{"mass unit in square brackets", "chemistry,format,capacity,count,Mass [lb]", "LFP,pack,500 Wh,1,10", "", func(l manifest.Line) bool { return math.Abs(l.MassKg-4.5359237) < 1e-12 }},
+		{"weight kg each", "chemistry,format,capacity,qty,kg each", "LFP,pack,500 Wh,1,4", "", func(l manifest.Line) bool { return l.MassKg == 4 }},
+		{"total weight", "chemistry,format,capacity,qty,Total weight (kg)", "LFP,pack,500 Wh,4,20", "", func(l manifest.Line) bool { return l.MassKg == 5 }},
+		{"series and parallel columns", "chemistry,format,capacity,Series,Parallel,qty", "NMC532,pack,3 Ah,13,4,1", "", func(l manifest.Line) bool { return l.CellsPerItem == 52 }},
+		{"series alone", "chemistry,format,capacity,cells in series,qty", "NMC532,pack,3 Ah,10,1", "", func(l manifest.Line) bool { return l.CellsPerItem == 10 }},
 		{"unknown column", "chemistry,format,capacity,count,Colour", "LFP,pack,500 Wh,1,grey", `unrecognised column(s) "Colour"`, nil},
 		{"near miss suggests", "chemistry,format,capacity,cuont", "LFP,pack,500 Wh,1", "did you mean count", nil},
 		{"two columns for one", "chemistry,format,capacity,count,qty", "LFP,pack,500 Wh,1,1", "both read as count", nil},
@@ -126,8 +127,8 @@ func TestHeaderRecognition(t *testing.T) {
 		{"no capacity and no mass", "chemistry,format,count", "LFP,pack,1", "missing required column(s) capacity", nil},
 	} {
 		t.Run(c.name, func(t *testing.T) {
-			var got []feed.Line
-			_, err := intake.ReadCSV(strings.NewReader(c.header+"\n"+c.row+"\n"), "h.csv", intake.Options{Catalogue: cat}, func(l feed.Line) error {
+			var got []manifest.Line
+			_, err := intake.ReadCSV(strings.NewReader(c.header+"\n"+c.row+"\n"), "h.csv", intake.Options{Catalogue: cat}, func(l manifest.Line) error {
 				got = append(got, l)
 				return nil
 			})
@@ -281,10 +282,10 @@ func TestLabelResolutions(t *testing.T) {
 }
 
 // Co wt% of a line's black mass, P10 and P90.
-func coBand(t *testing.T, manifest string) (p10, p90 float64) {
+func coBand(t *testing.T, csv string) (p10, p90 float64) {
 	t.Helper()
-	var lines []feed.Line
-	if _, err := intake.ReadCSV(strings.NewReader(manifest), "u.csv", intake.Options{Catalogue: cathodetest.Catalogue(t)}, func(l feed.Line) error {
+	var lines []manifest.Line
+	if _, err := intake.ReadCSV(strings.NewReader(csv), "u.csv", intake.Options{Catalogue: cathodetest.Catalogue(t)}, func(l manifest.Line) error {
 		lines = append(lines, l)
 		return nil
 	}); err != nil {
@@ -350,8 +351,8 @@ func TestReadXLSX(t *testing.T) {
 	if err := f.Write(&buf); err != nil {
 		t.Fatal(err)
 	}
-	var got []feed.Line
-	info, err := intake.ReadXLSX(bytes.NewReader(buf.Bytes()), "hand.xlsx", intake.Options{Catalogue: cathodetest.Catalogue(t)}, func(l feed.Line) error {
+	var got []manifest.Line
+	info, err := intake.ReadXLSX(bytes.NewReader(buf.Bytes()), "hand.xlsx", intake.Options{Catalogue: cathodetest.Catalogue(t)}, func(l manifest.Line) error {
 		got = append(got, l)
 		return nil
 	})
@@ -362,10 +363,10 @@ func TestReadXLSX(t *testing.T) {
 	if info.Sheet != "Intake" || len(got) != 2 || got[0].EnergyWh != 5*3.65 || got[0].MassKg != 0.65 || got[1].Count != 1234 || got[1].ID != "#7" {
 		t.Fatalf("info %+v, lines %+v", info, got)
 	}
-	if _, err := intake.ReadXLSX(strings.NewReader("not a zip"), "x.xlsx", intake.Options{Catalogue: cathodetest.Catalogue(t)}, func(feed.Line) error { return nil }); err == nil {
+	if _, err := intake.ReadXLSX(strings.NewReader("not a zip"), "x.xlsx", intake.Options{Catalogue: cathodetest.Catalogue(t)}, func(manifest.Line) error { return nil }); err == nil {
 		t.Error("garbage accepted")
 	}
-	if _, err := intake.ReadXLSX(bytes.NewReader(buf.Bytes()), "hand.xlsx", intake.Options{Catalogue: cathodetest.Catalogue(t), Sheet: "Nope"}, func(feed.Line) error { return nil }); err == nil || !strings.Contains(err.Error(), `no sheet "Nope"`) {
+	if _, err := intake.ReadXLSX(bytes.NewReader(buf.Bytes()), "hand.xlsx", intake.Options{Catalogue: cathodetest.Catalogue(t), Sheet: "Nope"}, func(manifest.Line) error { return nil }); err == nil || !strings.Contains(err.Error(), `no sheet "Nope"`) {
 		t.Errorf("missing sheet: %v", err)
 	}
 }
@@ -380,7 +381,7 @@ func FuzzReadManifest(f *testing.F) {
 	f.Add("chemistry,format,capacity,count\nLCO,pouch,1e-300 Wh,1\n")
 	cat := cathodetest.Catalogue(f)
 	f.Fuzz(func(t *testing.T, s string) {
-		_, _ = intake.ReadCSV(strings.NewReader(s), "fuzz.csv", intake.Options{Catalogue: cat, UnknownAsPrior: true}, func(l feed.Line) error {
+		_, _ = intake.ReadCSV(strings.NewReader(s), "fuzz.csv", intake.Options{Catalogue: cat, UnknownAsPrior: true}, func(l manifest.Line) error {
 			finite := func(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) && v >= 0 }
 			if l.Count < 1 || !finite(l.EnergyWh) || !finite(l.ChargeAh) || !finite(l.MassKg) || l.EnergyWh+l.ChargeAh+l.MassKg <= 0 ||
 				(l.EnergyWh > 0 && l.EnergyWh < 0.01) || (l.MassKg > 0 && l.MassKg < 1e-4) || l.Chemistry == nil {
@@ -412,7 +413,7 @@ func TestHostileCSV(t *testing.T) {
 		{"control character in an id", "id,chemistry,format,capacity,count\nab\x07c,LCO,pouch,1 Wh,1\n", "U+0007"},
 	} {
 		t.Run(c.name, func(t *testing.T) {
-			_, err := intake.ReadCSV(strings.NewReader(c.in), "h.csv", intake.Options{Catalogue: cat}, func(feed.Line) error { return nil })
+			_, err := intake.ReadCSV(strings.NewReader(c.in), "h.csv", intake.Options{Catalogue: cat}, func(manifest.Line) error { return nil })
 			if err == nil || !strings.Contains(err.Error(), c.want) || !strings.Contains(err.Error(), "h.csv") {
 				t.Fatalf("error %v, want one naming h.csv and containing %q", err, c.want)
 			}
@@ -437,11 +438,11 @@ func BenchmarkDistinctFormulaLabels(b *testing.B) {
 		in := sb.String()
 		b.Run(fmt.Sprint(n), func(b *testing.B) {
 			for b.Loop() {
-				lot := feed.NewLot(m, false)
+				lot := lot.NewLot(m, false)
 				if _, err := intake.ReadCSV(strings.NewReader(in), "d.csv", intake.Options{Catalogue: cat}, lot.Add); err != nil {
 					b.Fatal(err)
 				}
-				if _, _, err := lot.Estimate(feed.EstimateOptions{Seed: 1, Samples: 200}); err != nil {
+				if _, _, err := lot.Estimate(1, 200); err != nil {
 					b.Fatal(err)
 				}
 			}
@@ -552,7 +553,7 @@ func TestXLSXBombs(t *testing.T) {
 			runtime.GC()
 			runtime.ReadMemStats(&before)
 			start := time.Now()
-			_, err := intake.ReadXLSX(bytes.NewReader(b), "bomb.xlsx", intake.Options{Catalogue: cat}, func(feed.Line) error { return nil })
+			_, err := intake.ReadXLSX(bytes.NewReader(b), "bomb.xlsx", intake.Options{Catalogue: cat}, func(manifest.Line) error { return nil })
 			runtime.ReadMemStats(&after)
 			if err == nil {
 				t.Fatal("a decompression bomb was read")
@@ -597,10 +598,10 @@ func TestHostileManifestCost(t *testing.T) {
 			runtime.GC()
 			runtime.ReadMemStats(&before)
 			start := time.Now()
-			lot := feed.NewLot(m, false)
+			lot := lot.NewLot(m, false)
 			_, err := intake.ReadCSV(strings.NewReader(in), "h.csv", intake.Options{Catalogue: cat}, lot.Add)
 			if err == nil {
-				_, _, err = lot.Estimate(feed.EstimateOptions{Seed: 1, Samples: 4000})
+				_, _, err = lot.Estimate(1, 4000)
 			}
 			runtime.ReadMemStats(&after)
 			d := time.Since(start)
@@ -648,7 +649,7 @@ func TestXLSXMergedAndFormulaCells(t *testing.T) {
 		}, "formula with no saved result"},
 	} {
 		t.Run(c.name, func(t *testing.T) {
-			_, err := intake.ReadXLSX(bytes.NewReader(build(c.edit)), "m.xlsx", intake.Options{Catalogue: cat}, func(feed.Line) error { return nil })
+			_, err := intake.ReadXLSX(bytes.NewReader(build(c.edit)), "m.xlsx", intake.Options{Catalogue: cat}, func(manifest.Line) error { return nil })
 			if err == nil || !strings.Contains(err.Error(), c.want) {
 				t.Errorf("error %v, want %q", err, c.want)
 			}
@@ -669,7 +670,7 @@ func TestXLSXWideRows(t *testing.T) {
 		t.Fatal(err)
 	}
 	start := time.Now()
-	_, err := intake.ReadXLSX(bytes.NewReader(buf.Bytes()), "wide.xlsx", intake.Options{Catalogue: cathodetest.Catalogue(t)}, func(feed.Line) error { return nil })
+	_, err := intake.ReadXLSX(bytes.NewReader(buf.Bytes()), "wide.xlsx", intake.Options{Catalogue: cathodetest.Catalogue(t)}, func(manifest.Line) error { return nil })
 	if err == nil || !strings.Contains(err.Error(), "columns") {
 		t.Fatalf("error %v", err)
 	}
@@ -755,10 +756,10 @@ func FuzzSplitMatchesCSV(f *testing.F) {
 }
 
 // readString reads a CSV manifest from a string.
-func readString(t *testing.T, in string) ([]feed.Line, error) {
+func readString(t *testing.T, in string) ([]manifest.Line, error) {
 	t.Helper()
-	var lines []feed.Line
-	_, err := intake.ReadCSV(strings.NewReader(in), "m.csv", intake.Options{Catalogue: cathodetest.Catalogue(t)}, func(l feed.Line) error {
+	var lines []manifest.Line
+	_, err := intake.ReadCSV(strings.NewReader(in), "m.csv", intake.Options{Catalogue: cathodetest.Catalogue(t)}, func(l manifest.Line) error {
 		lines = append(lines, l)
 		return nil
 	})

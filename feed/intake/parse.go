@@ -14,7 +14,7 @@ import (
 	"unsafe"
 
 	"blackmass/cathode"
-	"blackmass/feed"
+	"blackmass/feed/manifest"
 )
 
 // Options controls manifest reading.
@@ -77,7 +77,7 @@ type rawLiner interface {
 }
 
 // readRows finds the header, then parses every line and hands it to fn.
-func readRows(src rowSource, name string, opt Options, decimalComma bool, fn func(feed.Line) error) (Info, error) {
+func readRows(src rowSource, name string, opt Options, decimalComma bool, fn func(manifest.Line) error) (Info, error) {
 	var info Info
 	var hdr *header
 	var first []string
@@ -191,12 +191,12 @@ type lineParser struct {
 	decimalComma bool
 	hdr          *header
 	chem         map[labelKey]*resolved
-	formats      map[string]feed.Format
+	formats      map[string]manifest.Format
 	layouts      map[string]int
 	apps         map[string]string               // application text -> key
 	quantities   [numColumns]map[string]quantity // per column, quantity text -> value, so repeated values parse once
-	alike        map[string]feed.Line            // parsed lines by their fields other than the id (parseAlike)
-	alikeRaw     map[string]feed.Line            // parsed lines by their text without the id (parseAlike)
+	alike        map[string]manifest.Line        // parsed lines by their fields other than the id (parseAlike)
+	alikeRaw     map[string]manifest.Line        // parsed lines by their text without the id (parseAlike)
 	keyBuf       []byte                          // parseAlike's alone: its key may view this buffer until the line is remembered
 }
 
@@ -240,8 +240,8 @@ type resolved struct {
 
 func newLineParser(name string, opt Options, decimalComma bool, hdr *header) *lineParser {
 	return &lineParser{name: name, opt: opt, decimalComma: decimalComma, hdr: hdr,
-		chem: map[labelKey]*resolved{}, formats: map[string]feed.Format{}, layouts: map[string]int{}, apps: map[string]string{},
-		alike: map[string]feed.Line{}, alikeRaw: map[string]feed.Line{}}
+		chem: map[labelKey]*resolved{}, formats: map[string]manifest.Format{}, layouts: map[string]int{}, apps: map[string]string{},
+		alike: map[string]manifest.Line{}, alikeRaw: map[string]manifest.Line{}}
 }
 
 func (p *lineParser) get(rec []string, c Column) string {
@@ -256,26 +256,26 @@ func (p *lineParser) fail(line int, c Column, val, reason string) error {
 	return &Error{File: p.name, Line: line, Column: c.String(), Value: val, Reason: reason}
 }
 
-func (p *lineParser) parse(rec []string, line int) (feed.Line, error) {
+func (p *lineParser) parse(rec []string, line int) (manifest.Line, error) {
 	if len(rec) > MaxColumns {
-		return feed.Line{}, &Error{File: p.name, Line: line, Reason: fmt.Sprintf("more than %d columns", MaxColumns)}
+		return manifest.Line{}, &Error{File: p.name, Line: line, Reason: fmt.Sprintf("more than %d columns", MaxColumns)}
 	}
 	for i := p.hdr.width; i < len(rec); i++ {
 		if strings.TrimSpace(rec[i]) != "" {
-			return feed.Line{}, &Error{File: p.name, Line: line, Reason: fmt.Sprintf("a value in column %d, beyond the header's %d columns", i+1, p.hdr.width)}
+			return manifest.Line{}, &Error{File: p.name, Line: line, Reason: fmt.Sprintf("a value in column %d, beyond the header's %d columns", i+1, p.hdr.width)}
 		}
 	}
 	for _, i := range p.hdr.ignored {
 		if i < len(rec) && strings.TrimSpace(rec[i]) != "" && i < p.hdr.width && !p.ignoredByName(i) {
-			return feed.Line{}, &Error{File: p.name, Line: line, Reason: fmt.Sprintf("a value in column %d, which has no header", i+1)}
+			return manifest.Line{}, &Error{File: p.name, Line: line, Reason: fmt.Sprintf("a value in column %d, which has no header", i+1)}
 		}
 	}
 	for _, c := range textColumns {
 		if err := p.checkText(c, p.get(rec, c), line); err != nil {
-			return feed.Line{}, err
+			return manifest.Line{}, err
 		}
 	}
-	l := feed.Line{Num: line, ID: p.get(rec, ColID), Description: p.get(rec, ColDescription), Notes: p.get(rec, ColNotes)}
+	l := manifest.Line{Num: line, ID: p.get(rec, ColID), Description: p.get(rec, ColDescription), Notes: p.get(rec, ColNotes)}
 	if err := p.format(&l, rec, line); err != nil {
 		return l, err
 	}
@@ -327,7 +327,7 @@ const maxRememberedLines = 4096
 // the id's text cut out, the separators kept: equal keys split into equal fields but the id. With
 // the id first that is a substring, and looking it up copies nothing. Otherwise the key encodes
 // each field with its length.
-func (p *lineParser) parseAlike(rec []string, line int, raw string, starts []int) (feed.Line, error) {
+func (p *lineParser) parseAlike(rec []string, line int, raw string, starts []int) (manifest.Line, error) {
 	idPos := p.hdr.pos[ColID]
 	if idPos < 0 {
 		return p.parse(rec, line)
@@ -357,7 +357,7 @@ func (p *lineParser) parseAlike(rec []string, line int, raw string, starts []int
 	if l, ok := memo[key]; ok {
 		id := p.get(rec, ColID)
 		if err := p.checkText(ColID, id, line); err != nil {
-			return feed.Line{}, err
+			return manifest.Line{}, err
 		}
 		l.Num, l.ID = line, id
 		return l, nil
@@ -410,7 +410,7 @@ func badControl(r rune) bool { return unicode.IsControl(r) && r != '\t' }
 // then not checked), rather than for a blank header.
 func (p *lineParser) ignoredByName(i int) bool { return p.hdr.named[i] }
 
-func (p *lineParser) format(l *feed.Line, rec []string, line int) error {
+func (p *lineParser) format(l *manifest.Line, rec []string, line int) error {
 	fs := p.get(rec, ColFormat)
 	f, ok := p.formats[fs]
 	if !ok {
@@ -427,7 +427,7 @@ func (p *lineParser) format(l *feed.Line, rec []string, line int) error {
 // chemistry resolves the label; a label that says nothing about the cathode takes the prior of
 // the item's application (named in its own column, or by a word of the description or notes) or
 // else of its format.
-func (p *lineParser) chemistry(l *feed.Line, rec []string, line int) error {
+func (p *lineParser) chemistry(l *manifest.Line, rec []string, line int) error {
 	l.ChemistryLabel = p.get(rec, ColChemistry)
 	appText := p.get(rec, ColApplication)
 	if appText != "" {
@@ -477,7 +477,7 @@ func (p *lineParser) chemistry(l *feed.Line, rec []string, line int) error {
 	return nil
 }
 
-func (p *lineParser) count(l *feed.Line, rec []string, line int) error {
+func (p *lineParser) count(l *manifest.Line, rec []string, line int) error {
 	cs := p.get(rec, ColCount)
 	if n, err := strconv.Atoi(cs); err == nil && n >= 1 && n <= maxCount && cs[0] != '+' {
 		l.Count = n // the common case: a plain whole number
@@ -491,7 +491,7 @@ func (p *lineParser) count(l *feed.Line, rec []string, line int) error {
 	return nil
 }
 
-func (p *lineParser) cellsPerPack(l *feed.Line, rec []string, line int) error {
+func (p *lineParser) cellsPerPack(l *manifest.Line, rec []string, line int) error {
 	l.CellsPerItem = 1
 	cp := p.get(rec, ColCellsPerPack)
 	if ss, ps := p.get(rec, ColSeries), p.get(rec, ColParallel); ss != "" || ps != "" {
@@ -529,7 +529,7 @@ func (p *lineParser) cellsPerPack(l *feed.Line, rec []string, line int) error {
 	return nil
 }
 
-func (p *lineParser) mass(l *feed.Line, rec []string, line int) error {
+func (p *lineParser) mass(l *manifest.Line, rec []string, line int) error {
 	col := ColMass
 	ms := p.get(rec, ColMass)
 	if ms == "" {
@@ -553,11 +553,11 @@ func (p *lineParser) mass(l *feed.Line, rec []string, line int) error {
 	return nil
 }
 
-func (p *lineParser) capacity(l *feed.Line, rec []string, line int) error {
+func (p *lineParser) capacity(l *manifest.Line, rec []string, line int) error {
 	l.CapacityText = p.get(rec, ColCapacity)
 	if l.CapacityText == "" {
 		if l.MassKg > 0 {
-			return nil // energy from the chemistry's Wh/kg band (feed.Line.MassOnly)
+			return nil // energy from the chemistry's Wh/kg band (manifest.Line.MassOnly)
 		}
 		return p.fail(line, ColCapacity, "", "give a capacity, or a mass for a line known by weight only")
 	}
@@ -627,21 +627,21 @@ func (p *lineParser) capacity(l *feed.Line, rec []string, line int) error {
 	return nil
 }
 
-var formatWords = map[string]feed.Format{
-	"cylindrical": feed.Cylindrical, "cylinder": feed.Cylindrical, "cyl": feed.Cylindrical, "round": feed.Cylindrical,
-	"18650": feed.Cylindrical, "21700": feed.Cylindrical, "26650": feed.Cylindrical, "32700": feed.Cylindrical, "4680": feed.Cylindrical, "14500": feed.Cylindrical,
-	"pouch": feed.Pouch, "polymer": feed.Pouch, "soft": feed.Pouch, "lipo": feed.Pouch, "soft pack": feed.Pouch,
-	"prismatic": feed.Prismatic, "prism": feed.Prismatic, "can": feed.Prismatic,
-	"pack": feed.Pack, "battery pack": feed.Pack, "packs": feed.Pack, "battery": feed.Pack,
-	"module": feed.Module, "modules": feed.Module,
+var formatWords = map[string]manifest.Format{
+	"cylindrical": manifest.Cylindrical, "cylinder": manifest.Cylindrical, "cyl": manifest.Cylindrical, "round": manifest.Cylindrical,
+	"18650": manifest.Cylindrical, "21700": manifest.Cylindrical, "26650": manifest.Cylindrical, "32700": manifest.Cylindrical, "4680": manifest.Cylindrical, "14500": manifest.Cylindrical,
+	"pouch": manifest.Pouch, "polymer": manifest.Pouch, "soft": manifest.Pouch, "lipo": manifest.Pouch, "soft pack": manifest.Pouch,
+	"prismatic": manifest.Prismatic, "prism": manifest.Prismatic, "can": manifest.Prismatic,
+	"pack": manifest.Pack, "battery pack": manifest.Pack, "packs": manifest.Pack, "battery": manifest.Pack,
+	"module": manifest.Module, "modules": manifest.Module,
 }
 
 // ParseFormat accepts the format names and their synonyms, case-insensitively.
-func ParseFormat(s string) (feed.Format, error) {
+func ParseFormat(s string) (manifest.Format, error) {
 	if f, ok := formatWords[strings.ToLower(strings.TrimSpace(s))]; ok {
 		return f, nil
 	}
-	return feed.FormatInvalid, fmt.Errorf("unknown format (want cylindrical, pouch, prismatic, pack or module)")
+	return manifest.FormatInvalid, fmt.Errorf("unknown format (want cylindrical, pouch, prismatic, pack or module)")
 }
 
 // seriesParallel makes a series-parallel tag of separate series and parallel counts.

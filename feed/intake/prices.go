@@ -8,7 +8,7 @@ import (
 
 	"blackmass/cathode"
 	"blackmass/data"
-	"blackmass/feed"
+	"blackmass/feed/value"
 )
 
 // maxPricePerKg bounds a price: above any battery metal's price per kg in any currency in use
@@ -18,7 +18,7 @@ const maxPricePerKg = 1e6
 // ReadPrices reads a prices file: columns item (an element symbol), basis (metal, or LCE for
 // lithium), price_per_kg, currency, payable (a share 0..1 or a percentage), source. Every row
 // must carry the same currency; an element may be priced once.
-func ReadPrices(r io.Reader, name string) (*feed.PriceList, error) {
+func ReadPrices(r io.Reader, name string) (*value.PriceList, error) {
 	t, err := data.ParseTable(r, name)
 	if err != nil {
 		return nil, &Error{File: name, Reason: strings.TrimPrefix(err.Error(), name+": ")}
@@ -28,7 +28,7 @@ func ReadPrices(r io.Reader, name string) (*feed.PriceList, error) {
 			return nil, &Error{File: name, Line: 1, Reason: fmt.Sprintf("missing column %q (want item, basis, price_per_kg, currency, payable, source)", c)}
 		}
 	}
-	pl := &feed.PriceList{File: name}
+	pl := &value.PriceList{File: name}
 	// Only the symbols are checked here (is it an element, is it a metal), and those are
 	// IUPAC's, not a table a user edits; the weights that turn wt% into moles come later, from
 	// the tables the calculation is given.
@@ -48,10 +48,10 @@ func ReadPrices(r io.Reader, name string) (*feed.PriceList, error) {
 		seen[el] = row.Line
 		basis := row.Str("basis")
 		switch {
-		case basis == "" || strings.EqualFold(basis, feed.BasisMetal):
-			basis = feed.BasisMetal
-		case strings.EqualFold(basis, feed.BasisLCE) && el == "Li":
-			basis = feed.BasisLCE
+		case basis == "" || strings.EqualFold(basis, value.BasisMetal):
+			basis = value.BasisMetal
+		case strings.EqualFold(basis, value.BasisLCE) && el == "Li":
+			basis = value.BasisLCE
 		default:
 			return nil, fail("basis", basis, "want metal (per kg of the element), or LCE for lithium (per kg of lithium carbonate equivalent)")
 		}
@@ -72,7 +72,7 @@ func ReadPrices(r io.Reader, name string) (*feed.PriceList, error) {
 		if err != nil {
 			return nil, fail("payable", row.Str("payable"), err.Error())
 		}
-		pl.Prices = append(pl.Prices, feed.Price{Element: el, Basis: basis, PerKg: price, Payable: pay, Source: row.Str("source")})
+		pl.Prices = append(pl.Prices, value.Price{Element: el, Basis: basis, PerKg: price, Payable: pay, Source: row.Str("source")})
 	}
 	return pl, nil
 }

@@ -1,13 +1,12 @@
 package intake
 
 import (
+	"blackmass/feed/manifest"
 	"fmt"
 	"io"
 	"strings"
 
 	"github.com/xuri/excelize/v2"
-
-	"blackmass/feed"
 )
 
 // Bounds on an .xlsx manifest, so a small file cannot inflate into gigabytes.
@@ -21,7 +20,7 @@ const (
 // opt.Sheet if given; else the intake workbook's Lines sheet; else the first visible sheet with
 // a recognisable header. Cells are read as stored (a number formatted "0" is still 2.6), not as
 // displayed. Info names the sheet read and the sheets there were.
-func ReadXLSX(r io.Reader, name string, opt Options, fn func(feed.Line) error) (Info, error) {
+func ReadXLSX(r io.Reader, name string, opt Options, fn func(manifest.Line) error) (Info, error) {
 	small := false
 	if l, ok := r.(interface{ Len() int }); ok {
 		small = l.Len() <= maxCheckedBytes
@@ -43,11 +42,11 @@ func ReadXLSX(r io.Reader, name string, opt Options, fn func(feed.Line) error) (
 		}
 		candidates = []string{opt.Sheet}
 	default:
-		if idx, _ := f.GetSheetIndex(feed.LinesSheetName); idx >= 0 {
-			candidates = []string{feed.LinesSheetName}
+		if idx, _ := f.GetSheetIndex(manifest.LinesSheetName); idx >= 0 {
+			candidates = []string{manifest.LinesSheetName}
 		}
 		for _, s := range sheets {
-			if visible, _ := f.GetSheetVisible(s); visible && s != feed.LinesSheetName {
+			if visible, _ := f.GetSheetVisible(s); visible && s != manifest.LinesSheetName {
 				candidates = append(candidates, s)
 			}
 		}
@@ -75,7 +74,7 @@ func ReadXLSX(r io.Reader, name string, opt Options, fn func(feed.Line) error) (
 	return Info{Sheets: sheets}, &Error{File: name, Reason: fmt.Sprintf("no sheet holds a recognisable header (sheets: %s); name one with --sheet. First sheet: %v", strings.Join(sheets, ", "), firstErr)}
 }
 
-func readSheet(f *excelize.File, name, sheet string, opt Options, fn func(feed.Line) error) (Info, error) {
+func readSheet(f *excelize.File, name, sheet string, opt Options, fn func(manifest.Line) error) (Info, error) {
 	rows, err := f.Rows(sheet)
 	if err != nil {
 		return Info{Sheet: sheet}, &Error{File: name, Reason: fmt.Sprintf("sheet %q: %v", sheet, err)}

@@ -11,9 +11,9 @@ import (
 	"strings"
 	"time"
 
-	"blackmass/feed"
 	"blackmass/feed/assay"
 	"blackmass/feed/intake"
+	"blackmass/feed/report"
 )
 
 // MaxIDLen bounds a lot id.
@@ -29,7 +29,7 @@ type Lot struct {
 	ManifestSHA256 string
 	Manifest       []byte
 	Settings       any // recorded as JSON
-	Report         *feed.Report
+	Report         *report.Report
 }
 
 // ErrExists is returned when a lot id is already in the register and replace was not asked.
@@ -116,7 +116,7 @@ func (r *Register) Add(ctx context.Context, l Lot, replace bool) (int, error) {
 }
 
 // insertDetail records the lines as parsed, the (chemistry, format) groups and the metals.
-func insertDetail(tx *sql.Tx, id string, version int, rp *feed.Report) error {
+func insertDetail(tx *sql.Tx, id string, version int, rp *report.Report) error {
 	line, err := tx.Prepare(`INSERT INTO lot_lines (lot_id, version, line, item_id, chemistry_label, chemistry, format, count, energy_wh, mass_kg)
 		VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?)`)
 	if err != nil {

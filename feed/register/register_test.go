@@ -18,22 +18,23 @@ import (
 	"testing"
 	"time"
 
-	"blackmass/feed"
 	"blackmass/feed/dist"
+	"blackmass/feed/lot"
+	"blackmass/feed/report"
 )
 
 // sampleReport is a small report of n lines, enough to exercise the register.
-func sampleReport(n int, coKg float64) *feed.Report {
-	r := &feed.Report{Lot: feed.LotSummary{Lines: n, Items: 10 * n, NameplateKWh: 1.5 * float64(n)},
+func sampleReport(n int, coKg float64) *report.Report {
+	r := &report.Report{Lot: lot.LotSummary{Lines: n, Items: 10 * n, NameplateKWh: 1.5 * float64(n)},
 		BlackMassKg: dist.Stat{P10: 90, P50: 100, P90: 110, Mean: 100},
 		Elements: map[string]dist.Amount{
 			"Co": {Kg: dist.Stat{P10: coKg * 0.9, P50: coKg, P90: coKg * 1.1, Mean: coKg}, WtPct: dist.Stat{P50: coKg}},
 			"Ni": {Kg: dist.Stat{P10: 12, P50: 13, P90: 14, Mean: 13}, WtPct: dist.Stat{P50: 13}},
 		},
-		Groups: []feed.GroupResult{{Chemistry: "NMC622", Format: "pack", Lines: n, Items: 10 * n, NameplateKWh: 1.5 * float64(n), BlackMassKg: dist.Stat{P50: 100}}},
+		Groups: []lot.GroupResult{{Chemistry: "NMC622", Format: "pack", Lines: n, Items: 10 * n, NameplateKWh: 1.5 * float64(n), BlackMassKg: dist.Stat{P50: 100}}},
 	}
 	for i := range n {
-		r.Lines = append(r.Lines, feed.LineResult{Line: i + 2, ID: fmt.Sprintf("L%d", i), ChemistryLabel: "NMC622", Chemistry: "NMC622", Format: "pack", Count: 10, EnergyWhPerItem: 150})
+		r.Lines = append(r.Lines, lot.LineResult{Line: i + 2, ID: fmt.Sprintf("L%d", i), ChemistryLabel: "NMC622", Chemistry: "NMC622", Format: "pack", Count: 10, EnergyWhPerItem: 150})
 	}
 	return r
 }

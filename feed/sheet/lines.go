@@ -1,7 +1,7 @@
 package sheet
 
 import (
-	"blackmass/feed"
+	"blackmass/feed/manifest"
 	"fmt"
 	"strings"
 
@@ -48,9 +48,9 @@ func (w *writer) streamLines() error {
 	_ = sw.SetColStyle(15, 19, w.num3)
 	_ = sw.SetPanes(&excelize.Panes{Freeze: true, XSplit: 1, YSplit: 1, TopLeftCell: "B2", ActivePane: "bottomRight"})
 	// The first columns are the manifest's own, headed so the sheet reads back as a manifest;
-	// the rest are computed (feed.DerivedLineColumns) and are read past.
+	// the rest are computed (manifest.DerivedLineColumns) and are read past.
 	head := []any{"id", "description", "chemistry", "format", "capacity", "capacity basis", "voltage (V)", "cells per pack", "count", "mass (kg)", "notes", "application"}
-	for _, h := range feed.DerivedLineColumns {
+	for _, h := range manifest.DerivedLineColumns {
 		head = append(head, h)
 	}
 	if err := sw.SetRow("A1", head, excelize.RowOpts{StyleID: w.hdr, Height: 45}); err != nil {

@@ -1,23 +1,23 @@
-// Package sheet writes the intake workbook of a lot from a feed.Report. It formats and lays out;
+// Package sheet writes the intake workbook of a lot from a report.Report. It formats and lays out;
 // it computes nothing new except the live formulas a user is meant to edit (reagent prices, the
 // weigh-in), whose inputs are the report's own numbers.
 package sheet
 
 import (
+	"blackmass/feed/manifest"
+	"blackmass/feed/report"
 	"bytes"
 	"fmt"
 	"io"
 	"strconv"
 
 	"github.com/xuri/excelize/v2"
-
-	"blackmass/feed"
 )
 
 // Sheet names.
 const (
 	Summary     = "Lot summary"
-	Lines       = feed.LinesSheetName
+	Lines       = manifest.LinesSheetName
 	Metals      = "Metals"
 	Leach       = "Leach"
 	Assumptions = "Assumptions"
@@ -36,14 +36,14 @@ type writer struct {
 	f                     *excelize.File
 	hdr, num3, pct, title int
 	edit                  int // cells a user is expected to change
-	r                     *feed.Report
+	r                     *report.Report
 }
 
 // Write builds the workbook and writes it to w.
-func Write(w io.Writer, r *feed.Report) error { return WriteOn(w, r, PaperA4) }
+func Write(w io.Writer, r *report.Report) error { return WriteOn(w, r, PaperA4) }
 
 // WriteOn is Write on the paper given (PaperA4 or PaperLetter).
-func WriteOn(w io.Writer, r *feed.Report, paper int) error {
+func WriteOn(w io.Writer, r *report.Report, paper int) error {
 	f, formulas, streamLines, err := build(r, paper)
 	if err != nil {
 		return err
@@ -86,7 +86,7 @@ func cachedValues(f *excelize.File, formulas []formulaCell) (map[string]map[stri
 }
 
 // Build returns the workbook; the caller closes it.
-func Build(r *feed.Report) (*excelize.File, error) {
+func Build(r *report.Report) (*excelize.File, error) {
 	f, _, streamLines, err := build(r, PaperA4)
 	if err != nil {
 		return nil, err
@@ -100,7 +100,7 @@ func Build(r *feed.Report) (*excelize.File, error) {
 
 // build makes every sheet but the Lines sheet's rows, which the returned streamLines writes:
 // the caller computes the formulas first (see writer.lines).
-func build(r *feed.Report, paper int) (f *excelize.File, formulas []formulaCell, streamLines func() error, err error) {
+func build(r *report.Report, paper int) (f *excelize.File, formulas []formulaCell, streamLines func() error, err error) {
 	f = excelize.NewFile()
 	wr := &writer{f: f, r: r, paper: paper}
 	must := func(id int, e error) int {

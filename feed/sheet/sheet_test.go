@@ -13,19 +13,19 @@ import (
 
 	"github.com/xuri/excelize/v2"
 
-	"blackmass/cathode/cathodetest"
-	"blackmass/feed"
-	"blackmass/feed/intake"
 	"blackmass/feed/leach"
+	"blackmass/feed/report"
+	"blackmass/feed/run"
 	"blackmass/feed/sheet"
+	"blackmass/feed/value"
 )
 
-func report(tb testing.TB, lines int) *feed.Report {
+func sampleReport(tb testing.TB, lines int) *report.Report {
 	tb.Helper()
 	return reportWith(tb, lines, leach.DefaultOptions())
 }
 
-func reportWith(tb testing.TB, lines int, lo leach.Options) *feed.Report {
+func reportWith(tb testing.TB, lines int, lo leach.Options) *report.Report {
 	tb.Helper()
 	var b strings.Builder
 	b.WriteString("id,description,chemistry,format,capacity,cells_per_pack,count,mass\n")
@@ -33,16 +33,13 @@ func reportWith(tb testing.TB, lines int, lo leach.Options) *feed.Report {
 	for i := range lines {
 		fmt.Fprintf(&b, "L%d,item %d,%s\n", i, i, rows[i%len(rows)])
 	}
-	cat := cathodetest.Catalogue(tb)
-	m, err := feed.DefaultModel()
+	tables, err := run.DefaultTables()
 	if err != nil {
 		tb.Fatal(err)
 	}
-	lot := feed.NewLot(m, true)
-	if _, err := intake.ReadCSV(strings.NewReader(b.String()), "gen.csv", intake.Options{Catalogue: cat}, lot.Add); err != nil {
-		tb.Fatal(err)
-	}
-	r, _, err := lot.Estimate(feed.EstimateOptions{Seed: 1, Samples: 200, Leach: &lo, Inputs: feed.Inputs{LotID: "=cmd|' /C calc'!A0", Version: "test"}})
+	o := run.Options{Seed: 1, Samples: 200, Leach: &lo, KeepLines: true, Containers: value.DefaultContainers,
+		Inputs: report.Inputs{LotID: "=cmd|' /C calc'!A0", Version: "test"}}
+	r, err := run.Estimate(tables, o, run.Manifest{Name: "gen.csv", R: strings.NewReader(b.String())})
 	if err != nil {
 		tb.Fatal(err)
 	}
@@ -52,7 +49,7 @@ func reportWith(tb testing.TB, lines int, lo leach.Options) *feed.Report {
 // Ensure the workbook stores numbers as numbers, has every sheet, and its live formulas agree
 // with the Go values when evaluated by the calculation engine.
 func TestWorkbookContent(t *testing.T) {
-	r := report(t, 40)
+	r := sampleReport(t, 40)
 	var buf bytes.Buffer
 	if err := sheet.Write(&buf, r); err != nil {
 		t.Fatal(err)
@@ -117,7 +114,7 @@ func cellFloat(t *testing.T, f *excelize.File, s, c string) float64 {
 // the stream writer, which spills to a temporary file past 16 MB.
 func BenchmarkWorkbook100k(b *testing.B) {
 	const n = 100_000
-	r := report(b, n)
+	r := sampleReport(b, n)
 	b.ReportAllocs()
 	for b.Loop() {
 		if err := sheet.Write(io.Discard, r); err != nil {
@@ -190,7 +187,7 @@ func TestDosingCalculator(t *testing.T) {
 // on a collected heap, and the ratio is reported as x-floor (the goal is at most 1.5).
 func BenchmarkWorkbook10kVsStreamFloor(b *testing.B) {
 	const n = 10_000
-	r := report(b, n)
+	r := sampleReport(b, n)
 	b.ReportAllocs()
 	var wholeNs, floorNs int64
 	for b.Loop() {
@@ -211,7 +208,7 @@ func BenchmarkWorkbook10kVsStreamFloor(b *testing.B) {
 }
 
 // streamFloor writes the report's lines through the stream writer into an otherwise empty file.
-func streamFloor(b *testing.B, r *feed.Report) {
+func streamFloor(b *testing.B, r *report.Report) {
 	f := excelize.NewFile()
 	defer f.Close()
 	sw, err := f.NewStreamWriter("Sheet1")
@@ -238,7 +235,7 @@ func streamFloor(b *testing.B, r *feed.Report) {
 // and id column repeated on every page; every formula stored with its value (read from the raw
 // XML, as a viewer that does not recalculate would).
 func TestPrintSetupAndCachedValues(t *testing.T) {
-	r := report(t, 8)
+	r := sampleReport(t, 8)
 	for _, c := range []struct {
 		paper int
 		name  string

@@ -1,9 +1,8 @@
 package sheet
 
 import (
+	"blackmass/feed/value"
 	"fmt"
-
-	"blackmass/feed"
 )
 
 // ValueSheet is the name of the value sheet.
@@ -36,7 +35,7 @@ func (w *writer) value() error {
 	for _, e := range v.Elements {
 		row++
 		item := e.Element
-		if e.Basis == feed.BasisLCE {
+		if e.Basis == value.BasisLCE {
 			item += " as LCE"
 		}
 		_ = w.row(s, row, item, e.ProductKg.P50, e.PricePerKg, e.Payable, e.Contained.P50, e.PayableVal.P10, e.PayableVal.P50, e.PayableVal.P90, e.Source)

@@ -1,4 +1,4 @@
-package feed
+package lot
 
 import "blackmass/cathode"
 

@@ -1,4 +1,4 @@
-package main
+package text
 
 import (
 	"fmt"
@@ -31,19 +31,19 @@ func (l unitLadder) pick(ref float64) (name string, perBase float64) {
 // format prints v (in the base unit) with three significant figures in the unit that suits it.
 func (l unitLadder) format(v float64) string {
 	u, f := l.pick(v)
-	return num(v*f) + " " + u
+	return Num(v*f) + " " + u
 }
 
 // massUnit picks g for a bench sample, kg for a lot, t for a large one.
 func massUnit(refKg float64) (name string, perKg float64) { return massUnits.pick(refKg) }
 
-func fmtMass(kg float64) string    { return massUnits.format(kg) }
+func FmtMass(kg float64) string    { return massUnits.format(kg) }
 func fmtVolume(l float64) string   { return volumeUnits.format(l) }
 func fmtEnergy(kWh float64) string { return energyUnits.format(kWh) }
 
-// num prints a number with three significant figures, without exponent notation; anything
+// Num prints a number with three significant figures, without exponent notation; anything
 // smaller than a billionth prints as 0 (never "-0.000").
-func num(v float64) string {
+func Num(v float64) string {
 	switch a := math.Abs(v); {
 	case a < 1e-9:
 		return "0"

@@ -33,4 +33,4 @@
 // manifests and assays into [Line] values, [blackmass/feed/leach] plans the leach of the drawn
 // black mass, [blackmass/feed/assay] quotes, reconciles and explains assays, [blackmass/feed/dist]
 // summarises draws, and [blackmass/feed/sheet] writes the workbook from a [Report].
-package feed
+package lot

@@ -1,64 +1,67 @@
-package feed
+package lot
 
 import (
 	"blackmass/cathode"
 	"blackmass/feed/dist"
-	"blackmass/feed/leach"
 	"errors"
 	"fmt"
 	"slices"
 )
 
-// EstimateOptions controls the Monte Carlo.
-type EstimateOptions struct {
-	Seed    uint64
-	Samples int
-	Inputs  Inputs // recorded in the report as given (Seed and Samples are filled in)
-	Leach   *leach.Options
-	Prices  *PriceList // nil: no value
-	// LeachTables are the leach planner's tables (nil: the embedded ones).
-	LeachTables *leach.Tables
-}
-
 // Samples holds every Monte Carlo draw of the lot's black mass, by compound (kg), so that later
-// stages (the leach plan) reuse the same draws.
+// stages (the leach plan, the value) reuse the same draws.
 type Samples struct {
 	N         int
 	Compounds [][]float64 // [compound][sample] kg
 	Elements  [][]float64 // [element][sample] kg
 	BlackMass []float64   // [sample] kg
-	comp      *compounds
-	groupCAM  [][]float64 // [group][sample] kg
-	groupBM   [][]float64
+	// Formulas name the compounds of Compounds, ElementNames the elements of Elements.
+	Formulas     []string
+	ElementNames []string
+	// Draws gives later stages their own parameters from the run's seeded streams.
+	Draws    *dist.Drawer
+	comp     *compounds
+	groupCAM [][]float64 // [group][sample] kg
+	groupBM  [][]float64
 }
 
-// Estimate runs the Monte Carlo over the lot's groups and builds the report: the draws, the
-// report of the lot and its metals, then the leach plan and the value on the same draws.
-func (l *Lot) Estimate(opt EstimateOptions) (*Report, *Samples, error) {
-	if opt.Samples < 10 || opt.Samples > 200_000 {
-		return nil, nil, fmt.Errorf("samples must be from 10 to 200000, got %d", opt.Samples)
+// Result is the lot's part of a report: what the manifest lists, the black mass, its elements
+// and compounds, the groups, labels and lines, with the model's parameters and warnings.
+type Result struct {
+	Lot          LotSummary
+	BlackMassKg  dist.Stat
+	Elements     map[string]dist.Amount
+	Compounds    map[string]dist.Amount
+	Groups       []GroupResult
+	Labels       []LabelResolution
+	Lines        []LineResult
+	Parameters   []dist.Param
+	Warnings     []string
+	ElementOrder []string
+	// ModeKWh is the lot's most likely nameplate energy, lines known by weight only included.
+	ModeKWh float64
+}
+
+// MinSamples and MaxSamples bound the Monte Carlo's sample count: from 10, for any percentiles
+// at all, to 200,000, beyond which memory grows for no better percentiles.
+const (
+	MinSamples = 10
+	MaxSamples = 200_000
+)
+
+// Estimate runs the Monte Carlo over the lot's groups with the seed given and summarises the
+// draws: the lot's part of the report, and the draws themselves for the later stages.
+func (l *Lot) Estimate(seed uint64, samples int) (*Result, *Samples, error) {
+	if samples < MinSamples || samples > MaxSamples {
+		return nil, nil, fmt.Errorf("samples must be from %d to %d, got %d", MinSamples, MaxSamples, samples)
 	}
 	if l.nLines == 0 {
 		return nil, nil, errors.New("the lot has no lines")
 	}
-	ps := newParamSet(l.model, opt.Seed, opt.Samples)
-	s := l.draw(ps, opt.Samples)
-	r := l.report(s, opt)
-	if opt.Leach != nil {
-		lr, err := leach.Plan(leach.Input{Formulas: l.comp.formulas, Kg: s.Compounds, BlackMassKg: s.BlackMass, Draws: ps.d, Tables: opt.LeachTables}, *opt.Leach)
-		if err != nil {
-			return nil, nil, err
-		}
-		r.Leach = lr
-	}
-	if opt.Prices != nil {
-		var cost []float64
-		if r.Leach != nil {
-			cost = r.Leach.CostPerSample
-		}
-		r.Value = valueOf(l.comp.elements, s.Elements, s.BlackMass, opt.Prices, cost, l.modeWh/1000)
-	}
-	return r, s, nil
+	ps := newParamSet(l.model, seed, samples)
+	s := l.draw(ps, samples)
+	s.Formulas, s.ElementNames, s.Draws = l.comp.formulas, l.comp.elements, ps.d
+	return l.result(s), s, nil
 }
 
 // draw runs the Monte Carlo: n samples of every group's black mass by compound, then the
@@ -113,11 +116,10 @@ func (l *Lot) draw(ps *paramSet, n int) *Samples {
 	return s
 }
 
-// report summarises the draws with the lot's counts, labels and warnings.
-func (l *Lot) report(s *Samples, opt EstimateOptions) *Report {
-	r := &Report{Inputs: opt.Inputs, Elements: map[string]dist.Amount{}, Compounds: map[string]dist.Amount{}, Lines: l.lines,
-		Warnings: append([]string(nil), l.warnings...), Safety: safetyNotes}
-	r.Inputs.Seed, r.Inputs.Samples = opt.Seed, s.N
+// result summarises the draws with the lot's counts, labels and warnings.
+func (l *Lot) result(s *Samples) *Result {
+	r := &Result{Elements: map[string]dist.Amount{}, Compounds: map[string]dist.Amount{}, Lines: l.lines,
+		Warnings: append([]string(nil), l.warnings...), ModeKWh: l.modeWh / 1000}
 	r.Lot = LotSummary{Lines: l.nLines, Items: l.items, Cells: l.cells, NameplateKWh: dist.Round(l.energyWh/1000, 6),
 		ChargeOnlyAh: dist.Round(l.chargeAh, 6), LinesWithMass: l.withMass, LinesFlaggedByMass: l.flagged,
 		LinesByMassOnly: l.massOnly, MassOnlyKg: dist.Round(l.massOnlyKg, 6)}
@@ -150,7 +152,7 @@ func (l *Lot) report(s *Samples, opt EstimateOptions) *Report {
 }
 
 // lotWarnings are the warnings about the lot as a whole.
-func (l *Lot) lotWarnings(r *Report) []string {
+func (l *Lot) lotWarnings(r *Result) []string {
 	var w []string
 	if l.flagged > maxLineWarnings {
 		w = append(w, fmt.Sprintf("… and %d more lines whose measured mass disagrees with the nameplate (see lines_flagged_by_mass)", l.flagged-maxLineWarnings))

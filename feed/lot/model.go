@@ -1,4 +1,4 @@
-package feed
+package lot
 
 import (
 	"fmt"
@@ -8,6 +8,7 @@ import (
 	"blackmass/cathode"
 	"blackmass/data"
 	"blackmass/feed/dist"
+	"blackmass/feed/manifest"
 )
 
 // maxInactiveShare bounds the sum of a format's largest cell-mass fractions (binder and carbon,
@@ -75,7 +76,7 @@ func LoadModel(fsys fs.FS) (*Model, error) {
 			return nil, fmt.Errorf("model.csv: missing parameter all/%s", n)
 		}
 	}
-	for _, f := range Formats() {
+	for _, f := range manifest.Formats() {
 		sum := 0.0
 		for _, n := range formatFractionNames {
 			p := m.params[f.String()+"/"+n]
@@ -153,11 +154,11 @@ type paramSet struct {
 	m       *Model
 	d       *dist.Drawer
 	globals []globals
-	formats map[Format][]design
+	formats map[manifest.Format][]design
 }
 
 func newParamSet(m *Model, seed uint64, samples int) *paramSet {
-	ps := &paramSet{m: m, d: dist.NewDrawer(seed, samples), formats: map[Format][]design{}}
+	ps := &paramSet{m: m, d: dist.NewDrawer(seed, samples), formats: map[manifest.Format][]design{}}
 	n := max(samples, 1)
 	g := make([][]float64, len(globalNames))
 	for i, name := range globalNames {
@@ -167,7 +168,7 @@ func newParamSet(m *Model, seed uint64, samples int) *paramSet {
 	for s := range n {
 		ps.globals[s] = globals{g[0][s], g[1][s], g[2][s], g[3][s], g[4][s], g[5][s], g[6][s], g[7][s], g[8][s], g[9][s], g[10][s], g[11][s], g[12][s], g[13][s], g[14][s]}
 	}
-	for _, f := range Formats() {
+	for _, f := range manifest.Formats() {
 		sc := f.String()
 		areal, al, cu, el := ps.values(sc, "areal_capacity"), ps.values(sc, "al_foil_thickness"), ps.values(sc, "cu_foil_thickness"), ps.values(sc, "electrolyte_per_ah")
 		bc, sep := ps.values(sc, "binder_carbon"), ps.values(sc, "separator")

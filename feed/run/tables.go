@@ -1,23 +1,22 @@
-package feed
+package run
 
 import (
 	"io/fs"
-	"sync"
 
 	"blackmass/cathode"
 	"blackmass/data"
 	"blackmass/feed/leach"
+	"blackmass/feed/lot"
 )
 
 // Tables are every reference table an estimate uses, loaded together from one fs.FS: the
 // chemistry catalogue (with the priors and family labels), the cell and black-mass model, and the
 // leach planner's tables. DefaultTables are the embedded ones; a test or a bench with its own data
-// loads its own with LoadTables and passes them in (NewLot takes the model, EstimateOptions the
-// leach tables). The atomic weights are the CIAAW standard and stay the package's own
+// loads its own with LoadTables and passes them in. The atomic weights are the CIAAW standard and stay the package's own
 // (cathode.DefaultElements).
 type Tables struct {
 	Catalogue *cathode.Catalogue
-	Model     *Model
+	Model     *lot.Model
 	Leach     *leach.Tables
 }
 
@@ -27,7 +26,7 @@ func LoadTables(fsys fs.FS) (*Tables, error) {
 	if err != nil {
 		return nil, err
 	}
-	m, err := LoadModel(fsys)
+	m, err := lot.LoadModel(fsys)
 	if err != nil {
 		return nil, err
 	}
@@ -38,8 +37,6 @@ func LoadTables(fsys fs.FS) (*Tables, error) {
 	return &Tables{Catalogue: cat, Model: m, Leach: lt}, nil
 }
 
-var defaultTables = sync.OnceValues(func() (*Tables, error) { return LoadTables(data.FS) })
-
-// DefaultTables returns the embedded tables (read once; the catalogue is shared, so extend a
-// copy: cathode.DefaultCatalogue).
-func DefaultTables() (*Tables, error) { return defaultTables() }
+// DefaultTables reads the embedded tables. It reads them afresh at each call: a command calls it
+// once at the top and passes the tables down.
+func DefaultTables() (*Tables, error) { return LoadTables(data.FS) }

@@ -1,4 +1,6 @@
-package main
+// Package text renders a report for the terminal: a summary a bench acts on first, then the
+// detail. It formats; it computes nothing.
+package text
 
 import (
 	"fmt"
@@ -10,14 +12,16 @@ import (
 	"text/tabwriter"
 
 	"blackmass/cathode"
-	"blackmass/feed"
 	"blackmass/feed/intake"
+	"blackmass/feed/lot"
+	"blackmass/feed/report"
+	"blackmass/feed/value"
 )
 
-// writeReportText prints a report for the terminal: a short summary first (the lot, its black
+// Write prints a report for the terminal: a short summary first (the lot, its black
 // mass and key metals, the reagents, the value, and every warning), then, unless quiet, the
 // detail. command names the command that made it. It formats; it computes nothing.
-func writeReportText(w io.Writer, r *feed.Report, command string, quiet bool) {
+func Write(w io.Writer, r *report.Report, command string, quiet bool) {
 	writeSummaryText(w, r, command)
 	if quiet {
 		fmt.Fprintln(w, "\nsafety: "+r.Safety[len(r.Safety)-1])
@@ -33,10 +37,10 @@ func writeReportText(w io.Writer, r *feed.Report, command string, quiet bool) {
 	u, f := massUnit(r.BlackMassKg.P50)
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
 	fmt.Fprintf(tw, "element\tP10 %s\tP50 %s\tP90 %s\tP10 wt%%\tP50 wt%%\tP90 wt%%\t\n", u, u, u)
-	fmt.Fprintf(tw, "black mass\t%s\t%s\t%s\t\t\t\t\n", num(f*r.BlackMassKg.P10), num(f*r.BlackMassKg.P50), num(f*r.BlackMassKg.P90))
+	fmt.Fprintf(tw, "black mass\t%s\t%s\t%s\t\t\t\t\n", Num(f*r.BlackMassKg.P10), Num(f*r.BlackMassKg.P50), Num(f*r.BlackMassKg.P90))
 	for _, sym := range r.ElementOrder {
 		a := r.Elements[sym]
-		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%.2f\t%.2f\t%.2f\t\n", sym, num(f*a.Kg.P10), num(f*a.Kg.P50), num(f*a.Kg.P90), a.WtPct.P10, a.WtPct.P50, a.WtPct.P90)
+		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%.2f\t%.2f\t%.2f\t\n", sym, Num(f*a.Kg.P10), Num(f*a.Kg.P50), Num(f*a.Kg.P90), a.WtPct.P10, a.WtPct.P50, a.WtPct.P90)
 	}
 	tw.Flush()
 	fmt.Fprintln(w)
@@ -51,7 +55,7 @@ func writeReportText(w io.Writer, r *feed.Report, command string, quiet bool) {
 
 // writeOrderText prints the order sheet: each reagent for the lot and per tonne of black mass,
 // in the containers named, with its price or the lack of one.
-func writeOrderText(w io.Writer, o *feed.OrderSheet) {
+func writeOrderText(w io.Writer, o *value.OrderSheet) {
 	if o == nil || len(o.Lines) == 0 {
 		return
 	}
@@ -63,7 +67,7 @@ func writeOrderText(w io.Writer, o *feed.OrderSheet) {
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
 	fmt.Fprintln(tw, "  reagent\tfor the lot P50 / P90\tper t black mass\tcontainers (P90)\tcost P90")
 	for _, l := range o.Lines {
-		amount := fmtMass(l.Kg.P50) + " / " + fmtMass(l.Kg.P90)
+		amount := FmtMass(l.Kg.P50) + " / " + FmtMass(l.Kg.P90)
 		if l.Litres != nil {
 			amount += " (" + fmtVolume(l.Litres.P50) + " / " + fmtVolume(l.Litres.P90) + ")"
 		}
@@ -73,9 +77,9 @@ func writeOrderText(w io.Writer, o *feed.OrderSheet) {
 		}
 		cost := "no price given"
 		if l.CostP90 != nil {
-			cost = money(*l.CostP90) + " " + cur
+			cost = Money(*l.CostP90) + " " + cur
 		}
-		fmt.Fprintf(tw, "  %s\t%s\t%s\t%s\t%s\n", l.Reagent, amount, fmtMass(l.KgPerTonneBM), strings.Join(cs, " or "), cost)
+		fmt.Fprintf(tw, "  %s\t%s\t%s\t%s\t%s\n", l.Reagent, amount, FmtMass(l.KgPerTonneBM), strings.Join(cs, " or "), cost)
 	}
 	tw.Flush()
 	if len(o.Unpriced) > 0 {
@@ -87,7 +91,7 @@ func writeOrderText(w io.Writer, o *feed.OrderSheet) {
 var keyMetalsShown = []string{"Co", "Ni", "Li", "Mn"}
 
 // writeSummaryText prints the summary: what a bench decides on.
-func writeSummaryText(w io.Writer, r *feed.Report, command string) {
+func writeSummaryText(w io.Writer, r *report.Report, command string) {
 	in := r.Inputs
 	title := "blackmass " + command
 	if in.LotID != "" {
@@ -105,21 +109,21 @@ func writeSummaryText(w io.Writer, r *feed.Report, command string) {
 	if r.Lot.Lines > 0 {
 		fmt.Fprintf(w, "lot: %d lines, %d items, %d cells, %s nameplate", r.Lot.Lines, r.Lot.Items, r.Lot.Cells, fmtEnergy(r.Lot.NameplateKWh))
 		if r.Lot.ChargeOnlyAh > 0 {
-			fmt.Fprintf(w, " + %s Ah given without voltage", num(r.Lot.ChargeOnlyAh))
+			fmt.Fprintf(w, " + %s Ah given without voltage", Num(r.Lot.ChargeOnlyAh))
 		}
 		if r.Lot.MassOnlyKg > 0 {
-			fmt.Fprintf(w, " + %s known by weight only", fmtMass(r.Lot.MassOnlyKg))
+			fmt.Fprintf(w, " + %s known by weight only", FmtMass(r.Lot.MassOnlyKg))
 		}
 		fmt.Fprintln(w)
 	} else {
 		fmt.Fprintln(w, "black mass weighed, composition from a lab assay")
 	}
 	b := r.BlackMassKg
-	fmt.Fprintf(w, "black mass: %s (P10–P90 %s–%s)\n", fmtMass(b.P50), fmtMass(b.P10), fmtMass(b.P90))
+	fmt.Fprintf(w, "black mass: %s (P10–P90 %s–%s)\n", FmtMass(b.P50), FmtMass(b.P10), FmtMass(b.P90))
 	var metals []string
 	for _, el := range keyMetalsShown {
 		if a, ok := r.Elements[el]; ok && a.Kg.P90 > 0 {
-			metals = append(metals, fmt.Sprintf("%s %s (%s–%s, %.1f wt%%)", el, fmtMass(a.Kg.P50), num(a.Kg.P10*unitFactor(a.Kg.P50)), num(a.Kg.P90*unitFactor(a.Kg.P50)), a.WtPct.P50))
+			metals = append(metals, fmt.Sprintf("%s %s (%s–%s, %.1f wt%%)", el, FmtMass(a.Kg.P50), Num(a.Kg.P10*unitFactor(a.Kg.P50)), Num(a.Kg.P90*unitFactor(a.Kg.P50)), a.WtPct.P50))
 		}
 	}
 	if len(metals) > 0 {
@@ -128,7 +132,7 @@ func writeSummaryText(w io.Writer, r *feed.Report, command string) {
 	if l := r.Leach; l != nil {
 		var parts []string
 		for _, g := range l.Reagents {
-			p := g.Name + " " + fmtMass(g.Kg.P50)
+			p := g.Name + " " + FmtMass(g.Kg.P50)
 			if g.DensityGmL > 0 {
 				p += " (" + fmtVolume(g.Litres.P50) + ")"
 			}
@@ -138,7 +142,7 @@ func writeSummaryText(w io.Writer, r *feed.Report, command string) {
 		fmt.Fprintf(w, "leach (%s): %s\n", l.Route, strings.Join(parts, ", "))
 	}
 	if v := r.Value; v != nil {
-		fmt.Fprintf(w, "value: payable %s %s (P10–P90 %s–%s), prices from %s\n", money(v.Payable.P50), v.Currency, money(v.Payable.P10), money(v.Payable.P90), intake.Printable(v.PricesFile, 100))
+		fmt.Fprintf(w, "value: payable %s %s (P10–P90 %s–%s), prices from %s\n", Money(v.Payable.P50), v.Currency, Money(v.Payable.P10), Money(v.Payable.P90), intake.Printable(v.PricesFile, 100))
 	}
 	var warn []string
 	warn = append(warn, r.Warnings...)
@@ -159,16 +163,16 @@ func unitFactor(kg float64) float64 {
 	return f
 }
 
-func writeGroupsText(w io.Writer, r *feed.Report) {
+func writeGroupsText(w io.Writer, r *report.Report) {
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
 	fmt.Fprintln(tw, "chemistry\tformat\tlines\titems\tnameplate\tblack mass P50 kg")
 	for _, g := range r.Groups {
 		plate := fmt.Sprintf("%.2f kWh", g.NameplateKWh)
 		if g.MassOnlyKg > 0 {
 			if g.NameplateKWh > 0 {
-				plate += fmt.Sprintf(" + %s kg by weight", num(g.MassOnlyKg))
+				plate += fmt.Sprintf(" + %s kg by weight", Num(g.MassOnlyKg))
 			} else {
-				plate = fmt.Sprintf("%s kg by weight", num(g.MassOnlyKg))
+				plate = fmt.Sprintf("%s kg by weight", Num(g.MassOnlyKg))
 			}
 		}
 		if g.ChargeOnlyAh > 0 {
@@ -178,7 +182,7 @@ func writeGroupsText(w io.Writer, r *feed.Report) {
 				plate = fmt.Sprintf("%.0f Ah", g.ChargeOnlyAh)
 			}
 		}
-		fmt.Fprintf(tw, "%s\t%s\t%d\t%d\t%s\t%s\n", g.Chemistry, g.Format, g.Lines, g.Items, plate, num(g.BlackMassKg.P50))
+		fmt.Fprintf(tw, "%s\t%s\t%d\t%d\t%s\t%s\n", g.Chemistry, g.Format, g.Lines, g.Items, plate, Num(g.BlackMassKg.P50))
 	}
 	tw.Flush()
 	writeLabelsText(w, r.Labels)
@@ -186,8 +190,8 @@ func writeGroupsText(w io.Writer, r *feed.Report) {
 
 // writeLabelsText lists the labels that were not read as one catalogued chemistry: what each
 // became, on how many lines, and its share of the energy.
-func writeLabelsText(w io.Writer, labels []feed.LabelResolution) {
-	var show []feed.LabelResolution
+func writeLabelsText(w io.Writer, labels []lot.LabelResolution) {
+	var show []lot.LabelResolution
 	for _, lb := range labels {
 		if lb.Kind != string(cathode.KindCatalogued) || lb.Label != lb.ResolvedAs {
 			show = append(show, lb)
@@ -210,7 +214,7 @@ func writeLabelsText(w io.Writer, labels []feed.LabelResolution) {
 }
 
 // writeValueText prints the lot's value, or says there is none without prices.
-func writeValueText(w io.Writer, r *feed.Report) {
+func writeValueText(w io.Writer, r *report.Report) {
 	v := r.Value
 	if v == nil {
 		if r.Lot.Lines > 0 {
@@ -223,29 +227,29 @@ func writeValueText(w io.Writer, r *feed.Report) {
 	fmt.Fprintf(tw, "item\tpriced kg P50\tprice/kg\tpayable\tcontained P50\tpayable P10\tpayable P50\tpayable P90\t\n")
 	for _, e := range v.Elements {
 		item := e.Element
-		if e.Basis == feed.BasisLCE {
+		if e.Basis == value.BasisLCE {
 			item += " as LCE"
 		}
-		fmt.Fprintf(tw, "%s\t%s\t%.2f\t%.0f %%\t%s\t%s\t%s\t%s\t\n", item, num(e.ProductKg.P50), e.PricePerKg, 100*e.Payable,
-			money(e.Contained.P50), money(e.PayableVal.P10), money(e.PayableVal.P50), money(e.PayableVal.P90))
+		fmt.Fprintf(tw, "%s\t%s\t%.2f\t%.0f %%\t%s\t%s\t%s\t%s\t\n", item, Num(e.ProductKg.P50), e.PricePerKg, 100*e.Payable,
+			Money(e.Contained.P50), Money(e.PayableVal.P10), Money(e.PayableVal.P50), Money(e.PayableVal.P90))
 	}
-	fmt.Fprintf(tw, "lot\t\t\t\t%s\t%s\t%s\t%s\t\n", money(v.Contained.P50), money(v.Payable.P10), money(v.Payable.P50), money(v.Payable.P90))
+	fmt.Fprintf(tw, "lot\t\t\t\t%s\t%s\t%s\t%s\t\n", Money(v.Contained.P50), Money(v.Payable.P10), Money(v.Payable.P50), Money(v.Payable.P90))
 	tw.Flush()
-	fmt.Fprintf(w, "payable per tonne of black mass: %s (P50)", money(v.PayablePerTonneBM.P50))
+	fmt.Fprintf(w, "payable per tonne of black mass: %s (P50)", Money(v.PayablePerTonneBM.P50))
 	if v.PayablePerKWh != nil {
 		fmt.Fprintf(w, "; per kWh received: %.2f (P50)", v.PayablePerKWh.P50)
 	}
 	fmt.Fprintln(w)
 	if v.NetOfReagents != nil {
-		fmt.Fprintf(w, "reagents %s, payable net of reagents %s / %s / %s (P10/P50/P90)\n", money(v.ReagentCost.P50), money(v.NetOfReagents.P10), money(v.NetOfReagents.P50), money(v.NetOfReagents.P90))
+		fmt.Fprintf(w, "reagents %s, payable net of reagents %s / %s / %s (P10/P50/P90)\n", Money(v.ReagentCost.P50), Money(v.NetOfReagents.P10), Money(v.NetOfReagents.P50), Money(v.NetOfReagents.P90))
 	}
 	for _, n := range v.Notes {
 		fmt.Fprintln(w, "  - "+n)
 	}
 }
 
-// money prints an amount of money to the unit (cents for small amounts).
-func money(x float64) string {
+// Money prints an amount of money to the unit (cents for small amounts).
+func Money(x float64) string {
 	if math.Abs(x) < 100 {
 		return fmt.Sprintf("%.2f", x)
 	}
@@ -256,13 +260,13 @@ func money(x float64) string {
 // shortened so that it cannot drive the terminal or flood it.
 const maxPrintedRunes = 600
 
-func writeTail(w io.Writer, r *feed.Report) {
+func writeTail(w io.Writer, r *report.Report) {
 	if r.Reconciliation != nil {
 		writeReconcileText(w, r.Reconciliation)
 	}
 	if r.Mix != nil {
 		fmt.Fprintln(w)
-		writeMixText(w, r.Mix)
+		WriteMix(w, r.Mix)
 	}
 	fmt.Fprintln(w, "\nsafety:")
 	for _, s := range r.Safety {
@@ -270,7 +274,7 @@ func writeTail(w io.Writer, r *feed.Report) {
 	}
 }
 
-func writeLeachText(w io.Writer, r *feed.Report) {
+func writeLeachText(w io.Writer, r *report.Report) {
 	l := r.Leach
 	if l == nil {
 		return
@@ -300,26 +304,26 @@ func writeLeachText(w io.Writer, r *feed.Report) {
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
 	fmt.Fprintln(tw, "reagent\tP10 kg\tP50 kg\tP90 kg\tP50 L\t× plan P50\t× full P10\t")
 	for _, g := range l.Reagents {
-		litres := num(g.Litres.P50)
+		litres := Num(g.Litres.P50)
 		if g.DensityGmL == 0 {
 			litres = "(solid/gas)"
 		}
-		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%s\t%.2f\t%.2f\t\n", g.Name, num(g.Kg.P10), num(g.Kg.P50), num(g.Kg.P90), litres, g.Ratio.P50, g.RatioFull.P10)
+		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%s\t%.2f\t%.2f\t\n", g.Name, Num(g.Kg.P10), Num(g.Kg.P50), Num(g.Kg.P90), litres, g.Ratio.P50, g.RatioFull.P10)
 	}
-	fmt.Fprintf(tw, "make-up water\t\t\t\t%s\t\t\t\n", num(l.WaterL.P50))
+	fmt.Fprintf(tw, "make-up water\t\t\t\t%s\t\t\t\n", Num(l.WaterL.P50))
 	tw.Flush()
 	for _, lim := range l.Limiting {
 		fmt.Fprintf(w, "limited by %s in %.0f %% of samples (reaches %.0f %% of the plan, P50)\n", lim.Reagent, 100*lim.SampleShare, 100*lim.ReachedShare.P50)
 	}
 	if sc := l.Scrubber; sc != nil {
-		fmt.Fprintf(w, "chlorine scrubber: %s kg %s (%s L, P50; %s)\n", num(sc.Kg.P50), sc.Reagent, num(sc.Litres.P50), sc.Reaction)
+		fmt.Fprintf(w, "chlorine scrubber: %s kg %s (%s L, P50; %s)\n", Num(sc.Kg.P50), sc.Reagent, Num(sc.Litres.P50), sc.Reaction)
 	}
 	if l.TotalCost != nil {
 		cur := l.Settings.Currency
 		if cur == "" {
 			cur = "(no currency given)"
 		}
-		fmt.Fprintf(w, "reagent cost P10/P50/P90: %s / %s / %s %s", money(l.TotalCost.P10), money(l.TotalCost.P50), money(l.TotalCost.P90), cur)
+		fmt.Fprintf(w, "reagent cost P10/P50/P90: %s / %s / %s %s", Money(l.TotalCost.P10), Money(l.TotalCost.P50), Money(l.TotalCost.P90), cur)
 		if r.Order != nil && len(r.Order.Unpriced) > 0 {
 			fmt.Fprintf(w, " (without %s: no price given)", strings.Join(r.Order.Unpriced, ", "))
 		}
@@ -332,7 +336,7 @@ func writeLeachText(w io.Writer, r *feed.Report) {
 		if g.Mol.P90 <= 0 {
 			continue
 		}
-		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t\n", name, num(g.Mol.P50), fmtVolume(1000*g.M3STP.P50), fmtVolume(1000*g.M3STP.P90))
+		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t\n", name, Num(g.Mol.P50), fmtVolume(1000*g.M3STP.P50), fmtVolume(1000*g.M3STP.P90))
 	}
 	tw.Flush()
 	fmt.Fprintf(w, "liquor: %s (P50), free acid %.2f mol/L (P50), %s %.2f mol/L\n", fmtVolume(l.Liquor.VolumeL.P50), l.FreeAcidMolPerL.P50, l.Liquor.Anion, l.Liquor.AnionMolPerL.P50)
@@ -348,7 +352,7 @@ func writeLeachText(w io.Writer, r *feed.Report) {
 		if e, ok := l.Liquor.ExtractionReached[sym]; ok {
 			x = fmt.Sprintf("%.1f %%", 100*e.P50)
 		}
-		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%.4f\t%s\t\n", sym, num(c.GPerL.P10), num(c.GPerL.P50), num(c.GPerL.P90), c.MolPerL.P50, x)
+		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%.4f\t%s\t\n", sym, Num(c.GPerL.P10), Num(c.GPerL.P50), Num(c.GPerL.P90), c.MolPerL.P50, x)
 	}
 	tw.Flush()
 	var sat []string

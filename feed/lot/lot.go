@@ -1,4 +1,4 @@
-package feed
+package lot
 
 import (
 	"fmt"
@@ -7,6 +7,7 @@ import (
 
 	"blackmass/cathode"
 	"blackmass/feed/dist"
+	"blackmass/feed/manifest"
 )
 
 // LineResult is one manifest line with its parsed values and its most likely masses: every
@@ -43,13 +44,13 @@ type LineResult struct {
 
 type groupKey struct {
 	chem   string
-	format Format
+	format manifest.Format
 }
 
 // ptrKey finds a group from the parser's resolved chemistry without hashing its name.
 type ptrKey struct {
 	chem   *cathode.Chemistry
-	format Format
+	format manifest.Format
 }
 
 // maxLineWarnings caps the per-line mass warnings; the count of flagged lines is always exact.
@@ -59,7 +60,7 @@ const maxLineWarnings = 50
 // groups × samples.
 type group struct {
 	chem        *cathode.Chemistry
-	format      Format
+	format      manifest.Format
 	energyWh    float64 // Σ count·energy per item
 	chargeAh    float64 // Σ count·charge per item (lines given in Ah with no voltage)
 	massOnlyKg  float64 // Σ count·mass of lines known by weight only
@@ -128,7 +129,7 @@ func (l *Lot) warnOnce(key, msg string) {
 
 // group returns the group of (chemistry, format), creating it on first use. Labels spelled
 // differently that resolve to the same chemistry share a group.
-func (l *Lot) group(ch *cathode.Chemistry, f Format) *group {
+func (l *Lot) group(ch *cathode.Chemistry, f manifest.Format) *group {
 	pk := ptrKey{ch, f}
 	// A lot holds a few (chemistry, format) pairs: comparing pointers with the recent ones is
 	// cheaper than hashing.
@@ -183,7 +184,7 @@ const MaxGroups = 1000
 
 // Add takes one manifest line. Its cost does not depend on the number of samples, and without
 // per-line detail it keeps nothing of the line but sums.
-func (l *Lot) Add(ln Line) error {
+func (l *Lot) Add(ln manifest.Line) error {
 	ch := ln.Chemistry
 	if len(l.order) >= MaxGroups {
 		if _, ok := l.byPtr[ptrKey{ch, ln.Format}]; !ok {
@@ -279,7 +280,7 @@ func (l *Lot) Add(ln Line) error {
 const maxLabels = 500
 
 // countLabel adds a line of group g to its label's count.
-func (l *Lot) countLabel(g *group, ln Line, energyWh float64) {
+func (l *Lot) countLabel(g *group, ln manifest.Line, energyWh float64) {
 	st := g.lastStat
 	if st == nil || g.lastLabel != ln.ChemistryLabel {
 		st = l.labelStat(ln)
@@ -295,7 +296,7 @@ func (l *Lot) countLabel(g *group, ln Line, energyWh float64) {
 
 // labelStat returns the count of a line's label, adding it (or the catch-all of further labels)
 // the first time.
-func (l *Lot) labelStat(ln Line) *labelStat {
+func (l *Lot) labelStat(ln manifest.Line) *labelStat {
 	st := l.labels[ln.ChemistryLabel]
 	if st == nil {
 		if len(l.labelList) >= maxLabels {
@@ -327,7 +328,7 @@ func (l *Lot) Labels() []LabelResolution {
 	return out
 }
 
-func idOr(ln Line) string {
+func idOr(ln manifest.Line) string {
 	if ln.ID != "" {
 		return ln.ID
 	}
@@ -341,7 +342,7 @@ func (l *Lot) modeMix(ch *cathode.Chemistry) mix {
 
 // band returns the plausible Wh/kg band of an item: the chemistry's cell band (the envelope of
 // its components), lowered by the pack or module overhead for assemblies.
-func (l *Lot) band(ch *cathode.Chemistry, f Format) (lo, hi float64) {
+func (l *Lot) band(ch *cathode.Chemistry, f manifest.Format) (lo, hi float64) {
 	lo, hi = math.Inf(1), 0
 	for _, c := range ch.Components {
 		lo = math.Min(lo, c.Entry.SpecificEnergyWhPerKg.Min)
@@ -357,7 +358,7 @@ func (l *Lot) band(ch *cathode.Chemistry, f Format) (lo, hi float64) {
 
 // modeWhPerKg is an item's most likely specific energy: the components' band modes weighted by
 // their mean shares, lowered by the most likely assembly overhead.
-func (l *Lot) modeWhPerKg(ch *cathode.Chemistry, f Format) float64 {
+func (l *Lot) modeWhPerKg(ch *cathode.Chemistry, f manifest.Format) float64 {
 	w := 0.0
 	for _, c := range ch.Components {
 		w += c.MassFraction * c.Entry.SpecificEnergyWhPerKg.Mode

@@ -1,4 +1,6 @@
-package feed
+// Package value prices a lot: its metals at the buyer's prices and payables, net of the leach
+// reagents, and the order sheet of what to buy for the leach in the containers a bench uses.
+package value
 
 import (
 	"fmt"
@@ -71,10 +73,10 @@ type Value struct {
 // value lists those without a price, and the register's listings show them.
 var PayableMetals = []string{"Co", "Ni", "Li", "Mn", "Cu", "Al"}
 
-// valueOf prices the draws: elementKg[e][i] kg of elements[e] and blackMassKg[i] in sample i.
+// Of prices the draws: elementKg[e][i] kg of elements[e] and blackMassKg[i] in sample i.
 // reagentCost is the leach's cost per sample (nil: not priced); energyKWh the lot's energy
 // received (0: unknown, as for a quote from an assay).
-func valueOf(elements []string, elementKg [][]float64, blackMassKg []float64, pl *PriceList, reagentCost []float64, energyKWh float64) *Value {
+func Of(elements []string, elementKg [][]float64, blackMassKg []float64, pl *PriceList, reagentCost []float64, energyKWh float64) *Value {
 	n := len(blackMassKg)
 	v := &Value{Currency: pl.Currency, PricesFile: pl.File}
 	contained, payable := make([]float64, n), make([]float64, n)

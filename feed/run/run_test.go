@@ -1,4 +1,4 @@
-package feed_test
+package run_test
 
 import (
 	"bytes"
@@ -17,42 +17,62 @@ import (
 	"blackmass/cathode"
 	"blackmass/cathode/cathodetest"
 	"blackmass/data/datatest"
-	"blackmass/feed"
 	"blackmass/feed/assay"
 	"blackmass/feed/dist"
 	"blackmass/feed/intake"
 	"blackmass/feed/leach"
+	"blackmass/feed/lot"
+	"blackmass/feed/manifest"
+	"blackmass/feed/report"
+	"blackmass/feed/run"
+	"blackmass/feed/value"
 )
 
 // readCSV reads a CSV manifest into fn, dropping the reading's Info.
-func readCSV(r io.Reader, name string, opt intake.Options, fn func(feed.Line) error) error {
+func readCSV(r io.Reader, name string, opt intake.Options, fn func(manifest.Line) error) error {
 	_, err := intake.ReadCSV(r, name, opt, fn)
 	return err
 }
 
 // embedded returns the embedded catalogue and model.
-func embedded(t testing.TB) (*cathode.Catalogue, *feed.Model) {
+func embedded(t testing.TB) (*cathode.Catalogue, *lot.Model) {
 	t.Helper()
 	cat := cathodetest.Catalogue(t)
-	m, err := feed.DefaultModel()
+	m, err := lot.DefaultModel()
 	if err != nil {
 		t.Fatal(err)
 	}
 	return cat, m
 }
 
-func estimate(t testing.TB, manifest string, seed uint64, samples int) (*feed.Report, *feed.Samples) {
+func estimate(t testing.TB, manifest string, seed uint64, samples int) (*lot.Result, *lot.Samples) {
 	t.Helper()
 	cat, m := embedded(t)
-	lot := feed.NewLot(m, true)
-	if err := readCSV(strings.NewReader(manifest), "test.csv", intake.Options{Catalogue: cat}, lot.Add); err != nil {
+	l := lot.NewLot(m, true)
+	if err := readCSV(strings.NewReader(manifest), "test.csv", intake.Options{Catalogue: cat}, l.Add); err != nil {
 		t.Fatal(err)
 	}
-	r, s, err := lot.Estimate(feed.EstimateOptions{Seed: seed, Samples: samples})
+	r, s, err := l.Estimate(seed, samples)
 	if err != nil {
 		t.Fatal(err)
 	}
 	return r, s
+}
+
+// runOn runs the whole chain on a CSV manifest with the tables given (nil: the embedded ones).
+func runOn(t testing.TB, tb *run.Tables, manifest string, o run.Options) *report.Report {
+	t.Helper()
+	if tb == nil {
+		var err error
+		if tb, err = run.DefaultTables(); err != nil {
+			t.Fatal(err)
+		}
+	}
+	r, err := run.Estimate(tb, o, run.Manifest{Name: "t.csv", R: strings.NewReader(manifest)})
+	if err != nil {
+		t.Fatal(err)
+	}
+	return r
 }
 
 const mixed = `id,chemistry,format,capacity,cells_per_pack,count,mass
@@ -139,7 +159,7 @@ func TestPercentilesOrdered(t *testing.T) {
 }
 
 func TestSeedReproducible(t *testing.T) {
-	enc := func(r *feed.Report) []byte {
+	enc := func(r *lot.Result) []byte {
 		b, err := json.Marshal(r)
 		if err != nil {
 			t.Fatal(err)
@@ -216,11 +236,11 @@ func BenchmarkEstimate1M(b *testing.B) {
 		csvNs += time.Since(t0).Nanoseconds()
 		runtime.GC()
 		t1 := time.Now()
-		lot := feed.NewLot(m, false)
-		if err := readCSV(bytes.NewReader(in), "gen.csv", intake.Options{Catalogue: cat}, lot.Add); err != nil {
+		l := lot.NewLot(m, false)
+		if err := readCSV(bytes.NewReader(in), "gen.csv", intake.Options{Catalogue: cat}, l.Add); err != nil {
 			b.Fatal(err)
 		}
-		if _, _, err := lot.Estimate(feed.EstimateOptions{Seed: 1, Samples: 1000}); err != nil {
+		if _, _, err := l.Estimate(1, 1000); err != nil {
 			b.Fatal(err)
 		}
 		estimateNs += time.Since(t1).Nanoseconds()
@@ -300,21 +320,12 @@ func TestLeachChargeBalanceAndScaling(t *testing.T) {
 
 func leachLot(t *testing.T, route cathode.Route, pulp float64) *leach.Report {
 	t.Helper()
-	cat, m := embedded(t)
-	lot := feed.NewLot(m, false)
-	if err := readCSV(strings.NewReader(mixed), "t.csv", intake.Options{Catalogue: cat}, lot.Add); err != nil {
-		t.Fatal(err)
-	}
 	o := leach.DefaultOptions()
 	o.Route, o.PulpDensityGPerL = route, pulp
 	if route == cathode.Hydrochloric {
 		o.AcidWtPct = 32
 	}
-	r, _, err := lot.Estimate(feed.EstimateOptions{Seed: 1, Samples: 300, Leach: &o})
-	if err != nil {
-		t.Fatal(err)
-	}
-	return r.Leach
+	return runOn(t, nil, mixed, run.Options{Seed: 1, Samples: 300, Leach: &o}).Leach
 }
 
 func nearly(t *testing.T, what string, got, want, tol float64) {
@@ -327,7 +338,7 @@ func nearly(t *testing.T, what string, got, want, tol float64) {
 // The lithium carbonate equivalent of 1 kg Li is M(Li2CO3)/(2·M(Li)) = 5.323 (the trade's LCE
 // conversion factor; computed from CIAAW 2021 atomic weights).
 func TestLCEFactor(t *testing.T) {
-	nearly(t, "LCE per kg Li", feed.LCEPerKgLi(), 5.323, 0.0005)
+	nearly(t, "LCE per kg Li", value.LCEPerKgLi(), 5.323, 0.0005)
 }
 
 // Value: every element priced from the same draws, the lot's payable value is the sum of the
@@ -338,22 +349,13 @@ func TestLotValue(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	cat, m := embedded(t)
-	run := func(prices *feed.PriceList) *feed.Report {
-		lot := feed.NewLot(m, false)
-		if err := readCSV(strings.NewReader(mixed), "t.csv", intake.Options{Catalogue: cat}, lot.Add); err != nil {
-			t.Fatal(err)
-		}
-		r, _, err := lot.Estimate(feed.EstimateOptions{Seed: 2, Samples: 500, Prices: prices})
-		if err != nil {
-			t.Fatal(err)
-		}
-		return r
+	with := func(prices *value.PriceList) *report.Report {
+		return runOn(t, nil, mixed, run.Options{Seed: 2, Samples: 500, Prices: prices})
 	}
-	if r := run(nil); r.Value != nil {
+	if r := with(nil); r.Value != nil {
 		t.Errorf("value without prices: %+v", r.Value)
 	}
-	r := run(pl)
+	r := with(pl)
 	v := r.Value
 	if v == nil || v.Currency != "EUR" || len(v.Elements) != 3 {
 		t.Fatalf("value %+v", v)
@@ -362,7 +364,7 @@ func TestLotValue(t *testing.T) {
 	for _, e := range v.Elements {
 		sum += e.PayableVal.Mean
 		if e.Element == "Li" {
-			nearly(t, "Li priced kg", e.ProductKg.Mean, r.Elements["Li"].Kg.Mean*feed.LCEPerKgLi(), 1e-6*e.ProductKg.Mean)
+			nearly(t, "Li priced kg", e.ProductKg.Mean, r.Elements["Li"].Kg.Mean*value.LCEPerKgLi(), 1e-6*e.ProductKg.Mean)
 		}
 		if e.Element == "Co" {
 			nearly(t, "Co payable", e.PayableVal.Mean, r.Elements["Co"].Kg.Mean*20*0.7, 1e-6*e.PayableVal.Mean)
@@ -392,19 +394,12 @@ func TestOwnTables(t *testing.T) {
 	own := datatest.Edited(t, map[string]func(string) string{"extraction.csv": func(s string) string {
 		return regexp.MustCompile(`(?m)^sulfuric-peroxide,Co,[^\n]*$`).ReplaceAllString(s, "sulfuric-peroxide,Co,0.49,0.5,0.51,test table")
 	}})
-	tb, err := feed.LoadTables(own)
+	tb, err := run.LoadTables(own)
 	if err != nil {
-		t.Fatal(err)
-	}
-	lot := feed.NewLot(tb.Model, false)
-	if err := readCSV(strings.NewReader("chemistry,format,capacity,count\nLCO,pouch,11 Wh,100\n"), "t.csv", intake.Options{Catalogue: tb.Catalogue}, lot.Add); err != nil {
 		t.Fatal(err)
 	}
 	lo := leach.DefaultOptions()
-	r, _, err := lot.Estimate(feed.EstimateOptions{Seed: 1, Samples: 100, Leach: &lo, LeachTables: tb.Leach})
-	if err != nil {
-		t.Fatal(err)
-	}
+	r := runOn(t, tb, "chemistry,format,capacity,count\nLCO,pouch,11 Wh,100\n", run.Options{Seed: 1, Samples: 100, Leach: &lo})
 	if x := r.Leach.Liquor.ExtractionReached["Co"].P50; x > 0.52 {
 		t.Errorf("Co extraction %v with a table capping it at 0.51", x)
 	}
@@ -440,24 +435,33 @@ func TestQuoteValue(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	q, err := assay.QuoteFrom(a, assay.QuoteOptions{BlackMassKg: 100, Samples: 400, Seed: 3, Leach: leach.DefaultOptions()})
+	tb, err := run.DefaultTables()
 	if err != nil {
 		t.Fatal(err)
 	}
-	if r := feed.QuoteReport(q, feed.Inputs{}, nil); r.Value != nil {
+	lo := leach.DefaultOptions()
+	quote := func(prices *value.PriceList) *report.Report {
+		r, err := run.Quote(tb, run.Options{Seed: 3, Samples: 400, Leach: &lo, Prices: prices}, a, assay.QuoteOptions{BlackMassKg: 100})
+		if err != nil {
+			t.Fatal(err)
+		}
+		return r
+	}
+	if r := quote(nil); r.Value != nil {
 		t.Errorf("value without prices: %+v", r.Value)
 	}
-	v := feed.QuoteReport(q, feed.Inputs{}, pl).Value
+	qr := quote(pl)
+	v := qr.Value
 	if v == nil || len(v.Elements) != 2 {
 		t.Fatalf("value %+v", v)
 	}
 	for _, e := range v.Elements {
 		switch e.Element {
 		case "Co":
-			nearly(t, "Co payable (mean)", e.PayableVal.Mean, q.Elements["Co"].Kg.Mean*20*0.7, 1e-7*e.PayableVal.Mean) // summaries keep 9 significant digits
+			nearly(t, "Co payable (mean)", e.PayableVal.Mean, qr.Elements["Co"].Kg.Mean*20*0.7, 1e-7*e.PayableVal.Mean) // summaries keep 9 significant digits
 			nearly(t, "Co payable near 10 kg × 20 × 0.7", e.PayableVal.P50, 140, 3)
 		case "Li":
-			nearly(t, "Li as LCE (kg)", e.ProductKg.Mean, q.Elements["Li"].Kg.Mean*feed.LCEPerKgLi(), 1e-7*e.ProductKg.Mean)
+			nearly(t, "Li as LCE (kg)", e.ProductKg.Mean, qr.Elements["Li"].Kg.Mean*value.LCEPerKgLi(), 1e-7*e.ProductKg.Mean)
 		}
 	}
 	nearly(t, "payable per tonne of black mass", v.PayablePerTonneBM.Mean, v.Payable.Mean*10, 1e-6*v.Payable.Mean)

@@ -1,4 +1,4 @@
-package feed
+package manifest
 
 import "blackmass/cathode"
 

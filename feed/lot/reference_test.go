@@ -1,4 +1,4 @@
-package feed
+package lot
 
 // The reference set: published cell teardowns, cell-level metal intensities and black-mass
 // assays (testdata/reference, each row with its source) against the model's P10–P90. The test
@@ -18,9 +18,10 @@ import (
 	"blackmass/cathode/cathodetest"
 	"blackmass/data"
 	"blackmass/feed/dist"
+	"blackmass/feed/manifest"
 )
 
-const referenceDir = "../testdata/reference"
+const referenceDir = "testdata/reference"
 
 // referenceSamples is enough draws for stable P10/P90.
 const referenceSamples = 4000
@@ -46,15 +47,15 @@ func referenceFloat(t *testing.T, r data.Row, col string) float64 {
 	return v
 }
 
-func referenceFormat(t *testing.T, name string) Format {
+func referenceFormat(t *testing.T, name string) manifest.Format {
 	t.Helper()
-	for _, f := range Formats() {
+	for _, f := range manifest.Formats() {
 		if f.String() == name {
 			return f
 		}
 	}
 	t.Fatalf("unknown format %q", name)
-	return FormatInvalid
+	return manifest.FormatInvalid
 }
 
 // cellDraw is one Monte Carlo draw of a modelled item: its breakdown, the global parameters, the
@@ -68,7 +69,7 @@ type cellDraw struct {
 
 // cellDraws models one item of nameplate energyWh and/or chargeAh of the chemistry and format at
 // every draw.
-func cellDraws(t *testing.T, label string, f Format, energyWh, chargeAh float64) []cellDraw {
+func cellDraws(t *testing.T, label string, f manifest.Format, energyWh, chargeAh float64) []cellDraw {
 	t.Helper()
 	cat := cathodetest.Catalogue(t)
 	ch, err := cat.ParseLabel(label)
@@ -143,7 +144,7 @@ var designQuantities = map[string]struct {
 }
 
 // declaredRange is the (min, max) data/model.csv gives the design quantity name for format f.
-func declaredRange(t *testing.T, name string, f Format) (lo, hi float64) {
+func declaredRange(t *testing.T, name string, f manifest.Format) (lo, hi float64) {
 	t.Helper()
 	q, ok := designQuantities[name]
 	if !ok {
@@ -292,7 +293,7 @@ func TestReferenceBlackMass(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	reports := map[string]*Report{}
+	reports := map[string]*Result{}
 	cov := coverage{name: "black-mass assays"}
 	for _, r := range tab.Rows {
 		key := r.Str("chemistry") + "/" + r.Str("format")
@@ -304,10 +305,10 @@ func TestReferenceBlackMass(t *testing.T) {
 			}
 			lot := NewLot(m, false)
 			// Many items of a modest size: the assay is of a shredded stream, not of one cell.
-			if err := lot.Add(Line{Num: 1, ChemistryLabel: r.Str("chemistry"), Chemistry: &ch, Format: referenceFormat(t, r.Str("format")), EnergyWh: 100, Count: 1000}); err != nil {
+			if err := lot.Add(manifest.Line{Num: 1, ChemistryLabel: r.Str("chemistry"), Chemistry: &ch, Format: referenceFormat(t, r.Str("format")), EnergyWh: 100, Count: 1000}); err != nil {
 				t.Fatal(err)
 			}
-			if rep, _, err = lot.Estimate(EstimateOptions{Seed: 1, Samples: referenceSamples}); err != nil {
+			if rep, _, err = lot.Estimate(1, referenceSamples); err != nil {
 				t.Fatal(err)
 			}
 			reports[key] = rep

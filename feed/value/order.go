@@ -1,10 +1,11 @@
-package feed
+package value
 
 import (
 	"fmt"
 	"math"
 
 	"blackmass/feed/dist"
+	"blackmass/feed/leach"
 )
 
 // Container is a package a reagent is bought in: a capacity in litres or in kg.
@@ -45,14 +46,14 @@ type OrderSheet struct {
 	Unpriced []string    `json:"unpriced,omitempty"`
 }
 
-// Order builds the order sheet of a report's leach plan in the containers given.
-func Order(r *Report, containers []Container, currency string) *OrderSheet {
-	l := r.Leach
+// Order builds the order sheet of a leach plan in the containers given; blackMassKg is the
+// lot's black mass (P50), for the amounts per tonne.
+func Order(l *leach.Report, blackMassKg float64, containers []Container, currency string) *OrderSheet {
 	if l == nil {
 		return nil
 	}
 	os := &OrderSheet{Basis: "each reagent to its P90 amount (short in at most one outcome of ten)", Currency: currency}
-	bmT := r.BlackMassKg.P50 / 1000
+	bmT := blackMassKg / 1000
 	add := func(name string, kg dist.Stat, litres *dist.Stat, price float64) {
 		ol := OrderLine{Reagent: name, Kg: kg, Litres: litres, PricePerKg: price}
 		if bmT > 0 {

@@ -1,0 +1,55 @@
+// Package report holds the report of a run: the types every stage's result is gathered into,
+// which the renderers (text, JSON, workbook) and the register read. It computes nothing.
+package report
+
+import (
+	"blackmass/feed/assay"
+	"blackmass/feed/dist"
+	"blackmass/feed/leach"
+	"blackmass/feed/lot"
+	"blackmass/feed/value"
+)
+
+// Inputs records what produced a report, so it can be reproduced.
+type Inputs struct {
+	File           string `json:"file"`
+	SHA256         string `json:"sha256"`
+	Seed           uint64 `json:"seed"`
+	Samples        int    `json:"samples"`
+	Version        string `json:"program_version"`
+	LotID          string `json:"lot_id,omitempty"`
+	Supplier       string `json:"supplier,omitempty"`
+	UnknownAsPrior bool   `json:"unknown_labels_as_prior"`
+	// Sheet is the sheet read from an .xlsx manifest; Sheets lists the workbook's sheets.
+	Sheet          string   `json:"sheet,omitempty"`
+	Sheets         []string `json:"sheets,omitempty"`
+	HeaderLine     int      `json:"header_line,omitempty"`
+	IgnoredColumns []string `json:"ignored_columns,omitempty"`
+}
+
+// Report is everything an estimate produced. Renderers (text, JSON, workbook) read it and
+// compute nothing new.
+type Report struct {
+	Inputs      Inputs                 `json:"inputs"`
+	Lot         lot.LotSummary         `json:"lot"`
+	BlackMassKg dist.Stat              `json:"black_mass_kg"`
+	Elements    map[string]dist.Amount `json:"elements"`
+	Compounds   map[string]dist.Amount `json:"compounds"`
+	Groups      []lot.GroupResult      `json:"groups"`
+	Labels      []lot.LabelResolution  `json:"labels"`
+	Lines       []lot.LineResult       `json:"lines,omitempty"`
+	Leach       *leach.Report          `json:"leach,omitempty"`
+	// Value is the lot's worth at the prices given; nil when no prices were given.
+	Value *value.Value `json:"value,omitempty"`
+	// Order is what to order for the leach, in the containers named.
+	Order *value.OrderSheet `json:"order,omitempty"`
+	// Assay, Reconciliation and Mix are present when a lab assay was given.
+	Assay          *assay.Assay          `json:"assay,omitempty"`
+	Reconciliation *assay.Reconciliation `json:"reconciliation,omitempty"`
+	Mix            *assay.MixFit         `json:"mix_fit,omitempty"`
+	Parameters     []dist.Param          `json:"parameters"`
+	Warnings       []string              `json:"warnings"`
+	Safety         []string              `json:"safety"`
+	// ElementOrder lists the element symbols in display order (metals first).
+	ElementOrder []string `json:"element_order"`
+}
