@@ -8,7 +8,6 @@ import (
 	"math"
 	"sort"
 	"strings"
-	"sync"
 
 	"blackmass/data"
 )
@@ -282,22 +281,6 @@ func EditDistance(a, b string) int {
 	return prev[len(rb)]
 }
 
-var defaultCatalogue = sync.OnceValues(func() (*Catalogue, error) { return LoadCatalogue(data.FS) })
-
-// DefaultCatalogue returns a fresh copy of the embedded catalogue, safe to extend with Add.
-func DefaultCatalogue() (*Catalogue, error) {
-	c, err := defaultCatalogue()
-	if err != nil {
-		return nil, err
-	}
-	cp := &Catalogue{es: c.es, byName: map[string]*Entry{}, families: c.families, prior: map[string][]Component{}, priorSrc: c.priorSrc,
-		apps: c.apps, appOrder: c.appOrder, labelFamilies: c.labelFamilies, familyOrder: c.familyOrder}
-	for k, v := range c.prior {
-		cp.prior[k] = append([]Component(nil), v...)
-	}
-	cp.entries = c.Entries()
-	for k, v := range c.byName {
-		cp.byName[k] = v
-	}
-	return cp, nil
-}
+// DefaultCatalogue reads the embedded catalogue afresh, safe to extend with Add: a command reads
+// it once at the top and passes it down.
+func DefaultCatalogue() (*Catalogue, error) { return LoadCatalogue(data.FS) }

@@ -279,7 +279,7 @@ func runLotShow(w io.Writer, lo *lotOptions, id string) error {
 	fmt.Fprintf(w, "black mass %s kg (P50)\n", text.Num(d.BlackMassKg))
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
 	fmt.Fprintln(tw, "metal\testimate kg P50\tlatest assay wt%\t")
-	for _, el := range value.PayableMetals {
+	for _, el := range value.PayableMetals() {
 		a := "—"
 		if v, ok := d.AssayWtPct[el]; ok {
 			a = fmt.Sprintf("%.2f", v)
@@ -400,20 +400,20 @@ func newLotExportCmd(lo *lotOptions) *cobra.Command {
 // exportRows lays the lots out as rows: the header first.
 func exportRows(lots []register.Summary) [][]any {
 	head := []any{"lot", "version", "received", "supplier", "items", "nameplate kWh", "black mass kg (P50)", "weighed kg"}
-	for _, el := range value.PayableMetals {
+	for _, el := range value.PayableMetals() {
 		head = append(head, el+" kg (P50)")
 	}
-	for _, el := range value.PayableMetals {
+	for _, el := range value.PayableMetals() {
 		head = append(head, el+" assay wt%")
 	}
 	head = append(head, "assay lab", "assays", "currency", "payable value (P50)", "reagent cost (P50)", "chemistries")
 	rows := [][]any{head}
 	for _, l := range lots {
 		row := []any{l.ID, l.Version, l.Received, l.Supplier, l.Items, l.NameplateKWh, l.BlackMassKg, opt(l.WeighedKg > 0, l.WeighedKg)}
-		for _, el := range value.PayableMetals {
+		for _, el := range value.PayableMetals() {
 			row = append(row, l.MetalsKg[el])
 		}
-		for _, el := range value.PayableMetals {
+		for _, el := range value.PayableMetals() {
 			v, ok := l.AssayWtPct[el]
 			row = append(row, opt(ok, v))
 		}
@@ -545,7 +545,7 @@ func runLotTotals(w io.Writer, lo *lotOptions, month string) error {
 	}
 	tw.Flush()
 	fmt.Fprintln(w, "\nmetal in the yard (every lot in the register, P50 kg):")
-	for _, el := range value.PayableMetals {
+	for _, el := range value.PayableMetals() {
 		if kg, ok := t.InYardKg[el]; ok {
 			fmt.Fprintf(w, "  %s %s\n", el, text.Num(kg))
 		}
@@ -556,7 +556,7 @@ func runLotTotals(w io.Writer, lo *lotOptions, month string) error {
 	}
 	for _, s := range t.BySupplier {
 		var parts []string
-		for _, el := range value.PayableMetals {
+		for _, el := range value.PayableMetals() {
 			if d, ok := s.MeanDiffPct[el]; ok {
 				parts = append(parts, fmt.Sprintf("%s %+.2f", el, d))
 			}

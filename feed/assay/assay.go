@@ -1,6 +1,7 @@
 package assay
 
 import (
+	"errors"
 	"fmt"
 	"maps"
 	"math"
@@ -211,10 +212,7 @@ func QuoteFrom(a *Assay, opt QuoteOptions) (*Quote, error) {
 	}
 	lt := opt.Tables
 	if lt == nil {
-		var err error
-		if lt, err = leach.DefaultTables(); err != nil {
-			return nil, err
-		}
+		return nil, errors.New("a quote needs the leach tables")
 	}
 	sm, err := newSpeciesMapper(lt)
 	if err != nil {

@@ -3,7 +3,6 @@ package lot
 import (
 	"fmt"
 	"io/fs"
-	"sync"
 
 	"blackmass/cathode"
 	"blackmass/data"
@@ -114,10 +113,8 @@ func LoadModel(fsys fs.FS) (*Model, error) {
 	return m, nil
 }
 
-var defaultModel = sync.OnceValues(func() (*Model, error) { return LoadModel(data.FS) })
-
 // DefaultModel returns the model embedded in the program.
-func DefaultModel() (*Model, error) { return defaultModel() }
+func DefaultModel() (*Model, error) { return LoadModel(data.FS) }
 
 func (m *Model) get(scope, name string) *Param { return m.params[scope+"/"+name] }
 

@@ -37,7 +37,7 @@ func reportWith(tb testing.TB, lines int, lo leach.Options) *report.Report {
 	if err != nil {
 		tb.Fatal(err)
 	}
-	o := run.Options{Seed: 1, Samples: 200, Leach: &lo, KeepLines: true, Containers: value.DefaultContainers,
+	o := run.Options{Seed: 1, Samples: 200, Leach: &lo, KeepLines: true, Containers: value.DefaultContainers(),
 		Inputs: report.Inputs{LotID: "=cmd|' /C calc'!A0", Version: "test"}}
 	r, err := run.Estimate(tables, o, run.Manifest{Name: "gen.csv", R: strings.NewReader(b.String())})
 	if err != nil {

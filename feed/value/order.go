@@ -16,7 +16,10 @@ type Container struct {
 }
 
 // DefaultContainers are the packages benches commonly buy reagents in (common practice).
-var DefaultContainers = []Container{{Name: "25 L can", Litres: 25}, {Name: "200 L drum", Litres: 200}, {Name: "1000 L IBC", Litres: 1000}, {Name: "25 kg bag", Kg: 25}}
+func DefaultContainers() []Container {
+	return []Container{{Name: "25 L can", Litres: 25}, {Name: "200 L drum", Litres: 200}, {Name: "1000 L IBC", Litres: 1000},
+		{Name: "25 kg bag", Kg: 25}}
+}
 
 // OrderLine is one reagent to order: for the lot at P50 and P90, per tonne of black mass, and
 // in each container that suits its form (litre containers for liquids, kg packages for solids

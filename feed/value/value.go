@@ -71,7 +71,7 @@ type Value struct {
 
 // PayableMetals are the metals of black mass a buyer commonly pays for (common practice); a
 // value lists those without a price, and the register's listings show them.
-var PayableMetals = []string{"Co", "Ni", "Li", "Mn", "Cu", "Al"}
+func PayableMetals() []string { return []string{"Co", "Ni", "Li", "Mn", "Cu", "Al"} }
 
 // Of prices the draws: elementKg[e][i] kg of elements[e] and blackMassKg[i] in sample i.
 // reagentCost is the leach's cost per sample (nil: not priced); energyKWh the lot's energy
@@ -127,7 +127,7 @@ func Of(elements []string, elementKg [][]float64, blackMassKg []float64, pl *Pri
 	} else {
 		v.Notes = append(v.Notes, "no reagent prices given: no value net of reagents (--acid-price, --h2o2-price)")
 	}
-	for _, el := range PayableMetals {
+	for _, el := range PayableMetals() {
 		if !priced[el] && slices.Contains(elements, el) {
 			v.Unpriced = append(v.Unpriced, el)
 		}
