@@ -145,6 +145,38 @@ func Dissolve(sp Species, route Route, x Extraction) (Reaction, error) {
 		}
 		return rx, nil
 	}
+	lg, err := dissolveMetals(&rx, sp, route, x)
+	if err != nil {
+		return rx, err
+	}
+	rx.ElectronsMol = lg.eRed - lg.eOx - lg.eH2
+	lg.anions(&rx, sp)
+	if err := lg.redoxPartners(&rx, sp, route); err != nil {
+		return rx, err
+	}
+	for sym, n := range lg.residue {
+		if n > 1e-15 {
+			rx.Residue = append(rx.Residue, Term{sym, n})
+		}
+	}
+	sort.Slice(rx.Residue, func(i, j int) bool { return rx.Residue[i].Symbol < rx.Residue[j].Symbol })
+	return rx, nil
+}
+
+// ledger is what the metals of a dissolving species leave to balance: the electrons the
+// reducible metals take (eRed), the oxidisable ones give to an oxidant (eOx) or to H+ as
+// hydrogen (eH2), the positive charge left in the residue, and the residue itself.
+type ledger struct {
+	eRed, eOx, eH2, retainedCharge float64
+	residue                        map[string]float64
+	// phosphateRetainedWithFe is the iron (mol) that keeps its phosphate in the residue on the
+	// selective route; liReleased the lithium (mol) the olivine releases there.
+	phosphateRetainedWithFe, liReleased float64
+}
+
+// dissolveMetals sends each metal of the species to its state after the route, with the
+// extraction given: the cations into rx, the electrons and the residue into the ledger.
+func dissolveMetals(rx *Reaction, sp Species, route Route, x Extraction) (*ledger, error) {
 	es := sp.Formula.Elements() // potentials from the table the formula was read with
 	frac := func(sym string) (float64, error) {
 		if x == nil {
@@ -156,18 +188,15 @@ func Dissolve(sp Species, route Route, x Extraction) (Reaction, error) {
 		}
 		return v, nil
 	}
-	var eRed, eOx, eH2, retainedCharge float64
-	residue := map[string]float64{}
-	phosphateRetainedWithFe := 0.0
+	lg := &ledger{residue: map[string]float64{}}
 	// On the selective route iron is oxidised as lithium leaves the olivine (LiFePO4 -> FePO4 +
 	// Li+ + e-): the share of iron oxidised follows the lithium released.
-	liReleased := 0.0
 	if route == SulfuricSelective && sp.anionic == "phosphate" {
 		xLi, err := frac("Li")
 		if err != nil {
-			return rx, err
+			return nil, err
 		}
-		liReleased = sp.Formula.Moles("Li") * xLi
+		lg.liReleased = sp.Formula.Moles("Li") * xLi
 	}
 	for _, t := range sp.Formula.terms {
 		if !IsMetal(t.Symbol) {
@@ -177,7 +206,7 @@ func Dissolve(sp Species, route Route, x Extraction) (Reaction, error) {
 		z, r := aqueousCharge(t.Symbol), s
 		xf, err := frac(t.Symbol)
 		if err != nil {
-			return rx, err
+			return nil, err
 		}
 		switch {
 		case t.Symbol == "Ti" || t.Symbol == "Zr" || t.Symbol == "Nb":
@@ -186,11 +215,11 @@ func Dissolve(sp Species, route Route, x Extraction) (Reaction, error) {
 			xf = 0
 			rx.UndissolvedCopper = true
 		case route == SulfuricSelective && t.Symbol == "Fe" && sp.anionic == "phosphate":
-			xf, r = 0, s+math.Min(1, liReleased/t.Amount)
-			phosphateRetainedWithFe = t.Amount
+			xf, r = 0, s+math.Min(1, lg.liReleased/t.Amount)
+			lg.phosphateRetainedWithFe = t.Amount
 		}
 		if z == 0 {
-			return rx, fmt.Errorf("dissolve %s: no aqueous state for %s", sp.Formula.text, t.Symbol)
+			return nil, fmt.Errorf("dissolve %s: no aqueous state for %s", sp.Formula.text, t.Symbol)
 		}
 		released, retained := t.Amount*xf, t.Amount*(1-xf)
 		rx.HPlusMol += released*s + retained*(s-r)
@@ -199,31 +228,35 @@ func Dissolve(sp Species, route Route, x Extraction) (Reaction, error) {
 		case sp.metallic:
 			el := es.Lookup(t.Symbol)
 			if el.HasPotential && el.StandardPotential > 0 {
-				eOx += -e
+				lg.eOx += -e
 			} else {
-				eH2 += -e
+				lg.eH2 += -e
 			}
 		case e > 0:
-			eRed += e
+			lg.eRed += e
 		default:
-			eOx += -e
+			lg.eOx += -e
 		}
-		retainedCharge += retained * r
+		lg.retainedCharge += retained * r
 		if released > 0 {
 			rx.Cations = append(rx.Cations, Ion{t.Symbol, z, released})
 		}
 		if retained > 0 {
-			residue[t.Symbol] += retained
+			lg.residue[t.Symbol] += retained
 		}
 	}
-	rx.ElectronsMol = eRed - eOx - eH2
-	// Anions: the residue keeps enough of them to stay neutral (phosphate first, with iron on the
-	// selective route), the rest leave as H3PO4, H2O, CO2 or HF.
+	return lg, nil
+}
+
+// anions balances the species' anions: the residue keeps enough of them to stay neutral
+// (phosphate first, with iron on the selective route), the rest leave as H3PO4, H2O, CO2 or HF.
+func (lg *ledger) anions(rx *Reaction, sp Species) {
 	nP, nO, nF, nC := sp.Formula.Moles("P"), sp.Formula.Moles("O"), sp.Formula.Moles("F"), sp.Formula.Moles("C")
+	residue, retainedCharge := lg.residue, lg.retainedCharge
 	switch sp.anionic {
 	case "phosphate":
-		keepP := math.Min(nP, math.Max(phosphateRetainedWithFe, retainedCharge/3))
-		rx.ResidueFePO4Mol = math.Min(phosphateRetainedWithFe, liReleased)
+		keepP := math.Min(nP, math.Max(lg.phosphateRetainedWithFe, retainedCharge/3))
+		rx.ResidueFePO4Mol = math.Min(lg.phosphateRetainedWithFe, lg.liReleased)
 		rest := retainedCharge - 3*keepP
 		keepO := 4*keepP + math.Max(rest, 0)/2
 		residue["P"] += keepP
@@ -251,25 +284,28 @@ func Dissolve(sp Species, route Route, x Extraction) (Reaction, error) {
 		rx.HFMol = 6 * rx.H3PO4Mol
 		rx.WaterMol = -4 * rx.H3PO4Mol
 	}
-	// Redox partners.
+}
+
+// redoxPartners names who supplies or takes the electrons on the route (peroxide as reductant
+// or oxidant, chloride to Cl2, H+ to H2), then the acid and the liquor's anions: the H+ taken up
+// by the anions, by H2 evolution and by the oxidant, less what peroxide gives back as reductant.
+func (lg *ledger) redoxPartners(rx *Reaction, sp Species, route Route) error {
 	switch route {
 	case SulfuricPeroxide, SulfuricSelective:
-		rx.H2O2ReductantMol = eRed / 2
-		rx.O2Mol = eRed / 2
-		rx.H2O2OxidantMol = eOx / 2
+		rx.H2O2ReductantMol = lg.eRed / 2
+		rx.O2Mol = lg.eRed / 2
+		rx.H2O2OxidantMol = lg.eOx / 2
 	case Hydrochloric:
-		rx.Cl2Mol = eRed / 2
-		if eOx > 0 {
-			return rx, fmt.Errorf("dissolve %s: the hydrochloric route has no oxidant for it", sp.Formula.text)
+		rx.Cl2Mol = lg.eRed / 2
+		if lg.eOx > 0 {
+			return fmt.Errorf("dissolve %s: the hydrochloric route has no oxidant for it", sp.Formula.text)
 		}
 	}
-	rx.H2Mol = eH2 / 2
+	rx.H2Mol = lg.eH2 / 2
 	rx.WaterMol += 2 * rx.H2O2OxidantMol
-	// H+ from the acid: taken up by the anions, by H2 evolution and by the oxidant; given back by
-	// peroxide acting as reductant.
-	hPlus := rx.HPlusMol + eH2 + eOx
+	hPlus := rx.HPlusMol + lg.eH2 + lg.eOx
 	if route != Hydrochloric {
-		hPlus -= eRed
+		hPlus -= lg.eRed
 	}
 	rx.AcidMol = hPlus / route.AcidProtons()
 	// The liquor's anions: all the sulfate added; chloride less what left as Cl2.
@@ -277,13 +313,7 @@ func Dissolve(sp Species, route Route, x Extraction) (Reaction, error) {
 	if route == Hydrochloric {
 		rx.AnionMol = rx.AcidMol - 2*rx.Cl2Mol
 	}
-	for sym, n := range residue {
-		if n > 1e-15 {
-			rx.Residue = append(rx.Residue, Term{sym, n})
-		}
-	}
-	sort.Slice(rx.Residue, func(i, j int) bool { return rx.Residue[i].Symbol < rx.Residue[j].Symbol })
-	return rx, nil
+	return nil
 }
 
 // aqueousCharge is the charge of each metal's ion in an acid leach liquor (0: no rule).

@@ -23,17 +23,7 @@ func nnls(A *mat.Dense, b []float64) ([]float64, float64, error) {
 	if len(b) != m {
 		return nil, 0, errors.New("nnls: dimension mismatch")
 	}
-	As := mat.DenseCopyOf(A)
-	scale := make([]float64, n)
-	for j := range n {
-		col := mat.Col(nil, j, As)
-		scale[j] = math.Sqrt(dot(col, col))
-		if scale[j] > 0 {
-			for i := range m {
-				As.Set(i, j, As.At(i, j)/scale[j])
-			}
-		}
-	}
+	As, scale := unitColumns(A)
 	bv := mat.NewVecDense(m, append([]float64(nil), b...))
 	tol := 10 * float64(max(m, n)) * float64Epsilon * mat.Norm(As, 1) * mat.Norm(bv, 2)
 	x := make([]float64, n)
@@ -116,12 +106,27 @@ func nnls(A *mat.Dense, b []float64) ([]float64, float64, error) {
 		if scale[j] > 0 {
 			x[j] /= scale[j]
 		}
-		if x[j] < 0 {
-			x[j] = 0
-		}
+		x[j] = max(x[j], 0)
 	}
 	r := residual(A, x, b)
 	return x, math.Sqrt(dot(r, r)), nil
+}
+
+// unitColumns returns A with every non-zero column scaled to unit length, and the scales.
+func unitColumns(A *mat.Dense) (*mat.Dense, []float64) {
+	m, n := A.Dims()
+	As := mat.DenseCopyOf(A)
+	scale := make([]float64, n)
+	for j := range n {
+		col := mat.Col(nil, j, As)
+		scale[j] = math.Sqrt(dot(col, col))
+		if scale[j] > 0 {
+			for i := range m {
+				As.Set(i, j, As.At(i, j)/scale[j])
+			}
+		}
+	}
+	return As, scale
 }
 
 func residual(A mat.Matrix, x, b []float64) []float64 {
