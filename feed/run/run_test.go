@@ -2,17 +2,14 @@ package run_test
 
 import (
 	"bytes"
-	"encoding/csv"
 	"encoding/json"
 	"fmt"
 	"io"
 	"math"
 	"regexp"
-	"runtime"
 	"slices"
 	"strings"
 	"testing"
-	"time"
 
 	"blackmass/cathode"
 	"blackmass/cathode/cathodetest"
@@ -203,63 +200,6 @@ func TestManifestForms(t *testing.T) {
 	d, _ := estimate(t, "chemistry,format,capacity,cells_per_pack,count\nNMC811,pack,432 Wh,10s4p,1\n", 1, 100)
 	if math.Abs(c.BlackMassKg.P50-d.BlackMassKg.P50) > 1e-9 {
 		t.Errorf("per-cell %v vs per-pack %v", c.BlackMassKg, d.BlackMassKg)
-	}
-}
-
-// genManifest writes n lines cycling through formats and chemistries.
-func genManifest(n int) []byte {
-	var b bytes.Buffer
-	b.WriteString("id,chemistry,format,capacity,cells_per_pack,count,mass\n")
-	rows := []string{"LCO,pouch,3000 mAh,,3,45 g", "NMC811,cylindrical,4.8 Ah,,7,69 g", "LFP,pack,960 Wh,15s4p,1,9 kg", "NMC622,module,5.2 kWh,12s2p,1,31 kg", "Li-ion,pouch,11 Wh,,2,"}
-	for i := range n {
-		fmt.Fprintf(&b, "L%d,%s\n", i, rows[i%len(rows)])
-	}
-	return b.Bytes()
-}
-
-// BenchmarkEstimate1M measures the whole estimate (parse, aggregate, 1000-sample Monte Carlo)
-// over a generated 1,000,000-line manifest without per-line detail, and in the same loop
-// encoding/csv reading the same bytes, alternating the two so that both see the same machine:
-// it reports each per line and their ratio (x-csv; the goal is at most 2). Each starts on a
-// collected heap, so neither pays for collecting the other's garbage.
-func BenchmarkEstimate1M(b *testing.B) {
-	const n = 1_000_000
-	in := genManifest(n)
-	cat, m := embedded(b)
-	b.SetBytes(int64(len(in)))
-	b.ReportAllocs()
-	var estimateNs, csvNs int64
-	for b.Loop() {
-		runtime.GC()
-		t0 := time.Now()
-		csvOnly(b, in)
-		csvNs += time.Since(t0).Nanoseconds()
-		runtime.GC()
-		t1 := time.Now()
-		l := lot.NewLot(m, false)
-		if err := readCSV(bytes.NewReader(in), "gen.csv", intake.Options{Catalogue: cat}, l.Add); err != nil {
-			b.Fatal(err)
-		}
-		if _, _, err := l.Estimate(1, 1000); err != nil {
-			b.Fatal(err)
-		}
-		estimateNs += time.Since(t1).Nanoseconds()
-	}
-	b.ReportMetric(float64(estimateNs)/float64(b.N)/n, "ns/line")
-	b.ReportMetric(float64(csvNs)/float64(b.N)/n, "csv-ns/line")
-	b.ReportMetric(float64(estimateNs)/float64(csvNs), "x-csv")
-}
-
-// csvOnly reads in with encoding/csv and drops the records.
-func csvOnly(b *testing.B, in []byte) {
-	cr := csv.NewReader(bytes.NewReader(in))
-	cr.ReuseRecord = true
-	for {
-		if _, err := cr.Read(); err == io.EOF {
-			return
-		} else if err != nil {
-			b.Fatal(err)
-		}
 	}
 }
 
