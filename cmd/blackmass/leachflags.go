@@ -96,7 +96,7 @@ func (l *leachFlags) applyPlan() error {
 			continue
 		}
 		if err := l.flags.Set(key, val); err != nil {
-			return fmt.Errorf("%s:%d: %s %q: %v", l.planPath, n, key, intake.Printable(val, 40), err)
+			return usageError{fmt.Errorf("%s:%d: %s %q: %v", l.planPath, n, key, intake.Printable(val, 40), err)}
 		}
 	}
 	if err := sc.Err(); err != nil {
@@ -114,7 +114,7 @@ func (l *leachFlags) options() (*leach.Options, error) {
 	}
 	r, err := cathode.ParseRoute(l.route)
 	if err != nil {
-		return nil, err
+		return nil, usageError{fmt.Errorf("--route: %w", err)}
 	}
 	o := l.opt
 	o.Route = r
@@ -123,7 +123,7 @@ func (l *leachFlags) options() (*leach.Options, error) {
 	}
 	if l.extraction != "" {
 		if o.ExtractionOverride, err = parseExtraction(l.extraction); err != nil {
-			return nil, fmt.Errorf("--extraction: %w", err)
+			return nil, usageError{fmt.Errorf("--extraction: %w", err)}
 		}
 	}
 	if o.AcidWtPct == 0 {
@@ -207,7 +207,7 @@ func (l *leachFlags) containerList() ([]value.Container, error) {
 		}
 		c, err := value.ParseContainer(part)
 		if err != nil {
-			return nil, fmt.Errorf("--containers: %w", err)
+			return nil, usageError{fmt.Errorf("--containers: %w", err)}
 		}
 		out = append(out, c)
 	}

@@ -6,6 +6,7 @@ import (
 	"crypto/sha256"
 	"encoding/hex"
 	"encoding/json"
+	"errors"
 	"flag"
 	"fmt"
 	"os"
@@ -286,6 +287,10 @@ func TestExitCodes(t *testing.T) {
 		{"decimal comma in a flag", []string{"demo", "--samples", "50", "--pulp-density", "150,5"}, 0},
 		{"bad input data", []string{"estimate", bad}, 1},
 		{"quote mass out of range", []string{"quote", "x.csv", "--mass", "1e300 t"}, 2}, // a flag out of its range is a usage error
+		{"unknown route", []string{"demo", "--route", "bogus"}, 2},
+		{"malformed extraction", []string{"demo", "--extraction", "Co=="}, 2},
+		{"unknown-label rule", []string{"demo", "--unknown", "maybe"}, 2},
+		{"container without unit", []string{"demo", "--containers", "25 drum"}, 2},
 	} {
 		t.Run(c.name, func(t *testing.T) {
 			code, _, errs := cli(t, "", c.args...)
@@ -621,4 +626,35 @@ func TestHelpGroupsAndExamples(t *testing.T) {
 		}
 	}
 	walk(newRootCmd())
+}
+
+// failingWriter fails every write, as a full disk or a closed pipe does.
+type failingWriter struct{}
+
+func (failingWriter) Write([]byte) (int, error) { return 0, errors.New("no space left on device") }
+
+// Output lost to a full disk fails the command (exit 1), whatever the command writes.
+func TestWriteErrorIsAnError(t *testing.T) {
+	t.Parallel()
+	for _, args := range [][]string{{"demo", "--samples", "50"}, {"demo", "--samples", "50", "-q"}, {"chem", "--list"},
+		{"infer", filepath.Join("..", "..", "testdata", "assay-KR-2611.csv"), "--bootstrap", "20"}} {
+		var errs strings.Builder
+		if code := Main(args, strings.NewReader(""), failingWriter{}, &errs); code != 1 || !strings.Contains(errs.String(), "no space") {
+			t.Errorf("%v to a failing writer: exit %d, %q", args, code, errs.String())
+		}
+	}
+}
+
+// No control character reaches the terminal, whatever text carries it: a currency holding an
+// escape sequence that would clear the screen is printed without its escape.
+func TestControlCharactersStripped(t *testing.T) {
+	t.Parallel()
+	m := filepath.Join("..", "..", "testdata", "intake", "units.csv")
+	code, out, errs := cli(t, "", "estimate", m, "--samples", "50", "--acid-price", "1", "--currency", "\x1b[2J\u009bEUR")
+	if code != 0 || !strings.Contains(out, "[2JEUR") {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	if strings.ContainsAny(out+errs, "\x1b\u009b") {
+		t.Error("a control character reached the terminal")
+	}
 }

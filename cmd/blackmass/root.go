@@ -20,11 +20,17 @@ var version = "dev"
 // data or a failed run (printed once to stderr), 2 for a usage error.
 func Main(args []string, in io.Reader, out, errOut io.Writer) int {
 	root := newRootCmd()
+	tout, terr := &termWriter{w: out}, &termWriter{w: errOut}
 	root.SetArgs(args)
 	root.SetIn(in)
-	root.SetOut(out)
-	root.SetErr(errOut)
-	if err := root.Execute(); err != nil {
+	root.SetOut(tout)
+	root.SetErr(terr)
+	errOut = terr
+	err := root.Execute()
+	if err == nil && tout.err != nil {
+		err = fmt.Errorf("writing the output: %w", tout.err)
+	}
+	if err != nil {
 		fmt.Fprintln(errOut, "blackmass:", err)
 		var ue usageError
 		var oe *run.OptionError
