@@ -280,8 +280,8 @@ func parseHeader(rec []string, ignore []string, file string, line int) (*header,
 		}
 		if hc.unit != "" && columns[hc.col].units == nil {
 			// "qty (kg)", "Pieces [lb]": a mass under a count's name would be read as a count.
-			return nil, &Error{File: file, Line: line, Column: Printable(t, 40), Value: hc.unit,
-				Reason: fmt.Sprintf("%s holds no quantity with a unit; for a mass, head the column mass (per item) or total_mass", hc.col)}
+			return nil, &Error{File: file, Line: line, Column: "column", Value: t,
+				Reason: fmt.Sprintf("reads as %s, which holds no quantity with a unit (%s); for a mass, head the column mass (per item) or total_mass", hc.col, hc.unit)}
 		}
 		if hc.unit != "" && columns[hc.col].units.find(hc.unit) == nil {
 			return nil, &Error{File: file, Line: line, Reason: fmt.Sprintf("column %q: %q is not a unit of %s (want %s)", Printable(t, 40), hc.unit, hc.col, columns[hc.col].units.Want)}

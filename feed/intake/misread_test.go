@@ -90,7 +90,7 @@ func TestUnitOnCountHeader(t *testing.T) {
 	t.Parallel()
 	for _, h := range []string{"qty (kg)", "Pieces [lb]", "count kg"} {
 		_, err := readAll(t, "chemistry,format,capacity,"+h+"\nLFP,prismatic,100 Wh,20\n")
-		wantRefused(t, err, 1, "", "holds no quantity with a unit")
+		wantRefused(t, err, 1, "column", "holds no quantity with a unit")
 	}
 	if _, err := readAll(t, "chemistry,format,capacity,Qty (pcs)\nLFP,prismatic,100 Wh,20\n"); err != nil {
 		t.Fatal(err)
