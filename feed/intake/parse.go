@@ -36,8 +36,8 @@ type Info struct {
 	HeaderLine     int      `json:"header_line"`
 	IgnoredColumns []string `json:"ignored_columns,omitempty"`
 	Lines          int      `json:"lines"`
-	// chemistryColumn is the 0-based position of the chemistry column (-1: none).
-	chemistryColumn int
+	// columns is the 0-based position of each column in the header (-1: none).
+	columns [numColumns]int
 }
 
 // Limits on what a manifest may hold; beyond them the input is refused, not truncated.
@@ -106,7 +106,7 @@ func readRows(src rowSource, name string, opt Options, decimalComma bool, fn fun
 				return info, err
 			}
 			info.HeaderLine = line
-			info.chemistryColumn = hdr.pos[ColChemistry]
+			info.columns = hdr.pos
 			for _, i := range hdr.ignored {
 				if t := strings.TrimSpace(rec[i]); t != "" {
 					info.IgnoredColumns = append(info.IgnoredColumns, t)
