@@ -5,6 +5,7 @@ import (
 	"bytes"
 	"fmt"
 	"io"
+	"runtime"
 	"strings"
 	"testing"
 
@@ -153,5 +154,61 @@ func TestXLSXMergedInLargeWorkbook(t *testing.T) {
 	_, _, err := readXLSX(t, b)
 	if err == nil || !strings.Contains(err.Error(), "m.xlsx[Sheet1]:5: merged cells A5:A6") {
 		t.Fatalf("error %v", err)
+	}
+}
+
+// Workbooks within the inflation limit that would take memory out of proportion: 150 MB of
+// blanks in the sheet, one 100 MB shared string, a million empty rows. Each is refused, and the
+// reading allocates less than 200 MB in all (a hard limit, so measured here rather than benchmarked).
+func TestXLSXInflatedWithinLimit(t *testing.T) {
+	if testing.Short() {
+		t.Skip("builds workbooks inflating to 150 MB")
+	}
+	cases := map[string]map[string]func(io.Writer) error{
+		"150 MB of blanks": {"xl/worksheets/sheet1.xml": func(w io.Writer) error {
+			io.WriteString(w, sheetHead)
+			if err := repeat(" ", 150<<20)(w); err != nil {
+				return err
+			}
+			_, err := io.WriteString(w, `</sheetData></worksheet>`)
+			return err
+		}},
+		"one 100 MB shared string": {"xl/sharedStrings.xml": func(w io.Writer) error {
+			io.WriteString(w, `<?xml version="1.0" encoding="UTF-8"?><sst xmlns="http://schemas.openxmlformats.org/spreadsheetml/2006/main" count="1" uniqueCount="1"><si><t>`)
+			if err := repeat("LCO", 100<<20)(w); err != nil {
+				return err
+			}
+			_, err := io.WriteString(w, `</t></si></sst>`)
+			return err
+		}},
+		"a million empty rows": {"xl/worksheets/sheet1.xml": func(w io.Writer) error {
+			io.WriteString(w, sheetHead)
+			manifestRows(w, 1)
+			for r := 3; r < 1_000_003; r++ {
+				fmt.Fprintf(w, `<row r="%d"/>`, r)
+			}
+			_, err := io.WriteString(w, `</sheetData></worksheet>`)
+			return err
+		}},
+	}
+	for name, parts := range cases {
+		t.Run(name, func(t *testing.T) {
+			b := zipWith(t, parts)
+			var before, after runtime.MemStats
+			runtime.GC()
+			runtime.ReadMemStats(&before)
+			_, _, err := readXLSX(t, b)
+			runtime.ReadMemStats(&after)
+			// All bytes allocated while reading: an upper bound on the peak, whatever the
+			// memory the test's own building left to reuse.
+			grown := int64(after.TotalAlloc - before.TotalAlloc)
+			t.Logf("%s (%d KiB): allocated %d MB, %v", name, len(b)>>10, grown>>20, err)
+			if err == nil {
+				t.Fatal("read")
+			}
+			if grown > 200<<20 {
+				t.Errorf("allocated %d MB", grown>>20)
+			}
+		})
 	}
 }

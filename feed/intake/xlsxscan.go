@@ -25,7 +25,7 @@ const (
 	maxSharedStringsBytes = 32 << 20
 	// maxBlankRows bounds the rows in a row holding nothing after the header (empty rows a
 	// spreadsheet program wrote with a format); the manifest's lines may run to MaxLines.
-	maxBlankRows = 100_000
+	maxBlankRows = 10_000
 	maxPartBytes = 1 << 20 // workbook.xml and the relationship parts
 )
 
