@@ -152,3 +152,45 @@ func TestBareCarriageReturns(t *testing.T) {
 		}
 	}
 }
+
+// The reading rules hold for any input: an accepted line has a count and cells in range and an
+// id a workbook keeps; a refusal is an intake.Error naming the file, short, with no raw control
+// character; a UTF-16 byte-order mark is always refused by name; and a bare carriage return
+// reads exactly as a newline.
+func FuzzReadManifestRules(f *testing.F) {
+	f.Add("id,chemistry,format,capacity,count,cells_per_pack\n#1,NMC532,pack,500 Wh,2,13s4p\n# note\n")
+	f.Add("chemistry;format;capacity;count\rLFP;pack;1,5 kWh;1.000\r")
+	f.Add("chemistry,format,capacity,qty (kg)\nLFP,pack,1 kWh,4x3\n")
+	f.Add("\xff\xfec\x00h\x00")
+	cat := cathodetest.Catalogue(f)
+	read := func(s string) ([]feed.Line, error) {
+		var lines []feed.Line
+		_, err := intake.ReadCSV(strings.NewReader(s), "fuzz.csv", intake.Options{Catalogue: cat, UnknownAsPrior: true}, func(l feed.Line) error {
+			lines = append(lines, l)
+			return nil
+		})
+		return lines, err
+	}
+	f.Fuzz(func(t *testing.T, s string) {
+		lines, err := read(s)
+		for _, l := range lines {
+			if l.Count < 1 || l.Count > 10_000_000 || l.CellsPerItem < 0 || l.CellsPerItem > 20_000 || intake.CheckFreeText("id", l.ID) != nil && len(l.ID) <= 200 {
+				t.Fatalf("accepted %+v", l)
+			}
+		}
+		if err != nil {
+			var ie *intake.Error
+			if !errors.As(err, &ie) || ie.File != "fuzz.csv" || len(err.Error()) > 2000 || strings.ContainsAny(err.Error(), "\x00\x1b\r") {
+				t.Fatalf("error %q", err)
+			}
+		}
+		if strings.HasPrefix(s, "\xff\xfe") && (err == nil || !strings.Contains(err.Error(), "UTF-")) {
+			t.Fatalf("UTF-16 read: %v", err)
+		}
+		lf := strings.ReplaceAll(strings.ReplaceAll(s, "\r\n", "\n"), "\r", "\n")
+		lines2, err2 := read(lf)
+		if (err == nil) != (err2 == nil) || len(lines) != len(lines2) || err != nil && err.Error() != err2.Error() {
+			t.Fatalf("CR and LF read differently: %d lines, %v; %d lines, %v", len(lines), err, len(lines2), err2)
+		}
+	})
+}
