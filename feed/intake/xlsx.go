@@ -24,15 +24,24 @@ const (
 // sheet with a recognisable header. Cells are read as stored (a number formatted "0" is still 2.6), not as
 // displayed. Info names the sheet read and the sheets there were.
 func ReadXLSX(r io.Reader, name string, opt Options, fn func(feed.Line) error) (Info, error) {
-	b, err := io.ReadAll(r)
-	if err != nil {
-		return Info{}, &Error{File: name, Reason: err.Error()}
+	// The parts are checked through ReadAt (a bytes.Reader is not copied), then excelize reads r.
+	ra, ok := r.(interface {
+		io.ReaderAt
+		Size() int64
+	})
+	if !ok {
+		b, err := io.ReadAll(r)
+		if err != nil {
+			return Info{}, &Error{File: name, Reason: err.Error()}
+		}
+		br := bytes.NewReader(b)
+		ra, r = br, br
 	}
-	z, err := openXLSXZip(b)
+	z, err := openXLSXZip(ra, ra.Size())
 	if err != nil {
 		return Info{}, &Error{File: name, Reason: "not a readable .xlsx workbook: " + err.Error()}
 	}
-	f, err := excelize.OpenReader(bytes.NewReader(b), excelize.Options{UnzipSizeLimit: MaxUnzippedBytes, UnzipXMLSizeLimit: maxXMLInMemory})
+	f, err := excelize.OpenReader(r, excelize.Options{UnzipSizeLimit: MaxUnzippedBytes, UnzipXMLSizeLimit: maxXMLInMemory})
 	if err != nil {
 		return Info{}, &Error{File: name, Reason: "not a readable .xlsx workbook: " + err.Error()}
 	}
