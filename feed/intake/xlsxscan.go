@@ -23,9 +23,8 @@ const (
 	// workbook), which excelize holds in memory: about 8 MiB of XML per 100,000 lines with
 	// distinct ids and descriptions.
 	maxSharedStringsBytes = 32 << 20
-	// maxBlankRows bounds the rows in a row holding nothing after the header (empty rows a
-	// spreadsheet program wrote with a format); the manifest's lines may run to MaxLines,
-	// so this bounds only gaps, at a cost of microseconds per row.
+	// maxBlankRows bounds consecutive empty rows (rows a spreadsheet program wrote for a
+	// format, or a jump to row 1,000,000); the manifest's own lines may run to MaxLines.
 	maxBlankRows = 10_000
 	maxPartBytes = 1 << 20 // workbook.xml and the relationship parts
 )
