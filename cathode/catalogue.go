@@ -125,8 +125,10 @@ func readRanges(r data.Row, e *Entry) error {
 	return nil
 }
 
-// Add reads catalogue rows (the columns of chemistries.csv) from r. A row whose key is already
-// known replaces the earlier one. name is used in error messages.
+// Add reads catalogue rows (the columns of chemistries.csv) from r. A key already in the
+// catalogue (a built-in chemistry, or an earlier row) is refused: replacing it would change every
+// line labelled with it without a word; give the entry a key of its own. name is used in error
+// messages.
 func (c *Catalogue) Add(r io.Reader, name string) error {
 	t, err := data.ParseTable(r, name)
 	if err != nil {
@@ -179,18 +181,8 @@ func (c *Catalogue) Add(r io.Reader, name string) error {
 		if other := c.byName[normLabel(key)]; other != nil && other.Key != key {
 			return row.Errorf("key %q is already an alias of %s", key, other.Key)
 		}
-		if old := c.byName[normLabel(key)]; old != nil && old.Key == key {
-			for i, x := range c.entries {
-				if x == old {
-					c.entries = append(c.entries[:i], c.entries[i+1:]...)
-					break
-				}
-			}
-			for k, v := range c.byName {
-				if v == old {
-					delete(c.byName, k)
-				}
-			}
+		if old := c.byName[normLabel(key)]; old != nil {
+			return row.Errorf("key %q is already in the catalogue (%s, %s): give your entry a key of its own, such as %s-own, and label its lines with it", key, old.Key, old.Name, key)
 		}
 		c.entries = append(c.entries, e)
 		for _, n := range append([]string{key}, e.Aliases...) {

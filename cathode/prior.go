@@ -151,11 +151,19 @@ func normalise(comps []Component) {
 	}
 }
 
+// Tolerances on the sum of an application's prior shares: fractions rounded to two places sum
+// to 1 within about 0.01 (three thirds as 0.33 sum to 0.99), percentages to 100 within about 1.
+const (
+	priorSumTolerance    = 0.015
+	priorSumTolerancePct = 1.5
+)
+
 // SetPrior reads the chemistry shares assumed for items of unknown chemistry: columns
 // application (optional: rows without one apply to every application), chemistry, share (or
-// mass_fraction), source. Shares must be finite and non-negative and are normalised per
-// application. A file replaces the prior of every application it names; rows without an
-// application replace them all.
+// mass_fraction), source. Each application's shares must be finite, non-negative and sum to 1
+// (fractions) or 100 (percentages) within rounding; a sum of 0.6 or 60 says a row is missing and
+// is refused, not scaled up. A chemistry is listed once per application. A file replaces the
+// prior of every application it names; rows without an application replace them all.
 func (c *Catalogue) SetPrior(r io.Reader, name string) error {
 	t, err := data.ParseTable(r, name)
 	if err != nil {
@@ -170,6 +178,7 @@ func (c *Catalogue) SetPrior(r io.Reader, name string) error {
 	}
 	got := map[string][]Component{}
 	var order []string
+	seen := map[[2]string]int{}
 	for _, row := range t.Rows {
 		app := row.Str("application")
 		if app == "" {
@@ -182,12 +191,16 @@ func (c *Catalogue) SetPrior(r io.Reader, name string) error {
 		if e == nil {
 			return row.Errorf("prior names %q, which is not in the catalogue", row.Str("chemistry"))
 		}
+		if first, dup := seen[[2]string{app, e.Key}]; dup {
+			return row.Errorf("%s is listed twice for %s (first on line %d)", e.Key, priorAppName(app), first)
+		}
+		seen[[2]string{app, e.Key}] = row.Line
 		w, err := row.Float(shareCol)
 		if err != nil {
 			return err
 		}
-		if w < 0 || w > 1e6 {
-			return row.Errorf("%s must lie from 0 to 1e6 (it is normalised)", shareCol)
+		if w < 0 || w > 100 {
+			return row.Errorf("%s must lie from 0 to 1 (or 0 to 100 as percentages)", shareCol)
 		}
 		if _, ok := got[app]; !ok {
 			order = append(order, app)
@@ -203,10 +216,13 @@ func (c *Catalogue) SetPrior(r io.Reader, name string) error {
 		for _, x := range comps {
 			sum += x.MassFraction
 		}
-		if sum <= 0 {
-			return fmt.Errorf("%s: the shares of %s sum to zero", name, app)
+		switch {
+		case math.Abs(sum-1) <= priorSumTolerance:
+		case math.Abs(sum-100) <= priorSumTolerancePct:
+		default:
+			return fmt.Errorf("%s: the shares of %s sum to %.4g; want 1 (fractions) or 100 (percentages): is a row missing?", name, priorAppName(app), sum)
 		}
-		normalise(comps)
+		normalise(comps) // takes out the rounding, or the percentages' factor of 100
 		if app == "*" {
 			for _, k := range c.appOrder {
 				c.prior[k] = slices.Clone(comps)
@@ -222,6 +238,14 @@ func (c *Catalogue) SetPrior(r io.Reader, name string) error {
 	}
 	c.priorSrc = name
 	return nil
+}
+
+// priorAppName names a prior's application in messages ("*": rows without an application).
+func priorAppName(app string) string {
+	if app == "*" {
+		return "every application (rows without one)"
+	}
+	return app
 }
 
 // Applications lists the application keys (and format fall-backs) the prior knows.

@@ -7,8 +7,6 @@ import (
 	"fmt"
 	"io"
 	"io/fs"
-	"math"
-	"strconv"
 	"strings"
 )
 
@@ -39,8 +37,14 @@ func ReadTable(fsys fs.FS, name string) (*Table, error) {
 
 // ParseTable parses a reference table. It returns an error naming the file and line for a
 // malformed record, a duplicate or missing "source" column, or an empty table.
+//
+// The input may hold at most [MaxTableBytes] and must be UTF-8 (see [CheckEncoding]).
 func ParseTable(r io.Reader, name string) (*Table, error) {
-	cr := NewCSVReader(SkipBOM(r), ',')
+	br := SkipBOM(CapBytes(r, MaxTableBytes))
+	if err := CheckEncoding(br); err != nil {
+		return nil, fmt.Errorf("%s: %w", name, err)
+	}
+	cr := NewCSVReader(br, ',')
 	t := &Table{Name: name, index: map[string]int{}}
 	header, err := cr.Read()
 	if errors.Is(err, io.EOF) {
@@ -88,7 +92,7 @@ func ParseTable(r io.Reader, name string) (*Table, error) {
 func wrapCSV(name string, err error) error {
 	var pe *csv.ParseError
 	if errors.As(err, &pe) {
-		return fmt.Errorf("%s:%d: %w", name, pe.Line, pe.Err)
+		return fmt.Errorf("%s:%d: %w", name, ErrorLine(pe), pe.Err)
 	}
 	return fmt.Errorf("%s: %w", name, err)
 }
@@ -108,12 +112,13 @@ func (r Row) Str(col string) string {
 	return r.Fields[i]
 }
 
-// Float parses column col as a finite number; the error names the file, line and column.
+// Float parses column col as a finite plain decimal ([ParseDecimal]); the error names the file,
+// line and column.
 func (r Row) Float(col string) (float64, error) {
 	s := r.Str(col)
-	v, err := strconv.ParseFloat(s, 64)
-	if err != nil || math.IsNaN(v) || math.IsInf(v, 0) {
-		return 0, fmt.Errorf("%s:%d: column %s: %q is not a number", r.table.Name, r.Line, col, s)
+	v, err := ParseDecimal(s)
+	if err != nil {
+		return 0, fmt.Errorf("%s:%d: column %s: %q is not a number (want a plain decimal such as 0.25 or 1e-3)", r.table.Name, r.Line, col, s)
 	}
 	return v, nil
 }

@@ -27,7 +27,11 @@ var assayUnits = map[string]float64{"wt%": 1, "%": 1, "wt.%": 1, "pct": 1, "g/kg
 // optional uncertainty column (± in the same unit, a standard uncertainty). Refused: unknown
 // elements or units, negative values, duplicates, and elements summing past 100 %.
 func ReadAssay(r io.Reader, name string) (*assay.Assay, error) {
-	cr := data.NewCSVReader(data.SkipBOM(r), ',')
+	br, err := openSideFile(r, name)
+	if err != nil {
+		return nil, err
+	}
+	cr := data.NewCSVReader(br, ',')
 	cr.FieldsPerRecord = -1 // the uncertainty may be left off a row
 	fail := func(line int, col, val, reason string) error {
 		return &Error{File: name, Line: line, Column: col, Value: val, Reason: reason}
@@ -68,9 +72,12 @@ func ReadAssay(r io.Reader, name string) (*assay.Assay, error) {
 		if blank(rec) {
 			continue
 		}
-		for _, f := range rec {
+		for i, f := range rec {
 			if !utf8.ValidString(f) {
 				return nil, fail(line, "", "", "not valid UTF-8")
+			}
+			if i >= len(header) && strings.TrimSpace(f) != "" {
+				return nil, fail(line, fmt.Sprintf("column %d", i+1), f, fmt.Sprintf("a value beyond the header's %d columns", len(header)))
 			}
 		}
 		el := get("element")

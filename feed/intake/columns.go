@@ -278,7 +278,12 @@ func parseHeader(rec []string, ignore []string, file string, line int) (*header,
 		if j := h.pos[hc.col]; j >= 0 {
 			return nil, &Error{File: file, Line: line, Reason: fmt.Sprintf("columns %q and %q both read as %s", Printable(rec[j], 40), Printable(t, 40), hc.col)}
 		}
-		if hc.unit != "" && columns[hc.col].units != nil && columns[hc.col].units.find(hc.unit) == nil {
+		if hc.unit != "" && columns[hc.col].units == nil {
+			// "qty (kg)", "Pieces [lb]": a mass under a count's name would be read as a count.
+			return nil, &Error{File: file, Line: line, Column: "column", Value: t,
+				Reason: fmt.Sprintf("reads as %s, which holds no quantity with a unit (%s); for a mass, head the column mass (per item) or total_mass", hc.col, hc.unit)}
+		}
+		if hc.unit != "" && columns[hc.col].units.find(hc.unit) == nil {
 			return nil, &Error{File: file, Line: line, Reason: fmt.Sprintf("column %q: %q is not a unit of %s (want %s)", Printable(t, 40), hc.unit, hc.col, columns[hc.col].units.Want)}
 		}
 		h.pos[hc.col], h.unit[hc.col] = i, hc.unit

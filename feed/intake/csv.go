@@ -15,7 +15,11 @@ import (
 // ReadCSV streams a CSV manifest (comma or semicolon separated; with semicolons a decimal comma
 // is read as such) to fn, one line at a time. name is the file name for error messages.
 func ReadCSV(r io.Reader, name string, opt Options, fn func(manifest.Line) error) (Info, error) {
-	br := data.SkipBOM(&lineLimit{r: r, max: MaxLineBytes})
+	raw := bufio.NewReaderSize(r, 4096)
+	if err := data.CheckEncoding(raw); err != nil {
+		return Info{}, &Error{File: name, Reason: err.Error()}
+	}
+	br := data.SkipBOM(&lineLimit{r: &crReader{r: raw}, max: MaxLineBytes})
 	sep, err := sniffSeparator(br)
 	if err != nil {
 		return Info{}, &Error{File: name, Reason: err.Error()}
@@ -110,7 +114,12 @@ func (s *csvSource) next() ([]string, int, error) {
 			// The guard counts the physical lines it has passed: name the one that ran over.
 			return nil, le.line, &Error{File: s.name, Line: le.line, Reason: errLineTooLong.Error()}
 		case errors.As(err, &pe):
-			return nil, pe.Line, &Error{File: s.name, Line: pe.Line, Reason: pe.Err.Error()}
+			line := data.ErrorLine(pe)
+			reason := pe.Err.Error()
+			if line != pe.Line {
+				reason = fmt.Sprintf("a quote opened on this line is never closed (the input ends at line %d)", pe.Line)
+			}
+			return nil, line, &Error{File: s.name, Line: line, Reason: reason}
 		case errors.Is(err, errLineTooLong):
 			return nil, 0, &Error{File: s.name, Reason: errLineTooLong.Error()}
 		}
@@ -122,9 +131,39 @@ func (s *csvSource) next() ([]string, int, error) {
 	return rec, line, nil
 }
 
+// crReader ends a line at a lone carriage return as at a newline (old Mac text, or a file
+// edited on several systems): "\r\n" becomes "\n", a bare "\r" becomes "\n". encoding/csv would
+// keep a bare "\r" inside a field and run two lines into one, an extra column.
+type crReader struct {
+	r       io.Reader
+	afterCR bool // the last byte read was '\r': a '\n' right after it is the same line end
+}
+
+func (c *crReader) Read(p []byte) (int, error) {
+	for {
+		n, err := c.r.Read(p)
+		w := 0
+		for _, b := range p[:n] {
+			switch {
+			case b == '\n' && c.afterCR:
+				c.afterCR = false
+				continue
+			case b == '\r':
+				c.afterCR, b = true, '\n'
+			default:
+				c.afterCR = false
+			}
+			p[w] = b
+			w++
+		}
+		if w > 0 || err != nil || n == 0 {
+			return w, err
+		}
+	}
+}
+
 // sniffSeparator looks at the first non-comment line: a semicolon-separated header wins if it
-// has more semicolons than commas. A file whose lines end in a lone carriage return is refused,
-// as the CSV reader would see one line.
+// has more semicolons than commas.
 func sniffSeparator(br *bufio.Reader) (rune, error) {
 	b, err := br.Peek(MaxLineBytes)
 	if len(b) == 0 && err != nil {
@@ -132,9 +171,6 @@ func sniffSeparator(br *bufio.Reader) (rune, error) {
 			return 0, errors.New("empty file")
 		}
 		return 0, err
-	}
-	if !bytes.Contains(b, []byte("\n")) && bytes.Count(b, []byte("\r")) > 1 {
-		return 0, errors.New("lines end in a carriage return only (old Mac text): save the file with LF or CRLF line ends")
 	}
 	for _, ln := range bytes.Split(b, []byte("\n")) {
 		t := bytes.TrimSpace(ln)

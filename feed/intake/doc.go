@@ -1,4 +1,4 @@
-// Package intake reads lot manifests (CSV and .xlsx) into [feed.Line] values: it recognises the
+// Package intake reads lot manifests (CSV and .xlsx) into [manifest.Line] values: it recognises the
 // header however a bench wrote it, reads quantities with their units, resolves chemistry labels
 // through the catalogue, and refuses anything it cannot read with an error naming the file, line
 // and column. It is the only package of the lot model that knows file formats; the model itself

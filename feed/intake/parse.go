@@ -36,8 +36,8 @@ type Info struct {
 	HeaderLine     int      `json:"header_line"`
 	IgnoredColumns []string `json:"ignored_columns,omitempty"`
 	Lines          int      `json:"lines"`
-	// chemistryColumn is the 0-based position of the chemistry column (-1: none).
-	chemistryColumn int
+	// columns is the 0-based position of each column in the header (-1: none).
+	columns [numColumns]int
 }
 
 // Limits on what a manifest may hold; beyond them the input is refused, not truncated.
@@ -94,7 +94,7 @@ func readRows(src rowSource, name string, opt Options, decimalComma bool, fn fun
 		if err != nil {
 			return info, err
 		}
-		if blank(rec) {
+		if blank(rec) || comment(rec) {
 			continue
 		}
 		if seen == 0 {
@@ -106,7 +106,7 @@ func readRows(src rowSource, name string, opt Options, decimalComma bool, fn fun
 				return info, err
 			}
 			info.HeaderLine = line
-			info.chemistryColumn = hdr.pos[ColChemistry]
+			info.columns = hdr.pos
 			for _, i := range hdr.ignored {
 				if t := strings.TrimSpace(rec[i]); t != "" {
 					info.IgnoredColumns = append(info.IgnoredColumns, t)
@@ -129,7 +129,7 @@ func readRows(src rowSource, name string, opt Options, decimalComma bool, fn fun
 		if err != nil {
 			return info, err
 		}
-		if blank(rec) || p.onlyIgnored(rec) {
+		if blank(rec) || comment(rec) || p.onlyIgnored(rec) {
 			continue
 		}
 		if info.Lines >= MaxLines {
@@ -142,7 +142,7 @@ func readRows(src rowSource, name string, opt Options, decimalComma bool, fn fun
 		}
 		l, err := p.parseAlike(rec, line, raw, starts)
 		if err != nil {
-			return info, err
+			return info, commentHint(err, rec)
 		}
 		info.Lines++
 		if err := fn(l); err != nil {
@@ -171,6 +171,27 @@ func quoteCells(rec []string) string {
 		}
 	}
 	return strings.Join(q, ", ")
+}
+
+// comment reports whether rec is a comment line: its first field starts with '#' and no other
+// field holds anything. A '#' line with more values is a manifest line (an id may start with
+// '#', "#12"), so no line is dropped unread; "#" as a header cell names the id column.
+func comment(rec []string) bool {
+	if len(rec) == 0 || !strings.HasPrefix(strings.TrimSpace(rec[0]), "#") {
+		return false
+	}
+	return blank(rec[1:])
+}
+
+// commentHint adds to the error of a line that starts with '#' that it was read as a line.
+func commentHint(err error, rec []string) error {
+	var ie *Error
+	if len(rec) > 0 && strings.HasPrefix(strings.TrimSpace(rec[0]), "#") && errors.As(err, &ie) {
+		e := *ie
+		e.Reason += " (a line starting with # is a comment only when it holds no other field; this one was read as a manifest line)"
+		return &e
+	}
+	return err
 }
 
 func blank(rec []string) bool {
@@ -483,12 +504,31 @@ func (p *lineParser) count(l *manifest.Line, rec []string, line int) error {
 		l.Count = n // the common case: a plain whole number
 		return nil
 	}
+	if strings.Contains(cs, ".") && (p.decimalComma || dotGroupsThousands(cs)) {
+		// In a decimal-comma file "1.000" is a thousand; elsewhere a count has no decimals.
+		return p.fail(line, ColCount, cs, "ambiguous: a dot may group thousands (1.000 = 1000) or mark decimals; write the count without separators")
+	}
 	v, err := ParseNumber(cs, p.decimalComma)
 	if err != nil || v != math.Trunc(v) || v < 1 || v > maxCount {
 		return p.fail(line, ColCount, cs, fmt.Sprintf("want a whole number from 1 to %d", maxCount))
 	}
 	l.Count = int(v)
 	return nil
+}
+
+// dotGroupsThousands reports whether s has a dot followed by exactly three digits and no more
+// ("1.000", "12.500"): the form of a thousands group in decimal-comma locales.
+func dotGroupsThousands(s string) bool {
+	_, frac, ok := strings.Cut(s, ".")
+	if !ok || len(frac) < 3 {
+		return false
+	}
+	for _, g := range strings.Split(frac, ".") {
+		if len(g) != 3 || strings.Trim(g, "0123456789") != "" {
+			return false
+		}
+	}
+	return true
 }
 
 func (p *lineParser) cellsPerPack(l *manifest.Line, rec []string, line int) error {
@@ -619,7 +659,7 @@ func (p *lineParser) capacity(l *manifest.Line, rec []string, line int) error {
 		limit = maxAssemblyWh
 	}
 	if perItemWh > limit {
-		return p.fail(line, ColCapacity, l.CapacityText, fmt.Sprintf("%.0f Wh per item is absurd for a %s (limit %.0f Wh)", perItemWh, l.Format, limit))
+		return p.fail(line, ColCapacity, l.CapacityText, fmt.Sprintf("%.4g Wh per item is absurd for a %s (limit %.0f Wh)", perItemWh, l.Format, limit))
 	}
 	if l.EnergyWh > 0 && l.EnergyWh < minItemWh {
 		return p.fail(line, ColCapacity, l.CapacityText, fmt.Sprintf("less than %g Wh per item is below any lithium-ion cell", minItemWh))
@@ -668,6 +708,10 @@ func seriesParallel(series, parallel string) (string, error) {
 func parseCellsPerPack(s string) (int, error) {
 	t := strings.ToLower(strings.NewReplacer(" ", "", "-", "", "x", "").Replace(s))
 	if n, err := strconv.Atoi(t); err == nil {
+		if t != strings.TrimSpace(s) {
+			// "4x3", "13-4", "2 3": joined they would read as 43, 134, 23 cells.
+			return 0, errors.New("two numbers without s and p: write the number of cells (12) or a series-parallel tag (4s3p)")
+		}
 		if n < 1 || n > maxCellsPerItem {
 			return 0, fmt.Errorf("want 1 to %d cells", maxCellsPerItem)
 		}

@@ -23,6 +23,12 @@ func ReadPrices(r io.Reader, name string) (*value.PriceList, error) {
 	if err != nil {
 		return nil, &Error{File: name, Reason: strings.TrimPrefix(err.Error(), name+": ")}
 	}
+	for _, h := range t.Header {
+		if !priceColumns[h] {
+			return nil, &Error{File: name, Line: 1, Column: "column", Value: h,
+				Reason: "not a column of a prices file (want item, basis, price_per_kg, currency, payable, source; notes is read past)"}
+		}
+	}
 	for _, c := range []string{"item", "price_per_kg", "currency", "payable"} {
 		if !t.Has(c) {
 			return nil, &Error{File: name, Line: 1, Reason: fmt.Sprintf("missing column %q (want item, basis, price_per_kg, currency, payable, source)", c)}
@@ -76,6 +82,11 @@ func ReadPrices(r io.Reader, name string) (*value.PriceList, error) {
 	}
 	return pl, nil
 }
+
+// priceColumns are the columns of a prices file; any other is refused by name, so a misspelt
+// column (prce_per_kg, payables) is not dropped unseen.
+var priceColumns = map[string]bool{"item": true, "basis": true, "price_per_kg": true, "currency": true, "payable": true, "source": true,
+	"notes": true, "note": true, "comment": true, "comments": true}
 
 // share reads a fraction 0..1, or a percentage with its sign.
 func share(s string) (float64, error) {

@@ -14,8 +14,9 @@ import (
 	"blackmass/data"
 )
 
-// splitSource reads CSV records the way encoding/csv does with the settings every blackmass
-// input uses ('#' comments, leading spaces trimmed, any number of fields), but splits lines that
+// splitSource reads CSV records the way encoding/csv does with the settings of a manifest
+// (leading spaces trimmed, any number of fields, no comment character: readRows decides which
+// '#' lines are comments, so a data row whose id starts with '#' is kept), but splits lines that
 // hold no quote itself, which is most of a manifest and several times faster. At the first line
 // holding a quote it hands that line and the rest of the input to encoding/csv, so quoted fields
 // (and their errors) are read by the standard reader. FuzzSplitMatchesCSV holds the two to the
@@ -97,12 +98,6 @@ func (s *splitSource) Read() ([]string, int, error) {
 		} else if n >= 1 && line[n-1] == '\r' && err != nil {
 			line = line[:n-1]
 		}
-		if len(raw) > 0 && raw[0] == '#' {
-			if err != nil {
-				s.err = err
-			}
-			continue // a comment
-		}
 		if len(line) == 0 {
 			if err != nil {
 				s.err = err
@@ -179,6 +174,7 @@ func trimLeftSpace(b string) string {
 func (s *splitSource) handOver(raw []byte) ([]string, int, error) {
 	rest := io.MultiReader(bytes.NewReader(append([]byte(nil), raw...)), s.br)
 	s.cr = data.NewCSVReader(rest, rune(s.sep))
+	s.cr.Comment = 0
 	s.cr.ReuseRecord = true
 	s.cr.FieldsPerRecord = -1
 	s.offset = s.line

@@ -2,6 +2,8 @@ package intake
 
 import (
 	"blackmass/feed/manifest"
+	"bytes"
+	"errors"
 	"fmt"
 	"io"
 	"strings"
@@ -17,13 +19,26 @@ const (
 )
 
 // ReadXLSX streams the manifest on one sheet of an .xlsx workbook to fn. The sheet is
-// opt.Sheet if given; else the intake workbook's Lines sheet; else the first visible sheet with
-// a recognisable header. Cells are read as stored (a number formatted "0" is still 2.6), not as
+// opt.Sheet if given; else the intake workbook's Lines sheet if visible; else the first visible
+// sheet with a recognisable header. Cells are read as stored (a number formatted "0" is still 2.6), not as
 // displayed. Info names the sheet read and the sheets there were.
 func ReadXLSX(r io.Reader, name string, opt Options, fn func(manifest.Line) error) (Info, error) {
-	small := false
-	if l, ok := r.(interface{ Len() int }); ok {
-		small = l.Len() <= maxCheckedBytes
+	// The parts are checked through ReadAt (a bytes.Reader is not copied), then excelize reads r.
+	ra, ok := r.(interface {
+		io.ReaderAt
+		Size() int64
+	})
+	if !ok {
+		b, err := io.ReadAll(r)
+		if err != nil {
+			return Info{}, &Error{File: name, Reason: err.Error()}
+		}
+		br := bytes.NewReader(b)
+		ra, r = br, br
+	}
+	z, err := openXLSXZip(ra, ra.Size())
+	if err != nil {
+		return Info{}, &Error{File: name, Reason: "not a readable .xlsx workbook: " + err.Error()}
 	}
 	f, err := excelize.OpenReader(r, excelize.Options{UnzipSizeLimit: MaxUnzippedBytes, UnzipXMLSizeLimit: maxXMLInMemory})
 	if err != nil {
@@ -42,7 +57,9 @@ func ReadXLSX(r io.Reader, name string, opt Options, fn func(manifest.Line) erro
 		}
 		candidates = []string{opt.Sheet}
 	default:
-		if idx, _ := f.GetSheetIndex(manifest.LinesSheetName); idx >= 0 {
+		// The intake workbook's Lines sheet first, if it is visible: a hidden sheet is not what
+		// the user sees, and Info.Sheet says which sheet was read.
+		if visible, err := f.GetSheetVisible(manifest.LinesSheetName); err == nil && visible {
 			candidates = []string{manifest.LinesSheetName}
 		}
 		for _, s := range sheets {
@@ -58,8 +75,12 @@ func ReadXLSX(r io.Reader, name string, opt Options, fn func(manifest.Line) erro
 	for _, sheet := range candidates {
 		info, err := readSheet(f, name, sheet, opt, fn)
 		info.Sheets = sheets
-		if err == nil && small {
-			err = checkCells(f, name, sheet, info)
+		if info.HeaderLine > 0 {
+			// The cells' check runs even when a line was refused: a date format or a formula
+			// without a result explains the refusal better than the value does.
+			if cerr := checkCells(f, z, name, sheet, info); cerr != nil && (err == nil || errorLine(cerr) <= errorLine(err)) {
+				err = cerr
+			}
 		}
 		if err == nil {
 			return info, nil
@@ -86,50 +107,20 @@ func readSheet(f *excelize.File, name, sheet string, opt Options, fn func(manife
 	return info, err
 }
 
-// maxCheckedBytes is the largest workbook whose cells are checked for merges and formulas
-// without saved results (the check loads the sheet whole; a hand-typed manifest is far smaller).
-const maxCheckedBytes = 4 << 20
-
-// maxCheckedRows bounds the rows whose chemistry cell is checked for a formula.
-const maxCheckedRows = 20000
-
-// checkCells refuses what would be misread: merged cells below the header (only their first row
-// holds the value) and chemistry cells holding a formula with no saved result (they read blank,
-// which means unknown).
-func checkCells(f *excelize.File, name, sheet string, info Info) error {
-	file := name + "[" + sheet + "]"
-	merges, err := f.GetMergeCells(sheet)
-	if err != nil {
-		return &Error{File: file, Reason: "the sheet cannot be read: " + err.Error()}
+// errorLine is the line an *Error names (0 for none or another error).
+func errorLine(err error) int {
+	var ie *Error
+	if errors.As(err, &ie) {
+		return ie.Line
 	}
-	for _, m := range merges {
-		_, r1, err := excelize.CellNameToCoordinates(m.GetStartAxis())
-		if err == nil && r1 >= info.HeaderLine {
-			return &Error{File: file, Line: r1, Reason: fmt.Sprintf("merged cells %s:%s: only their first row holds the value; unmerge them and fill every row", m.GetStartAxis(), m.GetEndAxis())}
-		}
-	}
-	if info.chemistryColumn < 0 {
-		return nil
-	}
-	last := info.HeaderLine + min(info.Lines, maxCheckedRows) + 1
-	for row := info.HeaderLine + 1; row <= last; row++ {
-		cell, _ := excelize.CoordinatesToCellName(info.chemistryColumn+1, row)
-		v, _ := f.GetCellValue(sheet, cell, excelize.Options{RawCellValue: true})
-		if v != "" {
-			continue
-		}
-		if fm, _ := f.GetCellFormula(sheet, cell); fm != "" {
-			return &Error{File: file, Line: row, Column: "chemistry", Value: "=" + fm,
-				Reason: "a formula with no saved result reads as blank (unknown chemistry): open and save the file in a spreadsheet program, or paste the values"}
-		}
-	}
-	return nil
+	return 0
 }
 
 type xlsxSource struct {
-	rows *excelize.Rows
-	name string
-	line int
+	rows   *excelize.Rows
+	name   string
+	line   int
+	blanks int // empty rows since the last that held something
 }
 
 func (s *xlsxSource) next() ([]string, int, error) {
@@ -139,6 +130,13 @@ func (s *xlsxSource) next() ([]string, int, error) {
 		if err != nil {
 			return nil, s.line, &Error{File: s.name, Line: s.line, Reason: err.Error()}
 		}
+		if blank(rec) {
+			if s.blanks++; s.blanks > maxBlankRows {
+				return nil, s.line, &Error{File: s.name, Line: s.line, Reason: fmt.Sprintf("more than %d empty rows in a row: delete them (or the rows below the manifest)", maxBlankRows)}
+			}
+			continue
+		}
+		s.blanks = 0
 		if len(rec) > MaxColumns {
 			return nil, s.line, &Error{File: s.name, Line: s.line, Reason: fmt.Sprintf("more than %d columns", MaxColumns)}
 		}
