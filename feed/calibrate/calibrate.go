@@ -17,6 +17,7 @@ type LeftOut struct {
 	Excluded bool    `json:"excluded,omitempty"`
 }
 
+// fits is one element's fits: by cell, and by family alone.
 // fitState is the work of one Fit: the lots, their observations by element, what is left out.
 type fitState struct {
 	lots     []Lot
@@ -27,6 +28,7 @@ type fitState struct {
 	none     map[string][]obs // lots where the model expects none of the element
 	leftOut  map[int]LeftOut
 	assayed  int
+	family   map[string]*elementFit // the fits by family alone, of the last fitAll
 }
 
 // Fit calibrates the model on the assayed lots: per element, the posterior of the factors, and
@@ -46,6 +48,9 @@ func Fit(lots []Lot, opt Options) (*Calibration, *Report, error) {
 			ErrTooFewLots, opt.MinLots, s.assayed, s.leftOutText())
 	}
 	s.ratioRule()
+	if err := s.tooManyOut(); err != nil {
+		return nil, nil, err
+	}
 	fits, err := s.fitWithOutliers()
 	if err != nil {
 		return nil, nil, err
@@ -59,7 +64,7 @@ func Fit(lots []Lot, opt Options) (*Calibration, *Report, error) {
 
 func newFitState(lots []Lot, opt Options) *fitState {
 	s := &fitState{lots: lots, opt: opt, keep: map[string]bool{}, byEl: map[string][]obs{}, none: map[string][]obs{},
-		leftOut: map[int]LeftOut{}}
+		leftOut: map[int]LeftOut{}, family: map[string]*elementFit{}}
 	for _, id := range opt.Keep {
 		s.keep[id] = true
 	}
@@ -137,16 +142,33 @@ func (s *fitState) fitWithOutliers() (map[string]*elementFit, error) {
 		}
 		s.leftOut[worst] = LeftOut{Lot: s.lots[worst].ID, Element: wEl, Z: wZ,
 			Reason: fmt.Sprintf("%s %.1f standard deviations from what the other lots predict", wEl, wZ)}
-		if n := len(s.leftOut); 2*n > s.assayed {
-			return nil, fmt.Errorf("calibration: %d of %d assayed lots disagree with the model beyond what it explains%s; "+
-				"check the assays' units and lot ids, or widen the prior", n, s.assayed, s.leftOutText())
+		if err := s.tooManyOut(); err != nil {
+			return nil, err
 		}
 	}
+}
+
+// tooManyOut refuses a fit that would leave out more than half the assayed lots (not counting
+// those excluded by name): the model and the assays then disagree as a whole, which no factor
+// fitted to the rest should hide.
+func (s *fitState) tooManyOut() error {
+	n := 0
+	for _, lo := range s.leftOut {
+		if !lo.Excluded {
+			n++
+		}
+	}
+	if 2*n <= s.assayed {
+		return nil
+	}
+	return fmt.Errorf("calibration: %d of %d assayed lots disagree with the model beyond what it explains%s; "+
+		"check the assays' units and lot ids, or widen the prior", n, s.assayed, s.leftOutText())
 }
 
 // fitAll fits every element with at least MinLots lots in the fit.
 func (s *fitState) fitAll() (map[string]*elementFit, error) {
 	fits := map[string]*elementFit{}
+	clear(s.family)
 	for _, el := range s.elements {
 		var in []obs
 		for _, o := range s.byEl[el] {
@@ -162,6 +184,11 @@ func (s *fitState) fitAll() (map[string]*elementFit, error) {
 			return nil, err
 		}
 		fits[el] = f
+		byFamily := s.opt
+		byFamily.MinCellLots = math.Inf(1)
+		if s.family[el], err = fitElement(el, in, byFamily); err != nil {
+			return nil, err
+		}
 	}
 	return fits, nil
 }
@@ -215,17 +242,26 @@ func (s *fitState) calibration(fits map[string]*elementFit) *Calibration {
 			continue
 		}
 		e := Element{Element: el, Lots: len(f.obs)}
-		k := len(f.cells)
-		for i, cl := range f.cells {
-			e.Factors = append(e.Factors, Factor{Family: cl.family, Format: cl.format, Mean: f.mean[i],
-				SD: math.Sqrt(f.cov.At(i, i)), PriorSD: f.priorSD[i], Lots: f.nEff[i]})
-			row := make([]float64, k)
-			for j := range k {
-				row[j] = f.cov.At(i, j)
-			}
-			e.Covariance = append(e.Covariance, row)
-		}
+		e.Factors, e.Covariance = f.factors()
+		e.FamilyFactors, e.FamilyCovariance = s.family[el].factors()
 		c.Elements = append(c.Elements, e)
 	}
 	return c
+}
+
+// factors returns the fit's factors and covariance as stored.
+func (f *elementFit) factors() ([]Factor, [][]float64) {
+	var fs []Factor
+	var cov [][]float64
+	k := len(f.cells)
+	for i, cl := range f.cells {
+		fs = append(fs, Factor{Family: cl.family, Format: cl.format, Mean: f.mean[i],
+			SD: math.Sqrt(f.cov.At(i, i)), PriorSD: f.priorSD[i], Lots: f.nEff[i]})
+		row := make([]float64, k)
+		for j := range k {
+			row[j] = f.cov.At(i, j)
+		}
+		cov = append(cov, row)
+	}
+	return fs, cov
 }

@@ -45,6 +45,25 @@ type Element struct {
 	Factors []Factor `json:"factors"`
 	// Covariance is the factors' posterior covariance, in the order of Factors.
 	Covariance [][]float64 `json:"covariance"`
+	// FamilyFactors are a fit by family alone (every format pooled), with their covariance:
+	// they serve a format that has neither a factor of its own nor its family's pooled one in
+	// Factors (a format no assayed lot held, in a family whose formats all have their own).
+	FamilyFactors    []Factor    `json:"family_factors"`
+	FamilyCovariance [][]float64 `json:"family_covariance"`
+}
+
+// The two sets of factors of an element.
+const (
+	mainSet   = 0
+	familySet = 1
+)
+
+// set returns the factors and covariance of set i.
+func (e *Element) set(i int) ([]Factor, [][]float64) {
+	if i == familySet {
+		return e.FamilyFactors, e.FamilyCovariance
+	}
+	return e.Factors, e.Covariance
 }
 
 // Factor is the multiplicative factor on what the model sends to the black mass from one
@@ -58,11 +77,23 @@ type Factor struct {
 	Lots    float64 `json:"lots"` // share-weighted number of lots behind it
 }
 
-// factorIndex returns the factor that applies to a family and format: its own, or its family's;
-// -1 for none.
-func (e *Element) factorIndex(family, format string) int {
+// lookup returns the set and index of the factor that applies to a family and format: its own,
+// its family's pooled one, or the family-only fit's; set −1 for none.
+func (e *Element) lookup(family, format string) (set, idx int) {
+	if i := factorIndex(e.Factors, family, format); i >= 0 {
+		return mainSet, i
+	}
+	if i := factorIndex(e.FamilyFactors, family, ""); i >= 0 {
+		return familySet, i
+	}
+	return -1, -1
+}
+
+// factorIndex returns the factor of fs for a family and format: its own, or its family's
+// pooled one; -1 for none.
+func factorIndex(fs []Factor, family, format string) int {
 	pooled := -1
-	for i, f := range e.Factors {
+	for i, f := range fs {
 		if f.Family != family {
 			continue
 		}
@@ -109,12 +140,28 @@ func (c *Calibration) Check() error {
 }
 
 func (e *Element) check() error {
-	k := len(e.Factors)
-	if k == 0 || len(e.Covariance) != k {
-		return fmt.Errorf("%d factors, covariance of %d rows", k, len(e.Covariance))
+	if err := checkSet(e.Factors, e.Covariance); err != nil {
+		return err
+	}
+	for _, f := range e.FamilyFactors {
+		if f.Format != "" {
+			return fmt.Errorf("family factor %s has a format", cellName(cell{f.Family, f.Format}))
+		}
+	}
+	if err := checkSet(e.FamilyFactors, e.FamilyCovariance); err != nil {
+		return fmt.Errorf("family factors: %w", err)
+	}
+	return nil
+}
+
+// checkSet checks a set of factors and their covariance.
+func checkSet(fs []Factor, cov [][]float64) error {
+	k := len(fs)
+	if k == 0 || len(cov) != k {
+		return fmt.Errorf("%d factors, covariance of %d rows", k, len(cov))
 	}
 	cells := map[cell]bool{}
-	for i, f := range e.Factors {
+	for i, f := range fs {
 		if cells[cell{f.Family, f.Format}] {
 			return fmt.Errorf("factor %s given twice", cellName(cell{f.Family, f.Format}))
 		}
@@ -122,19 +169,19 @@ func (e *Element) check() error {
 		if !(f.Mean > 0) || !(f.SD > 0) || math.IsInf(f.Mean, 0) || math.IsInf(f.SD, 0) {
 			return fmt.Errorf("factor %s: mean %v, sd %v: want finite values above 0", cellName(cell{f.Family, f.Format}), f.Mean, f.SD)
 		}
-		if len(e.Covariance[i]) != k {
-			return fmt.Errorf("covariance row %d has %d values, want %d", i+1, len(e.Covariance[i]), k)
+		if len(cov[i]) != k {
+			return fmt.Errorf("covariance row %d has %d values, want %d", i+1, len(cov[i]), k)
 		}
-		if d := e.Covariance[i][i]; math.Abs(d-f.SD*f.SD) > 1e-6*d {
+		if d := cov[i][i]; math.Abs(d-f.SD*f.SD) > 1e-6*d {
 			return fmt.Errorf("factor %s: sd %v disagrees with its variance %v", cellName(cell{f.Family, f.Format}), f.SD, d)
 		}
 		for j := range k {
-			if a, b := e.Covariance[i][j], e.Covariance[j][i]; math.IsNaN(a) || math.Abs(a-b) > 1e-9*(math.Abs(a)+math.Abs(b)) {
+			if a, b := cov[i][j], cov[j][i]; math.IsNaN(a) || math.Abs(a-b) > 1e-9*(math.Abs(a)+math.Abs(b)) {
 				return fmt.Errorf("covariance not symmetric at (%d, %d)", i+1, j+1)
 			}
 		}
 	}
-	if _, ok := cholesky(e.Covariance); !ok {
+	if _, ok := cholesky(cov); !ok {
 		return errors.New("covariance not positive definite")
 	}
 	return nil

@@ -3,6 +3,7 @@ package calibrate
 import (
 	"math"
 	"math/rand/v2"
+	"slices"
 
 	"blackmass/feed/dist"
 )
@@ -22,18 +23,31 @@ type Sampler struct {
 
 type slot struct{ group, pos int } // group −1: uncalibrated
 
-// drawGroup is the factors of one element that the keys use.
+// drawGroup is the factors of one element's set that the keys use.
 type drawGroup struct {
 	element string
+	set     int
 	mean    []float64
 	chol    []float64 // lower-triangular, k×k row-major
+}
+
+// stream names the group's random stream.
+func (g drawGroup) stream() string {
+	if g.set == familySet {
+		return "calibration/" + g.element + "/family"
+	}
+	return "calibration/" + g.element
 }
 
 // Sampler returns a sampler of the factors for keys. A key whose element or family the
 // calibration has no factor for is uncalibrated: its factor is 1.
 func (c *Calibration) Sampler(keys []Key) *Sampler {
 	s := &Sampler{keys: keys, slot: make([]slot, len(keys))}
-	byEl := map[string]int{}
+	type groupKey struct {
+		element string
+		set     int
+	}
+	byGroup := map[groupKey]int{}
 	var cells [][]int // per group: factor indices used
 	for i, k := range keys {
 		s.slot[i] = slot{-1, 0}
@@ -41,23 +55,18 @@ func (c *Calibration) Sampler(keys []Key) *Sampler {
 		if e == nil {
 			continue
 		}
-		fi := e.factorIndex(k.Family, k.Format)
-		if fi < 0 {
+		set, fi := e.lookup(k.Family, k.Format)
+		if set < 0 {
 			continue
 		}
-		g, ok := byEl[k.Element]
+		g, ok := byGroup[groupKey{k.Element, set}]
 		if !ok {
 			g = len(s.groups)
-			byEl[k.Element] = g
-			s.groups = append(s.groups, drawGroup{element: k.Element})
+			byGroup[groupKey{k.Element, set}] = g
+			s.groups = append(s.groups, drawGroup{element: k.Element, set: set})
 			cells = append(cells, nil)
 		}
-		pos := -1
-		for p, f := range cells[g] {
-			if f == fi {
-				pos = p
-			}
-		}
+		pos := slices.Index(cells[g], fi)
 		if pos < 0 {
 			pos = len(cells[g])
 			cells[g] = append(cells[g], fi)
@@ -65,13 +74,13 @@ func (c *Calibration) Sampler(keys []Key) *Sampler {
 		s.slot[i] = slot{g, pos}
 	}
 	for g := range s.groups {
-		e := c.element(s.groups[g].element)
+		fs, cov := c.element(s.groups[g].element).set(s.groups[g].set)
 		sub := make([][]float64, len(cells[g]))
 		for a, fa := range cells[g] {
-			s.groups[g].mean = append(s.groups[g].mean, e.Factors[fa].Mean)
+			s.groups[g].mean = append(s.groups[g].mean, fs[fa].Mean)
 			sub[a] = make([]float64, len(cells[g]))
 			for b, fb := range cells[g] {
-				sub[a][b] = e.Covariance[fa][fb]
+				sub[a][b] = cov[fa][fb]
 			}
 		}
 		// Check has shown the full covariance positive definite, so is every principal submatrix.
@@ -91,13 +100,13 @@ func (s *Sampler) Draw(src rand.Source, n int) [][]float64 {
 }
 
 // DrawWith returns the factors' draws for the drawer's samples, each element from its own
-// stream "calibration/<element>", so that calibrating one more element shifts no other
-// parameter. With a drawer of 0 samples (most likely values) each factor is its posterior mean.
+// stream ("calibration/<element>", and "calibration/<element>/family" for the family-only
+// factors), so that calibrating one more element shifts no other parameter. With a drawer of 0 samples (most likely values) each factor is its posterior mean.
 func (s *Sampler) DrawWith(d *dist.Drawer) [][]float64 {
 	if d.Samples() == 0 {
 		return s.means()
 	}
-	return s.draw(d.Samples(), func(g int) *rand.Rand { return rand.New(d.Source("calibration/" + s.groups[g].element)) })
+	return s.draw(d.Samples(), func(g int) *rand.Rand { return rand.New(d.Source(s.groups[g].stream())) })
 }
 
 func (s *Sampler) means() [][]float64 {
@@ -155,28 +164,36 @@ func (s *Sampler) draw(n int, rng func(g int) *rand.Rand) [][]float64 {
 
 // Predict returns the calibrated estimate of a measure's element (mean kg) and its standard
 // deviation: the factors' posterior through the parts, and the estimate's own spread scaled
-// by the calibrated-to-uncalibrated ratio. Parts without a factor stay as estimated.
+// by the calibrated-to-uncalibrated ratio. Parts without a factor stay as estimated; the two
+// sets of factors are taken as independent of each other.
 func (c *Calibration) Predict(m Measure) (meanKg, sdKg float64) {
 	o := newObs(0, m)
 	e := c.element(m.Element)
-	var idx []int
-	var kg []float64
+	type use struct {
+		set, idx int
+		kg       float64
+	}
+	var used []use
 	for _, p := range m.Parts {
-		fi := -1
+		set, fi := -1, -1
 		if e != nil {
-			fi = e.factorIndex(p.Family, p.Format)
+			set, fi = e.lookup(p.Family, p.Format)
 		}
-		if fi < 0 {
+		if set < 0 {
 			meanKg += p.Kg
 			continue
 		}
-		meanKg += e.Factors[fi].Mean * p.Kg
-		idx, kg = append(idx, fi), append(kg, p.Kg)
+		fs, _ := e.set(set)
+		meanKg += fs[fi].Mean * p.Kg
+		used = append(used, use{set, fi, p.Kg})
 	}
 	v := 0.0
-	for a := range idx {
-		for b := range idx {
-			v += kg[a] * kg[b] * e.Covariance[idx[a]][idx[b]]
+	for _, a := range used {
+		_, cov := e.set(a.set)
+		for _, b := range used {
+			if a.set == b.set {
+				v += a.kg * b.kg * cov[a.idx][b.idx]
+			}
 		}
 	}
 	r := 1.0

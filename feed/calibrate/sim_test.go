@@ -126,7 +126,7 @@ func simTarget(c *Calibration, lots []simLot, element string, fi int) float64 {
 				continue
 			}
 			for _, p := range m.Parts {
-				if e.factorIndex(p.Family, p.Format) == fi {
+				if set, i := e.lookup(p.Family, p.Format); set == mainSet && i == fi {
 					num += p.Kg * simTruth(element, p.Family, p.Format)
 					den += p.Kg
 				}
