@@ -67,9 +67,10 @@
 //     spread. It catches slips even where the estimate's spread is so wide (an unknown
 //     chemistry, relative sd near 1) that z cannot;
 //   - z: leave-one-out |z| > 4, the worst lot first, then refit, until none is left. Under the
-//     model z is standard normal and P(|z| > 4) = 6.3e-5, so of a thousand honest lots the chance
-//     of leaving out any is about 6 %; a tenfold slip with a 15 % spread gives z near 40. One lot
-//     at a time, because a gross outlier shifts its neighbours' predictions until it is out.
+//     model z is standard normal and P(|z| > 4) = 6.3e-5: of a thousand honest lots assayed for
+//     four elements, a quarter of a lot is left out on average, while a tenfold slip with a 15 %
+//     spread gives z of several tens. One lot at a time, because a gross outlier shifts its
+//     neighbours' predictions until it is out.
 //
 // Options.Exclude leaves lots out by name. A fit that would leave out more than half the
 // assayed lots is refused (the model and the assays disagree as a whole: units, or the prior),
