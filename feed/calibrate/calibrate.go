@@ -59,7 +59,11 @@ func Fit(lots []Lot, opt Options) (*Calibration, *Report, error) {
 		return nil, nil, fmt.Errorf("%w: calibration needs at least %d usable assayed lots, have %d%s",
 			ErrTooFewLots, opt.MinLots, len(used), s.leftOutText())
 	}
-	return s.calibration(fits), s.report(fits), nil
+	c := s.calibration(fits)
+	if err := c.Check(); err != nil {
+		return nil, nil, fmt.Errorf("%w: the fit is not usable; check the kept lots%s", err, s.leftOutText())
+	}
+	return c, s.report(fits), nil
 }
 
 func newFitState(lots []Lot, opt Options) *fitState {

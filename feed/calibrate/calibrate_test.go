@@ -46,7 +46,8 @@ func TestRecoversFactors(t *testing.T) {
 				t.Logf("%d lots: %s %-20s factor %.3f ± %.3f (true %.3f, prior sd %.3f, %.1f lots)", n, e.Element,
 					cellName(cell{f.Family, f.Format}), f.Mean, f.SD, want, f.PriorSD, f.Lots)
 				if math.Abs(f.Mean-want) > 3*f.SD {
-					t.Errorf("%d lots: %s %s: factor %.3f ± %.3f, true %.3f", n, e.Element, cellName(cell{f.Family, f.Format}), f.Mean, f.SD, want)
+					t.Errorf("%d lots: %s %s: factor %.3f ± %.3f, true %.3f", n, e.Element,
+						cellName(cell{f.Family, f.Format}), f.Mean, f.SD, want)
 				}
 			}
 		}

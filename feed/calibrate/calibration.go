@@ -7,6 +7,10 @@ import (
 	"time"
 )
 
+// MaxFactor bounds a factor's mean and sd: a factor beyond it says the model or the assays are
+// broken (a unit slip kept in the fit), not that the model is a hundred times off.
+const MaxFactor = 100
+
 // FormatVersion is the version of the Calibration layout; a reader refuses any other.
 const FormatVersion = 1
 
@@ -166,8 +170,9 @@ func checkSet(fs []Factor, cov [][]float64) error {
 			return fmt.Errorf("factor %s given twice", cellName(cell{f.Family, f.Format}))
 		}
 		cells[cell{f.Family, f.Format}] = true
-		if !(f.Mean > 0) || !(f.SD > 0) || math.IsInf(f.Mean, 0) || math.IsInf(f.SD, 0) {
-			return fmt.Errorf("factor %s: mean %v, sd %v: want finite values above 0", cellName(cell{f.Family, f.Format}), f.Mean, f.SD)
+		if !(f.Mean > 0) || !(f.SD > 0) || f.Mean > MaxFactor || f.SD > MaxFactor {
+			return fmt.Errorf("factor %s: mean %v, sd %v: want values above 0 and at most %d",
+				cellName(cell{f.Family, f.Format}), f.Mean, f.SD, MaxFactor)
 		}
 		if len(cov[i]) != k {
 			return fmt.Errorf("covariance row %d has %d values, want %d", i+1, len(cov[i]), k)

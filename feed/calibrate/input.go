@@ -172,7 +172,8 @@ func checkMeasure(m Measure) error {
 			return fmt.Errorf("%s: a part has no family", m.Element)
 		}
 		if !finiteNonNeg(p.Kg) || !finiteNonNeg(p.SDKg) {
-			return fmt.Errorf("%s: part %s/%s: %v ± %v kg: want finite values, not negative", m.Element, p.Family, p.Format, p.Kg, p.SDKg)
+			return fmt.Errorf("%s: part %s/%s: %v ± %v kg: want finite values, not negative",
+				m.Element, p.Family, p.Format, p.Kg, p.SDKg)
 		}
 	}
 	return nil

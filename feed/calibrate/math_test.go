@@ -192,7 +192,8 @@ func TestPredict(t *testing.T) {
 	opt.PriorRelSD = map[string]float64{"Co": 0.1}
 	c, _ := fitOrFatal(t, oneCellLots([]float64{10, 20, 40}, []float64{8.5, 17, 33}, []float64{0.5, 1, 2}), opt)
 	f := c.Elements[0].Factors[0]
-	got, sd := c.Predict(Measure{Element: "Co", Parts: []Part{{Family: "LCO", Format: "pack", Kg: 10}, {Family: "NMC622", Format: "pack", Kg: 5}}})
+	got, sd := c.Predict(Measure{Element: "Co",
+		Parts: []Part{{Family: "LCO", Format: "pack", Kg: 10}, {Family: "NMC622", Format: "pack", Kg: 5}}})
 	if math.Abs(got-(10*f.Mean+5)) > 1e-12 || math.Abs(sd-10*f.SD) > 1e-12 {
 		t.Errorf("predicted %v ± %v, want %v ± %v", got, sd, 10*f.Mean+5, 10*f.SD)
 	}

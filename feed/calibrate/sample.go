@@ -101,7 +101,8 @@ func (s *Sampler) Draw(src rand.Source, n int) [][]float64 {
 
 // DrawWith returns the factors' draws for the drawer's samples, each element from its own
 // stream ("calibration/<element>", and "calibration/<element>/family" for the family-only
-// factors), so that calibrating one more element shifts no other parameter. With a drawer of 0 samples (most likely values) each factor is its posterior mean.
+// factors), so that calibrating one more element shifts no other parameter. With a drawer of
+// 0 samples (most likely values) each factor is its posterior mean.
 func (s *Sampler) DrawWith(d *dist.Drawer) [][]float64 {
 	if d.Samples() == 0 {
 		return s.means()

@@ -31,11 +31,13 @@ func (r *Register) SaveCalibration(ctx context.Context, c *calibrate.Calibration
 		if err != nil {
 			return err
 		}
-		if _, err := tx.Exec("INSERT INTO calibrations (version, created_at, saved_at, method, lots, calibration) VALUES (?, ?, ?, ?, ?, ?)",
-			version, c.CreatedAt.UTC().Format(time.RFC3339), r.now().Format(time.RFC3339), c.Method, len(c.Lots), string(body)); err != nil {
+		if _, err := tx.Exec(`INSERT INTO calibrations (version, created_at, saved_at, method, lots, calibration)
+			VALUES (?, ?, ?, ?, ?, ?)`, version, c.CreatedAt.UTC().Format(time.RFC3339), r.now().Format(time.RFC3339),
+			c.Method, len(c.Lots), string(body)); err != nil {
 			return err
 		}
-		return audit(tx, r.now(), "calibrate", "", fmt.Sprintf("calibration %d from %d lots (%d left out)", version, len(c.Lots), len(c.LeftOut)))
+		detail := fmt.Sprintf("calibration %d from %d lots (%d left out)", version, len(c.Lots), len(c.LeftOut))
+		return audit(tx, r.now(), "calibrate", "", detail)
 	})
 	if err != nil {
 		return 0, fmt.Errorf("register %s: %w", r.path, err)
