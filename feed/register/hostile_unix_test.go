@@ -30,7 +30,17 @@ func TestNotRegularRefused(t *testing.T) {
 	if err := os.Mkdir(sub, 0o755); err != nil {
 		t.Fatal(err)
 	}
-	for _, path := range []string{fifo, link, sub, os.DevNull} {
+	// A FIFO where SQLite keeps its write-ahead log, beside a register.
+	beside := filepath.Join(dir, "beside.db")
+	r, err := Open(beside)
+	if err != nil {
+		t.Fatal(err)
+	}
+	_ = r.Close()
+	if err := syscall.Mkfifo(beside+"-wal", 0o644); err != nil {
+		t.Fatal(err)
+	}
+	for _, path := range []string{fifo, link, sub, os.DevNull, beside} {
 		done := make(chan error, 1)
 		go func() {
 			r, err := Open(path)
@@ -55,7 +65,7 @@ func TestNotRegularRefused(t *testing.T) {
 	if err := os.Symlink(real, toReg); err != nil {
 		t.Fatal(err)
 	}
-	r, err := Open(toReg)
+	r, err = Open(toReg)
 	if err != nil {
 		t.Fatalf("link to a register: %v", err)
 	}

@@ -77,11 +77,13 @@ func (r *Register) Add(ctx context.Context, l Lot, replace bool) (int, error) {
 				reagents = sql.NullFloat64{Float64: v.ReagentCost.P50, Valid: true}
 			}
 		}
+		// The report and settings go in as the bytes json.Marshal made, cast to TEXT by SQLite:
+		// a string conversion would copy a report of a large manifest (tens of MB) once more.
 		_, err := tx.Exec(`INSERT INTO lots (lot_id, version, current, supplier, received, added_at, tool_version, manifest_name,
 			manifest_sha256, manifest, settings_json, report_json, items, nameplate_kwh, black_mass_kg, currency, payable_value, reagent_cost)
-			VALUES (?, ?, 1, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)`,
+			VALUES (?, ?, 1, ?, ?, ?, ?, ?, ?, ?, CAST(? AS TEXT), CAST(? AS TEXT), ?, ?, ?, ?, ?, ?)`,
 			l.ID, version, l.Supplier, received, r.now().Format(time.RFC3339), l.ToolVersion, l.ManifestName, l.ManifestSHA256, l.Manifest,
-			string(settings), string(rep), rp.Lot.Items, rp.Lot.NameplateKWh, rp.BlackMassKg.P50, currency, payable, reagents)
+			settings, rep, rp.Lot.Items, rp.Lot.NameplateKWh, rp.BlackMassKg.P50, currency, payable, reagents)
 		if err != nil {
 			return err
 		}

@@ -150,6 +150,11 @@ func (r *Register) checkTables() error {
 // the open), and, reading only its header, a file that is not an SQLite database or is one of
 // another application. It reports whether the file exists.
 func checkFile(path string) (bool, error) {
+	for _, side := range []string{"-wal", "-shm", "-journal"} { // the files SQLite keeps beside it
+		if st, err := os.Stat(path + side); err == nil && !st.Mode().IsRegular() {
+			return false, fmt.Errorf("register %s: %s is not a regular file (%s); remove it", path, path+side, kind(st.Mode()))
+		}
+	}
 	st, err := os.Lstat(path)
 	if errors.Is(err, fs.ErrNotExist) {
 		return false, nil
@@ -161,7 +166,7 @@ func checkFile(path string) (bool, error) {
 		return false, fmt.Errorf("register %s: %w", path, err)
 	}
 	if !st.Mode().IsRegular() {
-		return true, fmt.Errorf("register %s: not a regular file (%v); give the path of a register file", path, st.Mode().Type())
+		return true, fmt.Errorf("register %s: not a regular file (%s); give the path of a register file", path, kind(st.Mode()))
 	}
 	f, err := os.OpenFile(path, os.O_RDONLY|syscall.O_NONBLOCK, 0)
 	if err != nil {
@@ -182,6 +187,21 @@ func checkFile(path string) (bool, error) {
 		return true, fmt.Errorf("register %s: an SQLite database of another application (application id %#x), not a blackmass register; it was left untouched", path, id)
 	}
 	return true, nil
+}
+
+// kind names what a file that is not a regular file is.
+func kind(m fs.FileMode) string {
+	switch {
+	case m.IsDir():
+		return "a directory"
+	case m&fs.ModeNamedPipe != 0:
+		return "a named pipe"
+	case m&fs.ModeSocket != 0:
+		return "a socket"
+	case m&fs.ModeDevice != 0:
+		return "a device"
+	}
+	return "mode " + m.Type().String()
 }
 
 // checkContent looks, read-only, through SQLite at a file whose header has no application id:
@@ -214,11 +234,12 @@ func checkContent(path string, readOnly bool) error {
 		return fmt.Errorf("register %s: %w", path, err)
 	}
 	defer db.Close()
+	// One statement, so one snapshot: the id and the tables a writer commits together.
 	var tables int
 	var id int64
-	err = db.QueryRow("PRAGMA application_id").Scan(&id)
-	if err == nil && id != ApplicationID {
-		err = db.QueryRow("SELECT count(*) FROM sqlite_master").Scan(&tables)
+	err = db.QueryRow("SELECT (SELECT application_id FROM pragma_application_id), (SELECT count(*) FROM sqlite_master)").Scan(&id, &tables)
+	if id == ApplicationID {
+		tables = 0
 	}
 	switch {
 	case errors.Is(busy(err), ErrBusy):
