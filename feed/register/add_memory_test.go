@@ -57,6 +57,7 @@ func TestReportStoredAsText(t *testing.T) {
 	}
 	want, _ := json.Marshal(l.Report)
 	if repType != "text" || setType != "text" || valid != 1 || report != string(want) {
-		t.Errorf("report kept as %s (valid JSON %d), settings as %s; same report: %v", repType, valid, setType, report == string(want))
+		t.Errorf("report kept as %s (valid JSON %d), settings as %s; same report: %v",
+			repType, valid, setType, report == string(want))
 	}
 }

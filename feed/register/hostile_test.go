@@ -23,7 +23,8 @@ func foreignDB(t *testing.T, path string) []byte {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if _, err := db.Exec("CREATE TABLE invoices (id INTEGER PRIMARY KEY, total REAL); INSERT INTO invoices VALUES (1, 9.5)"); err != nil {
+	const invoices = "CREATE TABLE invoices (id INTEGER PRIMARY KEY, total REAL); INSERT INTO invoices VALUES (1, 9.5)"
+	if _, err := db.Exec(invoices); err != nil {
 		t.Fatal(err)
 	}
 	_ = db.Close()

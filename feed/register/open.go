@@ -57,6 +57,10 @@ func open(path string, readOnly bool) (*Register, error) {
 		// file a reader needs, and with no write-ahead log the file alone holds everything.
 		r, err = connect(path, readOnly, true)
 	}
+	if err != nil && readOnly && !canImmutable(path) {
+		return nil, fmt.Errorf("%w (it cannot be written here, and the write-ahead log beside it needs that: "+
+			"open it once where it can be written)", err)
+	}
 	if err != nil {
 		return nil, err
 	}
@@ -74,7 +78,7 @@ func open(path string, readOnly bool) (*Register, error) {
 // connect opens the SQLite connection, runs the quick integrity check and, for writing, puts
 // the file in WAL mode.
 func connect(path string, readOnly, immutable bool) (*Register, error) {
-	params := []string{"_pragma=busy_timeout(" + strconv.Itoa(int(busyTimeout/time.Millisecond)) + ")", "_pragma=foreign_keys(1)"}
+	params := []string{busyPragma(), "_pragma=foreign_keys(1)"}
 	switch {
 	case immutable:
 		params = append(params, "mode=ro", "immutable=1", "_pragma=query_only(1)")
@@ -135,7 +139,8 @@ func (r *Register) checkTables() error {
 		}
 		for _, m := range create.FindAllSubmatch(body, -1) {
 			var n int
-			if err := r.db.QueryRow("SELECT count(*) FROM sqlite_master WHERE type = 'table' AND name = ?", string(m[1])).Scan(&n); err != nil {
+			q := "SELECT count(*) FROM sqlite_master WHERE type = 'table' AND name = ?"
+			if err := r.db.QueryRow(q, string(m[1])).Scan(&n); err != nil {
 				return r.wrap(busy(err))
 			}
 			if n == 0 {
@@ -221,7 +226,7 @@ func checkContent(path string, readOnly bool) error {
 	if err != nil || binary.BigEndian.Uint32(head[68:72]) == ApplicationID {
 		return nil // empty (a new register), or ours
 	}
-	params := []string{"mode=ro", "_pragma=busy_timeout(" + strconv.Itoa(int(busyTimeout/time.Millisecond)) + ")"}
+	params := []string{"mode=ro", busyPragma()}
 	if readOnly && canImmutable(path) {
 		params = append(params, "immutable=1")
 	}
@@ -237,7 +242,8 @@ func checkContent(path string, readOnly bool) error {
 	// One statement, so one snapshot: the id and the tables a writer commits together.
 	var tables int
 	var id int64
-	err = db.QueryRow("SELECT (SELECT application_id FROM pragma_application_id), (SELECT count(*) FROM sqlite_master)").Scan(&id, &tables)
+	err = db.QueryRow(`SELECT (SELECT application_id FROM pragma_application_id),
+		(SELECT count(*) FROM sqlite_master)`).Scan(&id, &tables)
 	if id == ApplicationID {
 		tables = 0
 	}
@@ -250,6 +256,11 @@ func checkContent(path string, readOnly bool) error {
 		return fmt.Errorf("register %s: an SQLite database with %d table(s) of its own, not a blackmass register; it was left untouched", path, tables)
 	}
 	return nil
+}
+
+// busyPragma is the URI parameter that has SQLite wait up to the busy timeout for a lock.
+func busyPragma() string {
+	return "_pragma=busy_timeout(" + strconv.Itoa(int(busyTimeout/time.Millisecond)) + ")"
 }
 
 // canWrite reports whether the register file and its directory (where SQLite keeps the

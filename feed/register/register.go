@@ -95,8 +95,8 @@ func (r *Register) migrate(ctx context.Context, upTo int) error {
 		last = min(last, upTo)
 	}
 	if have < last && r.readOnly {
-		return r.wrap(fmt.Errorf("schema version %d, this program reads %d: open it once where it can be written to bring it up to date; %w",
-			have, len(names), ErrReadOnly))
+		return r.wrap(fmt.Errorf("schema version %d, this program reads %d: open it once where it can be written "+
+			"to bring it up to date; %w", have, len(names), ErrReadOnly))
 	}
 	for v := have + 1; v <= last; v++ {
 		body, err := migrations.ReadFile(names[v-1])
