@@ -156,6 +156,9 @@ func runLotAdd(w io.Writer, lo *lotOptions, o *estimateOptions, path, received s
 	if received == "" {
 		received = today()
 	}
+	if err := register.CheckLot(o.lotID, received); err != nil {
+		return err
+	}
 	b, err := readCapped(path, maxManifestBytes)
 	if err != nil {
 		return err

@@ -38,39 +38,21 @@ var ErrExists = errors.New("already in the register")
 // ErrNoLot is returned for a lot id the register does not hold.
 var ErrNoLot = errors.New("no such lot in the register")
 
-func checkID(id string) error {
-	switch {
-	case strings.TrimSpace(id) == "" || id != strings.TrimSpace(id):
-		return fmt.Errorf("lot id %q: give a lot id without leading or trailing spaces (--lot)", intake.Printable(id, 40))
-	case len(id) > MaxIDLen:
-		return fmt.Errorf("lot id longer than %d characters", MaxIDLen)
-	case strings.IndexFunc(id, func(r rune) bool { return r < 0x20 || r == 0x7f }) >= 0:
-		return fmt.Errorf("lot id %q holds control characters", intake.Printable(id, 40))
-	}
-	return nil
-}
-
 // Add records a lot in one transaction. A lot id already present is refused unless replace,
 // which records a new version and keeps the old one (no longer current). It returns the
 // version recorded.
 func (r *Register) Add(ctx context.Context, l Lot, replace bool) (int, error) {
-	if err := checkID(l.ID); err != nil {
-		return 0, err
+	if err := l.Validate(); err != nil {
+		return 0, r.wrap(err)
 	}
-	received, err := date(l.Received)
-	if err != nil {
-		return 0, err
-	}
-	if l.Report == nil {
-		return 0, errors.New("no report to record")
-	}
+	received, _ := date(l.Received)
 	rep, err := json.Marshal(l.Report)
 	if err != nil {
-		return 0, err
+		return 0, r.wrap(err)
 	}
 	settings, err := json.Marshal(l.Settings)
 	if err != nil {
-		return 0, err
+		return 0, r.wrap(err)
 	}
 	version := 0
 	err = r.tx(ctx, func(tx *sql.Tx) error {
@@ -95,11 +77,13 @@ func (r *Register) Add(ctx context.Context, l Lot, replace bool) (int, error) {
 				reagents = sql.NullFloat64{Float64: v.ReagentCost.P50, Valid: true}
 			}
 		}
+		// The report and settings go in as the bytes json.Marshal made, cast to TEXT by SQLite:
+		// a string conversion would copy a report of a large manifest (tens of MB) once more.
 		_, err := tx.Exec(`INSERT INTO lots (lot_id, version, current, supplier, received, added_at, tool_version, manifest_name,
 			manifest_sha256, manifest, settings_json, report_json, items, nameplate_kwh, black_mass_kg, currency, payable_value, reagent_cost)
-			VALUES (?, ?, 1, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)`,
+			VALUES (?, ?, 1, ?, ?, ?, ?, ?, ?, ?, CAST(? AS TEXT), CAST(? AS TEXT), ?, ?, ?, ?, ?, ?)`,
 			l.ID, version, l.Supplier, received, r.now().Format(time.RFC3339), l.ToolVersion, l.ManifestName, l.ManifestSHA256, l.Manifest,
-			string(settings), string(rep), rp.Lot.Items, rp.Lot.NameplateKWh, rp.BlackMassKg.P50, currency, payable, reagents)
+			settings, rep, rp.Lot.Items, rp.Lot.NameplateKWh, rp.BlackMassKg.P50, currency, payable, reagents)
 		if err != nil {
 			return err
 		}
@@ -112,7 +96,7 @@ func (r *Register) Add(ctx context.Context, l Lot, replace bool) (int, error) {
 		}
 		return audit(tx, r.now(), action, l.ID, fmt.Sprintf("version %d from %s (sha256 %s)", version, l.ManifestName, l.ManifestSHA256))
 	})
-	return version, err
+	return version, r.wrap(err)
 }
 
 // insertDetail records the lines as parsed, the (chemistry, format) groups and the metals.
@@ -164,10 +148,10 @@ func exists(tx *sql.Tx, id string) error {
 func (r *Register) AddAssay(ctx context.Context, id, lab, assayedOn, fileName, sha string, content []byte, a *assay.Assay) (int64, error) {
 	on, err := date(assayedOn)
 	if err != nil {
-		return 0, err
+		return 0, r.wrap(err)
 	}
 	if strings.TrimSpace(lab) == "" {
-		return 0, errors.New("name the lab (--lab)")
+		return 0, r.wrap(errors.New("name the lab (--lab)"))
 	}
 	var aid int64
 	err = r.tx(ctx, func(tx *sql.Tx) error {
@@ -189,7 +173,7 @@ func (r *Register) AddAssay(ctx context.Context, id, lab, assayedOn, fileName, s
 		}
 		return audit(tx, r.now(), "assay", id, fmt.Sprintf("assay %d by %s on %s from %s", aid, lab, on, fileName))
 	})
-	return aid, err
+	return aid, r.wrap(err)
 }
 
 // MaxWeighKg bounds a weighing: above any lot a bench takes in at once (common practice).
@@ -199,12 +183,12 @@ const MaxWeighKg = 1e7
 func (r *Register) Weigh(ctx context.Context, id, weighedOn string, kg float64, note string) error {
 	on, err := date(weighedOn)
 	if err != nil {
-		return err
+		return r.wrap(err)
 	}
 	if !(kg > 0) || kg > MaxWeighKg {
-		return fmt.Errorf("weighed mass %v kg: want more than 0 and at most %g kg", kg, float64(MaxWeighKg))
+		return r.wrap(fmt.Errorf("weighed mass %v kg: want more than 0 and at most %g kg", kg, float64(MaxWeighKg)))
 	}
-	return r.tx(ctx, func(tx *sql.Tx) error {
+	return r.wrap(r.tx(ctx, func(tx *sql.Tx) error {
 		if err := exists(tx, id); err != nil {
 			return err
 		}
@@ -212,12 +196,12 @@ func (r *Register) Weigh(ctx context.Context, id, weighedOn string, kg float64, 
 			return err
 		}
 		return audit(tx, r.now(), "weigh", id, fmt.Sprintf("%g kg on %s", kg, on))
-	})
+	}))
 }
 
 // Remove deletes a lot (every version, its assays and weighings) and leaves an audit row.
 func (r *Register) Remove(ctx context.Context, id, reason string) error {
-	return r.tx(ctx, func(tx *sql.Tx) error {
+	return r.wrap(r.tx(ctx, func(tx *sql.Tx) error {
 		if err := exists(tx, id); err != nil {
 			return err
 		}
@@ -227,7 +211,7 @@ func (r *Register) Remove(ctx context.Context, id, reason string) error {
 			}
 		}
 		return audit(tx, r.now(), "remove", id, reason)
-	})
+	}))
 }
 
 // Summary is one lot in a listing.
@@ -256,7 +240,8 @@ type Filter struct {
 }
 
 // List returns the current lots that match f, by date received then id.
-func (r *Register) List(ctx context.Context, f Filter) ([]Summary, error) {
+func (r *Register) List(ctx context.Context, f Filter) (_ []Summary, err error) {
+	defer func() { err = r.wrap(err) }()
 	q := `SELECT lot_id, version, supplier, received, items, nameplate_kwh, black_mass_kg, currency, payable_value, reagent_cost
 		FROM lots l WHERE current = 1`
 	var args []any
@@ -275,8 +260,9 @@ func (r *Register) List(ctx context.Context, f Filter) ([]Summary, error) {
 		}
 	}
 	if f.Chemistry != "" {
-		q += " AND EXISTS (SELECT 1 FROM lot_groups g WHERE g.lot_id = l.lot_id AND g.version = l.version AND upper(g.chemistry) LIKE upper(?))"
-		args = append(args, "%"+f.Chemistry+"%")
+		// instr, not LIKE: the text given is found as text, '%' and '_' are no wildcards.
+		q += " AND EXISTS (SELECT 1 FROM lot_groups g WHERE g.lot_id = l.lot_id AND g.version = l.version AND instr(upper(g.chemistry), upper(?)) > 0)"
+		args = append(args, f.Chemistry)
 	}
 	q += " ORDER BY received, lot_id"
 	rows, err := r.db.QueryContext(ctx, q, args...)
@@ -410,10 +396,11 @@ type AuditRow struct {
 }
 
 // Show returns a lot's detail.
-func (r *Register) Show(ctx context.Context, id string) (*Detail, error) {
+func (r *Register) Show(ctx context.Context, id string) (_ *Detail, err error) {
+	defer func() { err = r.wrap(err) }()
 	d := &Detail{}
 	var report, settings string
-	err := r.db.QueryRowContext(ctx, `SELECT lot_id, version, supplier, received, items, nameplate_kwh, black_mass_kg, added_at, tool_version,
+	err = r.db.QueryRowContext(ctx, `SELECT lot_id, version, supplier, received, items, nameplate_kwh, black_mass_kg, added_at, tool_version,
 		manifest_name, manifest_sha256, report_json, settings_json, currency FROM lots WHERE lot_id = ? AND current = 1`, id).
 		Scan(&d.ID, &d.Version, &d.Supplier, &d.Received, &d.Items, &d.NameplateKWh, &d.BlackMassKg, &d.AddedAt, &d.ToolVersion,
 			&d.ManifestName, &d.ManifestSHA256, &report, &settings, &d.Currency)
@@ -516,7 +503,8 @@ type SupplierCheck struct {
 }
 
 // MonthTotals computes the totals for month (YYYY-MM).
-func (r *Register) MonthTotals(ctx context.Context, month string) (*Totals, error) {
+func (r *Register) MonthTotals(ctx context.Context, month string) (_ *Totals, err error) {
+	defer func() { err = r.wrap(err) }()
 	m, err := time.Parse("2006-01", month)
 	if err != nil {
 		return nil, fmt.Errorf("month %q: want YYYY-MM", intake.Printable(month, 20))

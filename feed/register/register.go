@@ -6,23 +6,18 @@
 package register
 
 import (
-	"bytes"
 	"context"
 	"database/sql"
 	"embed"
-	"encoding/binary"
 	"errors"
 	"fmt"
-	"io"
 	"io/fs"
-	"os"
-	"path/filepath"
 	"slices"
-	"strconv"
 	"strings"
 	"time"
 
-	_ "modernc.org/sqlite" // the pure-Go SQLite driver: no cgo
+	"modernc.org/sqlite" // the pure-Go SQLite driver: no cgo
+	sqlite3 "modernc.org/sqlite/lib"
 
 	"blackmass/feed/intake"
 )
@@ -38,40 +33,24 @@ const busyTimeout = 10 * time.Second
 
 // Register is an open lot register.
 type Register struct {
-	db   *sql.DB
-	path string
-	now  func() time.Time
+	db       *sql.DB
+	path     string
+	readOnly bool // the file or its directory cannot be written: reads only
+	now      func() time.Time
 }
 
 // ErrBusy is returned when another process held the register for longer than the busy timeout.
 var ErrBusy = errors.New("the register is busy (another process is writing); try again")
 
-// Open opens the register at path, creating it (and its directory) on first use and bringing
-// its schema up to date. A file that is not a blackmass register, or a damaged one, is refused
-// and left as it was.
-func Open(path string) (*Register, error) {
-	if err := checkFile(path); err != nil {
-		return nil, err
+// ErrReadOnly is returned for a write to a register opened read-only.
+var ErrReadOnly = errors.New("read-only (the file or its directory cannot be written): nothing was recorded")
+
+// wrap names the register's file in an error.
+func (r *Register) wrap(err error) error {
+	if err == nil {
+		return nil
 	}
-	if err := os.MkdirAll(filepath.Dir(path), 0o755); err != nil {
-		return nil, fmt.Errorf("register %s: %w", path, err)
-	}
-	dsn := "file:" + path + "?_pragma=busy_timeout(" + strconv.Itoa(int(busyTimeout/time.Millisecond)) + ")" +
-		"&_pragma=journal_mode(WAL)&_pragma=foreign_keys(1)&_pragma=synchronous(NORMAL)&_txlock=immediate"
-	db, err := sql.Open("sqlite", dsn)
-	if err != nil {
-		return nil, fmt.Errorf("register %s: %w", path, err)
-	}
-	r := &Register{db: db, path: path, now: func() time.Time { return time.Now().UTC() }}
-	if err := r.check(); err != nil {
-		_ = db.Close()
-		return nil, err
-	}
-	if err := r.migrate(context.Background(), -1); err != nil {
-		_ = db.Close()
-		return nil, err
-	}
-	return r, nil
+	return fmt.Errorf("register %s: %w", r.path, err)
 }
 
 // Close closes the register.
@@ -80,79 +59,11 @@ func (r *Register) Close() error { return r.db.Close() }
 // Path returns the register's file.
 func (r *Register) Path() string { return r.path }
 
-// checkFile refuses, without opening it for writing, a file that exists and is not a blackmass
-// register: not SQLite at all, or SQLite of another application.
-func checkFile(path string) error {
-	f, err := os.Open(path)
-	if errors.Is(err, fs.ErrNotExist) {
-		return nil
-	}
-	if err != nil {
-		return fmt.Errorf("register %s: %w", path, err)
-	}
-	defer f.Close()
-	st, err := f.Stat()
-	if err != nil {
-		return fmt.Errorf("register %s: %w", path, err)
-	}
-	if !st.Mode().IsRegular() {
-		return fmt.Errorf("register %s: not a regular file", path)
-	}
-	if st.Size() == 0 {
-		return nil // an empty file: a new register
-	}
-	var head [100]byte
-	if _, err := io.ReadFull(f, head[:]); err != nil || !bytes.Equal(head[:16], []byte("SQLite format 3\x00")) {
-		return fmt.Errorf("register %s: not a blackmass register (not an SQLite database); it was left untouched", path)
-	}
-	switch id := binary.BigEndian.Uint32(head[68:72]); {
-	case id == ApplicationID:
-		return nil
-	case id != 0:
-		return fmt.Errorf("register %s: an SQLite database of another application (application id %#x), not a blackmass register; it was left untouched", path, id)
-	}
-	// No application id in the file's header: a register whose header still waits in the
-	// write-ahead log, one whose first migration never committed, or someone else's database.
-	// Look through SQLite, read-only.
-	db, err := sql.Open("sqlite", "file:"+path+"?mode=ro")
-	if err != nil {
-		return fmt.Errorf("register %s: %w", path, err)
-	}
-	defer db.Close()
-	var tables int
-	var id int64
-	if err := db.QueryRow("PRAGMA application_id").Scan(&id); err != nil {
-		return fmt.Errorf("register %s: cannot be read (%v); it was left untouched", path, err)
-	}
-	if id == ApplicationID {
-		return nil
-	}
-	if err := db.QueryRow("SELECT count(*) FROM sqlite_master").Scan(&tables); err != nil {
-		return fmt.Errorf("register %s: cannot be read (%v); it was left untouched", path, err)
-	}
-	if tables > 0 {
-		return fmt.Errorf("register %s: an SQLite database with %d table(s) of its own, not a blackmass register; it was left untouched", path, tables)
-	}
-	return nil
-}
-
-// check runs SQLite's quick integrity check.
-func (r *Register) check() error {
-	var res string
-	if err := r.db.QueryRow("PRAGMA quick_check").Scan(&res); err != nil {
-		return fmt.Errorf("register %s: cannot be read (%v); it was left untouched", r.path, err)
-	}
-	if res != "ok" {
-		return fmt.Errorf("register %s: damaged (%s); restore it from a backup", r.path, res)
-	}
-	return nil
-}
-
 // SchemaVersion returns the register's schema version.
 func (r *Register) SchemaVersion() (int, error) {
 	var v int
 	err := r.db.QueryRow("PRAGMA user_version").Scan(&v)
-	return v, err
+	return v, r.wrap(busy(err))
 }
 
 // migrationFiles lists the migrations in order.
@@ -174,17 +85,34 @@ func (r *Register) migrate(ctx context.Context, upTo int) error {
 	}
 	have, err := r.SchemaVersion()
 	if err != nil {
-		return fmt.Errorf("register %s: %w", r.path, err)
+		return err
 	}
 	if have > len(names) {
 		return fmt.Errorf("register %s: schema version %d is newer than this program knows (%d): use a newer blackmass", r.path, have, len(names))
 	}
-	for v := have + 1; v <= len(names) && (upTo < 0 || v <= upTo); v++ {
+	last := len(names)
+	if upTo >= 0 {
+		last = min(last, upTo)
+	}
+	if have < last && r.readOnly {
+		return r.wrap(fmt.Errorf("schema version %d, this program reads %d: open it once where it can be written "+
+			"to bring it up to date; %w", have, len(names), ErrReadOnly))
+	}
+	for v := have + 1; v <= last; v++ {
 		body, err := migrations.ReadFile(names[v-1])
 		if err != nil {
 			return err
 		}
 		err = r.tx(ctx, func(tx *sql.Tx) error {
+			// Another process may have applied this migration since the version was read: the
+			// write lock is held from here (BEGIN IMMEDIATE), so read the version again.
+			var now int
+			if err := tx.QueryRow("PRAGMA user_version").Scan(&now); err != nil {
+				return err
+			}
+			if now >= v {
+				return nil
+			}
 			if _, err := tx.Exec(string(body)); err != nil {
 				return fmt.Errorf("migration %s: %w", names[v-1], err)
 			}
@@ -203,6 +131,9 @@ func (r *Register) migrate(ctx context.Context, upTo int) error {
 
 // tx runs fn in one transaction: all of it is written, or none.
 func (r *Register) tx(ctx context.Context, fn func(*sql.Tx) error) error {
+	if r.readOnly {
+		return ErrReadOnly
+	}
 	tx, err := r.db.BeginTx(ctx, nil)
 	if err != nil {
 		return busy(err)
@@ -216,7 +147,12 @@ func (r *Register) tx(ctx context.Context, fn func(*sql.Tx) error) error {
 
 // busy turns SQLite's busy error into ErrBusy.
 func busy(err error) error {
-	if err != nil && (strings.Contains(err.Error(), "SQLITE_BUSY") || strings.Contains(err.Error(), "database is locked")) {
+	if err == nil || errors.Is(err, ErrBusy) {
+		return err
+	}
+	var se *sqlite.Error
+	if errors.As(err, &se) && se.Code()&0xff == sqlite3.SQLITE_BUSY ||
+		strings.Contains(err.Error(), "SQLITE_BUSY") || strings.Contains(err.Error(), "database is locked") {
 		return fmt.Errorf("%w: %v", ErrBusy, err)
 	}
 	return err
@@ -225,6 +161,9 @@ func busy(err error) error {
 // date checks a YYYY-MM-DD date.
 func date(s string) (string, error) {
 	t, err := time.Parse(time.DateOnly, strings.TrimSpace(s))
+	if pe := (*time.ParseError)(nil); errors.As(err, &pe) && strings.Contains(pe.Message, "out of range") {
+		return "", fmt.Errorf("date %q: no such day in the calendar (want YYYY-MM-DD)", intake.Printable(s, 20))
+	}
 	if err != nil {
 		return "", fmt.Errorf("date %q: want YYYY-MM-DD", intake.Printable(s, 20))
 	}

@@ -215,6 +215,10 @@ func TestForeignFilesRefused(t *testing.T) {
 const helperEnv = "BLACKMASS_REGISTER_HELPER"
 
 func TestMain(m *testing.M) {
+	if path := os.Getenv(readerEnv); path != "" {
+		runReader(path)
+		os.Exit(0)
+	}
 	if spec := os.Getenv(helperEnv); spec != "" {
 		parts := strings.Split(spec, "|")
 		count, _ := strconv.Atoi(parts[2])
@@ -233,6 +237,23 @@ func TestMain(m *testing.M) {
 		os.Exit(0)
 	}
 	os.Exit(m.Run())
+}
+
+// readerEnv makes the test binary a reader of the register at its value: it lists the lots,
+// tries to add one, and prints what happened.
+const readerEnv = "BLACKMASS_REGISTER_READER"
+
+func runReader(path string) {
+	r, err := Open(path)
+	if err != nil {
+		fmt.Println("open:", err)
+		os.Exit(3)
+	}
+	defer r.Close()
+	lots, err := r.List(context.Background(), Filter{})
+	fmt.Println("lots", len(lots), err)
+	_, err = r.Add(context.Background(), sampleLot("RO-1", "s", "2026-11-04", 1), false)
+	fmt.Println("add:", err, errors.Is(err, ErrReadOnly))
 }
 
 func helper(path, prefix string, count int) *exec.Cmd {
