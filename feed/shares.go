@@ -3,9 +3,8 @@ package feed
 import (
 	"math/rand/v2"
 
-	"gonum.org/v1/gonum/stat/distuv"
-
 	"blackmass/cathode"
+	"blackmass/feed/dist"
 )
 
 // maxExactItems is the largest group whose items are drawn one by one (a multinomial draw); a
@@ -28,35 +27,36 @@ func (ps *paramSet) shareDraws(ch *cathode.Chemistry, key string, items int) [][
 		}
 		return out
 	}
-	src := ps.d.Source("shares " + key)
-	rng := rand.New(src)
-	gam := func(alpha float64) float64 {
-		return distuv.Gamma{Alpha: alpha, Beta: 1, Src: src}.Rand()
-	}
+	rng := rand.New(ps.d.Source("shares " + key))
 	partShare := make([]float64, len(ch.Parts))
+	scratch := make([]float64, len(mean))
 	flat := make([]float64, n*len(mean))
+	w := make([]float64, len(mean))
 	for s := range out {
 		sh := flat[s*len(mean) : (s+1)*len(mean)]
 		for i, p := range ch.Parts {
 			partShare[i] = p.Share
 		}
 		if ch.SplitConcentration > 0 {
-			dirichlet(partShare, ch.SplitConcentration, gam)
+			dirichlet(partShare, ch.SplitConcentration, rng, scratch)
 		}
 		for i, p := range ch.Parts {
-			w := make([]float64, len(p.Members))
-			tot := 0.0
+			w := w[:len(p.Members)]
 			for k, m := range p.Members {
 				w[k] = mean[m]
-				tot += mean[m]
-			}
-			for k := range w {
-				w[k] /= tot
 			}
 			if p.Concentration > 0 && len(w) > 1 {
-				dirichlet(w, p.Concentration, gam)
+				dirichlet(w, p.Concentration, rng, scratch)
 				if p.Alternatives {
-					realise(w, items, rng, gam)
+					realise(w, items, rng, scratch)
+				}
+			} else {
+				tot := 0.0
+				for _, x := range w {
+					tot += x
+				}
+				for k := range w {
+					w[k] /= tot
 				}
 			}
 			for k, m := range p.Members {
@@ -68,36 +68,24 @@ func (ps *paramSet) shareDraws(ch *cathode.Chemistry, key string, items int) [][
 	return out
 }
 
-// dirichlet replaces the mean shares w with a draw from Dirichlet(conc·w). A draw that
-// underflows to all zeros (tiny concentrations) keeps the means.
-func dirichlet(w []float64, conc float64, gam func(float64) float64) {
-	g := make([]float64, len(w))
-	sum := 0.0
-	for i, m := range w {
-		if m > 0 {
-			g[i] = gam(conc * m)
-		}
-		sum += g[i]
-	}
-	if !(sum > 0) {
-		return
-	}
-	for i := range w {
-		w[i] = g[i] / sum
-	}
+// dirichlet replaces the shares w with a draw from Dirichlet(conc·w), drawn and normalised in
+// log space so that small shapes neither underflow nor leave 0/0 (see dist.Dirichlet).
+func dirichlet(w []float64, conc float64, rng *rand.Rand, scratch []float64) {
+	dist.Dirichlet(rng, w, conc, scratch[:len(w)])
 }
 
 // realise turns shares q into the shares actually held by items items, each holding one
 // alternative: a multinomial draw for a few items, a Dirichlet(items·q) for many.
-func realise(q []float64, items int, rng *rand.Rand, gam func(float64) float64) {
+func realise(q []float64, items int, rng *rand.Rand, scratch []float64) {
 	if items <= 0 {
 		return
 	}
 	if items > maxExactItems {
-		dirichlet(q, float64(items), gam)
+		dirichlet(q, float64(items), rng, scratch)
 		return
 	}
-	counts := make([]float64, len(q))
+	counts := scratch[:len(q)]
+	clear(counts)
 	for range items {
 		u, acc := rng.Float64(), 0.0
 		k := len(q) - 1

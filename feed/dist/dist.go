@@ -8,6 +8,7 @@ import (
 	"math"
 	"math/rand/v2"
 	"slices"
+	"strconv"
 
 	"gonum.org/v1/gonum/stat/distuv"
 )
@@ -66,14 +67,23 @@ func Quantile(x []float64, p float64) float64 {
 	return x[i] + (h-lo)*(x[i+1]-x[i])
 }
 
-// Sig rounds v to 9 significant digits.
+// Sig rounds v to 9 significant digits. Far from 1 (a scale factor 10^d beyond about 10^±290,
+// which overflows or underflows when v is multiplied by it) it rounds through the decimal text.
 func Sig(v float64) float64 {
 	if v == 0 || math.IsNaN(v) || math.IsInf(v, 0) {
 		return v
 	}
 	d := 9 - int(math.Ceil(math.Log10(math.Abs(v))))
+	if d > maxScaleDigits || d < -maxScaleDigits {
+		r, _ := strconv.ParseFloat(strconv.FormatFloat(v, 'g', 9, 64), 64)
+		return r
+	}
 	return Round(v, d)
 }
+
+// maxScaleDigits bounds the decimal places Sig rounds by scaling: 10^290 times a number below
+// 10^18 stays far from the float64 limit of 1.8·10^308.
+const maxScaleDigits = 290
 
 // Round rounds v to digits decimal places.
 func Round(v float64, digits int) float64 {
