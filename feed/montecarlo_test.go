@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"os"
+	"runtime"
 	"strings"
 	"testing"
 
@@ -116,4 +117,44 @@ func TestCheckFiniteNamesTheOrigin(t *testing.T) {
 	if err := (&feed.Report{}).CheckFinite(); err != nil {
 		t.Errorf("finite report: %v", err)
 	}
+}
+
+// BenchmarkDemoPerSample runs the demo lot's whole estimate (Monte Carlo, report, leach plan)
+// at 20,000 samples and reports the cost per sample: µs, bytes allocated, and bytes of heap
+// held at the end (the draws, by compound and element, kept for the report). Memory grows with
+// samples and groups, not with lines.
+func BenchmarkDemoPerSample(b *testing.B) {
+	demo, err := os.ReadFile("../data/demo/lot-KR-2611.csv")
+	if err != nil {
+		b.Fatal(err)
+	}
+	cat, m := embedded(b)
+	const samples = 20_000
+	b.ReportAllocs()
+	var before, after runtime.MemStats
+	runtime.ReadMemStats(&before)
+	var held uint64
+	for b.Loop() {
+		lot := feed.NewLot(m, false)
+		if err := readCSV(strings.NewReader(string(demo)), "demo.csv", intake.Options{Catalogue: cat, UnknownAsPrior: true}, lot.Add); err != nil {
+			b.Fatal(err)
+		}
+		o := leach.DefaultOptions()
+		r, s, err := lot.Estimate(feed.EstimateOptions{Seed: 1, Samples: samples, Leach: &o})
+		if err != nil {
+			b.Fatal(err)
+		}
+		b.StopTimer()
+		var ms runtime.MemStats
+		runtime.GC()
+		runtime.ReadMemStats(&ms)
+		held = max(held, ms.HeapAlloc)
+		runtime.KeepAlive(r)
+		runtime.KeepAlive(s)
+		b.StartTimer()
+	}
+	runtime.ReadMemStats(&after)
+	b.ReportMetric(float64(b.Elapsed().Microseconds())/float64(b.N)/samples, "µs/sample")
+	b.ReportMetric(float64(after.TotalAlloc-before.TotalAlloc)/float64(b.N)/samples, "B-alloc/sample")
+	b.ReportMetric(float64(held)/samples, "B-held/sample")
 }

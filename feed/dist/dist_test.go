@@ -3,6 +3,7 @@ package dist_test
 import (
 	"math"
 	"math/rand/v2"
+	"slices"
 	"testing"
 
 	"gonum.org/v1/gonum/mathext"
@@ -139,6 +140,40 @@ func TestSigExtremes(t *testing.T) {
 	} {
 		if got := dist.Sig(c.in); got != c.want {
 			t.Errorf("Sig(%g) = %g, want %g", c.in, got, c.want)
+		}
+	}
+}
+
+// Selection gives the same P10/P50/P90 as sorting and interpolating (PERCENTILE.INC), for
+// sizes around the selection threshold, with ties and with runs of zeros.
+func TestSummariseSelectionMatchesSort(t *testing.T) {
+	t.Parallel()
+	rng := rand.New(rand.NewPCG(5, 6))
+	for _, n := range []int{1, 2, 9, 10, 63, 64, 65, 100, 1001, 4000} {
+		for _, kind := range []string{"uniform", "ties", "zeros"} {
+			x := make([]float64, n)
+			for i := range x {
+				switch kind {
+				case "uniform":
+					x[i] = rng.Float64()
+				case "ties":
+					x[i] = float64(rng.IntN(5))
+				case "zeros":
+					if rng.IntN(3) > 0 {
+						x[i] = rng.ExpFloat64()
+					}
+				}
+			}
+			s := slices.Clone(x)
+			slices.Sort(s)
+			got := dist.Summarise(x)
+			for _, c := range []struct {
+				p, got float64
+			}{{0.1, got.P10}, {0.5, got.P50}, {0.9, got.P90}} {
+				if want := dist.Sig(dist.Quantile(s, c.p)); c.got != want {
+					t.Errorf("n %d %s: quantile %v = %v, sorting gives %v", n, kind, c.p, c.got, want)
+				}
+			}
 		}
 	}
 }
