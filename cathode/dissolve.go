@@ -3,7 +3,7 @@ package cathode
 import (
 	"fmt"
 	"math"
-	"sort"
+	"slices"
 	"strings"
 )
 
@@ -154,12 +154,12 @@ func Dissolve(sp Species, route Route, x Extraction) (Reaction, error) {
 	if err := lg.redoxPartners(&rx, sp, route); err != nil {
 		return rx, err
 	}
-	for sym, n := range lg.residue {
-		if n > 1e-15 {
-			rx.Residue = append(rx.Residue, Term{sym, n})
+	for _, t := range lg.residue {
+		if t.Amount > 1e-15 {
+			rx.Residue = append(rx.Residue, t)
 		}
 	}
-	sort.Slice(rx.Residue, func(i, j int) bool { return rx.Residue[i].Symbol < rx.Residue[j].Symbol })
+	slices.SortFunc(rx.Residue, func(a, b Term) int { return strings.Compare(a.Symbol, b.Symbol) })
 	return rx, nil
 }
 
@@ -168,7 +168,7 @@ func Dissolve(sp Species, route Route, x Extraction) (Reaction, error) {
 // hydrogen (eH2), the positive charge left in the residue, and the residue itself.
 type ledger struct {
 	eRed, eOx, eH2, retainedCharge float64
-	residue                        map[string]float64
+	residue                        terms
 	// phosphateRetainedWithFe is the iron (mol) that keeps its phosphate in the residue on the
 	// selective route; liReleased the lithium (mol) the olivine releases there.
 	phosphateRetainedWithFe, liReleased float64
@@ -188,7 +188,7 @@ func dissolveMetals(rx *Reaction, sp Species, route Route, x Extraction) (*ledge
 		}
 		return v, nil
 	}
-	lg := &ledger{residue: map[string]float64{}}
+	lg := &ledger{residue: make(terms, 0, len(sp.Formula.terms)+2)}
 	// On the selective route iron is oxidised as lithium leaves the olivine (LiFePO4 -> FePO4 +
 	// Li+ + e-): the share of iron oxidised follows the lithium released.
 	if route == SulfuricSelective && sp.anionic == "phosphate" {
@@ -242,7 +242,7 @@ func dissolveMetals(rx *Reaction, sp Species, route Route, x Extraction) (*ledge
 			rx.Cations = append(rx.Cations, Ion{t.Symbol, z, released})
 		}
 		if retained > 0 {
-			lg.residue[t.Symbol] += retained
+			lg.residue.add(t.Symbol, retained)
 		}
 	}
 	return lg, nil
@@ -252,34 +252,34 @@ func dissolveMetals(rx *Reaction, sp Species, route Route, x Extraction) (*ledge
 // (phosphate first, with iron on the selective route), the rest leave as H3PO4, H2O, CO2 or HF.
 func (lg *ledger) anions(rx *Reaction, sp Species) {
 	nP, nO, nF, nC := sp.Formula.Moles("P"), sp.Formula.Moles("O"), sp.Formula.Moles("F"), sp.Formula.Moles("C")
-	residue, retainedCharge := lg.residue, lg.retainedCharge
+	residue, retainedCharge := &lg.residue, lg.retainedCharge
 	switch sp.anionic {
 	case "phosphate":
 		keepP := math.Min(nP, math.Max(lg.phosphateRetainedWithFe, retainedCharge/3))
 		rx.ResidueFePO4Mol = math.Min(lg.phosphateRetainedWithFe, lg.liReleased)
 		rest := retainedCharge - 3*keepP
 		keepO := 4*keepP + math.Max(rest, 0)/2
-		residue["P"] += keepP
-		residue["O"] += keepO
+		residue.add("P", keepP)
+		residue.add("O", keepO)
 		rx.H3PO4Mol = nP - keepP
 		rx.WaterMol = (nO - keepO) - 4*rx.H3PO4Mol
 	case "carbonate":
 		keepC := math.Min(nC, retainedCharge/2)
-		residue["C"] += keepC
-		residue["O"] += 3 * keepC
+		residue.add("C", keepC)
+		residue.add("O", 3*keepC)
 		rx.CO2Mol = nC - keepC
 		rx.WaterMol = (nO - 3*keepC) - 2*rx.CO2Mol
 	case "oxide":
 		keepO := retainedCharge / 2
-		residue["O"] += keepO
+		residue.add("O", keepO)
 		rx.WaterMol = nO - keepO
 	case "fluoride":
-		residue["F"] += retainedCharge
+		residue.add("F", retainedCharge)
 		rx.HFMol = nF - retainedCharge
 	case "hexafluorophosphate":
 		keepP := retainedCharge // one PF6- per unit charge
-		residue["P"] += keepP
-		residue["F"] += 6 * keepP
+		residue.add("P", keepP)
+		residue.add("F", 6*keepP)
 		rx.H3PO4Mol = nP - keepP
 		rx.HFMol = 6 * rx.H3PO4Mol
 		rx.WaterMol = -4 * rx.H3PO4Mol
@@ -314,6 +314,20 @@ func (lg *ledger) redoxPartners(rx *Reaction, sp Species, route Route) error {
 		rx.AnionMol = rx.AcidMol - 2*rx.Cl2Mol
 	}
 	return nil
+}
+
+// terms are the few elements of a residue: a slice searched in turn costs less than a map.
+type terms []Term
+
+// add adds n mol of sym.
+func (ts *terms) add(sym string, n float64) {
+	for i := range *ts {
+		if (*ts)[i].Symbol == sym {
+			(*ts)[i].Amount += n
+			return
+		}
+	}
+	*ts = append(*ts, Term{sym, n})
 }
 
 // aqueousCharge is the charge of each metal's ion in an acid leach liquor (0: no rule).

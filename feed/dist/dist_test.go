@@ -2,7 +2,11 @@ package dist_test
 
 import (
 	"math"
+	"math/rand/v2"
+	"slices"
 	"testing"
+
+	"gonum.org/v1/gonum/mathext"
 
 	"blackmass/feed/dist"
 )
@@ -45,5 +49,131 @@ func TestDrawer(t *testing.T) {
 	}
 	if v := dist.NewDrawer(1, 0).Draws("p", 1, 2, 4); len(v) != 1 || v[0] != 2 {
 		t.Errorf("mode-only drawer gave %v", v)
+	}
+}
+
+// The log of a Gamma(a, 1) draw has mean ψ(a) and variance ψ'(a) (digamma and trigamma; e.g.
+// Johnson, Kotz and Balakrishnan, Continuous Univariate Distributions vol. 1, 2nd ed. (1994),
+// ch. 17), which holds for shapes far below 1, where the draw itself underflows float64.
+func TestLogGammaMoments(t *testing.T) {
+	t.Parallel()
+	rng := rand.New(rand.NewPCG(1, 2))
+	const n = 200_000
+	for _, a := range []float64{1e-4, 0.01, 0.3, 1, 2.5, 40} {
+		sum, sum2 := 0.0, 0.0
+		for range n {
+			x := dist.LogGamma(rng, a)
+			if math.IsNaN(x) || math.IsInf(x, 0) {
+				t.Fatalf("shape %g: draw %v", a, x)
+			}
+			sum += x
+			sum2 += x * x
+		}
+		mean := sum / n
+		variance := sum2/n - mean*mean
+		wantMean, wantVar := mathext.Digamma(a), trigamma(a)
+		// Standard error of the mean is sqrt(var/n); 5 of them.
+		if se := math.Sqrt(wantVar / n); math.Abs(mean-wantMean) > 5*se {
+			t.Errorf("shape %g: mean log %v, want ψ(a) = %v ± %v", a, mean, wantMean, 5*se)
+		}
+		if math.Abs(variance/wantVar-1) > 0.03 {
+			t.Errorf("shape %g: variance of log %v, want ψ'(a) = %v", a, variance, wantVar)
+		}
+	}
+}
+
+// trigamma is ψ'(x) by the recurrence ψ'(x) = ψ'(x+1) + 1/x² up to x ≥ 20 and the asymptotic
+// series 1/x + 1/(2x²) + 1/(6x³) − 1/(30x⁵) + 1/(42x⁷) (Abramowitz and Stegun 6.4.6, 6.4.12).
+func trigamma(x float64) float64 {
+	s := 0.0
+	for ; x < 20; x++ {
+		s += 1 / (x * x)
+	}
+	return s + 1/x + 1/(2*x*x) + 1/(6*x*x*x) - 1/(30*math.Pow(x, 5)) + 1/(42*math.Pow(x, 7))
+}
+
+// A Dirichlet draw is finite, non-negative and sums to 1 for every concentration, down to
+// shapes whose gamma draws are all below the smallest float64; its mean shares are the weights
+// (a Dirichlet's mean is α_i/Σα; Kotz, Balakrishnan and Johnson, Continuous Multivariate
+// Distributions vol. 1, 2nd ed. (2000), ch. 49).
+func TestDirichletSumsToOne(t *testing.T) {
+	t.Parallel()
+	rng := rand.New(rand.NewPCG(3, 4))
+	weights := []float64{0.5, 0.3, 0.15, 0.049, 0.001, 0}
+	for _, conc := range []float64{1e-320, 1e-300, 1e-12, 0.01, 2, 200, 1e6} {
+		mean := make([]float64, len(weights))
+		const n = 20_000
+		w, scratch := make([]float64, len(weights)), make([]float64, len(weights))
+		for range n {
+			copy(w, weights)
+			dist.Dirichlet(rng, w, conc, scratch)
+			sum := 0.0
+			for i, x := range w {
+				if math.IsNaN(x) || x < 0 || x > 1 {
+					t.Fatalf("conc %g: share %v", conc, x)
+				}
+				sum += x
+				mean[i] += x / n
+			}
+			if math.Abs(sum-1) > 1e-12 {
+				t.Fatalf("conc %g: shares sum to %v", conc, sum)
+			}
+			if w[len(w)-1] != 0 {
+				t.Fatalf("conc %g: a zero weight drew %v", conc, w[len(w)-1])
+			}
+		}
+		for i, m := range mean {
+			// A share's variance is at most q(1−q) (the limit of a vanishing concentration).
+			if se := math.Sqrt(weights[i] * (1 - weights[i]) / n); math.Abs(m-weights[i]) > 5*se+1e-12 {
+				t.Errorf("conc %g: mean share %d is %v, want %v ± %v", conc, i, m, weights[i], 5*se)
+			}
+		}
+	}
+}
+
+// Sig keeps 9 significant digits at every magnitude float64 holds, subnormals included.
+func TestSigExtremes(t *testing.T) {
+	t.Parallel()
+	for _, c := range []struct{ in, want float64 }{
+		{8.23036e-318, 8.23036e-318}, {5.1423723121945485e-301, 5.14237231e-301}, {1.23456789123e300, 1.23456789e300},
+		{-2.0000000004e-310, -2e-310}, {123.4567891234, 123.456789}, {math.MaxFloat64, 1.79769313e308},
+	} {
+		if got := dist.Sig(c.in); got != c.want {
+			t.Errorf("Sig(%g) = %g, want %g", c.in, got, c.want)
+		}
+	}
+}
+
+// Selection gives the same P10/P50/P90 as sorting and interpolating (PERCENTILE.INC), for
+// sizes around the selection threshold, with ties and with runs of zeros.
+func TestSummariseSelectionMatchesSort(t *testing.T) {
+	t.Parallel()
+	rng := rand.New(rand.NewPCG(5, 6))
+	for _, n := range []int{1, 2, 9, 10, 63, 64, 65, 100, 1001, 4000} {
+		for _, kind := range []string{"uniform", "ties", "zeros"} {
+			x := make([]float64, n)
+			for i := range x {
+				switch kind {
+				case "uniform":
+					x[i] = rng.Float64()
+				case "ties":
+					x[i] = float64(rng.IntN(5))
+				case "zeros":
+					if rng.IntN(3) > 0 {
+						x[i] = rng.ExpFloat64()
+					}
+				}
+			}
+			s := slices.Clone(x)
+			slices.Sort(s)
+			got := dist.Summarise(x)
+			for _, c := range []struct {
+				p, got float64
+			}{{0.1, got.P10}, {0.5, got.P50}, {0.9, got.P90}} {
+				if want := dist.Sig(dist.Quantile(s, c.p)); c.got != want {
+					t.Errorf("n %d %s: quantile %v = %v, sorting gives %v", n, kind, c.p, c.got, want)
+				}
+			}
+		}
 	}
 }

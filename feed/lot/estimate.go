@@ -76,9 +76,8 @@ func (l *Lot) draw(ps *paramSet, n int) *Samples {
 	for _, g := range l.order {
 		volt, capa := ps.chemDraws(g.chem)
 		shares := ps.shareDraws(g.chem, g.chem.Key+"/"+g.format.String(), g.items)
-		massWh := ps.massOnlyWh(g, shares)
+		mo := ps.massOnlyDraws(g)
 		cam, gbm := make([]float64, n), make([]float64, n)
-		fr := ps.formats[g.format]
 		// Only the group's own compounds can be non-zero: the fixed ones and its cathodes. Summing
 		// just those keeps the cost per group independent of how many chemistries the lot holds.
 		touched := append(fixedIndices(), g.camIdx...)
@@ -86,8 +85,9 @@ func (l *Lot) draw(ps *paramSet, n int) *Samples {
 			for _, c := range touched {
 				bm[c] = 0
 			}
-			b := model(g.energyWh+massWh[i], g.chargeAh, mixAt(g.chem.Components, shares[i], volt, capa, i), fr[i], ps.globals[i])
-			b.blackMass(bm, fr[i], ps.globals[i], g.camIdx, shares[i])
+			sh, fr, gl := shares.next(), ps.design(g.format, i), ps.global(i)
+			b := model(g.energyWh+mo.wh(i, sh), g.chargeAh, mixAt(g.chem.Components, sh, volt, capa, i), fr, gl)
+			b.blackMass(bm, fr, gl, g.camIdx, sh)
 			tot := 0.0
 			for _, c := range touched {
 				m := bm[c] / 1000

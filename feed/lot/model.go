@@ -3,6 +3,7 @@ package lot
 import (
 	"fmt"
 	"io/fs"
+	"sync"
 
 	"blackmass/cathode"
 	"blackmass/data"
@@ -113,8 +114,10 @@ func LoadModel(fsys fs.FS) (*Model, error) {
 	return m, nil
 }
 
+var defaultModel = sync.OnceValues(func() (*Model, error) { return LoadModel(data.FS) })
+
 // DefaultModel returns the model embedded in the program.
-func DefaultModel() (*Model, error) { return LoadModel(data.FS) }
+func DefaultModel() (*Model, error) { return defaultModel() }
 
 func (m *Model) get(scope, name string) *Param { return m.params[scope+"/"+name] }
 
@@ -146,47 +149,57 @@ type design struct {
 	overhead                          float64
 }
 
-// paramSet is every parameter's draws, or its most likely value when samples == 0.
+// paramSet is every parameter's draws, or its most likely value when samples == 0. The draws
+// are kept once, per parameter (the drawer's); a sample's globals and design are gathered from
+// them when asked, so no second copy of every draw is held.
 type paramSet struct {
 	m       *Model
 	d       *dist.Drawer
-	globals []globals
-	formats map[manifest.Format][]design
+	globals [][]float64 // [global name][sample]
+	formats map[manifest.Format]*formatDraws
+}
+
+// formatDraws are one format's design parameters, each over the samples.
+type formatDraws struct {
+	areal, al, cu, el, bc, sep, cas, over []float64
+	kind                                  casingKind
 }
 
 func newParamSet(m *Model, seed uint64, samples int) *paramSet {
-	ps := &paramSet{m: m, d: dist.NewDrawer(seed, samples), formats: map[manifest.Format][]design{}}
+	ps := &paramSet{m: m, d: dist.NewDrawer(seed, samples), formats: map[manifest.Format]*formatDraws{}}
 	n := max(samples, 1)
-	g := make([][]float64, len(globalNames))
+	ps.globals = make([][]float64, len(globalNames))
 	for i, name := range globalNames {
-		g[i] = ps.values("all", name)
-	}
-	ps.globals = make([]globals, n)
-	for s := range n {
-		ps.globals[s] = globals{g[0][s], g[1][s], g[2][s], g[3][s], g[4][s], g[5][s], g[6][s], g[7][s], g[8][s], g[9][s], g[10][s], g[11][s], g[12][s], g[13][s], g[14][s]}
+		ps.globals[i] = ps.values("all", name)
 	}
 	for _, f := range manifest.Formats() {
 		sc := f.String()
-		areal, al, cu, el := ps.values(sc, "areal_capacity"), ps.values(sc, "al_foil_thickness"), ps.values(sc, "cu_foil_thickness"), ps.values(sc, "electrolyte_per_ah")
-		bc, sep := ps.values(sc, "binder_carbon"), ps.values(sc, "separator")
-		var cas []float64
-		var kind casingKind
-		for k, n := range casingNames {
-			if m.get(sc, n) != nil {
-				cas, kind = ps.values(sc, n), casingKind(k)
+		fd := &formatDraws{areal: ps.values(sc, "areal_capacity"), al: ps.values(sc, "al_foil_thickness"), cu: ps.values(sc, "cu_foil_thickness"),
+			el: ps.values(sc, "electrolyte_per_ah"), bc: ps.values(sc, "binder_carbon"), sep: ps.values(sc, "separator")}
+		for k, name := range casingNames {
+			if m.get(sc, name) != nil {
+				fd.cas, fd.kind = ps.values(sc, name), casingKind(k)
 			}
 		}
-		over := make([]float64, n)
+		fd.over = make([]float64, n)
 		if f.IsAssembly() {
-			over = ps.values(sc, sc+"_overhead")
+			fd.over = ps.values(sc, sc+"_overhead")
 		}
-		fr := make([]design, n)
-		for s := range n {
-			fr[s] = design{areal[s], al[s], cu[s], el[s], bc[s], sep[s], cas[s], kind, over[s]}
-		}
-		ps.formats[f] = fr
+		ps.formats[f] = fd
 	}
 	return ps
+}
+
+// global returns the "all" parameters at sample s.
+func (ps *paramSet) global(s int) globals {
+	g := ps.globals
+	return globals{g[0][s], g[1][s], g[2][s], g[3][s], g[4][s], g[5][s], g[6][s], g[7][s], g[8][s], g[9][s], g[10][s], g[11][s], g[12][s], g[13][s], g[14][s]}
+}
+
+// design returns format f's cell design at sample s.
+func (ps *paramSet) design(f manifest.Format, s int) design {
+	d := ps.formats[f]
+	return design{d.areal[s], d.al[s], d.cu[s], d.el[s], d.bc[s], d.sep[s], d.cas[s], d.kind, d.over[s]}
 }
 
 // values returns the draws of a model parameter (or its mode, as a one-element slice, when the
@@ -209,29 +222,44 @@ func (ps *paramSet) chemistry(e *cathode.Entry) (voltV, capMAhG []float64) {
 	return ps.rangeValues("chemistry "+e.Key+"/voltage", e.VoltageV), ps.rangeValues("chemistry "+e.Key+"/capacity", e.CapacityMAhPerG)
 }
 
-// massOnlyWh returns, per sample, the energy of a group's lines known by weight only: their mass
-// times the specific energy of the drawn chemistry (each component's Wh/kg drawn across its
-// plausible band, weighted by the drawn shares), lowered by the drawn overhead of an assembly.
-func (ps *paramSet) massOnlyWh(g *group, shares [][]float64) []float64 {
-	n := max(ps.d.Samples(), 1)
-	out := make([]float64, n)
+// massOnly is what the energy of a group's lines known by weight only is drawn from: each
+// component's Wh/kg across its plausible band and the assembly overhead, per sample.
+type massOnly struct {
+	kg   float64
+	band [][]float64 // [component][sample] Wh/kg
+	over []float64   // [sample]; nil for a cell format
+}
+
+// massOnlyDraws returns the draws a group's lines known by weight only need (none when it has
+// no such lines).
+func (ps *paramSet) massOnlyDraws(g *group) massOnly {
+	mo := massOnly{kg: g.massOnlyKg}
 	if g.massOnlyKg == 0 {
-		return out
+		return mo
 	}
-	band := make([][]float64, len(g.chem.Components))
+	mo.band = make([][]float64, len(g.chem.Components))
 	for j, c := range g.chem.Components {
-		band[j] = ps.rangeValues("chemistry "+c.Entry.Key+"/specific_energy", c.Entry.SpecificEnergyWhPerKg)
+		mo.band[j] = ps.rangeValues("chemistry "+c.Entry.Key+"/specific_energy", c.Entry.SpecificEnergyWhPerKg)
 	}
-	over := make([]float64, n)
 	if g.format.IsAssembly() {
-		over = ps.values(g.format.String(), g.format.String()+"_overhead")
+		mo.over = ps.values(g.format.String(), g.format.String()+"_overhead")
 	}
-	for i := range n {
-		w := 0.0
-		for j := range band {
-			w += shares[i][j] * band[j][i]
-		}
-		out[i] = g.massOnlyKg * w * (1 - over[i])
+	return mo
+}
+
+// wh is the energy of the lines known by weight only at sample i with component shares: their
+// mass times the specific energy of the drawn chemistry (the components' drawn Wh/kg weighted by
+// the drawn shares), lowered by the drawn overhead of an assembly.
+func (mo massOnly) wh(i int, shares []float64) float64 {
+	if mo.kg == 0 {
+		return 0
 	}
-	return out
+	w := 0.0
+	for j := range mo.band {
+		w += shares[j] * mo.band[j][i]
+	}
+	if mo.over != nil {
+		w *= 1 - mo.over[i]
+	}
+	return mo.kg * w
 }

@@ -85,9 +85,9 @@ func cellDraws(t *testing.T, label string, f manifest.Format, energyWh, chargeAh
 	shares := ps.shareDraws(&ch, ch.Key+"/"+f.String(), 1)
 	out := make([]cellDraw, referenceSamples)
 	for i := range out {
-		mx := mixAt(ch.Components, shares[i], volt, capa, i)
-		fd := ps.formats[f][i]
-		out[i] = cellDraw{b: model(energyWh, chargeAh, mx, fd, ps.globals[i]), g: ps.globals[i], fd: fd, mx: mx}
+		mx := mixAt(ch.Components, shares.next(), volt, capa, i)
+		fd, g := ps.design(f, i), ps.global(i)
+		out[i] = cellDraw{b: model(energyWh, chargeAh, mx, fd, g), g: g, fd: fd, mx: mx}
 	}
 	return out
 }
