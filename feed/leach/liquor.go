@@ -1,0 +1,211 @@
+package leach
+
+import (
+	"blackmass/cathode"
+	"blackmass/feed/dist"
+	"fmt"
+	"math"
+	"slices"
+	"strings"
+)
+
+// Conc is an element's concentration in the liquor.
+type Conc struct {
+	GPerL   dist.Stat `json:"g_per_l"`
+	MolPerL dist.Stat `json:"mol_per_l"`
+}
+
+// Liquor is the expected leach liquor.
+type Liquor struct {
+	VolumeL        dist.Stat       `json:"volume_l"`
+	Elements       map[string]Conc `json:"elements"`
+	Anion          string          `json:"anion"`
+	AnionMolPerL   dist.Stat       `json:"anion_mol_per_l"`
+	ChargeResidual float64         `json:"charge_balance_max_relative_residual"`
+	// ExtractionReached is each metal's share of the feed that dissolved with the dose given.
+	ExtractionReached map[string]dist.Stat `json:"extraction_reached"`
+	// Fe3GPerL is the iron oxidised to Fe(III) by peroxide left after the reduction.
+	Fe3GPerL *dist.Stat `json:"fe3_g_per_l,omitempty"`
+}
+
+// report summarises the samples.
+func (p *leachPlanner) report() (*Report, error) {
+	n, opt, route := p.n, p.opt, p.route
+	lr := &Report{Route: route.String(), Settings: opt, Gases: map[string]Gas{}, Saturation: map[string]dist.Stat{}, SaturationAtC: map[string]float64{},
+		GasReference: "ideal gas at 0 °C and 101.325 kPa (22.414 L/mol)", Safety: leachSafety[route], Extraction: p.ranges}
+	col := func(f func(i int) float64) []float64 {
+		out := make([]float64, n)
+		for i := range out {
+			out[i] = f(i)
+		}
+		return out
+	}
+	acidR := p.reagent(route.Acid(), opt.AcidWtPct, p.acidRho, p.acidM, p.acidDose, p.acidPlan, p.acidFull, opt.AcidPricePerKg)
+	lr.Reagents = append(lr.Reagents, acidR)
+	var redR *Reagent
+	if p.red != nil {
+		strength, rho := 100.0, 0.0
+		if p.red.Form == "solution" {
+			strength, rho = opt.H2O2WtPct, p.redRho
+		}
+		r := p.reagent(p.red.Key, strength, rho, p.red.MolarMassGMol, p.redDose, p.redPlan, p.redFull, opt.H2O2PricePerKg)
+		lr.Reagents = append(lr.Reagents, r)
+		redR = &lr.Reagents[len(lr.Reagents)-1]
+	}
+	lr.WaterL = dist.Summarise(p.water)
+	if opt.AcidPricePerKg > 0 || opt.H2O2PricePerKg > 0 {
+		lr.CostPerSample = col(func(i int) float64 {
+			c := p.acidDose[i] * p.acidM / 1000 / (opt.AcidWtPct / 100) * opt.AcidPricePerKg
+			if p.red != nil {
+				c += p.redDose[i] * p.red.MolarMassGMol / 1000 / (redStrength(p.red, opt) / 100) * opt.H2O2PricePerKg
+			}
+			return c
+		})
+		st := dist.Summarise(lr.CostPerSample)
+		lr.TotalCost = &st
+	}
+	gases := map[string]func(r redoxResult) float64{
+		"H2": func(r redoxResult) float64 { return r.h2 }, "O2": func(r redoxResult) float64 { return r.o2 },
+		"Cl2": func(r redoxResult) float64 { return r.cl2 }, "CO2": func(r redoxResult) float64 { return r.co2 },
+	}
+	for name, g := range gases {
+		mol := col(func(i int) float64 { return g(p.res[i]) })
+		if slices.Max(mol) > 0 {
+			lr.Gases[name] = Gas{Mol: dist.Summarise(mol), M3STP: dist.Summarise(col(func(i int) float64 { return mol[i] * MolarVolumeSTPLPerMol / 1000 }))}
+		}
+	}
+	es := p.lt.elements
+	perL := func(f func(i int) float64) []float64 { return col(func(i int) float64 { return f(i) / p.vol[i] }) }
+	chargeRes := 0.0
+	for i, r := range p.res {
+		pos := r.freeH + r.fe3Mol
+		for k, sym := range leachElements {
+			pos += cathode.AqueousCharge(sym) * r.liquorMol[k]
+		}
+		neg := r.anionMol * route.AnionCharge()
+		if neg > 0 {
+			chargeRes = math.Max(chargeRes, math.Abs(pos-neg)/neg)
+		}
+		_ = i
+	}
+	// The residual is reported to 1e-12: below that it is floating-point noise, which would make
+	// reports differ between machines.
+	lr.Liquor = Liquor{VolumeL: dist.Summarise(p.vol), Elements: map[string]Conc{}, Anion: route.Anion(), ChargeResidual: dist.Round(chargeRes, 12),
+		ExtractionReached: map[string]dist.Stat{}}
+	for k, e := range leachElements {
+		mol := col(func(i int) float64 { return p.res[i].liquorMol[k] })
+		if slices.Max(mol) <= 0 {
+			continue
+		}
+		lr.Liquor.Elements[e] = Conc{GPerL: dist.Summarise(perL(func(i int) float64 { return mol[i] * es.Weight(e) })), MolPerL: dist.Summarise(perL(func(i int) float64 { return mol[i] }))}
+		if e != "Na" && e != "P" && e != "F" {
+			lr.Liquor.ExtractionReached[e] = dist.Summarise(col(func(i int) float64 {
+				if f := p.res[i].feedMol[k]; f > 0 {
+					return mol[i] / f
+				}
+				return 0
+			}))
+		}
+	}
+	if fe3 := col(func(i int) float64 { return p.res[i].fe3Mol }); slices.Max(fe3) > 0 {
+		st := dist.Summarise(perL(func(i int) float64 { return fe3[i] * es.Weight("Fe") }))
+		lr.Liquor.Fe3GPerL = &st
+	}
+	lr.Liquor.AnionMolPerL = dist.Summarise(perL(func(i int) float64 { return p.res[i].anionMol }))
+	lr.FreeAcidMolPerL = dist.Summarise(perL(func(i int) float64 { return p.res[i].freeH / route.AcidProtons() }))
+	p.limits(lr)
+	p.saturation(lr)
+	p.byproducts(lr)
+	p.warnings(lr, acidR, redR)
+	return lr, nil
+}
+
+// salt is a liquor salt and its solubility in water against temperature.
+type salt struct {
+	name, cation, anion string
+	// curve is (temperature °C, g per 100 g water), sorted by temperature.
+	curve [][2]float64
+}
+
+// solubilityPrefix starts solubility.csv's columns, g_per_100g_water_<T>C.
+const solubilityPrefix = "g_per_100g_water_"
+
+// gPer100gAt is the solubility at tC, interpolated linearly and held flat beyond the curve's ends.
+func (sl salt) gPer100gAt(tC float64) float64 {
+	c := sl.curve
+	if tC <= c[0][0] {
+		return c[0][1]
+	}
+	for i := 1; i < len(c); i++ {
+		if tC <= c[i][0] {
+			f := (tC - c[i-1][0]) / (c[i][0] - c[i-1][0])
+			return c[i-1][1] + f*(c[i][1]-c[i-1][1])
+		}
+	}
+	return c[len(c)-1][1]
+}
+
+// leastSoluble is the least solubility over [loC, hiC] and the temperature it falls at. On a
+// piecewise-linear curve the least lies at an end of the interval or at a point of the curve.
+func (sl salt) leastSoluble(loC, hiC float64) (gPer100g, atC float64) {
+	gPer100g, atC = sl.gPer100gAt(loC), loC
+	try := func(t float64) {
+		if g := sl.gPer100gAt(t); g < gPer100g {
+			gPer100g, atC = g, t
+		}
+	}
+	for _, pt := range sl.curve {
+		if pt[0] > loC && pt[0] < hiC {
+			try(pt[0])
+		}
+	}
+	try(hiC)
+	return gPer100g, atC
+}
+
+// anionWord names a liquor anion in prose.
+var anionWord = map[string]string{"SO4": "sulfate", "Cl": "chloride"}
+
+// filteredLiquorC is the temperature a filtered liquor cools to in the plant (common practice).
+const filteredLiquorC = 20.0
+
+// saturation sets each salt's ratio to its solubility.
+func (p *leachPlanner) saturation(lr *Report) {
+	es := p.lt.elements
+	for _, sl := range p.lt.salts {
+		k := elementIndex(sl.cation)
+		if k < 0 || sl.anion != p.route.Anion() {
+			continue
+		}
+		f, _ := es.ParseFormula(sl.name)
+		perSalt := f.Moles(sl.cation)
+		gPer100g, atC := sl.leastSoluble(min(filteredLiquorC, p.opt.TemperatureC), max(filteredLiquorC, p.opt.TemperatureC))
+		ratio := col(p.n, func(i int) float64 {
+			mol := p.res[i].liquorMol[k]
+			if sl.cation == "Fe" {
+				fe3 := p.res[i].fe3Mol
+				if strings.Contains(sl.name, "(SO4)3") || strings.Contains(sl.name, "Cl3") {
+					mol = fe3
+				} else {
+					mol -= fe3
+				}
+			}
+			return mol * f.MolarMass(es) / perSalt / (gPer100g * 10) / p.vol[i]
+		})
+		if slices.Max(ratio) <= 0 {
+			continue
+		}
+		st := dist.Summarise(ratio)
+		lr.Saturation[sl.name] = st
+		lr.SaturationAtC[sl.name] = atC
+		if st.P90 > saturationWarn {
+			lr.Warnings = append(lr.Warnings, fmt.Sprintf("%s reaches %.0f %% of its solubility in water at %g °C, the least between the filtered liquor's %g °C and the leach's %g °C (P90; single-salt data, the shared %s and the acid lower it further): lower the pulp density or expect crystallisation",
+				sl.name, 100*st.P90, atC, filteredLiquorC, p.opt.TemperatureC, anionWord[sl.anion]))
+		}
+	}
+}
+
+// saturationWarn is the share of a salt's single-salt water solubility at which the plan warns:
+// well below 1, because the other sulfates and the free acid lower solubility (common-ion
+// effect) and the check treats 1 L of liquor as 1 kg of water (common practice).
+const saturationWarn = 0.6
