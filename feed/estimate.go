@@ -16,8 +16,10 @@ type EstimateOptions struct {
 	Inputs  Inputs // recorded in the report as given (Seed and Samples are filled in)
 	Leach   *leach.Options
 	Prices  *PriceList // nil: no value
-	// LeachTables are the leach planner's tables (nil: the embedded ones).
+	// LeachTables are the leach planner's tables (required with Leach), LeachPrices its reagent
+	// prices (the zero value: no reagent cost).
 	LeachTables *leach.Tables
+	LeachPrices leach.Prices
 }
 
 // Samples holds every Monte Carlo draw of the lot's black mass, by compound (kg), so that later
@@ -45,7 +47,8 @@ func (l *Lot) Estimate(opt EstimateOptions) (*Report, *Samples, error) {
 	s := l.draw(ps, opt.Samples)
 	r := l.report(s, opt)
 	if opt.Leach != nil {
-		lr, err := leach.Plan(leach.Input{Formulas: l.comp.formulas, Kg: s.Compounds, BlackMassKg: s.BlackMass, Draws: ps.d, Tables: opt.LeachTables}, *opt.Leach)
+		lr, err := leach.Plan(leach.Input{Formulas: l.comp.formulas, Kg: s.Compounds, BlackMassKg: s.BlackMass, Draws: ps.d, Tables: opt.LeachTables,
+			Prices: opt.LeachPrices}, *opt.Leach)
 		if err != nil {
 			return nil, nil, err
 		}

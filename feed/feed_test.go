@@ -41,6 +41,16 @@ func embedded(t testing.TB) (*cathode.Catalogue, *feed.Model) {
 	return cat, m
 }
 
+// leachTables are the embedded leach tables.
+func leachTables(t testing.TB) *leach.Tables {
+	t.Helper()
+	tb, err := feed.DefaultTables()
+	if err != nil {
+		t.Fatal(err)
+	}
+	return tb.Leach
+}
+
 func estimate(t testing.TB, manifest string, seed uint64, samples int) (*feed.Report, *feed.Samples) {
 	t.Helper()
 	cat, m := embedded(t)
@@ -286,7 +296,7 @@ func TestLeachChargeBalanceAndScaling(t *testing.T) {
 	// Zero extraction of an element gives none of it in the liquor.
 	o := leach.DefaultOptions()
 	o.ExtractionOverride = map[string]float64{"Co": 0}
-	lr, err := leach.PlanFor(map[string]float64{"LiCoO2": 1, "LiNi0.8Mn0.1Co0.1O2": 1}, o, 1, 50)
+	lr, err := leach.PlanFor(leachTables(t), map[string]float64{"LiCoO2": 1, "LiNi0.8Mn0.1Co0.1O2": 1}, o, 1, 50)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -310,7 +320,7 @@ func leachLot(t *testing.T, route cathode.Route, pulp float64) *leach.Report {
 	if route == cathode.Hydrochloric {
 		o.AcidWtPct = 32
 	}
-	r, _, err := lot.Estimate(feed.EstimateOptions{Seed: 1, Samples: 300, Leach: &o})
+	r, _, err := lot.Estimate(feed.EstimateOptions{Seed: 1, Samples: 300, Leach: &o, LeachTables: leachTables(t)})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -440,7 +450,8 @@ func TestQuoteValue(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	q, err := assay.QuoteFrom(a, assay.QuoteOptions{BlackMassKg: 100, Samples: 400, Seed: 3, Leach: leach.DefaultOptions()})
+	q, err := assay.QuoteFrom(a, assay.QuoteOptions{BlackMassKg: 100, Samples: 400, Seed: 3, Leach: leach.DefaultOptions(),
+		Tables: leachTables(t)})
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -127,8 +127,13 @@ func runQuote(w io.Writer, o *quoteOptions, path string) error {
 	if err != nil {
 		return err
 	}
+	tabs, err := feed.DefaultTables()
+	if err != nil {
+		return err
+	}
 	sum := sha256.Sum256(b)
-	q, err := assay.QuoteFrom(a, assay.QuoteOptions{BlackMassKg: kg, TMForm: tm, Seed: o.seed, Samples: o.samples, Leach: *lo})
+	q, err := assay.QuoteFrom(a, assay.QuoteOptions{BlackMassKg: kg, TMForm: tm, Seed: o.seed, Samples: o.samples, Leach: *lo,
+		Tables: tabs.Leach, Prices: o.leach.prices})
 	if err != nil {
 		return err
 	}

@@ -165,6 +165,10 @@ func buildEstimate(o *estimateOptions, name string, in io.Reader) (*feed.Report,
 	if err != nil {
 		return nil, err
 	}
+	tabs, err := feed.DefaultTables()
+	if err != nil {
+		return nil, err
+	}
 	leachOpt, err := o.leach.options()
 	if err != nil {
 		return nil, err
@@ -204,6 +208,7 @@ func buildEstimate(o *estimateOptions, name string, in io.Reader) (*feed.Report,
 		return nil, err
 	}
 	rep, _, err := lot.Estimate(feed.EstimateOptions{Seed: o.seed, Samples: o.samples, Leach: leachOpt, Prices: prices,
+		LeachTables: tabs.Leach, LeachPrices: o.leach.prices,
 		Inputs: feed.Inputs{File: filepath.ToSlash(name), SHA256: hex.EncodeToString(sum[:]), Version: version,
 			LotID: o.lotID, Supplier: o.supplier, UnknownAsPrior: o.unknown == "prior",
 			Sheet: info.Sheet, Sheets: info.Sheets, HeaderLine: info.HeaderLine, IgnoredColumns: info.IgnoredColumns}})
@@ -249,7 +254,7 @@ func emit(w io.Writer, o *estimateOptions, rep *feed.Report) error {
 		if err != nil {
 			return err
 		}
-		cur := rep.Leach.Settings.Currency
+		cur := o.leach.prices.Currency
 		if v := rep.Value; v != nil {
 			if cur != "" && !strings.EqualFold(cur, v.Currency) {
 				return usageError{fmt.Errorf("--currency %s and the prices file's %s disagree: give the reagent prices in %s", cur, v.Currency, v.Currency)}

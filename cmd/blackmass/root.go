@@ -10,6 +10,7 @@ import (
 	"github.com/spf13/cobra"
 
 	"blackmass/cathode"
+	"blackmass/feed/leach"
 )
 
 // version is set at build time with -ldflags "-X main.version=...".
@@ -26,7 +27,8 @@ func Main(args []string, in io.Reader, out, errOut io.Writer) int {
 	if err := root.Execute(); err != nil {
 		fmt.Fprintln(errOut, "blackmass:", err)
 		var ue usageError
-		if errors.As(err, &ue) || strings.HasPrefix(err.Error(), "unknown command") {
+		var oe *leach.OptionError // a leach option out of its range is a mistake in the command line
+		if errors.As(err, &ue) || errors.As(err, &oe) || strings.HasPrefix(err.Error(), "unknown command") {
 			fmt.Fprintln(errOut, "run 'blackmass help' for usage")
 			return exitUsage
 		}

@@ -11,6 +11,7 @@ import (
 
 	"blackmass/cathode"
 	"blackmass/cathode/cathodetest"
+	"blackmass/data"
 	"blackmass/data/datatest"
 	"blackmass/feed/assay"
 	"blackmass/feed/dist"
@@ -193,7 +194,7 @@ func TestQuoteFromAssayLiCoO2(t *testing.T) {
 	a := mustAssay(t, assayCSV(composition(map[string]float64{"LiCoO2": 1}), 0))
 	o := leach.DefaultOptions()
 	o.ExtractionOverride = map[string]float64{"*": 1}
-	r, err := assay.QuoteFrom(a, assay.QuoteOptions{BlackMassKg: 1, Samples: 20, Seed: 1, Leach: o})
+	r, err := assay.QuoteFrom(a, assay.QuoteOptions{BlackMassKg: 1, Samples: 20, Seed: 1, Leach: o, Tables: embeddedTables(t)})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -252,7 +253,7 @@ func TestQuoteUsesItsTablesAtomicWeights(t *testing.T) {
 		tables *leach.Tables
 		coG    float64 // CIAAW 2021: Co 58.933194; Li 6.94 and O 15.999 in both
 	}{
-		{"embedded tables", nil, 58.933194},
+		{"embedded tables", embeddedTables(t), 58.933194},
 		{"Co = 60", lt, 60},
 	} {
 		t.Run(c.name, func(t *testing.T) {
@@ -285,7 +286,7 @@ func TestQuoteMeshram2016DoseResponse(t *testing.T) {
 		o := leach.DefaultOptions()
 		o.RecipeAcidMolPerL, o.PulpDensityGPerL, o.TemperatureC = 1, 50, 95
 		o.Reductant, o.RecipeReductantGPerL = reductant, gPerL
-		q, err := assay.QuoteFrom(a, assay.QuoteOptions{BlackMassKg: 1, Samples: 2000, Seed: 7, Leach: o})
+		q, err := assay.QuoteFrom(a, assay.QuoteOptions{BlackMassKg: 1, Samples: 2000, Seed: 7, Leach: o, Tables: embeddedTables(t)})
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -317,4 +318,14 @@ func TestQuoteMeshram2016DoseResponse(t *testing.T) {
 			t.Errorf("%s: bisulfite %.2f vs acid alone %.2f; the bench saw a large rise", el, bisulfite[el].P50, acid[el].P50)
 		}
 	}
+}
+
+// embeddedTables are the embedded leach tables.
+func embeddedTables(t testing.TB) *leach.Tables {
+	t.Helper()
+	lt, err := leach.LoadTables(data.FS)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return lt
 }

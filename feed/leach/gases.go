@@ -1,8 +1,10 @@
 package leach
 
 import (
-	"blackmass/feed/dist"
 	"fmt"
+	"slices"
+
+	"blackmass/feed/dist"
 )
 
 // MolarVolumeSTPLPerMol is the ideal-gas molar volume at 0 °C and 101.325 kPa (CODATA: 22.413 969 L/mol).
@@ -46,7 +48,8 @@ func (p *leachPlanner) byproducts(lr *Report) {
 		if err == nil {
 			kg := col(p.n, func(i int) float64 { return p.res[i].cl2 * naohPerCl2 * p.lt.molarMassG("NaOH") / 1000 })
 			w := scrubberNaOHWtPct / 100.0
-			lr.Scrubber = &Scrubber{Reagent: fmt.Sprintf("NaOH %d %%", scrubberNaOHWtPct), KgPure: dist.Summarise(kg), Kg: dist.Summarise(col(p.n, func(i int) float64 { return kg[i] / w })),
+			lr.Scrubber = &Scrubber{Reagent: fmt.Sprintf("NaOH %d %%", scrubberNaOHWtPct), KgPure: dist.Summarise(kg),
+				Kg:       dist.Summarise(col(p.n, func(i int) float64 { return kg[i] / w })),
 				Litres:   dist.Summarise(col(p.n, func(i int) float64 { return kg[i] / w / rho })),
 				Reaction: "Cl2 + 2 NaOH → NaCl + NaOCl + H2O (keep the scrubber caustic in excess; hypochlorite is an oxidant)"}
 		}
@@ -59,7 +62,8 @@ func (p *leachPlanner) byproducts(lr *Report) {
 		st := dist.Summarise(rise)
 		lr.PeroxideHeatRiseK = &st
 		if st.P90 > 10 {
-			lr.Warnings = append(lr.Warnings, fmt.Sprintf("peroxide decomposition can heat the liquor by up to %.0f K (P90, adiabatic, 94.7 kJ/mol H2O2): dose it gradually with cooling", st.P90))
+			lr.Warnings = append(lr.Warnings, fmt.Sprintf("peroxide decomposition can heat the liquor by up to "+
+				"%.0f K (P90, adiabatic, 94.7 kJ/mol H2O2): dose it gradually with cooling", st.P90))
 		}
 	}
 }
@@ -73,4 +77,19 @@ func formatGasVolume(m3 float64) string {
 		return fmt.Sprintf("%.3g L", m3*1000)
 	}
 	return fmt.Sprintf("%.3g mL", m3*1e6)
+}
+
+// gases sets the gas table: every gas some sample evolves.
+func (p *leachPlanner) gases(lr *Report) {
+	gases := map[string]func(r redoxResult) float64{
+		"H2": func(r redoxResult) float64 { return r.h2 }, "O2": func(r redoxResult) float64 { return r.o2 },
+		"Cl2": func(r redoxResult) float64 { return r.cl2 }, "CO2": func(r redoxResult) float64 { return r.co2 },
+	}
+	for name, g := range gases {
+		mol := col(p.n, func(i int) float64 { return g(p.res[i]) })
+		if slices.Max(mol) > 0 {
+			lr.Gases[name] = Gas{Mol: dist.Summarise(mol),
+				M3STP: dist.Summarise(col(p.n, func(i int) float64 { return mol[i] * MolarVolumeSTPLPerMol / 1000 }))}
+		}
+	}
 }

@@ -1,12 +1,13 @@
 package leach
 
 import (
-	"blackmass/cathode"
-	"blackmass/feed/dist"
 	"fmt"
 	"math"
 	"slices"
 	"strings"
+
+	"blackmass/cathode"
+	"blackmass/feed/dist"
 )
 
 // Conc is an element's concentration in the liquor.
@@ -28,78 +29,55 @@ type Liquor struct {
 	Fe3GPerL *dist.Stat `json:"fe3_g_per_l,omitempty"`
 }
 
-// report summarises the samples.
+// report summarises the samples: the reagents and their cost, the gases, the liquor, then the
+// limits, saturation, by-products and warnings.
 func (p *leachPlanner) report() (*Report, error) {
-	n, opt, route := p.n, p.opt, p.route
-	lr := &Report{Route: route.String(), Settings: opt, Gases: map[string]Gas{}, Saturation: map[string]dist.Stat{}, SaturationAtC: map[string]float64{},
-		GasReference: "ideal gas at 0 °C and 101.325 kPa (22.414 L/mol)", Safety: leachSafety[route], Extraction: p.ranges}
-	col := func(f func(i int) float64) []float64 {
-		out := make([]float64, n)
-		for i := range out {
-			out[i] = f(i)
-		}
-		return out
-	}
-	acidR := p.reagent(route.Acid(), opt.AcidWtPct, p.acidRho, p.acidM, p.acidDose, p.acidPlan, p.acidFull, opt.AcidPricePerKg)
-	lr.Reagents = append(lr.Reagents, acidR)
-	var redR *Reagent
-	if p.red != nil {
-		strength, rho := 100.0, 0.0
-		if p.red.Form == "solution" {
-			strength, rho = opt.H2O2WtPct, p.redRho
-		}
-		r := p.reagent(p.red.Key, strength, rho, p.red.MolarMassGMol, p.redDose, p.redPlan, p.redFull, opt.H2O2PricePerKg)
-		lr.Reagents = append(lr.Reagents, r)
-		redR = &lr.Reagents[len(lr.Reagents)-1]
-	}
-	lr.WaterL = dist.Summarise(p.water)
-	if opt.AcidPricePerKg > 0 || opt.H2O2PricePerKg > 0 {
-		lr.CostPerSample = col(func(i int) float64 {
-			c := p.acidDose[i] * p.acidM / 1000 / (opt.AcidWtPct / 100) * opt.AcidPricePerKg
-			if p.red != nil {
-				c += p.redDose[i] * p.red.MolarMassGMol / 1000 / (redStrength(p.red, opt) / 100) * opt.H2O2PricePerKg
-			}
-			return c
-		})
-		st := dist.Summarise(lr.CostPerSample)
-		lr.TotalCost = &st
-	}
-	gases := map[string]func(r redoxResult) float64{
-		"H2": func(r redoxResult) float64 { return r.h2 }, "O2": func(r redoxResult) float64 { return r.o2 },
-		"Cl2": func(r redoxResult) float64 { return r.cl2 }, "CO2": func(r redoxResult) float64 { return r.co2 },
-	}
-	for name, g := range gases {
-		mol := col(func(i int) float64 { return g(p.res[i]) })
-		if slices.Max(mol) > 0 {
-			lr.Gases[name] = Gas{Mol: dist.Summarise(mol), M3STP: dist.Summarise(col(func(i int) float64 { return mol[i] * MolarVolumeSTPLPerMol / 1000 }))}
-		}
-	}
-	es := p.lt.elements
-	perL := func(f func(i int) float64) []float64 { return col(func(i int) float64 { return f(i) / p.vol[i] }) }
-	chargeRes := 0.0
-	for i, r := range p.res {
+	lr := &Report{Route: p.route.String(), Settings: p.opt, Gases: map[string]Gas{}, Saturation: map[string]dist.Stat{},
+		SaturationAtC: map[string]float64{}, GasReference: "ideal gas at 0 °C and 101.325 kPa (22.414 L/mol)",
+		Safety: leachSafety[p.route], Extraction: p.ranges}
+	acidR, redR := p.reagents(lr)
+	p.gases(lr)
+	p.liquor(lr)
+	p.limits(lr)
+	p.saturation(lr)
+	p.byproducts(lr)
+	p.warnings(lr, acidR, redR)
+	return lr, nil
+}
+
+// chargeResidual is the largest relative residual of the liquor's charge balance over the
+// samples, reported to 1e-12: below that it is floating-point noise, which would make reports
+// differ between machines.
+func (p *leachPlanner) chargeResidual() float64 {
+	res := 0.0
+	for _, r := range p.res {
 		pos := r.freeH + r.fe3Mol
 		for k, sym := range leachElements {
 			pos += cathode.AqueousCharge(sym) * r.liquorMol[k]
 		}
-		neg := r.anionMol * route.AnionCharge()
+		neg := r.anionMol * p.route.AnionCharge()
 		if neg > 0 {
-			chargeRes = math.Max(chargeRes, math.Abs(pos-neg)/neg)
+			res = math.Max(res, math.Abs(pos-neg)/neg)
 		}
-		_ = i
 	}
-	// The residual is reported to 1e-12: below that it is floating-point noise, which would make
-	// reports differ between machines.
-	lr.Liquor = Liquor{VolumeL: dist.Summarise(p.vol), Elements: map[string]Conc{}, Anion: route.Anion(), ChargeResidual: dist.Round(chargeRes, 12),
-		ExtractionReached: map[string]dist.Stat{}}
+	return dist.Round(res, 12)
+}
+
+// liquor sets the liquor's volume, concentrations, extraction reached and free acid.
+func (p *leachPlanner) liquor(lr *Report) {
+	es := p.lt.elements
+	perL := func(f func(i int) float64) []float64 { return col(p.n, func(i int) float64 { return f(i) / p.vol[i] }) }
+	lr.Liquor = Liquor{VolumeL: dist.Summarise(p.vol), Elements: map[string]Conc{}, Anion: p.route.Anion(),
+		ChargeResidual: p.chargeResidual(), ExtractionReached: map[string]dist.Stat{}}
 	for k, e := range leachElements {
-		mol := col(func(i int) float64 { return p.res[i].liquorMol[k] })
+		mol := col(p.n, func(i int) float64 { return p.res[i].liquorMol[k] })
 		if slices.Max(mol) <= 0 {
 			continue
 		}
-		lr.Liquor.Elements[e] = Conc{GPerL: dist.Summarise(perL(func(i int) float64 { return mol[i] * es.Weight(e) })), MolPerL: dist.Summarise(perL(func(i int) float64 { return mol[i] }))}
+		lr.Liquor.Elements[e] = Conc{GPerL: dist.Summarise(perL(func(i int) float64 { return mol[i] * es.Weight(e) })),
+			MolPerL: dist.Summarise(perL(func(i int) float64 { return mol[i] }))}
 		if e != "Na" && e != "P" && e != "F" {
-			lr.Liquor.ExtractionReached[e] = dist.Summarise(col(func(i int) float64 {
+			lr.Liquor.ExtractionReached[e] = dist.Summarise(col(p.n, func(i int) float64 {
 				if f := p.res[i].feedMol[k]; f > 0 {
 					return mol[i] / f
 				}
@@ -107,17 +85,12 @@ func (p *leachPlanner) report() (*Report, error) {
 			}))
 		}
 	}
-	if fe3 := col(func(i int) float64 { return p.res[i].fe3Mol }); slices.Max(fe3) > 0 {
+	if fe3 := col(p.n, func(i int) float64 { return p.res[i].fe3Mol }); slices.Max(fe3) > 0 {
 		st := dist.Summarise(perL(func(i int) float64 { return fe3[i] * es.Weight("Fe") }))
 		lr.Liquor.Fe3GPerL = &st
 	}
 	lr.Liquor.AnionMolPerL = dist.Summarise(perL(func(i int) float64 { return p.res[i].anionMol }))
-	lr.FreeAcidMolPerL = dist.Summarise(perL(func(i int) float64 { return p.res[i].freeH / route.AcidProtons() }))
-	p.limits(lr)
-	p.saturation(lr)
-	p.byproducts(lr)
-	p.warnings(lr, acidR, redR)
-	return lr, nil
+	lr.FreeAcidMolPerL = dist.Summarise(perL(func(i int) float64 { return p.res[i].freeH / p.route.AcidProtons() }))
 }
 
 // salt is a liquor salt and its solubility in water against temperature.
@@ -199,7 +172,9 @@ func (p *leachPlanner) saturation(lr *Report) {
 		lr.Saturation[sl.name] = st
 		lr.SaturationAtC[sl.name] = atC
 		if st.P90 > saturationWarn {
-			lr.Warnings = append(lr.Warnings, fmt.Sprintf("%s reaches %.0f %% of its solubility in water at %g °C, the least between the filtered liquor's %g °C and the leach's %g °C (P90; single-salt data, the shared %s and the acid lower it further): lower the pulp density or expect crystallisation",
+			lr.Warnings = append(lr.Warnings, fmt.Sprintf("%s reaches %.0f %% of its solubility in water at %g °C, "+
+				"the least between the filtered liquor's %g °C and the leach's %g °C (P90; single-salt data, the "+
+				"shared %s and the acid lower it further): lower the pulp density or expect crystallisation",
 				sl.name, 100*st.P90, atC, filteredLiquorC, p.opt.TemperatureC, anionWord[sl.anion]))
 		}
 	}

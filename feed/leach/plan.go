@@ -1,41 +1,44 @@
 package leach
 
 import (
-	"blackmass/cathode"
-	"blackmass/feed/dist"
 	"fmt"
 	"maps"
 	"math"
 	"slices"
+
+	"blackmass/cathode"
+	"blackmass/feed/dist"
 )
 
 // Input is the black mass to leach, as Monte Carlo samples: the compounds' formulas, their
 // masses per sample (kg) and the black mass per sample (kg). Draws gives the planner's own
-// parameters (extraction, peroxide loss) from the run's seeded streams.
+// parameters (extraction, peroxide loss) from the run's seeded streams. Tables are required;
+// Prices price the reagents (the zero value: no cost).
 type Input struct {
 	Formulas    []string
 	Kg          [][]float64 // [compound][sample]
 	BlackMassKg []float64   // [sample]
 	Draws       *dist.Drawer
-	Tables      *Tables // nil: DefaultTables
+	Tables      *Tables
+	Prices      Prices
 }
 
 // Plan computes the leach plan for every sample of the black mass, in three steps:
 // the demand (what the planned extraction and full dissolution need), the dose (the planner's
 // or the bench recipe's), and what that dose actually dissolves (leachSample: limiting acid and
-// electrons), then the liquor, saturation and warnings.
+// electrons), then the liquor, saturation and warnings. An option or price out of range is an
+// *OptionError.
 func Plan(s Input, opt Options) (*Report, error) {
-	lt := s.Tables
-	if lt == nil {
-		var err error
-		if lt, err = DefaultTables(); err != nil {
-			return nil, err
-		}
+	if s.Tables == nil {
+		return nil, fmt.Errorf("leach: no tables given (load them with LoadTables)")
 	}
-	if err := checkLeachOptions(&opt); err != nil {
+	if err := opt.Validate(); err != nil {
 		return nil, err
 	}
-	p, err := newLeachPlanner(s, opt, lt)
+	if err := s.Prices.Validate(); err != nil {
+		return nil, err
+	}
+	p, err := newLeachPlanner(s, opt, s.Tables)
 	if err != nil {
 		return nil, err
 	}
@@ -80,7 +83,7 @@ func newLeachPlanner(s Input, opt Options, lt *Tables) (*leachPlanner, error) {
 	}
 	if p.route != cathode.Hydrochloric && opt.Reductant != "none" {
 		if p.red, err = FindReductant(lt.reductants, opt.Reductant); err != nil {
-			return nil, err
+			return nil, &OptionError{Option: "reductant", Msg: err.Error()}
 		}
 		if p.red.Form == "solution" {
 			if p.redRho, err = lt.Density(p.red.Formula, opt.H2O2WtPct); err != nil {
@@ -91,19 +94,23 @@ func newLeachPlanner(s Input, opt Options, lt *Tables) (*leachPlanner, error) {
 	for _, el := range slices.Sorted(maps.Keys(lt.extraction[p.route])) {
 		rg := lt.extraction[p.route][el]
 		p.ext[el] = s.Draws.Draws("extraction "+p.route.String()+"/"+el, rg.Min, rg.Mode, rg.Max)
-		p.ranges = append(p.ranges, dist.Param{Scope: "extraction " + p.route.String(), Name: el, Min: rg.Min, Mode: rg.Mode, Max: rg.Max, Unit: "fraction", Source: lt.sources[p.route.String()+"/"+el]})
+		p.ranges = append(p.ranges, dist.Param{Scope: "extraction " + p.route.String(), Name: el,
+			Min: rg.Min, Mode: rg.Mode, Max: rg.Max, Unit: "fraction", Source: lt.sources[p.route.String()+"/"+el]})
 	}
 	loss := lt.peroxideLoss(opt.TemperatureC)
 	p.lost = s.Draws.Draws(fmt.Sprintf("peroxide loss/%g C", loss.fromC), loss.r.Min, loss.r.Mode, loss.r.Max)
 	if p.red != nil && p.red.Oxidant {
-		p.ranges = append(p.ranges, dist.Param{Scope: "peroxide", Name: fmt.Sprintf("decomposed share at %g °C", opt.TemperatureC), Min: loss.r.Min, Mode: loss.r.Mode, Max: loss.r.Max, Unit: "fraction", Source: loss.source})
+		p.ranges = append(p.ranges, dist.Param{Scope: "peroxide",
+			Name: fmt.Sprintf("decomposed share at %g °C", opt.TemperatureC),
+			Min:  loss.r.Min, Mode: loss.r.Mode, Max: loss.r.Max, Unit: "fraction", Source: loss.source})
 	}
 	lat := lt.latticeOxygen(opt.TemperatureC)
 	p.lattice = s.Draws.Draws(fmt.Sprintf("lattice oxygen/%g C", lat.fromC), lat.r.Min, lat.r.Mode, lat.r.Max)
 	if p.route != cathode.Hydrochloric {
 		// The share of the oxides' reduction their own oxygen gives (as O2) when short of reductant.
-		p.ranges = append(p.ranges, dist.Param{Scope: "oxide oxygen", Name: fmt.Sprintf("reduction share at %g °C", opt.TemperatureC),
-			Min: lat.r.Min, Mode: lat.r.Mode, Max: lat.r.Max, Unit: "fraction", Source: lat.source})
+		p.ranges = append(p.ranges, dist.Param{Scope: "oxide oxygen",
+			Name: fmt.Sprintf("reduction share at %g °C", opt.TemperatureC),
+			Min:  lat.r.Min, Mode: lat.r.Mode, Max: lat.r.Max, Unit: "fraction", Source: lat.source})
 	}
 	p.species = make([]cathode.Species, len(s.Kg))
 	p.molarG = make([]float64, len(s.Kg))
@@ -117,7 +124,8 @@ func newLeachPlanner(s Input, opt Options, lt *Tables) (*leachPlanner, error) {
 		}
 		p.molarG[c] = f.MolarMass(f.Elements())
 	}
-	for _, x := range []*[]float64{&p.vol, &p.acidDose, &p.redDose, &p.acidPlan, &p.redPlan, &p.acidFull, &p.redFull, &p.water} {
+	for _, x := range []*[]float64{&p.vol, &p.acidDose, &p.redDose, &p.acidPlan, &p.redPlan, &p.acidFull, &p.redFull,
+		&p.water} {
 		*x = make([]float64, p.n)
 	}
 	p.res = make([]redoxResult, p.n)
@@ -147,7 +155,8 @@ func (p *leachPlanner) input(i int, plan func(string) float64, hPlus, redMol flo
 		mol[c] = kg[i] * 1000 / p.molarG[c]
 	}
 	es := p.lt.elements
-	return redoxInput{route: p.route, species: p.species, mol: mol, plan: plan, hPlus: hPlus, red: p.red, redMol: redMol, lost: p.lost[i], lattice: p.lattice[i],
+	return redoxInput{route: p.route, species: p.species, mol: mol, plan: plan, hPlus: hPlus, red: p.red, redMol: redMol,
+		lost: p.lost[i], lattice: p.lattice[i],
 		metalE0: func(sym string) float64 {
 			if el := es.Lookup(sym); el != nil && el.HasPotential {
 				return el.StandardPotential
@@ -198,7 +207,8 @@ func (p *leachPlanner) run() error {
 		}
 		if p.water[i] < 0 {
 			if !p.opt.GrowVolume {
-				return fmt.Errorf("leach: the acid and reductant alone take %.4g L, more than the %.4g L of liquor the pulp density or volume gives: "+
+				return fmt.Errorf("leach: the acid and reductant alone take %.4g L, more than the %.4g L of liquor "+
+					"the pulp density or volume gives: "+
 					"lower the dose, use stronger reagents, or let the volume grow with the reagents (--grow-volume)", v-p.water[i], v)
 			}
 			v -= p.water[i]
@@ -235,13 +245,14 @@ func (p *leachPlanner) redLitres(mol float64) float64 {
 
 // PlanFor computes the leach plan of a black mass given directly as compounds (formula -> kg),
 // without a manifest: e.g. a pure cathode powder. The masses are taken as known; only the
-// planner's own parameters are drawn.
-func PlanFor(kgByFormula map[string]float64, opt Options, seed uint64, samples int) (*Report, error) {
+// planner's own parameters are drawn, and no reagent is priced.
+func PlanFor(lt *Tables, kgByFormula map[string]float64, opt Options, seed uint64, samples int) (*Report, error) {
 	if samples < 1 {
 		return nil, fmt.Errorf("leach: samples must be positive")
 	}
 	keys := slices.Sorted(maps.Keys(kgByFormula))
-	in := Input{Formulas: keys, Kg: make([][]float64, len(keys)), BlackMassKg: make([]float64, samples), Draws: dist.NewDrawer(seed, samples)}
+	in := Input{Formulas: keys, Kg: make([][]float64, len(keys)), BlackMassKg: make([]float64, samples),
+		Draws: dist.NewDrawer(seed, samples), Tables: lt}
 	for c, k := range keys {
 		kg := kgByFormula[k]
 		if !(kg >= 0) || math.IsInf(kg, 0) {
@@ -256,6 +267,38 @@ func PlanFor(kgByFormula map[string]float64, opt Options, seed uint64, samples i
 	return Plan(in, opt)
 }
 
+// reagents sets the acid's and the reductant's doses and, with prices, their cost; it returns
+// the acid and the reductant (nil without one).
+func (p *leachPlanner) reagents(lr *Report) (Reagent, *Reagent) {
+	opt, pr := p.opt, p.s.Prices
+	acidR := p.reagent(p.route.Acid(), opt.AcidWtPct, p.acidRho, p.acidM, p.acidDose, p.acidPlan, p.acidFull, pr.AcidPerKg)
+	lr.Reagents = append(lr.Reagents, acidR)
+	var redR *Reagent
+	if p.red != nil {
+		strength, rho := 100.0, 0.0
+		if p.red.Form == "solution" {
+			strength, rho = opt.H2O2WtPct, p.redRho
+		}
+		r := p.reagent(p.red.Key, strength, rho, p.red.MolarMassGMol, p.redDose, p.redPlan, p.redFull, pr.ReductantPerKg)
+		lr.Reagents = append(lr.Reagents, r)
+		redR = &lr.Reagents[len(lr.Reagents)-1]
+	}
+	lr.WaterL = dist.Summarise(p.water)
+	if pr.Priced() {
+		lr.Prices = &pr
+		lr.CostPerSample = col(p.n, func(i int) float64 {
+			c := p.acidDose[i] * p.acidM / 1000 / (opt.AcidWtPct / 100) * pr.AcidPerKg
+			if p.red != nil {
+				c += p.redDose[i] * p.red.MolarMassGMol / 1000 / (redStrength(p.red, opt) / 100) * pr.ReductantPerKg
+			}
+			return c
+		})
+		st := dist.Summarise(lr.CostPerSample)
+		lr.TotalCost = &st
+	}
+	return acidR, redR
+}
+
 func redStrength(r *Reductant, opt Options) float64 {
 	if r.Form == "solution" {
 		return opt.H2O2WtPct
@@ -265,9 +308,11 @@ func redStrength(r *Reductant, opt Options) float64 {
 
 // reagent summarises a reagent's dose against the planned extraction's and full dissolution's
 // needs.
-func (p *leachPlanner) reagent(name string, wt, rho, molMass float64, dose, plan, full []float64, price float64) Reagent {
+func (p *leachPlanner) reagent(name string, wt, rho, molMass float64, dose, plan, full []float64,
+	price float64) Reagent {
 	n := p.n
-	pure, comm, litres, sk, ratio, ratioFull := make([]float64, n), make([]float64, n), make([]float64, n), make([]float64, n), make([]float64, n), make([]float64, n)
+	pure, comm, litres, sk := make([]float64, n), make([]float64, n), make([]float64, n), make([]float64, n)
+	ratio, ratioFull := make([]float64, n), make([]float64, n)
 	for i := range n {
 		pure[i] = dose[i] * molMass / 1000
 		comm[i] = pure[i] / (wt / 100)
@@ -282,8 +327,10 @@ func (p *leachPlanner) reagent(name string, wt, rho, molMass float64, dose, plan
 			ratioFull[i] = dose[i] / full[i]
 		}
 	}
-	rg := Reagent{Name: fmt.Sprintf("%s %g %%", name, wt), StrengthWt: wt, DensityGmL: dist.Round(rho, 4), MolarMass: dist.Round(molMass, 4), KgPure: dist.Summarise(pure),
-		Kg: dist.Summarise(comm), Litres: dist.Summarise(litres), StoichKg: dist.Summarise(sk), Ratio: dist.Summarise(ratio), RatioFull: dist.Summarise(ratioFull)}
+	rg := Reagent{Name: fmt.Sprintf("%s %g %%", name, wt), StrengthWt: wt, DensityGmL: dist.Round(rho, 4),
+		MolarMass: dist.Round(molMass, 4), KgPure: dist.Summarise(pure), Kg: dist.Summarise(comm),
+		Litres: dist.Summarise(litres), StoichKg: dist.Summarise(sk), Ratio: dist.Summarise(ratio),
+		RatioFull: dist.Summarise(ratioFull)}
 	if price > 0 {
 		st := dist.Summarise(col(n, func(i int) float64 { return comm[i] * price }))
 		rg.Cost = &st
@@ -338,7 +385,9 @@ type Report struct {
 	// SaturationAtC is, per salt, the temperature between the filtered liquor's and the leach's
 	// at which it is least soluble: the temperature its saturation ratio is taken at.
 	SaturationAtC map[string]float64 `json:"saturation_at_C"`
-	TotalCost     *dist.Stat         `json:"total_cost,omitempty"`
+	// Prices are the reagent prices the costs were taken at; nil without prices.
+	Prices    *Prices    `json:"prices,omitempty"`
+	TotalCost *dist.Stat `json:"total_cost,omitempty"`
 	// CostPerSample is the reagent cost of each Monte Carlo sample (for values net of reagents
 	// that move coherently with the draws); nil without prices.
 	CostPerSample []float64 `json:"-"`

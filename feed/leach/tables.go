@@ -1,21 +1,22 @@
 package leach
 
 import (
-	"blackmass/cathode"
-	"blackmass/data"
 	"fmt"
 	"io/fs"
 	"sort"
 	"strconv"
 	"strings"
-	"sync"
+
+	"blackmass/cathode"
+	"blackmass/data"
 )
 
 type reagentTable map[string][][2]float64 // reagent -> sorted (wt%, density)
 
 // Tables are the leach planner's reference tables: reagent densities, salt solubilities,
 // extraction ranges per route, reductants, peroxide loss and lattice oxygen. Load them with
-// LoadTables from any fs.FS (a test can hand in its own); DefaultTables are the embedded ones.
+// LoadTables from any fs.FS (data.FS holds the embedded ones; a test can hand in its own), once,
+// and pass them down: Plan requires them.
 type Tables struct {
 	reductants []*Reductant
 	loss       []byTemperature // share of a peroxide dose that decomposes
@@ -27,9 +28,6 @@ type Tables struct {
 	// elements are the atomic weights and potentials read from the same files.
 	elements *cathode.Elements
 }
-
-// DefaultTables returns the embedded tables (read once).
-var DefaultTables = sync.OnceValues(func() (*Tables, error) { return LoadTables(data.FS) })
 
 // molarMassG is the molar mass (g/mol) of a formula this package names (an acid, caustic), with
 // the tables' atomic weights. Those formulas are constants, so an error is a programming error.
@@ -60,11 +58,35 @@ func LoadTables(fsys fs.FS) (*Tables, error) {
 	if err != nil {
 		return nil, err
 	}
-	lt := &Tables{density: reagentTable{}, extraction: map[cathode.Route]map[string]cathode.Range{}, sources: map[string]string{}, elements: es}
+	lt := &Tables{elements: es}
+	if lt.density, err = readDensities(fsys); err != nil {
+		return nil, err
+	}
+	if lt.salts, err = readSalts(fsys); err != nil {
+		return nil, err
+	}
+	if lt.extraction, lt.sources, err = readExtraction(fsys); err != nil {
+		return nil, err
+	}
+	if lt.reductants, err = LoadReductants(fsTables{fsys}, es); err != nil {
+		return nil, err
+	}
+	if lt.loss, err = readByTemperature(fsys, "peroxide_loss.csv", false); err != nil {
+		return nil, err
+	}
+	if lt.lattice, err = readByTemperature(fsys, "lattice_oxygen.csv", true); err != nil {
+		return nil, err
+	}
+	return lt, nil
+}
+
+// readDensities reads reagents.csv: each reagent's density against strength.
+func readDensities(fsys fs.FS) (reagentTable, error) {
 	t, err := data.ReadTable(fsys, "reagents.csv")
 	if err != nil {
 		return nil, err
 	}
+	out := reagentTable{}
 	for _, r := range t.Rows {
 		w, err := r.Float("wt_pct")
 		if err != nil {
@@ -74,15 +96,22 @@ func LoadTables(fsys fs.FS) (*Tables, error) {
 		if err != nil {
 			return nil, err
 		}
-		lt.density[r.Str("reagent")] = append(lt.density[r.Str("reagent")], [2]float64{w, d})
+		out[r.Str("reagent")] = append(out[r.Str("reagent")], [2]float64{w, d})
 	}
-	for _, v := range lt.density {
+	for _, v := range out {
 		sort.Slice(v, func(i, j int) bool { return v[i][0] < v[j][0] })
 	}
+	return out, nil
+}
+
+// readSalts reads solubility.csv: each salt's solubility curve, from its columns
+// g_per_100g_water_<T>C.
+func readSalts(fsys fs.FS) ([]salt, error) {
 	st, err := data.ReadTable(fsys, "solubility.csv")
 	if err != nil {
 		return nil, err
 	}
+	var out []salt
 	for _, r := range st.Rows {
 		sl := salt{name: r.Str("salt"), cation: r.Str("cation"), anion: r.Str("anion")}
 		for _, col := range st.Header {
@@ -108,40 +137,38 @@ func LoadTables(fsys fs.FS) (*Tables, error) {
 			return nil, r.Errorf("%s: no solubility given", sl.name)
 		}
 		sort.Slice(sl.curve, func(i, j int) bool { return sl.curve[i][0] < sl.curve[j][0] })
-		lt.salts = append(lt.salts, sl)
+		out = append(out, sl)
 	}
+	return out, nil
+}
+
+// readExtraction reads extraction.csv: each route's extraction range per element, and the
+// source of each ("route/element").
+func readExtraction(fsys fs.FS) (map[cathode.Route]map[string]cathode.Range, map[string]string, error) {
 	et, err := data.ReadTable(fsys, "extraction.csv")
 	if err != nil {
-		return nil, err
+		return nil, nil, err
 	}
+	ext, sources := map[cathode.Route]map[string]cathode.Range{}, map[string]string{}
 	for _, r := range et.Rows {
 		route, err := cathode.ParseRoute(r.Str("route"))
 		if err != nil {
-			return nil, r.Errorf("%v", err)
+			return nil, nil, r.Errorf("%v", err)
 		}
 		var rg cathode.Range
 		if rg.Min, rg.Mode, rg.Max, err = r.Range("", ""); err != nil {
-			return nil, err
+			return nil, nil, err
 		}
 		if !rg.Valid() || rg.Min < 0 || rg.Max > 1 {
-			return nil, r.Errorf("extraction range must be ordered within 0..1")
+			return nil, nil, r.Errorf("extraction range must be ordered within 0..1")
 		}
-		if lt.extraction[route] == nil {
-			lt.extraction[route] = map[string]cathode.Range{}
+		if ext[route] == nil {
+			ext[route] = map[string]cathode.Range{}
 		}
-		lt.extraction[route][r.Str("element")] = rg
-		lt.sources[route.String()+"/"+r.Str("element")] = r.Str("source")
+		ext[route][r.Str("element")] = rg
+		sources[route.String()+"/"+r.Str("element")] = r.Str("source")
 	}
-	if lt.reductants, err = LoadReductants(fsTables{fsys}, es); err != nil {
-		return nil, err
-	}
-	if lt.loss, err = readByTemperature(fsys, "peroxide_loss.csv", false); err != nil {
-		return nil, err
-	}
-	if lt.lattice, err = readByTemperature(fsys, "lattice_oxygen.csv", true); err != nil {
-		return nil, err
-	}
-	return lt, nil
+	return ext, sources, nil
 }
 
 // byTemperature is a share that applies from a temperature up to the next row's.
@@ -199,22 +226,14 @@ func (lt *Tables) latticeOxygen(tC float64) byTemperature { return at(lt.lattice
 
 // Density returns the density of a reagent solution (g/mL) at strength wtPct, interpolated
 // linearly in the reagent table; an error if wtPct is outside the table.
-func Density(reagent string, wtPct float64) (float64, error) {
-	lt, err := DefaultTables()
-	if err != nil {
-		return 0, err
-	}
-	return lt.Density(reagent, wtPct)
-}
-
-// Density is the package-level Density on these tables.
 func (lt *Tables) Density(reagent string, wtPct float64) (float64, error) {
 	pts := lt.density[reagent]
 	if len(pts) == 0 {
 		return 0, fmt.Errorf("no density table for %s", reagent)
 	}
 	if wtPct < pts[0][0] || wtPct > pts[len(pts)-1][0] {
-		return 0, fmt.Errorf("no density for %s at %g wt%% (table covers %g–%g wt%%)", reagent, wtPct, pts[0][0], pts[len(pts)-1][0])
+		return 0, fmt.Errorf("no density for %s at %g wt%% (table covers %g–%g wt%%)",
+			reagent, wtPct, pts[0][0], pts[len(pts)-1][0])
 	}
 	for i := 1; i < len(pts); i++ {
 		if wtPct <= pts[i][0] {

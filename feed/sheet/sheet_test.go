@@ -42,7 +42,11 @@ func reportWith(tb testing.TB, lines int, lo leach.Options) *feed.Report {
 	if _, err := intake.ReadCSV(strings.NewReader(b.String()), "gen.csv", intake.Options{Catalogue: cat}, lot.Add); err != nil {
 		tb.Fatal(err)
 	}
-	r, _, err := lot.Estimate(feed.EstimateOptions{Seed: 1, Samples: 200, Leach: &lo, Inputs: feed.Inputs{LotID: "=cmd|' /C calc'!A0", Version: "test"}})
+	tabs, err := feed.DefaultTables()
+	if err != nil {
+		tb.Fatal(err)
+	}
+	r, _, err := lot.Estimate(feed.EstimateOptions{Seed: 1, Samples: 200, Leach: &lo, LeachTables: tabs.Leach, Inputs: feed.Inputs{LotID: "=cmd|' /C calc'!A0", Version: "test"}})
 	if err != nil {
 		tb.Fatal(err)
 	}
