@@ -29,6 +29,38 @@ type Liquor struct {
 	Fe3GPerL *dist.Stat `json:"fe3_g_per_l,omitempty"`
 }
 
+// LiquorSamples is the leach liquor of every Monte Carlo sample, for the stages after the leach
+// (recovery) to take the same draws on. Element masses are what dissolved; slices are [sample].
+type LiquorSamples struct {
+	VolumeL   []float64
+	ElementKg map[string][]float64 // element -> kg dissolved, for every element some sample holds
+	// FreeAcidMol is the acid left unspent, in mol of the route's acid (H2SO4 or HCl).
+	FreeAcidMol []float64
+	// Fe2Kg and Fe3Kg split the dissolved iron into Fe(II) and Fe(III); they add up to ElementKg["Fe"].
+	Fe2Kg, Fe3Kg []float64
+	Anion        string    // SO4 or Cl
+	AnionMol     []float64 // mol of the anion in the liquor
+}
+
+// liquorSamples sets the per-sample liquor.
+func (p *leachPlanner) liquorSamples(lr *Report) {
+	es := p.lt.elements
+	ls := &LiquorSamples{VolumeL: slices.Clone(p.vol), ElementKg: map[string][]float64{}, Anion: p.route.Anion(),
+		FreeAcidMol: col(p.n, func(i int) float64 { return p.res[i].freeH / p.route.AcidProtons() }),
+		AnionMol:    col(p.n, func(i int) float64 { return p.res[i].anionMol })}
+	for k, e := range leachElements {
+		kg := col(p.n, func(i int) float64 { return p.res[i].liquorMol[k] * es.Weight(e) / 1000 })
+		if slices.Max(kg) > 0 {
+			ls.ElementKg[e] = kg
+		}
+	}
+	ls.Fe3Kg = col(p.n, func(i int) float64 { return p.res[i].fe3Mol * es.Weight("Fe") / 1000 })
+	ls.Fe2Kg = col(p.n, func(i int) float64 {
+		return (p.res[i].liquorMol[elementIndex("Fe")] - p.res[i].fe3Mol) * es.Weight("Fe") / 1000
+	})
+	lr.LiquorSamples = ls
+}
+
 // report summarises the samples: the reagents and their cost, the gases, the liquor, then the
 // limits, saturation, by-products and warnings.
 func (p *leachPlanner) report() (*Report, error) {
@@ -38,6 +70,7 @@ func (p *leachPlanner) report() (*Report, error) {
 	acidR, redR := p.reagents(lr)
 	p.gases(lr)
 	p.liquor(lr)
+	p.liquorSamples(lr)
 	p.limits(lr)
 	p.saturation(lr)
 	p.byproducts(lr)

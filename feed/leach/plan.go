@@ -373,13 +373,15 @@ type Limit struct {
 
 // Report is the leach plan of a lot.
 type Report struct {
-	Route           string               `json:"route"`
-	Settings        Options              `json:"settings"`
-	Reagents        []Reagent            `json:"reagents"`
-	WaterL          dist.Stat            `json:"make_up_water_l"`
-	Gases           map[string]Gas       `json:"gases"`
-	GasReference    string               `json:"gas_reference"`
-	Liquor          Liquor               `json:"liquor"`
+	Route        string         `json:"route"`
+	Settings     Options        `json:"settings"`
+	Reagents     []Reagent      `json:"reagents"`
+	WaterL       dist.Stat      `json:"make_up_water_l"`
+	Gases        map[string]Gas `json:"gases"`
+	GasReference string         `json:"gas_reference"`
+	Liquor       Liquor         `json:"liquor"`
+	// LiquorSamples is the liquor of every sample, for the stages after the leach.
+	LiquorSamples   *LiquorSamples       `json:"-"`
 	FreeAcidMolPerL dist.Stat            `json:"free_acid_mol_per_l"`
 	Saturation      map[string]dist.Stat `json:"saturation"`
 	// SaturationAtC is, per salt, the temperature between the filtered liquor's and the leach's
