@@ -173,7 +173,7 @@ func (o *estimateOptions) runOptions() (*run.Tables, run.Options, error) {
 	if err != nil {
 		return nil, ro, err
 	}
-	ro = run.Options{Seed: o.seed, Samples: o.samples, Leach: leachOpt, Prices: prices, Containers: cs,
+	ro = run.Options{Seed: o.seed, Samples: o.samples, Leach: leachOpt, LeachPrices: o.leach.prices, Prices: prices, Containers: cs,
 		// Per-line detail is kept only for the outputs that print it (JSON and the workbook): the
 		// text report never does, and keeping it costs memory in proportion to the manifest.
 		KeepLines:      o.keepLines || (!o.noLines && (o.asJSON || o.xlsxPath != "")),

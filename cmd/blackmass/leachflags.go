@@ -21,6 +21,7 @@ import (
 type leachFlags struct {
 	route      string
 	opt        leach.Options
+	prices     leach.Prices
 	planPath   string
 	extraction string
 	containers string
@@ -39,21 +40,21 @@ func (l *leachFlags) bind(cmd *cobra.Command) {
 	l.flags = fl
 	fl.StringVar(&l.planPath, "plan", "", "leach plan file: lines \"key = value\" with the leach flag names (flags on the command line win)")
 	fl.StringVar(&l.route, "route", d.Route.String(), "leach route: sulfuric-peroxide, hydrochloric or sulfuric-selective")
-	numberVar(fl, &l.opt.AcidWtPct, "acid-strength", 0, 1, 100, "a mass fraction in per cent", "acid bought, wt% (default 98 for H2SO4, 32 for HCl)")
-	numberVar(fl, &l.opt.H2O2WtPct, "h2o2-strength", d.H2O2WtPct, 1, 100, "a mass fraction in per cent", "hydrogen peroxide bought, wt%")
-	numberVar(fl, &l.opt.AcidExcess, "acid-excess", d.AcidExcess, 0.1, 10, "a factor over stoichiometry", "acid as a factor over stoichiometry")
-	numberVar(fl, &l.opt.FreeAcidMolPerL, "free-acid", d.FreeAcidMolPerL, 0, 10, "above any practical leach liquor", "free acid to leave in the liquor, mol/L")
-	numberVar(fl, &l.opt.ReductantExcess, "h2o2-excess", d.ReductantExcess, 0, 10, "a factor over stoichiometry", "peroxide as a factor over stoichiometry")
-	numberVar(fl, &l.opt.PulpDensityGPerL, "pulp-density", d.PulpDensityGPerL, 1, 1000, "a slurry past 1000 g/L cannot be stirred", "black mass per litre of liquor, g/L")
-	numberVar(fl, &l.opt.LiquorVolumeL, "liquor-volume", 0, 0.001, 1e7, "from 1 mL to 10,000 m³", "fixed liquor volume in L (instead of the pulp density)")
-	numberVar(fl, &l.opt.RecipeAcidMolPerL, "acid-molarity", 0, 0.01, 18.4, "98 % sulfuric acid is 18.4 mol/L (CRC Handbook)", "bench recipe: acid molarity of the lixiviant, mol/L (replaces --acid-excess and --free-acid)")
-	numberVar(fl, &l.opt.RecipeH2O2VolPct, "h2o2-vol-pct", 0, 0.01, 100, "a volume fraction in per cent", "bench recipe: peroxide as vol% of the commercial solution (replaces --h2o2-excess)")
-	numberVar(fl, &l.opt.AcidPricePerKg, "acid-price", 0, 0, 1e6, "a price per kg", "price per kg of commercial acid (any currency)")
-	numberVar(fl, &l.opt.H2O2PricePerKg, "h2o2-price", 0, 0, 1e6, "a price per kg", "price per kg of the reductant as bought (same currency)")
+	leachNumber(fl, &l.opt.AcidWtPct, "acid-strength", 0, "acid bought, wt% (default 98 for H2SO4, 32 for HCl)")
+	leachNumber(fl, &l.opt.H2O2WtPct, "h2o2-strength", d.H2O2WtPct, "hydrogen peroxide bought, wt%")
+	leachNumber(fl, &l.opt.AcidExcess, "acid-excess", d.AcidExcess, "acid as a factor over stoichiometry")
+	leachNumber(fl, &l.opt.FreeAcidMolPerL, "free-acid", d.FreeAcidMolPerL, "free acid to leave in the liquor, mol/L")
+	leachNumber(fl, &l.opt.ReductantExcess, "h2o2-excess", d.ReductantExcess, "peroxide as a factor over stoichiometry")
+	leachNumber(fl, &l.opt.PulpDensityGPerL, "pulp-density", d.PulpDensityGPerL, "black mass per litre of liquor, g/L")
+	leachNumber(fl, &l.opt.LiquorVolumeL, "liquor-volume", 0, "fixed liquor volume in L (instead of the pulp density)")
+	leachNumber(fl, &l.opt.RecipeAcidMolPerL, "acid-molarity", 0, "bench recipe: acid molarity of the lixiviant, mol/L (replaces --acid-excess and --free-acid)")
+	leachNumber(fl, &l.opt.RecipeH2O2VolPct, "h2o2-vol-pct", 0, "bench recipe: peroxide as vol% of the commercial solution (replaces --h2o2-excess)")
+	leachNumber(fl, &l.prices.AcidPerKg, "acid-price", 0, "price per kg of commercial acid (any currency)")
+	leachNumber(fl, &l.prices.ReductantPerKg, "h2o2-price", 0, "price per kg of the reductant as bought (same currency)")
 	fl.StringVar(&l.opt.Reductant, "reductant", d.Reductant, "reductant of the sulfuric routes: H2O2, SO2, Na2S2O5 (metabisulfite), C6H8O6 (ascorbic acid) or none")
-	numberVar(fl, &l.opt.RecipeReductantGPerL, "reductant-g-per-l", 0, 0.01, 500, "g per litre of liquor", "bench recipe: a solid or gaseous reductant in g per litre of liquor")
-	numberVar(fl, &l.opt.TemperatureC, "temperature", d.TemperatureC, 0, 110, "an open acid leach boils near 105 °C", "leach temperature, °C (sets how much peroxide decomposes, how much the oxides' own oxygen reduces them when short of reductant, and the hot end of the saturation check)")
-	fl.StringVar(&l.opt.Currency, "currency", "", "currency of the reagent prices (EUR, USD ...), shown with every cost")
+	leachNumber(fl, &l.opt.RecipeReductantGPerL, "reductant-g-per-l", 0, "bench recipe: a solid or gaseous reductant in g per litre of liquor")
+	leachNumber(fl, &l.opt.TemperatureC, "temperature", d.TemperatureC, "leach temperature, °C (sets how much peroxide decomposes, how much the oxides' own oxygen reduces them when short of reductant, and the hot end of the saturation check)")
+	fl.StringVar(&l.prices.Currency, "currency", "", "currency of the reagent prices (EUR, USD ...), shown with every cost")
 	fl.StringVar(&l.containers, "containers", "25 L can, 200 L drum, 1000 L IBC, 25 kg bag", "packages reagents are bought in, for the order sheet (capacity, L or kg, name; comma-separated)")
 	fl.BoolVar(&l.opt.GrowVolume, "grow-volume", false, "let the liquor volume grow when the reagents alone exceed it (default: refuse)")
 	fl.StringVar(&l.extraction, "extraction", "", "your own test-leach extractions, e.g. Co=0.92,Ni=0.95,Li=0.99 (fractions or per cent; * for every metal)")
@@ -129,7 +130,20 @@ func (l *leachFlags) options() (*leach.Options, error) {
 	if o.AcidWtPct == 0 {
 		o.AcidWtPct = leach.DefaultAcidWtPct(r)
 	}
-	return &o, nil
+	if err := o.Validate(); err != nil {
+		return nil, err // an *leach.OptionError: a usage error
+	}
+	return &o, l.prices.Validate()
+}
+
+// leachNumber binds a leach option's flag to the one range the leach holds it to (leach.Bounds),
+// printed in the help.
+func leachNumber(fl *pflag.FlagSet, p *float64, name string, def float64, usage string) {
+	b, ok := leach.BoundOf(name)
+	if !ok {
+		panic("no leach bound for --" + name)
+	}
+	numberVar(fl, p, name, def, b.Min, b.Max, b.Why, fmt.Sprintf("%s; %g to %g", usage, b.Min, b.Max))
 }
 
 // set reports whether a leach setting was given, on the command line or in the plan file.

@@ -10,6 +10,7 @@ import (
 	"github.com/spf13/cobra"
 
 	"blackmass/cathode"
+	"blackmass/feed/leach"
 	"blackmass/feed/run"
 )
 
@@ -34,7 +35,8 @@ func Main(args []string, in io.Reader, out, errOut io.Writer) int {
 		fmt.Fprintln(errOut, "blackmass:", err)
 		var ue usageError
 		var oe *run.OptionError
-		if errors.As(err, &ue) || errors.As(err, &oe) || strings.HasPrefix(err.Error(), "unknown command") {
+		var le *leach.OptionError // a leach option out of its range is a mistake in the command line
+		if errors.As(err, &ue) || errors.As(err, &oe) || errors.As(err, &le) || strings.HasPrefix(err.Error(), "unknown command") {
 			fmt.Fprintln(errOut, "run 'blackmass help' for usage")
 			return exitUsage
 		}

@@ -179,9 +179,10 @@ type QuoteOptions struct {
 	Seed        uint64
 	Samples     int
 	Leach       leach.Options
-	// Tables are the leach tables, whose atomic weights also map the assay to species (nil:
-	// the embedded tables).
+	// Tables are the leach tables (required), whose atomic weights also map the assay to species;
+	// Prices price the leach reagents (the zero value: no cost).
 	Tables *leach.Tables
+	Prices leach.Prices
 }
 
 // Quote is what an assay and a weight give: the black mass and its elements and species (drawn
@@ -212,7 +213,7 @@ func QuoteFrom(a *Assay, opt QuoteOptions) (*Quote, error) {
 	}
 	lt := opt.Tables
 	if lt == nil {
-		return nil, errors.New("a quote needs the leach tables")
+		return nil, errors.New("quote: no leach tables given")
 	}
 	sm, err := newSpeciesMapper(lt)
 	if err != nil {
@@ -272,7 +273,8 @@ func QuoteFrom(a *Assay, opt QuoteOptions) (*Quote, error) {
 			break
 		}
 	}
-	lr, err := leach.Plan(leach.Input{Formulas: assayColumns, Kg: cols, BlackMassKg: bm, Draws: dist.NewDrawer(opt.Seed, n), Tables: lt}, opt.Leach)
+	lr, err := leach.Plan(leach.Input{Formulas: assayColumns, Kg: cols, BlackMassKg: bm, Draws: dist.NewDrawer(opt.Seed, n), Tables: lt,
+		Prices: opt.Prices}, opt.Leach)
 	if err != nil {
 		return nil, err
 	}

@@ -194,7 +194,7 @@ func TestQuoteFromAssayLiCoO2(t *testing.T) {
 	a := mustAssay(t, assayCSV(composition(map[string]float64{"LiCoO2": 1}), 0))
 	o := leach.DefaultOptions()
 	o.ExtractionOverride = map[string]float64{"*": 1}
-	r, err := assay.QuoteFrom(a, assay.QuoteOptions{BlackMassKg: 1, Samples: 20, Seed: 1, Leach: o, Tables: embeddedLeach(t)})
+	r, err := assay.QuoteFrom(a, assay.QuoteOptions{BlackMassKg: 1, Samples: 20, Seed: 1, Leach: o, Tables: embeddedTables(t)})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -253,7 +253,7 @@ func TestQuoteUsesItsTablesAtomicWeights(t *testing.T) {
 		tables *leach.Tables
 		coG    float64 // CIAAW 2021: Co 58.933194; Li 6.94 and O 15.999 in both
 	}{
-		{"embedded tables", embeddedLeach(t), 58.933194},
+		{"embedded tables", embeddedTables(t), 58.933194},
 		{"Co = 60", lt, 60},
 	} {
 		t.Run(c.name, func(t *testing.T) {
@@ -286,7 +286,7 @@ func TestQuoteMeshram2016DoseResponse(t *testing.T) {
 		o := leach.DefaultOptions()
 		o.RecipeAcidMolPerL, o.PulpDensityGPerL, o.TemperatureC = 1, 50, 95
 		o.Reductant, o.RecipeReductantGPerL = reductant, gPerL
-		q, err := assay.QuoteFrom(a, assay.QuoteOptions{BlackMassKg: 1, Samples: 2000, Seed: 7, Leach: o, Tables: embeddedLeach(t)})
+		q, err := assay.QuoteFrom(a, assay.QuoteOptions{BlackMassKg: 1, Samples: 2000, Seed: 7, Leach: o, Tables: embeddedTables(t)})
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -320,8 +320,8 @@ func TestQuoteMeshram2016DoseResponse(t *testing.T) {
 	}
 }
 
-// embeddedLeach returns the embedded leach tables.
-func embeddedLeach(t testing.TB) *leach.Tables {
+// embeddedTables are the embedded leach tables.
+func embeddedTables(t testing.TB) *leach.Tables {
 	t.Helper()
 	lt, err := leach.LoadTables(data.FS)
 	if err != nil {

@@ -8,6 +8,7 @@ import (
 
 	"blackmass/cathode"
 	"blackmass/cathode/cathodetest"
+	"blackmass/data"
 	"blackmass/feed/leach"
 )
 
@@ -18,7 +19,7 @@ func leachLCO(t *testing.T, mut func(*leach.Options)) *leach.Report {
 	if mut != nil {
 		mut(&o)
 	}
-	lr, err := leach.PlanFor(map[string]float64{"LiCoO2": 1}, o, 1, 20)
+	lr, err := leach.PlanFor(tables(t), map[string]float64{"LiCoO2": 1}, o, 1, 20)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -64,7 +65,7 @@ func TestReagentDensities(t *testing.T) {
 		r       string
 		wt, rho float64
 	}{{"H2SO4", 98, 1.8361}, {"H2SO4", 93, 1.8276}, {"HCl", 32, 1.1594}, {"HCl", 21, 1.10315}, {"H2O2", 30, 1.111}} {
-		d, err := leach.Density(c.r, c.wt)
+		d, err := tables(t).Density(c.r, c.wt)
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -74,7 +75,7 @@ func TestReagentDensities(t *testing.T) {
 	r := lr.Reagents[0]
 	near(t, "litres = kg / density", r.Litres.P50, r.Kg.P50/1.8361, 1e-6)
 	near(t, "kg commercial = kg pure / 0.98", r.Kg.P50, r.KgPure.P50/0.98, 1e-9)
-	if _, err := leach.Density("H2SO4", 5); err == nil {
+	if _, err := tables(t).Density("H2SO4", 5); err == nil {
 		t.Error("density outside the table should be an error")
 	}
 }
@@ -86,7 +87,7 @@ func TestReagentDensities(t *testing.T) {
 func TestLeachJha2013PeroxideUnderDose(t *testing.T) {
 	o := leach.DefaultOptions()
 	o.RecipeAcidMolPerL, o.RecipeH2O2VolPct, o.TemperatureC = 2, 5, 75
-	lr, err := leach.PlanFor(map[string]float64{"LiCoO2": 1}, o, 1, 500)
+	lr, err := leach.PlanFor(tables(t), map[string]float64{"LiCoO2": 1}, o, 1, 500)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -123,7 +124,7 @@ func TestLeachRatioAgainstFullDissolution(t *testing.T) {
 	need := 100 / cathode.MolarMassOf("LiCoO2") / 2 // mol H2O2 per L for 100 g/L LiCoO2
 	o.RecipeAcidMolPerL = 3
 	o.RecipeH2O2VolPct = 0.997 * need * cathode.MolarMassOf("H2O2") / (1.111 * 0.30 * 1000) * 100
-	lr, err := leach.PlanFor(map[string]float64{"LiCoO2": 1}, o, 1, 200)
+	lr, err := leach.PlanFor(tables(t), map[string]float64{"LiCoO2": 1}, o, 1, 200)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -142,7 +143,7 @@ func TestLeachHydrochloricBenchRule(t *testing.T) {
 	o := leach.DefaultOptions()
 	o.Route, o.AcidWtPct, o.RecipeAcidMolPerL, o.LiquorVolumeL, o.PulpDensityGPerL = cathode.Hydrochloric, 20.2, molar, 0.1, 0
 	o.ExtractionOverride = map[string]float64{"*": 1}
-	metal, err := leach.PlanFor(map[string]float64{"Co": 0.010}, o, 1, 20)
+	metal, err := leach.PlanFor(tables(t), map[string]float64{"Co": 0.010}, o, 1, 20)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -151,7 +152,7 @@ func TestLeachHydrochloricBenchRule(t *testing.T) {
 		t.Errorf("Co metal: %.2f×, H2 %v, extraction %v", metal.Reagents[0].RatioFull.P50, metal.Gases["H2"].Mol.P50, metal.Liquor.ExtractionReached["Co"].P50)
 	}
 	kgLCO := 0.010 / 0.60215 // LiCoO2 holding 10 g Co (Co is 60.2 wt%, CIAAW 2021)
-	oxide, err := leach.PlanFor(map[string]float64{"LiCoO2": kgLCO}, o, 1, 20)
+	oxide, err := leach.PlanFor(tables(t), map[string]float64{"LiCoO2": kgLCO}, o, 1, 20)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -170,11 +171,11 @@ func TestLeachHydrochloricBenchRule(t *testing.T) {
 func TestLeachReagentsExceedVolume(t *testing.T) {
 	o := leach.DefaultOptions()
 	o.Route, o.AcidWtPct, o.RecipeAcidMolPerL, o.PulpDensityGPerL = cathode.Hydrochloric, 32, 12, 300
-	if _, err := leach.PlanFor(map[string]float64{"LiCoO2": 1}, o, 1, 20); err == nil || !strings.Contains(err.Error(), "more than") {
+	if _, err := leach.PlanFor(tables(t), map[string]float64{"LiCoO2": 1}, o, 1, 20); err == nil || !strings.Contains(err.Error(), "more than") {
 		t.Fatalf("error %v", err)
 	}
 	o.GrowVolume = true
-	lr, err := leach.PlanFor(map[string]float64{"LiCoO2": 1}, o, 1, 20)
+	lr, err := leach.PlanFor(tables(t), map[string]float64{"LiCoO2": 1}, o, 1, 20)
 	if err != nil || lr.WaterL.P10 < 0 || !hasWarning(lr, "volume grew") {
 		t.Fatalf("grow: %v %+v", err, lr)
 	}
@@ -202,7 +203,7 @@ func TestLeachMetalsReduceOxides(t *testing.T) {
 
 func leachFor(t *testing.T, kg map[string]float64, o leach.Options) *leach.Report {
 	t.Helper()
-	lr, err := leach.PlanFor(kg, o, 1, 20)
+	lr, err := leach.PlanFor(tables(t), kg, o, 1, 20)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -262,7 +263,7 @@ func TestLeachConservationUnderEveryDose(t *testing.T) {
 					if dose < 1 {
 						o.RecipeAcidMolPerL = dose
 					}
-					lr, err := leach.PlanFor(map[string]float64{e.Formula.String(): 1, "Al": 0.05, "Cu": 0.05, "Fe": 0.02, "C": 0.4}, o, 1, 30)
+					lr, err := leach.PlanFor(tables(t), map[string]float64{e.Formula.String(): 1, "Al": 0.05, "Cu": 0.05, "Fe": 0.02, "C": 0.4}, o, 1, 30)
 					if err != nil {
 						t.Fatal(err)
 					}
@@ -291,7 +292,7 @@ func TestSaturationAtTheLeastSolubleTemperature(t *testing.T) {
 		o := leach.DefaultOptions()
 		o.ExtractionOverride = map[string]float64{"*": 1}
 		o.PulpDensityGPerL, o.TemperatureC = 200, tC
-		lr, err := leach.PlanFor(map[string]float64{"LiMn2O4": 1}, o, 1, 50)
+		lr, err := leach.PlanFor(tables(t), map[string]float64{"LiMn2O4": 1}, o, 1, 50)
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -324,7 +325,7 @@ func TestSaturationAtTheLeastSolubleTemperature(t *testing.T) {
 func TestPeroxideAllowanceWarningFollowsThePlan(t *testing.T) {
 	o := leach.DefaultOptions()
 	o.RecipeAcidMolPerL, o.RecipeH2O2VolPct, o.TemperatureC = 2, 8, 90
-	hot, err := leach.PlanFor(map[string]float64{"LiCoO2": 1}, o, 1, 500)
+	hot, err := leach.PlanFor(tables(t), map[string]float64{"LiCoO2": 1}, o, 1, 500)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -338,11 +339,21 @@ func TestPeroxideAllowanceWarningFollowsThePlan(t *testing.T) {
 		t.Errorf("Co reached %.2f at 90 °C with the oxides' oxygen to help", x)
 	}
 	o.RecipeH2O2VolPct, o.TemperatureC = 5, 75
-	short, err := leach.PlanFor(map[string]float64{"LiCoO2": 1}, o, 1, 500)
+	short, err := leach.PlanFor(tables(t), map[string]float64{"LiCoO2": 1}, o, 1, 500)
 	if err != nil {
 		t.Fatal(err)
 	}
 	if !hasWarning(short, "extraction will fall short") {
 		t.Errorf("75 °C, 0.96× the need: %q", short.Warnings)
 	}
+}
+
+// tables are the embedded leach tables.
+func tables(t testing.TB) *leach.Tables {
+	t.Helper()
+	lt, err := leach.LoadTables(data.FS)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return lt
 }

@@ -40,14 +40,16 @@ func LoadReductants(tables interface {
 	}
 	var out []*Reductant
 	for _, r := range t.Rows {
-		rd := &Reductant{Key: r.Str("reductant"), Formula: r.Str("formula"), Oxidant: r.Str("oxidant") == "yes", Form: r.Str("form"), Source: r.Str("source")}
+		rd := &Reductant{Key: r.Str("reductant"), Formula: r.Str("formula"), Oxidant: r.Str("oxidant") == "yes",
+			Form: r.Str("form"), Source: r.Str("source")}
 		for _, a := range strings.Split(r.Str("aliases"), "|") {
 			if a = strings.TrimSpace(a); a != "" {
 				rd.Aliases = append(rd.Aliases, a)
 			}
 		}
-		for col, p := range map[string]*float64{"electrons_per_mol": &rd.ElectronsMol, "h_plus_per_mol": &rd.HPlusMol, "sulfate_per_mol": &rd.SulfateMol,
-			"sodium_per_mol": &rd.SodiumMol, "o2_per_mol": &rd.O2Mol, "water_per_mol": &rd.WaterMol} {
+		for col, p := range map[string]*float64{"electrons_per_mol": &rd.ElectronsMol, "h_plus_per_mol": &rd.HPlusMol,
+			"sulfate_per_mol": &rd.SulfateMol,
+			"sodium_per_mol":  &rd.SodiumMol, "o2_per_mol": &rd.O2Mol, "water_per_mol": &rd.WaterMol} {
 			if *p, err = r.Float(col); err != nil {
 				return nil, err
 			}
@@ -152,8 +154,8 @@ const maxLeachIterations = 60
 // gives the rest. On the sulfuric routes, what is still short the oxides' own oxygen can give,
 // leaving as O2, up to a share of the planned reduction that depends on temperature
 // (data/lattice_oxygen.csv). Metal left over dissolves with H2 if it is less noble than
-// hydrogen; copper left needs an oxidant (peroxide) or stays. Peroxide left then oxidises Fe(II) to Fe(III) (E° 0.771 V,
-// after Cu²⁺/Cu at 0.34 V) and the remainder decomposes to O2.
+// hydrogen; copper left needs an oxidant (peroxide) or stays. Peroxide left then oxidises Fe(II)
+// to Fe(III) (E° 0.771 V, after Cu²⁺/Cu at 0.34 V) and the remainder decomposes to O2.
 //
 // Acid: H+ taken by the solids' anions, by H2 and by the peroxide acting as oxidant, less the
 // H+ the reductant releases. Short of acid, every extraction is scaled down until the acid just

@@ -204,7 +204,7 @@ func TestLatticeOxygenAcidOnlyLiCoO2(t *testing.T) {
 // The peroxide loss near boiling is the 80 °C row carried 10 °C up by the table's rule: the
 // decomposition rate doubles every 10 °C, and for first-order decay the share left squares.
 func TestPeroxideLossNearBoilingFollowsTheDoubling(t *testing.T) {
-	lt, err := DefaultTables()
+	lt, err := LoadTables(data.FS)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -227,7 +227,7 @@ func TestPeroxideLossNearBoilingFollowsTheDoubling(t *testing.T) {
 // 31.23 at 90 °C and 30.89 at 100 °C (retrograde); MnSO4 62.87 at 20 °C and 40.45 at 90 °C;
 // NiSO4 37.74 at 20 °C, rising; Al2(SO4)3 37.93 at 0 °C and 38.5 at 25 °C (no 20 °C value).
 func TestSolubilityCurvesFromTheHandbook(t *testing.T) {
-	lt, err := DefaultTables()
+	lt, err := LoadTables(data.FS)
 	if err != nil {
 		t.Fatal(err)
 	}

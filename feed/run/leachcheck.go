@@ -1,9 +1,15 @@
 package run
 
-import "blackmass/feed/leach"
+import (
+	"errors"
 
-// validateLeach checks the leach settings; the planner holds their ranges.
-func validateLeach(o *leach.Options) error {
-	_ = o // MERGE: call o.Validate() once the planner has it
-	return nil
+	"blackmass/feed/leach"
+)
+
+// leachOptionErr makes a leach option out of its range a run's option error.
+func leachOptionErr(err error) error {
+	if oe, ok := errors.AsType[*leach.OptionError](err); ok {
+		return &OptionError{Option: oe.Option, Err: err}
+	}
+	return err
 }

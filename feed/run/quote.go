@@ -14,7 +14,7 @@ func Quote(t *Tables, o Options, a *assay.Assay, qo assay.QuoteOptions) (*report
 	if err := o.Validate(); err != nil {
 		return nil, err
 	}
-	qo.Seed, qo.Samples, qo.Tables = o.Seed, o.Samples, t.Leach
+	qo.Seed, qo.Samples, qo.Tables, qo.Prices = o.Seed, o.Samples, t.Leach, o.LeachPrices
 	if o.Leach != nil {
 		qo.Leach = *o.Leach
 	}

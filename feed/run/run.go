@@ -28,8 +28,10 @@ const MaxXLSXBytes = 64 << 20
 type Options struct {
 	Seed    uint64
 	Samples int
-	// Leach plans the leach of the black mass; nil leaves the leach out.
-	Leach *leach.Options
+	// Leach plans the leach of the black mass; nil leaves the leach out. LeachPrices price its
+	// reagents (the zero value: no reagent cost).
+	Leach       *leach.Options
+	LeachPrices leach.Prices
 	// Prices values the lot; nil leaves the value out. Containers are the packages of the order
 	// sheet.
 	Prices     *value.PriceList
@@ -81,8 +83,13 @@ func (o *Options) Validate() error {
 	if o.MaxLines < 0 {
 		return optionErr("max-lines", "a line bound is not negative, got %d", o.MaxLines)
 	}
-	if err := validateLeach(o.Leach); err != nil {
-		return err
+	if o.Leach != nil {
+		if err := o.Leach.Validate(); err != nil {
+			return leachOptionErr(err)
+		}
+	}
+	if err := o.LeachPrices.Validate(); err != nil {
+		return leachOptionErr(err)
 	}
 	for _, c := range o.Containers {
 		if !(c.Litres > 0) && !(c.Kg > 0) {
@@ -103,7 +110,7 @@ func (o *Options) checkCurrency() error {
 	if o.Leach == nil || o.Prices == nil {
 		return nil
 	}
-	if cur := o.Leach.Currency; cur != "" && !strings.EqualFold(cur, o.Prices.Currency) {
+	if cur := o.LeachPrices.Currency; cur != "" && !strings.EqualFold(cur, o.Prices.Currency) {
 		return optionErr("currency", "--currency %s and the prices file's %s disagree: give the reagent prices in %s",
 			cur, o.Prices.Currency, o.Prices.Currency)
 	}
@@ -146,7 +153,8 @@ func Estimate(t *Tables, o Options, m Manifest) (*report.Report, error) {
 		r.Warnings = append(r.Warnings, fmt.Sprintf("columns left out as asked: %s", strings.Join(info.IgnoredColumns, ", ")))
 	}
 	if o.Leach != nil {
-		in := leach.Input{Formulas: s.Formulas, Kg: s.Compounds, BlackMassKg: s.BlackMass, Draws: s.Draws, Tables: t.Leach}
+		in := leach.Input{Formulas: s.Formulas, Kg: s.Compounds, BlackMassKg: s.BlackMass, Draws: s.Draws, Tables: t.Leach,
+			Prices: o.LeachPrices}
 		if r.Leach, err = leach.Plan(in, *o.Leach); err != nil {
 			return nil, err
 		}
@@ -239,7 +247,7 @@ func costPerSample(l *leach.Report) []float64 {
 // finish adds the order sheet and refuses a report holding a non-finite number.
 func finish(r *report.Report, o Options) (*report.Report, error) {
 	if r.Leach != nil {
-		cur := r.Leach.Settings.Currency
+		cur := o.LeachPrices.Currency
 		if r.Value != nil {
 			cur = r.Value.Currency
 		}

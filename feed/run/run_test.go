@@ -246,7 +246,11 @@ func TestLeachChargeBalanceAndScaling(t *testing.T) {
 	// Zero extraction of an element gives none of it in the liquor.
 	o := leach.DefaultOptions()
 	o.ExtractionOverride = map[string]float64{"Co": 0}
-	lr, err := leach.PlanFor(map[string]float64{"LiCoO2": 1, "LiNi0.8Mn0.1Co0.1O2": 1}, o, 1, 50)
+	tb, err := run.DefaultTables()
+	if err != nil {
+		t.Fatal(err)
+	}
+	lr, err := leach.PlanFor(tb.Leach, map[string]float64{"LiCoO2": 1, "LiNi0.8Mn0.1Co0.1O2": 1}, o, 1, 50)
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -165,8 +165,11 @@ func (w *writer) recipeCalculator(s string, row int) int {
 }
 
 func priceOf(l *leach.Report, g leach.Reagent) float64 {
-	if g.Name == l.Reagents[0].Name {
-		return l.Settings.AcidPricePerKg
+	if l.Prices == nil {
+		return 0
 	}
-	return l.Settings.H2O2PricePerKg
+	if g.Name == l.Reagents[0].Name {
+		return l.Prices.AcidPerKg
+	}
+	return l.Prices.ReductantPerKg
 }

@@ -319,7 +319,10 @@ func writeLeachText(w io.Writer, r *report.Report) {
 		fmt.Fprintf(w, "chlorine scrubber: %s kg %s (%s L, P50; %s)\n", Num(sc.Kg.P50), sc.Reagent, Num(sc.Litres.P50), sc.Reaction)
 	}
 	if l.TotalCost != nil {
-		cur := l.Settings.Currency
+		cur := ""
+		if l.Prices != nil {
+			cur = l.Prices.Currency
+		}
 		if cur == "" {
 			cur = "(no currency given)"
 		}

@@ -88,9 +88,12 @@ func Order(l *leach.Report, blackMassKg float64, containers []Container, currenc
 			v := g.Litres
 			litres = &v
 		}
-		price := l.Settings.AcidPricePerKg
-		if i > 0 {
-			price = l.Settings.H2O2PricePerKg
+		var price float64
+		if p := l.Prices; p != nil {
+			price = p.AcidPerKg
+			if i > 0 {
+				price = p.ReductantPerKg
+			}
 		}
 		add(g.Name, g.Kg, litres, price)
 	}
