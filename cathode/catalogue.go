@@ -63,6 +63,7 @@ type Catalogue struct {
 	appOrder      []string
 	labelFamilies map[string]*family // normalised family label -> family
 	familyOrder   []*family
+	others        map[string]*OtherBattery // normalised word -> battery that is not lithium-ion
 }
 
 // LoadCatalogue reads chemistries.csv, families.csv, applications.csv, prior.csv and
@@ -92,6 +93,9 @@ func LoadCatalogue(fsys fs.FS) (*Catalogue, error) {
 		c.families[e.Family] = e
 	}
 	if err := c.loadPriorTables(fsys); err != nil {
+		return nil, err
+	}
+	if err := c.loadOtherBatteries(fsys); err != nil {
 		return nil, err
 	}
 	return c, nil
@@ -291,7 +295,7 @@ func DefaultCatalogue() (*Catalogue, error) {
 		return nil, err
 	}
 	cp := &Catalogue{es: c.es, byName: map[string]*Entry{}, families: c.families, prior: map[string][]Component{}, priorSrc: c.priorSrc,
-		apps: c.apps, appOrder: c.appOrder, labelFamilies: c.labelFamilies, familyOrder: c.familyOrder}
+		apps: c.apps, appOrder: c.appOrder, labelFamilies: c.labelFamilies, familyOrder: c.familyOrder, others: c.others}
 	for k, v := range c.prior {
 		cp.prior[k] = append([]Component(nil), v...)
 	}

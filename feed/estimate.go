@@ -116,7 +116,7 @@ func (l *Lot) draw(ps *paramSet, n int) *Samples {
 // report summarises the draws with the lot's counts, labels and warnings.
 func (l *Lot) report(s *Samples, opt EstimateOptions) *Report {
 	r := &Report{Inputs: opt.Inputs, Elements: map[string]dist.Amount{}, Compounds: map[string]dist.Amount{}, Lines: l.lines,
-		Warnings: append([]string(nil), l.warnings...), Safety: safetyNotes}
+		Warnings: append([]string(nil), l.warnings...), Safety: safetyNotes, NonLithium: l.NonLithium()}
 	r.Inputs.Seed, r.Inputs.Samples = opt.Seed, s.N
 	r.Lot = LotSummary{Lines: l.nLines, Items: l.items, Cells: l.cells, NameplateKWh: dist.Round(l.energyWh/1000, 6),
 		ChargeOnlyAh: dist.Round(l.chargeAh, 6), LinesWithMass: l.withMass, LinesFlaggedByMass: l.flagged,

@@ -86,9 +86,15 @@ type Report struct {
 	Assay          *assay.Assay          `json:"assay,omitempty"`
 	Reconciliation *assay.Reconciliation `json:"reconciliation,omitempty"`
 	Mix            *assay.MixFit         `json:"mix_fit,omitempty"`
-	Parameters     []dist.Param          `json:"parameters"`
-	Warnings       []string              `json:"warnings"`
-	Safety         []string              `json:"safety"`
+	// Basis says what the figures rest on (estimate, assay+weighing ...); Weighing is the
+	// quote's weighed mass, wet and dry; Missing the elements the assay lacked.
+	Basis      string           `json:"basis,omitempty"`
+	Weighing   *assay.Weighing  `json:"weighing,omitempty"`
+	Missing    []assay.Missing  `json:"missing_elements,omitempty"`
+	NonLithium []NonLithiumLine `json:"non_lithium,omitempty"`
+	Parameters []dist.Param     `json:"parameters"`
+	Warnings   []string         `json:"warnings"`
+	Safety     []string         `json:"safety"`
 	// ElementOrder lists the element symbols in display order (metals first).
 	ElementOrder []string `json:"element_order"`
 }
@@ -108,7 +114,7 @@ var safetyNotes = []string{
 func QuoteReport(q *assay.Quote, in Inputs, prices *PriceList) *Report {
 	in.Seed, in.Samples = q.Seed, q.Samples
 	r := &Report{Inputs: in, BlackMassKg: q.BlackMassKg, Elements: q.Elements, Compounds: q.Compounds, ElementOrder: q.ElementOrder,
-		Leach: q.Leach, Warnings: q.Warnings, Safety: safetyNotes}
+		Leach: q.Leach, Warnings: q.Warnings, Safety: safetyNotes, Basis: q.Basis, Weighing: &q.Weighing, Missing: q.Missing}
 	if prices != nil {
 		els := q.ElementOrder
 		kg := make([][]float64, len(els))

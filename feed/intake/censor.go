@@ -110,4 +110,6 @@ func assayQuantity(s, unitCol string) (float64, float64, error) {
 }
 
 // normUnit lowers a unit and drops its spaces ("mg / kg" is mg/kg).
-func normUnit(s string) string { return strings.ToLower(strings.ReplaceAll(strings.TrimSpace(s), " ", "")) }
+func normUnit(s string) string {
+	return strings.ToLower(strings.ReplaceAll(strings.TrimSpace(s), " ", ""))
+}
