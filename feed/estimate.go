@@ -38,6 +38,9 @@ func (l *Lot) Estimate(opt EstimateOptions) (*Report, *Samples, error) {
 	if opt.Samples < 10 || opt.Samples > 200_000 {
 		return nil, nil, fmt.Errorf("samples must be from 10 to 200000, got %d", opt.Samples)
 	}
+	if l.nLines == 0 && len(l.nonLithium) > 0 {
+		return nil, nil, errors.New("the lot has no lithium-ion lines, only batteries that are not lithium-ion: no black mass to estimate")
+	}
 	if l.nLines == 0 {
 		return nil, nil, errors.New("the lot has no lines")
 	}
