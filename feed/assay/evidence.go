@@ -69,6 +69,17 @@ const (
 type MissingLi struct {
 	Mode  MissingLiMode
 	WtPct float64 // for LiGiven
+	// From says where a given value comes from ("the inferred chemistry mix"; "" for the user).
+	From string
+}
+
+// MissingLiFromMix is the lithium of a chemistry mix inferred from the assay's other elements
+// (MixFit.Implied), for an assay without lithium; the stoichiometric default without a fit.
+func MissingLiFromMix(fit *MixFit) MissingLi {
+	if fit == nil || !(fit.Implied["Li"] > 0) {
+		return MissingLi{Mode: LiStoichiometric}
+	}
+	return MissingLi{Mode: LiGiven, WtPct: fit.Implied["Li"], From: "the chemistry mix inferred from the assay's other elements"}
 }
 
 // ParseMissingLi reads "stoichiometric", "none" or a lithium content in wt% ("3.2", "3.2 %",
@@ -172,7 +183,13 @@ func fillMissing(a *Assay, es *cathode.Elements, draws []map[string]float64, ml 
 				d["Li"] = ml.WtPct
 			}
 			m.Basis = BasisAssumed
-			m.Note = fmt.Sprintf("Li not assayed: %.3g wt%% as given for the quote; Li is left out of the element masses and the value", ml.WtPct)
+			from := ml.From
+			if from == "" {
+				from = "as given for the quote"
+			} else {
+				from = "the lithium of " + from
+			}
+			m.Note = fmt.Sprintf("Li not assayed: %.3g wt%%, %s; Li is left out of the element masses and the value", ml.WtPct, from)
 		case el == "Li":
 			m.Note = "Li not assayed and none assumed, as asked: Co, Ni and Mn are read as delithiated oxides (Co(IV), Ni(IV)), " +
 				"which need about twice the reductant of LiMO2"

@@ -215,3 +215,32 @@ func TestParseMissingLiAndMoisture(t *testing.T) {
 		}
 	}
 }
+
+// With Li left off, the mix fit gives the lithium of the cathodes it infers: an assay of 40 %
+// LiCoO2 and 30 % graphite less its lithium implies 0.4 × M(Li)/M(LiCoO2) = 0.4 × 6.94/97.873 =
+// 2.836 wt% Li (CIAAW 2021), and the quote takes that as the missing lithium.
+func TestMissingLiFromMix(t *testing.T) {
+	t.Parallel()
+	wt := composition(map[string]float64{"LiCoO2": 0.4, "C": 0.3})
+	delete(wt, "Li")
+	a := mustAssay(t, assayCSV(wt, 0.01))
+	fit, err := assay.InferMix(a, candidates(t, "LCO", "NMC111", "LFP"), 50, 1)
+	if err != nil {
+		t.Fatal(err)
+	}
+	nearly(t, "implied Li wt%", fit.Implied["Li"], 2.836, 0.005)
+	ml := assay.MissingLiFromMix(fit)
+	if ml.Mode != assay.LiGiven || ml.From == "" {
+		t.Fatalf("%+v", ml)
+	}
+	q, err := assay.QuoteFrom(a, assay.QuoteOptions{BlackMassKg: 1, Samples: 20, Seed: 1, Leach: leach.DefaultOptions(), MissingLi: ml})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !slices.ContainsFunc(q.Warnings, func(w string) bool { return strings.Contains(w, "the lithium of the chemistry mix inferred") }) {
+		t.Errorf("warnings %q", q.Warnings)
+	}
+	if m := assay.MissingLiFromMix(nil); m.Mode != assay.LiStoichiometric {
+		t.Errorf("without a fit: %+v", m)
+	}
+}

@@ -147,6 +147,9 @@ type MixFit struct {
 	Explained  float64        `json:"explained_mass_fraction"`
 	Bootstrap  int            `json:"bootstrap_draws"`
 	Notes      []string       `json:"notes"`
+	// Implied is the wt% the best fit gives the elements its candidates hold but the assay
+	// lacks (lithium left off an assay, say): the stoichiometric content of the inferred mix.
+	Implied map[string]float64 `json:"implied_wt_pct,omitempty"`
 }
 
 // InferMix fits non-negative mass fractions of candidate chemistries plus graphite, PVDF, Al, Cu
@@ -198,6 +201,7 @@ func InferMix(a *Assay, candidates []*cathode.Entry, draws int, seed uint64) (*M
 		fit.Explained += best[j]
 	}
 	fit.Explained = dist.Sig(fit.Explained)
+	fit.Implied = implied(cols, rows, best)
 	for i, v := range rows {
 		f := 0.0
 		for j, c := range cols {
@@ -211,6 +215,27 @@ func InferMix(a *Assay, candidates []*cathode.Entry, draws int, seed uint64) (*M
 		"the explained mass fraction leaves out what the candidates lack (moisture, plastics, oxygen of other species)",
 	}...)
 	return fit, nil
+}
+
+// implied returns the wt% the fit best gives the elements its columns hold but no assay row has.
+func implied(cols []mixColumn, rows []Value, best []float64) map[string]float64 {
+	out := map[string]float64{}
+	for _, el := range []string{"Li", "P", "F", "C"} {
+		if slices.ContainsFunc(rows, func(v Value) bool { return v.Element == el }) {
+			continue
+		}
+		w := 0.0
+		for j, c := range cols {
+			w += 100 * c.frac[el] * best[j]
+		}
+		if w > 0 {
+			out[el] = dist.Sig(w)
+		}
+	}
+	if len(out) == 0 {
+		return nil
+	}
+	return out
 }
 
 // distinctCompositions keeps the first of candidates that share one composition (cells of two
