@@ -62,6 +62,7 @@ type Catalogue struct {
 	appOrder      []string
 	labelFamilies map[string]*family // normalised family label -> family
 	familyOrder   []*family
+	others        map[string]*OtherBattery // normalised word -> battery that is not lithium-ion
 }
 
 // LoadCatalogue reads chemistries.csv, families.csv, applications.csv, prior.csv and
@@ -91,6 +92,9 @@ func LoadCatalogue(fsys fs.FS) (*Catalogue, error) {
 		c.families[e.Family] = e
 	}
 	if err := c.loadPriorTables(fsys); err != nil {
+		return nil, err
+	}
+	if err := c.loadOtherBatteries(fsys); err != nil {
 		return nil, err
 	}
 	return c, nil

@@ -21,12 +21,23 @@ type Value struct {
 	SigmaWtPct   float64 `json:"sigma_wt_pct"` // standard uncertainty
 	SigmaAssumed bool    `json:"sigma_assumed"`
 	Line         int     `json:"line"`
+	// Censored marks a value below the lab's detection limit (LimitWtPct): WtPct and SigmaWtPct
+	// are then the mean and standard deviation of a uniform distribution from 0 to the limit
+	// (see Censor), and reports show "< limit".
+	Censored   bool    `json:"below_detection_limit,omitempty"`
+	LimitWtPct float64 `json:"detection_limit_wt_pct,omitempty"`
+	// Basis is what the value rests on: assay (the lab's), or estimate (taken from a lot's
+	// estimate by Complete).
+	Basis string `json:"basis,omitempty"`
 }
 
 // Assay is a lab assay of a black-mass sample.
 type Assay struct {
 	File   string  `json:"file"`
 	Values []Value `json:"values"`
+	// Moisture is the water of the sample as received, in wt% of the wet sample (nil: the
+	// assay gives none). The elements are of the dry sample, as labs report them.
+	Moisture *Value `json:"moisture,omitempty"`
 }
 
 // DefaultSigmaRel is the relative standard uncertainty assumed where the lab gives none
@@ -174,11 +185,19 @@ func (sm *speciesMapper) species(dst []float64, wt map[string]float64, form TMFo
 
 // QuoteOptions sets a quote from an assay alone.
 type QuoteOptions struct {
+	// BlackMassKg is the mass as weighed: wet when a moisture is known (Moisture, or the
+	// assay's moisture line), which is taken off before any metal is counted.
 	BlackMassKg float64
-	TMForm      TMForm
-	Seed        uint64
-	Samples     int
-	Leach       leach.Options
+	// Moisture is the water of the weighed mass (wt% of the wet mass); unknown, the assay's
+	// moisture line is used, and without one the weighed mass is taken as dry.
+	Moisture Moisture
+	// MissingLi is the lithium assumed when the assay has none (LiStoichiometric is the zero
+	// value); a warning names what was assumed.
+	MissingLi MissingLi
+	TMForm    TMForm
+	Seed      uint64
+	Samples   int
+	Leach     leach.Options
 	// Tables are the leach tables (required), whose atomic weights also map the assay to species;
 	// Prices price the leach reagents (the zero value: no cost).
 	Tables *leach.Tables
@@ -188,7 +207,15 @@ type QuoteOptions struct {
 // Quote is what an assay and a weight give: the black mass and its elements and species (drawn
 // within the assay's uncertainty) and the leach plan.
 type Quote struct {
-	BlackMassKg  dist.Stat
+	// Basis says what the figures rest on: "assay+weighing", or "assay+estimate+weighing"
+	// when an element was taken from a lot's estimate.
+	Basis string `json:"basis"`
+	// Weighing is the mass as weighed, its moisture and the dry mass the metals are counted in
+	// (BlackMassKg).
+	Weighing    Weighing  `json:"weighing"`
+	BlackMassKg dist.Stat `json:"dry_mass_kg"`
+	// Missing lists the elements the species model needs that the assay lacks, and what stood in.
+	Missing      []Missing `json:"missing_elements,omitempty"`
 	Elements     map[string]dist.Amount
 	Compounds    map[string]dist.Amount
 	ElementOrder []string
@@ -202,14 +229,28 @@ type Quote struct {
 	BlackMassDraws []float64            `json:"-"`
 }
 
-// QuoteFrom quotes material already shredded: the assay (drawn within its uncertainty) times the
-// black-mass weight, mapped to species, then the leach plan.
+// Weighing is a weighed black mass, wet and dry.
+type Weighing struct {
+	WetMassKg     float64   `json:"wet_mass_kg"`
+	MoistureWtPct dist.Stat `json:"moisture_wt_pct"`
+	MoistureBasis string    `json:"moisture_basis"`
+	DryMassKg     dist.Stat `json:"dry_mass_kg"`
+}
+
+// QuoteFrom quotes material already shredded: the assay (drawn within its uncertainty, values
+// below the detection limit from 0 to the limit) times the dry black mass (the weighed mass less
+// its moisture), mapped to species, then the leach plan. Elements the species need that the
+// assay lacks are never resolved silently: lithium is assumed as opt.MissingLi says, and every
+// missing element has a warning.
 func QuoteFrom(a *Assay, opt QuoteOptions) (*Quote, error) {
 	if !(opt.BlackMassKg > 0) || opt.BlackMassKg > 1e7 {
 		return nil, fmt.Errorf("black-mass weight must be positive (got %v kg)", opt.BlackMassKg)
 	}
 	if opt.Samples < 10 || opt.Samples > 200_000 {
 		return nil, fmt.Errorf("samples must be from 10 to 200000, got %d", opt.Samples)
+	}
+	if opt.Moisture.Known && (opt.Moisture.WtPct < 0 || opt.Moisture.WtPct > maxMoistureWtPct) {
+		return nil, fmt.Errorf("moisture must be from 0 to %g wt%% of the wet mass (got %v)", float64(maxMoistureWtPct), opt.Moisture.WtPct)
 	}
 	lt := opt.Tables
 	if lt == nil {
@@ -221,32 +262,22 @@ func QuoteFrom(a *Assay, opt QuoteOptions) (*Quote, error) {
 	}
 	n := opt.Samples
 	draws := drawAssay(a, opt.Seed, n)
-	cols := make([][]float64, len(assayColumns))
-	for c := range cols {
-		cols[c] = make([]float64, n)
-	}
-	row := make([]float64, len(assayColumns))
-	unassigned := map[string]float64{}
-	for i := range n {
-		un := sm.species(row, draws[i], opt.TMForm)
-		for c, v := range row {
-			cols[c][i] = v * opt.BlackMassKg
-		}
-		if i == 0 {
-			unassigned = un
-		}
-	}
+	r := &Quote{Elements: map[string]dist.Amount{}, Compounds: map[string]dist.Amount{}, Seed: opt.Seed, Samples: n,
+		ElementDraws: map[string][]float64{}, Basis: quoteBasis(a)}
+	r.Missing = fillMissing(a, sm.es, draws, opt.MissingLi)
+	moist, mBasis, mWarn := moistureOf(a, opt.Moisture, opt.Seed, n)
 	bm := make([]float64, n)
 	for i := range bm {
-		bm[i] = opt.BlackMassKg
+		bm[i] = opt.BlackMassKg * (1 - moist[i]/100)
 	}
-	r := &Quote{Elements: map[string]dist.Amount{}, Compounds: map[string]dist.Amount{}, Seed: opt.Seed, Samples: n,
-		ElementDraws: map[string][]float64{}, BlackMassDraws: bm}
+	r.BlackMassDraws = bm
 	r.BlackMassKg = dist.Summarise(bm)
+	r.Weighing = Weighing{WetMassKg: opt.BlackMassKg, MoistureWtPct: dist.Summarise(moist), MoistureBasis: mBasis, DryMassKg: r.BlackMassKg}
+	cols, unassigned := sm.columns(draws, bm, opt.TMForm)
 	for _, v := range a.Values {
 		kg := make([]float64, n)
 		for i := range n {
-			kg[i] = draws[i][v.Element] / 100 * opt.BlackMassKg
+			kg[i] = draws[i][v.Element] / 100 * bm[i]
 		}
 		r.Elements[v.Element] = dist.AmountOf(kg, bm)
 		r.ElementDraws[v.Element] = kg
@@ -256,23 +287,8 @@ func QuoteFrom(a *Assay, opt QuoteOptions) (*Quote, error) {
 			r.Compounds[name] = dist.AmountOf(cols[c], bm)
 		}
 	}
-	els := make([]string, 0, len(r.Elements))
-	for e := range r.Elements {
-		els = append(els, e)
-	}
-	r.ElementOrder = cathode.SortForDisplay(els)
-	r.Warnings = append(r.Warnings, "quote from an assay: species are inferred from the elements ("+
-		map[TMForm]string{TMLayered: "Co/Ni/Mn as layered oxides with the assay's lithium, Ni(II) paired with Mn(IV) as in NMC", TMMonoxide: "Co/Ni/Mn as monoxides", TMMetal: "Co/Ni/Mn as metals"}[opt.TMForm]+
-		"; Li with Fe and P as LiFePO4, other Fe as metal, Al and Cu as metal, F as PVDF, other C as graphite, Li left over as Li2CO3)")
-	for _, el := range slices.Sorted(maps.Keys(unassigned)) {
-		r.Warnings = append(r.Warnings, fmt.Sprintf("%.3g wt%% %s could not be placed in a species and is left out of the leach", unassigned[el], el))
-	}
-	for _, v := range a.Values {
-		if v.SigmaAssumed {
-			r.Warnings = append(r.Warnings, fmt.Sprintf("no lab uncertainty given: %.0f %% relative assumed for every element without one", 100*DefaultSigmaRel))
-			break
-		}
-	}
+	r.ElementOrder = cathode.SortForDisplay(slices.Collect(maps.Keys(r.Elements)))
+	r.Warnings = quoteWarnings(a, opt, unassigned, r.Missing, mWarn)
 	lr, err := leach.Plan(leach.Input{Formulas: assayColumns, Kg: cols, BlackMassKg: bm, Draws: dist.NewDrawer(opt.Seed, n), Tables: lt,
 		Prices: opt.Prices}, opt.Leach)
 	if err != nil {
@@ -282,17 +298,80 @@ func QuoteFrom(a *Assay, opt QuoteOptions) (*Quote, error) {
 	return r, nil
 }
 
+// quoteBasis says what a quote rests on.
+func quoteBasis(a *Assay) string {
+	for _, v := range a.Values {
+		if v.Basis == BasisEstimate {
+			return joinBasis(BasisAssay, BasisEstimate, BasisWeighing)
+		}
+	}
+	return joinBasis(BasisAssay, BasisWeighing)
+}
+
+// columns maps every draw to kg of each assay column in the dry mass bm of that draw; it
+// returns the wt% of elements draw 0 could not place.
+func (sm *speciesMapper) columns(draws []map[string]float64, bm []float64, form TMForm) ([][]float64, map[string]float64) {
+	n := len(draws)
+	cols := make([][]float64, len(assayColumns))
+	for c := range cols {
+		cols[c] = make([]float64, n)
+	}
+	row := make([]float64, len(assayColumns))
+	var unassigned map[string]float64
+	for i := range n {
+		un := sm.species(row, draws[i], form)
+		for c, v := range row {
+			cols[c][i] = v * bm[i]
+		}
+		if i == 0 {
+			unassigned = un
+		}
+	}
+	return cols, unassigned
+}
+
+// quoteWarnings says how the species were inferred and what the assay left open.
+func quoteWarnings(a *Assay, opt QuoteOptions, unassigned map[string]float64, missing []Missing, moisture []string) []string {
+	w := []string{"quote from an assay: species are inferred from the elements (" +
+		map[TMForm]string{TMLayered: "Co/Ni/Mn as layered oxides with the assay's lithium, Ni(II) paired with Mn(IV) as in NMC", TMMonoxide: "Co/Ni/Mn as monoxides", TMMetal: "Co/Ni/Mn as metals"}[opt.TMForm] +
+		"; Li with Fe and P as LiFePO4, other Fe as metal, Al and Cu as metal, F as PVDF, other C as graphite, Li left over as Li2CO3)"}
+	for _, m := range missing {
+		w = append(w, m.Note)
+	}
+	w = append(w, moisture...)
+	for _, el := range slices.Sorted(maps.Keys(unassigned)) {
+		w = append(w, fmt.Sprintf("%.3g wt%% %s could not be placed in a species and is left out of the leach", unassigned[el], el))
+	}
+	for _, v := range a.Values {
+		if v.SigmaAssumed {
+			w = append(w, fmt.Sprintf("no lab uncertainty given: %.0f %% relative assumed for every element without one", 100*DefaultSigmaRel))
+			break
+		}
+	}
+	var below []string
+	for _, v := range a.Values {
+		if v.Censored {
+			below = append(below, v.Element+" "+v.Text())
+		}
+	}
+	if len(below) > 0 {
+		w = append(w, "below the detection limit ("+strings.Join(below, ", ")+"): drawn from 0 to the limit, every value equally likely")
+	}
+	return w
+}
+
 // drawAssay returns n draws of the assay, each element from a normal distribution with the
-// lab's standard uncertainty, truncated at zero. Draw 0 is the assay as reported.
+// lab's standard uncertainty, truncated at zero, or uniform from 0 to the detection limit for a
+// value below it. Draw 0 is the assay as reported (half the limit for a value below it).
 func drawAssay(a *Assay, seed uint64, n int) []map[string]float64 {
 	rng := rand.New(rand.NewPCG(seed, 0xa55a))
 	out := make([]map[string]float64, n)
 	for i := range out {
-		m := make(map[string]float64, len(a.Values))
+		m := make(map[string]float64, len(a.Values)+1)
 		for _, v := range a.Values {
 			x := v.WtPct
 			if i > 0 {
-				x = math.Max(0, v.WtPct+v.SigmaWtPct*rng.NormFloat64())
+				x = v.draw(rng)
 			}
 			m[v.Element] = x
 		}

@@ -22,11 +22,13 @@ const zPerP10P90 = 2 * 1.2815515655446004
 
 // Comparison is one element of a reconciliation between an estimate and an assay.
 type Comparison struct {
-	Element        string  `json:"element"`
-	EstimateWtPct  float64 `json:"estimate_wt_pct"`
-	EstimateSigma  float64 `json:"estimate_sigma_wt_pct"`
-	AssayWtPct     float64 `json:"assay_wt_pct"`
-	AssaySigma     float64 `json:"assay_sigma_wt_pct"`
+	Element       string  `json:"element"`
+	EstimateWtPct float64 `json:"estimate_wt_pct"`
+	EstimateSigma float64 `json:"estimate_sigma_wt_pct"`
+	AssayWtPct    float64 `json:"assay_wt_pct"`
+	AssaySigma    float64 `json:"assay_sigma_wt_pct"`
+	// AssayText is the assay as reported ("< 0.05 wt%" below the detection limit).
+	AssayText      string  `json:"assay"`
 	Z              float64 `json:"difference_in_sigma"`
 	Flag           bool    `json:"disagrees"`
 	Interpretation string  `json:"reading,omitempty"`
@@ -34,9 +36,14 @@ type Comparison struct {
 
 // Reconciliation sets an estimate beside an assay of the same lot.
 type Reconciliation struct {
+	// Basis is what the comparison rests on: the estimate against the assay.
+	Basis       string       `json:"basis"`
 	Threshold   float64      `json:"flag_above_sigma"`
 	Comparisons []Comparison `json:"elements"`
 	Summary     []string     `json:"summary"`
+	// Missing says, for each element a species model needs that the assay lacks, what the
+	// estimate holds of it (see Complete).
+	Missing []string `json:"missing_elements,omitempty"`
 }
 
 // readings say what a disagreement suggests, by element and sign (assay above / below the estimate).
@@ -56,23 +63,28 @@ var readings = map[string][2]string{
 // Reconcile compares an estimate (each element's wt% distribution) with an assay, element by
 // element, in units of the combined standard uncertainty; |z| above threshold is flagged.
 func Reconcile(estimate map[string]dist.Amount, a *Assay, threshold float64) *Reconciliation {
-	rc := &Reconciliation{Threshold: threshold}
+	rc := &Reconciliation{Threshold: threshold, Basis: joinBasis(BasisEstimate, BasisAssay)}
+	_, rc.Missing = Complete(a, estimate)
 	for _, v := range a.Values {
+		if v.Basis == BasisEstimate {
+			continue // not evidence against the estimate it came from
+		}
 		est, ok := estimate[v.Element]
-		c := Comparison{Element: v.Element, AssayWtPct: v.WtPct, AssaySigma: v.SigmaWtPct}
+		c := Comparison{Element: v.Element, AssayWtPct: v.WtPct, AssaySigma: v.SigmaWtPct, AssayText: v.Text()}
 		if !ok {
 			c.Interpretation = "not in the estimate's model (e.g. salt from brine discharge, or another contaminant)"
 			rc.Comparisons = append(rc.Comparisons, c)
 			continue
 		}
-		{
-			c.EstimateWtPct = est.WtPct.Mean
-			c.EstimateSigma = (est.WtPct.P90 - est.WtPct.P10) / zPerP10P90
-		}
+		c.EstimateWtPct = est.WtPct.Mean
+		c.EstimateSigma = (est.WtPct.P90 - est.WtPct.P10) / zPerP10P90
 		sd := math.Hypot(c.EstimateSigma, c.AssaySigma)
-		if sd > 0 {
+		switch {
+		case v.Censored:
+			c.Z = censoredZ(c.EstimateWtPct, c.EstimateSigma, v.LimitWtPct)
+		case sd > 0:
 			c.Z = (c.AssayWtPct - c.EstimateWtPct) / sd
-		} else if c.AssayWtPct != c.EstimateWtPct {
+		case c.AssayWtPct != c.EstimateWtPct:
 			c.Z = math.Copysign(math.Inf(1), c.AssayWtPct-c.EstimateWtPct)
 		}
 		if math.Abs(c.Z) > threshold {
@@ -83,7 +95,11 @@ func Reconcile(estimate map[string]dist.Amount, a *Assay, threshold float64) *Re
 					c.Interpretation = rd[1]
 				}
 			}
-			rc.Summary = append(rc.Summary, fmt.Sprintf("%s: assay %.2f wt%% vs estimate %.2f wt%% (%+.1f σ)", v.Element, c.AssayWtPct, c.EstimateWtPct, c.Z))
+			txt := fmt.Sprintf("%.2f wt%%", c.AssayWtPct)
+			if v.Censored {
+				txt = v.Text()
+			}
+			rc.Summary = append(rc.Summary, fmt.Sprintf("%s: assay %s vs estimate %.2f wt%% (%+.1f σ)", v.Element, txt, c.EstimateWtPct, c.Z))
 		}
 		rc.Comparisons = append(rc.Comparisons, c)
 	}
@@ -91,6 +107,19 @@ func Reconcile(estimate map[string]dist.Amount, a *Assay, threshold float64) *Re
 		rc.Summary = []string{fmt.Sprintf("the assay agrees with the estimate within %.1f σ for every element", threshold)}
 	}
 	return rc
+}
+
+// censoredZ is how far an estimate lies above a detection limit, in the estimate's standard
+// uncertainty: 0 while the estimate is anywhere from 0 to the limit, where the assay cannot
+// tell it from the truth.
+func censoredZ(estWtPct, estSigma, limitWtPct float64) float64 {
+	if estWtPct <= limitWtPct {
+		return 0
+	}
+	if estSigma > 0 {
+		return (limitWtPct - estWtPct) / estSigma
+	}
+	return math.Inf(-1)
 }
 
 // MixComponent is one column of the mix fit with its share.
@@ -118,6 +147,9 @@ type MixFit struct {
 	Explained  float64        `json:"explained_mass_fraction"`
 	Bootstrap  int            `json:"bootstrap_draws"`
 	Notes      []string       `json:"notes"`
+	// Implied is the wt% the best fit gives the elements its candidates hold but the assay
+	// lacks (lithium left off an assay, say): the stoichiometric content of the inferred mix.
+	Implied map[string]float64 `json:"implied_wt_pct,omitempty"`
 }
 
 // InferMix fits non-negative mass fractions of candidate chemistries plus graphite, PVDF, Al, Cu
@@ -169,6 +201,7 @@ func InferMix(a *Assay, candidates []*cathode.Entry, draws int, seed uint64) (*M
 		fit.Explained += best[j]
 	}
 	fit.Explained = dist.Sig(fit.Explained)
+	fit.Implied = implied(cols, rows, best)
 	for i, v := range rows {
 		f := 0.0
 		for j, c := range cols {
@@ -182,6 +215,27 @@ func InferMix(a *Assay, candidates []*cathode.Entry, draws int, seed uint64) (*M
 		"the explained mass fraction leaves out what the candidates lack (moisture, plastics, oxygen of other species)",
 	}...)
 	return fit, nil
+}
+
+// implied returns the wt% the fit best gives the elements its columns hold but no assay row has.
+func implied(cols []mixColumn, rows []Value, best []float64) map[string]float64 {
+	out := map[string]float64{}
+	for _, el := range []string{"Li", "P", "F", "C"} {
+		if slices.ContainsFunc(rows, func(v Value) bool { return v.Element == el }) {
+			continue
+		}
+		w := 0.0
+		for j, c := range cols {
+			w += 100 * c.frac[el] * best[j]
+		}
+		if w > 0 {
+			out[el] = dist.Sig(w)
+		}
+	}
+	if len(out) == 0 {
+		return nil
+	}
+	return out
 }
 
 // distinctCompositions keeps the first of candidates that share one composition (cells of two

@@ -23,9 +23,14 @@ const minAssayWtPct = 1e-6
 
 var assayUnits = map[string]float64{"wt%": 1, "%": 1, "wt.%": 1, "pct": 1, "g/kg": 0.1, "mg/kg": 1e-4, "ppm": 1e-4, "mg/g": 0.1}
 
-// ReadAssay reads an assay CSV: columns element, value, unit (wt%, g/kg, mg/kg or ppm) and an
-// optional uncertainty column (± in the same unit, a standard uncertainty). Refused: unknown
-// elements or units, negative values, duplicates, and elements summing past 100 %.
+// ReadAssay reads an assay CSV: columns element, value, unit (wt%, g/kg, mg/kg or ppm), an
+// optional uncertainty column (± in the same unit, a standard uncertainty) and an optional
+// detection-limit column (LOD, LOQ, detection limit). A value below the detection limit
+// ("<0.05", "< 50 ppm", "n.d.", "ND", "BDL", "<LOD" with the limit in its column) is censored:
+// somewhere from 0 to the limit. A moisture row (element moisture, H2O or water; wt% of the wet
+// sample) is kept apart from the elements, which labs report on the dry sample. Refused: unknown
+// elements or units, negative values, duplicates, a value below detection with no limit, and
+// elements summing past 100 %.
 func ReadAssay(r io.Reader, name string) (*assay.Assay, error) {
 	br, err := openSideFile(r, name)
 	if err != nil {
@@ -33,12 +38,9 @@ func ReadAssay(r io.Reader, name string) (*assay.Assay, error) {
 	}
 	cr := data.NewCSVReader(br, ',')
 	cr.FieldsPerRecord = -1 // the uncertainty may be left off a row
-	fail := func(line int, col, val, reason string) error {
-		return &Error{File: name, Line: line, Column: col, Value: val, Reason: reason}
-	}
 	header, err := cr.Read()
 	if errors.Is(err, io.EOF) {
-		return nil, fail(0, "", "", "empty file")
+		return nil, &Error{File: name, Reason: "empty file"}
 	}
 	if err != nil {
 		return nil, wrapCSV(name, err)
@@ -50,9 +52,8 @@ func ReadAssay(r io.Reader, name string) (*assay.Assay, error) {
 	// Only the symbols are checked here (is it an element, is it a metal), and those are
 	// IUPAC's, not a table a user edits; the weights that turn wt% into moles come later, from
 	// the tables the calculation is given.
-	es := cathode.DefaultElements()
+	ar := assayRow{name: name, idx: idx, width: len(header), es: cathode.DefaultElements(), seen: map[string]int{}}
 	a := &assay.Assay{File: name}
-	seen := map[string]int{}
 	sum := 0.0
 	for {
 		rec, err := cr.Read()
@@ -63,69 +64,99 @@ func ReadAssay(r io.Reader, name string) (*assay.Assay, error) {
 			return nil, wrapCSV(name, err)
 		}
 		line, _ := cr.FieldPos(0)
-		get := func(c string) string {
-			if i, ok := idx[c]; ok && i < len(rec) {
-				return strings.TrimSpace(rec[i])
-			}
-			return ""
-		}
 		if blank(rec) {
 			continue
 		}
-		for i, f := range rec {
-			if !utf8.ValidString(f) {
-				return nil, fail(line, "", "", "not valid UTF-8")
-			}
-			if i >= len(header) && strings.TrimSpace(f) != "" {
-				return nil, fail(line, fmt.Sprintf("column %d", i+1), f, fmt.Sprintf("a value beyond the header's %d columns", len(header)))
-			}
-		}
-		el := get("element")
-		if es.Lookup(el) == nil {
-			return nil, fail(line, "element", el, "not an element of the atomic-weight table (symbols such as Co, Ni, Li; case matters: Co, not CO)")
-		}
-		if prev, dup := seen[el]; dup {
-			return nil, fail(line, "element", el, fmt.Sprintf("given twice (first on line %d)", prev))
-		}
-		seen[el] = line
-		unit := strings.ToLower(strings.ReplaceAll(get("unit"), " ", ""))
-		f, ok := assayUnits[unit]
-		if !ok {
-			return nil, fail(line, "unit", get("unit"), "unknown unit (want wt%, g/kg, mg/kg or ppm)")
-		}
-		v, err := ParseNumber(get("value"), false)
+		av, err := ar.read(rec, line)
 		if err != nil {
-			return nil, fail(line, "value", get("value"), err.Error())
+			return nil, err
 		}
-		if v < 0 {
-			return nil, fail(line, "value", get("value"), "negative")
-		}
-		if v > 0 && v*f < minAssayWtPct {
-			return nil, fail(line, "value", get("value"), fmt.Sprintf("below %g wt%% (0.01 ppm), under any lab's reporting limit: give 0", minAssayWtPct))
-		}
-		av := assay.Value{Element: el, WtPct: v * f, Line: line}
-		if us := get("uncertainty"); us != "" {
-			u, err := ParseNumber(strings.TrimPrefix(us, "±"), false)
-			if err != nil || u < 0 || u*f > 100 {
-				return nil, fail(line, "uncertainty", us, "want a non-negative number in the value's unit, at most 100 wt%")
-			}
-			av.SigmaWtPct = u * f
-		} else {
-			av.SigmaWtPct, av.SigmaAssumed = assay.DefaultSigmaRel*av.WtPct, true
-		}
-		if av.WtPct > 100 {
-			return nil, fail(line, "value", get("value"), "more than 100 wt%")
+		if av.Element == moistureElement {
+			a.Moisture = &av
+			continue
 		}
 		sum += av.WtPct
 		a.Values = append(a.Values, av)
 	}
 	if len(a.Values) == 0 {
-		return nil, fail(0, "", "", "no assay rows")
+		return nil, &Error{File: name, Reason: "no assay rows"}
 	}
 	if sum > maxAssaySumWtPct {
-		return nil, fail(0, "", "", fmt.Sprintf("elements sum to %.2f wt%%, past 100 %%", sum))
+		return nil, &Error{File: name, Reason: fmt.Sprintf("elements sum to %.2f wt%%, past 100 %%", sum)}
 	}
 	return a, nil
+}
+
+// moistureElement is the element name a moisture row is kept under.
+const moistureElement = "H2O"
+
+// moistureWords name a moisture row in the element column.
+var moistureWords = map[string]bool{"moisture": true, "h2o": true, "water": true, "moisture content": true, "free moisture": true}
+
+// assayRow reads the rows of one assay file.
+type assayRow struct {
+	name string
+	idx  map[string]int
+	// width is the number of the header's columns.
+	width int
+	es    *cathode.Elements
+	seen  map[string]int
+}
+
+func (ar *assayRow) fail(line int, col, val, reason string) error {
+	return &Error{File: ar.name, Line: line, Column: col, Value: val, Reason: reason}
+}
+
+// read reads one row: the element (or moisture), its value, censored or not, and uncertainty.
+func (ar *assayRow) read(rec []string, line int) (assay.Value, error) {
+	get := func(c string) string {
+		if i, ok := ar.idx[c]; ok && i < len(rec) {
+			return strings.TrimSpace(rec[i])
+		}
+		return ""
+	}
+	for i, f := range rec {
+		if !utf8.ValidString(f) {
+			return assay.Value{}, ar.fail(line, "", "", "not valid UTF-8")
+		}
+		if i >= ar.width && strings.TrimSpace(f) != "" {
+			return assay.Value{}, ar.fail(line, fmt.Sprintf("column %d", i+1), f,
+				fmt.Sprintf("a value beyond the header's %d columns", ar.width))
+		}
+	}
+	el := get("element")
+	if moistureWords[strings.ToLower(el)] {
+		el = moistureElement
+	} else if ar.es.Lookup(el) == nil {
+		return assay.Value{}, ar.fail(line, "element", el, "not an element of the atomic-weight table (symbols such as Co, Ni, Li; case matters: Co, not CO)")
+	}
+	if prev, dup := ar.seen[el]; dup {
+		return assay.Value{}, ar.fail(line, "element", get("element"), fmt.Sprintf("given twice (first on line %d)", prev))
+	}
+	ar.seen[el] = line
+	av := assay.Value{Element: el, Line: line, Basis: assay.BasisAssay}
+	cv, err := readCensorable(get("value"), get("unit"), get("lod"))
+	if err != nil {
+		return av, ar.fail(line, err.col, err.val, err.reason)
+	}
+	if cv.censored {
+		av.Censor(cv.limitWtPct)
+		return av, nil
+	}
+	av.WtPct = cv.wtPct
+	if us := get("uncertainty"); us != "" {
+		u, err := ParseNumber(strings.TrimPrefix(us, "±"), false)
+		if err != nil || u < 0 || u*cv.factor > 100 {
+			return av, ar.fail(line, "uncertainty", us, "want a non-negative number in the value's unit, at most 100 wt%")
+		}
+		av.SigmaWtPct = u * cv.factor
+	} else {
+		av.SigmaWtPct, av.SigmaAssumed = assay.DefaultSigmaRel*av.WtPct, true
+	}
+	if el == moistureElement && av.WtPct >= 95 {
+		return av, ar.fail(line, "value", get("value"), "moisture must be below 95 wt% of the wet sample")
+	}
+	return av, nil
 }
 
 func wrapCSV(name string, err error) error {
@@ -138,7 +169,7 @@ func wrapCSV(name string, err error) error {
 
 // assayInfoColumns are columns labs add that carry no value the reading needs; they are read
 // past, by name, so that no other column is dropped unseen.
-var assayInfoColumns = map[string]bool{"lab": true, "sample": true, "sample_id": true, "method": true, "lod": true, "loq": true,
+var assayInfoColumns = map[string]bool{"lab": true, "sample": true, "sample_id": true, "method": true,
 	"notes": true, "note": true, "comment": true, "comments": true, "date": true}
 
 // assayHeader maps the assay's columns (with their synonyms); an unknown column is an error.
@@ -153,12 +184,14 @@ func assayHeader(header []string, name string) (map[string]int, error) {
 			k = "element"
 		case "result", "content":
 			k = "value"
+		case "lod", "loq", "dl", "mdl", "detection limit", "detection_limit", "limit", "reporting limit", "lod/loq":
+			k = "lod"
 		case "element", "value", "unit":
 		default:
 			if assayInfoColumns[strings.ReplaceAll(k, " ", "_")] || k == "" {
 				continue
 			}
-			return nil, &Error{File: name, Line: 1, Reason: fmt.Sprintf("unrecognised column %q (want element, value, unit, uncertainty; lab, sample, method, LOD, notes are read past)", Printable(h, 40))}
+			return nil, &Error{File: name, Line: 1, Reason: fmt.Sprintf("unrecognised column %q (want element, value, unit, uncertainty, LOD; lab, sample, method, notes are read past)", Printable(h, 40))}
 		}
 		if _, dup := idx[k]; dup {
 			return nil, &Error{File: name, Line: 1, Reason: fmt.Sprintf("duplicate column %q", Printable(h, 40))}

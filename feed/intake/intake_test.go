@@ -454,6 +454,7 @@ func BenchmarkDistinctFormulaLabels(b *testing.B) {
 func FuzzReadAssay(f *testing.F) {
 	f.Add("element,value,unit,uncertainty\nCo,20,wt%,0.5\nLi,35,g/kg,\n")
 	f.Add("element,value,unit\nNi,1e5,ppm\n")
+	f.Add("element,value,unit,lod\nCu,<0.05,wt%,\nFe,n.d.,ppm,20\nMoisture,6,%,\n")
 	f.Fuzz(func(t *testing.T, s string) {
 		a, err := intake.ReadAssay(strings.NewReader(s), "fuzz.csv")
 		if err != nil {

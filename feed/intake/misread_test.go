@@ -67,9 +67,12 @@ func TestHashLines(t *testing.T) {
 	if err != nil || len(lines) != 1 || lines[0].ID != "7" {
 		t.Fatalf("# header: %+v, %v", lines, err)
 	}
-	// A comment holding the separator is a line: refused loudly, not dropped or read silently.
-	_, err = readAll(t, "chemistry,format,capacity,count\nLFP,prismatic,100 Wh,2\n# checked, ok\n")
-	wantRefused(t, err, 3, "format", "a comment only when")
+	// A note holding the separator under the table is free text: read past (with a note in the
+	// reading's Info), never read as a line.
+	lines, err = readAll(t, "chemistry,format,capacity,count\nLFP,prismatic,100 Wh,2\n# checked, ok\n")
+	if err != nil || len(lines) != 1 {
+		t.Fatalf("note under the table: %+v, %v", lines, err)
+	}
 }
 
 // In a semicolon (decimal-comma) file "1.000" is a thousand, not one: refused as ambiguous.

@@ -38,6 +38,9 @@ type Info struct {
 	Lines          int      `json:"lines"`
 	// columns is the 0-based position of each column in the header (-1: none).
 	columns [numColumns]int
+	// Notes say which rows were read past (totals, free text, the end of the table) and what
+	// was assumed of a line (a bag weighed whole, a capacity given as volts and charge).
+	Notes []string `json:"notes,omitempty"`
 }
 
 // Limits on what a manifest may hold; beyond them the input is refused, not truncated.
@@ -121,6 +124,7 @@ func readRows(src rowSource, name string, opt Options, decimalComma bool, fn fun
 	}
 	p := newLineParser(name, opt, decimalComma, hdr)
 	rl, _ := src.(rawLiner)
+	tr := trailer{lastLine: info.HeaderLine}
 	for {
 		rec, line, err := src.next()
 		if errors.Is(err, io.EOF) {
@@ -130,6 +134,12 @@ func readRows(src rowSource, name string, opt Options, decimalComma bool, fn fun
 			return info, err
 		}
 		if blank(rec) || comment(rec) || p.onlyIgnored(rec) {
+			continue
+		}
+		if skip, err := tr.skip(p, rec, line, &info); skip || err != nil {
+			if err != nil {
+				return info, err
+			}
 			continue
 		}
 		if info.Lines >= MaxLines {
@@ -144,6 +154,7 @@ func readRows(src rowSource, name string, opt Options, decimalComma bool, fn fun
 		if err != nil {
 			return info, commentHint(err, rec)
 		}
+		tr.add(l, &info)
 		info.Lines++
 		if err := fn(l); err != nil {
 			var ie *Error
@@ -156,6 +167,7 @@ func readRows(src rowSource, name string, opt Options, decimalComma bool, fn fun
 	if info.Lines == 0 {
 		return info, &Error{File: name, Line: info.HeaderLine, Reason: "header but no lines"}
 	}
+	tr.finish(&info)
 	return info, nil
 }
 
@@ -219,6 +231,7 @@ type lineParser struct {
 	alike        map[string]manifest.Line        // parsed lines by their fields other than the id (parseAlike)
 	alikeRaw     map[string]manifest.Line        // parsed lines by their text without the id (parseAlike)
 	keyBuf       []byte                          // parseAlike's alone: its key may view this buffer until the line is remembered
+	others       otherCache                      // label -> battery that is not lithium-ion (nil: lithium-ion)
 }
 
 // quantity is a parsed quantity, or the error it gave, with its text in the base unit.
@@ -262,7 +275,7 @@ type resolved struct {
 func newLineParser(name string, opt Options, decimalComma bool, hdr *header) *lineParser {
 	return &lineParser{name: name, opt: opt, decimalComma: decimalComma, hdr: hdr,
 		chem: map[labelKey]*resolved{}, formats: map[string]manifest.Format{}, layouts: map[string]int{}, apps: map[string]string{},
-		alike: map[string]manifest.Line{}, alikeRaw: map[string]manifest.Line{}}
+		alike: map[string]manifest.Line{}, alikeRaw: map[string]manifest.Line{}, others: otherCache{}}
 }
 
 func (p *lineParser) get(rec []string, c Column) string {
@@ -283,7 +296,7 @@ func (p *lineParser) parse(rec []string, line int) (manifest.Line, error) {
 	}
 	for i := p.hdr.width; i < len(rec); i++ {
 		if strings.TrimSpace(rec[i]) != "" {
-			return manifest.Line{}, &Error{File: p.name, Line: line, Reason: fmt.Sprintf("a value in column %d, beyond the header's %d columns", i+1, p.hdr.width)}
+			return manifest.Line{}, &Error{File: p.name, Line: line, Reason: fmt.Sprintf("a value in column %d, beyond the header's %d columns", i+1, p.hdr.width) + p.decimalCommaHint(rec)}
 		}
 	}
 	for _, i := range p.hdr.ignored {
@@ -311,6 +324,10 @@ func (p *lineParser) parse(rec []string, line int) (manifest.Line, error) {
 	}
 	if err := p.mass(&l, rec, line); err != nil {
 		return l, err
+	}
+	if l.NonLithium != nil || l.CountUnknown { // counted apart, or energy from the bag's weight
+		l.CapacityText = p.get(rec, ColCapacity)
+		return l, nil
 	}
 	if err := p.capacity(&l, rec, line); err != nil {
 		return l, err
@@ -450,6 +467,9 @@ func (p *lineParser) format(l *manifest.Line, rec []string, line int) error {
 // else of its format.
 func (p *lineParser) chemistry(l *manifest.Line, rec []string, line int) error {
 	l.ChemistryLabel = p.get(rec, ColChemistry)
+	if l.NonLithium = p.otherBattery(l.ChemistryLabel); l.NonLithium != nil {
+		return nil
+	}
 	appText := p.get(rec, ColApplication)
 	if appText != "" {
 		app, ok := p.apps[appText]
@@ -500,6 +520,10 @@ func (p *lineParser) chemistry(l *manifest.Line, rec []string, line int) error {
 
 func (p *lineParser) count(l *manifest.Line, rec []string, line int) error {
 	cs := p.get(rec, ColCount)
+	if cs == "" && p.get(rec, ColMass) == "" && p.get(rec, ColTotalMass) != "" {
+		l.Count, l.CountUnknown = 1, true // a bag weighed whole
+		return nil
+	}
 	if n, err := strconv.Atoi(cs); err == nil && n >= 1 && n <= maxCount && cs[0] != '+' {
 		l.Count = n // the common case: a plain whole number
 		return nil
@@ -601,7 +625,11 @@ func (p *lineParser) capacity(l *manifest.Line, rec []string, line int) error {
 		}
 		return p.fail(line, ColCapacity, "", "give a capacity, or a mass for a line known by weight only")
 	}
-	q := p.quantity(ColCapacity, l.CapacityText, CapacityUnits, p.hdr.unit[ColCapacity])
+	capText, voltText, err := p.voltsAndCharge(l.CapacityText, p.get(rec, ColVoltage), line)
+	if err != nil {
+		return err
+	}
+	q := p.quantity(ColCapacity, capText, CapacityUnits, p.hdr.unit[ColCapacity])
 	if q.err != nil {
 		return p.fail(line, ColCapacity, l.CapacityText, q.err.Error())
 	}
@@ -632,7 +660,7 @@ func (p *lineParser) capacity(l *manifest.Line, rec []string, line int) error {
 	case "Wh":
 		l.EnergyWh = val * mult
 	case "Ah":
-		if vs := p.get(rec, ColVoltage); vs != "" {
+		if vs := voltText; vs != "" {
 			vq := p.quantity(ColVoltage, vs, VoltUnits, "V")
 			v := vq.v
 			if vq.err != nil || v < minVoltageV || v > maxVoltageV {

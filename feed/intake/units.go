@@ -105,8 +105,8 @@ func ParseNumber(s string, decimalComma bool) (float64, error) {
 func thousandsGrouped(s string) bool {
 	intPart, _, _ := strings.Cut(strings.TrimLeft(s, "+-"), ".")
 	groups := strings.Split(intPart, ",")
-	if len(groups) < 2 || len(groups[0]) == 0 || len(groups[0]) > 3 {
-		return false
+	if len(groups) < 2 || len(groups[0]) == 0 || len(groups[0]) > 3 || strings.Trim(groups[0], "0") == "" {
+		return false // "0,045" is a decimal comma: no thousands group starts with zero
 	}
 	for _, g := range groups[1:] {
 		if len(g) != 3 {

@@ -40,6 +40,8 @@ type Result struct {
 	ElementOrder []string
 	// ModeKWh is the lot's most likely nameplate energy, lines known by weight only included.
 	ModeKWh float64
+	// NonLithium lists the lines of batteries that are not lithium-ion, kept out of the black mass.
+	NonLithium []NonLithiumLine
 }
 
 // MinSamples and MaxSamples bound the Monte Carlo's sample count: from 10, for any percentiles
@@ -54,6 +56,9 @@ const (
 func (l *Lot) Estimate(seed uint64, samples int) (*Result, *Samples, error) {
 	if samples < MinSamples || samples > MaxSamples {
 		return nil, nil, fmt.Errorf("samples must be from %d to %d, got %d", MinSamples, MaxSamples, samples)
+	}
+	if l.nLines == 0 && len(l.nonLithium) > 0 {
+		return nil, nil, errors.New("the lot has no lithium-ion lines, only batteries that are not lithium-ion: no black mass to estimate")
 	}
 	if l.nLines == 0 {
 		return nil, nil, errors.New("the lot has no lines")
@@ -119,7 +124,8 @@ func (l *Lot) draw(ps *paramSet, n int) *Samples {
 // result summarises the draws with the lot's counts, labels and warnings.
 func (l *Lot) result(s *Samples) *Result {
 	r := &Result{Elements: map[string]dist.Amount{}, Compounds: map[string]dist.Amount{}, Lines: l.lines,
-		Warnings: append([]string(nil), l.warnings...), ModeKWh: l.modeWh / 1000}
+		Warnings: append([]string(nil), l.warnings...), ModeKWh: l.modeWh / 1000,
+		NonLithium: l.NonLithium()}
 	r.Lot = LotSummary{Lines: l.nLines, Items: l.items, Cells: l.cells, NameplateKWh: dist.Round(l.energyWh/1000, 6),
 		ChargeOnlyAh: dist.Round(l.chargeAh, 6), LinesWithMass: l.withMass, LinesFlaggedByMass: l.flagged,
 		LinesByMassOnly: l.massOnly, MassOnlyKg: dist.Round(l.massOnlyKg, 6)}

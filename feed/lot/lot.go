@@ -106,6 +106,7 @@ type Lot struct {
 	modeWh     float64 // Σ most likely energy, including lines known by weight only
 	labels     map[string]*labelStat
 	labelList  []*labelStat
+	nonLithium []NonLithiumLine // lines of batteries that are not lithium-ion, by kind
 }
 
 // labelStat counts one label's lines and most likely energy.
@@ -185,6 +186,10 @@ const MaxGroups = 1000
 // Add takes one manifest line. Its cost does not depend on the number of samples, and without
 // per-line detail it keeps nothing of the line but sums.
 func (l *Lot) Add(ln manifest.Line) error {
+	if ln.NonLithium != nil { // not lithium-ion: counted and weighed apart, no black mass
+		l.addNonLithium(ln, ln.NonLithium)
+		return nil
+	}
 	ch := ln.Chemistry
 	if len(l.order) >= MaxGroups {
 		if _, ok := l.byPtr[ptrKey{ch, ln.Format}]; !ok {

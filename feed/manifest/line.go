@@ -50,6 +50,12 @@ type Line struct {
 	Count          int
 	MassKg         float64 // measured mass per item; 0 if not given
 	Notes          string
+	// NonLithium is the battery that is not lithium-ion the label names (NiMH, NiCd, lead-acid,
+	// alkaline, zinc-carbon, zinc-air); nil for a lithium-ion line. Such a line has no
+	// Chemistry and no capacity read: the lot counts and weighs it apart from the black mass.
+	NonLithium *cathode.OtherBattery
+	// CountUnknown marks a bag weighed whole: Count is 1 and MassKg the whole bag's mass.
+	CountUnknown bool
 	// LabelUnresolved reports that the label was not recognised and was read as unknown at the
 	// user's request (--unknown prior).
 	LabelUnresolved bool

@@ -47,9 +47,15 @@ type Report struct {
 	Assay          *assay.Assay          `json:"assay,omitempty"`
 	Reconciliation *assay.Reconciliation `json:"reconciliation,omitempty"`
 	Mix            *assay.MixFit         `json:"mix_fit,omitempty"`
-	Parameters     []dist.Param          `json:"parameters"`
-	Warnings       []string              `json:"warnings"`
-	Safety         []string              `json:"safety"`
+	// Basis says what the figures rest on (estimate, assay+weighing ...); Weighing is the
+	// quote's weighed mass, wet and dry; Missing the elements the assay lacked.
+	Basis      string               `json:"basis,omitempty"`
+	Weighing   *assay.Weighing      `json:"weighing,omitempty"`
+	Missing    []assay.Missing      `json:"missing_elements,omitempty"`
+	NonLithium []lot.NonLithiumLine `json:"non_lithium,omitempty"`
+	Parameters []dist.Param         `json:"parameters"`
+	Warnings   []string             `json:"warnings"`
+	Safety     []string             `json:"safety"`
 	// ElementOrder lists the element symbols in display order (metals first).
 	ElementOrder []string `json:"element_order"`
 }

@@ -25,7 +25,8 @@ func Quote(t *Tables, o Options, a *assay.Assay, qo assay.QuoteOptions) (*report
 	in := o.Inputs
 	in.Seed, in.Samples = q.Seed, q.Samples
 	r := &report.Report{Inputs: in, BlackMassKg: q.BlackMassKg, Elements: q.Elements, Compounds: q.Compounds,
-		ElementOrder: q.ElementOrder, Leach: q.Leach, Warnings: q.Warnings, Safety: SafetyNotes(), Assay: a}
+		ElementOrder: q.ElementOrder, Leach: q.Leach, Warnings: q.Warnings, Safety: SafetyNotes(), Assay: a,
+		Basis: q.Basis, Weighing: &q.Weighing, Missing: q.Missing}
 	if o.Prices != nil {
 		els := q.ElementOrder
 		kg := make([][]float64, len(els))

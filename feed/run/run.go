@@ -149,6 +149,7 @@ func Estimate(t *Tables, o Options, m Manifest) (*report.Report, error) {
 	if len(info.Sheets) > 1 {
 		r.Warnings = append([]string{fmt.Sprintf("read sheet %q of %s", info.Sheet, strings.Join(info.Sheets, ", "))}, r.Warnings...)
 	}
+	r.Warnings = append(r.Warnings, info.Notes...)
 	if len(info.IgnoredColumns) > 0 {
 		r.Warnings = append(r.Warnings, fmt.Sprintf("columns left out as asked: %s", strings.Join(info.IgnoredColumns, ", ")))
 	}
@@ -216,7 +217,7 @@ func read(t *Tables, o Options, m Manifest, add func(manifest.Line) error) (inta
 func fromLot(in report.Inputs, res *lot.Result) *report.Report {
 	return &report.Report{Inputs: in, Lot: res.Lot, BlackMassKg: res.BlackMassKg, Elements: res.Elements,
 		Compounds: res.Compounds, Groups: res.Groups, Labels: res.Labels, Lines: res.Lines, Parameters: res.Parameters,
-		Warnings: res.Warnings, Safety: SafetyNotes(), ElementOrder: res.ElementOrder}
+		Warnings: res.Warnings, Safety: SafetyNotes(), ElementOrder: res.ElementOrder, NonLithium: res.NonLithium}
 }
 
 // lotCandidates are the catalogue entries the lot's own chemistries may hold.
