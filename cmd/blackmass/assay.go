@@ -70,6 +70,8 @@ const (
 type quoteOptions struct {
 	estimateOptions
 	mass, form string
+	moisture   string
+	missingLi  string
 	fit        fitOptions
 }
 
@@ -88,6 +90,8 @@ func newQuoteCmd() *cobra.Command {
 	}
 	o.bind(cmd)
 	cmd.Flags().StringVar(&o.mass, "mass", "", "black-mass weight with unit (kg, t, g, lb, oz)")
+	cmd.Flags().StringVar(&o.moisture, "moisture", "", "water in the weighed mass, wt% of the wet mass (default: the assay's moisture row, else dry)")
+	cmd.Flags().StringVar(&o.missingLi, "missing-li", "stoichiometric", "lithium assumed when the assay has none: stoichiometric, none, or a wt%")
 	cmd.Flags().StringVar(&o.form, "form", "layered", "form of Co/Ni/Mn: layered (untreated), oxide (reduction-roasted) or metal")
 	_ = cmd.RegisterFlagCompletionFunc("form", cobra.FixedCompletions([]string{"layered", "oxide", "metal"}, cobra.ShellCompDirectiveNoFileComp))
 	_ = cmd.MarkFlagRequired("mass")
@@ -112,6 +116,15 @@ func runQuote(w io.Writer, o *quoteOptions, path string) error {
 	if err != nil {
 		return usageError{err}
 	}
+	qo := assay.QuoteOptions{BlackMassKg: kg, TMForm: tm}
+	if o.moisture != "" {
+		if qo.Moisture, err = assay.ParseMoisture(o.moisture); err != nil {
+			return usageError{fmt.Errorf("--moisture: %w", err)}
+		}
+	}
+	if qo.MissingLi, err = assay.ParseMissingLi(o.missingLi); err != nil {
+		return usageError{fmt.Errorf("--missing-li: %w", err)}
+	}
 	if o.xlsxPath != "" {
 		if err := checkWritable(o.xlsxPath, o.force); err != nil {
 			return err
@@ -130,7 +143,7 @@ func runQuote(w io.Writer, o *quoteOptions, path string) error {
 	}
 	sum := sha256.Sum256(b)
 	ro.Inputs.File, ro.Inputs.SHA256 = filepath.ToSlash(path), hex.EncodeToString(sum[:])
-	rep, err := run.Quote(t, ro, a, assay.QuoteOptions{BlackMassKg: kg, TMForm: tm})
+	rep, err := run.Quote(t, ro, a, qo)
 	if err != nil {
 		return err
 	}

@@ -157,6 +157,11 @@ func (o *estimateOptions) runOptions() (*run.Tables, run.Options, error) {
 	if o.unknown != "refuse" && o.unknown != "prior" {
 		return nil, ro, usageError{fmt.Errorf("--unknown must be refuse or prior, got %q", intake.Printable(o.unknown, 20))}
 	}
+	for _, f := range []struct{ name, v string }{{"--lot", o.lotID}, {"--supplier", o.supplier}} {
+		if err := intake.CheckFreeText(f.name, f.v); err != nil {
+			return nil, ro, usageError{err}
+		}
+	}
 	t, err := o.cat.tables()
 	if err != nil {
 		return nil, ro, err
