@@ -118,6 +118,21 @@ func writeSummaryText(w io.Writer, r *report.Report, command string) {
 	} else {
 		fmt.Fprintln(w, "black mass weighed, composition from a lab assay")
 	}
+	if r.Basis != "" {
+		fmt.Fprintf(w, "basis: %s\n", r.Basis)
+	}
+	if wg := r.Weighing; wg != nil {
+		fmt.Fprintf(w, "weighed %s wet, %s dry (moisture %s wt%%, %s)\n", FmtMass(wg.WetMassKg), FmtMass(wg.DryMassKg.P50),
+			Num(wg.MoistureWtPct.P50), intake.Printable(wg.MoistureBasis, 80))
+	}
+	for _, nl := range r.NonLithium {
+		mass := ""
+		if nl.MassKg > 0 {
+			mass = ", " + FmtMass(nl.MassKg) + " weighed"
+		}
+		fmt.Fprintf(w, "not lithium-ion, kept out of the black mass: %s, %d items on %d lines%s\n",
+			intake.Printable(nl.Name, 60), nl.Items, len(nl.Lines), mass)
+	}
 	b := r.BlackMassKg
 	fmt.Fprintf(w, "black mass: %s (P10–P90 %s–%s)\n", FmtMass(b.P50), FmtMass(b.P10), FmtMass(b.P90))
 	var metals []string
