@@ -52,4 +52,3 @@ func firstControl(p []byte) int {
 	}
 	return -1
 }
-
