@@ -185,6 +185,8 @@ func runLotAdd(w io.Writer, lo *lotOptions, o *estimateOptions, path, received s
 	}
 	fmt.Fprintf(w, "lot %s recorded (version %d) in %s: %d items, %.2f kWh, black mass %s kg (P50)\n", intake.Printable(o.lotID, 64), v, reg.Path(),
 		rep.Lot.Items, rep.Lot.NameplateKWh, text.Num(rep.BlackMassKg.P50))
+	fmt.Fprintln(w)
+	text.Write(w, rep, "lot add", true) // the estimate's summary, with every warning and the caution
 	return nil
 }
 

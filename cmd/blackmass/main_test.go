@@ -658,3 +658,19 @@ func TestControlCharactersStripped(t *testing.T) {
 		t.Error("a control character reached the terminal")
 	}
 }
+
+// lot add prints the estimate's summary with its warnings, not only the recorded line.
+func TestLotAddShowsWarnings(t *testing.T) {
+	t.Parallel()
+	db := filepath.Join(t.TempDir(), "r.db")
+	demo := filepath.Join("..", "..", "data", "demo", "lot-KR-2611.csv")
+	code, out, errs := cli(t, "", "lot", "add", demo, "--lot", "KR-7001", "--db", db, "--samples", "100")
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	for _, want := range []string{"recorded (version 1)", "warnings:", "outside the plausible", "safety:"} {
+		if !strings.Contains(out, want) {
+			t.Errorf("lot add output lacks %q", want)
+		}
+	}
+}
