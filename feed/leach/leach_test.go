@@ -308,7 +308,9 @@ func TestSaturationAtTheLeastSolubleTemperature(t *testing.T) {
 		t.Errorf("MnSO4 in a 25 °C leach is least soluble at %g °C, want the cooled liquor's 20", at)
 	}
 	// At equal Mn per kg of water the ratios differ by the solubilities.
-	mnPerKg := func(lr *leach.Report) float64 { return lr.LiquorSamples.ElementKg["Mn"][0] / lr.LiquorSamples.WaterKg[0] }
+	mnPerKg := func(lr *leach.Report) float64 {
+		return lr.LiquorSamples.ElementKg["Mn"][0] / lr.LiquorSamples.WaterKg[0]
+	}
 	got := hot.Saturation["MnSO4"].P50 / cool.Saturation["MnSO4"].P50 * mnPerKg(cool) / mnPerKg(hot)
 	near(t, "hot/cool saturation ratio at equal Mn", got, 62.87/40.45, 1e-6)
 	near(t, "MnSO4 saturation at 90 °C", hot.Saturation["MnSO4"].P50, 0.86, 0.03)
