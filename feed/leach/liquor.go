@@ -23,6 +23,8 @@ type Liquor struct {
 	Anion          string          `json:"anion"`
 	AnionMolPerL   dist.Stat       `json:"anion_mol_per_l"`
 	ChargeResidual float64         `json:"charge_balance_max_relative_residual"`
+	// WaterKg is the liquor's water: make-up water, the reagents' water and the reactions'.
+	WaterKg dist.Stat `json:"water_kg"`
 	// ExtractionReached is each metal's share of the feed that dissolved with the dose given.
 	ExtractionReached map[string]dist.Stat `json:"extraction_reached"`
 	// Fe3GPerL is the iron oxidised to Fe(III) by peroxide left after the reduction.
@@ -33,6 +35,7 @@ type Liquor struct {
 // (recovery) to take the same draws on. Element masses are what dissolved; slices are [sample].
 type LiquorSamples struct {
 	VolumeL   []float64
+	WaterKg   []float64            // the liquor's water (Liquor.WaterKg)
 	ElementKg map[string][]float64 // element -> kg dissolved, for every element some sample holds
 	// FreeAcidMol is the acid left unspent, in mol of the route's acid (H2SO4 or HCl).
 	FreeAcidMol []float64
@@ -45,7 +48,7 @@ type LiquorSamples struct {
 // liquorSamples sets the per-sample liquor.
 func (p *leachPlanner) liquorSamples(lr *Report) {
 	es := p.lt.elements
-	ls := &LiquorSamples{VolumeL: slices.Clone(p.vol), ElementKg: map[string][]float64{}, Anion: p.route.Anion(),
+	ls := &LiquorSamples{VolumeL: slices.Clone(p.vol), WaterKg: slices.Clone(p.waterKg), ElementKg: map[string][]float64{}, Anion: p.route.Anion(),
 		FreeAcidMol: col(p.n, func(i int) float64 { return p.res[i].freeH / p.route.AcidProtons() }),
 		AnionMol:    col(p.n, func(i int) float64 { return p.res[i].anionMol })}
 	for k, e := range leachElements {
@@ -123,6 +126,7 @@ func (p *leachPlanner) liquor(lr *Report) {
 		lr.Liquor.Fe3GPerL = &st
 	}
 	lr.Liquor.AnionMolPerL = dist.Summarise(perL(func(i int) float64 { return p.res[i].anionMol }))
+	lr.Liquor.WaterKg = dist.Summarise(p.waterKg)
 	lr.FreeAcidMolPerL = dist.Summarise(perL(func(i int) float64 { return p.res[i].freeH / p.route.AcidProtons() }))
 }
 
@@ -196,7 +200,7 @@ func (p *leachPlanner) saturation(lr *Report) {
 					mol -= fe3
 				}
 			}
-			return mol * f.MolarMass(es) / perSalt / (gPer100g * 10) / p.vol[i]
+			return mol * f.MolarMass(es) / perSalt / (gPer100g * 10) / p.waterKg[i]
 		})
 		if slices.Max(ratio) <= 0 {
 			continue
@@ -215,5 +219,26 @@ func (p *leachPlanner) saturation(lr *Report) {
 
 // saturationWarn is the share of a salt's single-salt water solubility at which the plan warns:
 // well below 1, because the other sulfates and the free acid lower solubility (common-ion
-// effect) and the check treats 1 L of liquor as 1 kg of water (common practice).
+// effect) (common practice).
 const saturationWarn = 0.6
+
+// waterDensityKgPerL is liquid water's density at 20 °C, 0.998 21 g/mL (CRC Handbook of Chemistry
+// and Physics, Properties of water in the range 0-100 °C).
+const waterDensityKgPerL = 0.99821
+
+// liquorWaterKg is the water of sample i's liquor: the make-up water, the water of the reagents as
+// bought (the part that is not acid or reductant), and the water the reactions form net of what
+// they take up. Solubilities are per kg of water, so saturation divides by this, not by litres.
+func (p *leachPlanner) liquorWaterKg(i int) float64 {
+	w := p.water[i]*waterDensityKgPerL + p.acidDose[i]*p.acidM/1000*(100/p.opt.AcidWtPct-1)
+	if p.red != nil {
+		w += p.redDose[i] * p.red.MolarMassGMol / 1000 * (100/redStrength(p.red, p.opt) - 1)
+	}
+	w += p.res[i].waterMol * p.lt.molarMassG("H2O") / 1000
+	// A leach of neat reagents on bare metal can end with no water to speak of: hold the ratio
+	// finite (it then reads as far past saturation).
+	return math.Max(w, minLiquorWaterKg)
+}
+
+// minLiquorWaterKg keeps the saturation ratio finite when a liquor has no water.
+const minLiquorWaterKg = 1e-9

@@ -66,9 +66,9 @@ type leachPlanner struct {
 	redRho  float64 // density of the reductant solution (peroxide), g/mL
 	n       int
 	// per sample
-	vol, acidDose, redDose, acidPlan, redPlan, acidFull, redFull, water []float64
-	res                                                                 []redoxResult
-	grown                                                               int
+	vol, acidDose, redDose, acidPlan, redPlan, acidFull, redFull, water, waterKg []float64
+	res                                                                          []redoxResult
+	grown                                                                        int
 }
 
 func newLeachPlanner(s Input, opt Options, lt *Tables) (*leachPlanner, error) {
@@ -125,7 +125,7 @@ func newLeachPlanner(s Input, opt Options, lt *Tables) (*leachPlanner, error) {
 		p.molarG[c] = f.MolarMass(f.Elements())
 	}
 	for _, x := range []*[]float64{&p.vol, &p.acidDose, &p.redDose, &p.acidPlan, &p.redPlan, &p.acidFull, &p.redFull,
-		&p.water} {
+		&p.water, &p.waterKg} {
 		*x = make([]float64, p.n)
 	}
 	p.res = make([]redoxResult, p.n)
@@ -228,6 +228,7 @@ func (p *leachPlanner) run() error {
 			got.anionMol += got.redUsed * p.red.SulfateMol
 		}
 		p.res[i] = got
+		p.waterKg[i] = p.liquorWaterKg(i)
 	}
 	return nil
 }

@@ -131,6 +131,7 @@ type redoxResult struct {
 	redDecomp    float64                 // peroxide decomposed (mol)
 	h2, o2, cl2  float64
 	co2          float64
+	waterMol     float64 // water formed by the reactions, net of water taken up
 	anionMol     float64 // SO4²− or Cl− in the liquor
 	freeH        float64 // H+ left
 	h2Potential  float64 // H2 if every metal less noble than hydrogen reacted with the acid alone
@@ -216,6 +217,7 @@ type pass struct {
 	r           redoxResult
 	donors      []*donor
 	hUptake     float64 // H+ taken by the solids' anions
+	solidsWater float64 // water the solids' dissolution forms (cathode.Dissolve), mol
 	eOxNeed     float64 // electrons the solids give up to an oxidant (phosphate iron, selective route)
 	eCap        float64 // electrons available to the oxides
 	oxidantLeft float64 // peroxide left after the reduction, mol
@@ -272,6 +274,7 @@ func (p *pass) solids() error {
 			return err
 		}
 		p.hUptake += rx.HPlusMol * n
+		p.solidsWater += rx.WaterMol * n
 		if in.route == cathode.Hydrochloric {
 			r.eNeeded += 2 * rx.Cl2Mol * n
 		} else {
@@ -414,7 +417,22 @@ func (p *pass) balance() float64 {
 	}
 	r.hPlusUsed = hNeed
 	r.freeH = in.hPlus - hNeed
+	r.waterMol = p.water()
 	return hNeed
+}
+
+// water is the water the pass's reactions form, net of what they take up: the solids' own
+// (cathode.Dissolve: oxide ions to water, phosphate iron oxidised by peroxide), less the oxide
+// ions that leave as O2 instead (2 e− each), plus 2 H2O per H2O2 that oxidised copper or Fe(II)
+// (H2O2 + 2H+ + 2e− → 2H2O: one per electron), 1 per H2O2 decomposed (H2O2 → H2O + ½O2), and the
+// reductant's own (its half-reaction's water: SO2 + 2H2O → SO4²− + 4H+ + 2e− takes two).
+func (p *pass) water() float64 {
+	in, r := p.in, &p.r
+	w := p.solidsWater - r.eFromLattice/2 + (p.oxUsedE - p.eOxNeed)
+	if in.red != nil {
+		w += r.redDecomp + r.redUsed*in.red.WaterMol
+	}
+	return w
 }
 
 func cmpFloat(a, b float64) int {

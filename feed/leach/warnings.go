@@ -212,7 +212,8 @@ func assumptions() []string {
 		"Liquor volume is black mass over pulp density (or the volume given); reagent volumes are included in it.",
 		"Saturation compares each salt with its single-salt solubility in water (CRC Handbook, 0-100 °C) at the " +
 			"temperature between the filtered liquor's 20 °C and the leach's where it is least (hot for Li2SO4 and " +
-			"MnSO4, cool for NiSO4), taking 1 L of liquor as 1 kg of water; the shared sulfate and the acid lower " +
+			"MnSO4, cool for NiSO4), per kg of the liquor's water (make-up water, the reagents' water and the water " +
+			"the reactions form); the shared sulfate and the acid lower " +
 			"real solubilities, so the warning starts at 60 %.",
 	}
 }
