@@ -230,7 +230,7 @@ func emit(w io.Writer, o *estimateOptions, rep *report.Report) error {
 		}
 	}
 	if o.asJSON {
-		return writeJSON(w, rep)
+		return rep.WriteJSON(w)
 	}
 	text.Write(w, rep, o.command, o.quiet)
 	if o.xlsxPath != "" {

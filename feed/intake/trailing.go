@@ -208,6 +208,9 @@ var (
 // splitVoltsCharge splits a capacity written as volts and charge into its charge and its volts.
 func splitVoltsCharge(s string) (charge, volts string, ok bool) {
 	s = strings.TrimSpace(s)
+	if !strings.ContainsAny(s, "vV") { // both forms name the volts: most capacities skip the patterns
+		return s, "", false
+	}
 	if m := voltsFirst.FindStringSubmatch(s); m != nil {
 		return m[2], m[1], true
 	}

@@ -40,44 +40,87 @@ func inputPath(path string) bool {
 	return slices.Contains(inputLineFields, field)
 }
 
+// firstNonFinite walks v and returns the JSON path of its first NaN or infinity (ok false), or
+// ok true when every number is finite. The path is built only on the way back from a find, and
+// field names come from a per-type cache, so a report of a million lines is walked without
+// formatting a million paths.
 func firstNonFinite(v reflect.Value, path string) (string, bool) {
+	w := finiteWalker{names: map[reflect.Type][]string{}}
+	segs, found := w.walk(v)
+	if !found {
+		return "", true
+	}
+	var b strings.Builder
+	b.WriteString(path)
+	for i := len(segs) - 1; i >= 0; i-- {
+		b.WriteString(segs[i])
+	}
+	return b.String(), false
+}
+
+type finiteWalker struct {
+	names map[reflect.Type][]string
+}
+
+// fieldNames returns the JSON names of a struct type's fields ("" for unexported ones).
+func (w finiteWalker) fieldNames(t reflect.Type) []string {
+	if n, ok := w.names[t]; ok {
+		return n
+	}
+	n := make([]string, t.NumField())
+	for i := range n {
+		f := t.Field(i)
+		if !f.IsExported() {
+			continue
+		}
+		name, _, _ := strings.Cut(f.Tag.Get("json"), ",")
+		if name == "" {
+			name = f.Name
+		}
+		n[i] = name
+	}
+	w.names[t] = n
+	return n
+}
+
+// walk returns, innermost first, the path segments to the first non-finite number.
+func (w finiteWalker) walk(v reflect.Value) ([]string, bool) {
 	switch v.Kind() {
 	case reflect.Pointer, reflect.Interface:
 		if v.IsNil() {
-			return "", true
+			return nil, false
 		}
-		return firstNonFinite(v.Elem(), path)
+		return w.walk(v.Elem())
 	case reflect.Float32, reflect.Float64:
 		if f := v.Float(); math.IsNaN(f) || math.IsInf(f, 0) {
-			return path, false
+			return nil, true
 		}
 	case reflect.Struct:
-		t := v.Type()
-		for i := range t.NumField() {
-			if !t.Field(i).IsExported() {
+		names := w.fieldNames(v.Type())
+		for i, name := range names {
+			if name == "" {
 				continue
 			}
-			name, _, _ := strings.Cut(t.Field(i).Tag.Get("json"), ",")
-			if name == "" {
-				name = t.Field(i).Name
-			}
-			if p, ok := firstNonFinite(v.Field(i), path+"."+name); !ok {
-				return p, false
+			if segs, found := w.walk(v.Field(i)); found {
+				return append(segs, "."+name), true
 			}
 		}
 	case reflect.Slice, reflect.Array:
+		if k := v.Type().Elem().Kind(); k == reflect.String || k == reflect.Int || k == reflect.Bool {
+			return nil, false
+		}
 		for i := range v.Len() {
-			if p, ok := firstNonFinite(v.Index(i), fmt.Sprintf("%s[%d]", path, i)); !ok {
-				return p, false
+			if segs, found := w.walk(v.Index(i)); found {
+				return append(segs, fmt.Sprintf("[%d]", i)), true
 			}
 		}
 	case reflect.Map:
 		iter := v.MapRange()
 		for iter.Next() {
-			if p, ok := firstNonFinite(iter.Value(), fmt.Sprintf("%s.%v", path, iter.Key())); !ok {
-				return p, false
+			if segs, found := w.walk(iter.Value()); found {
+				return append(segs, fmt.Sprintf(".%v", iter.Key())), true
 			}
 		}
 	}
-	return "", true
+	return nil, false
 }

@@ -111,7 +111,8 @@ func TestCheckFiniteNamesTheOrigin(t *testing.T) {
 		t.Errorf("line input: %v", err)
 	}
 	lineModel := &report.Report{Lines: []lot.LineResult{{CathodeKg: nan}}}
-	if err := lineModel.CheckFinite(); err == nil || !strings.Contains(err.Error(), "model produced") {
+	if err := lineModel.CheckFinite(); err == nil || !strings.Contains(err.Error(), "model produced") ||
+		!strings.Contains(err.Error(), "report.lines[0].cathode_active_kg_most_likely") {
 		t.Errorf("line result: %v", err)
 	}
 	if err := (&report.Report{}).CheckFinite(); err != nil {

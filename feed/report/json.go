@@ -1,0 +1,47 @@
+package report
+
+import (
+	"bufio"
+	"bytes"
+	"encoding/json"
+	"io"
+)
+
+// WriteJSON writes the report as indented JSON, with its per-line results one compact object
+// to a line inside the "lines" array. A report of a million lines is thus streamed line by line
+// instead of being built, and indented, as one buffer the size of the output; and each line of a
+// manifest stays one line of the JSON, for grep and diff.
+func (r *Report) WriteJSON(w io.Writer) error {
+	head := *r
+	head.Lines = nil
+	b, err := json.MarshalIndent(&head, "", "  ")
+	if err != nil {
+		return err
+	}
+	bw := bufio.NewWriterSize(w, 64<<10)
+	if len(r.Lines) == 0 || !bytes.HasSuffix(b, []byte("\n}")) {
+		bw.Write(b)
+		bw.WriteByte('\n')
+		return bw.Flush()
+	}
+	bw.Write(b[:len(b)-2])
+	bw.WriteString(",\n  \"lines\": [\n")
+	var line bytes.Buffer
+	enc := json.NewEncoder(&line)
+	for i := range r.Lines {
+		line.Reset()
+		if err := enc.Encode(&r.Lines[i]); err != nil {
+			return err
+		}
+		bw.WriteString("    ")
+		bw.Write(bytes.TrimSuffix(line.Bytes(), []byte("\n")))
+		if i < len(r.Lines)-1 {
+			bw.WriteByte(',')
+		}
+		if _, err := bw.WriteString("\n"); err != nil {
+			return err
+		}
+	}
+	bw.WriteString("  ]\n}\n")
+	return bw.Flush()
+}
