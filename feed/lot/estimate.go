@@ -123,7 +123,7 @@ func (l *Lot) draw(ps *paramSet, n int) *Samples {
 
 // result summarises the draws with the lot's counts, labels and warnings.
 func (l *Lot) result(s *Samples) *Result {
-	r := &Result{Elements: map[string]dist.Amount{}, Compounds: map[string]dist.Amount{}, Lines: l.lines,
+	r := &Result{Elements: map[string]dist.Amount{}, Compounds: map[string]dist.Amount{}, Lines: l.keptLines(),
 		Warnings: append([]string(nil), l.warnings...), ModeKWh: l.modeWh / 1000,
 		NonLithium: l.NonLithium()}
 	r.Lot = LotSummary{Lines: l.nLines, Items: l.items, Cells: l.cells, NameplateKWh: dist.Round(l.energyWh/1000, 6),

@@ -3,6 +3,7 @@ package lot
 import (
 	"fmt"
 	"math"
+	"slices"
 	"strings"
 
 	"blackmass/cathode"
@@ -14,32 +15,32 @@ import (
 // parameter at its mode, so they need not sum to the lot's P50 (a percentile of a sum is not the
 // sum of percentiles). The lot's distributions are in Report.Elements and Report.BlackMassKg.
 type LineResult struct {
-	Line            int                `json:"line"`
-	ID              string             `json:"id"`
-	Description     string             `json:"description,omitempty"`
-	ChemistryLabel  string             `json:"chemistry_label"`
-	Chemistry       string             `json:"chemistry"`
-	Unknown         bool               `json:"unknown_chemistry"`
-	Format          string             `json:"format"`
-	Count           int                `json:"count"`
-	CellsPerItem    int                `json:"cells_per_item"`
-	CapacityText    string             `json:"capacity_as_typed"`
-	CapacityGiven   string             `json:"capacity"`       // as read, in Wh or Ah
-	CapacityBasis   string             `json:"capacity_basis"` // cell or pack
-	VoltageV        float64            `json:"voltage_V,omitempty"`
-	Application     string             `json:"application,omitempty"`
-	EnergyWhPerItem float64            `json:"energy_Wh_per_item"`
-	EnergyAssumed   bool               `json:"energy_uses_assumed_voltage"`
-	EnergyFromMass  bool               `json:"energy_from_mass,omitempty"`
-	ChargeAhPerItem float64            `json:"charge_Ah_per_item,omitempty"`
-	ModelMassKgEach float64            `json:"modelled_mass_kg_per_item"`
-	MeasuredMassKg  float64            `json:"measured_mass_kg_per_item,omitempty"`
-	MeasuredWhPerKg float64            `json:"measured_Wh_per_kg,omitempty"`
-	CathodeKg       float64            `json:"cathode_active_kg_most_likely"`
-	BlackMassKg     float64            `json:"black_mass_kg_most_likely"`
-	ElementsKg      map[string]float64 `json:"elements_kg_most_likely"`
-	Flags           []string           `json:"flags,omitempty"`
-	Notes           string             `json:"notes,omitempty"`
+	Line            int           `json:"line"`
+	ID              string        `json:"id"`
+	Description     string        `json:"description,omitempty"`
+	ChemistryLabel  string        `json:"chemistry_label"`
+	Chemistry       string        `json:"chemistry"`
+	Unknown         bool          `json:"unknown_chemistry"`
+	Format          string        `json:"format"`
+	Count           int           `json:"count"`
+	CellsPerItem    int           `json:"cells_per_item"`
+	CapacityText    string        `json:"capacity_as_typed"`
+	CapacityGiven   string        `json:"capacity"`       // as read, in Wh or Ah
+	CapacityBasis   string        `json:"capacity_basis"` // cell or pack
+	VoltageV        float64       `json:"voltage_V,omitempty"`
+	Application     string        `json:"application,omitempty"`
+	EnergyWhPerItem float64       `json:"energy_Wh_per_item"`
+	EnergyAssumed   bool          `json:"energy_uses_assumed_voltage"`
+	EnergyFromMass  bool          `json:"energy_from_mass,omitempty"`
+	ChargeAhPerItem float64       `json:"charge_Ah_per_item,omitempty"`
+	ModelMassKgEach float64       `json:"modelled_mass_kg_per_item"`
+	MeasuredMassKg  float64       `json:"measured_mass_kg_per_item,omitempty"`
+	MeasuredWhPerKg float64       `json:"measured_Wh_per_kg,omitempty"`
+	CathodeKg       float64       `json:"cathode_active_kg_most_likely"`
+	BlackMassKg     float64       `json:"black_mass_kg_most_likely"`
+	ElementsKg      ElementMasses `json:"elements_kg_most_likely"`
+	Flags           []string      `json:"flags,omitempty"`
+	Notes           string        `json:"notes,omitempty"`
 }
 
 type groupKey struct {
@@ -89,7 +90,8 @@ type Lot struct {
 	recent     [recentGroups]recentGroup
 	nextRecent int
 	order      []*group
-	lines      []LineResult
+	lines      []LineResult   // the kept lines, flattened from lineChunks when the result is made
+	lineChunks [][]LineResult // lines as added, in chunks of lineChunk: no copy of all lines as they grow
 	warnings   []string
 	warned     map[string]bool
 	comp       *compounds
@@ -260,25 +262,69 @@ func (l *Lot) Add(ln manifest.Line) error {
 	b := model(itemWh, ln.ChargeAh, mx, fr, gl)
 	bm := make([]float64, l.comp.n())
 	b.blackMass(bm, fr, gl, g.camIdx, ch.MeanShares())
-	els := map[string]float64{}
-	total := 0.0
-	for c, m := range bm {
-		total += m
-		for e, f := range l.comp.fractions[c] {
-			if f > 0 && cathode.IsMetal(l.comp.elements[e]) {
-				els[l.comp.elements[e]] += m * f * cnt / 1000
-			}
-		}
-	}
-	for e, v := range els {
-		els[e] = dist.Round(v, 6)
-	}
-	l.lines = append(l.lines, LineResult{Line: ln.Num, ID: ln.ID, Description: ln.Description, ChemistryLabel: ln.ChemistryLabel,
+	els, total := l.lineElements(bm, cnt)
+	l.addLine(LineResult{Line: ln.Num, ID: ln.ID, Description: ln.Description, ChemistryLabel: ln.ChemistryLabel,
 		Chemistry: ch.Key, Unknown: ch.Unknown, Format: ln.Format.String(), Count: ln.Count, CellsPerItem: ln.CellsPerItem, Application: ln.Application,
 		CapacityText: ln.CapacityText, CapacityGiven: ln.CapacityGiven, CapacityBasis: ln.CapacityBasis, VoltageV: ln.VoltageV, EnergyWhPerItem: dist.Round(energyWh, 4), EnergyAssumed: ln.EnergyWh == 0 && !ln.MassOnly(), EnergyFromMass: ln.MassOnly(), ChargeAhPerItem: ln.ChargeAh,
 		ModelMassKgEach: dist.Round(b.item/1000, 6), MeasuredMassKg: ln.MassKg, MeasuredWhPerKg: dist.Round(measWhKg, 2),
 		CathodeKg: dist.Round(b.cam*cnt/1000, 6), BlackMassKg: dist.Round(total*cnt/1000, 6), ElementsKg: els, Flags: flags, Notes: ln.Notes})
 	return nil
+}
+
+// lineChunk is the number of line results held in one chunk.
+const lineChunk = 4096
+
+// addLine keeps one line's result, in chunks so that a million lines are never copied as the list
+// grows.
+func (l *Lot) addLine(r LineResult) {
+	if n := len(l.lineChunks); n == 0 || len(l.lineChunks[n-1]) == lineChunk {
+		l.lineChunks = append(l.lineChunks, make([]LineResult, 0, lineChunk))
+	}
+	last := &l.lineChunks[len(l.lineChunks)-1]
+	*last = append(*last, r)
+}
+
+// keptLines flattens the kept lines into one slice of exactly their number, once.
+func (l *Lot) keptLines() []LineResult {
+	if l.lineChunks == nil {
+		return l.lines
+	}
+	n := len(l.lines)
+	for _, c := range l.lineChunks {
+		n += len(c)
+	}
+	out := make([]LineResult, 0, n)
+	out = append(out, l.lines...)
+	for _, c := range l.lineChunks {
+		out = append(out, c...)
+	}
+	l.lines, l.lineChunks = out, nil
+	return out
+}
+
+// lineElements sums a line's most likely black mass (g per item, by compound) into metals by
+// element (kg for the line's count) and its black mass (g per item).
+func (l *Lot) lineElements(bm []float64, count float64) (ElementMasses, float64) {
+	perEl := make([]float64, len(l.comp.elements))
+	seen := make([]bool, len(l.comp.elements))
+	total := 0.0
+	for c, m := range bm {
+		total += m
+		for e, f := range l.comp.fractions[c] {
+			if f > 0 && cathode.IsMetal(l.comp.elements[e]) {
+				perEl[e] += m * f * count / 1000
+				seen[e] = true
+			}
+		}
+	}
+	var els ElementMasses
+	for e, ok := range seen {
+		if ok {
+			els = append(els, ElementMass{Element: l.comp.elements[e], Kg: dist.Round(perEl[e], 6)})
+		}
+	}
+	slices.SortFunc(els, func(a, b ElementMass) int { return strings.Compare(a.Element, b.Element) })
+	return els, total
 }
 
 // maxLabels bounds the labels listed in the report; the rest are counted.

@@ -20,7 +20,7 @@ func TestWriteJSONSameDocument(t *testing.T) {
 		r := &report.Report{Elements: map[string]dist.Amount{"Co": {Kg: dist.Stat{P10: 1, P50: 2, P90: 3}}}}
 		for i := range n {
 			r.Lines = append(r.Lines, lot.LineResult{Line: i + 2, ID: "L<" + string(rune('a'+i)) + ">",
-				ElementsKg: map[string]float64{"Co": 0.5, "Li": 0.1}})
+				ElementsKg: lot.ElementMasses{{Element: "Co", Kg: 0.5}, {Element: "Li", Kg: 0.1}}})
 		}
 		var got bytes.Buffer
 		if err := r.WriteJSON(&got); err != nil {
