@@ -8,9 +8,7 @@ import (
 	"io"
 	"io/fs"
 	"os"
-	"os/signal"
 	"path/filepath"
-	"syscall"
 
 	"blackmass/feed/report"
 	"blackmass/feed/sheet"
@@ -48,6 +46,9 @@ func writeWorkbook(path string, r *report.Report, force bool, paper int) error {
 func writeNewFile(path string, force bool, write func(io.Writer) error) (err error) {
 	if err := checkWritable(path, force); err != nil {
 		return err
+	}
+	if f, ok := openUnnamed(filepath.Dir(path)); ok {
+		return writeUnnamed(f, path, force, write)
 	}
 	tmpName, tmp, err := createTemp(filepath.Dir(path), filepath.Ext(path))
 	if err != nil {
@@ -90,6 +91,51 @@ func writeNewFile(path string, force bool, write func(io.Writer) error) (err err
 	return nil
 }
 
+// writeUnnamed writes through a file that has no name until it is complete (see openUnnamed),
+// then gives it the target's name: a process killed at any point before leaves nothing behind.
+func writeUnnamed(f *os.File, path string, force bool, write func(io.Writer) error) error {
+	defer f.Close()
+	if err := write(f); err != nil {
+		return fmt.Errorf("%s: %w", path, err)
+	}
+	if err := f.Sync(); err != nil {
+		return fmt.Errorf("%s: %w", path, err)
+	}
+	if !force {
+		err := linkUnnamed(f, path)
+		if errors.Is(err, fs.ErrExist) {
+			return fmt.Errorf("%s appeared while the workbook was written; pass --force to overwrite it", path)
+		}
+		if err != nil {
+			return fmt.Errorf("%s: %w", path, err)
+		}
+		return nil
+	}
+	// With force the old file is replaced in one rename: the complete file is first linked
+	// under a temporary name, which exists only between the link and the rename.
+	for range 10 {
+		var b [8]byte
+		_, _ = rand.Read(b[:])
+		tmpName := filepath.Join(filepath.Dir(path), ".blackmass-"+hex.EncodeToString(b[:])+filepath.Ext(path))
+		err := linkUnnamed(f, tmpName)
+		if errors.Is(err, fs.ErrExist) {
+			continue
+		}
+		if err != nil {
+			return fmt.Errorf("%s: %w", path, err)
+		}
+		if st, serr := os.Stat(path); serr == nil {
+			_ = os.Chmod(tmpName, st.Mode().Perm())
+		}
+		if err := os.Rename(tmpName, path); err != nil {
+			_ = os.Remove(tmpName)
+			return fmt.Errorf("%s: %w", path, err)
+		}
+		return nil
+	}
+	return fmt.Errorf("%s: cannot create a temporary name", path)
+}
+
 // createTemp creates a new file beside the target with mode 0666 less the umask (as any new
 // file of the user's), under a random name.
 func createTemp(dir, ext string) (string, *os.File, error) {
@@ -104,24 +150,4 @@ func createTemp(dir, ext string) (string, *os.File, error) {
 		return name, f, err
 	}
 	return "", nil, errors.New("cannot create a temporary file")
-}
-
-// removeOnSignal removes name and exits if the process is interrupted; the returned function
-// stops watching.
-func removeOnSignal(name string) func() {
-	c := make(chan os.Signal, 1)
-	signal.Notify(c, syscall.SIGINT, syscall.SIGTERM)
-	done := make(chan struct{})
-	go func() {
-		select {
-		case <-c:
-			_ = os.Remove(name)
-			os.Exit(130)
-		case <-done:
-		}
-	}()
-	return func() {
-		signal.Stop(c)
-		close(done)
-	}
 }

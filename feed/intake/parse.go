@@ -27,6 +27,8 @@ type Options struct {
 	IgnoreColumns []string
 	// Sheet is the sheet of an .xlsx workbook to read ("" chooses; see ReadXLSX).
 	Sheet string
+	// TempDir receives the temporary files of a large .xlsx part ("" for the system's).
+	TempDir string
 }
 
 // Info says what was read: which sheet, where the header was, which columns were left out.

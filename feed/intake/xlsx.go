@@ -40,7 +40,8 @@ func ReadXLSX(r io.Reader, name string, opt Options, fn func(manifest.Line) erro
 	if err != nil {
 		return Info{}, &Error{File: name, Reason: "not a readable .xlsx workbook: " + err.Error()}
 	}
-	f, err := excelize.OpenReader(r, excelize.Options{UnzipSizeLimit: MaxUnzippedBytes, UnzipXMLSizeLimit: maxXMLInMemory})
+	f, err := excelize.OpenReader(r, excelize.Options{UnzipSizeLimit: MaxUnzippedBytes, UnzipXMLSizeLimit: maxXMLInMemory,
+		TmpDir: opt.TempDir})
 	if err != nil {
 		return Info{}, &Error{File: name, Reason: "not a readable .xlsx workbook: " + err.Error()}
 	}

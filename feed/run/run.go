@@ -45,6 +45,9 @@ type Options struct {
 	UnknownAsPrior bool
 	IgnoreColumns  []string
 	Sheet          string
+	// TempDir is where the .xlsx reader may put its temporary files ("" for the system's); the
+	// caller owns it and removes it, also when interrupted.
+	TempDir string
 	// Inputs are recorded in the report as given (file, hash, seed and samples are filled in).
 	Inputs report.Inputs
 	// Assay, when given, is reconciled with the estimate (FlagSigma standard uncertainties) and
@@ -182,7 +185,8 @@ func Estimate(t *Tables, o Options, m Manifest) (*report.Report, error) {
 // read reads the manifest into add, checking its length against the line bound, and returns
 // what was read with the manifest's SHA-256.
 func read(t *Tables, o Options, m Manifest, add func(manifest.Line) error) (intake.Info, string, error) {
-	mopt := intake.Options{Catalogue: t.Catalogue, UnknownAsPrior: o.UnknownAsPrior, IgnoreColumns: o.IgnoreColumns, Sheet: o.Sheet}
+	mopt := intake.Options{Catalogue: t.Catalogue, UnknownAsPrior: o.UnknownAsPrior, IgnoreColumns: o.IgnoreColumns, Sheet: o.Sheet,
+		TempDir: o.TempDir}
 	h := sha256.New()
 	br := bufio.NewReaderSize(m.R, 64<<10)
 	head, _ := br.Peek(4)
