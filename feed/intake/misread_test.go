@@ -2,6 +2,7 @@ package intake_test
 
 import (
 	"errors"
+	"math"
 	"strings"
 	"testing"
 	"unicode/utf16"
@@ -196,4 +197,23 @@ func FuzzReadManifestRules(f *testing.F) {
 			t.Fatalf("CR and LF read differently: %d lines, %v; %d lines, %v", len(lines), err, len(lines2), err2)
 		}
 	})
+}
+
+// SI prefixes are told apart by case: m is milli, M is mega (SI Brochure, 9th edition, BIPM
+// 2019, table 7). "2000 mWh" is 2 Wh, never two megawatt-hours; the other units keep their
+// case-free spellings.
+func TestMilliAndMegaWattHours(t *testing.T) {
+	t.Parallel()
+	for _, c := range []struct {
+		in   string
+		want float64
+	}{
+		{"2000 mWh", 2}, {"2000mwh", 2}, {"1500 mWH", 1.5}, {"0.002 MWh", 2000}, {"0.001 MWH", 1000},
+		{"5 kWh", 5000}, {"5 KWH", 5000}, {"11 WH", 11}, {"3000 MAH", 3}, {"3000 mAh", 3},
+	} {
+		v, _, err := intake.Quantity(c.in, intake.CapacityUnits, "", false)
+		if err != nil || math.Abs(v-c.want) > 1e-9*c.want {
+			t.Errorf("%q: got %v, %v; want %v", c.in, v, err, c.want)
+		}
+	}
 }

@@ -9,11 +9,13 @@ import (
 )
 
 // Unit is one accepted unit: its spellings (matched case-insensitively), the factor to the base
-// unit and the base unit's name.
+// unit and the base unit's name. Exact spellings are matched with their case, for SI prefixes
+// that case tells apart: m is milli and M mega (SI Brochure, 9th edition, 2019, table 7).
 type Unit struct {
 	Names  []string
 	Factor float64
 	Base   string
+	Exact  []string
 }
 
 // UnitTable is the set of units a quantity accepts.
@@ -33,26 +35,34 @@ const (
 var (
 	// CapacityUnits are energies (base Wh) and charges (base Ah).
 	CapacityUnits = UnitTable{Units: []Unit{
-		{[]string{"wh", "whr", "whrs", "watt-hour", "watt-hours"}, 1, "Wh"},
-		{[]string{"kwh", "kwhr"}, 1e3, "Wh"},
-		{[]string{"mwh"}, 1e6, "Wh"},
-		{[]string{"ah", "ahr"}, 1, "Ah"},
-		{[]string{"mah", "mahr"}, 1e-3, "Ah"},
-	}, Want: "Wh, Whr, kWh, MWh, Ah or mAh"}
+		{[]string{"wh", "whr", "whrs", "watt-hour", "watt-hours"}, 1, "Wh", nil},
+		{[]string{"kwh", "kwhr"}, 1e3, "Wh", nil},
+		{nil, 1e6, "Wh", []string{"MWh", "MWH", "Mwh", "MWhr"}},
+		{nil, 1e-3, "Wh", []string{"mWh", "mwh", "mWH", "mWhr", "mwhr"}},
+		{[]string{"ah", "ahr"}, 1, "Ah", nil},
+		{[]string{"mah", "mahr"}, 1e-3, "Ah", nil},
+	}, Want: "Wh, Whr, kWh, MWh, mWh, Ah or mAh"}
 	// MassUnits are masses (base kg).
 	MassUnits = UnitTable{Units: []Unit{
-		{[]string{"g", "gram", "grams"}, 1e-3, "kg"},
-		{[]string{"kg", "kgs", "kilogram", "kilograms"}, 1, "kg"},
-		{[]string{"t", "tonne", "tonnes", "metric ton"}, 1e3, "kg"},
-		{[]string{"lb", "lbs", "pound", "pounds"}, poundKg, "kg"},
-		{[]string{"oz", "ounce", "ounces"}, ounceKg, "kg"},
+		{[]string{"g", "gram", "grams"}, 1e-3, "kg", nil},
+		{[]string{"kg", "kgs", "kilogram", "kilograms"}, 1, "kg", nil},
+		{[]string{"t", "tonne", "tonnes", "metric ton"}, 1e3, "kg", nil},
+		{[]string{"lb", "lbs", "pound", "pounds"}, poundKg, "kg", nil},
+		{[]string{"oz", "ounce", "ounces"}, ounceKg, "kg", nil},
 	}, Want: "g, kg, t (tonne), lb or oz"}
 	// VoltUnits are voltages (base V).
-	VoltUnits = UnitTable{Units: []Unit{{[]string{"v", "vdc", "volt", "volts"}, 1, "V"}}, Want: "V"}
+	VoltUnits = UnitTable{Units: []Unit{{[]string{"v", "vdc", "volt", "volts"}, 1, "V", nil}}, Want: "V"}
 )
 
 // find returns the unit named s, or nil.
 func (u UnitTable) find(s string) *Unit {
+	for i := range u.Units {
+		for _, n := range u.Units[i].Exact {
+			if s == n {
+				return &u.Units[i]
+			}
+		}
+	}
 	for i := range u.Units {
 		for _, n := range u.Units[i].Names {
 			if strings.EqualFold(s, n) {

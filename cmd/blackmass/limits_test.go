@@ -1,0 +1,23 @@
+package main
+
+import (
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+)
+
+// An assay far past the side files' cap is refused by name at the cap, without being read
+// whole first.
+func TestQuoteAssayCapped(t *testing.T) {
+	t.Parallel()
+	path := filepath.Join(t.TempDir(), "assay.csv")
+	body := "element,value,unit,uncertainty,notes\nCo,20.5,wt%,0.4," + strings.Repeat("x", 5<<20)
+	if err := os.WriteFile(path, []byte(body), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	code, _, stderr := cli(t, "", "quote", path, "--mass", "100kg")
+	if code == 0 || !strings.Contains(stderr, "assay.csv") || !strings.Contains(stderr, "larger than 1024 KiB") {
+		t.Errorf("exit %d: %s", code, stderr)
+	}
+}
