@@ -300,8 +300,21 @@ func (c *Catalogue) material(label string) (*Entry, Kind, []string, error) {
 	if f, err := c.elements().ParseFormula(label); err == nil {
 		return c.fromFormula(label, f)
 	}
-	return nil, "", nil, fmt.Errorf("%w %q; nearest known: %s", ErrUnknownLabel, label, strings.Join(c.nearest(label, 3), ", "))
+	return nil, "", nil, &unknownLabelError{label: label, c: c}
 }
+
+// unknownLabelError is an unresolved label. The nearest known labels are searched only when the
+// message is read: a lot of many unknown labels read as unknown never pays for the search.
+type unknownLabelError struct {
+	label string
+	c     *Catalogue
+}
+
+func (e *unknownLabelError) Error() string {
+	return fmt.Sprintf("%v %q; nearest known: %s", ErrUnknownLabel, e.label, strings.Join(e.c.nearest(e.label, 3), ", "))
+}
+
+func (e *unknownLabelError) Unwrap() error { return ErrUnknownLabel }
 
 var (
 	ratioPrefix = regexp.MustCompile(`(?i)^\s*(NMC|NCM)\s*[-_ ]?\s*\(?\s*([0-9.:/\-_ ,]+?)\s*\)?\s*$`)
