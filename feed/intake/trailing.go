@@ -31,6 +31,18 @@ type trailer struct {
 // totalWords start a totals row.
 var totalWords = regexp.MustCompile(`(?i)^(grand\s+|sub-?\s*)?(total|totals|sum)\b`)
 
+// mayBeTotal is the cheap test before totalWords: its words start with g, s or t.
+func mayBeTotal(s string) bool {
+	if s == "" {
+		return false
+	}
+	switch s[0] {
+	case 'g', 'G', 's', 'S', 't', 'T':
+		return true
+	}
+	return false
+}
+
 // skip reports whether a row is read past (a totals row, free text, a row after the table's
 // end), noting why; a manifest line after the end of the table is an error.
 func (t *trailer) skip(p *lineParser, rec []string, line int, info *Info) (bool, error) {
@@ -45,7 +57,7 @@ func (t *trailer) skip(p *lineParser, rec []string, line int, info *Info) (bool,
 		return true, nil
 	}
 	first := firstCell(rec)
-	if totalWords.MatchString(first) {
+	if mayBeTotal(first) && totalWords.MatchString(first) {
 		if _, err := p.parse(rec, line); err == nil {
 			return false, nil // a line whose id happens to start with "sum"
 		}
