@@ -103,7 +103,9 @@ type ElementEvidence struct {
 	Element string  `json:"element"`
 	Basis   string  `json:"basis"`
 	Kg      float64 `json:"kg"` // the measured kg when measured, else the estimate's P50
-	// Measured is the assays combined, times the dry mass; nil without both.
+	// Assay is the lot's assays of the element combined (nil: not assayed); Measured is it
+	// times the dry mass (nil without a dry mass).
+	Assay    *Combined `json:"assay,omitempty"`
 	Measured *Measured `json:"measured,omitempty"`
 	// The estimate, kept beside the measurement.
 	EstimateKgP10    float64 `json:"estimate_kg_p10"`
@@ -116,25 +118,32 @@ type ElementEvidence struct {
 	PayableValue *float64 `json:"payable_value,omitempty"`
 }
 
-// Measured is an element measured: the assays combined (dry basis) and the metal in the dry
-// black mass. A censored result (every assay below its limit) is the range 0..limit: WtPct and
-// Kg are then its middle and the sigmas those of a uniform distribution over it.
-type Measured struct {
+// Combined is an element's assays combined (dry basis). A censored result (every assay below
+// its limit) is the range 0..limit: WtPct is then its middle and SigmaWtPct that of a uniform
+// distribution over it.
+type Combined struct {
 	WtPct      float64 `json:"wt_pct"`
 	SigmaWtPct float64 `json:"sigma_wt_pct"`
 	Censored   bool    `json:"below_detection_limit,omitempty"`
 	LimitWtPct float64 `json:"detection_limit_wt_pct,omitempty"`
-	Kg         float64 `json:"kg"`
-	SigmaKg    float64 `json:"sigma_kg"`
-	MinKg      float64 `json:"min_kg"` // 0 when censored, else Kg − 2 sigma (not below 0)
-	MaxKg      float64 `json:"max_kg"` // limit × dry mass when censored, else Kg + 2 sigma
 	Assays     int     `json:"assays"`
 	// ChiSquare of the detected values about their weighted mean, on DoF degrees of freedom;
-	// Disagree when it lies beyond the 95 % quantile, or a detected mean lies clearly above
-	// another assay's detection limit.
+	// Disagree when it lies beyond the 95 % quantile, or a detected mean lies more than two
+	// standard uncertainties above another assay's detection limit.
 	ChiSquare float64 `json:"chi_square,omitempty"`
 	DoF       int     `json:"degrees_of_freedom,omitempty"`
 	Disagree  bool    `json:"assays_disagree,omitempty"`
+}
+
+// Measured is the metal in the dry black mass: the assays combined (Combined, shown in JSON
+// beside it as the element's assay) times the dry mass, with its standard uncertainty from both.
+type Measured struct {
+	Combined `json:"-"`
+	Censored bool    `json:"below_detection_limit,omitempty"`
+	Kg       float64 `json:"kg"`
+	SigmaKg  float64 `json:"sigma_kg"`
+	MinKg    float64 `json:"min_kg"` // 0 when censored, else Kg − 2 sigma (not below 0)
+	MaxKg    float64 `json:"max_kg"` // limit × dry mass when censored, else Kg + 2 sigma
 }
 
 // RankEvidence puts a lot's figures on the best evidence it holds. An element assayed, with a
@@ -174,17 +183,21 @@ func RankEvidence(est Estimate, assays []AssayEvidence, weighings []WeighingEvid
 		ee := ElementEvidence{Element: el, Basis: BasisEstimate, Kg: e.Kg.P50, EstimateKgP10: e.Kg.P10, EstimateKgP50: e.Kg.P50,
 			EstimateKgP90: e.Kg.P90, EstimateWtPctP50: e.WtPctP50, PayableValue: e.PayableValue}
 		vals := byEl[el]
+		if len(vals) > 0 {
+			c := combine(vals)
+			ee.Assay = &c
+			if c.Disagree {
+				ev.Notes = append(ev.Notes, fmt.Sprintf("%s: the %d assays disagree beyond their uncertainties (chi-square %.1f on %d degrees of freedom)",
+					el, c.Assays, c.ChiSquare, c.DoF))
+			}
+		}
 		if len(vals) > 0 && dm != nil {
-			m := combine(vals)
+			m := Measured{Combined: *ee.Assay, Censored: ee.Assay.Censored}
 			m.Kg, m.SigmaKg = massOf(m.WtPct, m.SigmaWtPct, dm)
 			if m.Censored {
 				m.MinKg, m.MaxKg = 0, m.LimitWtPct/100*dm.Kg
 			} else {
 				m.MinKg, m.MaxKg = math.Max(0, m.Kg-2*m.SigmaKg), m.Kg+2*m.SigmaKg
-			}
-			if m.Disagree {
-				ev.Notes = append(ev.Notes, fmt.Sprintf("%s: the %d assays disagree beyond their uncertainties (chi-square %.1f on %d degrees of freedom)",
-					el, m.Assays, m.ChiSquare, m.DoF))
 			}
 			ee.Measured, ee.Basis, ee.Kg, ev.Basis = &m, BasisMeasured, m.Kg, BasisMeasured
 			if e.Kg.P50 > 0 {
@@ -237,8 +250,8 @@ func massOf(wtPct, sigmaWtPct float64, dm *DryMass) (kg, sigmaKg float64) {
 // weighting with their chi-square, or, when every one is censored, the range to the tightest
 // limit. A detected mean more than two standard uncertainties above another assay's detection
 // limit is a disagreement too.
-func combine(vals []assay.Value) Measured {
-	m := Measured{Assays: len(vals)}
+func combine(vals []assay.Value) Combined {
+	m := Combined{Assays: len(vals)}
 	var det []assay.Value
 	minLimit := math.Inf(1)
 	for _, v := range vals {

@@ -1,0 +1,87 @@
+package register
+
+import (
+	"context"
+	"database/sql"
+
+	"blackmass/feed/assay"
+)
+
+// readEvidence reads what RankEvidence takes for one version of a lot: its estimate (payable is
+// the lot's payable value, nil without prices), every assay and every weighing of the lot.
+func (r *Register) readEvidence(ctx context.Context, id string, version int, payable *float64) (Estimate, []AssayEvidence, []WeighingEvidence, error) {
+	est := Estimate{Elements: map[string]EstimateElement{}, Payable: payable}
+	if err := r.db.QueryRowContext(ctx, "SELECT black_mass_kg FROM lots WHERE lot_id = ? AND version = ?", id, version).Scan(&est.BlackMassKg); err != nil {
+		return est, nil, nil, err
+	}
+	err := collect(ctx, r.db, `SELECT element, kg_p10, kg_p50, kg_p90, wt_pct_p50, payable_value FROM lot_metals
+		WHERE lot_id = ? AND version = ?`, []any{id, version}, func(rows *sql.Rows) error {
+		var el string
+		var e EstimateElement
+		var pay sql.NullFloat64
+		if err := rows.Scan(&el, &e.Kg.P10, &e.Kg.P50, &e.Kg.P90, &e.WtPctP50, &pay); err != nil {
+			return err
+		}
+		if pay.Valid {
+			e.PayableValue = &pay.Float64
+		}
+		est.Elements[el] = e
+		return nil
+	})
+	if err != nil {
+		return est, nil, nil, err
+	}
+	var assays []AssayEvidence
+	err = collect(ctx, r.db, `SELECT assay_id, lab, assayed_on, moisture_wt_pct, moisture_sigma_wt_pct FROM assays
+		WHERE lot_id = ? ORDER BY assayed_on, assay_id`, []any{id}, func(rows *sql.Rows) error {
+		var a AssayEvidence
+		var m, ms sql.NullFloat64
+		if err := rows.Scan(&a.ID, &a.Lab, &a.On, &m, &ms); err != nil {
+			return err
+		}
+		if m.Valid {
+			a.MoistureWtPct, a.MoistureSigmaWtPct = &m.Float64, ms.Float64
+		}
+		assays = append(assays, a)
+		return nil
+	})
+	if err != nil {
+		return est, nil, nil, err
+	}
+	for i := range assays {
+		err := collect(ctx, r.db, `SELECT element, wt_pct, sigma_wt_pct, censored, limit_wt_pct FROM assay_values
+			WHERE assay_id = ? ORDER BY element`, []any{assays[i].ID}, func(rows *sql.Rows) error {
+			var v assay.Value
+			var limit sql.NullFloat64
+			if err := rows.Scan(&v.Element, &v.WtPct, &v.SigmaWtPct, &v.Censored, &limit); err != nil {
+				return err
+			}
+			v.Basis = assay.BasisAssay
+			if v.Censored && limit.Valid {
+				v.Censor(limit.Float64)
+			} else {
+				v.Censored = false
+			}
+			assays[i].Values = append(assays[i].Values, v)
+			return nil
+		})
+		if err != nil {
+			return est, nil, nil, err
+		}
+	}
+	var weighings []WeighingEvidence
+	err = collect(ctx, r.db, `SELECT weighing_id, weighed_on, kg, coalesce(sigma_kg, 0), state, moisture_wt_pct, note FROM weighings
+		WHERE lot_id = ? ORDER BY weighed_on, weighing_id`, []any{id}, func(rows *sql.Rows) error {
+		var w WeighingEvidence
+		var m sql.NullFloat64
+		if err := rows.Scan(&w.ID, &w.On, &w.Kg, &w.SigmaKg, &w.State, &m, &w.Note); err != nil {
+			return err
+		}
+		if m.Valid {
+			w.MoistureWtPct = &m.Float64
+		}
+		weighings = append(weighings, w)
+		return nil
+	})
+	return est, assays, weighings, err
+}
