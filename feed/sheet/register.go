@@ -133,6 +133,9 @@ func WriteRegister(out io.Writer, lots []register.Summary) error {
 			return err
 		}
 	}
+	if err := registerPrint(f, len(cols)); err != nil { // the page setup goes in before the stream writer takes the sheet
+		return err
+	}
 	sw, err := f.NewStreamWriter(RegisterSheet)
 	if err != nil {
 		return err
@@ -167,9 +170,6 @@ func WriteRegister(out io.Writer, lots []register.Summary) error {
 		}
 	}
 	if err := sw.Flush(); err != nil {
-		return err
-	}
-	if err := registerPrint(f, len(cols)); err != nil {
 		return err
 	}
 	return f.Write(out)
