@@ -1,10 +1,12 @@
 package register
 
 import (
+	"bytes"
 	"context"
 	"database/sql"
 
 	"blackmass/feed/assay"
+	"blackmass/feed/intake"
 )
 
 // readEvidence reads what RankEvidence takes for one version of a lot: its estimate (payable is
@@ -84,4 +86,59 @@ func (r *Register) readEvidence(ctx context.Context, id string, version int, pay
 		return nil
 	})
 	return est, assays, weighings, err
+}
+
+// afterMigration holds, by schema version, what a migration does that SQL alone cannot; it runs
+// in the migration's transaction.
+var afterMigration = map[int]func(*sql.Tx) error{4: censorStoredAssays}
+
+// censorStoredAssays brings the assays of a register made before schema 4 up to it: each stored
+// assay file is read again, and its values below a detection limit are marked censored with
+// their limit, its moisture row kept. A file that no longer reads (a program since made
+// stricter) is left as it was stored.
+func censorStoredAssays(tx *sql.Tx) error {
+	type stored struct {
+		id      int64
+		name    string
+		content []byte
+	}
+	var all []stored
+	rows, err := tx.Query("SELECT assay_id, file_name, content FROM assays")
+	if err != nil {
+		return err
+	}
+	for rows.Next() {
+		var s stored
+		if err := rows.Scan(&s.id, &s.name, &s.content); err != nil {
+			rows.Close()
+			return err
+		}
+		all = append(all, s)
+	}
+	rows.Close()
+	if err := rows.Err(); err != nil {
+		return err
+	}
+	for _, s := range all {
+		a, err := intake.ReadAssay(bytes.NewReader(s.content), s.name)
+		if err != nil {
+			continue
+		}
+		for _, v := range a.Values {
+			if !v.Censored {
+				continue
+			}
+			if _, err := tx.Exec(`UPDATE assay_values SET censored = 1, limit_wt_pct = ?, wt_pct = ?, sigma_wt_pct = ?
+				WHERE assay_id = ? AND element = ?`, v.LimitWtPct, v.WtPct, v.SigmaWtPct, s.id, v.Element); err != nil {
+				return err
+			}
+		}
+		if m := a.Moisture; m != nil {
+			if _, err := tx.Exec("UPDATE assays SET moisture_wt_pct = ?, moisture_sigma_wt_pct = ? WHERE assay_id = ?",
+				m.WtPct, m.SigmaWtPct, s.id); err != nil {
+				return err
+			}
+		}
+	}
+	return nil
 }

@@ -134,6 +134,11 @@ func TestMigrateToEvidence(t *testing.T) {
 		`INSERT INTO assays VALUES (1, 'OLD-3', 'Moor Lane lab', '2026-10-04', '2026-10-04T10:00:00Z', 'a.csv', 'cd', x'00')`,
 		`INSERT INTO assay_values VALUES (1, 'Co', 15, 0.5)`,
 		`INSERT INTO weighings (lot_id, weighed_on, kg, added_at) VALUES ('OLD-3', '2026-10-03', 40, '2026-10-03T10:00:00Z')`,
+		`INSERT INTO assays VALUES (2, 'OLD-4', 'Moor Lane lab', '2026-10-04', '2026-10-04T10:00:00Z', 'b.csv', 'ef',
+			CAST('element,value,unit,uncertainty' || char(10) || 'Co,9,wt%,0.3' || char(10) || 'Cu,<0.05,wt%,' || char(10) ||
+			'Moisture,7,wt%,0.5' || char(10) AS BLOB))`,
+		`INSERT INTO assay_values VALUES (2, 'Co', 9, 0.3)`,
+		`INSERT INTO assay_values VALUES (2, 'Cu', 0.025, 0.0144)`, // as stored before schema 4: the middle, unflagged
 	} {
 		if _, err := db.Exec(q); err != nil {
 			t.Fatal(err)
@@ -162,7 +167,14 @@ func TestMigrateToEvidence(t *testing.T) {
 	if ni := d.Evidence.Element("Ni"); ni.PayableValue != nil {
 		t.Errorf("Ni was not priced: %+v", ni)
 	}
-	if d, err := up.Show(context.Background(), "OLD-4"); err != nil || d.Evidence.Element("Co").PayableValue != nil {
-		t.Errorf("lot with an unreadable report: %v", err)
+	d, err = up.Show(context.Background(), "OLD-4")
+	if err != nil || d.Evidence.Element("Co").PayableValue != nil {
+		t.Fatalf("lot with an unreadable report: %v", err)
+	}
+	// Its assay, stored before schema 4, is read again: Cu below 0.05 is censored, the moisture kept.
+	a := d.AssayList[0]
+	if a.MoistureWtPct == nil || *a.MoistureWtPct != 7 || a.MoistureSigmaWtPct != 0.5 || !a.Values[1].Censored || a.Values[1].LimitWtPct != 0.05 ||
+		a.Values[0].Censored {
+		t.Errorf("stored assay after the upgrade: %+v", a)
 	}
 }
