@@ -11,6 +11,20 @@ import (
 	"github.com/xuri/excelize/v2"
 )
 
+// shownElement is one element of a lot's evidence in lot show --json.
+type shownElement struct {
+	Element  string   `json:"element"`
+	Basis    string   `json:"basis"`
+	Kg       float64  `json:"kg"`
+	Estimate float64  `json:"estimate_kg_p50"`
+	Ratio    *float64 `json:"measured_over_estimate"`
+	Assay    *struct {
+		Censored bool    `json:"below_detection_limit"`
+		Limit    float64 `json:"detection_limit_wt_pct"`
+		Disagree bool    `json:"assays_disagree"`
+	} `json:"assay"`
+}
+
 // shownLot is the part of lot show --json the evidence tests read.
 type shownLot struct {
 	Basis    string `json:"basis"`
@@ -19,19 +33,8 @@ type shownLot struct {
 			Kg            float64 `json:"kg"`
 			MoistureWtPct float64 `json:"moisture_wt_pct"`
 		} `json:"dry_mass"`
-		Elements []struct {
-			Element  string   `json:"element"`
-			Basis    string   `json:"basis"`
-			Kg       float64  `json:"kg"`
-			Estimate float64  `json:"estimate_kg_p50"`
-			Ratio    *float64 `json:"measured_over_estimate"`
-			Assay    *struct {
-				Censored bool    `json:"below_detection_limit"`
-				Limit    float64 `json:"detection_limit_wt_pct"`
-				Disagree bool    `json:"assays_disagree"`
-			} `json:"assay"`
-		} `json:"elements"`
-		Notes []string `json:"notes"`
+		Elements []shownElement `json:"elements"`
+		Notes    []string       `json:"notes"`
 	} `json:"evidence"`
 	Weighings []json.RawMessage `json:"weighings"`
 	Audit     []json.RawMessage `json:"audit"`
@@ -60,25 +63,15 @@ func TestLotEvidence(t *testing.T) {
 		}
 		return s
 	}
-	el := func(s shownLot, name string) (e struct {
-		Element  string   `json:"element"`
-		Basis    string   `json:"basis"`
-		Kg       float64  `json:"kg"`
-		Estimate float64  `json:"estimate_kg_p50"`
-		Ratio    *float64 `json:"measured_over_estimate"`
-		Assay    *struct {
-			Censored bool    `json:"below_detection_limit"`
-			Limit    float64 `json:"detection_limit_wt_pct"`
-			Disagree bool    `json:"assays_disagree"`
-		} `json:"assay"`
-	}) {
+	el := func(s shownLot, name string) shownElement {
+		t.Helper()
 		for _, x := range s.Evidence.Elements {
 			if x.Element == name {
 				return x
 			}
 		}
 		t.Fatalf("no %s in %+v", name, s.Evidence.Elements)
-		return e
+		return shownElement{}
 	}
 	step("lot", "add", demo, "--lot", "KR-2611", "--received", "2026-11-28", "--samples", "100")
 	out := step("lot", "assay", "KR-2611", filepath.Join("..", "..", "testdata", "assay", "censored-WB-0412.csv"), "--lab", "Fenmoor bench lab", "--date", "2026-12-01")

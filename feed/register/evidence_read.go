@@ -11,9 +11,11 @@ import (
 
 // readEvidence reads what RankEvidence takes for one version of a lot: its estimate (payable is
 // the lot's payable value, nil without prices), every assay and every weighing of the lot.
-func (r *Register) readEvidence(ctx context.Context, id string, version int, payable *float64) (Estimate, []AssayEvidence, []WeighingEvidence, error) {
+func (r *Register) readEvidence(ctx context.Context, id string, version int, payable *float64) (
+	Estimate, []AssayEvidence, []WeighingEvidence, error) {
 	est := Estimate{Elements: map[string]EstimateElement{}, Payable: payable}
-	if err := r.db.QueryRowContext(ctx, "SELECT black_mass_kg FROM lots WHERE lot_id = ? AND version = ?", id, version).Scan(&est.BlackMassKg); err != nil {
+	q := "SELECT black_mass_kg FROM lots WHERE lot_id = ? AND version = ?"
+	if err := r.db.QueryRowContext(ctx, q, id, version).Scan(&est.BlackMassKg); err != nil {
 		return est, nil, nil, err
 	}
 	err := collect(ctx, r.db, `SELECT element, kg_p10, kg_p50, kg_p90, wt_pct_p50, payable_value FROM lot_metals
