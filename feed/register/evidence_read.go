@@ -60,13 +60,7 @@ func (r *Register) readEvidence(ctx context.Context, id string, version int, pay
 			if err := rows.Scan(&v.Element, &v.WtPct, &v.SigmaWtPct, &v.Censored, &limit); err != nil {
 				return err
 			}
-			v.Basis = assay.BasisAssay
-			if v.Censored && limit.Valid {
-				v.Censor(limit.Float64)
-			} else {
-				v.Censored = false
-			}
-			assays[i].Values = append(assays[i].Values, v)
+			assays[i].Values = append(assays[i].Values, storedValue(v, limit))
 			return nil
 		})
 		if err != nil {
@@ -143,4 +137,119 @@ func censorStoredAssays(tx *sql.Tx) error {
 		}
 	}
 	return nil
+}
+
+// lotEvidence is what readEvidence reads for one lot.
+type lotEvidence struct {
+	est         Estimate
+	assays      []AssayEvidence
+	weighings   []WeighingEvidence
+	chemistries []string
+}
+
+// readCurrentEvidence reads, in a few queries, what the ranking takes for every current lot,
+// and each lot's chemistries: a listing of many lots asks once, not once per lot.
+func (r *Register) readCurrentEvidence(ctx context.Context) (map[string]*lotEvidence, error) {
+	out := map[string]*lotEvidence{}
+	get := func(id string) *lotEvidence {
+		if out[id] == nil {
+			out[id] = &lotEvidence{est: Estimate{Elements: map[string]EstimateElement{}}}
+		}
+		return out[id]
+	}
+	err := collect(ctx, r.db, `SELECT m.lot_id, m.element, m.kg_p10, m.kg_p50, m.kg_p90, m.wt_pct_p50, m.payable_value
+		FROM lots l JOIN lot_metals m ON m.lot_id = l.lot_id AND m.version = l.version WHERE l.current = 1`, nil, func(rows *sql.Rows) error {
+		var id, el string
+		var e EstimateElement
+		var pay sql.NullFloat64
+		if err := rows.Scan(&id, &el, &e.Kg.P10, &e.Kg.P50, &e.Kg.P90, &e.WtPctP50, &pay); err != nil {
+			return err
+		}
+		if pay.Valid {
+			e.PayableValue = &pay.Float64
+		}
+		get(id).est.Elements[el] = e
+		return nil
+	})
+	if err != nil {
+		return nil, err
+	}
+	err = collect(ctx, r.db, `SELECT DISTINCT g.lot_id, g.chemistry FROM lots l JOIN lot_groups g ON g.lot_id = l.lot_id AND g.version = l.version
+		WHERE l.current = 1 ORDER BY g.lot_id, g.chemistry`, nil, func(rows *sql.Rows) error {
+		var id, c string
+		err := rows.Scan(&id, &c)
+		le := get(id)
+		le.chemistries = append(le.chemistries, c)
+		return err
+	})
+	if err != nil {
+		return nil, err
+	}
+	index := map[int64]*AssayEvidence{}
+	err = collect(ctx, r.db, `SELECT assay_id, lot_id, lab, assayed_on, moisture_wt_pct, moisture_sigma_wt_pct FROM assays
+		ORDER BY assayed_on, assay_id`, nil, func(rows *sql.Rows) error {
+		var a AssayEvidence
+		var id string
+		var m, ms sql.NullFloat64
+		if err := rows.Scan(&a.ID, &id, &a.Lab, &a.On, &m, &ms); err != nil {
+			return err
+		}
+		if m.Valid {
+			a.MoistureWtPct, a.MoistureSigmaWtPct = &m.Float64, ms.Float64
+		}
+		le := get(id)
+		le.assays = append(le.assays, a)
+		return nil
+	})
+	if err != nil {
+		return nil, err
+	}
+	for _, le := range out {
+		for i := range le.assays {
+			index[le.assays[i].ID] = &le.assays[i]
+		}
+	}
+	err = collect(ctx, r.db, `SELECT assay_id, element, wt_pct, sigma_wt_pct, censored, limit_wt_pct FROM assay_values
+		ORDER BY assay_id, element`, nil, func(rows *sql.Rows) error {
+		var aid int64
+		var v assay.Value
+		var limit sql.NullFloat64
+		if err := rows.Scan(&aid, &v.Element, &v.WtPct, &v.SigmaWtPct, &v.Censored, &limit); err != nil {
+			return err
+		}
+		if a := index[aid]; a != nil {
+			a.Values = append(a.Values, storedValue(v, limit))
+		}
+		return nil
+	})
+	if err != nil {
+		return nil, err
+	}
+	err = collect(ctx, r.db, `SELECT weighing_id, lot_id, weighed_on, kg, coalesce(sigma_kg, 0), state, moisture_wt_pct, note FROM weighings
+		ORDER BY weighed_on, weighing_id`, nil, func(rows *sql.Rows) error {
+		var w WeighingEvidence
+		var id string
+		var m sql.NullFloat64
+		if err := rows.Scan(&w.ID, &id, &w.On, &w.Kg, &w.SigmaKg, &w.State, &m, &w.Note); err != nil {
+			return err
+		}
+		if m.Valid {
+			w.MoistureWtPct = &m.Float64
+		}
+		le := get(id)
+		le.weighings = append(le.weighings, w)
+		return nil
+	})
+	return out, err
+}
+
+// storedValue is an assay value as stored: a censored one is made again from its limit.
+func storedValue(v assay.Value, limit sql.NullFloat64) assay.Value {
+	v.Basis = assay.BasisAssay
+	if v.Censored && limit.Valid {
+		v.Censor(limit.Float64)
+	} else {
+		v.Censored = false
+	}
+	return v
 }

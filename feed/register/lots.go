@@ -369,10 +369,20 @@ func (r *Register) list(ctx context.Context, f Filter) ([]Summary, error) {
 	if err := rows.Err(); err != nil {
 		return nil, err
 	}
+	if len(out) == 0 {
+		return out, nil
+	}
+	all, err := r.readCurrentEvidence(ctx)
+	if err != nil {
+		return nil, err
+	}
 	for i := range out {
-		if _, _, err := r.fill(ctx, &out[i]); err != nil {
-			return nil, err
+		le := all[out[i].ID]
+		if le == nil {
+			le = &lotEvidence{est: Estimate{Elements: map[string]EstimateElement{}}}
 		}
+		le.est.BlackMassKg = out[i].BlackMassKg
+		out[i].apply(le)
 	}
 	return out, nil
 }
@@ -384,34 +394,42 @@ func (r *Register) fill(ctx context.Context, s *Summary) ([]AssayEvidence, []Wei
 	if err != nil {
 		return nil, nil, err
 	}
-	s.MetalsKg = map[string]float64{}
-	for el, e := range est.Elements {
-		s.MetalsKg[el] = e.Kg.P50
-	}
+	le := &lotEvidence{est: est, assays: assays, weighings: weighings}
 	err = collect(ctx, r.db, "SELECT DISTINCT chemistry FROM lot_groups WHERE lot_id = ? AND version = ? ORDER BY chemistry",
 		[]any{s.ID, s.Version}, func(rows *sql.Rows) error {
 			var c string
 			err := rows.Scan(&c)
-			s.Chemistries = append(s.Chemistries, c)
+			le.chemistries = append(le.chemistries, c)
 			return err
 		})
 	if err != nil {
 		return nil, nil, err
 	}
-	s.Assays = len(assays)
-	if latest := latestAssay(assays); latest != nil {
+	s.apply(le)
+	return assays, weighings, nil
+}
+
+// apply fills a summary from what was read of its lot, and ranks its evidence.
+func (s *Summary) apply(le *lotEvidence) {
+	le.est.Payable = s.Payable
+	s.MetalsKg = map[string]float64{}
+	for el, e := range le.est.Elements {
+		s.MetalsKg[el] = e.Kg.P50
+	}
+	s.Chemistries = le.chemistries
+	s.Assays = len(le.assays)
+	if latest := latestAssay(le.assays); latest != nil {
 		s.AssayLab = latest.Lab
 		s.AssayWtPct = map[string]float64{}
 		for _, v := range latest.Values {
 			s.AssayWtPct[v.Element] = v.WtPct
 		}
 	}
-	if len(weighings) > 0 {
-		s.WeighedKg = weighings[len(weighings)-1].Kg // ordered by date, then id
+	if len(le.weighings) > 0 {
+		s.WeighedKg = le.weighings[len(le.weighings)-1].Kg // ordered by date, then id
 	}
-	s.Evidence = RankEvidence(est, assays, weighings)
+	s.Evidence = RankEvidence(le.est, le.assays, le.weighings)
 	s.Basis = s.Evidence.Basis
-	return assays, weighings, nil
 }
 
 // latestAssay is the latest assay by date, then id; nil if none.
@@ -595,15 +613,32 @@ func (r *Register) MonthTotals(ctx context.Context, month string) (_ *Totals, er
 	if err != nil {
 		return nil, err
 	}
-	all, err := r.list(ctx, Filter{})
+	// Only the lots' first columns are read: the later ones sit behind the manifest and report.
+	type current struct{ id, supplier, received string }
+	var lots []current
+	err = collect(ctx, r.db, "SELECT lot_id, supplier, received FROM lots WHERE current = 1", nil, func(rows *sql.Rows) error {
+		var c current
+		err := rows.Scan(&c.id, &c.supplier, &c.received)
+		lots = append(lots, c)
+		return err
+	})
+	if err != nil {
+		return nil, err
+	}
+	evidence, err := r.readCurrentEvidence(ctx)
 	if err != nil {
 		return nil, err
 	}
 	t.InYardBasis = map[string]BasisCount{}
 	ratios := map[string]map[string][]float64{} // supplier → element → measured/estimate
-	for _, l := range all {
-		inMonth := l.Received >= from && l.Received <= to
-		for _, e := range l.Evidence.Elements {
+	for _, l := range lots {
+		le := evidence[l.id]
+		if le == nil {
+			continue
+		}
+		inMonth := l.received >= from && l.received <= to
+		ev := RankEvidence(le.est, le.assays, le.weighings)
+		for _, e := range ev.Elements {
 			t.InYardKg[e.Element] += e.Kg
 			c := t.InYardBasis[e.Element]
 			if e.Basis == BasisMeasured {
@@ -613,10 +648,10 @@ func (r *Register) MonthTotals(ctx context.Context, month string) (_ *Totals, er
 			}
 			t.InYardBasis[e.Element] = c
 			if inMonth && e.Ratio != nil {
-				if ratios[l.Supplier] == nil {
-					ratios[l.Supplier] = map[string][]float64{}
+				if ratios[l.supplier] == nil {
+					ratios[l.supplier] = map[string][]float64{}
 				}
-				ratios[l.Supplier][e.Element] = append(ratios[l.Supplier][e.Element], *e.Ratio)
+				ratios[l.supplier][e.Element] = append(ratios[l.supplier][e.Element], *e.Ratio)
 			}
 		}
 	}
