@@ -37,7 +37,7 @@ func newLotListCmd(lo *lotOptions) *cobra.Command {
 
 // basisMark is the short mark of a basis in a table cell: m measured, e estimate.
 func basisMark(basis string) string {
-	if basis == register.BasisMeasured {
+	if strings.HasPrefix(basis, register.BasisMeasured) {
 		return "m"
 	}
 	return "e"

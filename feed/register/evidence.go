@@ -223,7 +223,8 @@ func RankEvidence(est Estimate, assays []AssayEvidence, weighings []WeighingEvid
 		p := *est.Payable + payShift
 		ev.Payable, ev.PayableBasis = &p, BasisEstimate
 		if shifted {
-			ev.PayableBasis = BasisMeasured + " (unassayed metals from the estimate)"
+			ev.PayableBasis = BasisMeasured
+			ev.Notes = append(ev.Notes, "value: each measured metal's payable share scaled to what was measured, the rest as estimated")
 		}
 	}
 	return ev

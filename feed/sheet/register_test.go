@@ -47,39 +47,56 @@ func TestWriteRegister(t *testing.T) {
 		t.Fatal(err)
 	}
 	defer f.Close()
-	cols, rows := RegisterTable(registerLots())
-	panes, err := f.GetPanes(RegisterSheet)
-	if err != nil || !panes.Freeze || panes.YSplit != 1 || panes.TopLeftCell != "A2" {
-		t.Errorf("panes %+v %v", panes, err)
-	}
-	for j, c := range cols {
-		name, _ := excelize.ColumnNumberToName(j + 1)
-		w, _ := f.GetColWidth(RegisterSheet, name)
-		if w < float64(len([]rune(c.Head)))+1 && w < 60 {
-			t.Errorf("column %s %q: width %v narrower than its header", name, c.Head, w)
+	lc, lr := LotsTable(registerLots())
+	mc, mr := MetalsTable(registerLots())
+	for _, tab := range []struct {
+		sheet string
+		cols  []Column
+		rows  [][]any
+	}{{RegisterSheet, lc, lr}, {RegisterMetalsSheet, mc, mr}} {
+		sheet, cols, rows := tab.sheet, tab.cols, tab.rows
+		panes, err := f.GetPanes(sheet)
+		if err != nil || !panes.Freeze || panes.YSplit != 1 || panes.TopLeftCell != "A2" {
+			t.Errorf("panes %+v %v", panes, err)
 		}
-		head, _ := f.GetCellValue(RegisterSheet, name+"1")
-		if head != c.Head {
-			t.Errorf("header %s: %q, want %q", name, head, c.Head)
-		}
-		for i, r := range rows {
-			cell := name + string(rune('2'+i))
-			if r[j] == nil {
-				continue
+		for j, c := range cols {
+			name, _ := excelize.ColumnNumberToName(j + 1)
+			w, _ := f.GetColWidth(sheet, name)
+			// The header wraps at its spaces: the column holds its longest word and every cell's text.
+			need := 0
+			for _, word := range strings.Fields(c.Head) {
+				need = max(need, len([]rune(word)))
 			}
-			st, _ := f.GetCellStyle(RegisterSheet, cell)
-			style, _ := f.GetStyle(st)
-			_, isText := r[j].(string)
-			switch {
-			case c.Kind == KindDate:
-				typ, _ := f.GetCellType(RegisterSheet, cell)
-				if style.CustomNumFmt == nil || *style.CustomNumFmt != "yyyy-mm-dd" || typ == excelize.CellTypeSharedString || typ == excelize.CellTypeInlineString {
-					t.Errorf("%s: a date should be a number formatted as a date (type %v, style %+v)", cell, typ, style.CustomNumFmt)
+			for _, r := range rows {
+				need = max(need, len([]rune(shownText(r[j], c.Kind))))
+			}
+			if w < float64(min(need+1, maxColumnWidth)) {
+				t.Errorf("column %s %q: width %v, its text needs %d", name, c.Head, w, need)
+			}
+			head, _ := f.GetCellValue(sheet, name+"1")
+			if head != c.Head {
+				t.Errorf("header %s: %q, want %q", name, head, c.Head)
+			}
+			for i, r := range rows {
+				cell, _ := excelize.CoordinatesToCellName(j+1, i+2)
+				if r[j] == nil {
+					continue
 				}
-			case !isText && (style.CustomNumFmt == nil || *style.CustomNumFmt != kindFormat[c.Kind]):
-				t.Errorf("%s (%s): number format %v, want %q", cell, c.Head, style.CustomNumFmt, kindFormat[c.Kind])
+				st, _ := f.GetCellStyle(sheet, cell)
+				style, _ := f.GetStyle(st)
+				_, isText := r[j].(string)
+				switch {
+				case c.Kind == KindDate:
+					typ, _ := f.GetCellType(sheet, cell)
+					if style.CustomNumFmt == nil || *style.CustomNumFmt != "yyyy-mm-dd" || typ == excelize.CellTypeSharedString || typ == excelize.CellTypeInlineString {
+						t.Errorf("%s: a date should be a number formatted as a date (type %v, style %+v)", cell, typ, style.CustomNumFmt)
+					}
+				case !isText && (style.CustomNumFmt == nil || *style.CustomNumFmt != kindFormat[c.Kind]):
+					t.Errorf("%s (%s): number format %v, want %q", cell, c.Head, style.CustomNumFmt, kindFormat[c.Kind])
+				}
 			}
 		}
+		checkPrint(t, f, sheet)
 	}
 	// The money format has thousands separators and two decimals; a mass three figures.
 	if !strings.Contains(kindFormat[KindMoney], "#,##0.00") || !strings.Contains(kindFormat[KindKg], "0.00") {
@@ -91,27 +108,6 @@ func TestWriteRegister(t *testing.T) {
 	}
 	if fm, _ := f.GetCellFormula(RegisterSheet, "A3"); fm != "" {
 		t.Errorf("a lot id became the formula %q", fm)
-	}
-	lay, err := f.GetPageLayout(RegisterSheet)
-	if err != nil || *lay.Size != PaperA4 || *lay.Orientation != "landscape" || *lay.FitToWidth != 1 || *lay.FitToHeight != 0 {
-		t.Errorf("page layout %+v %v", lay, err)
-	}
-	props, _ := f.GetSheetProps(RegisterSheet)
-	if props.FitToPage == nil || !*props.FitToPage {
-		t.Error("not fitted to the page")
-	}
-	hf, _ := f.GetHeaderFooter(RegisterSheet)
-	if !strings.Contains(hf.OddFooter, "&P") || !strings.Contains(hf.OddFooter, "&N") {
-		t.Errorf("footer %q", hf.OddFooter)
-	}
-	titles := false
-	for _, dn := range f.GetDefinedName() {
-		if dn.Name == "_xlnm.Print_Titles" && strings.Contains(dn.RefersTo, "$1:$1") {
-			titles = true
-		}
-	}
-	if !titles {
-		t.Errorf("no repeated header row: %+v", f.GetDefinedName())
 	}
 }
 
@@ -138,5 +134,62 @@ func TestRegisterTableBasis(t *testing.T) {
 	dry := m[at("dry black mass kg")].(float64)
 	if math.Abs(co-19.30896) > 1e-9 || est != 17.5 || math.Abs(ratio-co/17.5) > 1e-12 || math.Abs(dry-195.04) > 1e-9 {
 		t.Errorf("Co %v estimate %v ratio %v", co, est, ratio)
+	}
+}
+
+// checkPrint checks a sheet's print setup: A4 landscape, one page wide, the header row repeated,
+// page numbers in the footer.
+func checkPrint(t *testing.T, f *excelize.File, sheet string) {
+	t.Helper()
+	lay, err := f.GetPageLayout(sheet)
+	if err != nil || *lay.Size != PaperA4 || *lay.Orientation != "landscape" || *lay.FitToWidth != 1 || *lay.FitToHeight != 0 {
+		t.Errorf("page layout %+v %v", lay, err)
+	}
+	props, _ := f.GetSheetProps(sheet)
+	if props.FitToPage == nil || !*props.FitToPage {
+		t.Error("not fitted to the page")
+	}
+	hf, _ := f.GetHeaderFooter(sheet)
+	if !strings.Contains(hf.OddFooter, "&P") || !strings.Contains(hf.OddFooter, "&N") {
+		t.Errorf("footer %q", hf.OddFooter)
+	}
+	titles := false
+	for _, dn := range f.GetDefinedName() {
+		if dn.Name == "_xlnm.Print_Titles" && dn.Scope == sheet && strings.Contains(dn.RefersTo, "$1:$1") {
+			titles = true
+		}
+	}
+	if !titles {
+		t.Errorf("no repeated header row: %+v", f.GetDefinedName())
+	}
+}
+
+// The metals sheet: a row per lot and payable metal, the measured lot's Co with its measurement,
+// sd and range beside the estimate's P10/P50/P90; the other lot's Co on the estimate alone.
+func TestMetalsTable(t *testing.T) {
+	cols, rows := MetalsTable(registerLots())
+	at := map[string]int{}
+	for j, c := range cols {
+		at[c.Head] = j
+	}
+	var measured, estimated []any
+	for _, r := range rows {
+		if r[at["element"]] == "Co" && r[at["lot"]] == "KR-3101" {
+			measured = r
+		}
+		if r[at["element"]] == "Co" && r[at["lot"]] == "=KR-3102" {
+			estimated = r
+		}
+	}
+	if len(rows) != 12 || measured == nil || estimated == nil {
+		t.Fatalf("%d rows", len(rows))
+	}
+	if measured[at["basis"]] != register.BasisMeasured || math.Abs(measured[at["measured kg"]].(float64)-19.30896) > 1e-9 ||
+		measured[at["estimate kg P10"]] != 15.0 || measured[at["estimate kg P90"]] != 20.0 || measured[at["assay wt%"]] != 9.9 ||
+		measured[at["measured min kg"]].(float64) >= measured[at["measured kg"]].(float64) {
+		t.Errorf("measured Co %v", measured)
+	}
+	if estimated[at["basis"]] != register.BasisEstimate || estimated[at["measured kg"]] != nil || estimated[at["kg"]] != 17.5 {
+		t.Errorf("estimated Co %v", estimated)
 	}
 }
