@@ -97,7 +97,7 @@ func TestLotEvidence(t *testing.T) {
 	}
 	// Bad weighings: exit 2, a clear error, nothing written.
 	for _, bad := range [][]string{{"--moisture", "120"}, {"--moisture", "-1"}, {"--moisture", "wet"}, {"--dry", "--moisture", "5"},
-		{"--sigma", "-2 kg"}} {
+		{"--sigma", "-2 kg"}, {"--sigma", "300 kg"}} {
 		code, _, errs := cli(t, "", append([]string{"lot", "weigh", "KR-2611", "--mass", "200 kg", "--db", db}, bad...)...)
 		if code != 2 || !strings.Contains(errs, "--") {
 			t.Errorf("%v: exit %d %s", bad, code, errs)

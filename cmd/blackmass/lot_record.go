@@ -136,6 +136,9 @@ func (o *weighFlags) weighing() (register.WeighingEvidence, error) {
 		if wg.SigmaKg, err = intake.ParseMassKg(o.sigma); err != nil {
 			return wg, usageError{fmt.Errorf("--sigma %q: %w", intake.Printable(o.sigma, 40), err)}
 		}
+		if wg.SigmaKg > wg.Kg {
+			return wg, usageError{fmt.Errorf("--sigma %q: larger than the mass weighed (%s kg)", intake.Printable(o.sigma, 40), text.Num(wg.Kg))}
+		}
 	}
 	if err := register.CheckWeighing(wg); err != nil {
 		return wg, usageError{err}
