@@ -103,6 +103,13 @@ func TestLotEvidence(t *testing.T) {
 			t.Errorf("%v: exit %d %s", bad, code, errs)
 		}
 	}
+	fresh := filepath.Join(dir, "fresh.db")
+	if code, _, _ := cli(t, "", "lot", "weigh", "KR-2611", "--mass", "200 kg", "--moisture", "120", "--db", fresh); code != 2 {
+		t.Errorf("moisture 120 %% on a new register: exit %d", code)
+	}
+	if _, err := os.Stat(fresh); err == nil {
+		t.Error("a refused weighing created the register")
+	}
 	if s2 := show(); len(s2.Weighings) != 1 || len(s2.Audit) != len(s.Audit) {
 		t.Errorf("refused weighings wrote %d weighings, %d audit rows (had %d)", len(s2.Weighings), len(s2.Audit), len(s.Audit))
 	}
