@@ -37,7 +37,7 @@ var allowedImports = map[string][]string{
 	"feed/text": {"cathode", "feed/assay", "feed/dist", "feed/intake", "feed/leach", "feed/lot", "feed/report",
 		"feed/value", "feed/recover", "feed/calibrate"},
 	"feed/sheet": {"cathode", "feed/assay", "feed/dist", "feed/intake", "feed/leach", "feed/lot", "feed/manifest",
-		"feed/report", "feed/value", "feed/recover", "feed/calibrate"},
+		"feed/report", "feed/value", "feed/recover", "feed/calibrate", "feed/register"},
 	"feed/register": {"cathode", "feed/assay", "feed/dist", "feed/intake", "feed/lot", "feed/report", "feed/value",
 		"feed/calibrate"},
 	"cmd/blackmass": {"*"},

@@ -7,6 +7,7 @@ import (
 	"errors"
 	"fmt"
 	"maps"
+	"math"
 	"slices"
 	"strings"
 	"time"
@@ -118,9 +119,19 @@ func insertDetail(tx *sql.Tx, id string, version int, rp *report.Report) error {
 			return err
 		}
 	}
+	payable := map[string]float64{}
+	if rp.Value != nil {
+		for _, e := range rp.Value.Elements {
+			payable[e.Element] = e.PayableVal.P50
+		}
+	}
 	for el, a := range rp.Elements {
-		if _, err := tx.Exec(`INSERT INTO lot_metals (lot_id, version, element, kg_p10, kg_p50, kg_p90, wt_pct_p50) VALUES (?, ?, ?, ?, ?, ?, ?)`,
-			id, version, el, a.Kg.P10, a.Kg.P50, a.Kg.P90, a.WtPct.P50); err != nil {
+		var pay sql.NullFloat64
+		if v, ok := payable[el]; ok {
+			pay = sql.NullFloat64{Float64: v, Valid: true}
+		}
+		if _, err := tx.Exec(`INSERT INTO lot_metals (lot_id, version, element, kg_p10, kg_p50, kg_p90, wt_pct_p50, payable_value)
+			VALUES (?, ?, ?, ?, ?, ?, ?, ?)`, id, version, el, a.Kg.P10, a.Kg.P50, a.Kg.P90, a.WtPct.P50, pay); err != nil {
 			return err
 		}
 	}
@@ -158,8 +169,13 @@ func (r *Register) AddAssay(ctx context.Context, id, lab, assayedOn, fileName, s
 		if err := exists(tx, id); err != nil {
 			return err
 		}
-		res, err := tx.Exec("INSERT INTO assays (lot_id, lab, assayed_on, added_at, file_name, file_sha256, content) VALUES (?, ?, ?, ?, ?, ?, ?)",
-			id, lab, on, r.now().Format(time.RFC3339), fileName, sha, content)
+		var moist, moistSigma sql.NullFloat64
+		if m := a.Moisture; m != nil {
+			moist, moistSigma = sql.NullFloat64{Float64: m.WtPct, Valid: true}, sql.NullFloat64{Float64: m.SigmaWtPct, Valid: true}
+		}
+		res, err := tx.Exec(`INSERT INTO assays (lot_id, lab, assayed_on, added_at, file_name, file_sha256, content, moisture_wt_pct,
+			moisture_sigma_wt_pct) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?)`,
+			id, lab, on, r.now().Format(time.RFC3339), fileName, sha, content, moist, moistSigma)
 		if err != nil {
 			return err
 		}
@@ -167,7 +183,12 @@ func (r *Register) AddAssay(ctx context.Context, id, lab, assayedOn, fileName, s
 			return err
 		}
 		for _, v := range a.Values {
-			if _, err := tx.Exec("INSERT INTO assay_values (assay_id, element, wt_pct, sigma_wt_pct) VALUES (?, ?, ?, ?)", aid, v.Element, v.WtPct, v.SigmaWtPct); err != nil {
+			var limit sql.NullFloat64
+			if v.Censored {
+				limit = sql.NullFloat64{Float64: v.LimitWtPct, Valid: true}
+			}
+			if _, err := tx.Exec("INSERT INTO assay_values (assay_id, element, wt_pct, sigma_wt_pct, censored, limit_wt_pct) VALUES (?, ?, ?, ?, ?, ?)",
+				aid, v.Element, v.WtPct, v.SigmaWtPct, v.Censored, limit); err != nil {
 				return err
 			}
 		}
@@ -179,23 +200,74 @@ func (r *Register) AddAssay(ctx context.Context, id, lab, assayedOn, fileName, s
 // MaxWeighKg bounds a weighing: above any lot a bench takes in at once (common practice).
 const MaxWeighKg = 1e7
 
-// Weigh records weighed black mass for a lot.
+// Weigh records weighed black mass for a lot, neither said wet nor dry.
 func (r *Register) Weigh(ctx context.Context, id, weighedOn string, kg float64, note string) error {
-	on, err := date(weighedOn)
-	if err != nil {
+	return r.RecordWeighing(ctx, id, WeighingEvidence{On: weighedOn, Kg: kg, Note: note})
+}
+
+// CheckWeighing checks a weighing before it is recorded: its date, a mass above 0 and at most
+// MaxWeighKg, its state (wet, dry or not said), a moisture from 0 to below 100 wt% of the wet
+// mass given only for a mass not weighed dry, and an uncertainty that is not negative.
+func CheckWeighing(w WeighingEvidence) error {
+	if _, err := date(w.On); err != nil {
+		return err
+	}
+	if !(w.Kg > 0) || w.Kg > MaxWeighKg {
+		return fmt.Errorf("weighed mass %v kg: want more than 0 and at most %g kg", w.Kg, float64(MaxWeighKg))
+	}
+	switch w.State {
+	case StateUnknown, StateWet, StateDry:
+	default:
+		return fmt.Errorf("weighing state %q: want wet, dry or nothing", intake.Printable(w.State, 20))
+	}
+	if m := w.MoistureWtPct; m != nil {
+		if !(*m >= 0 && *m < 100) {
+			return fmt.Errorf("moisture %v wt%%: want from 0 to below 100 wt%% of the wet mass", *m)
+		}
+		if w.State == StateDry {
+			return errors.New("a moisture for a mass weighed dry: give one or the other")
+		}
+	}
+	if !(w.SigmaKg >= 0) || math.IsInf(w.SigmaKg, 0) || w.SigmaKg > w.Kg {
+		return fmt.Errorf("weighing uncertainty %v kg: want from 0 to the mass weighed", w.SigmaKg)
+	}
+	return nil
+}
+
+// RecordWeighing records a weighing of a lot's black mass: wet or dry, its moisture (wt% of the
+// wet mass) and its standard uncertainty in kg when known (see CheckWeighing).
+func (r *Register) RecordWeighing(ctx context.Context, id string, w WeighingEvidence) error {
+	if err := CheckWeighing(w); err != nil {
 		return r.wrap(err)
 	}
-	if !(kg > 0) || kg > MaxWeighKg {
-		return r.wrap(fmt.Errorf("weighed mass %v kg: want more than 0 and at most %g kg", kg, float64(MaxWeighKg)))
+	on, _ := date(w.On)
+	var moist, sigma sql.NullFloat64
+	if w.MoistureWtPct != nil {
+		moist = sql.NullFloat64{Float64: *w.MoistureWtPct, Valid: true}
+	}
+	if w.SigmaKg > 0 {
+		sigma = sql.NullFloat64{Float64: w.SigmaKg, Valid: true}
+	}
+	state := w.State
+	if moist.Valid && state == StateUnknown {
+		state = StateWet // a moisture is of a wet mass
 	}
 	return r.wrap(r.tx(ctx, func(tx *sql.Tx) error {
 		if err := exists(tx, id); err != nil {
 			return err
 		}
-		if _, err := tx.Exec("INSERT INTO weighings (lot_id, weighed_on, kg, added_at, note) VALUES (?, ?, ?, ?, ?)", id, on, kg, r.now().Format(time.RFC3339), note); err != nil {
+		if _, err := tx.Exec(`INSERT INTO weighings (lot_id, weighed_on, kg, added_at, note, state, moisture_wt_pct, sigma_kg)
+			VALUES (?, ?, ?, ?, ?, ?, ?, ?)`, id, on, w.Kg, r.now().Format(time.RFC3339), w.Note, state, moist, sigma); err != nil {
 			return err
 		}
-		return audit(tx, r.now(), "weigh", id, fmt.Sprintf("%g kg on %s", kg, on))
+		detail := fmt.Sprintf("%g kg on %s", w.Kg, on)
+		if state != StateUnknown {
+			detail += ", " + state
+		}
+		if moist.Valid {
+			detail += fmt.Sprintf(" at %g wt%% moisture", moist.Float64)
+		}
+		return audit(tx, r.now(), "weigh", id, detail)
 	}))
 }
 
@@ -222,16 +294,20 @@ type Summary struct {
 	Received     string             `json:"received"`
 	Items        int                `json:"items"`
 	NameplateKWh float64            `json:"nameplate_kWh"`
-	BlackMassKg  float64            `json:"black_mass_kg_p50"`
-	MetalsKg     map[string]float64 `json:"metals_kg_p50"`
+	BlackMassKg  float64            `json:"black_mass_kg_p50"` // the estimate's
+	MetalsKg     map[string]float64 `json:"metals_kg_p50"`     // the estimate's; Evidence has the best
 	Chemistries  []string           `json:"chemistries"`
 	Assays       int                `json:"assays"`
 	AssayWtPct   map[string]float64 `json:"latest_assay_wt_pct,omitempty"`
 	AssayLab     string             `json:"latest_assay_lab,omitempty"`
 	WeighedKg    float64            `json:"weighed_kg,omitempty"` // the latest weighing
 	Currency     string             `json:"currency,omitempty"`
-	Payable      *float64           `json:"payable_value_p50,omitempty"`
+	Payable      *float64           `json:"payable_value_p50,omitempty"` // the estimate's
 	ReagentCost  *float64           `json:"reagent_cost_p50,omitempty"`
+	// Basis is what the lot's metal and value rest on (BasisMeasured or BasisEstimate), and
+	// Evidence the figures on it, element by element, with the estimate beside each.
+	Basis    string   `json:"basis"`
+	Evidence Evidence `json:"evidence"`
 }
 
 // Filter narrows a listing: supplier (exact), received from/to (inclusive), a chemistry held.
@@ -240,8 +316,12 @@ type Filter struct {
 }
 
 // List returns the current lots that match f, by date received then id.
-func (r *Register) List(ctx context.Context, f Filter) (_ []Summary, err error) {
-	defer func() { err = r.wrap(err) }()
+func (r *Register) List(ctx context.Context, f Filter) ([]Summary, error) {
+	out, err := r.list(ctx, f)
+	return out, r.wrap(err)
+}
+
+func (r *Register) list(ctx context.Context, f Filter) ([]Summary, error) {
 	q := `SELECT lot_id, version, supplier, received, items, nameplate_kwh, black_mass_kg, currency, payable_value, reagent_cost
 		FROM lots l WHERE current = 1`
 	var args []any
@@ -289,73 +369,78 @@ func (r *Register) List(ctx context.Context, f Filter) (_ []Summary, err error) 
 	if err := rows.Err(); err != nil {
 		return nil, err
 	}
+	if len(out) == 0 {
+		return out, nil
+	}
+	all, err := r.readCurrentEvidence(ctx)
+	if err != nil {
+		return nil, err
+	}
 	for i := range out {
-		if err := r.fill(ctx, &out[i]); err != nil {
-			return nil, err
+		le := all[out[i].ID]
+		if le == nil {
+			le = &lotEvidence{est: Estimate{Elements: map[string]EstimateElement{}}}
 		}
+		le.est.BlackMassKg = out[i].BlackMassKg
+		out[i].apply(le)
 	}
 	return out, nil
 }
 
-// fill adds a summary's metals, chemistries, assays and weighing.
-func (r *Register) fill(ctx context.Context, s *Summary) error {
+// fill adds a summary's metals, chemistries, assays and weighing, and ranks its evidence. It
+// returns the lot's assays and weighings as the ranking read them.
+func (r *Register) fill(ctx context.Context, s *Summary) ([]AssayEvidence, []WeighingEvidence, error) {
+	est, assays, weighings, err := r.readEvidence(ctx, s.ID, s.Version, s.Payable)
+	if err != nil {
+		return nil, nil, err
+	}
+	le := &lotEvidence{est: est, assays: assays, weighings: weighings}
+	err = collect(ctx, r.db, "SELECT DISTINCT chemistry FROM lot_groups WHERE lot_id = ? AND version = ? ORDER BY chemistry",
+		[]any{s.ID, s.Version}, func(rows *sql.Rows) error {
+			var c string
+			err := rows.Scan(&c)
+			le.chemistries = append(le.chemistries, c)
+			return err
+		})
+	if err != nil {
+		return nil, nil, err
+	}
+	s.apply(le)
+	return assays, weighings, nil
+}
+
+// apply fills a summary from what was read of its lot, and ranks its evidence.
+func (s *Summary) apply(le *lotEvidence) {
+	le.est.Payable = s.Payable
 	s.MetalsKg = map[string]float64{}
-	rows, err := r.db.QueryContext(ctx, "SELECT element, kg_p50 FROM lot_metals WHERE lot_id = ? AND version = ?", s.ID, s.Version)
-	if err != nil {
-		return err
+	for el, e := range le.est.Elements {
+		s.MetalsKg[el] = e.Kg.P50
 	}
-	for rows.Next() {
-		var el string
-		var kg float64
-		if err := rows.Scan(&el, &kg); err != nil {
-			rows.Close()
-			return err
-		}
-		s.MetalsKg[el] = kg
-	}
-	rows.Close()
-	rows, err = r.db.QueryContext(ctx, "SELECT DISTINCT chemistry FROM lot_groups WHERE lot_id = ? AND version = ? ORDER BY chemistry", s.ID, s.Version)
-	if err != nil {
-		return err
-	}
-	for rows.Next() {
-		var c string
-		if err := rows.Scan(&c); err != nil {
-			rows.Close()
-			return err
-		}
-		s.Chemistries = append(s.Chemistries, c)
-	}
-	rows.Close()
-	if err := r.db.QueryRowContext(ctx, "SELECT count(*) FROM assays WHERE lot_id = ?", s.ID).Scan(&s.Assays); err != nil {
-		return err
-	}
-	if s.Assays > 0 {
-		var aid int64
-		if err := r.db.QueryRowContext(ctx, "SELECT assay_id, lab FROM assays WHERE lot_id = ? ORDER BY assayed_on DESC, assay_id DESC LIMIT 1", s.ID).Scan(&aid, &s.AssayLab); err != nil {
-			return err
-		}
+	s.Chemistries = le.chemistries
+	s.Assays = len(le.assays)
+	if latest := latestAssay(le.assays); latest != nil {
+		s.AssayLab = latest.Lab
 		s.AssayWtPct = map[string]float64{}
-		rows, err = r.db.QueryContext(ctx, "SELECT element, wt_pct FROM assay_values WHERE assay_id = ?", aid)
-		if err != nil {
-			return err
+		for _, v := range latest.Values {
+			s.AssayWtPct[v.Element] = v.WtPct
 		}
-		for rows.Next() {
-			var el string
-			var v float64
-			if err := rows.Scan(&el, &v); err != nil {
-				rows.Close()
-				return err
-			}
-			s.AssayWtPct[el] = v
+	}
+	if len(le.weighings) > 0 {
+		s.WeighedKg = le.weighings[len(le.weighings)-1].Kg // ordered by date, then id
+	}
+	s.Evidence = RankEvidence(le.est, le.assays, le.weighings)
+	s.Basis = s.Evidence.Basis
+}
+
+// latestAssay is the latest assay by date, then id; nil if none.
+func latestAssay(assays []AssayEvidence) *AssayEvidence {
+	var best *AssayEvidence
+	for i := range assays {
+		if a := &assays[i]; best == nil || a.On > best.On || a.On == best.On && a.ID > best.ID {
+			best = a
 		}
-		rows.Close()
 	}
-	err = r.db.QueryRowContext(ctx, "SELECT kg FROM weighings WHERE lot_id = ? ORDER BY weighed_on DESC, weighing_id DESC LIMIT 1", s.ID).Scan(&s.WeighedKg)
-	if errors.Is(err, sql.ErrNoRows) {
-		err = nil
-	}
-	return err
+	return best
 }
 
 // Detail is everything the register holds of one lot.
@@ -374,21 +459,16 @@ type Detail struct {
 	Audit          []AuditRow      `json:"audit"`
 }
 
-// AssayRecord is one assay attached to a lot.
+// AssayRecord is one assay attached to a lot: its values (censored ones with their limit), the
+// moisture of its sample, and the file it came from.
 type AssayRecord struct {
-	ID        int64              `json:"assay_id"`
-	Lab       string             `json:"lab"`
-	AssayedOn string             `json:"assayed_on"`
-	FileName  string             `json:"file_name"`
-	WtPct     map[string]float64 `json:"wt_pct"`
+	AssayEvidence
+	FileName string             `json:"file_name"`
+	WtPct    map[string]float64 `json:"wt_pct"` // a censored value: the middle of 0..limit
 }
 
 // Weighing is one weighing of a lot's black mass.
-type Weighing struct {
-	On   string  `json:"weighed_on"`
-	Kg   float64 `json:"kg"`
-	Note string  `json:"note,omitempty"`
-}
+type Weighing = WeighingEvidence
 
 // AuditRow is one entry of the audit trail.
 type AuditRow struct {
@@ -400,10 +480,11 @@ func (r *Register) Show(ctx context.Context, id string) (_ *Detail, err error) {
 	defer func() { err = r.wrap(err) }()
 	d := &Detail{}
 	var report, settings string
+	var pay, rc sql.NullFloat64
 	err = r.db.QueryRowContext(ctx, `SELECT lot_id, version, supplier, received, items, nameplate_kwh, black_mass_kg, added_at, tool_version,
-		manifest_name, manifest_sha256, report_json, settings_json, currency FROM lots WHERE lot_id = ? AND current = 1`, id).
+		manifest_name, manifest_sha256, report_json, settings_json, currency, payable_value, reagent_cost FROM lots WHERE lot_id = ? AND current = 1`, id).
 		Scan(&d.ID, &d.Version, &d.Supplier, &d.Received, &d.Items, &d.NameplateKWh, &d.BlackMassKg, &d.AddedAt, &d.ToolVersion,
-			&d.ManifestName, &d.ManifestSHA256, &report, &settings, &d.Currency)
+			&d.ManifestName, &d.ManifestSHA256, &report, &settings, &d.Currency, &pay, &rc)
 	if errors.Is(err, sql.ErrNoRows) {
 		return nil, fmt.Errorf("lot %s: %w", intake.Printable(id, 40), ErrNoLot)
 	}
@@ -411,7 +492,14 @@ func (r *Register) Show(ctx context.Context, id string) (_ *Detail, err error) {
 		return nil, err
 	}
 	d.Report, d.Settings = json.RawMessage(report), json.RawMessage(settings)
-	if err := r.fill(ctx, &d.Summary); err != nil {
+	if pay.Valid {
+		d.Payable = &pay.Float64
+	}
+	if rc.Valid {
+		d.ReagentCost = &rc.Float64
+	}
+	assays, weighings, err := r.fill(ctx, &d.Summary)
+	if err != nil {
 		return nil, err
 	}
 	if err := r.db.QueryRowContext(ctx, "SELECT count(*) FROM lot_lines WHERE lot_id = ? AND version = ?", id, d.Version).Scan(&d.Lines); err != nil {
@@ -425,34 +513,24 @@ func (r *Register) Show(ctx context.Context, id string) (_ *Detail, err error) {
 	}); err != nil {
 		return nil, err
 	}
-	if err := collect(ctx, r.db, "SELECT assay_id, lab, assayed_on, file_name FROM assays WHERE lot_id = ? ORDER BY assayed_on, assay_id", []any{id}, func(rows *sql.Rows) error {
-		var a AssayRecord
-		err := rows.Scan(&a.ID, &a.Lab, &a.AssayedOn, &a.FileName)
-		d.AssayList = append(d.AssayList, a)
+	files := map[int64]string{}
+	if err := collect(ctx, r.db, "SELECT assay_id, file_name FROM assays WHERE lot_id = ?", []any{id}, func(rows *sql.Rows) error {
+		var aid int64
+		var name string
+		err := rows.Scan(&aid, &name)
+		files[aid] = name
 		return err
 	}); err != nil {
 		return nil, err
 	}
-	for i := range d.AssayList {
-		d.AssayList[i].WtPct = map[string]float64{}
-		if err := collect(ctx, r.db, "SELECT element, wt_pct FROM assay_values WHERE assay_id = ?", []any{d.AssayList[i].ID}, func(rows *sql.Rows) error {
-			var el string
-			var v float64
-			err := rows.Scan(&el, &v)
-			d.AssayList[i].WtPct[el] = v
-			return err
-		}); err != nil {
-			return nil, err
+	for _, a := range assays {
+		rec := AssayRecord{AssayEvidence: a, FileName: files[a.ID], WtPct: map[string]float64{}}
+		for _, v := range a.Values {
+			rec.WtPct[v.Element] = v.WtPct
 		}
+		d.AssayList = append(d.AssayList, rec)
 	}
-	if err := collect(ctx, r.db, "SELECT weighed_on, kg, note FROM weighings WHERE lot_id = ? ORDER BY weighed_on, weighing_id", []any{id}, func(rows *sql.Rows) error {
-		var w Weighing
-		err := rows.Scan(&w.On, &w.Kg, &w.Note)
-		d.Weighings = append(d.Weighings, w)
-		return err
-	}); err != nil {
-		return nil, err
-	}
+	d.Weighings = weighings
 	err = collect(ctx, r.db, "SELECT at, action, detail FROM audit WHERE lot_id = ? ORDER BY audit_id", []any{id}, func(rows *sql.Rows) error {
 		var a AuditRow
 		err := rows.Scan(&a.At, &a.Action, &a.Detail)
@@ -480,10 +558,19 @@ func collect(ctx context.Context, db *sql.DB, q string, args []any, fn func(*sql
 // Totals answers a bench's questions for a month (YYYY-MM): what was received by chemistry,
 // the metal held in the yard (every current lot), and estimate against assay per supplier.
 type Totals struct {
-	Month       string             `json:"month"`
-	ByChemistry []ChemistryTotal   `json:"received_by_chemistry"`
-	InYardKg    map[string]float64 `json:"metal_in_yard_kg_p50"`
-	BySupplier  []SupplierCheck    `json:"estimate_vs_assay_by_supplier"`
+	Month       string           `json:"month"`
+	ByChemistry []ChemistryTotal `json:"received_by_chemistry"`
+	// InYardKg is the metal of every current lot, each on its best evidence (measured kg,
+	// else the estimate's P50); InYardBasis counts the lots on each basis.
+	InYardKg    map[string]float64    `json:"metal_in_yard_kg"`
+	InYardBasis map[string]BasisCount `json:"metal_in_yard_lots_by_basis"`
+	BySupplier  []SupplierCheck       `json:"estimate_vs_assay_by_supplier"`
+}
+
+// BasisCount counts lots by what an element's figure rests on.
+type BasisCount struct {
+	Measured int `json:"assay_weighing"`
+	Estimate int `json:"estimate"`
 }
 
 // ChemistryTotal is the month's intake of one chemistry.
@@ -500,6 +587,10 @@ type SupplierCheck struct {
 	Supplier    string             `json:"supplier"`
 	AssayedLots int                `json:"assayed_lots"`
 	MeanDiffPct map[string]float64 `json:"mean_assay_minus_estimate_wt_pct"`
+	// MeanRatio is, over the lots measured (assay × dry weighed mass), the mean of measured kg
+	// over the estimate's P50 kg.
+	MeanRatio    map[string]float64 `json:"mean_measured_over_estimate_kg"`
+	MeasuredLots int                `json:"measured_lots"`
 }
 
 // MonthTotals computes the totals for month (YYYY-MM).
@@ -522,16 +613,47 @@ func (r *Register) MonthTotals(ctx context.Context, month string) (_ *Totals, er
 	if err != nil {
 		return nil, err
 	}
-	err = collect(ctx, r.db, `SELECT m.element, sum(m.kg_p50) FROM lots l JOIN lot_metals m ON m.lot_id = l.lot_id AND m.version = l.version
-		WHERE l.current = 1 GROUP BY m.element`, nil, func(rows *sql.Rows) error {
-		var el string
-		var kg float64
-		err := rows.Scan(&el, &kg)
-		t.InYardKg[el] = kg
+	// Only the lots' first columns are read: the later ones sit behind the manifest and report.
+	type current struct{ id, supplier, received string }
+	var lots []current
+	err = collect(ctx, r.db, "SELECT lot_id, supplier, received FROM lots WHERE current = 1", nil, func(rows *sql.Rows) error {
+		var c current
+		err := rows.Scan(&c.id, &c.supplier, &c.received)
+		lots = append(lots, c)
 		return err
 	})
 	if err != nil {
 		return nil, err
+	}
+	evidence, err := r.readCurrentEvidence(ctx)
+	if err != nil {
+		return nil, err
+	}
+	t.InYardBasis = map[string]BasisCount{}
+	ratios := map[string]map[string][]float64{} // supplier → element → measured/estimate
+	for _, l := range lots {
+		le := evidence[l.id]
+		if le == nil {
+			continue
+		}
+		inMonth := l.received >= from && l.received <= to
+		ev := RankEvidence(le.est, le.assays, le.weighings)
+		for _, e := range ev.Elements {
+			t.InYardKg[e.Element] += e.Kg
+			c := t.InYardBasis[e.Element]
+			if e.Basis == BasisMeasured {
+				c.Measured++
+			} else {
+				c.Estimate++
+			}
+			t.InYardBasis[e.Element] = c
+			if inMonth && e.Ratio != nil {
+				if ratios[l.supplier] == nil {
+					ratios[l.supplier] = map[string][]float64{}
+				}
+				ratios[l.supplier][e.Element] = append(ratios[l.supplier][e.Element], *e.Ratio)
+			}
+		}
 	}
 	bySup := map[string]*SupplierCheck{}
 	sums := map[string]map[string][2]float64{}
@@ -540,14 +662,14 @@ func (r *Register) MonthTotals(ctx context.Context, month string) (_ *Totals, er
 		JOIN assays a ON a.assay_id = (SELECT a2.assay_id FROM assays a2 WHERE a2.lot_id = l.lot_id ORDER BY a2.assayed_on DESC, a2.assay_id DESC LIMIT 1)
 		JOIN assay_values v ON v.assay_id = a.assay_id
 		JOIN lot_metals m ON m.lot_id = l.lot_id AND m.version = l.version AND m.element = v.element
-		WHERE l.current = 1 AND l.received BETWEEN ? AND ?`, []any{from, to}, func(rows *sql.Rows) error {
+		WHERE l.current = 1 AND l.received BETWEEN ? AND ? AND v.censored = 0`, []any{from, to}, func(rows *sql.Rows) error {
 		var sup, id, el string
 		var assayed, est float64
 		if err := rows.Scan(&sup, &id, &el, &assayed, &est); err != nil {
 			return err
 		}
 		if bySup[sup] == nil {
-			bySup[sup] = &SupplierCheck{Supplier: sup, MeanDiffPct: map[string]float64{}}
+			bySup[sup] = &SupplierCheck{Supplier: sup, MeanDiffPct: map[string]float64{}, MeanRatio: map[string]float64{}}
 			sums[sup] = map[string][2]float64{}
 		}
 		s := sums[sup][el]
@@ -565,6 +687,14 @@ func (r *Register) MonthTotals(ctx context.Context, month string) (_ *Totals, er
 			lots = max(lots, s[1])
 		}
 		c.AssayedLots = int(lots)
+		for el, rs := range ratios[sup] {
+			sum := 0.0
+			for _, x := range rs {
+				sum += x
+			}
+			c.MeanRatio[el] = sum / float64(len(rs))
+			c.MeasuredLots = max(c.MeasuredLots, len(rs))
+		}
 		t.BySupplier = append(t.BySupplier, *c)
 	}
 	return t, nil

@@ -116,6 +116,11 @@ func (r *Register) migrate(ctx context.Context, upTo int) error {
 			if _, err := tx.Exec(string(body)); err != nil {
 				return fmt.Errorf("migration %s: %w", names[v-1], err)
 			}
+			if after := afterMigration[v]; after != nil {
+				if err := after(tx); err != nil {
+					return fmt.Errorf("migration %s: %w", names[v-1], err)
+				}
+			}
 			if _, err := tx.Exec(fmt.Sprintf("PRAGMA user_version = %d", v)); err != nil {
 				return err
 			}
