@@ -47,7 +47,11 @@ func (r *Register) Add(ctx context.Context, l Lot, replace bool) (int, error) {
 		return 0, r.wrap(err)
 	}
 	received, _ := date(l.Received)
-	rep, err := json.Marshal(l.Report)
+	// The report is kept without its per-line detail: the lines are rows of lot_lines and the
+	// manifest itself is kept, so a lot of a million lines does not store them twice more.
+	head := *l.Report
+	head.Lines = nil
+	rep, err := json.Marshal(&head)
 	if err != nil {
 		return 0, r.wrap(err)
 	}
