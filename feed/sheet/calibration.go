@@ -30,15 +30,16 @@ func WriteCalibration(w io.Writer, o *calibrate.Outcome) error {
 		return err
 	}
 	bold, err := f.NewStyle(&excelize.Style{Font: &excelize.Font{Bold: true}, Fill: excelize.Fill{Type: "pattern", Pattern: 1,
-		Color: []string{"D9E2D0"}}, Border: []excelize.Border{{Type: "bottom", Color: "5B6B4E", Style: 1}}})
+		Color: []string{"D9E2D0"}}, Border: []excelize.Border{{Type: "bottom", Color: "5B6B4E", Style: 1}},
+		Alignment: &excelize.Alignment{WrapText: true, Vertical: "top"}})
 	if err != nil {
 		return err
 	}
-	last, err := calibrationLots(f, o, bold)
+	spans, err := calibrationLots(f, o, bold)
 	if err != nil {
 		return err
 	}
-	if err := calibrationSummary(f, o, bold, last); err != nil {
+	if err := calibrationSummary(f, o, bold, spans); err != nil {
 		return err
 	}
 	paper, one, auto, fit := PaperA4, 1, 0, true
@@ -59,40 +60,51 @@ func WriteCalibration(w io.Writer, o *calibrate.Outcome) error {
 	return normaliseZip(buf.Bytes(), w, nil)
 }
 
-// calibrationLots writes every lot of the fit, element by element, and returns the last row.
-func calibrationLots(f *excelize.File, o *calibrate.Outcome, hdr int) (int, error) {
+// calibrationLots writes every lot of the fit, element by element, and returns each element's rows.
+func calibrationLots(f *excelize.File, o *calibrate.Outcome, hdr int) ([]span, error) {
 	s := CalibrationLots
 	head := []any{"element", "lot", "assay kg", "estimate kg (model)", "predicted kg (other lots)", "sd kg", "z", "below detection"}
 	if err := f.SetSheetRow(s, "A1", &head); err != nil {
-		return 0, err
+		return nil, err
 	}
 	_ = f.SetCellStyle(s, "A1", "H1", hdr)
 	row := 1
+	var spans []span
 	for _, e := range o.Report.Elements {
+		if len(e.Points) == 0 {
+			continue
+		}
+		spans = append(spans, span{e.Element, row + 1, row + len(e.Points)})
 		for _, p := range e.Points {
 			row++
 			cell, _ := excelize.CoordinatesToCellName(1, row)
 			vals := []any{e.Element, p.Lot, p.MeasuredKg, p.EstimateKg, p.PredictedKg, p.SDKg, p.Z, p.Censored}
 			if err := f.SetSheetRow(s, cell, &vals); err != nil {
-				return 0, err
+				return nil, err
 			}
 		}
+	}
+	if num, err := f.NewStyle(&excelize.Style{CustomNumFmt: ptr("0.000")}); err == nil && row > 1 {
+		_ = f.SetCellStyle(s, "C2", fmt.Sprintf("G%d", row), num)
 	}
 	_ = f.SetColWidth(s, "A", "A", 9)
 	_ = f.SetColWidth(s, "B", "B", 16)
 	_ = f.SetColWidth(s, "C", "H", 14)
 	_ = f.SetPanes(s, &excelize.Panes{Freeze: true, YSplit: 1, TopLeftCell: "A2", ActivePane: "bottomLeft"})
-	return row, nil
+	return spans, nil
 }
 
+func ptr[T any](v T) *T { return &v }
+
 // calibrationSummary writes the figures per element, the factors, the lots left out, and the
-// chart of estimate against assay over the Lots sheet's rows 2 to last.
-func calibrationSummary(f *excelize.File, o *calibrate.Outcome, hdr, last int) error {
+// charts of estimate against assay over the Lots sheet's rows.
+func calibrationSummary(f *excelize.File, o *calibrate.Outcome, hdr int, spans []span) error {
 	s, c, r := CalibrationSheet, o.Calibration, o.Report
 	rows := [][]any{
 		{fmt.Sprintf("Calibration %d of register %s", c.Version, o.Register)},
-		{fmt.Sprintf("fitted %s from %d of %d assayed and weighed lots; method: %s", c.CreatedAt.Format("2006-01-02 15:04 MST"),
-			len(r.Used), r.Lots, c.Method)},
+		{fmt.Sprintf("fitted %s from %d of %d assayed and weighed lots", c.CreatedAt.Format("2006-01-02 15:04 MST"),
+			len(r.Used), r.Lots)},
+		{"method: " + c.Method},
 		{"bias: mean ln(assay/estimate), 0 for none; after: each lot predicted from the others. Coverage: share of lots whose assay fell inside the P10-P90 (80 % claimed)."},
 		{},
 		{"element", "lots", "bias before", "bias after", "coverage before", "coverage after", "lots that disagree", "not fitted because"},
@@ -111,6 +123,7 @@ func calibrationSummary(f *excelize.File, o *calibrate.Outcome, hdr, last int) e
 			rows = append(rows, []any{e.Element, fa.Family, format, fa.Mean, fa.SD, fa.PriorSD, fa.Lots})
 		}
 	}
+	factorEnd := len(rows)
 	if len(r.LeftOut) > 0 {
 		rows = append(rows, []any{}, []any{"left out", "reason"})
 		for _, l := range r.LeftOut {
@@ -126,61 +139,83 @@ func calibrationSummary(f *excelize.File, o *calibrate.Outcome, hdr, last int) e
 			return err
 		}
 	}
-	_ = f.SetCellStyle(s, "A5", "H5", hdr)
+	_ = f.SetCellStyle(s, "A6", "H6", hdr)
+	_ = f.SetRowHeight(s, 6, 30)
 	fh := fmt.Sprintf("A%d", factorHead)
 	_ = f.SetCellStyle(s, fh, fmt.Sprintf("G%d", factorHead), hdr)
 	_ = f.SetColWidth(s, "A", "A", 12)
 	_ = f.SetColWidth(s, "B", "H", 14)
-	pct := "0 %"
-	if st, err := f.NewStyle(&excelize.Style{CustomNumFmt: &pct}); err == nil {
-		_ = f.SetCellStyle(s, "E6", fmt.Sprintf("F%d", 5+len(r.Elements)), st)
+	if st, err := f.NewStyle(&excelize.Style{CustomNumFmt: ptr("0.000")}); err == nil {
+		_ = f.SetCellStyle(s, "C7", fmt.Sprintf("D%d", 6+len(r.Elements)), st)
+		_ = f.SetCellStyle(s, fmt.Sprintf("D%d", factorHead+1), fmt.Sprintf("F%d", factorEnd), st)
 	}
-	return calibrationChart(f, o, last, len(rows)+2)
+	if st, err := f.NewStyle(&excelize.Style{CustomNumFmt: ptr("0 %")}); err == nil {
+		_ = f.SetCellStyle(s, "E7", fmt.Sprintf("F%d", 6+len(r.Elements)), st)
+	}
+	if st, err := f.NewStyle(&excelize.Style{CustomNumFmt: ptr("0.0")}); err == nil {
+		_ = f.SetCellStyle(s, fmt.Sprintf("G%d", factorHead+1), fmt.Sprintf("G%d", factorEnd), st)
+	}
+	return calibrationCharts(f, o, spans, len(rows)+2)
 }
 
-// calibrationChart adds the scatter of assay against estimate, on logarithmic axes (the
-// elements span kilograms to tonnes), with the 1:1 line from the smallest to the largest value.
-func calibrationChart(f *excelize.File, o *calibrate.Outcome, last, at int) error {
-	if last < 2 {
-		return nil
-	}
-	lo, hi := math.Inf(1), 0.0
-	for _, e := range o.Report.Elements {
-		for _, p := range e.Points {
-			for _, v := range []float64{p.MeasuredKg, p.EstimateKg, p.PredictedKg} {
-				if v > 0 {
+// span is the rows of one element on the Lots sheet.
+type span struct {
+	element     string
+	first, last int
+}
+
+// calibrationCharts adds, per element, the scatter of assay against estimate (the model's, and
+// each lot's prediction from the other lots) with the 1:1 line across the element's values, two
+// charts to a row from row at. An element has a chart of its own: elements span grams to
+// tonnes, and the xlsx library draws the horizontal axis of a scatter on a linear scale only.
+func calibrationCharts(f *excelize.File, o *calibrate.Outcome, spans []span, at int) error {
+	for i, sp := range spans {
+		lo, hi := math.Inf(1), 0.0
+		for _, e := range o.Report.Elements {
+			if e.Element != sp.element {
+				continue
+			}
+			for _, p := range e.Points {
+				for _, v := range []float64{p.MeasuredKg, p.EstimateKg, p.PredictedKg} {
 					lo, hi = math.Min(lo, v), math.Max(hi, v)
 				}
 			}
 		}
+		// The series' names and the 1:1 line's two points, beside the lots.
+		r := 1 + 3*i
+		cells := [][]any{{sp.element + " 1:1", lo, hi}, {sp.element + " model estimate"}, {sp.element + " calibrated, predicted from the other lots"}}
+		for k, v := range cells {
+			if err := f.SetSheetRow(CalibrationLots, fmt.Sprintf("J%d", r+k), &v); err != nil {
+				return err
+			}
+		}
+		ref := func(col string) string {
+			return fmt.Sprintf("'%s'!$%s$%d:$%s$%d", CalibrationLots, col, sp.first, col, sp.last)
+		}
+		name := func(row int) string { return fmt.Sprintf("'%s'!$J$%d", CalibrationLots, row) }
+		marker := func(symbol, color string) excelize.ChartMarker {
+			return excelize.ChartMarker{Symbol: symbol, Size: 6, Fill: excelize.Fill{Type: "pattern", Pattern: 1, Color: []string{color}}}
+		}
+		noLine := excelize.LineOptions{Type: excelize.LineNone}
+		line := fmt.Sprintf("'%s'!$K$%d:$L$%d", CalibrationLots, r, r)
+		series := []excelize.ChartSeries{
+			{Name: name(r + 1), Categories: ref("D"), Values: ref("C"), Marker: marker("circle", "8C6D46"), Line: noLine},
+			{Name: name(r + 2), Categories: ref("E"), Values: ref("C"), Marker: marker("diamond", "3F6E8C"), Line: noLine},
+			{Name: name(r), Categories: line, Values: line, Marker: excelize.ChartMarker{Symbol: "none"},
+				Line: excelize.LineOptions{Type: excelize.LineSolid, Width: 1, Fill: excelize.Fill{Type: "pattern", Pattern: 1, Color: []string{"7F7F7F"}}}},
+		}
+		title := func(t string) excelize.ChartTitle {
+			return excelize.ChartTitle{Paragraph: []excelize.RichTextRun{{Text: t}}}
+		}
+		cell, _ := excelize.CoordinatesToCellName(1+5*(i%2), at+18*(i/2))
+		if err := f.AddChart(CalibrationSheet, cell, &excelize.Chart{Type: excelize.Scatter, Series: series,
+			Title:     title(sp.element + ": assay against estimate (kg)"),
+			XAxis:     excelize.ChartAxis{MajorGridLines: true, Title: title("estimate kg")},
+			YAxis:     excelize.ChartAxis{MajorGridLines: true, Title: title("assay kg")},
+			Legend:    excelize.ChartLegend{Position: "bottom"},
+			Dimension: excelize.ChartDimension{Width: 440, Height: 340}}); err != nil {
+			return err
+		}
 	}
-	if !(hi > 0) {
-		return nil
-	}
-	// The 1:1 line's two points, beside the lots.
-	line := []any{"1:1", lo, hi}
-	if err := f.SetSheetRow(CalibrationLots, "J1", &line); err != nil {
-		return err
-	}
-	rng := func(col string) string { return fmt.Sprintf("'%s'!$%s$2:$%s$%d", CalibrationLots, col, col, last) }
-	marker := func(symbol, color string) excelize.ChartMarker {
-		return excelize.ChartMarker{Symbol: symbol, Size: 6, Fill: excelize.Fill{Type: "pattern", Pattern: 1, Color: []string{color}}}
-	}
-	noLine := excelize.LineOptions{Type: excelize.LineNone}
-	series := []excelize.ChartSeries{
-		{Name: "model estimate", Categories: rng("D"), Values: rng("C"), Marker: marker("circle", "8C6D46"), Line: noLine},
-		{Name: "calibrated, predicted from the other lots", Categories: rng("E"), Values: rng("C"), Marker: marker("diamond", "3F6E8C"), Line: noLine},
-		{Name: "1:1", Categories: fmt.Sprintf("'%s'!$K$1:$L$1", CalibrationLots), Values: fmt.Sprintf("'%s'!$K$1:$L$1", CalibrationLots),
-			Marker: excelize.ChartMarker{Symbol: "none"}, Line: excelize.LineOptions{Width: 1}},
-	}
-	title := func(t string) excelize.ChartTitle {
-		return excelize.ChartTitle{Paragraph: []excelize.RichTextRun{{Text: t}}}
-	}
-	cell, _ := excelize.CoordinatesToCellName(1, at)
-	return f.AddChart(CalibrationSheet, cell, &excelize.Chart{Type: excelize.Scatter, Series: series,
-		Title:     title("Assay against estimate, every element (kg)"),
-		XAxis:     excelize.ChartAxis{LogBase: 10, MajorGridLines: true, Title: title("estimate kg")},
-		YAxis:     excelize.ChartAxis{LogBase: 10, MajorGridLines: true, Title: title("assay kg")},
-		Legend:    excelize.ChartLegend{Position: "bottom"},
-		Dimension: excelize.ChartDimension{Width: 720, Height: 480}})
+	return nil
 }
