@@ -91,8 +91,8 @@ func runCalibrate(w io.Writer, o *calibrateOptions) error {
 	opt.Keep, opt.Exclude = o.keep, o.exclude
 	c, rep, err := calibrate.Fit(lots, opt)
 	if errors.Is(err, calibrate.ErrTooFewLots) {
-		return fmt.Errorf("register %s: %w; record more lots with lot add, lot assay and lot weigh (%d assayed and weighed lots could not take part)",
-			reg.Path(), err, len(skipped))
+		return fmt.Errorf("register %s: %w; record more lots with lot add, lot assay and lot weigh "+
+			"(%d assayed and weighed lots could not take part)", reg.Path(), err, len(skipped))
 	}
 	if err != nil {
 		return fmt.Errorf("register %s: %w", reg.Path(), err)
@@ -134,7 +134,8 @@ func openExisting(path string) (*register.Register, error) {
 // calibratedFlags binds --calibrated (and, unless the command has its own, --db) to an estimate.
 func bindCalibrated(cmd *cobra.Command, o *estimateOptions, db *string) {
 	fl := cmd.Flags()
-	fl.StringVar(&o.calibrated, "calibrated", "", "scale the estimate by a calibration of the register (--db): the latest, or --calibrated=N for version N")
+	fl.StringVar(&o.calibrated, "calibrated", "",
+		"scale the estimate by a calibration of the register (--db): the latest, or --calibrated=N for version N")
 	fl.Lookup("calibrated").NoOptDefVal = "latest"
 	if db == nil {
 		db = new(string)

@@ -71,7 +71,8 @@ func seedRegister(w io.Writer, o *estimateOptions, _ []byte) (err error) {
 			return err
 		}
 		asum := sha256.Sum256(l.Assay)
-		if _, err := reg.AddAssay(ctx, l.ID, "INVENTED demo lab", l.AssayedOn, l.AssayName, hex.EncodeToString(asum[:]), l.Assay, a); err != nil {
+		_, err = reg.AddAssay(ctx, l.ID, "INVENTED demo lab", l.AssayedOn, l.AssayName, hex.EncodeToString(asum[:]), l.Assay, a)
+		if err != nil {
 			return err
 		}
 		if err := reg.Weigh(ctx, l.ID, l.WeighedOn, l.WeighedKg, "INVENTED demo weighing, dry"); err != nil {
@@ -85,7 +86,8 @@ func seedRegister(w io.Writer, o *estimateOptions, _ []byte) (err error) {
 	for _, el := range slices.Sorted(maps.Keys(run.DemoTruth)) {
 		truth = append(truth, fmt.Sprintf("%s ×%.2f", el, run.DemoTruth[el]))
 	}
-	fmt.Fprintf(w, "register %s seeded with %d INVENTED lots, each with an invented manifest, assay and weighing\n", reg.Path(), len(lots))
+	fmt.Fprintf(w, "register %s seeded with %d INVENTED lots, each with an invented manifest, assay and weighing\n",
+		reg.Path(), len(lots))
 	fmt.Fprintf(w, "drawn from an invented bench whose black mass differs from the model by %s (every chemistry and format)\n",
 		strings.Join(truth, ", "))
 	for _, s := range slips {

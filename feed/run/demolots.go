@@ -84,7 +84,8 @@ func DemoLots(t *Tables, o Options, n int, seed uint64, slipAt int) ([]DemoLot, 
 		bm := rep.BlackMassKg
 		d.WeighedKg = math.Round(10*bm.P50*scatter(statLike{bm.P10, bm.P50, bm.P90})) / 10
 		var b strings.Builder
-		fmt.Fprintf(&b, "# INVENTED demo assay of lot %s by an invented lab: drawn from a \"true\" bench that differs from the model\n", d.ID)
+		fmt.Fprintf(&b, "# INVENTED demo assay of lot %s by an invented lab: drawn from a \"true\" bench "+
+			"that differs from the model\n", d.ID)
 		b.WriteString("element,value,unit,uncertainty\n")
 		slipped := false
 		for _, el := range []string{"Co", "Ni", "Cu", "Mn", "Al", "Li"} {

@@ -105,12 +105,14 @@ func calibrationSummary(f *excelize.File, o *calibrate.Outcome, hdr int, spans [
 		{fmt.Sprintf("fitted %s from %d of %d assayed and weighed lots", c.CreatedAt.Format("2006-01-02 15:04 MST"),
 			len(r.Used), r.Lots)},
 		{"method: " + c.Method},
-		{"bias: mean ln(assay/estimate), 0 for none; after: each lot predicted from the others. Coverage: share of lots whose assay fell inside the P10-P90 (80 % claimed)."},
+		{"bias: mean ln(assay/estimate), 0 for none; after: each lot predicted from the others. " +
+			"Coverage: share of lots whose assay fell inside the P10-P90 (80 % claimed)."},
 		{},
 		{"element", "lots", "bias before", "bias after", "coverage before", "coverage after", "lots that disagree", "not fitted because"},
 	}
 	for _, e := range r.Elements {
-		rows = append(rows, []any{e.Element, e.Lots, e.BiasBefore, e.BiasAfter, e.CoverageBefore, e.CoverageAfter, len(e.Disagree), e.Skipped})
+		rows = append(rows, []any{e.Element, e.Lots, e.BiasBefore, e.BiasAfter, e.CoverageBefore, e.CoverageAfter,
+			len(e.Disagree), e.Skipped})
 	}
 	rows = append(rows, []any{}, []any{"element", "chemistry", "format", "factor", "sd", "prior sd", "lots"})
 	factorHead := len(rows)
@@ -183,7 +185,8 @@ func calibrationCharts(f *excelize.File, o *calibrate.Outcome, spans []span, at 
 		}
 		// The series' names and the 1:1 line's two points, beside the lots.
 		r := 1 + 3*i
-		cells := [][]any{{sp.element + " 1:1", lo, hi}, {sp.element + " model estimate"}, {sp.element + " calibrated, predicted from the other lots"}}
+		cells := [][]any{{sp.element + " 1:1", lo, hi}, {sp.element + " model estimate"},
+			{sp.element + " calibrated, predicted from the other lots"}}
 		for k, v := range cells {
 			if err := f.SetSheetRow(CalibrationLots, fmt.Sprintf("J%d", r+k), &v); err != nil {
 				return err
@@ -202,7 +205,8 @@ func calibrationCharts(f *excelize.File, o *calibrate.Outcome, spans []span, at 
 			{Name: name(r + 1), Categories: ref("D"), Values: ref("C"), Marker: marker("circle", "8C6D46"), Line: noLine},
 			{Name: name(r + 2), Categories: ref("E"), Values: ref("C"), Marker: marker("diamond", "3F6E8C"), Line: noLine},
 			{Name: name(r), Categories: line, Values: line, Marker: excelize.ChartMarker{Symbol: "none"},
-				Line: excelize.LineOptions{Type: excelize.LineSolid, Width: 1, Fill: excelize.Fill{Type: "pattern", Pattern: 1, Color: []string{"7F7F7F"}}}},
+				Line: excelize.LineOptions{Type: excelize.LineSolid, Width: 1,
+					Fill: excelize.Fill{Type: "pattern", Pattern: 1, Color: []string{"7F7F7F"}}}},
 		}
 		title := func(t string) excelize.ChartTitle {
 			return excelize.ChartTitle{Paragraph: []excelize.RichTextRun{{Text: t}}}

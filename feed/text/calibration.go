@@ -42,7 +42,8 @@ func WriteCalibration(w io.Writer, o *calibrate.Outcome) {
 			if format == "" {
 				format = "(others pooled)"
 			}
-			fmt.Fprintf(tw, "%s\t%s\t%s\t%.3f\t%.3f\t%.3f\t%.1f\t\n", e.Element, intake.Printable(f.Family, 40), format, f.Mean, f.SD, f.PriorSD, f.Lots)
+			fmt.Fprintf(tw, "%s\t%s\t%s\t%.3f\t%.3f\t%.3f\t%.1f\t\n", e.Element, intake.Printable(f.Family, 40), format,
+				f.Mean, f.SD, f.PriorSD, f.Lots)
 		}
 	}
 	_ = tw.Flush()
@@ -59,7 +60,8 @@ func WriteCalibration(w io.Writer, o *calibrate.Outcome) {
 				intake.Printable(d.Lot, 64), e.Element, Num(d.MeasuredKg), Num(d.PredictedKg), Num(d.SDKg), d.Z))
 		}
 		for _, d := range e.Unexpected {
-			dis = append(dis, fmt.Sprintf("  %s %s: assay %s kg where the model expects none", intake.Printable(d.Lot, 64), e.Element, Num(d.MeasuredKg)))
+			dis = append(dis, fmt.Sprintf("  %s %s: assay %s kg where the model expects none", intake.Printable(d.Lot, 64),
+				e.Element, Num(d.MeasuredKg)))
 		}
 	}
 	if len(dis) > 0 {
