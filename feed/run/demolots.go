@@ -52,9 +52,9 @@ var demoLines = []demoLine{
 // its true elements are each group's estimate times DemoTruth's factor, scattered log-normally
 // by the estimate's own relative spread (one draw per lot, shared by its groups and elements, as
 // the model's parameters are); its weighing is the black mass scattered the same way; its assay is the true
-// wt% with the invented lab's noise. The lot at slipAt (1-based; 0 none) reports its cobalt
-// (or, where ten times its cobalt would exceed 60 wt%, the next of Ni, Cu, Mn) ten times too
-// high: a unit slip the calibration must catch.
+// wt% with the invented lab's noise. The lot at slipAt (1-based; 0 none) reports its cobalt (or,
+// without cobalt, the first it holds of Ni, Cu, Mn, Al, Li) ten times too low, a decimal slip the
+// calibration must catch.
 func DemoLots(t *Tables, o Options, n int, seed uint64, slipAt int) ([]DemoLot, error) {
 	r := rand.New(rand.NewPCG(seed, 2611))
 	start := time.Date(2026, 6, 1, 0, 0, 0, 0, time.UTC)
@@ -103,10 +103,10 @@ func DemoLots(t *Tables, o Options, n int, seed uint64, slipAt int) ([]DemoLot, 
 				continue
 			}
 			wt := 100 * trueKg / d.WeighedKg * (1 + demoAssayRelSD*r.NormFloat64())
-			if i+1 == slipAt && !slipped && 10*wt < 60 { // the first element a tenfold slip keeps plausible
-				wt *= 10
+			if i+1 == slipAt && !slipped {
+				wt /= 10
 				slipped = true
-				d.Slip = el + " reported ten times too high (a unit slip)"
+				d.Slip = el + " reported ten times too low (a decimal slip)"
 			}
 			fmt.Fprintf(&b, "%s,%.3g,wt%%,%.2g\n", el, wt, demoAssayRelSD*wt)
 		}
