@@ -121,7 +121,7 @@ func newDemoCmd() *cobra.Command {
 			}
 			o.demo = true
 			if o.seedReg != "" {
-				return seedRegister(cmd.OutOrStdout(), o, b)
+				return seedRegister(cmd.OutOrStdout(), o)
 			}
 			return runEstimate(cmd.OutOrStdout(), o, demoFile, bytes.NewReader(b))
 		},

@@ -28,7 +28,7 @@ const (
 // seedRegister writes a new register of invented lots, each with an invented assay and
 // weighing drawn from run.DemoTruth, for trying calibrate. It never touches an existing file,
 // and removes what it made if a step fails.
-func seedRegister(w io.Writer, o *estimateOptions, _ []byte) (err error) {
+func seedRegister(w io.Writer, o *estimateOptions) (err error) {
 	path := o.seedReg
 	if o.calibrated != "" || o.xlsxPath != "" || o.asJSON {
 		return usageError{errors.New("--seed-register writes a register only: leave out --calibrated, --xlsx and --json")}
