@@ -47,6 +47,11 @@ type estimateOptions struct {
 	quiet     bool   // the summary only
 	paper     string // the workbook's paper: a4 or letter
 	command   string // the command's name, for the report's header
+	// calibrated names the calibration to apply ("latest" or a version; "" none), from the
+	// register at calDB.
+	calibrated string
+	calDB      *string
+	seedReg    string // demo: seed this register with invented lots instead of estimating
 }
 
 func (o *estimateOptions) bind(cmd *cobra.Command) {
@@ -90,6 +95,7 @@ func newEstimateCmd() *cobra.Command {
 		},
 	}
 	o.bind(cmd)
+	bindCalibrated(cmd, o, nil)
 	return cmd
 }
 
@@ -114,10 +120,15 @@ func newDemoCmd() *cobra.Command {
 				o.supplier = demoSupplier
 			}
 			o.demo = true
+			if o.seedReg != "" {
+				return seedRegister(cmd.OutOrStdout(), o)
+			}
 			return runEstimate(cmd.OutOrStdout(), o, demoFile, bytes.NewReader(b))
 		},
 	}
 	o.bind(cmd)
+	bindCalibrated(cmd, o, nil)
+	cmd.Flags().StringVar(&o.seedReg, "seed-register", "", "write a new register of invented, assayed and weighed lots (for trying calibrate)")
 	return cmd
 }
 
@@ -191,7 +202,7 @@ func (o *estimateOptions) runOptions() (*run.Tables, run.Options, error) {
 		ro.MaxLines = sheet.MaxLines
 		ro.MaxLinesReason = "they do not fit the workbook's Lines sheet: add --no-lines to leave the per-line sheet out, or split the manifest"
 	}
-	return t, ro, nil
+	return t, ro, o.loadCalibration(&ro)
 }
 
 // demoPrices is the embedded, invented price file of the demo.

@@ -13,7 +13,7 @@ var flagGroups = []struct {
 	names []string
 }{
 	{"Input", []string{"sheet", "unknown", "ignore-column", "catalog", "prior", "lot", "supplier", "received", "replace", "mass", "form"}},
-	{"Model", []string{"seed", "samples", "candidates", "bootstrap", "flag-sigma"}},
+	{"Model", []string{"seed", "samples", "candidates", "bootstrap", "flag-sigma", "calibrated", "db"}},
 	{"Leach", []string{"plan", "route", "acid-strength", "acid-excess", "free-acid", "acid-molarity", "reductant", "h2o2-strength", "h2o2-excess",
 		"h2o2-vol-pct", "reductant-g-per-l", "temperature", "pulp-density", "liquor-volume", "grow-volume", "extraction"}},
 	{"Costs and value", []string{"acid-price", "h2o2-price", "currency", "containers", "prices"}},

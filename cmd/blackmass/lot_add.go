@@ -34,6 +34,7 @@ func newLotAddCmd(lo *lotOptions) *cobra.Command {
 		},
 	}
 	o.bind(cmd)
+	bindCalibrated(cmd, o, &lo.dbPath)
 	cmd.Flags().StringVar(&received, "received", "", "date the lot was received, YYYY-MM-DD (default today)")
 	cmd.Flags().BoolVar(&replace, "replace", false, "record a new version of a lot id already in the register (the old one is kept)")
 	return cmd

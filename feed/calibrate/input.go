@@ -44,6 +44,13 @@ type Lot struct {
 	Measures []Measure `json:"measures"`
 }
 
+// Skipped is an assayed, weighed lot that could not be made into a Lot, and why; a caller
+// reading lots reports it beside the fit.
+type Skipped struct {
+	Lot    string `json:"lot_id"`
+	Reason string `json:"reason"`
+}
+
 // Options controls a fit. Start from DefaultOptions.
 type Options struct {
 	// MinLots is the number of usable assayed lots below which no calibration is fitted (and

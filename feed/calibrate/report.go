@@ -35,6 +35,9 @@ type ElementReport struct {
 	CoverageAfter  float64 `json:"coverage_after"`
 	// Disagree names the lots kept in the fit whose leave-one-out |z| exceeds DisagreeZ.
 	Disagree []Residual `json:"disagree,omitempty"`
+	// Points are every lot in the fit: measured against the model's estimate and against the
+	// prediction from the other lots, for a chart of estimate against assay.
+	Points []Residual `json:"points,omitempty"`
 	// Unexpected names lots where the model expects none of the element and the assay found
 	// some (z against the assay's uncertainty); they carry no information on the factors.
 	Unexpected []Residual `json:"unexpected,omitempty"`
@@ -48,6 +51,7 @@ type Residual struct {
 	PredictedKg float64 `json:"predicted_kg"` // from the other lots
 	SDKg        float64 `json:"sd_kg"`        // predictive sd of the measured value
 	Z           float64 `json:"z"`
+	Censored    bool    `json:"censored,omitempty"` // measured is half the limit of detection
 }
 
 func (s *fitState) report(fits map[string]*elementFit) *Report {
@@ -85,9 +89,11 @@ func (s *fitState) grade(f *elementFit, er *ElementReport) {
 	inB, inA := 0, 0
 	for i, o := range f.obs {
 		p := f.loo[i]
+		res := Residual{Lot: s.lots[o.lot].ID, MeasuredKg: o.y, EstimateKg: o.est, PredictedKg: p.mean, SDKg: p.sd, Z: p.z,
+			Censored: o.censored}
+		er.Points = append(er.Points, res)
 		if !o.censored && math.Abs(p.z) > s.opt.DisagreeZ {
-			er.Disagree = append(er.Disagree, Residual{Lot: s.lots[o.lot].ID, MeasuredKg: o.y, EstimateKg: o.est,
-				PredictedKg: p.mean, SDKg: p.sd, Z: p.z})
+			er.Disagree = append(er.Disagree, res)
 		}
 		if o.censored {
 			er.Censored++
@@ -132,4 +138,13 @@ func mean(x []float64) float64 {
 		s += v
 	}
 	return s / float64(len(x))
+}
+
+// Outcome is one calibration as a command shows it: where its lots came from, the calibration
+// (with the version it was saved as), its report, and the lots that could not take part.
+type Outcome struct {
+	Register    string       `json:"register"`
+	Calibration *Calibration `json:"calibration"`
+	Report      *Report      `json:"report"`
+	Skipped     []Skipped    `json:"skipped,omitempty"`
 }

@@ -23,7 +23,17 @@ type Samples struct {
 	comp     *compounds
 	groupCAM [][]float64 // [group][sample] kg
 	groupBM  [][]float64
+	groupEl  []map[string]dist.Stat // [group] element → kg
 }
+
+// FactorKey names one factor on what reaches the black mass: an element from the lines of one
+// (chemistry, format) group.
+type FactorKey struct{ Element, Chemistry, Format string }
+
+// Factors gives, for each key, a factor per sample ([key][sample], or a one-element slice per key
+// when the drawer has no samples), drawn from the drawer's seeded streams. A calibration supplies
+// them; the Monte Carlo multiplies each sample's kg of an element from a group by its factor.
+type Factors func(keys []FactorKey, d *dist.Drawer) [][]float64
 
 // Result is the lot's part of a report: what the manifest lists, the black mass, its elements
 // and compounds, the groups, labels and lines, with the model's parameters and warnings.
@@ -54,6 +64,13 @@ const (
 // Estimate runs the Monte Carlo over the lot's groups with the seed given and summarises the
 // draws: the lot's part of the report, and the draws themselves for the later stages.
 func (l *Lot) Estimate(seed uint64, samples int) (*Result, *Samples, error) {
+	return l.EstimateWith(seed, samples, nil)
+}
+
+// EstimateWith is Estimate with factors on what reaches the black mass, per element and group
+// (nil: none). The factors scale the elements (and so their wt%, the value and the groups'
+// elements); the compounds, the black mass and the leach that reuses them stay as modelled.
+func (l *Lot) EstimateWith(seed uint64, samples int, f Factors) (*Result, *Samples, error) {
 	if samples < MinSamples || samples > MaxSamples {
 		return nil, nil, fmt.Errorf("samples must be from %d to %d, got %d", MinSamples, MaxSamples, samples)
 	}
@@ -64,15 +81,24 @@ func (l *Lot) Estimate(seed uint64, samples int) (*Result, *Samples, error) {
 		return nil, nil, errors.New("the lot has no lines")
 	}
 	ps := newParamSet(l.model, seed, samples)
-	s := l.draw(ps, samples)
+	s := l.draw(ps, samples, l.factorDraws(f, ps.d))
 	s.Formulas, s.ElementNames, s.Draws = l.comp.formulas, l.comp.elements, ps.d
 	return l.result(s), s, nil
 }
 
 // draw runs the Monte Carlo: n samples of every group's black mass by compound, then the
 // elements. Its cost is groups × samples, whatever the number of lines.
-func (l *Lot) draw(ps *paramSet, n int) *Samples {
+//
+// Each group's elements are summed sample by sample for the group's own summary; with factors
+// (fac[group][element][sample]) the lot's elements are those sums times the factors, otherwise
+// they follow from the lot's compounds.
+func (l *Lot) draw(ps *paramSet, n int, fac [][][]float64) *Samples {
 	nc := l.comp.n()
+	ne := len(l.comp.elements)
+	s0 := make([][]float64, ne) // one group's elements, [element][sample] kg
+	for e := range s0 {
+		s0[e] = make([]float64, n)
+	}
 	s := &Samples{N: n, comp: l.comp, Compounds: make([][]float64, nc), BlackMass: make([]float64, n)}
 	for c := range s.Compounds {
 		s.Compounds[c] = make([]float64, n)
@@ -86,6 +112,10 @@ func (l *Lot) draw(ps *paramSet, n int) *Samples {
 		// Only the group's own compounds can be non-zero: the fixed ones and its cathodes. Summing
 		// just those keeps the cost per group independent of how many chemistries the lot holds.
 		touched := append(fixedIndices(), g.camIdx...)
+		terms := l.elementTerms(touched)
+		for _, t := range terms {
+			clear(s0[t.e])
+		}
 		for i := range n {
 			for _, c := range touched {
 				bm[c] = 0
@@ -100,17 +130,19 @@ func (l *Lot) draw(ps *paramSet, n int) *Samples {
 				tot += m
 			}
 			cam[i], gbm[i] = b.cam/1000, tot
+			for _, t := range terms {
+				s0[t.e][i] += bm[t.c] / 1000 * t.f
+			}
 		}
 		s.groupCAM, s.groupBM = append(s.groupCAM, cam), append(s.groupBM, gbm)
-	}
-	ne := len(l.comp.elements)
-	s.Elements = make([][]float64, ne)
-	for e := range ne {
-		s.Elements[e] = make([]float64, n)
+		s.groupEl = append(s.groupEl, l.groupElements(s, s0, terms, fac))
 	}
 	for c, fr := range l.comp.fractions {
 		for i, m := range s.Compounds[c] {
 			s.BlackMass[i] += m
+			if fac != nil {
+				continue
+			}
 			for e, f := range fr {
 				if f != 0 {
 					s.Elements[e][i] += m * f
@@ -119,6 +151,74 @@ func (l *Lot) draw(ps *paramSet, n int) *Samples {
 		}
 	}
 	return s
+}
+
+// term is one element of one compound: kg of element e per kg of compound c.
+type term struct {
+	c, e int
+	f    float64
+}
+
+// elementTerms lists the non-zero element fractions of the compounds given.
+func (l *Lot) elementTerms(cs []int) []term {
+	var out []term
+	for _, c := range cs {
+		for e, f := range l.comp.fractions[c] {
+			if f != 0 {
+				out = append(out, term{c, e, f})
+			}
+		}
+	}
+	return out
+}
+
+// groupElements summarises one group's elements (s0, [element][sample] kg) and, with factors
+// (fac[group][element][sample]), adds them times their factors to the lot's elements.
+func (l *Lot) groupElements(s *Samples, s0 [][]float64, terms []term, fac [][][]float64) map[string]dist.Stat {
+	if s.Elements == nil {
+		s.Elements = make([][]float64, len(l.comp.elements))
+		for e := range s.Elements {
+			s.Elements[e] = make([]float64, s.N)
+		}
+	}
+	gi := len(s.groupEl)
+	out := map[string]dist.Stat{}
+	for _, t := range terms {
+		sym := l.comp.elements[t.e]
+		if _, done := out[sym]; done {
+			continue
+		}
+		out[sym] = dist.Summarise(s0[t.e])
+		if fac == nil {
+			continue
+		}
+		f := fac[gi][t.e]
+		for i, kg := range s0[t.e] {
+			s.Elements[t.e][i] += kg * f[i%len(f)]
+		}
+	}
+	return out
+}
+
+// factorDraws draws the factors of every (element, group) of the lot, [group][element][sample];
+// nil without factors.
+func (l *Lot) factorDraws(f Factors, d *dist.Drawer) [][][]float64 {
+	if f == nil {
+		return nil
+	}
+	ne := len(l.comp.elements)
+	keys := make([]FactorKey, 0, len(l.order)*ne)
+	for _, g := range l.order {
+		for _, el := range l.comp.elements {
+			keys = append(keys, FactorKey{Element: el, Chemistry: g.chem.Key, Format: g.format.String()})
+		}
+	}
+	draws := f(keys, d)
+	out := make([][][]float64, len(l.order))
+	for gi := range out {
+		out[gi] = draws[gi*ne : (gi+1)*ne]
+	}
+	return out
 }
 
 // result summarises the draws with the lot's counts, labels and warnings.
@@ -150,7 +250,7 @@ func (l *Lot) result(s *Samples) *Result {
 		}
 		r.Groups = append(r.Groups, GroupResult{Chemistry: g.chem.Key, Components: keys, Format: g.format.String(), Lines: g.lines, Items: g.items,
 			NameplateKWh: dist.Round(g.energyWh/1000, 6), ChargeOnlyAh: dist.Round(g.chargeAh, 6), MassOnlyKg: dist.Round(g.massOnlyKg, 6),
-			CathodeKg: dist.Summarise(s.groupCAM[gi]), BlackMassKg: dist.Summarise(s.groupBM[gi])})
+			CathodeKg: dist.Summarise(s.groupCAM[gi]), BlackMassKg: dist.Summarise(s.groupBM[gi]), ElementsKg: s.groupEl[gi]})
 	}
 	r.Parameters = l.parameters()
 	r.ElementOrder = cathode.SortForDisplay(l.comp.elements)

@@ -43,4 +43,7 @@ type GroupResult struct {
 	MassOnlyKg   float64   `json:"mass_only_kg,omitempty"` // items known by weight only
 	CathodeKg    dist.Stat `json:"cathode_active_kg"`
 	BlackMassKg  dist.Stat `json:"black_mass_kg"`
+	// ElementsKg is the kg of each element the group's lines send to the black mass, as modelled
+	// (a calibration's factors scale the lot's elements, not these): a calibration reads them.
+	ElementsKg map[string]dist.Stat `json:"elements_kg,omitempty"`
 }

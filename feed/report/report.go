@@ -3,6 +3,8 @@
 package report
 
 import (
+	"time"
+
 	"blackmass/feed/assay"
 	"blackmass/feed/dist"
 	"blackmass/feed/leach"
@@ -58,4 +60,16 @@ type Report struct {
 	Safety     []string             `json:"safety"`
 	// ElementOrder lists the element symbols in display order (metals first).
 	ElementOrder []string `json:"element_order"`
+	// Calibration names the calibration the elements were scaled by; nil: the model's own.
+	Calibration *CalibrationUse `json:"calibration,omitempty"`
+}
+
+// CalibrationUse names a calibration a report used: its version in the register, the
+// register's file, when it was fitted, from how many lots, for which elements.
+type CalibrationUse struct {
+	Version   int       `json:"version"`
+	Register  string    `json:"register,omitempty"`
+	CreatedAt time.Time `json:"created_at"`
+	Lots      int       `json:"lots"`
+	Elements  []string  `json:"elements"`
 }

@@ -12,6 +12,7 @@ import (
 
 	"blackmass/cathode"
 	"blackmass/feed/assay"
+	"blackmass/feed/calibrate"
 	"blackmass/feed/intake"
 	"blackmass/feed/leach"
 	"blackmass/feed/lot"
@@ -55,6 +56,12 @@ type Options struct {
 	Assay     *assay.Assay
 	FlagSigma float64
 	Mix       *MixOptions
+	// Calibration, when given, multiplies what reaches the black mass, per element and
+	// (chemistry, format) group, by factors drawn from its posterior (seeded like every other
+	// parameter); CalibrationSource names where it was read (the register's file). The report
+	// names it; without it nothing is scaled.
+	Calibration       *calibrate.Calibration
+	CalibrationSource string
 }
 
 // MixOptions are the settings of the mix inference: the candidate chemistries (nil: the lot's
@@ -140,7 +147,7 @@ func Estimate(t *Tables, o Options, m Manifest) (*report.Report, error) {
 	if err != nil {
 		return nil, err
 	}
-	res, s, err := l.Estimate(o.Seed, o.Samples)
+	res, s, err := l.EstimateWith(o.Seed, o.Samples, calibrationFactors(o.Calibration))
 	if err != nil {
 		return nil, err
 	}
@@ -149,6 +156,7 @@ func Estimate(t *Tables, o Options, m Manifest) (*report.Report, error) {
 	in.UnknownAsPrior = o.UnknownAsPrior
 	in.Sheet, in.Sheets, in.HeaderLine, in.IgnoredColumns = info.Sheet, info.Sheets, info.HeaderLine, info.IgnoredColumns
 	r := fromLot(in, res)
+	calibrated(r, o)
 	if len(info.Sheets) > 1 {
 		r.Warnings = append([]string{fmt.Sprintf("read sheet %q of %s", info.Sheet, strings.Join(info.Sheets, ", "))}, r.Warnings...)
 	}
