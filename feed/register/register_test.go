@@ -108,7 +108,9 @@ func TestRoundTrip(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	want, _ := json.Marshal(l.Report)
+	head := *l.Report // kept without its lines, which lot_lines holds
+	head.Lines = nil
+	want, _ := json.Marshal(&head)
 	if string(d.Report) != string(want) {
 		t.Errorf("report changed on the way through the register")
 	}
