@@ -5,9 +5,9 @@ import (
 	"database/sql"
 	"encoding/json"
 	"fmt"
-	"maps"
 	"math"
 	"slices"
+	"strings"
 
 	"blackmass/feed/calibrate"
 	"blackmass/feed/dist"
@@ -15,36 +15,30 @@ import (
 	"blackmass/feed/report"
 )
 
-// WeighRelSD is the relative standard uncertainty taken for a weighing of black mass: a floor
-// scale reads to a fraction of a per cent, and what the bag holds beside the fines (dust lost,
-// a wet lump) adds about as much again (1 %, common practice).
-const WeighRelSD = 0.01
-
 // CalibrationLots reads, for every current lot with an assay and a weighing, what a calibration
-// fits: per assayed element, the measured kg (the latest assay's wt% times the latest weighing,
-// taken as the dry black mass, with both uncertainties) against the estimate's kg from each
-// (chemistry, format) group of the lot (P50, and the sd its P10-P90 implies). Lots recorded
+// fits: per element measured on the lot's best evidence (RankEvidence: its assays combined,
+// times the dry black mass of its latest weighing, with both uncertainties), the measured kg
+// against the estimate's kg from each (chemistry, format) group of the lot (P50, and the sd its
+// P10-P90 implies). Below-limit results, and lots whose dry mass is not known (a wet weighing
+// with no moisture), say too little for a factor and are left out, the lots named. Lots recorded
 // before the estimate gave each group's elements are skipped unless they hold a single group.
 func (r *Register) CalibrationLots(ctx context.Context) (_ []calibrate.Lot, _ []calibrate.Skipped, err error) {
 	defer func() { err = r.wrap(err) }()
-	type row struct {
-		id, report string
-		kg         float64
-		assay      int64
-	}
+	type row struct{ id, report string }
 	var rows []row
-	err = collect(ctx, r.db, `SELECT l.lot_id, l.report_json,
-		(SELECT w.kg FROM weighings w WHERE w.lot_id = l.lot_id ORDER BY w.weighed_on DESC, w.weighing_id DESC LIMIT 1),
-		(SELECT a.assay_id FROM assays a WHERE a.lot_id = l.lot_id ORDER BY a.assayed_on DESC, a.assay_id DESC LIMIT 1)
-		FROM lots l WHERE l.current = 1
+	err = collect(ctx, r.db, `SELECT l.lot_id, l.report_json FROM lots l WHERE l.current = 1
 		AND EXISTS (SELECT 1 FROM weighings w WHERE w.lot_id = l.lot_id)
 		AND EXISTS (SELECT 1 FROM assays a WHERE a.lot_id = l.lot_id)
 		ORDER BY l.received, l.lot_id`, nil, func(rs *sql.Rows) error {
 		var x row
-		err := rs.Scan(&x.id, &x.report, &x.kg, &x.assay)
+		err := rs.Scan(&x.id, &x.report)
 		rows = append(rows, x)
 		return err
 	})
+	if err != nil || len(rows) == 0 {
+		return nil, nil, err
+	}
+	evidence, err := r.readCurrentEvidence(ctx)
 	if err != nil {
 		return nil, nil, err
 	}
@@ -55,53 +49,49 @@ func (r *Register) CalibrationLots(ctx context.Context) (_ []calibrate.Lot, _ []
 		if err := json.Unmarshal([]byte(x.report), &rep); err != nil {
 			return nil, nil, fmt.Errorf("lot %s: its recorded report: %w", x.id, err)
 		}
-		type value struct{ wt, sigma float64 }
-		values := map[string]value{}
-		err := collect(ctx, r.db, "SELECT element, wt_pct, sigma_wt_pct FROM assay_values WHERE assay_id = ? ORDER BY element",
-			[]any{x.assay}, func(rs *sql.Rows) error {
-				var el string
-				var v value
-				err := rs.Scan(&el, &v.wt, &v.sigma)
-				values[el] = v
-				return err
-			})
-		if err != nil {
-			return nil, nil, err
+		le := evidence[x.id]
+		if le == nil {
+			continue
 		}
-		l := calibrate.Lot{ID: x.id}
-		reason := ""
-		for _, el := range slices.Sorted(maps.Keys(values)) {
-			v := values[el]
-			if _, ok := rep.Elements[el]; !ok {
-				continue // an element the model does not track (Na, moisture ...)
-			}
-			parts, why := groupParts(&rep, el)
-			if why != "" {
-				reason = why
-				break
-			}
-			kg := v.wt / 100 * x.kg
-			sd := math.Hypot(v.sigma/100*x.kg, WeighRelSD*kg)
-			m := calibrate.Measure{Element: el, MeasuredKg: kg, MeasuredSDKg: sd, Parts: parts}
-			if rep.Calibration == nil { // a calibrated report's spread is not the model's
-				e := rep.Elements[el].Kg
-				m.EstimateSDKg = calibrate.SDFromP10P90(e.P10, e.P90)
-			}
-			if kg == 0 {
-				continue // a zero reading with no limit says nothing a factor can use
-			}
-			l.Measures = append(l.Measures, m)
-		}
+		l, reason := calibrationLot(x.id, &rep, RankEvidence(le.est, le.assays, le.weighings))
 		switch {
 		case reason != "":
 			skipped = append(skipped, calibrate.Skipped{Lot: x.id, Reason: reason})
 		case len(l.Measures) == 0:
-			skipped = append(skipped, calibrate.Skipped{Lot: x.id, Reason: "its assay holds no element the estimate tracks"})
+			skipped = append(skipped, calibrate.Skipped{Lot: x.id, Reason: "its assay holds no element the estimate tracks above its detection limit"})
 		default:
 			lots = append(lots, l)
 		}
 	}
 	return lots, skipped, nil
+}
+
+// calibrationLot turns one lot's ranked evidence into what a fit takes, or says why it cannot.
+func calibrationLot(id string, rep *recorded, ev Evidence) (calibrate.Lot, string) {
+	l := calibrate.Lot{ID: id}
+	if ev.DryMass == nil {
+		return l, "its dry black mass is not known (a wet weighing without a moisture): give one with lot weigh --moisture"
+	}
+	for _, e := range ev.Elements {
+		if _, ok := rep.Elements[e.Element]; !ok || e.Measured == nil || e.Measured.Censored || e.Measured.Kg == 0 {
+			continue // not tracked by the model (Na, moisture ...), or a reading a factor cannot use
+		}
+		if e.Measured.Disagree {
+			return l, fmt.Sprintf("its assays of %s disagree beyond their uncertainties: settle which holds before it calibrates", e.Element)
+		}
+		parts, why := groupParts(rep, e.Element)
+		if why != "" {
+			return l, why
+		}
+		m := calibrate.Measure{Element: e.Element, MeasuredKg: e.Measured.Kg, MeasuredSDKg: e.Measured.SigmaKg, Parts: parts}
+		if rep.Calibration == nil { // a calibrated report's spread is not the model's
+			st := rep.Elements[e.Element].Kg
+			m.EstimateSDKg = calibrate.SDFromP10P90(st.P10, st.P90)
+		}
+		l.Measures = append(l.Measures, m)
+	}
+	slices.SortFunc(l.Measures, func(a, b calibrate.Measure) int { return strings.Compare(a.Element, b.Element) })
+	return l, ""
 }
 
 // recorded is the part of a recorded report a calibration reads.
