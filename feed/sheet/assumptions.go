@@ -7,83 +7,116 @@ import (
 	"strings"
 )
 
+// assumptionsWidths are the Assumptions sheet's columns (A4 landscape at 100 %): what, applies
+// to, min, most likely, max, unit, source.
+var assumptionsWidths = []float64{22, 13, 7, 8, 7, 10, 70}
+
+// assumptions lists what produced the report, then every parameter of the model on one row: its
+// range and unit, and its source beside it.
 func (w *writer) assumptions() error {
-	f, r := w.f, w.r
-	if _, err := f.NewSheet(Assumptions); err != nil {
+	r := w.r
+	p, err := w.newPage(Assumptions, true, assumptionsWidths...)
+	if err != nil {
 		return err
 	}
-	s := Assumptions
 	in := r.Inputs
+	p.title("Assumptions: what the estimate rests on")
 	info := [][]any{{"program version", in.Version}, {"manifest file", in.File}, {"manifest SHA-256", in.SHA256},
-		{"seed", int64(in.Seed)}, {"samples", in.Samples}, {"unknown labels as prior", in.UnknownAsPrior}}
+		{"seed", fixed(float64(in.Seed), 0)}, {"samples", in.Samples}, {"unknown labels drawn from the prior", yesNo(in.UnknownAsPrior)}}
 	if l := r.Leach; l != nil {
 		st := l.Settings
 		info = append(info, []any{"leach route", l.Route}, []any{"acid strength (wt%)", st.AcidWtPct}, []any{"H2O2 strength (wt%)", st.H2O2WtPct},
 			[]any{"acid excess (× stoichiometry)", st.AcidExcess}, []any{"free acid target (mol/L)", st.FreeAcidMolPerL},
-			[]any{"H2O2 excess (× stoichiometry)", st.ReductantExcess}, []any{"pulp density (g/L)", st.PulpDensityGPerL},
-			[]any{"gas volumes", l.GasReference})
+			[]any{"reductant excess (× stoichiometry)", st.ReductantExcess}, []any{"pulp density (g/L)", st.PulpDensityGPerL},
+			[]any{"gas volumes at", l.GasReference})
 	}
-	for i, v := range info {
-		if err := w.row(s, i+1, v...); err != nil {
-			return err
-		}
+	for _, v := range info {
+		p.add(boldText(v[0].(string)), v[1])
 	}
-	row := len(info) + 2
-	if err := w.header(s, row, "what", "applies to", "min", "most likely", "max", "unit", "source", "key"); err != nil {
-		return err
+	p.blank()
+	head := p.header("parameter", "applies to", "min", "most likely", "max", "unit", "source")
+	w.printTitles(Assumptions, head, head)
+	params := slices.Clone(r.Parameters)
+	if r.Leach != nil {
+		params = append(params, r.Leach.Extraction...)
 	}
-	first := row + 1
-	params := append(slices.Clone(r.Parameters), func() []dist.Param {
-		if r.Leach != nil {
-			return r.Leach.Extraction
-		}
-		return nil
-	}()...)
-	// Sources repeated row after row ("from memory") are said once, in a note below the table.
+	// Sources repeated row after row are said once; "from memory" is explained below the table.
 	memory := 0
-	for _, p := range params {
-		row++
-		src := p.Source
-		if src == "from memory" {
+	prev := ""
+	for _, pm := range params {
+		src := pm.Source
+		switch {
+		case src == prev:
+			src = "as the row above"
+		case src == "from memory":
 			src, memory = "from memory ¹", memory+1
 		}
-		if err := w.row(s, row, plainWords(p.Name), p.Scope, p.Min, p.Mode, p.Max, p.Unit, src, p.Name); err != nil {
-			return err
-		}
-		// Wrapped sources need their rows tall enough: viewers do not grow rows on opening.
-		if lines := (len([]rune(src)) + sourceLineChars - 1) / sourceLineChars; lines > 1 {
-			_ = f.SetRowHeight(s, row, float64(lines)*12.75)
-		}
+		prev = pm.Source
+		p.add(note(paramWords(pm)), note(scopeWords(pm.Scope)), pm.Min, pm.Mode, pm.Max, note(unitWords(pm.Unit)), fineText(src))
 	}
-	w.style(s, fmt.Sprintf("G%d", first), fmt.Sprintf("G%d", row), w.wrap)
-	w.style(s, fmt.Sprintf("C%d", first), fmt.Sprintf("E%d", row), w.num3)
 	if memory > 0 {
-		row += 2
-		_ = w.row(s, row, fmt.Sprintf("¹ %d values rest on the developers' recollection of the literature, not on a source checked line by line: replace them with your own teardown and assay data where they matter.", memory))
+		p.blank()
+		p.paragraph(fmt.Sprintf("¹ %d values rest on the developers' recollection of the literature, not on a source checked line by line: replace them with your own teardown and assay data where they matter.", memory), small)
 	}
 	if l := r.Leach; l != nil {
-		row++
+		p.blank()
+		p.section("How the leach is modelled")
 		for _, a := range l.Assumptions {
-			row++
-			w.paragraph(s, row, "H", "Leach model: "+a, 150)
+			p.paragraph(a, small)
 		}
 	}
-	_ = f.SetColWidth(s, "A", "A", 34)
-	_ = f.SetColWidth(s, "B", "B", 20)
-	_ = f.SetColWidth(s, "C", "E", 10)
-	_ = f.SetColWidth(s, "F", "F", 12)
-	_ = f.SetColWidth(s, "G", "G", 60)
-	_ = f.SetColWidth(s, "H", "H", 18)
-	w.printSetup(s, true)
 	return nil
 }
 
-// sourceLineChars is about how many characters a line of the 60-wide source column holds.
-const sourceLineChars = 66
+func yesNo(b bool) string {
+	if b {
+		return "yes"
+	}
+	return "no"
+}
+
+// paramWords names a parameter in words: a model key ("carryover_al_foil") turned into words,
+// a metal of the extraction table by its name.
+func paramWords(pm dist.Param) string {
+	if strings.HasPrefix(pm.Scope, "extraction ") {
+		return "extraction of " + pm.Name
+	}
+	return plainWords(pm.Name)
+}
+
+// scopeWords is what a parameter applies to, in words.
+func scopeWords(scope string) string {
+	switch {
+	case scope == "all":
+		return "every format"
+	case strings.HasPrefix(scope, "extraction "):
+		return "leach, " + strings.TrimPrefix(scope, "extraction ")
+	case strings.HasPrefix(scope, "chemistry "):
+		return strings.TrimPrefix(scope, "chemistry ")
+	}
+	return scope
+}
+
+// unitWords spells a unit a bench reads.
+func unitWords(u string) string {
+	switch u {
+	case "ratio":
+		return "ratio"
+	case "mass fraction":
+		return "share of mass"
+	case "fraction":
+		return "share"
+	}
+	return u
+}
 
 // plainWords turns a parameter key ("carryover_al_foil") into words a bench reads.
 func plainWords(key string) string {
-	words := map[string]string{"np": "N/P", "al": "aluminium", "cu": "copper", "lipf6": "LiPF6", "pvdf": "PVDF", "cam": "cathode active material", "ah": "Ah"}
+	if key == "" {
+		return ""
+	}
+	words := map[string]string{"np": "N/P", "al": "aluminium", "cu": "copper", "lipf6": "LiPF6", "pvdf": "PVDF",
+		"cam": "cathode active material", "ah": "Ah", "per": "per", "carryover": "carry-over of"}
 	parts := strings.Split(key, "_")
 	for i, p := range parts {
 		if w, ok := words[p]; ok {
