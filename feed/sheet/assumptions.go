@@ -9,7 +9,7 @@ import (
 
 // assumptionsWidths are the Assumptions sheet's columns (A4 landscape at 100 %): what, applies
 // to, min, most likely, max, unit, source.
-var assumptionsWidths = []float64{22, 13, 7, 8, 7, 10, 70}
+var assumptionsWidths = []float64{20, 12, 7, 8, 7, 11, 73}
 
 // assumptions lists what produced the report, then every parameter of the model on one row: its
 // range and unit, and its source beside it.
@@ -21,14 +21,12 @@ func (w *writer) assumptions() error {
 	}
 	in := r.Inputs
 	p.title("Assumptions: what the estimate rests on")
-	info := [][]any{{"program version", in.Version}, {"manifest file", in.File}, {"manifest SHA-256", in.SHA256},
-		{"seed", fixed(float64(in.Seed), 0)}, {"samples", in.Samples}, {"unknown labels drawn from the prior", yesNo(in.UnknownAsPrior)}}
+	// The input file, its hash, the seed and the samples are on the summary; the leach's doses
+	// in the dosing calculator.
+	info := [][]any{{"program version", in.Version}, {"unknown labels drawn from the prior", yesNo(in.UnknownAsPrior)}}
 	if l := r.Leach; l != nil {
-		st := l.Settings
-		info = append(info, []any{"leach route", l.Route}, []any{"acid strength (wt%)", st.AcidWtPct}, []any{"H2O2 strength (wt%)", st.H2O2WtPct},
-			[]any{"acid excess (× stoichiometry)", st.AcidExcess}, []any{"free acid target (mol/L)", st.FreeAcidMolPerL},
-			[]any{"reductant excess (× stoichiometry)", st.ReductantExcess}, []any{"pulp density (g/L)", st.PulpDensityGPerL},
-			[]any{"gas volumes at", l.GasReference})
+		info = append(info, []any{"leach route", l.Route}, []any{"pulp density (g/L)", l.Settings.PulpDensityGPerL},
+			[]any{"temperature (°C)", l.Settings.TemperatureC})
 	}
 	for _, v := range info {
 		p.add(boldText(v[0].(string)), v[1])

@@ -2,6 +2,7 @@ package sheet
 
 import (
 	"math"
+	"os"
 
 	"github.com/xuri/excelize/v2"
 )
@@ -103,9 +104,9 @@ func cellHeight(s string, widthUnits float64, b base) float64 {
 	case titleBase:
 		return float64(textLines(s, widthUnits*bodyPt/titlePt, true))*17 + 3
 	case small:
-		return float64(textLines(s, widthUnits*bodyPt/9, false))*11.8 + 2
+		return float64(textLines(s, widthUnits*bodyPt/9, false))*11.5 + 2
 	case fine:
-		return float64(textLines(s, widthUnits*bodyPt/8, false))*10.6 + 2
+		return float64(textLines(s, widthUnits*bodyPt/8*1.12, false))*10.2 + 2
 	case head, bold, boldWrap, total, alert:
 		return float64(textLines(s, widthUnits, true))*linePt + 2
 	}
@@ -181,6 +182,9 @@ func (p *page) paragraph(text string, b base) int {
 // keep starts a new printed page before a block of the given height (a table and its header)
 // that would not fit on what is left of this one, if it fits a page at all.
 func (p *page) keep(blockPt float64) {
+	if debugLayout {
+		println(p.s, p.row, int(p.usedPt), int(blockPt), int(p.heightPt))
+	}
 	if p.usedPt > 0 && p.usedPt+blockPt > p.heightPt && blockPt <= p.heightPt {
 		cell, _ := excelize.CoordinatesToCellName(1, p.row)
 		_ = p.w.f.InsertPageBreak(p.s, cell)
@@ -190,3 +194,5 @@ func (p *page) keep(blockPt float64) {
 
 // keepRows is keep for n rows of one line and a header of two.
 func (p *page) keepRows(n int) { p.keep(float64(n)*rowPt + 2*linePt + 2) }
+
+var debugLayout = os.Getenv("BM_LAYOUT_DEBUG") != ""

@@ -4,7 +4,6 @@ import (
 	"blackmass/feed/leach"
 	"fmt"
 	"maps"
-	"math"
 	"slices"
 )
 
@@ -70,7 +69,6 @@ func (w *writer) leach() error {
 	p.blank()
 	p.keepRows(len(syms))
 	p.header("element", "P10 g/L", "P50 g/L", "P90 g/L", "P50 mol/L", "extraction P50")
-	liquorFirst := p.row
 	for _, sym := range syms {
 		c := l.Liquor.Elements[sym]
 		var ext any
@@ -79,7 +77,6 @@ func (w *writer) leach() error {
 		}
 		p.add(sym, c.GPerL.P10, c.GPerL.P50, c.GPerL.P90, c.MolPerL.P50, ext)
 	}
-	liquorLast := p.row - 1
 	p.blank()
 	sats := slices.Sorted(maps.Keys(l.Saturation))
 	p.keepRows(len(sats))
@@ -90,17 +87,8 @@ func (w *writer) leach() error {
 	p.blank()
 	p.keep(float64(calculatorRows(l))*rowPt + rowPt)
 	p.row = w.recipeCalculator(p) + 1
-	p.blank()
-	p.keep(chartPt)
-	at := p.row
-	for range int(math.Ceil(chartPt / (rowPt * 0.7))) {
-		p.blank()
-	}
-	return w.rangeChart(s, fmt.Sprintf("A%d", at), "Leach liquor: P50 with P10–P90 (g/L)", liquorFirst, liquorLast, "B", "C", "D")
+	return nil
 }
-
-// chartPt is the height of a range chart (230 px) on the page.
-const chartPt = 230*0.75 + 10
 
 // calculatorRows is about how many rows the dosing calculator takes.
 func calculatorRows(l *leach.Report) int { return 10 + 6*min(len(l.Reagents)-1, 1) }

@@ -164,4 +164,3 @@ func optInt(v int) any {
 	}
 	return v
 }
-

@@ -11,7 +11,7 @@ import (
 )
 
 // summaryWidths are the summary's columns: a label, then five numbers (A4 portrait at 100 %).
-var summaryWidths = []float64{30, 12, 12, 12, 12, 13}
+var summaryWidths = []float64{30, 11, 11, 11, 16, 12}
 
 // summary is the first one or two pages: everything a bench acts on (the lot, its black mass
 // and metals, what to order, the gases to vent, the liquor, the value, every warning and the
@@ -123,7 +123,7 @@ func (w *writer) summaryOrder(p *page) {
 		if l.CostP90 != nil {
 			cost = money(*l.CostP90)
 		}
-		p.add(l.Reagent, kg(l.Kg.P50*perKg), kg(l.Kg.P90*perKg), litres, wrap(suggestion(l)), cost)
+		p.add(l.Reagent, kg(l.Kg.P50*perKg), kg(l.Kg.P90*perKg), litres, as(indented, suggestion(l)), cost)
 	}
 	if l := w.r.Leach; l != nil {
 		p.add("make-up water", nil, nil, kg(l.WaterL.P90*perL), "")

@@ -94,7 +94,7 @@ func (w *writer) order(p *page) {
 		if l.CostP90 != nil {
 			cost = money(*l.CostP90)
 		}
-		p.add(l.Reagent, kg(l.Kg.P50*perKg), kg(l.Kg.P90*perKg), lp50, lp90, kg(l.KgPerTonneBM), wrap(suggestion(l)), price, cost)
+		p.add(l.Reagent, kg(l.Kg.P50*perKg), kg(l.Kg.P90*perKg), lp50, lp90, kg(l.KgPerTonneBM), as(indented, suggestion(l)), price, cost)
 	}
 	if len(o.Unpriced) > 0 {
 		p.add(note("Not priced reagents are left out of every cost; give --acid-price and --h2o2-price to price them."))

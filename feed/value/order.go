@@ -40,9 +40,9 @@ type OrderLine struct {
 	KgPerTonneBM float64          `json:"kg_per_tonne_black_mass_p50"`
 	Containers   []ContainerCount `json:"containers"`
 	// Suggested is the one container to buy the P90 amount in (Suggest).
-	Suggested    *ContainerCount `json:"suggested,omitempty"`
-	PricePerKg   float64          `json:"price_per_kg,omitempty"`
-	CostP90      *float64         `json:"cost_p90,omitempty"`
+	Suggested  *ContainerCount `json:"suggested,omitempty"`
+	PricePerKg float64         `json:"price_per_kg,omitempty"`
+	CostP90    *float64        `json:"cost_p90,omitempty"`
 }
 
 // ContainerCount is how many of a container hold the reagent's P90 amount.
