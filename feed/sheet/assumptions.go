@@ -9,7 +9,7 @@ import (
 
 // assumptionsWidths are the Assumptions sheet's columns (A4 landscape at 100 %): what, applies
 // to, min, most likely, max, unit, source.
-var assumptionsWidths = []float64{20, 12, 7, 8, 7, 11, 73}
+var assumptionsWidths = []float64{20, 12, 7, 8, 7, 11, 67}
 
 // assumptions lists what produced the report, then every parameter of the model on one row: its
 // range and unit, and its source beside it.
