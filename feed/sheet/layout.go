@@ -2,7 +2,6 @@ package sheet
 
 import (
 	"math"
-	"os"
 
 	"github.com/xuri/excelize/v2"
 )
@@ -182,9 +181,6 @@ func (p *page) paragraph(text string, b base) int {
 // keep starts a new printed page before a block of the given height (a table and its header)
 // that would not fit on what is left of this one, if it fits a page at all.
 func (p *page) keep(blockPt float64) {
-	if debugLayout {
-		println(p.s, p.row, int(p.usedPt), int(blockPt), int(p.heightPt))
-	}
 	if p.usedPt > 0 && p.usedPt+blockPt > p.heightPt && blockPt <= p.heightPt {
 		cell, _ := excelize.CoordinatesToCellName(1, p.row)
 		_ = p.w.f.InsertPageBreak(p.s, cell)
@@ -194,5 +190,3 @@ func (p *page) keep(blockPt float64) {
 
 // keepRows is keep for n rows of one line and a header of two.
 func (p *page) keepRows(n int) { p.keep(float64(n)*rowPt + 2*linePt + 2) }
-
-var debugLayout = os.Getenv("BM_LAYOUT_DEBUG") != ""

@@ -12,7 +12,7 @@ const ValueSheet = "Order and value"
 const OrderSheetName = ValueSheet
 
 // valueWidths are the columns of the order and value sheet (A4 landscape at 100 %).
-var valueWidths = []float64{28, 11, 11, 11, 11, 12, 18, 11, 13}
+var valueWidths = []float64{28, 11, 11, 11, 11, 12, 15, 11, 20}
 
 // value lays out what to order for the leach (each reagent for the lot at P50 and P90, per tonne
 // of black mass, the container to buy it in, its price or the lack of one), then the lot's value
@@ -47,7 +47,7 @@ func (w *writer) value() error {
 			item += " as LCE"
 		}
 		p.add(item, e.ProductKg.P50, money(e.PricePerKg), frac(e.Payable), money(e.Contained.P50), money(e.PayableVal.P10),
-			money(e.PayableVal.P50), money(e.PayableVal.P90), wrap(e.Source))
+			money(e.PayableVal.P50), money(e.PayableVal.P90), as(indented, e.Source))
 	}
 	p.add(as(total, "lot"), as(total, nil), as(total, nil), as(total, nil), as(total, money(v.Contained.P50)),
 		as(total, money(v.Payable.P10)), as(total, money(v.Payable.P50)), as(total, money(v.Payable.P90)), as(total, nil))
