@@ -5,17 +5,26 @@ import (
 	"fmt"
 	"slices"
 	"strings"
+
+	"github.com/xuri/excelize/v2"
 )
 
-// assumptionsWidths are the Assumptions sheet's columns (A4 landscape at 100 %): what, applies
-// to, min, most likely, max, unit, source.
-var assumptionsWidths = []float64{20, 12, 7, 8, 7, 11, 67}
+// assumptionsWidths are the Assumptions sheet's printed columns (A4 portrait at 100 %): what,
+// applies to, min, most likely, max, unit, source (shortened to a line); the source in full is
+// in the column after them, out of the print area.
+var assumptionsWidths = []float64{19, 10, 6.5, 7, 6.5, 9, 38}
+
+// fullSourceWidth is the width of the column holding each source in full.
+const fullSourceWidth = 120
+
+// shortSourceChars is about what one line of the printed source column holds at 8 pt.
+const shortSourceChars = 62
 
 // assumptions lists what produced the report, then every parameter of the model on one row: its
 // range and unit, and its source beside it.
 func (w *writer) assumptions() error {
 	r := w.r
-	p, err := w.newPage(Assumptions, true, assumptionsWidths...)
+	p, err := w.newPage(Assumptions, false, assumptionsWidths...)
 	if err != nil {
 		return err
 	}
@@ -32,7 +41,11 @@ func (w *writer) assumptions() error {
 		p.add(boldText(v[0].(string)), v[1])
 	}
 	p.blank()
+	p.add(note("One row per parameter: its range, unit and source. A source longer than a line is shortened on paper (…); column H of the file holds each in full."))
 	head := p.header("parameter", "applies to", "min", "most likely", "max", "unit", "source")
+	w.set(Assumptions, 8, head, cellValue{v: "source in full", b: head0})
+	col, _ := excelize.ColumnNumberToName(8)
+	_ = w.f.SetColWidth(Assumptions, col, col, fullSourceWidth)
 	w.printTitles(Assumptions, head, head)
 	params := slices.Clone(r.Parameters)
 	if r.Leach != nil {
@@ -50,7 +63,9 @@ func (w *writer) assumptions() error {
 			src, memory = "from memory ¹", memory+1
 		}
 		prev = pm.Source
-		p.add(note(paramWords(pm)), note(scopeWords(pm.Scope)), pm.Min, pm.Mode, pm.Max, note(unitWords(pm.Unit)), fineText(src))
+		row := p.add(note(paramWords(pm)), fineText(scopeWords(pm.Scope)), smallNum(pm.Min), smallNum(pm.Mode), smallNum(pm.Max),
+			fineText(unitWords(pm.Unit)), fineText(shortText(src, shortSourceChars)))
+		w.set(Assumptions, 8, row, cellValue{v: pm.Source, b: fineLine})
 	}
 	if memory > 0 {
 		p.blank()
@@ -60,10 +75,33 @@ func (w *writer) assumptions() error {
 		p.blank()
 		p.section("How the leach is modelled")
 		for _, a := range l.Assumptions {
-			p.paragraph(a, small)
+			p.paragraph(a, fine)
 		}
 	}
+	w.printArea(Assumptions, len(assumptionsWidths), p.row)
 	return nil
+}
+
+// shortText cuts a text to about n characters at the end of a clause or a word, marking the cut.
+func shortText(s string, n int) string {
+	r := []rune(s)
+	if len(r) <= n {
+		return s
+	}
+	cut := string(r[:n-2])
+	best := -1
+	for _, sep := range []string{"; ", ". ", ": ", ", ", " ("} {
+		if i := strings.LastIndex(cut, sep); i > best && i > n/2 {
+			best = i
+		}
+	}
+	if best < 0 {
+		best = strings.LastIndex(cut, " ")
+	}
+	if best <= 0 {
+		best = len(cut)
+	}
+	return strings.TrimRight(cut[:best], " ,;:.(") + " …"
 }
 
 func yesNo(b bool) string {
@@ -88,7 +126,7 @@ func scopeWords(scope string) string {
 	case scope == "all":
 		return "every format"
 	case strings.HasPrefix(scope, "extraction "):
-		return "leach, " + strings.TrimPrefix(scope, "extraction ")
+		return "the leach"
 	case strings.HasPrefix(scope, "chemistry "):
 		return strings.TrimPrefix(scope, "chemistry ")
 	}

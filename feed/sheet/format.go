@@ -34,7 +34,12 @@ const (
 	indented       // text wrapped, indented from a number to its left
 	small          // 9 pt wrapped text (notes)
 	fine           // 8 pt wrapped text (sources)
+	fineLine       // 8 pt text on one line (a source in full, out of the print area)
+	smallNumBase   // a 9 pt number
 )
+
+// head0 is the header look, for cells written outside a page's columns.
+const head0 = head
 
 // Number formats (ECMA-376 Part 1, §18.8.31 numFmt).
 const (
@@ -117,7 +122,11 @@ func (w *writer) styleOf(b base, numFmt string) int {
 		st.Alignment.WrapText = true
 	case fine:
 		font.Size = 8
-		st.Alignment.WrapText = true
+		st.Alignment.WrapText, st.Alignment.Horizontal, st.Alignment.Indent = true, "left", 1
+	case fineLine:
+		font.Size = 8
+	case smallNumBase:
+		font.Size = 9
 	}
 	if numFmt != "" {
 		f := numFmt
@@ -148,6 +157,7 @@ func wrap(s string) cellValue          { return cellValue{v: s, b: wrapped} }
 func boldText(s string) cellValue      { return cellValue{v: s, b: bold} }
 func note(s string) cellValue          { return cellValue{v: s, b: small} }
 func fineText(s string) cellValue      { return cellValue{v: s, b: fine} }
+func smallNum(v float64) cellValue     { return cellValue{v: v, fmt: sigFmt(v), b: smallNumBase} }
 
 // as gives a value another look, keeping its number format.
 func as(b base, v any) cellValue {

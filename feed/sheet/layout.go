@@ -18,6 +18,8 @@ type page struct {
 	usedPt    float64 // height used on the current printed page
 	heightPt  float64 // height a printed page holds
 	landscape bool
+	heights   map[int]float64 // each row's height
+	pending   *block          // the table being written, kept whole when it ends (blank)
 }
 
 // newPage makes a sheet (or takes the existing first sheet, renamed) with its columns' widths
@@ -33,7 +35,7 @@ func (w *writer) newPage(sheet string, landscape bool, widths ...float64) (*page
 		_ = w.f.SetColWidth(sheet, col, col, wd)
 	}
 	w.printSetup(sheet, landscape)
-	return &page{w: w, s: sheet, row: 1, widths: widths, landscape: landscape,
+	return &page{w: w, s: sheet, row: 1, widths: widths, landscape: landscape, heights: map[int]float64{},
 		heightPt: PrintableHeightPt(w.paperSize(), landscape) * pageFill}, nil
 }
 
@@ -51,6 +53,9 @@ func (p *page) width(from, to int) float64 {
 func (p *page) add(vals ...any) int {
 	r := p.row
 	h := rowPt
+	if allSmall(vals) {
+		h = smallRowPt
+	}
 	for i, v := range vals {
 		c := toCell(v)
 		s, isText := c.v.(string)
@@ -87,6 +92,21 @@ func (p *page) add(vals ...any) int {
 	return r
 }
 
+// smallRowPt is the height of a row of one line of 8 and 9 pt text.
+const smallRowPt = 11.5
+
+// allSmall reports whether every value of a row is in 8 or 9 pt type.
+func allSmall(vals []any) bool {
+	for _, v := range vals {
+		switch toCell(v).b {
+		case small, fine, fineLine, smallNumBase:
+		default:
+			return false
+		}
+	}
+	return len(vals) > 0
+}
+
 // restEmpty reports whether no value is given in vals.
 func restEmpty(vals []any) bool {
 	for _, v := range vals {
@@ -116,14 +136,16 @@ func cellHeight(s string, widthUnits float64, b base) float64 {
 func (p *page) setHeight(r int, h float64) {
 	h = math.Ceil(h*4) / 4
 	_ = p.w.f.SetRowHeight(p.s, r, h)
+	p.heights[r] = h
 	if p.usedPt+h > p.heightPt {
 		p.usedPt = 0 // the row starts a new printed page
 	}
 	p.usedPt += h
 }
 
-// blank leaves an empty row.
+// blank leaves an empty row, ending a table.
 func (p *page) blank() {
+	p.endTable()
 	p.setHeight(p.row, rowPt*0.7)
 	p.row++
 }
@@ -188,5 +210,42 @@ func (p *page) keep(blockPt float64) {
 	}
 }
 
-// keepRows is keep for n rows of one line and a header of two.
-func (p *page) keepRows(n int) { p.keep(float64(n)*rowPt + 2*linePt + 2) }
+// keepRows begins a table of about n rows of one line and a header of two: it starts a new page
+// if the table would not fit on what is left of this one, and once the table ends (at the next
+// blank row) moves it whole to a new page if it still crossed a page's end.
+func (p *page) keepRows(n int) {
+	p.endTable()
+	p.keep(float64(n)*rowPt + 2*linePt + 2)
+	b := p.begin()
+	p.pending = &b
+}
+
+// endTable keeps the table being written whole.
+func (p *page) endTable() {
+	if p.pending != nil {
+		p.whole(*p.pending)
+		p.pending = nil
+	}
+}
+
+// block marks where a table starts (see whole).
+type block struct {
+	row    int
+	usedPt float64
+}
+
+func (p *page) begin() block { return block{p.row, p.usedPt} }
+
+// whole moves the table begun at b to a new printed page if it crossed a page's end and fits
+// on one page: the rows' heights are known once they are written.
+func (p *page) whole(b block) {
+	total := 0.0
+	for r := b.row; r < p.row; r++ {
+		total += p.heights[r]
+	}
+	if b.usedPt > 0 && b.usedPt+total > p.heightPt && total <= p.heightPt {
+		cell, _ := excelize.CoordinatesToCellName(1, b.row)
+		_ = p.w.f.InsertPageBreak(p.s, cell)
+		p.usedPt = total
+	}
+}

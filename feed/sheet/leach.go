@@ -85,8 +85,9 @@ func (w *writer) leach() error {
 		p.add(k, frac(l.Saturation[k].P50), frac(l.Saturation[k].P90), fixed(l.SaturationAtC[k], 0))
 	}
 	p.blank()
-	p.keep(float64(calculatorRows(l))*rowPt + rowPt)
+	p.keepRows(calculatorRows(l))
 	p.row = w.recipeCalculator(p) + 1
+	p.blank()
 	return nil
 }
 

@@ -51,9 +51,9 @@ func PrintableHeightPt(paper int, landscape bool) float64 {
 // digit, 7 px of 11 pt Calibri at 96 dpi, plus 5 px of padding; ECMA-376 Part 1, §18.3.1.13).
 func ColumnPt(width float64) float64 { return (7*width + 5) * 0.75 }
 
-// pageFill is the share of a page's height the layout plans to fill: what a row holds differs a
-// little between spreadsheet programs.
-const pageFill = 0.92
+// pageFill is the share of a page's height the layout plans to fill. Rows are of fixed height,
+// so a page holds the rows whose heights add up to its height between the margins.
+const pageFill = 1.0
 
 // printSetup sets a sheet's page: the paper, portrait or landscape, fitted to one page width (the
 // sheets are laid out to fit at 100 %, so the fit only guards against a viewer's wider fonts),

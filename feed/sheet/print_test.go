@@ -15,7 +15,7 @@ import (
 )
 
 // landscapeSheets are the sheets printed in landscape; the others are portrait.
-var landscapeSheets = map[string]bool{sheet.Lines: true, sheet.Leach: true, sheet.ValueSheet: true, sheet.Assumptions: true, sheet.AssaySheet: true}
+var landscapeSheets = map[string]bool{sheet.Lines: true, sheet.Leach: true, sheet.ValueSheet: true, sheet.AssaySheet: true}
 
 // titledSheets hold one table that may run over pages, so they repeat its header row; the
 // others hold short tables, each kept on one page.
@@ -178,11 +178,18 @@ func checkCells(t *testing.T, f *excelize.File, s string) {
 }
 
 // checkTablesWhole: on a sheet of short tables, a header row and the rows under it down to the
-// next blank row print on one page, the pages falling where the row heights and the manual
+// next blank row (or paragraph) print on one page, the pages falling where the row heights and the manual
 // breaks put them.
 func checkTablesWhole(t *testing.T, f *excelize.File, s string, breaks map[int]bool, pagePt float64) {
 	t.Helper()
 	rows, _ := f.GetRows(s)
+	paragraph := map[int]bool{} // rows that open with a text merged across the page
+	mcs, _ := f.GetMergeCells(s)
+	for _, mc := range mcs {
+		if c, r, _ := excelize.CellNameToCoordinates(mc.GetStartAxis()); c == 1 {
+			paragraph[r] = true
+		}
+	}
 	page := make([]int, len(rows)+2)
 	used, n := 0.0, 0
 	for r := 1; r <= len(rows); r++ {
@@ -200,7 +207,8 @@ func checkTablesWhole(t *testing.T, f *excelize.File, s string, breaks map[int]b
 		if st == nil || st.Font == nil || !st.Font.Bold || len(st.Border) == 0 || len(st.Fill.Color) == 0 {
 			continue // not a header row
 		}
-		for q := r + 1; q <= len(rows) && len(rows[q-1]) > 0; q++ {
+		// The table runs down to the next blank row; a list of paragraphs is not a table.
+		for q := r + 1; q <= len(rows) && len(rows[q-1]) > 0 && !paragraph[q]; q++ {
 			if page[q] != page[r] {
 				t.Errorf("%s: the table headed on row %d breaks across pages at row %d", s, r, q)
 				break
