@@ -22,20 +22,20 @@ const (
 type base int
 
 const (
-	plain     base = iota
-	bold           // a label
-	boldWrap       // a label wrapped in its column
-	head           // a table's header row: bold, shaded, ruled below, wrapped
-	total          // a total row: bold, shaded
-	edit           // an input cell: shaded and boxed
-	alert          // a disagreement to notice
-	wrapped        // text wrapped in its column
-	titleBase      // a sheet's title
-	indented       // text wrapped, indented from a number to its left
-	small          // 9 pt wrapped text (notes)
-	fine           // 8 pt wrapped text (sources)
-	fineLine       // 8 pt text on one line (a source in full, out of the print area)
-	smallNumBase   // a 9 pt number
+	plain        base = iota
+	bold              // a label
+	boldWrap          // a label wrapped in its column
+	head              // a table's header row: bold, shaded, ruled below, wrapped
+	total             // a total row: bold, shaded
+	edit              // an input cell: shaded and boxed
+	alert             // a disagreement to notice
+	wrapped           // text wrapped in its column
+	titleBase         // a sheet's title
+	indented          // text wrapped, indented from a number to its left
+	small             // 9 pt wrapped text (notes)
+	fine              // 8 pt wrapped text (sources)
+	fineLine          // 8 pt text on one line (a source in full, out of the print area)
+	smallNumBase      // a 9 pt number
 )
 
 // head0 is the header look, for cells written outside a page's columns.
