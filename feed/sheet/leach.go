@@ -51,7 +51,7 @@ func (w *writer) leach() error {
 	p.header("gas", "P50 mol", "P50 m³", "P90 m³", "at")
 	for _, name := range names {
 		g := l.Gases[name]
-		p.add(name, g.Mol.P50, g.M3STP.P50, g.M3STP.P90, wrap(l.GasReference))
+		p.add(name, g.Mol.P50, g.M3STP.P50, g.M3STP.P90, as(indented, l.GasReference))
 	}
 	p.blank()
 	var syms []string

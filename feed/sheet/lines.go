@@ -55,11 +55,15 @@ type lineColumn struct {
 func lineColumns(idWidth float64) []lineColumn {
 	d := manifest.DerivedLineColumns // line, chemistry resolved, energy, modelled mass, Wh/kg, cathode, black mass, flags
 	return []lineColumn{{"id", idWidth, true}, {"description", 34, true}, {"chemistry", 18, true}, {"format", 12, true},
-		{"count", 8, false}, {d[2], 11, false}, {"mass (kg)", 10, false}, {d[6], 12, false},
+		{"count", 8, false}, {d[2], 12, false}, {"mass (kg)", 10, false}, {d[6], 14, false},
 		{"capacity", 11, true}, {"capacity basis", 9, true}, {"voltage (V)", 8, false}, {"cells per pack", 8, false},
 		{"notes", 30, true}, {"application", 12, true}, {d[0], 6, false}, {d[1], 18, true},
 		{d[3], 12, false}, {d[4], 10, false}, {d[5], 12, false}, {d[7], 50, true}}
 }
+
+// lineRowPt is the height of a Lines row of one line of 10 pt text: the sheet is long, so its
+// rows are as low as the text allows.
+const lineRowPt = 12.75
 
 // streamLines writes the Lines sheet's rows through the stream writer.
 func (w *writer) streamLines() error {
@@ -94,7 +98,7 @@ func (w *writer) streamLines() error {
 		vals := []any{l.ID, l.Description, l.ChemistryLabel, l.Format, l.Count, l.EnergyWhPerItem, opt(l.MeasuredMassKg), l.BlackMassKg,
 			l.CapacityGiven, l.CapacityBasis, opt(l.VoltageV), optInt(l.CellsPerItem), l.Notes, l.Application,
 			l.Line, l.Chemistry, l.ModelMassKgEach, opt(l.MeasuredWhPerKg), l.CathodeKg, strings.Join(l.Flags, "; ")}
-		h := rowPt
+		h := lineRowPt
 		row := make([]any, len(vals))
 		for j, v := range vals {
 			switch x := v.(type) {
@@ -103,7 +107,9 @@ func (w *writer) streamLines() error {
 				if cols[j].wrap {
 					st = wrapStyle
 					if j < PrintedLineColumns { // the printed rows are as tall as their text
-						h = max(h, cellHeight(x, cols[j].width, wrapped))
+						if n := textLines(x, cols[j].width, false); n > 1 {
+							h = max(h, float64(n)*linePt+2)
+						}
 					}
 				}
 				row[j] = excelize.Cell{StyleID: st, Value: x} // user text as typed, never a formula
