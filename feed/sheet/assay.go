@@ -18,10 +18,10 @@ func (w *writer) assay() error {
 		p.header("element", "estimate wt%", "estimate σ (wt%)", "assay wt%", "assay σ (wt%)", "difference (σ)", "reading")
 		for _, c := range rc.Comparisons {
 			reading := c.Interpretation
-			vals := []any{c.Element, fixed(c.EstimateWtPct, 2), fixed(c.EstimateSigma, 2), fixed(c.AssayWtPct, 2), fixed(c.AssaySigma, 2), fixed(c.Z, 1), reading}
+			vals := []any{c.Element, fixed(c.EstimateWtPct, 2), fixed(c.EstimateSigma, 2), fixed(c.AssayWtPct, 2), fixed(c.AssaySigma, 2), fixed(c.Z, 1), as(indented, reading)}
 			if c.Flag {
 				// A disagreement beyond the threshold is coloured, so it is seen on paper too.
-				vals[6] = "DISAGREES: " + reading
+				vals[6] = as(indented, "DISAGREES: "+reading)
 				for i := range vals {
 					vals[i] = as(alert, vals[i])
 				}
@@ -31,7 +31,7 @@ func (w *writer) assay() error {
 	} else {
 		p.header("element", "assay wt%", "σ (wt%)", "σ assumed")
 		for _, v := range r.Assay.Values {
-			p.add(v.Element, fixed(v.WtPct, 2), fixed(v.SigmaWtPct, 2), yesNo(v.SigmaAssumed))
+			p.add(v.Element, fixed(v.WtPct, 2), fixed(v.SigmaWtPct, 2), as(indented, yesNo(v.SigmaAssumed)))
 		}
 	}
 	if m := r.Mix; m != nil {
@@ -47,7 +47,7 @@ func (w *writer) assay() error {
 		}
 		p.blank()
 		for _, n := range m.Notes {
-			p.paragraph(n, plain)
+			p.paragraph(n, small)
 		}
 	}
 	return nil
