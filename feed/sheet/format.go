@@ -53,16 +53,31 @@ const (
 // sigFmt is the number format that shows v to three significant figures, with thousands
 // separators; larger numbers show every integer digit.
 func sigFmt(v float64) string {
-	a := math.Abs(v)
-	if a == 0 || math.IsNaN(a) || math.IsInf(a, 0) {
+	d := sigDecimals(v)
+	if d < 0 {
 		return "0"
 	}
-	d := 2 - int(math.Floor(math.Log10(a)+1e-12))
-	d = min(max(d, 0), 6)
-	if d == 0 {
-		return fmtCount
+	return fixedFmt(d)
+}
+
+// sigDecimals is how many decimals show v to three significant figures (0 to 6); -1 for zero.
+func sigDecimals(v float64) int {
+	a := math.Abs(v)
+	if a == 0 || math.IsNaN(a) || math.IsInf(a, 0) {
+		return -1
 	}
-	return fmtCount + "." + strings.Repeat("0", d)
+	d := 2 - int(math.Floor(math.Log10(a)+1e-12))
+	return min(max(d, 0), 6)
+}
+
+// sigStyle is the plain style showing v to three significant figures, looked up without
+// building its format (for the long Lines sheet).
+func (w *writer) sigStyle(v float64) int {
+	d := sigDecimals(v) + 1
+	if w.sigStyles[d] == 0 {
+		w.sigStyles[d] = w.styleOf(plain, sigFmt(v))
+	}
+	return w.sigStyles[d]
 }
 
 // fixedFmt shows d decimals with thousands separators.

@@ -93,7 +93,7 @@ func (w *writer) streamLines() error {
 	if err := sw.SetRow("A1", names, excelize.RowOpts{StyleID: w.styleOf(head, ""), Height: headH}); err != nil {
 		return err
 	}
-	textStyle, wrapStyle := w.styleOf(plain, fmtText), w.styleOf(wrapped, fmtText)
+	textStyle, wrapStyle, countStyle := w.styleOf(plain, fmtText), w.styleOf(wrapped, fmtText), w.styleOf(plain, fmtCount)
 	for i, l := range r.Lines {
 		vals := []any{l.ID, l.Description, l.ChemistryLabel, l.Format, l.Count, l.EnergyWhPerItem, opt(l.MeasuredMassKg), l.BlackMassKg,
 			l.CapacityGiven, l.CapacityBasis, opt(l.VoltageV), optInt(l.CellsPerItem), l.Notes, l.Application,
@@ -114,9 +114,9 @@ func (w *writer) streamLines() error {
 				}
 				row[j] = excelize.Cell{StyleID: st, Value: x} // user text as typed, never a formula
 			case int:
-				row[j] = excelize.Cell{StyleID: w.styleOf(plain, fmtCount), Value: x}
+				row[j] = excelize.Cell{StyleID: countStyle, Value: x}
 			case float64:
-				row[j] = excelize.Cell{StyleID: w.styleOf(plain, sigFmt(x)), Value: x}
+				row[j] = excelize.Cell{StyleID: w.sigStyle(x), Value: x}
 			}
 		}
 		cell, _ := excelize.CoordinatesToCellName(1, i+2)

@@ -38,6 +38,7 @@ type writer struct {
 	edit                  int // cells a user is expected to change
 	r                     *report.Report
 	styles                map[styleKey]int // made on demand (styleOf)
+	sigStyles             [8]int           // sigStyle's, by decimals + 1
 	err                   error            // the first error making a style
 }
 

@@ -157,8 +157,8 @@ func (w *writer) summaryLeach(p *page) {
 	p.keepRows(len(syms) + 5)
 	p.section("Leach liquor (" + l.Route + ")")
 	p.header("", "P10", "P50", "P90", "unit")
-	p.add(boldText("liquor volume"), kg(l.Liquor.VolumeL.P10), kg(l.Liquor.VolumeL.P50), kg(l.Liquor.VolumeL.P90), "L")
-	p.add(boldText("free acid"), kg(l.FreeAcidMolPerL.P10), kg(l.FreeAcidMolPerL.P50), kg(l.FreeAcidMolPerL.P90), "mol/L")
+	p.add(boldText("liquor volume"), kg(l.Liquor.VolumeL.P10), kg(l.Liquor.VolumeL.P50), kg(l.Liquor.VolumeL.P90), as(indented, "L"))
+	p.add(boldText("free acid"), kg(l.FreeAcidMolPerL.P10), kg(l.FreeAcidMolPerL.P50), kg(l.FreeAcidMolPerL.P90), as(indented, "mol/L"))
 	p.header("metal", "P10 g/L", "P50 g/L", "P90 g/L", "extraction P50")
 	for _, sym := range syms {
 		c := l.Liquor.Elements[sym]
