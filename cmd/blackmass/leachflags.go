@@ -55,7 +55,7 @@ func (l *leachFlags) bind(cmd *cobra.Command) {
 	leachNumber(fl, &l.opt.RecipeReductantGPerL, "reductant-g-per-l", 0, "bench recipe: a solid or gaseous reductant in g per litre of liquor")
 	leachNumber(fl, &l.opt.TemperatureC, "temperature", d.TemperatureC, "leach temperature, °C (sets how much peroxide decomposes, how much the oxides' own oxygen reduces them when short of reductant, and the hot end of the saturation check)")
 	fl.StringVar(&l.prices.Currency, "currency", "", "currency of the reagent prices (EUR, USD ...), shown with every cost")
-	fl.StringVar(&l.containers, "containers", "25 L can, 200 L drum, 1000 L IBC, 25 kg bag", "packages reagents are bought in, for the order sheet (capacity, L or kg, name; comma-separated)")
+	fl.StringVar(&l.containers, "containers", value.DefaultContainerList, "packages reagents are bought in, for the order sheet (capacity in mL, L, g or kg, then a name; comma-separated); the order names the one that fits")
 	fl.BoolVar(&l.opt.GrowVolume, "grow-volume", false, "let the liquor volume grow when the reagents alone exceed it (default: refuse)")
 	fl.StringVar(&l.extraction, "extraction", "", "your own test-leach extractions, e.g. Co=0.92,Ni=0.95,Li=0.99 (fractions or per cent; * for every metal)")
 	_ = cmd.RegisterFlagCompletionFunc("route", cobra.FixedCompletions([]string{"sulfuric-peroxide", "hydrochloric", "sulfuric-selective"}, cobra.ShellCompDirectiveNoFileComp))

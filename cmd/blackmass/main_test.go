@@ -603,6 +603,14 @@ func TestOrderSheet(t *testing.T) {
 	if code, _, _ := cli(t, "", "demo", "--samples", "20", "--containers", "big barrel"); code == 0 {
 		t.Error("bad container accepted")
 	}
+	// Bench sizes in mL; the text names the one container to buy, not every size.
+	code, out, errs = cli(t, "", "demo", "--samples", "50", "--containers", "500 mL bottle, 25 L can, 200 L drum")
+	if code != 0 {
+		t.Fatalf("mL container: exit %d: %s", code, errs)
+	}
+	if !strings.Contains(out, "1 × 200 L drum") || strings.Contains(out, "L can or") {
+		t.Errorf("order text names more or less than one container:\n%s", out)
+	}
 }
 
 // Help groups the flags (input, model, leach, costs, output) and every command has examples.

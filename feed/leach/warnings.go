@@ -102,7 +102,7 @@ func (p *leachPlanner) warnings(lr *Report, acidR Reagent, redR *Reagent) {
 		if redR.RatioFull.P10 < allow {
 			outcome := "Co, Ni and Mn extraction will fall short"
 			if redShort < shortfallSampleShare {
-				outcome = "in this plan the oxides' own oxygen makes up the rest (data/lattice_oxygen.csv); where " +
+				outcome = "in this plan the oxides' own oxygen makes up the rest (the lattice-oxygen table); where " +
 					"they give less, Co, Ni and Mn extraction falls short"
 			}
 			lr.Warnings = append(lr.Warnings, fmt.Sprintf("%s is %.2f× what full dissolution needs (P10), below "+
@@ -193,18 +193,18 @@ func routeNotes(s Input, species []cathode.Species, route cathode.Route) []strin
 // assumptions are the plan's assumptions, as the report states them.
 func assumptions() []string {
 	return []string{
-		"Acid and electron demand follow from each species' charge balance (cathode.Dissolve), scaled by the " +
+		"Acid and electron demand follow from each species' charge balance, scaled by the " +
 			"planned extraction of each metal.",
 		"The extraction reached is the lesser of the planned extraction and what the acid and the electrons dosed " +
 			"can dissolve.",
 		"Metals in the feed reduce the oxides first (least noble first: Al, Fe, then Cu); the reductant or " +
 			"chloride gives the rest; leftover Al and Fe give H2; leftover Cu needs peroxide or stays.",
 		"Short of reductant on the sulfuric routes, the oxides' own oxygen gives part of the reduction, leaving as " +
-			"O2 (a share that grows with temperature: data/lattice_oxygen.csv).",
+			"O2 (a share that grows with temperature, from the lattice-oxygen table).",
 		"Oxidation states: Mn(IV) and Co(III) in oxides that hold nickel, nickel the rest (Ni(II) in NMC111 needs " +
 			"no reductant); other oxides share the average.",
 		"Peroxide left after the reduction oxidises copper metal, then Fe(II) to Fe(III); the rest decomposes to " +
-			"O2. Part of the peroxide dosed decomposes anyway (data/peroxide_loss.csv).",
+			"O2. Part of the peroxide dosed decomposes anyway (the peroxide-loss table, by temperature).",
 		"On the selective route the lithium of oxide cathodes stays with their undissolved metals; iron of " +
 			"phosphates stays as FePO4.",
 		"Graphite, carbon black and PVDF are inert and stay in the residue.",

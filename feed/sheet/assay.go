@@ -1,72 +1,54 @@
 package sheet
 
-import "fmt"
+// assayWidths are the Assay sheet's columns (A4 landscape at 100 %).
+var assayWidths = []float64{20, 11, 11, 11, 11, 12, 12, 13, 30}
 
 // assay lays out the lab assay, its reconciliation with the estimate and the mix fit, when given.
 func (w *writer) assay() error {
-	f, r := w.f, w.r
+	r := w.r
 	if r.Assay == nil {
 		return nil
 	}
-	if _, err := f.NewSheet(AssaySheet); err != nil {
+	p, err := w.newPage(AssaySheet, true, assayWidths...)
+	if err != nil {
 		return err
 	}
-	s := AssaySheet
-	_ = f.SetCellValue(s, "A1", "Lab assay: "+r.Assay.File)
-	w.style(s, "A1", "A1", w.title)
-	row := 3
+	p.title("Lab assay: " + r.Assay.File)
 	if rc := r.Reconciliation; rc != nil {
-		if err := w.header(s, row, "element", "estimate wt%", "estimate σ", "assay wt%", "assay σ", "difference (σ)", "reading"); err != nil {
-			return err
-		}
-		var flagged []int
+		p.header("element", "estimate wt%", "estimate σ (wt%)", "assay wt%", "assay σ (wt%)", "difference (σ)", "reading")
 		for _, c := range rc.Comparisons {
-			row++
 			reading := c.Interpretation
+			vals := []any{c.Element, fixed(c.EstimateWtPct, 2), fixed(c.EstimateSigma, 2), fixed(c.AssayWtPct, 2), fixed(c.AssaySigma, 2), fixed(c.Z, 1), as(indented, reading)}
 			if c.Flag {
-				reading = "DISAGREES: " + reading
-				flagged = append(flagged, row)
+				// A disagreement beyond the threshold is coloured, so it is seen on paper too.
+				vals[6] = as(indented, "DISAGREES: "+reading)
+				for i := range vals {
+					vals[i] = as(alert, vals[i])
+				}
 			}
-			_ = w.row(s, row, c.Element, c.EstimateWtPct, c.EstimateSigma, c.AssayWtPct, c.AssaySigma, c.Z, reading)
-		}
-		w.style(s, "B4", fmt.Sprintf("F%d", row), w.num3)
-		for _, fr := range flagged {
-			// A disagreement beyond the threshold is coloured, so it is seen on paper too.
-			w.style(s, fmt.Sprintf("A%d", fr), fmt.Sprintf("G%d", fr), w.alert)
+			p.add(vals...)
 		}
 	} else {
-		if err := w.header(s, row, "element", "assay wt%", "σ wt%", "σ assumed"); err != nil {
-			return err
-		}
+		p.header("element", "assay wt%", "σ (wt%)", "σ assumed")
 		for _, v := range r.Assay.Values {
-			row++
-			_ = w.row(s, row, v.Element, v.WtPct, v.SigmaWtPct, v.SigmaAssumed)
+			p.add(v.Element, fixed(v.WtPct, 2), fixed(v.SigmaWtPct, 2), as(indented, yesNo(v.SigmaAssumed)))
 		}
 	}
-	w.style(s, "B4", fmt.Sprintf("F%d", row), w.num3)
 	if m := r.Mix; m != nil {
-		row += 2
-		if err := w.header(s, row, "mix component", "best fit (kg/kg)", "P10", "P50", "P90", "95 % low", "95 % high", "cathode share P50"); err != nil {
-			return err
-		}
-		first := row + 1
+		p.blank()
+		p.keepRows(len(m.Components))
+		p.header("mix component", "best fit (kg/kg)", "P10", "P50", "P90", "95 % low", "95 % high", "cathode share P50")
 		for _, c := range m.Components {
-			row++
 			vals := []any{c.Name, c.Best, c.KgPerKg.P10, c.KgPerKg.P50, c.KgPerKg.P90, c.Interval95[0], c.Interval95[1]}
 			if c.CathodeShare != nil {
-				vals = append(vals, c.CathodeShare.P50)
+				vals = append(vals, frac(c.CathodeShare.P50))
 			}
-			_ = w.row(s, row, vals...)
+			p.add(vals...)
 		}
-		w.style(s, fmt.Sprintf("B%d", first), fmt.Sprintf("H%d", row), w.num3)
-		row += 2
+		p.blank()
 		for _, n := range m.Notes {
-			_ = f.SetCellValue(s, fmt.Sprintf("A%d", row), n)
-			row++
+			p.paragraph(n, small)
 		}
 	}
-	_ = f.SetColWidth(s, "A", "A", 16)
-	_ = f.SetColWidth(s, "B", "H", 14)
-	w.printSetup(s, true)
 	return nil
 }

@@ -7,79 +7,92 @@ import (
 	"slices"
 )
 
+// leachWidths are the Leach sheet's columns (A4 landscape at 100 %).
+var leachWidths = []float64{36, 12, 12, 12, 12, 14, 13, 13}
+
+// fmtSig3 shows a formula's result to three significant figures (from 0.1 up), the value not
+// being known when the format is chosen.
+const fmtSig3 = "[>=100]#,##0;[>=10]#,##0.0;#,##0.00"
+
 func (w *writer) leach() error {
-	f, r := w.f, w.r
-	if _, err := f.NewSheet(Leach); err != nil {
+	r := w.r
+	l := r.Leach
+	p, err := w.newPage(Leach, true, leachWidths...)
+	if err != nil {
 		return err
 	}
 	s := Leach
-	l := r.Leach
 	if l == nil {
-		return f.SetCellValue(s, "A1", "No leach plan in this report.")
+		p.add("No leach plan in this report.")
+		return nil
 	}
-	_ = f.SetCellValue(s, "A1", "Leach plan: "+l.Route)
-	w.style(s, "A1", "A1", w.title)
-	if err := w.header(s, 3, "reagent", "P10 kg", "P50 kg", "P90 kg", "P50 litres", "× stoichiometry (P50)", "price per kg (edit)", "cost at P50"); err != nil {
-		return err
-	}
-	row := 4
+	p.title("Leach plan: " + l.Route)
+	p.blank()
+	p.header("reagent", "P10 kg", "P50 kg", "P90 kg", "P50 L", "× stoichiometry (P50)", "price per kg (edit)", "cost at P50")
+	first := p.row
 	for _, g := range l.Reagents {
-		if err := w.row(s, row, g.Name, g.Kg.P10, g.Kg.P50, g.Kg.P90, g.Litres.P50, g.Ratio.P50, priceOf(l, g)); err != nil {
-			return err
+		row := p.add(g.Name, g.Kg.P10, g.Kg.P50, g.Kg.P90, g.Litres.P50, fixed(g.Ratio.P50, 2))
+		// An unpriced reagent has a blank price and no cost, not a price of 0.
+		if price := priceOf(l, g); price > 0 {
+			w.set(s, 7, row, as(edit, money(price)))
+		} else {
+			w.set(s, 7, row, cellValue{fmt: fmtMoney, b: edit})
 		}
-		w.formula(s, fmt.Sprintf("H%d", row), fmt.Sprintf("C%d*G%d", row, row))
-		row++
+		w.formula(s, fmt.Sprintf("H%d", row), fmt.Sprintf(`IF(ISNUMBER(G%d),C%d*G%d,"not priced")`, row, row, row))
+		w.style(s, fmt.Sprintf("H%d", row), fmt.Sprintf("H%d", row), w.styleOf(plain, fmtMoney))
 	}
-	_ = f.SetCellValue(s, fmt.Sprintf("A%d", row), "total reagent cost (P50)")
-	w.formula(s, fmt.Sprintf("H%d", row), fmt.Sprintf("SUM(H4:H%d)", row-1))
-	w.style(s, "B4", fmt.Sprintf("H%d", row), w.num3)
-	w.style(s, "G4", fmt.Sprintf("G%d", row-1), w.edit)
-	row = w.recipeCalculator(s, row+2)
-	row += 2
-	if err := w.header(s, row, "gas", "P50 mol", "P50 m³ (0 °C, 1 atm)", "P90 m³ (0 °C, 1 atm)"); err != nil {
-		return err
-	}
-	row++
-	gasFirst := row
-	for _, name := range slices.Sorted(maps.Keys(l.Gases)) {
+	row := p.add(boldText("total reagent cost (P50)"))
+	w.formula(s, fmt.Sprintf("H%d", row), fmt.Sprintf(`IF(COUNT(H%d:H%d)=0,"not priced",SUM(H%d:H%d))`, first, row-1, first, row-1))
+	w.style(s, fmt.Sprintf("H%d", row), fmt.Sprintf("H%d", row), w.styleOf(bold, fmtMoney))
+	p.add(note("Shaded cells are inputs: type a price per kg of the reagent as bought and its cost follows; a blank price is not priced, never free."))
+	p.blank()
+	names := slices.Sorted(maps.Keys(l.Gases))
+	p.keepRows(len(names) + 1)
+	p.header("gas", "P50 mol", "P50 m³", "P90 m³", "at")
+	for _, name := range names {
 		g := l.Gases[name]
-		_ = w.row(s, row, name, g.Mol.P50, g.M3STP.P50, g.M3STP.P90)
-		row++
+		p.add(name, g.Mol.P50, g.M3STP.P50, g.M3STP.P90, as(indented, l.GasReference))
 	}
-	row++
-	_ = w.row(s, row, "liquor volume P50 (L)", l.Liquor.VolumeL.P50)
-	_ = w.row(s, row+1, "free acid P50 (mol/L)", l.FreeAcidMolPerL.P50)
-	w.style(s, fmt.Sprintf("B%d", gasFirst), fmt.Sprintf("D%d", row+1), w.num3)
-	row += 3
-	if err := w.header(s, row, "element", "P10 g/L", "P50 g/L", "P90 g/L", "P50 mol/L"); err != nil {
-		return err
-	}
-	first := row + 1
+	p.blank()
+	var syms []string
 	for _, sym := range r.ElementOrder {
-		c, ok := l.Liquor.Elements[sym]
-		if !ok {
-			continue
+		if _, ok := l.Liquor.Elements[sym]; ok {
+			syms = append(syms, sym)
 		}
-		row++
-		_ = w.row(s, row, sym, c.GPerL.P10, c.GPerL.P50, c.GPerL.P90, c.MolPerL.P50)
 	}
-	w.style(s, fmt.Sprintf("B%d", first), fmt.Sprintf("E%d", row), w.num3)
-	liquorFirst, liquorLast := first, row
-	row += 2
-	if err := w.header(s, row, "salt", "saturation ratio P50", "P90", "least soluble at °C"); err != nil {
-		return err
+	p.keepRows(len(syms) + 4)
+	p.header("liquor", "P10", "P50", "P90", "unit")
+	p.add("volume", l.Liquor.VolumeL.P10, l.Liquor.VolumeL.P50, l.Liquor.VolumeL.P90, as(indented, "L"))
+	p.add("make-up water", l.WaterL.P10, l.WaterL.P50, l.WaterL.P90, as(indented, "L"))
+	p.add("free acid", l.FreeAcidMolPerL.P10, l.FreeAcidMolPerL.P50, l.FreeAcidMolPerL.P90, as(indented, "mol/L"))
+	p.add(l.Liquor.Anion, l.Liquor.AnionMolPerL.P10, l.Liquor.AnionMolPerL.P50, l.Liquor.AnionMolPerL.P90, as(indented, "mol/L"))
+	p.blank()
+	p.keepRows(len(syms))
+	p.header("element", "P10 g/L", "P50 g/L", "P90 g/L", "P50 mol/L", "extraction P50")
+	for _, sym := range syms {
+		c := l.Liquor.Elements[sym]
+		var ext any
+		if e, ok := l.Liquor.ExtractionReached[sym]; ok {
+			ext = frac(e.P50)
+		}
+		p.add(sym, c.GPerL.P10, c.GPerL.P50, c.GPerL.P90, c.MolPerL.P50, ext)
 	}
-	satFirst := row + 1
-	for _, k := range slices.Sorted(maps.Keys(l.Saturation)) {
-		row++
-		_ = w.row(s, row, k, l.Saturation[k].P50, l.Saturation[k].P90, l.SaturationAtC[k])
+	p.blank()
+	sats := slices.Sorted(maps.Keys(l.Saturation))
+	p.keepRows(len(sats))
+	p.header("salt", "saturation P50", "saturation P90", "least soluble at (°C)")
+	for _, k := range sats {
+		p.add(k, frac(l.Saturation[k].P50), frac(l.Saturation[k].P90), fixed(l.SaturationAtC[k], 0))
 	}
-	w.style(s, fmt.Sprintf("B%d", satFirst), fmt.Sprintf("C%d", row), w.num3)
-	_ = f.SetColWidth(s, "A", "A", 36)
-	_ = f.SetColWidth(s, "B", "H", 15)
-	w.printSetup(s, true)
-	return w.rangeChart(s, fmt.Sprintf("A%d", row+3), "Leach liquor: P50 with P10–P90 (g/L)", liquorFirst, liquorLast, "B", "C", "D")
+	p.blank()
+	p.keepRows(calculatorRows(l))
+	p.row = w.recipeCalculator(p) + 1
+	p.blank()
+	return nil
 }
+
+// calculatorRows is about how many rows the dosing calculator takes.
+func calculatorRows(l *leach.Report) int { return 10 + 6*min(len(l.Reagents)-1, 1) }
 
 // recipeCalculator lays out the dosing as live formulas, in the mode the plan used: the
 // planner's (excess over stoichiometry, free-acid target) or the bench recipe's (acid molarity,
@@ -87,34 +100,31 @@ func (w *writer) leach() error {
 // are the report's P50 values: in recipe mode the result equals the Monte Carlo P50 above; in
 // planner mode it is close to it (the P50 of a sum is not the sum of P50s). It returns the last
 // row used.
-func (w *writer) recipeCalculator(s string, row int) int {
-	f, l := w.f, w.r.Leach
+func (w *writer) recipeCalculator(p *page) int {
+	s, l := p.s, w.r.Leach
 	st := l.Settings
 	recipe := st.RecipeAcidMolPerL > 0
 	title := "Dosing calculator, planner mode (edit the shaded cells; P50 inputs)"
 	if recipe {
 		title = "Dosing calculator, bench-recipe mode (edit the shaded cells; P50 inputs)"
 	}
-	_ = f.SetCellValue(s, fmt.Sprintf("A%d", row), title)
-	_ = f.MergeCell(s, fmt.Sprintf("A%d", row), fmt.Sprintf("D%d", row))
-	w.style(s, fmt.Sprintf("A%d", row), fmt.Sprintf("D%d", row), w.hdr)
+	p.header(title, "")
+	a, b := fmt.Sprintf("A%d", p.row-1), fmt.Sprintf("B%d", p.row-1)
+	_ = w.f.MergeCell(s, a, b)
 	acid := l.Reagents[0]
 	cells := map[string]string{}
-	put := func(key, label string, v any, editable bool) {
-		row++
-		_ = w.row(s, row, label, v)
-		cells[key] = fmt.Sprintf("$B$%d", row)
-		style := w.num3
+	put := func(key, label string, v float64, editable bool) {
+		c := kg(v)
 		if editable {
-			style = w.edit
+			c.b = edit
 		}
-		w.style(s, fmt.Sprintf("B%d", row), fmt.Sprintf("B%d", row), style)
+		row := p.add(label, c)
+		cells[key] = fmt.Sprintf("$B$%d", row)
 	}
 	formula := func(key, label, expr string) {
-		row++
-		_ = w.row(s, row, label)
+		row := p.add(label)
 		w.formula(s, fmt.Sprintf("B%d", row), expr)
-		w.style(s, fmt.Sprintf("B%d", row), fmt.Sprintf("B%d", row), w.num3)
+		w.style(s, fmt.Sprintf("B%d", row), fmt.Sprintf("B%d", row), w.styleOf(plain, fmtSig3))
 		cells[key] = fmt.Sprintf("$B$%d", row)
 	}
 	put("vol", "liquor volume (L)", l.Liquor.VolumeL.P50, true)
@@ -161,7 +171,7 @@ func (w *writer) recipeCalculator(s string, row int) int {
 		}
 	}
 	formula("water", "make-up water (L)", water)
-	return row
+	return p.row - 1
 }
 
 func priceOf(l *leach.Report, g leach.Reagent) float64 {

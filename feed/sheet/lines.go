@@ -3,6 +3,8 @@ package sheet
 import (
 	"blackmass/feed/manifest"
 	"fmt"
+	"math"
+	"strconv"
 	"strings"
 
 	"github.com/xuri/excelize/v2"
@@ -26,10 +28,42 @@ func (w *writer) lines() error {
 	if _, err := f.NewSheet(Lines); err != nil {
 		return err
 	}
-	w.pageSetup(Lines, true, false) // page setup goes in before the stream writer takes the sheet
-	_ = f.SetDefinedName(&excelize.DefinedName{Name: "_xlnm.Print_Titles", RefersTo: "'" + Lines + "'!$A:$A,'" + Lines + "'!$1:$1", Scope: Lines})
+	// Page setup goes in before the stream writer takes the sheet: the columns a bench reads
+	// print on one landscape page width with the header row on every page; the rest of the
+	// columns (what the manifest said, and what the estimate made of it) stay in the file, out of
+	// the print area.
+	w.printSetup(Lines, true)
+	w.printTitles(Lines, 1, 1)
+	w.printArea(Lines, PrintedLineColumns, len(r.Lines)+2)
 	return nil
 }
+
+// PrintedLineColumns is how many of the Lines sheet's columns print: id, description, chemistry
+// as read, format, count, energy per item, mass per item and black mass.
+const PrintedLineColumns = 8
+
+// lineColumn is a column of the Lines sheet: its header, width, and whether its text wraps.
+type lineColumn struct {
+	head  string
+	width float64
+	wrap  bool
+}
+
+// lineColumns are the Lines sheet's columns. The manifest's own are headed so the sheet reads
+// back as a manifest (by header, in any order); the computed ones (manifest.DerivedLineColumns)
+// are read past.
+func lineColumns(idWidth float64) []lineColumn {
+	d := manifest.DerivedLineColumns // line, chemistry resolved, energy, modelled mass, Wh/kg, cathode, black mass, flags
+	return []lineColumn{{"id", idWidth, true}, {"description", 34, true}, {"chemistry", 18, true}, {"format", 12, true},
+		{"count", 8, false}, {d[2], 12, false}, {"mass (kg)", 10, false}, {d[6], 14, false},
+		{"capacity", 11, true}, {"capacity basis", 9, true}, {"voltage (V)", 8, false}, {"cells per pack", 8, false},
+		{"notes", 30, true}, {"application", 12, true}, {d[0], 6, false}, {d[1], 18, true},
+		{d[3], 12, false}, {d[4], 10, false}, {d[5], 12, false}, {d[7], 50, true}}
+}
+
+// lineRowPt is the height of a Lines row of one line of 10 pt text: the sheet is long, so its
+// rows are as low as the text allows.
+const lineRowPt = 12.75
 
 // streamLines writes the Lines sheet's rows through the stream writer.
 func (w *writer) streamLines() error {
@@ -41,45 +75,85 @@ func (w *writer) streamLines() error {
 	if err != nil {
 		return err
 	}
-	widths := []float64{12, 28, 16, 11, 11, 9, 9, 9, 8, 10, 28, 12, 6, 18, 12, 12, 10, 12, 12, 50}
-	for i, wd := range widths {
-		_ = sw.SetColWidth(i+1, i+1, wd)
+	idWidth := 6.0
+	for _, l := range r.Lines {
+		idWidth = max(idWidth, float64(len([]rune(l.ID)))+2)
 	}
-	_ = sw.SetColStyle(15, 19, w.num3)
+	cols := lineColumns(min(idWidth, 14))
+	for i, c := range cols {
+		_ = sw.SetColWidth(i+1, i+1, c.width)
+	}
 	_ = sw.SetPanes(&excelize.Panes{Freeze: true, XSplit: 1, YSplit: 1, TopLeftCell: "B2", ActivePane: "bottomRight"})
-	// The first columns are the manifest's own, headed so the sheet reads back as a manifest;
-	// the rest are computed (manifest.DerivedLineColumns) and are read past.
-	head := []any{"id", "description", "chemistry", "format", "capacity", "capacity basis", "voltage (V)", "cells per pack", "count", "mass (kg)", "notes", "application"}
-	for _, h := range manifest.DerivedLineColumns {
-		head = append(head, h)
+	names := make([]any, len(cols))
+	headH := rowPt
+	for i, c := range cols {
+		names[i] = c.head
+		headH = max(headH, cellHeight(c.head, c.width, head))
 	}
-	if err := sw.SetRow("A1", head, excelize.RowOpts{StyleID: w.hdr, Height: 45}); err != nil {
+	if err := sw.SetRow("A1", names, excelize.RowOpts{StyleID: w.styleOf(head, ""), Height: headH}); err != nil {
 		return err
 	}
+	textStyle, wrapStyle, countStyle := w.styleOf(plain, fmtText), w.styleOf(wrapped, fmtText), w.styleOf(plain, fmtCount)
 	for i, l := range r.Lines {
-		flags := strings.Join(l.Flags, "; ")
-		row := []any{text(l.ID), text(l.Description), text(l.ChemistryLabel), l.Format, l.CapacityGiven, l.CapacityBasis, opt(l.VoltageV),
-			optInt(l.CellsPerItem), l.Count, opt(l.MeasuredMassKg), text(l.Notes), l.Application,
-			l.Line, l.Chemistry, l.EnergyWhPerItem, l.ModelMassKgEach, opt(l.MeasuredWhPerKg), l.CathodeKg, l.BlackMassKg, flags}
+		vals := []any{l.ID, l.Description, l.ChemistryLabel, l.Format, l.Count, l.EnergyWhPerItem, opt(l.MeasuredMassKg), l.BlackMassKg,
+			l.CapacityGiven, l.CapacityBasis, opt(l.VoltageV), optInt(l.CellsPerItem), l.Notes, l.Application,
+			l.Line, l.Chemistry, l.ModelMassKgEach, opt(l.MeasuredWhPerKg), l.CathodeKg, strings.Join(l.Flags, "; ")}
+		h := lineRowPt
+		row := make([]any, len(vals))
+		for j, v := range vals {
+			switch x := v.(type) {
+			case string:
+				st := textStyle
+				if cols[j].wrap {
+					st = wrapStyle
+					if j < PrintedLineColumns { // the printed rows are as tall as their text
+						if n := textLines(x, cols[j].width, false); n > 1 {
+							h = max(h, float64(n)*linePt+2)
+						}
+					}
+				}
+				row[j] = excelize.Cell{StyleID: st, Value: x} // user text as typed, never a formula
+			case int:
+				row[j] = excelize.Cell{StyleID: countStyle, Value: x}
+			case float64:
+				row[j] = excelize.Cell{StyleID: w.sigStyle(x), Value: x}
+			}
+		}
 		cell, _ := excelize.CoordinatesToCellName(1, i+2)
-		if err := sw.SetRow(cell, row); err != nil {
+		if err := sw.SetRow(cell, row, excelize.RowOpts{Height: h}); err != nil {
 			return err
 		}
 	}
 	// A totals row from the report, in the computed columns only, so that the sheet read back
 	// as a manifest passes over it (a row with nothing in the manifest's own columns).
 	if len(r.Lines) > 0 {
-		cell, _ := excelize.CoordinatesToCellName(13, len(r.Lines)+2)
-		total := []any{"lot", fmt.Sprintf("%d items", r.Lot.Items), r.Lot.NameplateKWh * 1000, nil, nil, nil, r.BlackMassKg.P50,
-			fmt.Sprintf("black mass P50 of the lot (P10 %.3f, P90 %.3f kg); lines above are most likely values", r.BlackMassKg.P10, r.BlackMassKg.P90)}
-		if err := sw.SetRow(cell, total, excelize.RowOpts{StyleID: w.hdr}); err != nil {
+		tot := w.styleOf(total, "")
+		row := make([]any, len(cols))
+		for j := range row {
+			row[j] = excelize.Cell{StyleID: tot}
+		}
+		row[5] = excelize.Cell{StyleID: tot, Value: "lot, P50"}
+		row[7] = excelize.Cell{StyleID: w.styleOf(total, sigFmt(r.BlackMassKg.P50)), Value: r.BlackMassKg.P50}
+		row[14] = excelize.Cell{StyleID: tot, Value: "lot"}
+		row[15] = excelize.Cell{StyleID: tot, Value: thousands(r.Lot.Items) + " items"}
+		row[19] = excelize.Cell{StyleID: tot, Value: fmt.Sprintf("black mass P50 of the lot (P10 %s, P90 %s kg); lines above are most likely values",
+			sig3(r.BlackMassKg.P10), sig3(r.BlackMassKg.P90))}
+		cell, _ := excelize.CoordinatesToCellName(1, len(r.Lines)+2)
+		if err := sw.SetRow(cell, row, excelize.RowOpts{Height: rowPt + 2}); err != nil {
 			return err
 		}
-	}
-	if len(r.Lines) > 0 {
-		_ = f.AutoFilter(Lines, fmt.Sprintf("A1:T%d", len(r.Lines)+1), nil)
+		last, _ := excelize.ColumnNumberToName(len(cols))
+		_ = f.AutoFilter(Lines, fmt.Sprintf("A1:%s%d", last, len(r.Lines)+1), nil)
 	}
 	return sw.Flush()
+}
+
+// sig3 prints a number to three significant figures for a sentence.
+func sig3(v float64) string {
+	if v == 0 {
+		return "0"
+	}
+	return strconv.FormatFloat(v, 'f', min(6, max(0, 2-int(math.Floor(math.Log10(math.Abs(v)))))), 64)
 }
 
 // opt leaves a cell empty for a value that was not given (0).
@@ -96,6 +170,3 @@ func optInt(v int) any {
 	}
 	return v
 }
-
-// text is user text for a cell: as typed, and never read as a formula.
-func text(s string) any { return excelize.Cell{Value: s} }

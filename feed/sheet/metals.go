@@ -7,22 +7,22 @@ import (
 	"github.com/xuri/excelize/v2"
 )
 
+// metalsWidths are the Metals sheet's columns (A4 portrait at 100 %).
+var metalsWidths = []float64{12, 10, 10, 10, 10, 10, 10, 10}
+
 func (w *writer) metals() error {
-	f, r := w.f, w.r
-	if _, err := f.NewSheet(Metals); err != nil {
+	r := w.r
+	p, err := w.newPage(Metals, false, metalsWidths...)
+	if err != nil {
 		return err
 	}
 	s := Metals
-	if err := w.header(s, 1, "element", "P10 kg", "P50 kg", "P90 kg", "mean kg", "P10 wt%", "P50 wt%", "P90 wt%"); err != nil {
-		return err
-	}
-	for i, sym := range r.ElementOrder {
+	p.header("element", "P10 kg", "P50 kg", "P90 kg", "mean kg", "P10 wt%", "P50 wt%", "P90 wt%")
+	w.printTitles(s, 1, 1)
+	for _, sym := range r.ElementOrder {
 		a := r.Elements[sym]
-		if err := w.row(s, i+2, sym, a.Kg.P10, a.Kg.P50, a.Kg.P90, a.Kg.Mean, a.WtPct.P10, a.WtPct.P50, a.WtPct.P90); err != nil {
-			return err
-		}
+		p.add(sym, a.Kg.P10, a.Kg.P50, a.Kg.P90, a.Kg.Mean, fixed(a.WtPct.P10, 2), fixed(a.WtPct.P50, 2), fixed(a.WtPct.P90, 2))
 	}
-	last := len(r.ElementOrder) + 1
 	metals := 1 // the chart shows the leading metals of the display order
 	for _, sym := range r.ElementOrder {
 		if !cathode.IsMetal(sym) {
@@ -30,11 +30,9 @@ func (w *writer) metals() error {
 		}
 		metals++
 	}
-	w.style(s, "B2", fmt.Sprintf("E%d", last), w.num3)
-	w.style(s, "F2", fmt.Sprintf("H%d", last), w.pct)
-	_ = f.SetColWidth(s, "A", "H", 12)
-	w.printSetup(s, true)
-	return w.rangeChart(s, fmt.Sprintf("A%d", last+3), "Metals in the black mass: P50 with P10–P90 (kg)", 2, max(metals, 2), "B", "C", "D")
+	p.blank()
+	at := p.row
+	return w.rangeChart(s, fmt.Sprintf("A%d", at), "Metals in the black mass: P50 with P10–P90 (kg)", 2, max(metals, 2), "B", "C", "D")
 }
 
 // rangeChart draws a column's P50 as points with a line from P10 to P90 in each category (a

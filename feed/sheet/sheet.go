@@ -37,6 +37,9 @@ type writer struct {
 	hdr, num3, pct, title int
 	edit                  int // cells a user is expected to change
 	r                     *report.Report
+	styles                map[styleKey]int // made on demand (styleOf)
+	sigStyles             [8]int           // sigStyle's, by decimals + 1
+	err                   error            // the first error making a style
 }
 
 // Write builds the workbook and writes it to w.
@@ -102,14 +105,14 @@ func Build(r *report.Report) (*excelize.File, error) {
 // the caller computes the formulas first (see writer.lines).
 func build(r *report.Report, paper int) (f *excelize.File, formulas []formulaCell, streamLines func() error, err error) {
 	f = excelize.NewFile()
-	wr := &writer{f: f, r: r, paper: paper}
+	wr := &writer{f: f, r: r, paper: paper, styles: map[styleKey]int{}}
 	must := func(id int, e error) int {
 		if e != nil && err == nil {
 			err = e
 		}
 		return id
 	}
-	wr.hdr = must(f.NewStyle(&excelize.Style{Font: &excelize.Font{Bold: true}, Fill: excelize.Fill{Type: "pattern", Pattern: 1, Color: []string{"D9E2D0"}},
+	wr.hdr = must(f.NewStyle(&excelize.Style{Font: &excelize.Font{Bold: true, Size: bodyPt}, Fill: excelize.Fill{Type: "pattern", Pattern: 1, Color: []string{"D9E2D0"}},
 		Border: []excelize.Border{{Type: "bottom", Color: "5B6B4E", Style: 1}}, Alignment: &excelize.Alignment{WrapText: true, Vertical: "top"}}))
 	f3 := "0.000"
 	wr.num3 = must(f.NewStyle(&excelize.Style{CustomNumFmt: &f3}))
@@ -132,9 +135,13 @@ func build(r *report.Report, paper int) (f *excelize.File, formulas []formulaCel
 	}
 	// The summary is made active before the Lines sheet is streamed: setting it afterwards would
 	// make the xlsx library parse the streamed sheet back into memory.
-	steps := []func() error{wr.summary, func() error { f.SetActiveSheet(0); return nil }, wr.lines, wr.metals, wr.leach, wr.order, wr.value, wr.assay, wr.assumptions, wr.weighIn}
+	steps := []func() error{wr.summary, func() error { f.SetActiveSheet(0); return nil }, wr.lines, wr.metals, wr.leach, wr.value, wr.assay, wr.assumptions, wr.weighIn}
 	for _, s := range steps {
-		if err := s(); err != nil {
+		err := s()
+		if err == nil {
+			err = wr.err
+		}
+		if err != nil {
 			f.Close()
 			return nil, nil, nil, err
 		}

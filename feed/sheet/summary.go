@@ -1,105 +1,222 @@
 package sheet
 
 import (
+	"blackmass/cathode"
 	"blackmass/feed/dist"
+	"blackmass/feed/value"
 	"fmt"
+	"maps"
+	"slices"
+	"strings"
 )
 
+// summaryWidths are the summary's columns: a label, then five numbers (A4 portrait at 100 %).
+var summaryWidths = []float64{30, 11, 11, 11, 16, 12}
+
+// summary is the first one or two pages: everything a bench acts on (the lot, its black mass
+// and metals, what to order, the gases to vent, the liquor, the value, every warning and the
+// cautions); the other sheets are its appendices.
 func (w *writer) summary() error {
-	f, r := w.f, w.r
-	if err := f.SetSheetName("Sheet1", Summary); err != nil {
+	r := w.r
+	if err := w.f.SetSheetName("Sheet1", Summary); err != nil {
 		return err
 	}
-	s := Summary
+	p, err := w.newPage(Summary, false, summaryWidths...)
+	if err != nil {
+		return err
+	}
 	in := r.Inputs
-	_ = f.SetCellValue(s, "A1", "Black-mass intake sheet")
-	w.style(s, "A1", "A1", w.title)
-	rows := [][]any{
-		{"Lot id", in.LotID}, {"Supplier", in.Supplier}, {"Received (date)", ""}, {"Operator", ""},
-		{"Input file", in.File}, {"Input SHA-256", in.SHA256},
-	}
+	p.title("Black-mass intake sheet, lot " + shorten(w.lotID(), 80))
+	p.blank()
+	p.add(boldText("Lot id"), in.LotID)
+	p.add(boldText("Supplier"), in.Supplier)
+	w.set(Summary, 2, p.add(boldText("Received (date)")), cellValue{fmt: fmtDate, b: edit})
+	w.set(Summary, 2, p.add(boldText("Operator")), cellValue{fmt: fmtText, b: edit})
+	p.add(boldText("Input file"), in.File)
+	p.add(boldText("Input SHA-256"), in.SHA256)
 	if r.Lot.Lines > 0 {
-		rows = append(rows, []any{"Lines / items / cells", fmt.Sprintf("%d / %d / %d", r.Lot.Lines, r.Lot.Items, r.Lot.Cells)},
-			[]any{"Nameplate energy (kWh)", r.Lot.NameplateKWh})
-	} else {
-		rows = append(rows, []any{"Black mass", "weighed; composition from a lab assay"})
+		p.add(boldText("Lines / items / cells"), fmt.Sprintf("%s / %s / %s", thousands(r.Lot.Lines), thousands(r.Lot.Items), thousands(r.Lot.Cells)))
+		p.add(boldText("Nameplate energy (kWh)"), kg(r.Lot.NameplateKWh))
 	}
-	for i, v := range rows {
-		if err := w.row(s, 3+i, v...); err != nil {
-			return err
-		}
+	if r.Basis != "" {
+		p.add(boldText("Basis"), r.Basis)
 	}
-	w.style(s, "B5", "B6", w.editText) // received and operator: filled in at the bench
-	row := 3 + len(rows) + 1
-	if err := w.header(s, row, "Quantity", "P10", "P50", "P90", "Mean"); err != nil {
-		return err
-	}
-	row++
-	add := func(name string, st dist.Stat) error {
-		err := w.row(s, row, name, st.P10, st.P50, st.P90, st.Mean)
-		w.style(s, fmt.Sprintf("B%d", row), fmt.Sprintf("E%d", row), w.num3)
-		row++
-		return err
-	}
-	if err := add("Black mass (kg)", r.BlackMassKg); err != nil {
-		return err
-	}
-	for _, sym := range r.ElementOrder {
-		if err := add(sym+" (kg)", r.Elements[sym].Kg); err != nil {
-			return err
-		}
-	}
-	if l := r.Leach; l != nil {
-		row++
-		_ = f.SetCellValue(s, fmt.Sprintf("A%d", row), "Leach quote ("+l.Route+")")
-		w.style(s, fmt.Sprintf("A%d", row), fmt.Sprintf("A%d", row), w.hdr)
-		row++
-		for _, g := range l.Reagents {
-			if err := add(g.Name+" (kg)", g.Kg); err != nil {
-				return err
-			}
-			if err := add(g.Name+" (L)", g.Litres); err != nil {
-				return err
-			}
-		}
-	}
-	row++
-	for _, title := range []string{"Warnings", "Safety"} {
-		_ = f.SetCellValue(s, fmt.Sprintf("A%d", row), title)
-		w.style(s, fmt.Sprintf("A%d", row), fmt.Sprintf("A%d", row), w.hdr)
-		row++
-		list := r.Warnings
-		if title == "Safety" {
-			list = r.Safety
-			if r.Leach != nil {
-				list = append(append([]string{}, r.Leach.Safety...), r.Safety...)
-			}
-		} else if r.Leach != nil {
-			list = append(append([]string{}, list...), r.Leach.Warnings...)
-		}
-		for _, t := range list {
-			w.paragraph(s, row, "E", t, summaryLineChars)
-			row++
-		}
-		row++
-	}
-	_ = f.SetColWidth(s, "A", "A", 34)
-	_ = f.SetColWidth(s, "B", "E", 14)
-	w.printSetup(s, false)
+	p.add(boldText("Monte Carlo"), fmt.Sprintf("%d samples, seed %d; P10, P50, P90: 10th, 50th, 90th percentiles", in.Samples, in.Seed))
+	p.blank()
+	w.summaryMetals(p)
+	w.summaryOrder(p)
+	w.summaryLeach(p)
+	w.summaryValue(p)
+	w.summaryNotes(p)
 	return nil
 }
 
-// summaryLineChars is about how many characters a line of the summary's merged A:E cells holds
-// at 10 pt (34 + 4 × 14 column widths).
-const summaryLineChars = 95
+// thousands prints a count with thousands separators.
+func thousands(n int) string {
+	s := fmt.Sprint(n)
+	for i := len(s) - 3; i > 0 && s[i-1] != '-'; i -= 3 {
+		s = s[:i] + "," + s[i:]
+	}
+	return s
+}
 
-// paragraph writes a long text across columns A..last of a row, wrapped, the row tall enough for
-// its lines, so that it prints at full size instead of shrinking the page to fit.
-func (w *writer) paragraph(sheet string, row int, last, text string, lineChars int) {
-	a, b := fmt.Sprintf("A%d", row), fmt.Sprintf("%s%d", last, row)
-	_ = w.f.SetCellStr(sheet, a, text)
-	_ = w.f.MergeCell(sheet, a, b)
-	_ = w.f.SetCellStyle(sheet, a, b, w.wrap)
-	lines := (len([]rune(text)) + lineChars - 1) / lineChars
-	_ = w.f.SetRowHeight(sheet, row, float64(max(lines, 1))*13.5)
+func (w *writer) summaryMetals(p *page) {
+	r := w.r
+	var metals []string
+	for _, sym := range r.ElementOrder {
+		if cathode.IsMetal(sym) {
+			metals = append(metals, sym)
+		}
+	}
+	p.keepRows(len(metals) + 2)
+	p.section("Black mass and its metals")
+	p.header("", "P10 kg", "P50 kg", "P90 kg", "P50 wt%")
+	p.add(boldText("Black mass"), kg(r.BlackMassKg.P10), kg(r.BlackMassKg.P50), kg(r.BlackMassKg.P90))
+	for _, sym := range metals {
+		a := r.Elements[sym]
+		p.add(sym, kg(a.Kg.P10), kg(a.Kg.P50), kg(a.Kg.P90), fixed(a.WtPct.P50, 2))
+	}
+	p.blank()
+}
+
+// orderUnits picks kg and L for a bench's amounts, t and m³ from a tonne or a cubic metre.
+func orderUnits(o *value.OrderSheet) (massUnit, volUnit string, perKg, perL float64) {
+	massUnit, volUnit, perKg, perL = "kg", "L", 1, 1
+	for _, l := range o.Lines {
+		if l.Kg.P90 >= 1000 {
+			massUnit, perKg = "t", 0.001
+		}
+		if l.Litres != nil && l.Litres.P90 >= 1000 {
+			volUnit, perL = "m³", 0.001
+		}
+	}
+	return
+}
+
+// suggestion is the container to buy a reagent in, or why there is none.
+func suggestion(l value.OrderLine) string {
+	if c := l.Suggested; c != nil {
+		return fmt.Sprintf("%d × %s", c.Count, c.Container)
+	}
+	return "no container of its kind given"
+}
+
+func (w *writer) summaryOrder(p *page) {
+	o := w.r.Order
+	if o == nil || len(o.Lines) == 0 {
+		return
+	}
+	mu, vu, perKg, perL := orderUnits(o)
+	cur := o.Currency
+	if cur == "" {
+		cur = "no currency"
+	}
+	p.keepRows(len(o.Lines) + 3)
+	p.section("Reagents to order (" + o.Basis + ")")
+	p.header("reagent", "P50 "+mu, "P90 "+mu, "P90 "+vu, "buy (P90)", "cost P90 ("+cur+")")
+	for _, l := range o.Lines {
+		var litres any
+		if l.Litres != nil {
+			litres = kg(l.Litres.P90 * perL)
+		}
+		var cost any = "not priced"
+		if l.CostP90 != nil {
+			cost = money(*l.CostP90)
+		}
+		p.add(l.Reagent, kg(l.Kg.P50*perKg), kg(l.Kg.P90*perKg), litres, as(indented, suggestion(l)), cost)
+	}
+	if l := w.r.Leach; l != nil {
+		p.add("make-up water", nil, nil, kg(l.WaterL.P90*perL), "")
+	}
+	p.blank()
+}
+
+func (w *writer) summaryLeach(p *page) {
+	l := w.r.Leach
+	if l == nil {
+		return
+	}
+	names := slices.Sorted(maps.Keys(l.Gases))
+	p.keepRows(len(names) + 2)
+	p.section("Gases given off (" + l.GasReference + "): vent for the P90")
+	p.header("gas", "P50 mol", "P50 m³", "P90 m³")
+	for _, name := range names {
+		g := l.Gases[name]
+		p.add(name, kg(g.Mol.P50), kg(g.M3STP.P50), kg(g.M3STP.P90))
+	}
+	if len(names) == 0 {
+		p.add("none in the plan")
+	}
+	p.blank()
+	var syms []string
+	for _, sym := range w.r.ElementOrder {
+		if _, ok := l.Liquor.Elements[sym]; ok && cathode.IsMetal(sym) {
+			syms = append(syms, sym)
+		}
+	}
+	p.keepRows(len(syms) + 5)
+	p.section("Leach liquor (" + l.Route + ")")
+	p.header("", "P10", "P50", "P90", "unit")
+	p.add(boldText("liquor volume"), kg(l.Liquor.VolumeL.P10), kg(l.Liquor.VolumeL.P50), kg(l.Liquor.VolumeL.P90), as(indented, "L"))
+	p.add(boldText("free acid"), kg(l.FreeAcidMolPerL.P10), kg(l.FreeAcidMolPerL.P50), kg(l.FreeAcidMolPerL.P90), as(indented, "mol/L"))
+	p.header("metal", "P10 g/L", "P50 g/L", "P90 g/L", "extraction P50")
+	for _, sym := range syms {
+		c := l.Liquor.Elements[sym]
+		var ext any
+		if e, ok := l.Liquor.ExtractionReached[sym]; ok {
+			ext = frac(e.P50)
+		}
+		p.add(sym, kg(c.GPerL.P10), kg(c.GPerL.P50), kg(c.GPerL.P90), ext)
+	}
+	p.blank()
+}
+
+func (w *writer) summaryValue(p *page) {
+	v := w.r.Value
+	if v == nil {
+		if w.r.Lot.Lines > 0 {
+			p.add(boldText("Value"), "no prices given (run with --prices FILE)")
+			p.blank()
+		}
+		return
+	}
+	p.keepRows(5)
+	p.section("Value at the prices of " + v.PricesFile)
+	p.header("", "P10 ("+v.Currency+")", "P50 ("+v.Currency+")", "P90 ("+v.Currency+")")
+	row := func(label string, s dist.Stat) { p.add(label, money(s.P10), money(s.P50), money(s.P90)) }
+	row("payable value", v.Payable)
+	if v.ReagentCost != nil {
+		row("reagent cost", *v.ReagentCost)
+	}
+	if v.NetOfReagents != nil {
+		row("payable net of reagents", *v.NetOfReagents)
+	}
+	row("payable per tonne of black mass", v.PayablePerTonneBM)
+	p.blank()
+}
+
+// summaryNotes writes every warning, then the cautions.
+func (w *writer) summaryNotes(p *page) {
+	r := w.r
+	warnings := slices.Clone(r.Warnings)
+	cautions := slices.Clone(r.Safety)
+	if l := r.Leach; l != nil {
+		warnings = append(warnings, l.Warnings...)
+		cautions = append(slices.Clone(l.Safety), cautions...)
+	}
+	for _, part := range []struct {
+		title string
+		list  []string
+	}{{"Warnings", warnings}, {"Cautions", cautions}} {
+		if len(part.list) == 0 {
+			continue
+		}
+		first := cellHeight(part.list[0], p.width(1, len(p.widths)), wrapped)
+		p.keep(rowPt + first)
+		p.section(part.title)
+		for _, t := range part.list {
+			p.paragraph("• "+strings.TrimSpace(t), wrapped)
+		}
+		p.blank()
+	}
 }

@@ -5,68 +5,99 @@ import (
 	"fmt"
 )
 
-// ValueSheet is the name of the value sheet.
-const ValueSheet = "Value"
+// ValueSheet is the name of the sheet of the order and the value.
+const ValueSheet = "Order and value"
 
-// value lays out the lot's value at the prices given (P10/P50/P90 from the same draws as the
-// metals); without prices it says there is no value rather than showing zeros.
+// OrderSheetName is the sheet the order is on.
+const OrderSheetName = ValueSheet
+
+// valueWidths are the columns of the order and value sheet (A4 landscape at 100 %).
+var valueWidths = []float64{28, 11, 11, 11, 11, 12, 15, 11, 20}
+
+// value lays out what to order for the leach (each reagent for the lot at P50 and P90, per tonne
+// of black mass, the container to buy it in, its price or the lack of one), then the lot's value
+// at the prices given (P10/P50/P90 from the same draws as the metals); without prices it says
+// there is no value rather than showing zeros.
 func (w *writer) value() error {
-	f, r := w.f, w.r
-	if r.Lot.Lines == 0 && r.Value == nil {
+	r := w.r
+	o := r.Order
+	hasOrder := o != nil && len(o.Lines) > 0
+	if r.Lot.Lines == 0 && r.Value == nil && !hasOrder {
 		return nil
 	}
-	if _, err := f.NewSheet(ValueSheet); err != nil {
+	p, err := w.newPage(ValueSheet, true, valueWidths...)
+	if err != nil {
 		return err
 	}
-	s := ValueSheet
+	if hasOrder {
+		w.order(p)
+	}
 	v := r.Value
 	if v == nil {
-		_ = f.SetCellValue(s, "A1", "No prices were given, so the lot has no value here (run with --prices FILE).")
-		w.printSetup(s, false)
+		p.add("No prices were given, so the lot has no value here (run with --prices FILE).")
 		return nil
 	}
-	_ = f.SetCellValue(s, "A1", fmt.Sprintf("Value in %s, prices from %s", v.Currency, v.PricesFile))
-	w.style(s, "A1", "A1", w.title)
-	if err := w.header(s, 3, "item", "priced kg (P50)", "price per kg", "payable share", "contained value (P50)",
-		"payable P10", "payable P50", "payable P90", "price source"); err != nil {
-		return err
-	}
-	row := 3
+	p.keepRows(len(v.Elements) + 6)
+	p.title(fmt.Sprintf("Value in %s, prices from %s", v.Currency, v.PricesFile))
+	p.header("item", "priced kg (P50)", "price per kg", "payable share", "contained value (P50)",
+		"payable P10", "payable P50", "payable P90", "price source")
 	for _, e := range v.Elements {
-		row++
 		item := e.Element
 		if e.Basis == value.BasisLCE {
 			item += " as LCE"
 		}
-		_ = w.row(s, row, item, e.ProductKg.P50, e.PricePerKg, e.Payable, e.Contained.P50, e.PayableVal.P10, e.PayableVal.P50, e.PayableVal.P90, e.Source)
+		p.add(item, e.ProductKg.P50, money(e.PricePerKg), frac(e.Payable), money(e.Contained.P50), money(e.PayableVal.P10),
+			money(e.PayableVal.P50), money(e.PayableVal.P90), as(indented, e.Source))
 	}
-	w.style(s, "B4", fmt.Sprintf("B%d", row), w.num3)
-	w.style(s, "E4", fmt.Sprintf("H%d", row), w.money)
-	w.style(s, "I4", fmt.Sprintf("I%d", row), w.textAfterNumber)
-	row++
-	_ = w.row(s, row, "lot", nil, nil, nil, v.Contained.P50, v.Payable.P10, v.Payable.P50, v.Payable.P90)
-	w.style(s, fmt.Sprintf("A%d", row), fmt.Sprintf("H%d", row), w.moneyTotal)
-	row += 2
-	sums := row
-	_ = w.row(s, row, "payable per tonne of black mass (P50)", v.PayablePerTonneBM.P50)
-	if v.PayablePerKWh != nil {
-		row++
-		_ = w.row(s, row, "payable per kWh received (P50)", v.PayablePerKWh.P50)
+	p.add(as(total, "lot"), as(total, nil), as(total, nil), as(total, nil), as(total, money(v.Contained.P50)),
+		as(total, money(v.Payable.P10)), as(total, money(v.Payable.P50)), as(total, money(v.Payable.P90)), as(total, nil))
+	p.blank()
+	p.header("per unit and net", "P10", "P50", "P90")
+	p.add(wrap("payable per tonne of black mass"), money(v.PayablePerTonneBM.P10), money(v.PayablePerTonneBM.P50), money(v.PayablePerTonneBM.P90))
+	if k := v.PayablePerKWh; k != nil {
+		p.add(wrap("payable per kWh received"), money(k.P10), money(k.P50), money(k.P90))
 	}
-	if v.NetOfReagents != nil {
-		row++
-		_ = w.row(s, row, "reagent cost (P50)", v.ReagentCost.P50)
-		row++
-		_ = w.row(s, row, "payable net of reagents P10 / P50 / P90", v.NetOfReagents.P10, v.NetOfReagents.P50, v.NetOfReagents.P90)
+	if c := v.ReagentCost; c != nil {
+		p.add(wrap("reagent cost"), money(c.P10), money(c.P50), money(c.P90))
 	}
-	w.style(s, fmt.Sprintf("B%d", sums), fmt.Sprintf("D%d", row), w.money)
+	if n := v.NetOfReagents; n != nil {
+		p.add(wrap("payable net of reagents"), money(n.P10), money(n.P50), money(n.P90))
+	}
+	p.blank()
 	for _, n := range v.Notes {
-		row++
-		_ = w.row(s, row, n)
+		p.paragraph(n, plain)
 	}
-	_ = f.SetColWidth(s, "A", "A", 40)
-	_ = f.SetColWidth(s, "B", "H", 14)
-	_ = f.SetColWidth(s, "I", "I", 30)
-	w.printSetup(s, true)
 	return nil
+}
+
+// order lays out the order table.
+func (w *writer) order(p *page) {
+	o := w.r.Order
+	cur := o.Currency
+	if cur == "" {
+		cur = "no currency given"
+	}
+	mu, vu, perKg, perL := orderUnits(o)
+	p.title("Reagents to order: " + o.Basis)
+	p.header("reagent", mu+" P50", mu+" P90", vu+" P50", vu+" P90", "kg per t of black mass (P50)", "buy (P90)", "price per kg", "cost P90 ("+cur+")")
+	for _, l := range o.Lines {
+		var lp50, lp90, price any
+		if l.Litres != nil {
+			lp50, lp90 = kg(l.Litres.P50*perL), kg(l.Litres.P90*perL)
+		}
+		var cost any = "not priced"
+		if l.PricePerKg > 0 {
+			price = money(l.PricePerKg)
+		} else {
+			price = "not priced"
+		}
+		if l.CostP90 != nil {
+			cost = money(*l.CostP90)
+		}
+		p.add(l.Reagent, kg(l.Kg.P50*perKg), kg(l.Kg.P90*perKg), lp50, lp90, kg(l.KgPerTonneBM), as(indented, suggestion(l)), price, cost)
+	}
+	if len(o.Unpriced) > 0 {
+		p.add(note("Not priced reagents are left out of every cost; give --acid-price and --h2o2-price to price them."))
+	}
+	p.blank()
 }

@@ -65,21 +65,21 @@ func writeOrderText(w io.Writer, o *value.OrderSheet) {
 	}
 	fmt.Fprintf(w, "\norder sheet (%s):\n", o.Basis)
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
-	fmt.Fprintln(tw, "  reagent\tfor the lot P50 / P90\tper t black mass\tcontainers (P90)\tcost P90")
+	fmt.Fprintln(tw, "  reagent\tfor the lot P50 / P90\tper t black mass\tbuy (P90)\tcost P90")
 	for _, l := range o.Lines {
 		amount := FmtMass(l.Kg.P50) + " / " + FmtMass(l.Kg.P90)
 		if l.Litres != nil {
 			amount += " (" + fmtVolume(l.Litres.P50) + " / " + fmtVolume(l.Litres.P90) + ")"
 		}
-		var cs []string
-		for _, c := range l.Containers {
-			cs = append(cs, fmt.Sprintf("%d × %s", c.Count, c.Container))
+		buy := "no container given"
+		if c := l.Suggested; c != nil {
+			buy = fmt.Sprintf("%d × %s", c.Count, c.Container)
 		}
 		cost := "no price given"
 		if l.CostP90 != nil {
 			cost = Money(*l.CostP90) + " " + cur
 		}
-		fmt.Fprintf(tw, "  %s\t%s\t%s\t%s\t%s\n", l.Reagent, amount, FmtMass(l.KgPerTonneBM), strings.Join(cs, " or "), cost)
+		fmt.Fprintf(tw, "  %s\t%s\t%s\t%s\t%s\n", l.Reagent, amount, FmtMass(l.KgPerTonneBM), buy, cost)
 	}
 	tw.Flush()
 	if len(o.Unpriced) > 0 {

@@ -7,13 +7,18 @@ import (
 )
 
 // unitLadder is a unit with the units a thousand times smaller and larger: a quantity is shown
-// in the smaller one below 1 and in the larger one from 10,000.
-type unitLadder struct{ small, base, large string }
+// in the smaller one below 1 and in the larger one from largeFrom (in the base unit).
+type unitLadder struct {
+	small, base, large string
+	largeFrom          float64
+}
 
+// Masses and volumes of a tonne or a cubic metre and more read in t and m³; energy keeps kWh
+// to 10,000.
 var (
-	massUnits   = unitLadder{"g", "kg", "t"}
-	volumeUnits = unitLadder{"mL", "L", "m³"}
-	energyUnits = unitLadder{"Wh", "kWh", "MWh"}
+	massUnits   = unitLadder{"g", "kg", "t", 1000}
+	volumeUnits = unitLadder{"mL", "L", "m³", 1000}
+	energyUnits = unitLadder{"Wh", "kWh", "MWh", 10_000}
 )
 
 // pick returns the unit that reads well for quantities of the size of ref (in the base unit)
@@ -22,7 +27,7 @@ func (l unitLadder) pick(ref float64) (name string, perBase float64) {
 	switch a := math.Abs(ref); {
 	case a > 0 && a < 1:
 		return l.small, 1000
-	case a >= 10_000:
+	case a >= l.largeFrom:
 		return l.large, 0.001
 	}
 	return l.base, 1

@@ -1,0 +1,252 @@
+package sheet_test
+
+import (
+	"archive/zip"
+	"bytes"
+	"io"
+	"regexp"
+	"strconv"
+	"strings"
+	"testing"
+
+	"github.com/xuri/excelize/v2"
+
+	"blackmass/feed/sheet"
+)
+
+// landscapeSheets are the sheets printed in landscape; the others are portrait.
+var landscapeSheets = map[string]bool{sheet.Lines: true, sheet.Leach: true, sheet.ValueSheet: true, sheet.AssaySheet: true}
+
+// titledSheets hold one table that may run over pages, so they repeat its header row; the
+// others hold short tables, each kept on one page.
+var titledSheets = map[string]bool{sheet.Lines: true, sheet.Metals: true, sheet.Assumptions: true, sheet.WeighIn: true}
+
+// Every sheet prints on the paper asked for, in its orientation, one page wide at 100 % (its
+// printed columns fit between the margins), with the lot and page numbers in the header, a
+// repeated header row on a long table and short tables kept whole on a page; every number has
+// a number format, no font is under 8 pt, and no text is cut by a filled neighbour.
+func TestPrintPack(t *testing.T) {
+	r := sampleReport(t, 60)
+	for _, paper := range []int{sheet.PaperA4, sheet.PaperLetter} {
+		var buf bytes.Buffer
+		if err := sheet.WriteOn(&buf, r, paper); err != nil {
+			t.Fatal(err)
+		}
+		f, err := excelize.OpenReader(bytes.NewReader(buf.Bytes()))
+		if err != nil {
+			t.Fatal(err)
+		}
+		breaks := rowBreaks(t, buf.Bytes(), f)
+		titles := map[string]bool{}
+		areas := map[string]string{}
+		for _, n := range f.GetDefinedName() {
+			switch n.Name {
+			case "_xlnm.Print_Titles":
+				titles[n.Scope] = true
+			case "_xlnm.Print_Area":
+				areas[n.Scope] = n.RefersTo
+			}
+		}
+		for _, s := range f.GetSheetList() {
+			landscape := landscapeSheets[s]
+			pl, _ := f.GetPageLayout(s)
+			want := "portrait"
+			if landscape {
+				want = "landscape"
+			}
+			if pl.Size == nil || *pl.Size != paper || pl.Orientation == nil || *pl.Orientation != want ||
+				pl.FitToWidth == nil || *pl.FitToWidth != 1 || pl.FitToHeight == nil || *pl.FitToHeight != 0 {
+				t.Errorf("%s: page layout %+v, want paper %d %s one page wide", s, pl, paper, want)
+			}
+			if pr, _ := f.GetSheetProps(s); pr.FitToPage == nil || !*pr.FitToPage {
+				t.Errorf("%s: not fitted to the page width", s)
+			}
+			if hf, _ := f.GetHeaderFooter(s); hf == nil || !strings.Contains(hf.OddHeader, "Page &P of &N") || !strings.Contains(hf.OddHeader, "Lot ") {
+				t.Errorf("%s: header %+v lacks the lot or the page number", s, hf)
+			}
+			if titledSheets[s] != titles[s] {
+				t.Errorf("%s: print titles %v, want %v", s, titles[s], titledSheets[s])
+			}
+			checkWidth(t, f, s, paper, landscape, areas[s])
+			checkCells(t, f, s)
+			if !titledSheets[s] {
+				checkTablesWhole(t, f, s, breaks[s], sheet.PrintableHeightPt(paper, landscape))
+			}
+		}
+		f.Close()
+	}
+}
+
+// checkWidth: the printed columns fit the page width at 100 %.
+func checkWidth(t *testing.T, f *excelize.File, s string, paper int, landscape bool, area string) {
+	t.Helper()
+	cols, _ := f.GetCols(s)
+	last := len(cols)
+	if area != "" {
+		m := regexp.MustCompile(`:\$([A-Z]+)\$`).FindStringSubmatch(area)
+		last, _ = excelize.ColumnNameToNumber(m[1])
+	}
+	total := 0.0
+	for c := 1; c <= last; c++ {
+		name, _ := excelize.ColumnNumberToName(c)
+		wd, _ := f.GetColWidth(s, name)
+		total += sheet.ColumnPt(wd)
+	}
+	if avail := sheet.PrintableWidthPt(paper, landscape); total > avail {
+		t.Errorf("%s: printed columns %.0f pt wide, the page holds %.0f pt: it would print below 100 %%", s, total, avail)
+	}
+}
+
+// checkCells: a number format on every number, no font under 8 pt, no text cut by a neighbour.
+func checkCells(t *testing.T, f *excelize.File, s string) {
+	t.Helper()
+	rows, err := f.GetRows(s, excelize.Options{RawCellValue: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	merged := map[string]float64{} // top-left cell -> merged width
+	covered := map[string]bool{}
+	mcs, _ := f.GetMergeCells(s)
+	for _, mc := range mcs {
+		c1, r1, _ := excelize.CellNameToCoordinates(mc.GetStartAxis())
+		c2, r2, _ := excelize.CellNameToCoordinates(mc.GetEndAxis())
+		wd := 0.0
+		for c := c1; c <= c2; c++ {
+			name, _ := excelize.ColumnNumberToName(c)
+			w, _ := f.GetColWidth(s, name)
+			wd += w
+			for r := r1; r <= r2; r++ {
+				cell, _ := excelize.CoordinatesToCellName(c, r)
+				covered[cell] = true
+			}
+		}
+		merged[mc.GetStartAxis()] = wd
+	}
+	styles := map[int]*excelize.Style{}
+	styleOf := func(cell string) *excelize.Style {
+		id, _ := f.GetCellStyle(s, cell)
+		if st, ok := styles[id]; ok {
+			return st
+		}
+		st, err := f.GetStyle(id)
+		if err != nil {
+			t.Fatalf("%s!%s: style %d: %v", s, cell, id, err)
+		}
+		styles[id] = st
+		return st
+	}
+	for ri, row := range rows {
+		for ci, v := range row {
+			if v == "" {
+				continue
+			}
+			cell, _ := excelize.CoordinatesToCellName(ci+1, ri+1)
+			st := styleOf(cell)
+			size := 11.0 // the workbook's default font
+			if st.Font != nil && st.Font.Size > 0 {
+				size = st.Font.Size
+			}
+			if size < 8 {
+				t.Errorf("%s!%s: %.0f pt font", s, cell, size)
+			}
+			typ, _ := f.GetCellType(s, cell)
+			isText := typ == excelize.CellTypeSharedString || typ == excelize.CellTypeInlineString || typ == excelize.CellTypeFormula
+			if _, err := strconv.ParseFloat(v, 64); err == nil && !isText {
+				if st.NumFmt == 0 && st.CustomNumFmt == nil {
+					t.Errorf("%s!%s: number %s without a number format", s, cell, v)
+				}
+				continue
+			}
+			if st.Alignment != nil && st.Alignment.WrapText {
+				continue
+			}
+			full := ci+1 < len(row) && row[ci+1] != ""
+			wd, isMerged := merged[cell]
+			if !isMerged {
+				if covered[cell] || !full {
+					continue
+				}
+				name, _ := excelize.ColumnNumberToName(ci + 1)
+				wd, _ = f.GetColWidth(s, name)
+			}
+			// 10 pt text holds about 1.1 characters per column width unit, bold included.
+			if n := len([]rune(v)); float64(n) > wd*1.08 && (full || isMerged) {
+				t.Errorf("%s!%s: %q (%d characters) in a column %.0f wide beside a filled cell", s, cell, v, n, wd)
+			}
+		}
+	}
+}
+
+// checkTablesWhole: on a sheet of short tables, a header row and the rows under it down to the
+// next blank row (or paragraph) print on one page, the pages falling where the row heights and the manual
+// breaks put them.
+func checkTablesWhole(t *testing.T, f *excelize.File, s string, breaks map[int]bool, pagePt float64) {
+	t.Helper()
+	rows, _ := f.GetRows(s)
+	paragraph := map[int]bool{} // rows that open with a text merged across the page
+	mcs, _ := f.GetMergeCells(s)
+	for _, mc := range mcs {
+		if c, r, _ := excelize.CellNameToCoordinates(mc.GetStartAxis()); c == 1 {
+			paragraph[r] = true
+		}
+	}
+	page := make([]int, len(rows)+2)
+	used, n := 0.0, 0
+	for r := 1; r <= len(rows); r++ {
+		h, _ := f.GetRowHeight(s, r)
+		if breaks[r-1] || used+h > pagePt {
+			n, used = n+1, 0
+		}
+		used += h
+		page[r] = n
+	}
+	for r := 1; r <= len(rows); r++ {
+		cell, _ := excelize.CoordinatesToCellName(1, r)
+		id, _ := f.GetCellStyle(s, cell)
+		st, _ := f.GetStyle(id)
+		if st == nil || st.Font == nil || !st.Font.Bold || len(st.Border) == 0 || len(st.Fill.Color) == 0 {
+			continue // not a header row
+		}
+		// The table runs down to the next blank row; a list of paragraphs is not a table.
+		for q := r + 1; q <= len(rows) && len(rows[q-1]) > 0 && !paragraph[q]; q++ {
+			if page[q] != page[r] {
+				t.Errorf("%s: the table headed on row %d breaks across pages at row %d", s, r, q)
+				break
+			}
+		}
+	}
+}
+
+// rowBreaks reads the manual page breaks of every sheet (the xlsx library has no reader for
+// them): sheet -> row after which a page ends.
+func rowBreaks(t *testing.T, xlsx []byte, f *excelize.File) map[string]map[int]bool {
+	t.Helper()
+	zr, err := zip.NewReader(bytes.NewReader(xlsx), int64(len(xlsx)))
+	if err != nil {
+		t.Fatal(err)
+	}
+	byPart := map[string]map[int]bool{}
+	brk := regexp.MustCompile(`<rowBreaks[^>]*>(.*?)</rowBreaks>`)
+	id := regexp.MustCompile(`<brk id="(\d+)"`)
+	for _, zf := range zr.File {
+		if !strings.HasPrefix(zf.Name, "xl/worksheets/sheet") {
+			continue
+		}
+		rc, _ := zf.Open()
+		b, _ := io.ReadAll(rc)
+		_ = rc.Close()
+		m := map[int]bool{}
+		if sub := brk.FindSubmatch(b); sub != nil {
+			for _, x := range id.FindAllSubmatch(sub[1], -1) {
+				n, _ := strconv.Atoi(string(x[1]))
+				m[n] = true
+			}
+		}
+		byPart[zf.Name] = m
+	}
+	out := map[string]map[int]bool{}
+	for i, name := range f.GetSheetMap() {
+		out[name] = byPart["xl/worksheets/sheet"+strconv.Itoa(i)+".xml"]
+	}
+	return out
+}
