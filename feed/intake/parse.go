@@ -228,43 +228,40 @@ type lineParser struct {
 	chem         map[labelKey]*resolved
 	formats      map[string]manifest.Format
 	layouts      map[string]int
-	apps         map[string]string               // application text -> key
-	quantities   [numColumns]map[string]quantity // per column, quantity text -> value, so repeated values parse once
-	alike        map[string]manifest.Line        // parsed lines by their fields other than the id (parseAlike)
-	alikeRaw     map[string]manifest.Line        // parsed lines by their text without the id (parseAlike)
-	keyBuf       []byte                          // parseAlike's alone: its key may view this buffer until the line is remembered
-	others       otherCache                      // label -> battery that is not lithium-ion (nil: lithium-ion)
+	apps         map[string]string        // application text -> key
+	lastQty      [numColumns]lastQuantity // per column, the last quantity parsed, so runs of one value parse once
+	alike        map[string]manifest.Line // parsed lines by their fields other than the id (parseAlike)
+	alikeRaw     map[string]manifest.Line // parsed lines by their text without the id (parseAlike)
+	keyBuf       []byte                   // parseAlike's alone: its key may view this buffer until the line is remembered
+	others       otherCache               // label -> battery that is not lithium-ion (nil: lithium-ion)
 }
 
 // quantity is a parsed quantity, or the error it gave, with its text in the base unit.
 type quantity struct {
-	v     float64
-	unit  string
-	err   error
-	given string // "4.4 Ah": the value in its base unit, as the report shows it
+	v    float64
+	unit string
+	err  error
 }
 
-// maxCachedQuantities bounds the cache of parsed quantities.
-const maxCachedQuantities = 4096
+// lastQuantity is a column's last quantity text and its parse.
+type lastQuantity struct {
+	text string
+	q    quantity
+	ok   bool
+}
 
-// quantity parses s from column c with the column's units, remembering the result.
+// quantity parses s from column c with the column's units. The column's last parse is kept: a
+// manifest repeats a value down a run of lines, and a cache of more values costs more in
+// lookups than it saves once the values are all distinct (whole lines that repeat are
+// remembered by parseAlike).
 func (p *lineParser) quantity(c Column, s string, u UnitTable, defaultUnit string) quantity {
-	m := p.quantities[c]
-	if m == nil {
-		m = map[string]quantity{}
-		p.quantities[c] = m
-	}
-	if q, ok := m[s]; ok {
-		return q
+	last := &p.lastQty[c]
+	if last.ok && last.text == s {
+		return last.q
 	}
 	v, unit, err := Quantity(s, u, defaultUnit, p.decimalComma)
 	q := quantity{v: v, unit: unit, err: err}
-	if err == nil {
-		q.given = strconv.FormatFloat(v, 'g', 6, 64) + " " + unit
-	}
-	if len(m) < maxCachedQuantities {
-		m[s] = q
-	}
+	*last = lastQuantity{text: strings.Clone(s), q: q, ok: true}
 	return q
 }
 
@@ -650,7 +647,7 @@ func (p *lineParser) capacity(l *manifest.Line, rec []string, line int) error {
 	default:
 		return p.fail(line, ColBasis, basis, "want cell or pack")
 	}
-	l.CapacityBasis, l.CapacityGiven = basis, q.given
+	l.CapacityBasis, l.CapacityValue, l.CapacityUnit = basis, q.v, q.unit
 	mult := 1.0
 	if basis == "cell" && l.Format.IsAssembly() {
 		if l.CellsPerItem == 0 {

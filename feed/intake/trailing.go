@@ -95,7 +95,7 @@ func (t *trailer) add(l manifest.Line, info *Info) {
 	}
 	if _, _, ok := splitVoltsCharge(l.CapacityText); ok && l.VoltageV > 0 {
 		t.note(info, fmt.Sprintf("line %d: capacity %q read as %g V and %s (energy = V × Ah): %.4g Wh per item",
-			l.Num, Printable(l.CapacityText, 40), l.VoltageV, l.CapacityGiven, l.EnergyWh))
+			l.Num, Printable(l.CapacityText, 40), l.VoltageV, l.CapacityGiven(), l.EnergyWh))
 	}
 }
 
@@ -195,6 +195,9 @@ func (p *lineParser) decimalCommaHint(rec []string) string {
 	return ""
 }
 
+// maxCachedLabels bounds the labels otherBattery remembers.
+const maxCachedLabels = 4096
+
 // otherCache remembers which labels name a battery that is not lithium-ion (nil: none).
 type otherCache map[string]*cathode.OtherBattery
 
@@ -203,7 +206,7 @@ func (p *lineParser) otherBattery(label string) *cathode.OtherBattery {
 	b, ok := p.others[label]
 	if !ok {
 		b = p.opt.Catalogue.OtherBattery(label)
-		if len(p.others) < maxCachedQuantities {
+		if len(p.others) < maxCachedLabels {
 			p.others[label] = b
 		}
 	}

@@ -237,10 +237,12 @@ func (l *Lot) Add(ln manifest.Line) error {
 		lo, hi := g.bandLo, g.bandHi
 		if measWhKg < lo || measWhKg > hi {
 			l.flagged++
-			msg := fmt.Sprintf("%.0f Wh/kg measured, outside the plausible %.0f–%.0f Wh/kg for %s %s", measWhKg, lo, hi, ch.Key, ln.Format)
-			flags = append(flags, msg)
-			if l.flagged <= maxLineWarnings {
-				l.warnings = append(l.warnings, fmt.Sprintf("line %d (%s): %s; check the capacity, the count or the weight", ln.Num, idOr(ln), msg))
+			if l.keepLines || l.flagged <= maxLineWarnings { // the message only where it is shown
+				msg := fmt.Sprintf("%.0f Wh/kg measured, outside the plausible %.0f–%.0f Wh/kg for %s %s", measWhKg, lo, hi, ch.Key, ln.Format)
+				flags = append(flags, msg)
+				if l.flagged <= maxLineWarnings {
+					l.warnings = append(l.warnings, fmt.Sprintf("line %d (%s): %s; check the capacity, the count or the weight", ln.Num, idOr(ln), msg))
+				}
 			}
 		}
 	}
@@ -265,7 +267,7 @@ func (l *Lot) Add(ln manifest.Line) error {
 	els, total := l.lineElements(bm, cnt)
 	l.addLine(LineResult{Line: ln.Num, ID: ln.ID, Description: ln.Description, ChemistryLabel: ln.ChemistryLabel,
 		Chemistry: ch.Key, Unknown: ch.Unknown, Format: ln.Format.String(), Count: ln.Count, CellsPerItem: ln.CellsPerItem, Application: ln.Application,
-		CapacityText: ln.CapacityText, CapacityGiven: ln.CapacityGiven, CapacityBasis: ln.CapacityBasis, VoltageV: ln.VoltageV, EnergyWhPerItem: dist.Round(energyWh, 4), EnergyAssumed: ln.EnergyWh == 0 && !ln.MassOnly(), EnergyFromMass: ln.MassOnly(), ChargeAhPerItem: ln.ChargeAh,
+		CapacityText: ln.CapacityText, CapacityGiven: ln.CapacityGiven(), CapacityBasis: ln.CapacityBasis, VoltageV: ln.VoltageV, EnergyWhPerItem: dist.Round(energyWh, 4), EnergyAssumed: ln.EnergyWh == 0 && !ln.MassOnly(), EnergyFromMass: ln.MassOnly(), ChargeAhPerItem: ln.ChargeAh,
 		ModelMassKgEach: dist.Round(b.item/1000, 6), MeasuredMassKg: ln.MassKg, MeasuredWhPerKg: dist.Round(measWhKg, 2),
 		CathodeKg: dist.Round(b.cam*cnt/1000, 6), BlackMassKg: dist.Round(total*cnt/1000, 6), ElementsKg: els, Flags: flags, Notes: ln.Notes})
 	return nil

@@ -1,6 +1,9 @@
 package manifest
 
-import "blackmass/cathode"
+import (
+	"blackmass/cathode"
+	"strconv"
+)
 
 // Format is the physical form of a manifest line.
 type Format int
@@ -44,7 +47,8 @@ type Line struct {
 	ChargeAh       float64 // per item, when capacity was in Ah/mAh with no voltage
 	VoltageV       float64 // nominal voltage as given (0: not given)
 	CapacityText   string  // as typed
-	CapacityGiven  string  // the capacity as read, in Wh or Ah, of what the basis says ("" for weight only)
+	CapacityValue  float64 // the capacity as read, in CapacityUnit, of what the basis says (0 for weight only)
+	CapacityUnit   string  // "Wh" or "Ah"
 	CapacityBasis  string  // "cell" or "pack": what the capacity is of
 	CellsPerItem   int     // 1 for loose cells; from cells_per_pack for packs (0: not given)
 	Count          int
@@ -79,4 +83,13 @@ var formerDerivedLineColumns = []string{"cathode active (kg)", "black mass (kg)"
 // ComputedLineColumns lists every header of a computed column, current and former.
 func ComputedLineColumns() []string {
 	return append(append([]string(nil), DerivedLineColumns...), formerDerivedLineColumns...)
+}
+
+// CapacityGiven is the capacity as read in its base unit, "4.4 Ah" ("" for a line known by
+// weight only). It is formatted when asked, not for every line read.
+func (l *Line) CapacityGiven() string {
+	if l.CapacityUnit == "" {
+		return ""
+	}
+	return strconv.FormatFloat(l.CapacityValue, 'g', 6, 64) + " " + l.CapacityUnit
 }
