@@ -11,7 +11,7 @@ func TestFoilsFromAreaAndThickness(t *testing.T) {
 	// Densities at 20 °C: Al 2.70 g/cm³, Cu 8.96 g/cm³ (CRC Handbook of Chemistry and Physics,
 	// section 4, density of the elements).
 	g := globals{np: 1.1, qGraphiteMAhG: 350, utilisation: 0.9, rhoAlGCm3: 2.70, rhoCuGCm3: 8.96}
-	f := design{arealMAhCm2: 2, alUm: 15, cuUm: 10, elGPerAh: 1.5, bc: 0.03, sep: 0.03, casing: 0.2}
+	f := design{arealMAhCm2: 2, alUm: 15, cuUm: 10, elGPerM2: 63, bc: 0.03, sep: 0.03, casing: 0.2}
 	// 0.9 Ah at 3.6 V (3.24 Wh) from a 150 mAh/g cathode used at 90 %: 6.667 g of cathode holding
 	// 1 Ah, coated 2 mAh/cm² a side on both sides of 250 cm² of each foil.
 	b := model(3.24, 0, mix{capMAhG: 150, voltV: 3.6}, f, g)
@@ -21,19 +21,19 @@ func TestFoilsFromAreaAndThickness(t *testing.T) {
 		"graphite":    {b.graphite, 1.1 / 0.350},
 		"Al foil":     {b.al, 250 * 15e-4 * 2.70},
 		"Cu foil":     {b.cu, 250 * 10e-4 * 8.96},
-		"electrolyte": {b.electrolyte, 1.5 * 0.9},
-		"cell":        {b.cell, (camG + 1.1/0.350 + 250*15e-4*2.70 + 250*10e-4*8.96 + 1.5*0.9) / (1 - 0.03 - 0.03 - 0.2)},
+		"electrolyte": {b.electrolyte, 63 * 2 * 250e-4}, // 63 g/m² over the 500 cm² coated
+		"cell":        {b.cell, (camG + 1.1/0.350 + 250*15e-4*2.70 + 250*10e-4*8.96 + 63*2*250e-4) / (1 - 0.03 - 0.03 - 0.2)},
 	}
 	for name, gw := range want {
 		if math.Abs(gw[0]-gw[1]) > 1e-9*gw[1] {
 			t.Errorf("%s: %.6f g, want %.6f g", name, gw[0], gw[1])
 		}
 	}
-	// Halving the areal capacity doubles the foil area and so the foils, and nothing else but
-	// the cell mass they are part of.
+	// Halving the areal capacity doubles the foil area and so the foils and the electrolyte in
+	// the coatings' pores, and nothing else but the cell mass they are part of.
 	f.arealMAhCm2 = 1
 	b2 := model(3.24, 0, mix{capMAhG: 150, voltV: 3.6}, f, g)
-	if math.Abs(b2.al-2*b.al) > 1e-9 || math.Abs(b2.cu-2*b.cu) > 1e-9 || b2.cam != b.cam || b2.electrolyte != b.electrolyte {
+	if math.Abs(b2.al-2*b.al) > 1e-9 || math.Abs(b2.cu-2*b.cu) > 1e-9 || b2.cam != b.cam || math.Abs(b2.electrolyte-2*b.electrolyte) > 1e-9 {
 		t.Errorf("halved areal capacity: Al %.4f→%.4f g, Cu %.4f→%.4f g", b.al, b2.al, b.cu, b2.cu)
 	}
 }

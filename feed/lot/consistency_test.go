@@ -14,15 +14,10 @@ const consistencySamples = 2000
 // For every catalogued chemistry in every format, at every draw: the components sum to the cell
 // mass and the cell to the item (conservation of mass); the black mass is no more than the
 // coatings, the foils' carry-over and the other carry-overs allow (each recovery and carry-over
-// is a share of a component, at most 1); and a measured weight equal to the model's own most
-// likely item is not flagged as implausible by the same model.
+// is a share of a component, at most 1).
 func TestModelSelfConsistent(t *testing.T) {
 	t.Parallel()
 	cat := cathodetest.Catalogue(t)
-	m, err := DefaultModel()
-	if err != nil {
-		t.Fatal(err)
-	}
 	for _, e := range cat.Entries() {
 		for _, f := range manifest.Formats() {
 			const wh = 50.0
@@ -45,19 +40,60 @@ func TestModelSelfConsistent(t *testing.T) {
 					t.Fatalf("%s %s draw %d: black mass %g g above what the cell can give (%g g; cell %g g)", e.Key, f, i, total, bound, b.cell)
 				}
 			}
-			ch, err := cat.ParseLabel(e.Key)
-			if err != nil {
-				t.Fatal(err)
-			}
+		}
+	}
+}
+
+// modelOutsideBand are the chemistries whose modelled cell, at every design mode, is lighter
+// than the band of published cells allows, with the reason. The design ranges are per format,
+// not per chemistry: the first LiFePO4 power cells (26650 at 1.28 mAh/cm², 2.3 Ah; Prada et al.,
+// J. Electrochem. Soc. 160 (2013) A616) and the spinel power cells had thin electrodes, so their
+// foils, separator and electrolyte weigh more per Wh than the format's median design gives.
+var modelOutsideBand = map[string]string{
+	"LMO":       "spinel power cells: thin electrodes, the format's median design is lighter",
+	"LFP-early": "the first LiFePO4 power cells: thin electrodes, the format's median design is lighter",
+}
+
+// For every catalogued chemistry in every format, the modelled item at every parameter's mode
+// lies inside the plausible Wh/kg band the same model uses to flag a measured weight, so a weight
+// equal to the model's own item is not flagged; the listed exceptions are checked to lie outside
+// still, so that the list cannot outlive the reason.
+func TestModelInsideItsBand(t *testing.T) {
+	t.Parallel()
+	cat := cathodetest.Catalogue(t)
+	m, err := DefaultModel()
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, e := range cat.Entries() {
+		ch, err := cat.ParseLabel(e.Key)
+		if err != nil {
+			t.Fatal(err)
+		}
+		why, excepted := modelOutsideBand[e.Key]
+		inside := 0
+		for _, f := range manifest.Formats() {
+			const wh = 50.0
 			lot := NewLot(m, false)
 			own := model(wh, 0, lot.modeMix(&ch), lot.mode.design(f, 0), lot.mode.global(0)).item / 1000
+			lo, hi := lot.band(&ch, f)
+			in := wh/own >= lo && wh/own <= hi
 			probe := manifest.Line{Num: 1, ChemistryLabel: e.Key, Chemistry: &ch, Format: f, EnergyWh: wh, Count: 1, CellsPerItem: 1, MassKg: own}
 			if err := lot.Add(probe); err != nil {
 				t.Fatal(err)
 			}
-			if lot.flagged != 0 {
-				t.Errorf("%s %s: the model's own item of %.4g kg (%.0f Wh/kg) is flagged: %v", e.Key, f, own, wh/own, lot.warnings)
+			if in != (lot.flagged == 0) {
+				t.Errorf("%s %s: %.0f Wh/kg in %.0f–%.0f is %v, flagged %d", e.Key, f, wh/own, lo, hi, in, lot.flagged)
 			}
+			t.Logf("%-12s %-12s model %4.0f Wh/kg, band %4.0f–%4.0f", e.Key, f, wh/own, lo, hi)
+			if in {
+				inside++
+			} else if !excepted {
+				t.Errorf("%s %s: the model's own item (%.0f Wh/kg) lies outside the plausible %.0f–%.0f Wh/kg", e.Key, f, wh/own, lo, hi)
+			}
+		}
+		if excepted && inside == len(manifest.Formats()) {
+			t.Errorf("%s: listed as outside its band (%s) but inside in every format: remove it from the list", e.Key, why)
 		}
 	}
 }

@@ -40,8 +40,8 @@ var globalNames = []string{"np_ratio", "graphite_capacity", "lipf6_in_electrolyt
 var formatFractionNames = []string{"binder_carbon", "separator"}
 
 // formatDesignNames are a format's parameters sized by the cell's capacity: areal capacity per
-// coated side (mAh/cm²), foil thicknesses (µm), electrolyte fill (g per nameplate Ah).
-var formatDesignNames = []string{"areal_capacity", "al_foil_thickness", "cu_foil_thickness", "electrolyte_per_ah"}
+// coated side (mAh/cm²), foil thicknesses (µm), electrolyte fill (g per m² of coated side).
+var formatDesignNames = []string{"areal_capacity", "al_foil_thickness", "cu_foil_thickness", "electrolyte_per_area"}
 
 var casingNames = []string{"casing_steel", "casing_al", "casing_polymer"}
 
@@ -143,7 +143,7 @@ type globals struct {
 // design is one format's cell design at one draw: the current collectors and electrolyte sized by
 // capacity, the rest as fractions of the cell mass.
 type design struct {
-	arealMAhCm2, alUm, cuUm, elGPerAh float64
+	arealMAhCm2, alUm, cuUm, elGPerM2 float64
 	bc, sep, casing                   float64
 	kind                              casingKind
 	overhead                          float64
@@ -175,7 +175,7 @@ func newParamSet(m *Model, seed uint64, samples int) *paramSet {
 	for _, f := range manifest.Formats() {
 		sc := f.String()
 		fd := &formatDraws{areal: ps.values(sc, "areal_capacity"), al: ps.values(sc, "al_foil_thickness"), cu: ps.values(sc, "cu_foil_thickness"),
-			el: ps.values(sc, "electrolyte_per_ah"), bc: ps.values(sc, "binder_carbon"), sep: ps.values(sc, "separator")}
+			el: ps.values(sc, "electrolyte_per_area"), bc: ps.values(sc, "binder_carbon"), sep: ps.values(sc, "separator")}
 		for k, name := range casingNames {
 			if m.get(sc, name) != nil {
 				fd.cas, fd.kind = ps.values(sc, name), casingKind(k)
