@@ -58,6 +58,9 @@ type leachPlanner struct {
 	species []cathode.Species
 	molarG  []float64
 	ext     map[string][]float64
+	// extMax is the top of each element's extraction range on the route: on the selective
+	// route, full dissolution is the most it dissolves (the oxides stay barely attacked).
+	extMax  map[string]float64
 	ranges  []dist.Param
 	lost    []float64 // share of the peroxide dose that decomposes, per sample
 	lattice []float64 // share of the planned reduction the oxides' own oxygen can give, per sample
@@ -75,7 +78,8 @@ func newLeachPlanner(s Input, opt Options, lt *Tables) (*leachPlanner, error) {
 	if len(s.Formulas) != len(s.Kg) || s.Draws == nil {
 		return nil, fmt.Errorf("leach: %d formulas for %d mass columns, or no parameter draws", len(s.Formulas), len(s.Kg))
 	}
-	p := &leachPlanner{s: s, opt: opt, lt: lt, route: opt.Route, n: len(s.BlackMassKg), ext: map[string][]float64{}}
+	p := &leachPlanner{s: s, opt: opt, lt: lt, route: opt.Route, n: len(s.BlackMassKg), ext: map[string][]float64{},
+		extMax: map[string]float64{}}
 	p.acidM = lt.molarMassG(p.route.Acid())
 	var err error
 	if p.acidRho, err = lt.Density(p.route.Acid(), opt.AcidWtPct); err != nil {
@@ -94,6 +98,7 @@ func newLeachPlanner(s Input, opt Options, lt *Tables) (*leachPlanner, error) {
 	for _, el := range slices.Sorted(maps.Keys(lt.extraction[p.route])) {
 		rg := lt.extraction[p.route][el]
 		p.ext[el] = s.Draws.Draws("extraction "+p.route.String()+"/"+el, rg.Min, rg.Mode, rg.Max)
+		p.extMax[el] = rg.Max
 		p.ranges = append(p.ranges, dist.Param{Scope: "extraction " + p.route.String(), Name: el,
 			Min: rg.Min, Mode: rg.Mode, Max: rg.Max, Unit: "fraction", Source: lt.sources[p.route.String()+"/"+el]})
 	}
@@ -169,9 +174,17 @@ func (p *leachPlanner) input(i int, plan func(string) float64, hPlus, redMol flo
 func (p *leachPlanner) run() error {
 	protons := p.route.AcidProtons()
 	inf := math.Inf(1)
-	full := func(string) float64 { return 1 }
 	for i := range p.n {
 		plan := p.plan(i)
+		// Full dissolution: complete, but on the selective route, which leaves the oxides, the
+		// most it dissolves (the top of its extraction ranges); never less than planned.
+		full := func(sym string) float64 {
+			v := 1.0
+			if m, ok := p.extMax[sym]; ok && p.route == cathode.SulfuricSelective {
+				v = m
+			}
+			return max(v, plan(sym))
+		}
 		need, err := leachSample(p.input(i, plan, inf, inf))
 		if err != nil {
 			return err
@@ -359,7 +372,8 @@ type Reagent struct {
 	Cost       *dist.Stat `json:"cost,omitempty"`
 	StoichKg   dist.Stat  `json:"stoichiometric_kg_pure"`
 	// Ratio is the dose over what the planned extraction needs; RatioFull over what full
-	// dissolution of the lot needs.
+	// dissolution of the lot needs (on the selective route, which leaves the oxides, every metal
+	// at the top of its extraction range).
 	Ratio     dist.Stat `json:"ratio_to_stoichiometry"`
 	RatioFull dist.Stat `json:"ratio_to_full_dissolution"`
 }
