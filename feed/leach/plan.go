@@ -56,6 +56,7 @@ type leachPlanner struct {
 	route   cathode.Route
 	red     *Reductant
 	species []cathode.Species
+	lin     []*linearRx // per species: its dissolution's linear form (nil: call cathode.Dissolve)
 	molarG  []float64
 	ext     map[string][]float64
 	// extMax is the top of each element's extraction range on the route: on the selective
@@ -129,6 +130,12 @@ func newLeachPlanner(s Input, opt Options, lt *Tables) (*leachPlanner, error) {
 		}
 		p.molarG[c] = f.MolarMass(f.Elements())
 	}
+	p.lin = make([]*linearRx, len(p.species))
+	for c, sp := range p.species {
+		if !sp.Inert() && !sp.Metallic() {
+			p.lin[c] = newLinearRx(sp, p.route)
+		}
+	}
 	for _, x := range []*[]float64{&p.vol, &p.acidDose, &p.redDose, &p.acidPlan, &p.redPlan, &p.acidFull, &p.redFull,
 		&p.water, &p.waterKg} {
 		*x = make([]float64, p.n)
@@ -160,7 +167,12 @@ func (p *leachPlanner) input(i int, plan func(string) float64, hPlus, redMol flo
 		mol[c] = kg[i] * 1000 / p.molarG[c]
 	}
 	es := p.lt.elements
-	return redoxInput{route: p.route, species: p.species, mol: mol, plan: plan, hPlus: hPlus, red: p.red, redMol: redMol,
+	planAt := new([nLeachElements]float64)
+	for k, sym := range leachElements {
+		planAt[k] = plan(sym)
+	}
+	return redoxInput{route: p.route, species: p.species, lin: p.lin, mol: mol, plan: plan, planAt: planAt, hPlus: hPlus,
+		red: p.red, redMol: redMol,
 		lost: p.lost[i], lattice: p.lattice[i],
 		metalE0: func(sym string) float64 {
 			if el := es.Lookup(sym); el != nil && el.HasPotential {

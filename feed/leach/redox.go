@@ -110,8 +110,10 @@ func elementIndex(sym string) int { return slices.Index(leachElements, sym) }
 type redoxInput struct {
 	route   cathode.Route
 	species []cathode.Species
+	lin     []*linearRx              // per species, nil where cathode.Dissolve is called
 	mol     []float64                // per compound
 	plan    func(sym string) float64 // planned extraction (route's range or the user's)
+	planAt  *[nLeachElements]float64 // plan at each of leachElements (nil: ask plan)
 	hPlus   float64                  // H+ the acid supplies; +Inf: as much as needed
 	red     *Reductant               // nil: none added
 	redMol  float64                  // reductant dosed; +Inf: as much as needed
@@ -255,9 +257,15 @@ func (p *pass) solids() error {
 		if n <= 0 || sp.Inert() {
 			continue
 		}
-		for _, t := range sp.Formula.Terms() {
-			if k := elementIndex(t.Symbol); k >= 0 {
-				r.feedMol[k] += n * t.Amount
+		if c < len(in.lin) && in.lin[c] != nil {
+			for _, ft := range in.lin[c].feed {
+				r.feedMol[ft.k] += n * ft.mol
+			}
+		} else {
+			for _, t := range sp.Formula.Terms() {
+				if k := elementIndex(t.Symbol); k >= 0 {
+					r.feedMol[k] += n * t.Amount
+				}
 			}
 		}
 		if sp.Metallic() {
@@ -269,28 +277,65 @@ func (p *pass) solids() error {
 			}
 			continue
 		}
-		rx, err := cathode.Dissolve(sp, in.route, p.extraction(sp))
+		v, err := p.dissolve(c, sp)
 		if err != nil {
 			return err
 		}
-		p.hUptake += rx.HPlusMol * n
-		p.solidsWater += rx.WaterMol * n
+		p.hUptake += v.hPlus * n
+		p.solidsWater += v.water * n
 		if in.route == cathode.Hydrochloric {
-			r.eNeeded += 2 * rx.Cl2Mol * n
+			r.eNeeded += 2 * v.cl2 * n
 		} else {
-			r.eNeeded += 2 * rx.H2O2ReductantMol * n
-			p.eOxNeed += 2 * rx.H2O2OxidantMol * n
+			r.eNeeded += 2 * v.h2o2Red * n
+			p.eOxNeed += 2 * v.h2o2Ox * n
 		}
-		r.co2 += rx.CO2Mol * n
-		for _, ion := range rx.Cations {
-			if k := elementIndex(ion.Symbol); k >= 0 {
-				r.liquorMol[k] += ion.Mol * n
-			}
+		r.co2 += v.co2 * n
+		for k, mol := range v.liquor {
+			r.liquorMol[k] += mol * n
 		}
-		r.liquorMol[elementIndex("P")] += rx.H3PO4Mol * n
-		r.liquorMol[elementIndex("F")] += rx.HFMol * n
+		r.liquorMol[idxP] += v.h3po4 * n
+		r.liquorMol[idxF] += v.hf * n
 	}
 	return nil
+}
+
+// Indices of phosphorus and fluorine in leachElements.
+var idxP, idxF = elementIndex("P"), elementIndex("F")
+
+// maxLinearMetals is the most metals a species' linear form combines on the stack.
+const maxLinearMetals = 8
+
+// dissolve is species c's dissolution in this pass, per mol: its linear form at the pass's
+// extraction where it has one, cathode.Dissolve otherwise (and wherever an extraction leaves
+// 0..1, so the error is cathode's).
+func (p *pass) dissolve(c int, sp cathode.Species) (rxVec, error) {
+	if c < len(p.in.lin) && p.in.planAt != nil {
+		if lr := p.in.lin[c]; lr != nil && lr.indexed && len(lr.metals) <= maxLinearMetals {
+			var xs [maxLinearMetals]float64
+			if lr.extractions(xs[:len(lr.metals)], p.in.planAt, p.fAcid, p.fRed) {
+				return lr.at(xs[:len(lr.metals)]), nil
+			}
+		}
+	}
+	x := p.extraction(sp)
+	if c < len(p.in.lin) {
+		if lr := p.in.lin[c]; lr != nil && len(lr.metals) <= maxLinearMetals {
+			var xs [maxLinearMetals]float64
+			ok := true
+			for i, m := range lr.metals {
+				xs[i] = x(m)
+				ok = ok && xs[i] >= 0 && xs[i] <= 1
+			}
+			if ok {
+				return lr.at(xs[:len(lr.metals)]), nil
+			}
+		}
+	}
+	rx, err := cathode.Dissolve(sp, p.in.route, x)
+	if err != nil {
+		return rxVec{}, err
+	}
+	return vecOf(rx), nil
 }
 
 // extraction is the share of each element of sp dissolved in this pass.
