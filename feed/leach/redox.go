@@ -340,16 +340,17 @@ func (p *pass) dissolve(c int, sp cathode.Species) (rxVec, error) {
 
 // extraction is the share of each element of sp dissolved in this pass.
 func (p *pass) extraction(sp cathode.Species) cathode.Extraction {
-	in := p.in
+	// The closure holds copies, not the pass, so that a pass stays on the stack.
+	plan, route, fAcid, fRed := p.in.plan, p.in.route, p.fAcid, p.fRed
 	// On the selective route an oxide's lithium stays in its lattice with the metals: it leaves
 	// only as far as the oxide itself dissolves.
-	liWithLattice := in.route == cathode.SulfuricSelective && sp.Anion() == "oxide"
+	liWithLattice := route == cathode.SulfuricSelective && sp.Anion() == "oxide"
 	latticeX := 0.0
 	if liWithLattice {
 		tm := 0.0
 		for _, t := range sp.Formula.Terms() {
 			if t.Symbol != "Li" && cathode.IsMetal(t.Symbol) {
-				latticeX += t.Amount * in.plan(t.Symbol)
+				latticeX += t.Amount * plan(t.Symbol)
 				tm += t.Amount
 			}
 		}
@@ -358,12 +359,12 @@ func (p *pass) extraction(sp cathode.Species) cathode.Extraction {
 		}
 	}
 	return func(sym string) float64 {
-		v := in.plan(sym) * p.fAcid
+		v := plan(sym) * fAcid
 		if sym == "Li" && liWithLattice {
-			v = latticeX * p.fAcid * p.fRed
+			v = latticeX * fAcid * fRed
 		}
 		if sp.State(sym) > cathode.AqueousCharge(sym) && cathode.AqueousCharge(sym) > 0 {
-			v *= p.fRed // the reducible metals of an oxide dissolve only as far as electrons allow
+			v *= fRed // the reducible metals of an oxide dissolve only as far as electrons allow
 		}
 		return v
 	}

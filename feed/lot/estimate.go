@@ -65,8 +65,12 @@ func (l *Lot) Estimate(seed uint64, samples int) (*Result, *Samples, error) {
 	}
 	ps := newParamSet(l.model, seed, samples)
 	s := l.draw(ps, samples)
-	s.Formulas, s.ElementNames, s.Draws = l.comp.formulas, l.comp.elements, ps.d
-	return l.result(s), s, nil
+	// Later stages draw their own parameters from a drawer of the same seed (a stream is named
+	// by its key, so the draws are the same), and the lot's own draws are let go.
+	s.Formulas, s.ElementNames, s.Draws = l.comp.formulas, l.comp.elements, dist.NewDrawer(seed, samples)
+	r := l.result(s)
+	s.groupCAM, s.groupBM = nil, nil // summarised in r.Groups
+	return r, s, nil
 }
 
 // draw runs the Monte Carlo: n samples of every group's black mass by compound, then the
