@@ -46,7 +46,8 @@ func (p *leachPlanner) byproducts(lr *Report) {
 	if g, ok := lr.Gases["Cl2"]; ok && g.Mol.P90 > 0 {
 		rho, err := p.lt.Density("NaOH", scrubberNaOHWtPct)
 		if err == nil {
-			kg := col(p.n, func(i int) float64 { return p.res[i].cl2 * naohPerCl2 * p.lt.molarMassG("NaOH") / 1000 })
+			naohG := p.lt.molarMassG("NaOH")
+			kg := col(p.n, func(i int) float64 { return p.res[i].cl2 * naohPerCl2 * naohG / 1000 })
 			w := scrubberNaOHWtPct / 100.0
 			lr.Scrubber = &Scrubber{Reagent: fmt.Sprintf("NaOH %d %%", scrubberNaOHWtPct), KgPure: dist.Summarise(kg),
 				Kg:       dist.Summarise(col(p.n, func(i int) float64 { return kg[i] / w })),

@@ -56,6 +56,7 @@ type leachPlanner struct {
 	route   cathode.Route
 	red     *Reductant
 	species []cathode.Species
+	waterG  float64     // molar mass of water, g/mol
 	lin     []*linearRx // per species: its dissolution's linear form (nil: call cathode.Dissolve)
 	molarG  []float64
 	ext     map[string][]float64
@@ -82,6 +83,7 @@ func newLeachPlanner(s Input, opt Options, lt *Tables) (*leachPlanner, error) {
 	p := &leachPlanner{s: s, opt: opt, lt: lt, route: opt.Route, n: len(s.BlackMassKg), ext: map[string][]float64{},
 		extMax: map[string]float64{}}
 	p.acidM = lt.molarMassG(p.route.Acid())
+	p.waterG = lt.molarMassG("H2O")
 	var err error
 	if p.acidRho, err = lt.Density(p.route.Acid(), opt.AcidWtPct); err != nil {
 		return nil, err

@@ -40,16 +40,32 @@ func inputPath(path string) bool {
 	return slices.Contains(inputLineFields, field)
 }
 
+// firstNonFinite returns the JSON path (from path) of the first NaN or infinite number under v,
+// and false; true when there is none.
 func firstNonFinite(v reflect.Value, path string) (string, bool) {
+	var rev []string
+	if finiteValue(v, &rev) {
+		return "", true
+	}
+	for i := len(rev) - 1; i >= 0; i-- {
+		path += rev[i]
+	}
+	return path, false
+}
+
+// finiteValue says whether every number under v is finite; when not, it appends the path to the
+// first bad one to rev, innermost part first (the path is built only then, so a large finite
+// report costs no string formatting).
+func finiteValue(v reflect.Value, rev *[]string) bool {
 	switch v.Kind() {
 	case reflect.Pointer, reflect.Interface:
 		if v.IsNil() {
-			return "", true
+			return true
 		}
-		return firstNonFinite(v.Elem(), path)
+		return finiteValue(v.Elem(), rev)
 	case reflect.Float32, reflect.Float64:
 		if f := v.Float(); math.IsNaN(f) || math.IsInf(f, 0) {
-			return path, false
+			return false
 		}
 	case reflect.Struct:
 		t := v.Type()
@@ -57,27 +73,39 @@ func firstNonFinite(v reflect.Value, path string) (string, bool) {
 			if !t.Field(i).IsExported() {
 				continue
 			}
-			name, _, _ := strings.Cut(t.Field(i).Tag.Get("json"), ",")
-			if name == "" {
-				name = t.Field(i).Name
-			}
-			if p, ok := firstNonFinite(v.Field(i), path+"."+name); !ok {
-				return p, false
+			if !finiteValue(v.Field(i), rev) {
+				name, _, _ := strings.Cut(t.Field(i).Tag.Get("json"), ",")
+				if name == "" {
+					name = t.Field(i).Name
+				}
+				*rev = append(*rev, "."+name)
+				return false
 			}
 		}
 	case reflect.Slice, reflect.Array:
+		if t := v.Type().Elem(); t.Kind() == reflect.Float64 {
+			for i := range v.Len() {
+				if f := v.Index(i).Float(); math.IsNaN(f) || math.IsInf(f, 0) {
+					*rev = append(*rev, fmt.Sprintf("[%d]", i))
+					return false
+				}
+			}
+			return true
+		}
 		for i := range v.Len() {
-			if p, ok := firstNonFinite(v.Index(i), fmt.Sprintf("%s[%d]", path, i)); !ok {
-				return p, false
+			if !finiteValue(v.Index(i), rev) {
+				*rev = append(*rev, fmt.Sprintf("[%d]", i))
+				return false
 			}
 		}
 	case reflect.Map:
 		iter := v.MapRange()
 		for iter.Next() {
-			if p, ok := firstNonFinite(iter.Value(), fmt.Sprintf("%s.%v", path, iter.Key())); !ok {
-				return p, false
+			if !finiteValue(iter.Value(), rev) {
+				*rev = append(*rev, fmt.Sprintf(".%v", iter.Key()))
+				return false
 			}
 		}
 	}
-	return "", true
+	return true
 }
