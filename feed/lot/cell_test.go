@@ -3,6 +3,10 @@ package lot
 import (
 	"math"
 	"testing"
+
+	"blackmass/cathode/cathodetest"
+	"blackmass/data/datatest"
+	"blackmass/feed/manifest"
 )
 
 // The current collectors follow from the cathode's capacity, the areal capacity and the foils'
@@ -35,5 +39,31 @@ func TestFoilsFromAreaAndThickness(t *testing.T) {
 	b2 := model(3.24, 0, mix{capMAhG: 150, voltV: 3.6}, f, g)
 	if math.Abs(b2.al-2*b.al) > 1e-9 || math.Abs(b2.cu-2*b.cu) > 1e-9 || b2.cam != b.cam || math.Abs(b2.electrolyte-2*b.electrolyte) > 1e-9 {
 		t.Errorf("halved areal capacity: Al %.4f→%.4f g, Cu %.4f→%.4f g", b.al, b2.al, b.cu, b2.cu)
+	}
+}
+
+// A chemistry's own design row (data/model.csv, scope "chemistry") replaces its format's areal
+// capacity for that chemistry alone: the early LiFePO4 cells take the published 26650 power
+// cell's 1.28 mAh/cm² (Prada et al., J. Electrochem. Soc. 160 (2013) A616), current LiFePO4 and
+// a blend holding the early grade keep the format's.
+func TestChemistryDesignRow(t *testing.T) {
+	m, err := DefaultModel()
+	if err != nil {
+		t.Fatal(err)
+	}
+	cat := cathodetest.Catalogue(t)
+	ps := newParamSet(m, 0, 0)
+	format := ps.design(manifest.Cylindrical, 0).arealMAhCm2
+	for label, want := range map[string]float64{"LFP-early": 1.28, "LFP-current": format, "LFP-early+NMC532 50/50": format} {
+		ch, err := cat.ParseLabel(label)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if got := ps.designOf(&ch, manifest.Cylindrical, 0).arealMAhCm2; got != want {
+			t.Errorf("%s: %g mAh/cm², want %g", label, got, want)
+		}
+	}
+	if _, err := LoadModel(datatest.Edited(t, map[string]func(string) string{"model.csv": func(s string) string { return s + "\nchemistry LFP-early,np_ratio,1,1.1,1.2,ratio,x\n" }})); err == nil {
+		t.Error("a chemistry row of a parameter other than its own design was accepted")
 	}
 }

@@ -94,7 +94,7 @@ func (l *Lot) draw(ps *paramSet, n int) *Samples {
 			for _, c := range touched {
 				bm[c] = 0
 			}
-			sh, fr, gl := shares.next(), ps.design(g.format, i), ps.global(i)
+			sh, fr, gl := shares.next(), ps.designOf(g.chem, g.format, i), ps.global(i)
 			b := model(g.energyWh+mo.wh(i, sh), g.chargeAh, mixAt(g.chem.Components, sh, volt, capa, i), fr, gl)
 			b.blackMass(bm, fr, gl, g.camIdx, sh)
 			tot := 0.0

@@ -252,7 +252,7 @@ func (l *Lot) Add(ln manifest.Line) error {
 		flags = append(flags, "no capacity: energy from the mass and the chemistry's Wh/kg band")
 	}
 	// Most-likely breakdown of one item, for the line detail.
-	fr, gl := l.mode.design(ln.Format, 0), l.mode.global(0)
+	fr, gl := l.mode.designOf(ch, ln.Format, 0), l.mode.global(0)
 	itemWh := ln.EnergyWh
 	if ln.MassOnly() {
 		itemWh = energyWh

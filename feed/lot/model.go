@@ -3,6 +3,8 @@ package lot
 import (
 	"fmt"
 	"io/fs"
+	"slices"
+	"strings"
 	"sync"
 
 	"blackmass/cathode"
@@ -74,6 +76,17 @@ func LoadModel(fsys fs.FS) (*Model, error) {
 	for _, n := range globalNames {
 		if m.params["all/"+n] == nil {
 			return nil, fmt.Errorf("model.csv: missing parameter all/%s", n)
+		}
+	}
+	for _, p := range m.list {
+		if !strings.HasPrefix(p.Scope, "chemistry ") {
+			continue
+		}
+		if !slices.Contains(chemistryDesignNames, p.Name) {
+			return nil, fmt.Errorf("model.csv: %s/%s: a chemistry sets only %v", p.Scope, p.Name, chemistryDesignNames)
+		}
+		if p.Range.Min <= 0 {
+			return nil, fmt.Errorf("model.csv: %s/%s must be positive", p.Scope, p.Name)
 		}
 	}
 	for _, f := range manifest.Formats() {
@@ -200,6 +213,25 @@ func (ps *paramSet) global(s int) globals {
 func (ps *paramSet) design(f manifest.Format, s int) design {
 	d := ps.formats[f]
 	return design{d.areal[s], d.al[s], d.cu[s], d.el[s], d.bc[s], d.sep[s], d.cas[s], d.kind, d.over[s]}
+}
+
+// chemistryDesignNames are the design parameters a chemistry may set for its own cells, in
+// place of its format's (scope "chemistry <key>" in model.csv): the cells of some chemistries
+// were built one way (the first LiFePO4 cells as thin power electrodes).
+var chemistryDesignNames = []string{"areal_capacity"}
+
+// designOf returns the cell design of chemistry ch in format f at sample s: the format's, with
+// the chemistry's own design parameters where it is a single material that has them.
+func (ps *paramSet) designOf(ch *cathode.Chemistry, f manifest.Format, s int) design {
+	d := ps.design(f, s)
+	if len(ch.Components) != 1 {
+		return d
+	}
+	scope := "chemistry " + ch.Components[0].Entry.Key
+	if p := ps.m.get(scope, "areal_capacity"); p != nil {
+		d.arealMAhCm2 = ps.rangeValues(scope+"/areal_capacity", p.Range)[s]
+	}
+	return d
 }
 
 // values returns the draws of a model parameter (or its mode, as a one-element slice, when the

@@ -95,7 +95,7 @@ func cellDrawsGiven(t *testing.T, label string, f manifest.Format, energyWh, cha
 	out := make([]cellDraw, referenceSamples)
 	for i := range out {
 		mx := mixAt(ch.Components, shares.next(), volt, capa, i)
-		fd, g := ps.design(f, i), ps.global(i)
+		fd, g := ps.designOf(&ch, f, i), ps.global(i)
 		for name, v := range given {
 			switch name {
 			case "areal_capacity":
