@@ -105,3 +105,21 @@ func fixedIndices() []int {
 	}
 	return out
 }
+
+// weighed fits a design to a measured item mass: of the cell's parts, the foils and the
+// electrolyte scale with the coated area, so with everything else as drawn there is one areal
+// capacity at which the modelled item weighs what was measured. It is held to the range of
+// areal capacities the model allows (lo..hi); a weight outside what that range can give takes
+// the nearer end.
+func weighed(energyWh, chargeAh float64, mx mix, f design, g globals, itemG, lo, hi float64) design {
+	b := model(energyWh, chargeAh, mx, f, g)
+	fixed := b.cam + b.graphite
+	byArea := (b.al + b.cu + b.electrolyte) * f.arealMAhCm2 // g × mAh/cm², so byArea/areal is grams
+	room := itemG*(1-f.overhead)*(1-f.bc-f.sep-f.casing) - fixed
+	a := hi
+	if room > 0 {
+		a = byArea / room
+	}
+	f.arealMAhCm2 = min(max(a, lo), hi)
+	return f
+}

@@ -96,3 +96,59 @@ func TestModelInsideItsBand(t *testing.T) {
 		}
 	}
 }
+
+// A measured weight inside the plausible band constrains the result: the line's modelled item
+// weighs what was measured, and of two weights the heavier gives more foil (Cu, Al) in the black
+// mass, the cathode staying what the nameplate gives; a weight the band flags constrains nothing.
+func TestWeightConstrainsTheCell(t *testing.T) {
+	cat := cathodetest.Catalogue(t)
+	m, err := DefaultModel()
+	if err != nil {
+		t.Fatal(err)
+	}
+	ch, err := cat.ParseLabel("NMC622")
+	if err != nil {
+		t.Fatal(err)
+	}
+	run := func(kg float64) (*Result, LineResult) {
+		t.Helper()
+		lot := NewLot(m, true)
+		ln := manifest.Line{Num: 1, ChemistryLabel: "NMC622", Chemistry: &ch, Format: manifest.Pouch, EnergyWh: 200, Count: 10, CellsPerItem: 1, MassKg: kg}
+		if err := lot.Add(ln); err != nil {
+			t.Fatal(err)
+		}
+		r, _, err := lot.Estimate(1, 2000)
+		if err != nil {
+			t.Fatal(err)
+		}
+		return r, r.Lines[0]
+	}
+	// 200 Wh at 190 and at 230 Wh/kg: both inside the NMC622 band (160-260 Wh/kg).
+	heavy, hl := run(200.0 / 190)
+	light, ll := run(200.0 / 230)
+	none, nl := run(0)
+	for _, c := range []struct {
+		l    LineResult
+		want float64
+	}{{hl, 200.0 / 190}, {ll, 200.0 / 230}} {
+		if math.Abs(c.l.ModelMassKgEach-c.want) > 1e-4*c.want {
+			t.Errorf("weighed %.4f kg, modelled item %.4f kg", c.want, c.l.ModelMassKgEach)
+		}
+	}
+	if nl.ModelMassKgEach == hl.ModelMassKgEach {
+		t.Errorf("no weight and a weight give the same item: %v", nl.ModelMassKgEach)
+	}
+	for _, el := range []string{"Cu", "Al"} {
+		if !(heavy.Elements[el].Kg.P50 > light.Elements[el].Kg.P50) {
+			t.Errorf("%s: heavier cells %.4f kg, lighter %.4f kg in the black mass", el, heavy.Elements[el].Kg.P50, light.Elements[el].Kg.P50)
+		}
+	}
+	if d := math.Abs(heavy.Elements["Co"].Kg.P50 - none.Elements["Co"].Kg.P50); d > 1e-9 {
+		t.Errorf("the weight changed the cathode's cobalt by %g kg", d)
+	}
+	// 200 Wh at 100 Wh/kg is flagged: the result is the unweighed one.
+	flagged, _ := run(2)
+	if flagged.Elements["Cu"].Kg.P50 != none.Elements["Cu"].Kg.P50 {
+		t.Errorf("a flagged weight changed the copper: %.4f against %.4f kg", flagged.Elements["Cu"].Kg.P50, none.Elements["Cu"].Kg.P50)
+	}
+}

@@ -86,6 +86,7 @@ func (l *Lot) draw(ps *paramSet, n int) *Samples {
 		volt, capa := ps.chemDraws(g.chem)
 		shares := ps.shareDraws(g.chem, g.chem.Key+"/"+g.format.String(), g.items)
 		mo := ps.massOnlyDraws(g)
+		arealLo, arealHi := ps.arealBounds(g.chem, g.format)
 		cam, gbm := make([]float64, n), make([]float64, n)
 		// Only the group's own compounds can be non-zero: the fixed ones and its cathodes. Summing
 		// just those keeps the cost per group independent of how many chemistries the lot holds.
@@ -95,8 +96,15 @@ func (l *Lot) draw(ps *paramSet, n int) *Samples {
 				bm[c] = 0
 			}
 			sh, fr, gl := shares.next(), ps.designOf(g.chem, g.format, i), ps.global(i)
-			b := model(g.energyWh+mo.wh(i, sh), g.chargeAh, mixAt(g.chem.Components, sh, volt, capa, i), fr, gl)
+			mx := mixAt(g.chem.Components, sh, volt, capa, i)
+			b := model(max(g.energyWh-g.weighedWh, 0)+mo.wh(i, sh), max(g.chargeAh-g.weighedAh, 0), mx, fr, gl)
 			b.blackMass(bm, fr, gl, g.camIdx, sh)
+			if g.weighedKg > 0 { // the weighed lines: their design fitted to their weight
+				fw := weighed(g.weighedWh, g.weighedAh, mx, fr, gl, g.weighedKg*1000, arealLo, arealHi)
+				bw := model(g.weighedWh, g.weighedAh, mx, fw, gl)
+				bw.blackMass(bm, fw, gl, g.camIdx, sh)
+				b.cam += bw.cam
+			}
 			tot := 0.0
 			for _, c := range touched {
 				m := bm[c] / 1000

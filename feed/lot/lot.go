@@ -59,19 +59,22 @@ const maxLineWarnings = 50
 // group is the lines of one (chemistry, format): only sums are kept, so the Monte Carlo costs
 // groups × samples.
 type group struct {
-	chem        *cathode.Chemistry
-	format      manifest.Format
-	energyWh    float64 // Σ count·energy per item
-	chargeAh    float64 // Σ count·charge per item (lines given in Ah with no voltage)
-	massOnlyKg  float64 // Σ count·mass of lines known by weight only
-	items       int
-	cells       int
-	lines       int
-	camIdx      []int
-	modeMix     mix     // the chemistry at its most likely capacity and voltage
-	bandLo      float64 // plausible Wh/kg band of an item
-	bandHi      float64
-	modeWhPerKg float64 // most likely Wh/kg of an item, for lines known by weight only
+	chem       *cathode.Chemistry
+	format     manifest.Format
+	energyWh   float64 // Σ count·energy per item
+	chargeAh   float64 // Σ count·charge per item (lines given in Ah with no voltage)
+	massOnlyKg float64 // Σ count·mass of lines known by weight only
+	// The lines weighed inside their plausible band: Σ count·energy, count·charge and
+	// count·mass. Their cells are modelled at the areal capacity that gives the weight.
+	weighedWh, weighedAh, weighedKg float64
+	items                           int
+	cells                           int
+	lines                           int
+	camIdx                          []int
+	modeMix                         mix     // the chemistry at its most likely capacity and voltage
+	bandLo                          float64 // plausible Wh/kg band of an item
+	bandHi                          float64
+	modeWhPerKg                     float64 // most likely Wh/kg of an item, for lines known by weight only
 	// lastLabel and lastStat are the label of the group's previous line and its count: lines
 	// of a group mostly repeat one label, and comparing the strings (often one and the same
 	// string) is cheaper than hashing it.
@@ -233,6 +236,11 @@ func (l *Lot) Add(ln manifest.Line) error {
 		l.withMass++
 		measWhKg = energyWh / ln.MassKg
 		lo, hi := g.bandLo, g.bandHi
+		if measWhKg >= lo && measWhKg <= hi {
+			g.weighedWh += cnt * ln.EnergyWh
+			g.weighedAh += cnt * ln.ChargeAh
+			g.weighedKg += cnt * ln.MassKg
+		}
 		if measWhKg < lo || measWhKg > hi {
 			l.flagged++
 			msg := fmt.Sprintf("%.0f Wh/kg measured, outside the plausible %.0f–%.0f Wh/kg for %s %s", measWhKg, lo, hi, ch.Key, ln.Format)
@@ -256,6 +264,10 @@ func (l *Lot) Add(ln manifest.Line) error {
 	itemWh := ln.EnergyWh
 	if ln.MassOnly() {
 		itemWh = energyWh
+	}
+	if ln.MassKg > 0 && !ln.MassOnly() && len(flags) == 0 {
+		lo, hi := l.mode.arealBounds(ch, ln.Format)
+		fr = weighed(itemWh, ln.ChargeAh, mx, fr, gl, ln.MassKg*1000, lo, hi)
 	}
 	b := model(itemWh, ln.ChargeAh, mx, fr, gl)
 	bm := make([]float64, l.comp.n())

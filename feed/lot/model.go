@@ -234,6 +234,18 @@ func (ps *paramSet) designOf(ch *cathode.Chemistry, f manifest.Format, s int) de
 	return d
 }
 
+// arealBounds is the range of areal capacities the model allows chemistry ch in format f: the
+// chemistry's own where it has one (see designOf), else the format's.
+func (ps *paramSet) arealBounds(ch *cathode.Chemistry, f manifest.Format) (lo, hi float64) {
+	p := ps.m.get(f.String(), "areal_capacity")
+	if len(ch.Components) == 1 {
+		if q := ps.m.get("chemistry "+ch.Components[0].Entry.Key, "areal_capacity"); q != nil {
+			p = q
+		}
+	}
+	return p.Range.Min, p.Range.Max
+}
+
 // values returns the draws of a model parameter (or its mode, as a one-element slice, when the
 // set has no samples).
 func (ps *paramSet) values(scope, name string) []float64 {
