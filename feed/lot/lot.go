@@ -230,26 +230,8 @@ func (l *Lot) Add(ln manifest.Line) error {
 		l.unknownWh += cnt * energyWh
 	}
 	l.countLabel(g, ln, cnt*energyWh)
-	var flags []string
-	var measWhKg float64
-	if ln.MassKg > 0 && !ln.MassOnly() {
-		l.withMass++
-		measWhKg = energyWh / ln.MassKg
-		lo, hi := g.bandLo, g.bandHi
-		if measWhKg >= lo && measWhKg <= hi {
-			g.weighedWh += cnt * ln.EnergyWh
-			g.weighedAh += cnt * ln.ChargeAh
-			g.weighedKg += cnt * ln.MassKg
-		}
-		if measWhKg < lo || measWhKg > hi {
-			l.flagged++
-			msg := fmt.Sprintf("%.0f Wh/kg measured, outside the plausible %.0f–%.0f Wh/kg for %s %s", measWhKg, lo, hi, ch.Key, ln.Format)
-			flags = append(flags, msg)
-			if l.flagged <= maxLineWarnings {
-				l.warnings = append(l.warnings, fmt.Sprintf("line %d (%s): %s; check the capacity, the count or the weight", ln.Num, idOr(ln), msg))
-			}
-		}
-	}
+	flags, measWhKg := l.checkMass(g, ln, cnt, energyWh)
+	weighedLine := measWhKg > 0 && len(flags) == 0
 	if !l.keepLines {
 		return nil
 	}
@@ -265,7 +247,7 @@ func (l *Lot) Add(ln manifest.Line) error {
 	if ln.MassOnly() {
 		itemWh = energyWh
 	}
-	if ln.MassKg > 0 && !ln.MassOnly() && len(flags) == 0 {
+	if weighedLine {
 		lo, hi := l.mode.arealBounds(ch, ln.Format)
 		fr = weighed(itemWh, ln.ChargeAh, mx, fr, gl, ln.MassKg*1000, lo, hi)
 	}
@@ -291,6 +273,30 @@ func (l *Lot) Add(ln manifest.Line) error {
 		ModelMassKgEach: dist.Round(b.item/1000, 6), MeasuredMassKg: ln.MassKg, MeasuredWhPerKg: dist.Round(measWhKg, 2),
 		CathodeKg: dist.Round(b.cam*cnt/1000, 6), BlackMassKg: dist.Round(total*cnt/1000, 6), ElementsKg: els, Flags: flags, Notes: ln.Notes})
 	return nil
+}
+
+// checkMass compares a line's measured weight with its plausible Wh/kg band: a weight inside
+// joins the group's weighed lines (whose cells are modelled at that weight), one outside is
+// flagged and warned of.
+func (l *Lot) checkMass(g *group, ln manifest.Line, cnt, energyWh float64) (flags []string, measWhKg float64) {
+	if ln.MassKg <= 0 || ln.MassOnly() {
+		return nil, 0
+	}
+	l.withMass++
+	measWhKg = energyWh / ln.MassKg
+	lo, hi := g.bandLo, g.bandHi
+	if measWhKg >= lo && measWhKg <= hi {
+		g.weighedWh += cnt * ln.EnergyWh
+		g.weighedAh += cnt * ln.ChargeAh
+		g.weighedKg += cnt * ln.MassKg
+		return nil, measWhKg
+	}
+	l.flagged++
+	msg := fmt.Sprintf("%.0f Wh/kg measured, outside the plausible %.0f–%.0f Wh/kg for %s %s", measWhKg, lo, hi, ln.Chemistry.Key, ln.Format)
+	if l.flagged <= maxLineWarnings {
+		l.warnings = append(l.warnings, fmt.Sprintf("line %d (%s): %s; check the capacity, the count or the weight", ln.Num, idOr(ln), msg))
+	}
+	return []string{msg}, measWhKg
 }
 
 // maxLabels bounds the labels listed in the report; the rest are counted.
