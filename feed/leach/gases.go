@@ -86,14 +86,14 @@ const H2WorstCase = "H2 (if metals meet the acid first)"
 
 // gases sets the gas table: every gas some sample evolves, and the hydrogen's worst case.
 func (p *leachPlanner) gases(lr *Report) {
-	gases := map[string]func(r redoxResult) float64{
-		"H2": func(r redoxResult) float64 { return r.h2 }, "O2": func(r redoxResult) float64 { return r.o2 },
-		"Cl2": func(r redoxResult) float64 { return r.cl2 }, "CO2": func(r redoxResult) float64 { return r.co2 },
+	gases := map[string]func(r sampleResult) float64{
+		"H2": func(r sampleResult) float64 { return r.h2 }, "O2": func(r sampleResult) float64 { return r.o2 },
+		"Cl2": func(r sampleResult) float64 { return r.cl2 }, "CO2": func(r sampleResult) float64 { return r.co2 },
 	}
 	// The hydrogen the metals of the feed could give if they met the acid before the oxides: the
 	// warning's worst case, beside what the plan evolves, so the table holds both.
 	if p.route.AcidProtons() > 0 {
-		gases[H2WorstCase] = func(r redoxResult) float64 { return r.h2Potential }
+		gases[H2WorstCase] = func(r sampleResult) float64 { return r.h2Potential }
 	}
 	worst := slices.Max(col(p.n, func(i int) float64 { return p.res[i].h2Potential }))
 	for name, g := range gases {

@@ -114,7 +114,7 @@ func (p *leachPlanner) liquor(lr *Report) {
 			MolPerL: dist.Summarise(perL(func(i int) float64 { return mol[i] }))}
 		if e != "Na" && e != "P" && e != "F" {
 			lr.Liquor.ExtractionReached[e] = dist.Summarise(col(p.n, func(i int) float64 {
-				if f := p.res[i].feedMol[k]; f > 0 {
+				if f := p.feedMol(i, k); f > 0 {
 					return mol[i] / f
 				}
 				return 0

@@ -56,10 +56,12 @@ type leachPlanner struct {
 	route   cathode.Route
 	red     *Reductant
 	species []cathode.Species
-	waterG  float64     // molar mass of water, g/mol
-	lin     []*linearRx // per species: its dissolution's linear form (nil: call cathode.Dissolve)
-	molarG  []float64
-	ext     map[string][]float64
+	waterG  float64 // molar mass of water, g/mol
+	// feedPerMol is each species' moles of each of leachElements per mol.
+	feedPerMol [][nLeachElements]float64
+	lin        []*linearRx // per species: its dissolution's linear form (nil: call cathode.Dissolve)
+	molarG     []float64
+	ext        map[string][]float64
 	// extMax is the top of each element's extraction range on the route: on the selective
 	// route, full dissolution is the most it dissolves (the oxides stay barely attacked).
 	extMax  map[string]float64
@@ -72,7 +74,7 @@ type leachPlanner struct {
 	n       int
 	// per sample
 	vol, acidDose, redDose, acidPlan, redPlan, acidFull, redFull, water, waterKg []float64
-	res                                                                          []redoxResult
+	res                                                                          []sampleResult
 	grown                                                                        int
 }
 
@@ -132,6 +134,17 @@ func newLeachPlanner(s Input, opt Options, lt *Tables) (*leachPlanner, error) {
 		}
 		p.molarG[c] = f.MolarMass(f.Elements())
 	}
+	p.feedPerMol = make([][nLeachElements]float64, len(p.species))
+	for c, sp := range p.species {
+		if sp.Inert() {
+			continue // as in the passes: an inert species counts in no element's feed
+		}
+		for _, t := range sp.Formula.Terms() {
+			if k := elementIndex(t.Symbol); k >= 0 {
+				p.feedPerMol[c][k] += t.Amount
+			}
+		}
+	}
 	p.lin = make([]*linearRx, len(p.species))
 	for c, sp := range p.species {
 		if !sp.Inert() && !sp.Metallic() {
@@ -142,7 +155,7 @@ func newLeachPlanner(s Input, opt Options, lt *Tables) (*leachPlanner, error) {
 		&p.water, &p.waterKg} {
 		*x = make([]float64, p.n)
 	}
-	p.res = make([]redoxResult, p.n)
+	p.res = make([]sampleResult, p.n)
 	return p, nil
 }
 
@@ -182,6 +195,17 @@ func (p *leachPlanner) input(i int, plan func(string) float64, hPlus, redMol flo
 			}
 			return 0
 		}}
+}
+
+// feedMol is sample i's moles of element k (of leachElements) in the feed.
+func (p *leachPlanner) feedMol(i, k int) float64 {
+	f := 0.0
+	for c, kg := range p.s.Kg {
+		if a := p.feedPerMol[c][k]; a != 0 {
+			f += kg[i] * 1000 / p.molarG[c] * a
+		}
+	}
+	return f
 }
 
 // run doses and dissolves every sample.
@@ -254,9 +278,10 @@ func (p *leachPlanner) run() error {
 		case p.red != nil:
 			got.anionMol += got.redUsed * p.red.SulfateMol
 		}
-		p.res[i] = got
+		p.res[i] = got.kept()
 		p.waterKg[i] = p.liquorWaterKg(i)
 	}
+	p.ext, p.lattice = nil, nil // the per-sample extraction and lattice-oxygen draws are spent
 	return nil
 }
 

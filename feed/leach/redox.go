@@ -122,6 +122,21 @@ type redoxInput struct {
 	metalE0 func(sym string) float64 // standard potential of the metal's couple
 }
 
+// sampleResult is what the planner keeps of each sample's leach with the dose: the fields the
+// report reads (the pass's working values and the feed, which follows from the input, are left).
+type sampleResult struct {
+	liquorMol                                    [nLeachElements]float64
+	fe3Mol, redUsed, redDecomp, h2, o2, cl2, co2 float64
+	waterMol, anionMol, freeH, h2Potential       float64
+	reductionCap, acidCap                        float64
+}
+
+func (r redoxResult) kept() sampleResult {
+	return sampleResult{liquorMol: r.liquorMol, fe3Mol: r.fe3Mol, redUsed: r.redUsed, redDecomp: r.redDecomp, h2: r.h2,
+		o2: r.o2, cl2: r.cl2, co2: r.co2, waterMol: r.waterMol, anionMol: r.anionMol, freeH: r.freeH,
+		h2Potential: r.h2Potential, reductionCap: r.reductionCap, acidCap: r.acidCap}
+}
+
 // redoxResult is what the sample's leach reached.
 type redoxResult struct {
 	feedMol      [nLeachElements]float64 // per leachElements, in the feed
