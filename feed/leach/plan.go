@@ -57,6 +57,11 @@ type leachPlanner struct {
 	red     *Reductant
 	species []cathode.Species
 	waterG  float64 // molar mass of water, g/mol
+	metals  []metalSpecies
+	// molBuf, planBuf and metalE0 are input's buffers (see there).
+	molBuf  []float64
+	planBuf [nLeachElements]float64
+	metalE0 func(sym string) float64
 	// feedPerMol is each species' moles of each of leachElements per mol.
 	feedPerMol [][nLeachElements]float64
 	lin        []*linearRx // per species: its dissolution's linear form (nil: call cathode.Dissolve)
@@ -145,6 +150,18 @@ func newLeachPlanner(s Input, opt Options, lt *Tables) (*leachPlanner, error) {
 			}
 		}
 	}
+	p.metals = make([]metalSpecies, len(p.species))
+	for c, sp := range p.species {
+		p.metals[c].k = -1
+		if sp.Metallic() {
+			t := sp.Formula.Terms()[0]
+			p.metals[c] = metalSpecies{sym: t.Symbol, k: elementIndex(t.Symbol), amount: t.Amount, z: cathode.AqueousCharge(t.Symbol)}
+			sym := t.Symbol
+			if el := lt.elements.Lookup(sym); el != nil && el.HasPotential {
+				p.metals[c].e0 = el.StandardPotential
+			}
+		}
+	}
 	p.lin = make([]*linearRx, len(p.species))
 	for c, sp := range p.species {
 		if !sp.Inert() && !sp.Metallic() {
@@ -176,25 +193,28 @@ func (p *leachPlanner) plan(i int) func(string) float64 {
 	}
 }
 
+// input is sample i's leach input with the plan and dose given. Its moles and planned
+// extractions are the planner's buffers, rewritten by the next call: a leachSample uses them
+// before the next input is made.
 func (p *leachPlanner) input(i int, plan func(string) float64, hPlus, redMol float64) redoxInput {
-	mol := make([]float64, len(p.s.Kg))
-	for c, kg := range p.s.Kg {
-		mol[c] = kg[i] * 1000 / p.molarG[c]
-	}
-	es := p.lt.elements
-	planAt := new([nLeachElements]float64)
-	for k, sym := range leachElements {
-		planAt[k] = plan(sym)
-	}
-	return redoxInput{route: p.route, species: p.species, lin: p.lin, mol: mol, plan: plan, planAt: planAt, hPlus: hPlus,
-		red: p.red, redMol: redMol,
-		lost: p.lost[i], lattice: p.lattice[i],
-		metalE0: func(sym string) float64 {
+	if len(p.molBuf) != len(p.s.Kg) {
+		p.molBuf = make([]float64, len(p.s.Kg))
+		es := p.lt.elements
+		p.metalE0 = func(sym string) float64 {
 			if el := es.Lookup(sym); el != nil && el.HasPotential {
 				return el.StandardPotential
 			}
 			return 0
-		}}
+		}
+	}
+	for c, kg := range p.s.Kg {
+		p.molBuf[c] = kg[i] * 1000 / p.molarG[c]
+	}
+	for k, sym := range leachElements {
+		p.planBuf[k] = plan(sym)
+	}
+	return redoxInput{route: p.route, species: p.species, lin: p.lin, metals: p.metals, mol: p.molBuf, plan: plan, planAt: &p.planBuf,
+		hPlus: hPlus, red: p.red, redMol: redMol, lost: p.lost[i], lattice: p.lattice[i], metalE0: p.metalE0}
 }
 
 // feedMol is sample i's moles of element k (of leachElements) in the feed.

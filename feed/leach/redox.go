@@ -111,6 +111,7 @@ type redoxInput struct {
 	route   cathode.Route
 	species []cathode.Species
 	lin     []*linearRx              // per species, nil where cathode.Dissolve is called
+	metals  []metalSpecies           // per species: a metal's symbol, charge and potential
 	mol     []float64                // per compound
 	plan    func(sym string) float64 // planned extraction (route's range or the user's)
 	planAt  *[nLeachElements]float64 // plan at each of leachElements (nil: ask plan)
@@ -216,6 +217,14 @@ func leachSample(in redoxInput) (redoxResult, error) {
 	return res, nil
 }
 
+// metalSpecies is a metallic species' element, looked up once: its index in leachElements (-1
+// for none, or for a species that is not a metal), aqueous charge and standard potential.
+type metalSpecies struct {
+	sym           string
+	k             int
+	amount, z, e0 float64
+}
+
 // donor is a metal of the feed that can give electrons.
 type donor struct {
 	sym     string
@@ -232,7 +241,7 @@ type pass struct {
 	in          redoxInput
 	fRed, fAcid float64
 	r           redoxResult
-	donors      []*donor
+	donors      []donor
 	hUptake     float64 // H+ taken by the solids' anions
 	solidsWater float64 // water the solids' dissolution forms (cathode.Dissolve), mol
 	eOxNeed     float64 // electrons the solids give up to an oxidant (phosphate iron, selective route)
@@ -272,11 +281,14 @@ func (p *pass) solids() error {
 		if n <= 0 || sp.Inert() {
 			continue
 		}
-		if c < len(in.lin) && in.lin[c] != nil {
+		switch {
+		case c < len(in.lin) && in.lin[c] != nil:
 			for _, ft := range in.lin[c].feed {
 				r.feedMol[ft.k] += n * ft.mol
 			}
-		} else {
+		case c < len(in.metals) && in.metals[c].k >= 0:
+			r.feedMol[in.metals[c].k] += n * in.metals[c].amount
+		default:
 			for _, t := range sp.Formula.Terms() {
 				if k := elementIndex(t.Symbol); k >= 0 {
 					r.feedMol[k] += n * t.Amount
@@ -284,8 +296,17 @@ func (p *pass) solids() error {
 			}
 		}
 		if sp.Metallic() {
-			sym := sp.Formula.Terms()[0].Symbol
-			d := &donor{sym: sym, mol: n * in.plan(sym) * p.fAcid, z: cathode.AqueousCharge(sym), e0: in.metalE0(sym)}
+			var d donor
+			if c < len(in.metals) && in.metals[c].k >= 0 && in.planAt != nil {
+				m := in.metals[c]
+				d = donor{sym: m.sym, mol: n * in.planAt[m.k] * p.fAcid, z: m.z, e0: m.e0}
+			} else {
+				sym := sp.Formula.Terms()[0].Symbol
+				d = donor{sym: sym, mol: n * in.plan(sym) * p.fAcid, z: cathode.AqueousCharge(sym), e0: in.metalE0(sym)}
+			}
+			if p.donors == nil {
+				p.donors = make([]donor, 0, len(in.species))
+			}
 			p.donors = append(p.donors, d)
 			if d.e0 < 0 {
 				r.h2Potential += d.mol * d.z / 2
@@ -390,9 +411,10 @@ func (p *pass) extraction(sp cathode.Species) cathode.Extraction {
 // shortfall shows as eCap < eNeeded.
 func (p *pass) reduce() {
 	in, r := p.in, &p.r
-	slices.SortStableFunc(p.donors, func(a, b *donor) int { return cmpFloat(a.e0, b.e0) })
+	slices.SortStableFunc(p.donors, func(a, b donor) int { return cmpFloat(a.e0, b.e0) })
 	rem := r.eNeeded
-	for _, d := range p.donors {
+	for j := range p.donors {
+		d := &p.donors[j]
 		give := math.Min(rem, d.mol*d.z)
 		d.usedOx, rem = give, rem-give
 		r.eFromMetals += give
@@ -425,7 +447,8 @@ func (p *pass) reduce() {
 // hydrogen; copper only with the peroxide left as oxidant (or stays in the residue).
 func (p *pass) leftoverMetals() {
 	in, r := p.in, &p.r
-	for _, d := range p.donors {
+	for j := range p.donors {
+		d := &p.donors[j]
 		left := d.mol*d.z - d.usedOx
 		switch {
 		case d.e0 < 0:

@@ -87,6 +87,7 @@ func (l *Lot) draw(ps *paramSet, n int) *Samples {
 		shares := ps.shareDraws(g.chem, g.chem.Key+"/"+g.format.String(), g.items)
 		mo := ps.massOnlyDraws(g)
 		arealLo, arealHi := ps.arealBounds(g.chem, g.format)
+		chemAreal := ps.chemAreal(g.chem)
 		cam, gbm := make([]float64, n), make([]float64, n)
 		// Only the group's own compounds can be non-zero: the fixed ones and its cathodes. Summing
 		// just those keeps the cost per group independent of how many chemistries the lot holds.
@@ -95,7 +96,10 @@ func (l *Lot) draw(ps *paramSet, n int) *Samples {
 			for _, c := range touched {
 				bm[c] = 0
 			}
-			sh, fr, gl := shares.next(), ps.designOf(g.chem, g.format, i), ps.global(i)
+			sh, fr, gl := shares.next(), ps.design(g.format, i), ps.global(i)
+			if chemAreal != nil {
+				fr.arealMAhCm2 = chemAreal[i]
+			}
 			mx := mixAt(g.chem.Components, sh, volt, capa, i)
 			b := model(max(g.energyWh-g.weighedWh, 0)+mo.wh(i, sh), max(g.chargeAh-g.weighedAh, 0), mx, fr, gl)
 			b.blackMass(bm, fr, gl, g.camIdx, sh)

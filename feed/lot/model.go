@@ -224,14 +224,24 @@ var chemistryDesignNames = []string{"areal_capacity"}
 // the chemistry's own design parameters where it is a single material that has them.
 func (ps *paramSet) designOf(ch *cathode.Chemistry, f manifest.Format, s int) design {
 	d := ps.design(f, s)
-	if len(ch.Components) != 1 {
-		return d
-	}
-	scope := "chemistry " + ch.Components[0].Entry.Key
-	if p := ps.m.get(scope, "areal_capacity"); p != nil {
-		d.arealMAhCm2 = ps.rangeValues(scope+"/areal_capacity", p.Range)[s]
+	if a := ps.chemAreal(ch); a != nil {
+		d.arealMAhCm2 = a[s]
 	}
 	return d
+}
+
+// chemAreal returns the draws of chemistry ch's own areal capacity, nil when it takes its
+// format's (a blend, or a material without a row of its own).
+func (ps *paramSet) chemAreal(ch *cathode.Chemistry) []float64 {
+	if len(ch.Components) != 1 {
+		return nil
+	}
+	scope := "chemistry " + ch.Components[0].Entry.Key
+	p := ps.m.get(scope, "areal_capacity")
+	if p == nil {
+		return nil
+	}
+	return ps.rangeValues(scope+"/areal_capacity", p.Range)
 }
 
 // arealBounds is the range of areal capacities the model allows chemistry ch in format f: the
