@@ -118,13 +118,14 @@ type Reaction struct {
 }
 
 // Extraction gives the fraction (0..1) of an element that goes to the liquor. A nil Extraction
-// means complete dissolution.
+// means complete dissolution of what the route dissolves.
 type Extraction func(symbol string) float64
 
 // Dissolve returns the stoichiometry of dissolving one mole of sp on route, with each metal
-// extracted to the fraction x gives (nil: all of it). Elements the route cannot dissolve stay in
-// the residue whatever x says: graphite and polymers, Ti/Zr/Nb oxides, copper metal on the
-// hydrochloric route, and iron of a phosphate on the selective route (as FePO4).
+// extracted to the fraction x gives (nil: all the route dissolves, which on the selective route
+// leaves oxides whole). Elements the route cannot dissolve stay in the residue whatever x says:
+// graphite and polymers, Ti/Zr/Nb oxides, copper metal on the hydrochloric route, and iron of a
+// phosphate on the selective route (as FePO4).
 //
 // The demand follows from oxidation states alone: a = Σ released·s + Σ retained·(s−r) H+ go to
 // the anions (s: state in the solid, r: state in the residue), and e = Σ released·(s−z) +
@@ -178,7 +179,14 @@ type ledger struct {
 // extraction given: the cations into rx, the electrons and the residue into the ledger.
 func dissolveMetals(rx *Reaction, sp Species, route Route, x Extraction) (*ledger, error) {
 	es := sp.Formula.Elements() // potentials from the table the formula was read with
+	// With no extraction given the route dissolves all it dissolves: on the selective route
+	// that leaves an oxide whole (the route's low acid and peroxide as oxidant barely attack
+	// layered and spinel oxides; a caller that plans some attack gives its extraction).
+	leftWhole := x == nil && route == SulfuricSelective && sp.anionic == "oxide" && !sp.metallic
 	frac := func(sym string) (float64, error) {
+		if leftWhole {
+			return 0, nil
+		}
 		if x == nil {
 			return 1, nil
 		}

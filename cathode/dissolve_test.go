@@ -245,6 +245,38 @@ func TestSelectivePartial(t *testing.T) {
 	checkBalance(t, "LiFePO4 90 %", rx)
 }
 
+// With no extraction given, the selective route dissolves what it dissolves: the phosphate's
+// lithium (LiFePO4 + ½H2SO4 + ½H2O2 → ½Li2SO4 + FePO4 + H2O; Li et al., ACS Sustain. Chem. Eng.
+// 5 (2017) 8017, from memory) and none of a layered or spinel oxide, which stays whole for a
+// second, reductive leach; the same oxides dissolve fully on the reductive sulfuric route.
+func TestSelectiveLeavesOxides(t *testing.T) {
+	for _, formula := range []string{"LiCoO2", "LiNi0.6Mn0.2Co0.2O2", "LiMn2O4", "LiNi0.8Co0.15Al0.05O2"} {
+		sp, _ := cathode.NewSpecies(mustFormula(t, formula))
+		rx, err := cathode.Dissolve(sp, cathode.SulfuricSelective, nil)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if rx.AcidMol != 0 || rx.H2O2ReductantMol != 0 || len(rx.Cations) != 0 {
+			t.Errorf("%s on the selective route: acid %g, H2O2 %g, cations %v; want it left whole", formula, rx.AcidMol, rx.H2O2ReductantMol, rx.Cations)
+		}
+		checkBalance(t, formula+" selective", rx)
+		full, err := cathode.Dissolve(sp, cathode.SulfuricPeroxide, nil)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if full.AcidMol <= 0 || len(full.Cations) == 0 {
+			t.Errorf("%s on the reductive route: acid %g, cations %v", formula, full.AcidMol, full.Cations)
+		}
+	}
+	sp, _ := cathode.NewSpecies(mustFormula(t, "LiFePO4"))
+	rx, err := cathode.Dissolve(sp, cathode.SulfuricSelective, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	approx(t, "LiFePO4 H2SO4", rx.AcidMol, 0.5, 1e-12)
+	approx(t, "LiFePO4 FePO4", rx.ResidueFePO4Mol, 1, 1e-12)
+}
+
 // Layered and spinel oxides holding nickel take Mn(IV) and Co(III) with nickel the rest: Ni(II)
 // in NMC111 and LiNi0.5Mn1.5O4, between +2 and +3 in the nickel-rich grades (X-ray absorption:
 // Koyama et al., J. Power Sources 119-121 (2003) 644, from memory); a lithium-poor oxide's nickel

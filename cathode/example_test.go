@@ -31,7 +31,7 @@ func ExampleDissolve() {
 	// Output:
 	// 2 LiCoO2 + 3 H2SO4 + H2O2 → Li2SO4 + 2 CoSO4 + 4 H2O + O2↑
 	// 2 LiCoO2 + 8 HCl → 2 LiCl + 2 CoCl2 + 4 H2O + Cl2↑
-	// 2 LiCoO2 + 3 H2SO4 + H2O2 → Li2SO4 + 2 CoSO4 + 4 H2O + O2↑
+	// LiCoO2 → residue
 }
 
 func ExampleCatalogue_ParseLabel() {

@@ -202,7 +202,11 @@ func writeChemText(w io.Writer, j chemJSON) {
 		}
 		tw.Flush()
 		for _, r := range m.Routes {
-			fmt.Fprintf(w, "    %-20s %s\n", r.Route, r.Equation)
+			note := ""
+			if r.Route == cathode.SulfuricSelective.String() && r.AcidKgPerKg == 0 && !strings.Contains(r.Equation, "+") {
+				note = "  (left whole: the selective route leaves oxides for a second, reductive leach)"
+			}
+			fmt.Fprintf(w, "    %-20s %s%s\n", r.Route, r.Equation, note)
 		}
 	}
 }

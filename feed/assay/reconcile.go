@@ -5,6 +5,7 @@ import (
 	"math"
 	"math/rand/v2"
 	"slices"
+	"strings"
 
 	"gonum.org/v1/gonum/mat"
 
@@ -131,7 +132,18 @@ type MixComponent struct {
 	CathodeShare *dist.Stat `json:"cathode_share,omitempty"`
 	Interval95   [2]float64 `json:"interval_95"`
 	Best         float64    `json:"best_fit"`
+	// BestShare is the best fit's share of the cathode active mass (chemistries only): the
+	// shares of one fit, so they sum to 1, unlike the medians of CathodeShare.
+	BestShare *float64 `json:"best_fit_cathode_share,omitempty"`
+	// Multimodal says the bootstrap draws of this column are not one hump around the best fit:
+	// the best fit lies outside their 95 % range, or the column drops to zero in some draws and
+	// not in others (near-collinear candidates trading the signal).
+	Multimodal bool `json:"bootstrap_multimodal,omitempty"`
 }
+
+// multimodalZeroShare bounds the share of bootstrap draws at zero between which a column is on
+// in some draws and off in others: an on/off column has two modes.
+const multimodalZeroShare = 0.05
 
 // Residual is the misfit of one assayed element.
 type Residual struct {
@@ -189,13 +201,33 @@ func InferMix(a *Assay, candidates []*cathode.Entry, draws int, seed uint64) (*M
 		return nil, err
 	}
 	fit := &MixFit{Bootstrap: draws}
+	bestChem := 0.0
+	for j, c := range cols {
+		if c.chem {
+			bestChem += best[j]
+		}
+	}
+	var multimodal []string
 	for j, c := range cols {
 		mc := MixComponent{Name: c.name, KgPerKg: dist.Summarise(xs[j]), Best: dist.Sig(best[j])}
 		sorted := slices.Sorted(slices.Values(xs[j]))
-		mc.Interval95 = [2]float64{dist.Sig(dist.Quantile(sorted, 0.025)), dist.Sig(dist.Quantile(sorted, 0.975))}
+		lo, hi := dist.Quantile(sorted, 0.025), dist.Quantile(sorted, 0.975)
+		mc.Interval95 = [2]float64{dist.Sig(lo), dist.Sig(hi)}
+		zeros := float64(len(sorted)-len(slices.DeleteFunc(slices.Clone(sorted), func(v float64) bool { return v == 0 }))) /
+			float64(len(sorted))
+		mc.Multimodal = best[j] < lo || best[j] > hi ||
+			(zeros > multimodalZeroShare && zeros < 1-multimodalZeroShare)
+		if mc.Multimodal {
+			multimodal = append(multimodal, fmt.Sprintf("%s (best %.4g, bootstrap 95 %% %.4g–%.4g, zero in %.0f %% of draws)",
+				c.name, best[j], lo, hi, 100*zeros))
+		}
 		if c.chem {
 			st := dist.Summarise(shares[j])
 			mc.CathodeShare = &st
+			if bestChem > 0 {
+				bs := best[j] / bestChem
+				mc.BestShare = &bs
+			}
 		}
 		fit.Components = append(fit.Components, mc)
 		fit.Explained += best[j]
@@ -208,6 +240,10 @@ func InferMix(a *Assay, candidates []*cathode.Entry, draws int, seed uint64) (*M
 			f += 100 * c.frac[v.Element] * best[j]
 		}
 		fit.Residuals = append(fit.Residuals, Residual{Element: v.Element, WtPct: dist.Sig(v.WtPct - f), Sigma: dist.Sig((v.WtPct - f) / ws.sigma[i])})
+	}
+	if len(multimodal) > 0 {
+		merged = append(merged, "the bootstrap is multi-modal for "+strings.Join(multimodal, "; ")+
+			": candidates trade the signal between draws, so the best fit is one of several near-equal mixes")
 	}
 	fit.Notes = append(merged, []string{
 		"weighted non-negative least squares (Lawson–Hanson) over the candidates' element fractions; weights 1/σ of the assay",

@@ -46,7 +46,8 @@ func (p *leachPlanner) byproducts(lr *Report) {
 	if g, ok := lr.Gases["Cl2"]; ok && g.Mol.P90 > 0 {
 		rho, err := p.lt.Density("NaOH", scrubberNaOHWtPct)
 		if err == nil {
-			kg := col(p.n, func(i int) float64 { return p.res[i].cl2 * naohPerCl2 * p.lt.molarMassG("NaOH") / 1000 })
+			naohG := p.lt.molarMassG("NaOH")
+			kg := col(p.n, func(i int) float64 { return p.res[i].cl2 * naohPerCl2 * naohG / 1000 })
 			w := scrubberNaOHWtPct / 100.0
 			lr.Scrubber = &Scrubber{Reagent: fmt.Sprintf("NaOH %d %%", scrubberNaOHWtPct), KgPure: dist.Summarise(kg),
 				Kg:       dist.Summarise(col(p.n, func(i int) float64 { return kg[i] / w })),
@@ -79,15 +80,26 @@ func formatGasVolume(m3 float64) string {
 	return fmt.Sprintf("%.3g mL", m3*1e6)
 }
 
-// gases sets the gas table: every gas some sample evolves.
+// H2WorstCase names the gas-table row of the hydrogen the feed's metals give if they meet the
+// acid before the oxides (the plan's H2 row is what evolves once they have reduced the oxides).
+const H2WorstCase = "H2 (if metals meet the acid first)"
+
+// gases sets the gas table: every gas some sample evolves, and the hydrogen's worst case.
 func (p *leachPlanner) gases(lr *Report) {
-	gases := map[string]func(r redoxResult) float64{
-		"H2": func(r redoxResult) float64 { return r.h2 }, "O2": func(r redoxResult) float64 { return r.o2 },
-		"Cl2": func(r redoxResult) float64 { return r.cl2 }, "CO2": func(r redoxResult) float64 { return r.co2 },
+	gases := map[string]func(r sampleResult) float64{
+		"H2": func(r sampleResult) float64 { return r.h2 }, "O2": func(r sampleResult) float64 { return r.o2 },
+		"Cl2": func(r sampleResult) float64 { return r.cl2 }, "CO2": func(r sampleResult) float64 { return r.co2 },
 	}
+	// The hydrogen the metals of the feed could give if they met the acid before the oxides: the
+	// warning's worst case, beside what the plan evolves, so the table holds both.
+	if p.route.AcidProtons() > 0 {
+		gases[H2WorstCase] = func(r sampleResult) float64 { return r.h2Potential }
+	}
+	worst := slices.Max(col(p.n, func(i int) float64 { return p.res[i].h2Potential }))
 	for name, g := range gases {
 		mol := col(p.n, func(i int) float64 { return g(p.res[i]) })
-		if slices.Max(mol) > 0 {
+		// The plan's H2 row stays, zero or not, wherever the warning names hydrogen.
+		if slices.Max(mol) > 0 || (name == "H2" && worst > 0) {
 			lr.Gases[name] = Gas{Mol: dist.Summarise(mol),
 				M3STP: dist.Summarise(col(p.n, func(i int) float64 { return mol[i] * MolarVolumeSTPLPerMol / 1000 }))}
 		}

@@ -114,7 +114,7 @@ func (p *leachPlanner) liquor(lr *Report) {
 			MolPerL: dist.Summarise(perL(func(i int) float64 { return mol[i] }))}
 		if e != "Na" && e != "P" && e != "F" {
 			lr.Liquor.ExtractionReached[e] = dist.Summarise(col(p.n, func(i int) float64 {
-				if f := p.res[i].feedMol[k]; f > 0 {
+				if f := p.feedMol(i, k); f > 0 {
 					return mol[i] / f
 				}
 				return 0
@@ -234,7 +234,7 @@ func (p *leachPlanner) liquorWaterKg(i int) float64 {
 	if p.red != nil {
 		w += p.redDose[i] * p.red.MolarMassGMol / 1000 * (100/redStrength(p.red, p.opt) - 1)
 	}
-	w += p.res[i].waterMol * p.lt.molarMassG("H2O") / 1000
+	w += p.res[i].waterMol * p.waterG / 1000
 	// A leach of neat reagents on bare metal can end with no water to speak of: hold the ratio
 	// finite (it then reads as far past saturation).
 	return math.Max(w, minLiquorWaterKg)

@@ -56,8 +56,20 @@ type leachPlanner struct {
 	route   cathode.Route
 	red     *Reductant
 	species []cathode.Species
-	molarG  []float64
-	ext     map[string][]float64
+	waterG  float64 // molar mass of water, g/mol
+	metals  []metalSpecies
+	// molBuf, planBuf and metalE0 are input's buffers (see there).
+	molBuf  []float64
+	planBuf [nLeachElements]float64
+	metalE0 func(sym string) float64
+	// feedPerMol is each species' moles of each of leachElements per mol.
+	feedPerMol [][nLeachElements]float64
+	lin        []*linearRx // per species: its dissolution's linear form (nil: call cathode.Dissolve)
+	molarG     []float64
+	ext        map[string][]float64
+	// extMax is the top of each element's extraction range on the route: on the selective
+	// route, full dissolution is the most it dissolves (the oxides stay barely attacked).
+	extMax  map[string]float64
 	ranges  []dist.Param
 	lost    []float64 // share of the peroxide dose that decomposes, per sample
 	lattice []float64 // share of the planned reduction the oxides' own oxygen can give, per sample
@@ -67,7 +79,7 @@ type leachPlanner struct {
 	n       int
 	// per sample
 	vol, acidDose, redDose, acidPlan, redPlan, acidFull, redFull, water, waterKg []float64
-	res                                                                          []redoxResult
+	res                                                                          []sampleResult
 	grown                                                                        int
 }
 
@@ -75,8 +87,10 @@ func newLeachPlanner(s Input, opt Options, lt *Tables) (*leachPlanner, error) {
 	if len(s.Formulas) != len(s.Kg) || s.Draws == nil {
 		return nil, fmt.Errorf("leach: %d formulas for %d mass columns, or no parameter draws", len(s.Formulas), len(s.Kg))
 	}
-	p := &leachPlanner{s: s, opt: opt, lt: lt, route: opt.Route, n: len(s.BlackMassKg), ext: map[string][]float64{}}
+	p := &leachPlanner{s: s, opt: opt, lt: lt, route: opt.Route, n: len(s.BlackMassKg), ext: map[string][]float64{},
+		extMax: map[string]float64{}}
 	p.acidM = lt.molarMassG(p.route.Acid())
+	p.waterG = lt.molarMassG("H2O")
 	var err error
 	if p.acidRho, err = lt.Density(p.route.Acid(), opt.AcidWtPct); err != nil {
 		return nil, err
@@ -94,6 +108,7 @@ func newLeachPlanner(s Input, opt Options, lt *Tables) (*leachPlanner, error) {
 	for _, el := range slices.Sorted(maps.Keys(lt.extraction[p.route])) {
 		rg := lt.extraction[p.route][el]
 		p.ext[el] = s.Draws.Draws("extraction "+p.route.String()+"/"+el, rg.Min, rg.Mode, rg.Max)
+		p.extMax[el] = rg.Max
 		p.ranges = append(p.ranges, dist.Param{Scope: "extraction " + p.route.String(), Name: el,
 			Min: rg.Min, Mode: rg.Mode, Max: rg.Max, Unit: "fraction", Source: lt.sources[p.route.String()+"/"+el]})
 	}
@@ -124,11 +139,40 @@ func newLeachPlanner(s Input, opt Options, lt *Tables) (*leachPlanner, error) {
 		}
 		p.molarG[c] = f.MolarMass(f.Elements())
 	}
+	p.feedPerMol = make([][nLeachElements]float64, len(p.species))
+	for c, sp := range p.species {
+		if sp.Inert() {
+			continue // as in the passes: an inert species counts in no element's feed
+		}
+		for _, t := range sp.Formula.Terms() {
+			if k := elementIndex(t.Symbol); k >= 0 {
+				p.feedPerMol[c][k] += t.Amount
+			}
+		}
+	}
+	p.metals = make([]metalSpecies, len(p.species))
+	for c, sp := range p.species {
+		p.metals[c].k = -1
+		if sp.Metallic() {
+			t := sp.Formula.Terms()[0]
+			p.metals[c] = metalSpecies{sym: t.Symbol, k: elementIndex(t.Symbol), amount: t.Amount, z: cathode.AqueousCharge(t.Symbol)}
+			sym := t.Symbol
+			if el := lt.elements.Lookup(sym); el != nil && el.HasPotential {
+				p.metals[c].e0 = el.StandardPotential
+			}
+		}
+	}
+	p.lin = make([]*linearRx, len(p.species))
+	for c, sp := range p.species {
+		if !sp.Inert() && !sp.Metallic() {
+			p.lin[c] = newLinearRx(sp, p.route)
+		}
+	}
 	for _, x := range []*[]float64{&p.vol, &p.acidDose, &p.redDose, &p.acidPlan, &p.redPlan, &p.acidFull, &p.redFull,
 		&p.water, &p.waterKg} {
 		*x = make([]float64, p.n)
 	}
-	p.res = make([]redoxResult, p.n)
+	p.res = make([]sampleResult, p.n)
 	return p, nil
 }
 
@@ -149,29 +193,56 @@ func (p *leachPlanner) plan(i int) func(string) float64 {
 	}
 }
 
+// input is sample i's leach input with the plan and dose given. Its moles and planned
+// extractions are the planner's buffers, rewritten by the next call: a leachSample uses them
+// before the next input is made.
 func (p *leachPlanner) input(i int, plan func(string) float64, hPlus, redMol float64) redoxInput {
-	mol := make([]float64, len(p.s.Kg))
-	for c, kg := range p.s.Kg {
-		mol[c] = kg[i] * 1000 / p.molarG[c]
-	}
-	es := p.lt.elements
-	return redoxInput{route: p.route, species: p.species, mol: mol, plan: plan, hPlus: hPlus, red: p.red, redMol: redMol,
-		lost: p.lost[i], lattice: p.lattice[i],
-		metalE0: func(sym string) float64 {
+	if len(p.molBuf) != len(p.s.Kg) {
+		p.molBuf = make([]float64, len(p.s.Kg))
+		es := p.lt.elements
+		p.metalE0 = func(sym string) float64 {
 			if el := es.Lookup(sym); el != nil && el.HasPotential {
 				return el.StandardPotential
 			}
 			return 0
-		}}
+		}
+	}
+	for c, kg := range p.s.Kg {
+		p.molBuf[c] = kg[i] * 1000 / p.molarG[c]
+	}
+	for k, sym := range leachElements {
+		p.planBuf[k] = plan(sym)
+	}
+	return redoxInput{route: p.route, species: p.species, lin: p.lin, metals: p.metals, mol: p.molBuf, plan: plan, planAt: &p.planBuf,
+		hPlus: hPlus, red: p.red, redMol: redMol, lost: p.lost[i], lattice: p.lattice[i], metalE0: p.metalE0}
+}
+
+// feedMol is sample i's moles of element k (of leachElements) in the feed.
+func (p *leachPlanner) feedMol(i, k int) float64 {
+	f := 0.0
+	for c, kg := range p.s.Kg {
+		if a := p.feedPerMol[c][k]; a != 0 {
+			f += kg[i] * 1000 / p.molarG[c] * a
+		}
+	}
+	return f
 }
 
 // run doses and dissolves every sample.
 func (p *leachPlanner) run() error {
 	protons := p.route.AcidProtons()
 	inf := math.Inf(1)
-	full := func(string) float64 { return 1 }
 	for i := range p.n {
 		plan := p.plan(i)
+		// Full dissolution: complete, but on the selective route, which leaves the oxides, the
+		// most it dissolves (the top of its extraction ranges); never less than planned.
+		full := func(sym string) float64 {
+			v := 1.0
+			if m, ok := p.extMax[sym]; ok && p.route == cathode.SulfuricSelective {
+				v = m
+			}
+			return max(v, plan(sym))
+		}
 		need, err := leachSample(p.input(i, plan, inf, inf))
 		if err != nil {
 			return err
@@ -227,9 +298,10 @@ func (p *leachPlanner) run() error {
 		case p.red != nil:
 			got.anionMol += got.redUsed * p.red.SulfateMol
 		}
-		p.res[i] = got
+		p.res[i] = got.kept()
 		p.waterKg[i] = p.liquorWaterKg(i)
 	}
+	p.ext, p.lattice = nil, nil // the per-sample extraction and lattice-oxygen draws are spent
 	return nil
 }
 
@@ -359,7 +431,8 @@ type Reagent struct {
 	Cost       *dist.Stat `json:"cost,omitempty"`
 	StoichKg   dist.Stat  `json:"stoichiometric_kg_pure"`
 	// Ratio is the dose over what the planned extraction needs; RatioFull over what full
-	// dissolution of the lot needs.
+	// dissolution of the lot needs (on the selective route, which leaves the oxides, every metal
+	// at the top of its extraction range).
 	Ratio     dist.Stat `json:"ratio_to_stoichiometry"`
 	RatioFull dist.Stat `json:"ratio_to_full_dissolution"`
 }

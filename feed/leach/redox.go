@@ -110,14 +110,32 @@ func elementIndex(sym string) int { return slices.Index(leachElements, sym) }
 type redoxInput struct {
 	route   cathode.Route
 	species []cathode.Species
+	lin     []*linearRx              // per species, nil where cathode.Dissolve is called
+	metals  []metalSpecies           // per species: a metal's symbol, charge and potential
 	mol     []float64                // per compound
 	plan    func(sym string) float64 // planned extraction (route's range or the user's)
+	planAt  *[nLeachElements]float64 // plan at each of leachElements (nil: ask plan)
 	hPlus   float64                  // H+ the acid supplies; +Inf: as much as needed
 	red     *Reductant               // nil: none added
 	redMol  float64                  // reductant dosed; +Inf: as much as needed
 	lost    float64                  // share of a peroxide dose that decomposes
 	lattice float64                  // share of the planned reduction the oxides' own oxygen can give
 	metalE0 func(sym string) float64 // standard potential of the metal's couple
+}
+
+// sampleResult is what the planner keeps of each sample's leach with the dose: the fields the
+// report reads (the pass's working values and the feed, which follows from the input, are left).
+type sampleResult struct {
+	liquorMol                                    [nLeachElements]float64
+	fe3Mol, redUsed, redDecomp, h2, o2, cl2, co2 float64
+	waterMol, anionMol, freeH, h2Potential       float64
+	reductionCap, acidCap                        float64
+}
+
+func (r redoxResult) kept() sampleResult {
+	return sampleResult{liquorMol: r.liquorMol, fe3Mol: r.fe3Mol, redUsed: r.redUsed, redDecomp: r.redDecomp, h2: r.h2,
+		o2: r.o2, cl2: r.cl2, co2: r.co2, waterMol: r.waterMol, anionMol: r.anionMol, freeH: r.freeH,
+		h2Potential: r.h2Potential, reductionCap: r.reductionCap, acidCap: r.acidCap}
 }
 
 // redoxResult is what the sample's leach reached.
@@ -199,6 +217,14 @@ func leachSample(in redoxInput) (redoxResult, error) {
 	return res, nil
 }
 
+// metalSpecies is a metallic species' element, looked up once: its index in leachElements (-1
+// for none, or for a species that is not a metal), aqueous charge and standard potential.
+type metalSpecies struct {
+	sym           string
+	k             int
+	amount, z, e0 float64
+}
+
 // donor is a metal of the feed that can give electrons.
 type donor struct {
 	sym     string
@@ -215,7 +241,7 @@ type pass struct {
 	in          redoxInput
 	fRed, fAcid float64
 	r           redoxResult
-	donors      []*donor
+	donors      []donor
 	hUptake     float64 // H+ taken by the solids' anions
 	solidsWater float64 // water the solids' dissolution forms (cathode.Dissolve), mol
 	eOxNeed     float64 // electrons the solids give up to an oxidant (phosphate iron, selective route)
@@ -255,56 +281,112 @@ func (p *pass) solids() error {
 		if n <= 0 || sp.Inert() {
 			continue
 		}
-		for _, t := range sp.Formula.Terms() {
-			if k := elementIndex(t.Symbol); k >= 0 {
-				r.feedMol[k] += n * t.Amount
+		switch {
+		case c < len(in.lin) && in.lin[c] != nil:
+			for _, ft := range in.lin[c].feed {
+				r.feedMol[ft.k] += n * ft.mol
+			}
+		case c < len(in.metals) && in.metals[c].k >= 0:
+			r.feedMol[in.metals[c].k] += n * in.metals[c].amount
+		default:
+			for _, t := range sp.Formula.Terms() {
+				if k := elementIndex(t.Symbol); k >= 0 {
+					r.feedMol[k] += n * t.Amount
+				}
 			}
 		}
 		if sp.Metallic() {
-			sym := sp.Formula.Terms()[0].Symbol
-			d := &donor{sym: sym, mol: n * in.plan(sym) * p.fAcid, z: cathode.AqueousCharge(sym), e0: in.metalE0(sym)}
+			var d donor
+			if c < len(in.metals) && in.metals[c].k >= 0 && in.planAt != nil {
+				m := in.metals[c]
+				d = donor{sym: m.sym, mol: n * in.planAt[m.k] * p.fAcid, z: m.z, e0: m.e0}
+			} else {
+				sym := sp.Formula.Terms()[0].Symbol
+				d = donor{sym: sym, mol: n * in.plan(sym) * p.fAcid, z: cathode.AqueousCharge(sym), e0: in.metalE0(sym)}
+			}
+			if p.donors == nil {
+				p.donors = make([]donor, 0, len(in.species))
+			}
 			p.donors = append(p.donors, d)
 			if d.e0 < 0 {
 				r.h2Potential += d.mol * d.z / 2
 			}
 			continue
 		}
-		rx, err := cathode.Dissolve(sp, in.route, p.extraction(sp))
+		v, err := p.dissolve(c, sp)
 		if err != nil {
 			return err
 		}
-		p.hUptake += rx.HPlusMol * n
-		p.solidsWater += rx.WaterMol * n
+		p.hUptake += v.hPlus * n
+		p.solidsWater += v.water * n
 		if in.route == cathode.Hydrochloric {
-			r.eNeeded += 2 * rx.Cl2Mol * n
+			r.eNeeded += 2 * v.cl2 * n
 		} else {
-			r.eNeeded += 2 * rx.H2O2ReductantMol * n
-			p.eOxNeed += 2 * rx.H2O2OxidantMol * n
+			r.eNeeded += 2 * v.h2o2Red * n
+			p.eOxNeed += 2 * v.h2o2Ox * n
 		}
-		r.co2 += rx.CO2Mol * n
-		for _, ion := range rx.Cations {
-			if k := elementIndex(ion.Symbol); k >= 0 {
-				r.liquorMol[k] += ion.Mol * n
-			}
+		r.co2 += v.co2 * n
+		for k, mol := range v.liquor {
+			r.liquorMol[k] += mol * n
 		}
-		r.liquorMol[elementIndex("P")] += rx.H3PO4Mol * n
-		r.liquorMol[elementIndex("F")] += rx.HFMol * n
+		r.liquorMol[idxP] += v.h3po4 * n
+		r.liquorMol[idxF] += v.hf * n
 	}
 	return nil
 }
 
+// Indices of phosphorus and fluorine in leachElements.
+var idxP, idxF = elementIndex("P"), elementIndex("F")
+
+// maxLinearMetals is the most metals a species' linear form combines on the stack.
+const maxLinearMetals = 8
+
+// dissolve is species c's dissolution in this pass, per mol: its linear form at the pass's
+// extraction where it has one, cathode.Dissolve otherwise (and wherever an extraction leaves
+// 0..1, so the error is cathode's).
+func (p *pass) dissolve(c int, sp cathode.Species) (rxVec, error) {
+	if c < len(p.in.lin) && p.in.planAt != nil {
+		if lr := p.in.lin[c]; lr != nil && lr.indexed && len(lr.metals) <= maxLinearMetals {
+			var xs [maxLinearMetals]float64
+			if lr.extractions(xs[:len(lr.metals)], p.in.planAt, p.fAcid, p.fRed) {
+				return lr.at(xs[:len(lr.metals)]), nil
+			}
+		}
+	}
+	x := p.extraction(sp)
+	if c < len(p.in.lin) {
+		if lr := p.in.lin[c]; lr != nil && len(lr.metals) <= maxLinearMetals {
+			var xs [maxLinearMetals]float64
+			ok := true
+			for i, m := range lr.metals {
+				xs[i] = x(m)
+				ok = ok && xs[i] >= 0 && xs[i] <= 1
+			}
+			if ok {
+				return lr.at(xs[:len(lr.metals)]), nil
+			}
+		}
+	}
+	rx, err := cathode.Dissolve(sp, p.in.route, x)
+	if err != nil {
+		return rxVec{}, err
+	}
+	return vecOf(rx), nil
+}
+
 // extraction is the share of each element of sp dissolved in this pass.
 func (p *pass) extraction(sp cathode.Species) cathode.Extraction {
-	in := p.in
+	// The closure holds copies, not the pass, so that a pass stays on the stack.
+	plan, route, fAcid, fRed := p.in.plan, p.in.route, p.fAcid, p.fRed
 	// On the selective route an oxide's lithium stays in its lattice with the metals: it leaves
 	// only as far as the oxide itself dissolves.
-	liWithLattice := in.route == cathode.SulfuricSelective && sp.Anion() == "oxide"
+	liWithLattice := route == cathode.SulfuricSelective && sp.Anion() == "oxide"
 	latticeX := 0.0
 	if liWithLattice {
 		tm := 0.0
 		for _, t := range sp.Formula.Terms() {
 			if t.Symbol != "Li" && cathode.IsMetal(t.Symbol) {
-				latticeX += t.Amount * in.plan(t.Symbol)
+				latticeX += t.Amount * plan(t.Symbol)
 				tm += t.Amount
 			}
 		}
@@ -313,12 +395,12 @@ func (p *pass) extraction(sp cathode.Species) cathode.Extraction {
 		}
 	}
 	return func(sym string) float64 {
-		v := in.plan(sym) * p.fAcid
+		v := plan(sym) * fAcid
 		if sym == "Li" && liWithLattice {
-			v = latticeX * p.fAcid * p.fRed
+			v = latticeX * fAcid * fRed
 		}
 		if sp.State(sym) > cathode.AqueousCharge(sym) && cathode.AqueousCharge(sym) > 0 {
-			v *= p.fRed // the reducible metals of an oxide dissolve only as far as electrons allow
+			v *= fRed // the reducible metals of an oxide dissolve only as far as electrons allow
 		}
 		return v
 	}
@@ -329,9 +411,10 @@ func (p *pass) extraction(sp cathode.Species) cathode.Extraction {
 // shortfall shows as eCap < eNeeded.
 func (p *pass) reduce() {
 	in, r := p.in, &p.r
-	slices.SortStableFunc(p.donors, func(a, b *donor) int { return cmpFloat(a.e0, b.e0) })
+	slices.SortStableFunc(p.donors, func(a, b donor) int { return cmpFloat(a.e0, b.e0) })
 	rem := r.eNeeded
-	for _, d := range p.donors {
+	for j := range p.donors {
+		d := &p.donors[j]
 		give := math.Min(rem, d.mol*d.z)
 		d.usedOx, rem = give, rem-give
 		r.eFromMetals += give
@@ -364,7 +447,8 @@ func (p *pass) reduce() {
 // hydrogen; copper only with the peroxide left as oxidant (or stays in the residue).
 func (p *pass) leftoverMetals() {
 	in, r := p.in, &p.r
-	for _, d := range p.donors {
+	for j := range p.donors {
+		d := &p.donors[j]
 		left := d.mol*d.z - d.usedOx
 		switch {
 		case d.e0 < 0:

@@ -59,6 +59,10 @@ func (p *leachPlanner) limits(lr *Report) {
 	}
 }
 
+// freeAcidLeftMolPerL is the free acid (mol/L, P10) above which the liquor is not said to run out
+// of acid: a tenth of the planner's default target of 0.5 mol/L.
+const freeAcidLeftMolPerL = 0.05
+
 // shortfallSampleShare is the share of samples in which the reductant must limit the leach before
 // the plan calls the extraction short: one outcome in ten, the same margin as ordering to P90.
 const shortfallSampleShare = 0.1
@@ -87,8 +91,14 @@ func (p *leachPlanner) warnings(lr *Report, acidR Reagent, redR *Reagent) {
 		}
 	}
 	if acidR.RatioFull.P10 < 1 {
-		lr.Warnings = append(lr.Warnings, fmt.Sprintf("acid is %.2f× what full dissolution needs (P10): free acid "+
-			"runs out and less metal dissolves", acidR.RatioFull.P10))
+		if free := lr.FreeAcidMolPerL.P10; free > freeAcidLeftMolPerL {
+			lr.Warnings = append(lr.Warnings, fmt.Sprintf("acid is %.2f× what full dissolution on this route needs "+
+				"(P10): at the planned extraction %.2f mol/L free acid is left (P10), but it would run out before "+
+				"the route's full dissolution", acidR.RatioFull.P10, free))
+		} else {
+			lr.Warnings = append(lr.Warnings, fmt.Sprintf("acid is %.2f× what full dissolution needs (P10): free acid "+
+				"runs out and less metal dissolves", acidR.RatioFull.P10))
+		}
 	}
 	if p.opt.RecipeAcidMolPerL > 0 && acidR.Ratio.P50 > 4 {
 		lr.Warnings = append(lr.Warnings, fmt.Sprintf("acid is %.1f× stoichiometric: grossly over-dosed (waste and "+
@@ -101,7 +111,13 @@ func (p *leachPlanner) warnings(lr *Report, acidR Reagent, redR *Reagent) {
 		}
 		if redR.RatioFull.P10 < allow {
 			outcome := "Co, Ni and Mn extraction will fall short"
-			if redShort < shortfallSampleShare {
+			switch {
+			case p.route == cathode.SulfuricSelective:
+				// The selective route means to leave the oxides: the reductant's shortfall can only
+				// lower their small planned attack.
+				outcome = "on this route, meant to leave the oxides in the residue, that only lowers their small " +
+					"planned attack (the planned extraction table)"
+			case redShort < shortfallSampleShare:
 				outcome = "in this plan the oxides' own oxygen makes up the rest (the lattice-oxygen table); where " +
 					"they give less, Co, Ni and Mn extraction falls short"
 			}
@@ -117,8 +133,7 @@ func (p *leachPlanner) warnings(lr *Report, acidR Reagent, redR *Reagent) {
 		lr.Warnings = append(lr.Warnings, fmt.Sprintf("chlorine: about %s Cl2 (STP, P50) evolves from the "+
 			"high-valent oxides; scrub it with caustic", formatGasVolume(g.M3STP.P50)))
 	}
-	h2max := dist.Summarise(col(p.n, func(i int) float64 { return p.res[i].h2Potential * MolarVolumeSTPLPerMol / 1000 }))
-	if h2max.P90 > 0 {
+	if h2max, ok := lr.Gases[H2WorstCase]; ok && h2max.M3STP.P90 > 0 {
 		h2 := 0.0
 		if g, ok := lr.Gases["H2"]; ok {
 			h2 = g.M3STP.P50
@@ -128,8 +143,8 @@ func (p *leachPlanner) warnings(lr *Report, acidR Reagent, redR *Reagent) {
 		if h2 == 0 {
 			lead = "hydrogen: none once aluminium and other metals have reduced the oxides"
 		}
-		lr.Warnings = append(lr.Warnings, fmt.Sprintf("%s; up to %s (P90) if they meet the acid first: vent as for "+
-			"the larger", lead, formatGasVolume(h2max.P90)))
+		lr.Warnings = append(lr.Warnings, fmt.Sprintf("%s; up to %s (P90) if they meet the acid first (both rows "+
+			"in the gas table): vent as for the larger", lead, formatGasVolume(h2max.M3STP.P90)))
 	}
 	if cu, ok := lr.Liquor.ExtractionReached["Cu"]; ok && cu.P50 < copperLeftWarnBelow && p.route == cathode.Hydrochloric {
 		lr.Warnings = append(lr.Warnings, "copper: without an oxidant only the copper that reduced the oxides "+

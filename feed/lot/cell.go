@@ -23,6 +23,9 @@ var fixedCompounds = [nFixedCompounds]struct{ name, formula string }{
 // cmPerUm converts a foil thickness in µm to cm.
 const cmPerUm = 1e-4
 
+// m2PerCm2 converts an area in cm² to m².
+const m2PerCm2 = 1e-4
+
 // mix is a chemistry's capacity and voltage at one draw: the cathode-mass-weighted capacity and
 // the capacity-weighted voltage of its components.
 type mix struct {
@@ -50,7 +53,9 @@ func model(energyWh, chargeAh float64, mx mix, f design, g globals) breakdown {
 	foilCm2 := capAh * 1000 / (2 * f.arealMAhCm2)
 	b.al = foilCm2 * f.alUm * cmPerUm * g.rhoAlGCm3
 	b.cu = foilCm2 * f.cuUm * cmPerUm * g.rhoCuGCm3
-	b.electrolyte = f.elGPerAh * capAh * g.utilisation
+	// The electrolyte fills the pores of both coatings and the separator: so much per m² of
+	// coated side (two per foil), whatever the loading, so thin electrodes hold more per Ah.
+	b.electrolyte = f.elGPerM2 * 2 * foilCm2 * m2PerCm2
 	b.cell = (b.cam + b.graphite + b.al + b.cu + b.electrolyte) / (1 - f.bc - f.sep - f.casing)
 	b.bc, b.separator, b.casing = f.bc*b.cell, f.sep*b.cell, f.casing*b.cell
 	b.item = b.cell / (1 - f.overhead)
@@ -99,4 +104,22 @@ func fixedIndices() []int {
 		out[i] = i
 	}
 	return out
+}
+
+// weighed fits a design to a measured item mass: of the cell's parts, the foils and the
+// electrolyte scale with the coated area, so with everything else as drawn there is one areal
+// capacity at which the modelled item weighs what was measured. It is held to the range of
+// areal capacities the model allows (lo..hi); a weight outside what that range can give takes
+// the nearer end.
+func weighed(energyWh, chargeAh float64, mx mix, f design, g globals, itemG, lo, hi float64) design {
+	b := model(energyWh, chargeAh, mx, f, g)
+	fixed := b.cam + b.graphite
+	byArea := (b.al + b.cu + b.electrolyte) * f.arealMAhCm2 // g × mAh/cm², so byArea/areal is grams
+	room := itemG*(1-f.overhead)*(1-f.bc-f.sep-f.casing) - fixed
+	a := hi
+	if room > 0 {
+		a = byArea / room
+	}
+	f.arealMAhCm2 = min(max(a, lo), hi)
+	return f
 }

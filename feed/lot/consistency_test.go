@@ -14,15 +14,10 @@ const consistencySamples = 2000
 // For every catalogued chemistry in every format, at every draw: the components sum to the cell
 // mass and the cell to the item (conservation of mass); the black mass is no more than the
 // coatings, the foils' carry-over and the other carry-overs allow (each recovery and carry-over
-// is a share of a component, at most 1); and a measured weight equal to the model's own most
-// likely item is not flagged as implausible by the same model.
+// is a share of a component, at most 1).
 func TestModelSelfConsistent(t *testing.T) {
 	t.Parallel()
 	cat := cathodetest.Catalogue(t)
-	m, err := DefaultModel()
-	if err != nil {
-		t.Fatal(err)
-	}
 	for _, e := range cat.Entries() {
 		for _, f := range manifest.Formats() {
 			const wh = 50.0
@@ -45,19 +40,115 @@ func TestModelSelfConsistent(t *testing.T) {
 					t.Fatalf("%s %s draw %d: black mass %g g above what the cell can give (%g g; cell %g g)", e.Key, f, i, total, bound, b.cell)
 				}
 			}
-			ch, err := cat.ParseLabel(e.Key)
-			if err != nil {
-				t.Fatal(err)
-			}
+		}
+	}
+}
+
+// modelOutsideBand are the chemistries whose modelled item, at every parameter's mode, lies
+// outside the band of published cells in some format, with the reason. Their cells are thin power
+// electrodes (data/model.csv, scope "chemistry"): an early LiFePO4 pouch at the published 26650
+// power cell's 1.28 mAh/cm² (Prada et al., J. Electrochem. Soc. 160 (2013) A616) is 1-2 % lighter
+// than the band's top of 130 Wh/kg, itself from memory; its cylindrical cell, 112 Wh/kg, is inside.
+var modelOutsideBand = map[string]string{
+	"LFP-early": "the first LiFePO4 power cells: the pouch at the published power cell's loading is just above the band",
+}
+
+// For every catalogued chemistry in every format, the modelled item at every parameter's mode
+// lies inside the plausible Wh/kg band the same model uses to flag a measured weight, so a weight
+// equal to the model's own item is not flagged; the listed exceptions are checked to lie outside
+// still, so that the list cannot outlive the reason.
+func TestModelInsideItsBand(t *testing.T) {
+	t.Parallel()
+	cat := cathodetest.Catalogue(t)
+	m, err := DefaultModel()
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, e := range cat.Entries() {
+		ch, err := cat.ParseLabel(e.Key)
+		if err != nil {
+			t.Fatal(err)
+		}
+		why, excepted := modelOutsideBand[e.Key]
+		inside := 0
+		for _, f := range manifest.Formats() {
+			const wh = 50.0
 			lot := NewLot(m, false)
-			own := model(wh, 0, lot.modeMix(&ch), lot.mode.design(f, 0), lot.mode.global(0)).item / 1000
+			own := model(wh, 0, lot.modeMix(&ch), lot.mode.designOf(&ch, f, 0), lot.mode.global(0)).item / 1000
+			lo, hi := lot.band(&ch, f)
+			in := wh/own >= lo && wh/own <= hi
 			probe := manifest.Line{Num: 1, ChemistryLabel: e.Key, Chemistry: &ch, Format: f, EnergyWh: wh, Count: 1, CellsPerItem: 1, MassKg: own}
 			if err := lot.Add(probe); err != nil {
 				t.Fatal(err)
 			}
-			if lot.flagged != 0 {
-				t.Errorf("%s %s: the model's own item of %.4g kg (%.0f Wh/kg) is flagged: %v", e.Key, f, own, wh/own, lot.warnings)
+			if in != (lot.flagged == 0) {
+				t.Errorf("%s %s: %.0f Wh/kg in %.0f–%.0f is %v, flagged %d", e.Key, f, wh/own, lo, hi, in, lot.flagged)
+			}
+			t.Logf("%-12s %-12s model %4.0f Wh/kg, band %4.0f–%4.0f", e.Key, f, wh/own, lo, hi)
+			if in {
+				inside++
+			} else if !excepted {
+				t.Errorf("%s %s: the model's own item (%.0f Wh/kg) lies outside the plausible %.0f–%.0f Wh/kg", e.Key, f, wh/own, lo, hi)
 			}
 		}
+		if excepted && inside == len(manifest.Formats()) {
+			t.Errorf("%s: listed as outside its band (%s) but inside in every format: remove it from the list", e.Key, why)
+		}
+	}
+}
+
+// A measured weight inside the plausible band constrains the result: the line's modelled item
+// weighs what was measured, and of two weights the heavier gives more foil (Cu, Al) in the black
+// mass, the cathode staying what the nameplate gives; a weight the band flags constrains nothing.
+func TestWeightConstrainsTheCell(t *testing.T) {
+	cat := cathodetest.Catalogue(t)
+	m, err := DefaultModel()
+	if err != nil {
+		t.Fatal(err)
+	}
+	ch, err := cat.ParseLabel("NMC622")
+	if err != nil {
+		t.Fatal(err)
+	}
+	run := func(kg float64) (*Result, LineResult) {
+		t.Helper()
+		lot := NewLot(m, true)
+		ln := manifest.Line{Num: 1, ChemistryLabel: "NMC622", Chemistry: &ch, Format: manifest.Pouch, EnergyWh: 200, Count: 10, CellsPerItem: 1, MassKg: kg}
+		if err := lot.Add(ln); err != nil {
+			t.Fatal(err)
+		}
+		r, _, err := lot.Estimate(1, 2000)
+		if err != nil {
+			t.Fatal(err)
+		}
+		return r, r.Lines[0]
+	}
+	// 200 Wh at 190 and at 230 Wh/kg: both inside the NMC622 band (160-260 Wh/kg).
+	heavy, hl := run(200.0 / 190)
+	light, ll := run(200.0 / 230)
+	none, nl := run(0)
+	for _, c := range []struct {
+		l    LineResult
+		want float64
+	}{{hl, 200.0 / 190}, {ll, 200.0 / 230}} {
+		if math.Abs(c.l.ModelMassKgEach-c.want) > 1e-4*c.want {
+			t.Errorf("weighed %.4f kg, modelled item %.4f kg", c.want, c.l.ModelMassKgEach)
+		}
+	}
+	if nl.ModelMassKgEach == hl.ModelMassKgEach {
+		t.Errorf("no weight and a weight give the same item: %v", nl.ModelMassKgEach)
+	}
+	for _, el := range []string{"Cu", "Al"} {
+		if !(heavy.Elements[el].Kg.P50 > light.Elements[el].Kg.P50) {
+			t.Errorf("%s: heavier cells %.4f kg, lighter %.4f kg in the black mass", el, heavy.Elements[el].Kg.P50, light.Elements[el].Kg.P50)
+		}
+	}
+	if d := math.Abs(heavy.Elements["Co"].Kg.P50 - none.Elements["Co"].Kg.P50); d > 1e-9 {
+		t.Errorf("the weight changed the cathode's cobalt by %g kg", d)
+	}
+	// 200 Wh at 100 Wh/kg is flagged: the result is the unweighed one.
+	flagged, _ := run(2)
+	if flagged.Elements["Cu"].Kg.P50 != none.Elements["Cu"].Kg.P50 {
+		t.Errorf("a flagged weight changed the copper: %.4f against %.4f kg", flagged.Elements["Cu"].Kg.P50, none.Elements["Cu"].Kg.P50)
 	}
 }

@@ -8,7 +8,7 @@
 // health: a worn cell still holds all its cathode. Anode graphite follows from the cathode's
 // capacity through the N/P ratio and graphite's practical capacity. The current collectors follow
 // from the same capacity: foil area = capacity / (2 × areal capacity), both sides coated, times
-// each foil's thickness and density; the electrolyte is a fill per nameplate Ah. Binder and
+// each foil's thickness and density; the electrolyte fills the pores of the coated area (g per m² of coated side). Binder and
 // conductive carbon, separator and casing are fractions of the cell mass per format, so the cell
 // mass is (CAM + graphite + foils + electrolyte) / (1 − Σ fractions). Packs and modules add an
 // overhead that never reaches the black mass.

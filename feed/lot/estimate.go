@@ -82,8 +82,12 @@ func (l *Lot) EstimateWith(seed uint64, samples int, f Factors) (*Result, *Sampl
 	}
 	ps := newParamSet(l.model, seed, samples)
 	s := l.draw(ps, samples, l.factorDraws(f, ps.d))
-	s.Formulas, s.ElementNames, s.Draws = l.comp.formulas, l.comp.elements, ps.d
-	return l.result(s), s, nil
+	// Later stages draw their own parameters from a drawer of the same seed (a stream is named
+	// by its key, so the draws are the same), and the lot's own draws are let go.
+	s.Formulas, s.ElementNames, s.Draws = l.comp.formulas, l.comp.elements, dist.NewDrawer(seed, samples)
+	r := l.result(s)
+	s.groupCAM, s.groupBM = nil, nil // summarised in r.Groups
+	return r, s, nil
 }
 
 // draw runs the Monte Carlo: n samples of every group's black mass by compound, then the
@@ -108,6 +112,8 @@ func (l *Lot) draw(ps *paramSet, n int, fac [][][]float64) *Samples {
 		volt, capa := ps.chemDraws(g.chem)
 		shares := ps.shareDraws(g.chem, g.chem.Key+"/"+g.format.String(), g.items)
 		mo := ps.massOnlyDraws(g)
+		arealLo, arealHi := ps.arealBounds(g.chem, g.format)
+		chemAreal := ps.chemAreal(g.chem)
 		cam, gbm := make([]float64, n), make([]float64, n)
 		// Only the group's own compounds can be non-zero: the fixed ones and its cathodes. Summing
 		// just those keeps the cost per group independent of how many chemistries the lot holds.
@@ -121,8 +127,18 @@ func (l *Lot) draw(ps *paramSet, n int, fac [][][]float64) *Samples {
 				bm[c] = 0
 			}
 			sh, fr, gl := shares.next(), ps.design(g.format, i), ps.global(i)
-			b := model(g.energyWh+mo.wh(i, sh), g.chargeAh, mixAt(g.chem.Components, sh, volt, capa, i), fr, gl)
+			if chemAreal != nil {
+				fr.arealMAhCm2 = chemAreal[i]
+			}
+			mx := mixAt(g.chem.Components, sh, volt, capa, i)
+			b := model(max(g.energyWh-g.weighedWh, 0)+mo.wh(i, sh), max(g.chargeAh-g.weighedAh, 0), mx, fr, gl)
 			b.blackMass(bm, fr, gl, g.camIdx, sh)
+			if g.weighedKg > 0 { // the weighed lines: their design fitted to their weight
+				fw := weighed(g.weighedWh, g.weighedAh, mx, fr, gl, g.weighedKg*1000, arealLo, arealHi)
+				bw := model(g.weighedWh, g.weighedAh, mx, fw, gl)
+				bw.blackMass(bm, fw, gl, g.camIdx, sh)
+				b.cam += bw.cam
+			}
 			tot := 0.0
 			for _, c := range touched {
 				m := bm[c] / 1000

@@ -60,19 +60,22 @@ const maxLineWarnings = 50
 // group is the lines of one (chemistry, format): only sums are kept, so the Monte Carlo costs
 // groups × samples.
 type group struct {
-	chem        *cathode.Chemistry
-	format      manifest.Format
-	energyWh    float64 // Σ count·energy per item
-	chargeAh    float64 // Σ count·charge per item (lines given in Ah with no voltage)
-	massOnlyKg  float64 // Σ count·mass of lines known by weight only
-	items       int
-	cells       int
-	lines       int
-	camIdx      []int
-	modeMix     mix     // the chemistry at its most likely capacity and voltage
-	bandLo      float64 // plausible Wh/kg band of an item
-	bandHi      float64
-	modeWhPerKg float64 // most likely Wh/kg of an item, for lines known by weight only
+	chem       *cathode.Chemistry
+	format     manifest.Format
+	energyWh   float64 // Σ count·energy per item
+	chargeAh   float64 // Σ count·charge per item (lines given in Ah with no voltage)
+	massOnlyKg float64 // Σ count·mass of lines known by weight only
+	// The lines weighed inside their plausible band: Σ count·energy, count·charge and
+	// count·mass. Their cells are modelled at the areal capacity that gives the weight.
+	weighedWh, weighedAh, weighedKg float64
+	items                           int
+	cells                           int
+	lines                           int
+	camIdx                          []int
+	modeMix                         mix     // the chemistry at its most likely capacity and voltage
+	bandLo                          float64 // plausible Wh/kg band of an item
+	bandHi                          float64
+	modeWhPerKg                     float64 // most likely Wh/kg of an item, for lines known by weight only
 	// lastLabel and lastStat are the label of the group's previous line and its count: lines
 	// of a group mostly repeat one label, and comparing the strings (often one and the same
 	// string) is cheaper than hashing it.
@@ -229,23 +232,8 @@ func (l *Lot) Add(ln manifest.Line) error {
 		l.unknownWh += cnt * energyWh
 	}
 	l.countLabel(g, ln, cnt*energyWh)
-	var flags []string
-	var measWhKg float64
-	if ln.MassKg > 0 && !ln.MassOnly() {
-		l.withMass++
-		measWhKg = energyWh / ln.MassKg
-		lo, hi := g.bandLo, g.bandHi
-		if measWhKg < lo || measWhKg > hi {
-			l.flagged++
-			if l.keepLines || l.flagged <= maxLineWarnings { // the message only where it is shown
-				msg := fmt.Sprintf("%.0f Wh/kg measured, outside the plausible %.0f–%.0f Wh/kg for %s %s", measWhKg, lo, hi, ch.Key, ln.Format)
-				flags = append(flags, msg)
-				if l.flagged <= maxLineWarnings {
-					l.warnings = append(l.warnings, fmt.Sprintf("line %d (%s): %s; check the capacity, the count or the weight", ln.Num, idOr(ln), msg))
-				}
-			}
-		}
-	}
+	flags, measWhKg := l.checkMass(g, ln, cnt, energyWh)
+	weighedLine := measWhKg > 0 && len(flags) == 0
 	if !l.keepLines {
 		return nil
 	}
@@ -256,10 +244,14 @@ func (l *Lot) Add(ln manifest.Line) error {
 		flags = append(flags, "no capacity: energy from the mass and the chemistry's Wh/kg band")
 	}
 	// Most-likely breakdown of one item, for the line detail.
-	fr, gl := l.mode.design(ln.Format, 0), l.mode.global(0)
+	fr, gl := l.mode.designOf(ch, ln.Format, 0), l.mode.global(0)
 	itemWh := ln.EnergyWh
 	if ln.MassOnly() {
 		itemWh = energyWh
+	}
+	if weighedLine {
+		lo, hi := l.mode.arealBounds(ch, ln.Format)
+		fr = weighed(itemWh, ln.ChargeAh, mx, fr, gl, ln.MassKg*1000, lo, hi)
 	}
 	b := model(itemWh, ln.ChargeAh, mx, fr, gl)
 	bm := make([]float64, l.comp.n())
@@ -329,6 +321,34 @@ func (l *Lot) lineElements(bm []float64, count float64) (ElementMasses, float64)
 	return els, total
 }
 
+// checkMass compares a line's measured weight with its plausible Wh/kg band: a weight inside
+// joins the group's weighed lines (whose cells are modelled at that weight), one outside is
+// flagged and warned of.
+func (l *Lot) checkMass(g *group, ln manifest.Line, cnt, energyWh float64) (flags []string, measWhKg float64) {
+	if ln.MassKg <= 0 || ln.MassOnly() {
+		return nil, 0
+	}
+	l.withMass++
+	measWhKg = energyWh / ln.MassKg
+	lo, hi := g.bandLo, g.bandHi
+	if measWhKg >= lo && measWhKg <= hi {
+		g.weighedWh += cnt * ln.EnergyWh
+		g.weighedAh += cnt * ln.ChargeAh
+		g.weighedKg += cnt * ln.MassKg
+		return nil, measWhKg
+	}
+	l.flagged++
+	if !l.keepLines && l.flagged > maxLineWarnings {
+		// Worded only where it is shown; a flag without words still marks the line unweighed.
+		return []string{""}, measWhKg
+	}
+	msg := fmt.Sprintf("%.0f Wh/kg measured, outside the plausible %.0f–%.0f Wh/kg for %s %s", measWhKg, lo, hi, ln.Chemistry.Key, ln.Format)
+	if l.flagged <= maxLineWarnings {
+		l.warnings = append(l.warnings, fmt.Sprintf("line %d (%s): %s; check the capacity, the count or the weight", ln.Num, idOr(ln), msg))
+	}
+	return []string{msg}, measWhKg
+}
+
 // maxLabels bounds the labels listed in the report; the rest are counted.
 const maxLabels = 500
 
@@ -394,12 +414,9 @@ func (l *Lot) modeMix(ch *cathode.Chemistry) mix {
 }
 
 // band returns the plausible Wh/kg band of an item: the chemistry's cell band (the envelope of
-// its components), lowered by the pack or module overhead for assemblies, and stretched to take
-// in the model's own most likely item of the chemistry and format. The catalogue's bands come
-// from published cells; the model's cell, built from design ranges that cover today's
-// high-energy cells, can be lighter than an older chemistry's band allows (an NMC111 pouch cell
-// at the design modes gives about 250 Wh/kg against a band top of 220), and a weight equal to
-// the model's own must not be called implausible by the same model.
+// its components, from published cells), lowered by the pack or module overhead for assemblies.
+// The model's own cell lies inside it (TestModelInsideItsBand), but for the chemistries listed
+// there.
 func (l *Lot) band(ch *cathode.Chemistry, f manifest.Format) (lo, hi float64) {
 	lo, hi = math.Inf(1), 0
 	for _, c := range ch.Components {
@@ -410,14 +427,6 @@ func (l *Lot) band(ch *cathode.Chemistry, f manifest.Format) (lo, hi float64) {
 		p := l.model.get(f.String(), f.String()+"_overhead")
 		lo *= 1 - p.Range.Max
 		hi *= 1 - p.Range.Min
-	}
-	const probeWh = 1000
-	mx := l.modeMix(ch)
-	if b := model(probeWh, 0, mx, l.mode.design(f, 0), l.mode.global(0)); b.item > 0 {
-		own := probeWh / (b.item / 1000)
-		// Equal up to float rounding (a weight computed from the model's own mass) is inside.
-		const rounding = 1e-9
-		lo, hi = math.Min(lo, own*(1-rounding)), math.Max(hi, own*(1+rounding))
 	}
 	return lo, hi
 }

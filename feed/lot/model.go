@@ -3,6 +3,8 @@ package lot
 import (
 	"fmt"
 	"io/fs"
+	"slices"
+	"strings"
 	"sync"
 
 	"blackmass/cathode"
@@ -40,8 +42,8 @@ var globalNames = []string{"np_ratio", "graphite_capacity", "lipf6_in_electrolyt
 var formatFractionNames = []string{"binder_carbon", "separator"}
 
 // formatDesignNames are a format's parameters sized by the cell's capacity: areal capacity per
-// coated side (mAh/cm²), foil thicknesses (µm), electrolyte fill (g per nameplate Ah).
-var formatDesignNames = []string{"areal_capacity", "al_foil_thickness", "cu_foil_thickness", "electrolyte_per_ah"}
+// coated side (mAh/cm²), foil thicknesses (µm), electrolyte fill (g per m² of coated side).
+var formatDesignNames = []string{"areal_capacity", "al_foil_thickness", "cu_foil_thickness", "electrolyte_per_area"}
 
 var casingNames = []string{"casing_steel", "casing_al", "casing_polymer"}
 
@@ -74,6 +76,17 @@ func LoadModel(fsys fs.FS) (*Model, error) {
 	for _, n := range globalNames {
 		if m.params["all/"+n] == nil {
 			return nil, fmt.Errorf("model.csv: missing parameter all/%s", n)
+		}
+	}
+	for _, p := range m.list {
+		if !strings.HasPrefix(p.Scope, "chemistry ") {
+			continue
+		}
+		if !slices.Contains(chemistryDesignNames, p.Name) {
+			return nil, fmt.Errorf("model.csv: %s/%s: a chemistry sets only %v", p.Scope, p.Name, chemistryDesignNames)
+		}
+		if p.Range.Min <= 0 {
+			return nil, fmt.Errorf("model.csv: %s/%s must be positive", p.Scope, p.Name)
 		}
 	}
 	for _, f := range manifest.Formats() {
@@ -143,7 +156,7 @@ type globals struct {
 // design is one format's cell design at one draw: the current collectors and electrolyte sized by
 // capacity, the rest as fractions of the cell mass.
 type design struct {
-	arealMAhCm2, alUm, cuUm, elGPerAh float64
+	arealMAhCm2, alUm, cuUm, elGPerM2 float64
 	bc, sep, casing                   float64
 	kind                              casingKind
 	overhead                          float64
@@ -175,7 +188,7 @@ func newParamSet(m *Model, seed uint64, samples int) *paramSet {
 	for _, f := range manifest.Formats() {
 		sc := f.String()
 		fd := &formatDraws{areal: ps.values(sc, "areal_capacity"), al: ps.values(sc, "al_foil_thickness"), cu: ps.values(sc, "cu_foil_thickness"),
-			el: ps.values(sc, "electrolyte_per_ah"), bc: ps.values(sc, "binder_carbon"), sep: ps.values(sc, "separator")}
+			el: ps.values(sc, "electrolyte_per_area"), bc: ps.values(sc, "binder_carbon"), sep: ps.values(sc, "separator")}
 		for k, name := range casingNames {
 			if m.get(sc, name) != nil {
 				fd.cas, fd.kind = ps.values(sc, name), casingKind(k)
@@ -200,6 +213,47 @@ func (ps *paramSet) global(s int) globals {
 func (ps *paramSet) design(f manifest.Format, s int) design {
 	d := ps.formats[f]
 	return design{d.areal[s], d.al[s], d.cu[s], d.el[s], d.bc[s], d.sep[s], d.cas[s], d.kind, d.over[s]}
+}
+
+// chemistryDesignNames are the design parameters a chemistry may set for its own cells, in
+// place of its format's (scope "chemistry <key>" in model.csv): the cells of some chemistries
+// were built one way (the first LiFePO4 cells as thin power electrodes).
+var chemistryDesignNames = []string{"areal_capacity"}
+
+// designOf returns the cell design of chemistry ch in format f at sample s: the format's, with
+// the chemistry's own design parameters where it is a single material that has them.
+func (ps *paramSet) designOf(ch *cathode.Chemistry, f manifest.Format, s int) design {
+	d := ps.design(f, s)
+	if a := ps.chemAreal(ch); a != nil {
+		d.arealMAhCm2 = a[s]
+	}
+	return d
+}
+
+// chemAreal returns the draws of chemistry ch's own areal capacity, nil when it takes its
+// format's (a blend, or a material without a row of its own).
+func (ps *paramSet) chemAreal(ch *cathode.Chemistry) []float64 {
+	if len(ch.Components) != 1 {
+		return nil
+	}
+	scope := "chemistry " + ch.Components[0].Entry.Key
+	p := ps.m.get(scope, "areal_capacity")
+	if p == nil {
+		return nil
+	}
+	return ps.rangeValues(scope+"/areal_capacity", p.Range)
+}
+
+// arealBounds is the range of areal capacities the model allows chemistry ch in format f: the
+// chemistry's own where it has one (see designOf), else the format's.
+func (ps *paramSet) arealBounds(ch *cathode.Chemistry, f manifest.Format) (lo, hi float64) {
+	p := ps.m.get(f.String(), "areal_capacity")
+	if len(ch.Components) == 1 {
+		if q := ps.m.get("chemistry "+ch.Components[0].Entry.Key, "areal_capacity"); q != nil {
+			p = q
+		}
+	}
+	return p.Range.Min, p.Range.Max
 }
 
 // values returns the draws of a model parameter (or its mode, as a one-element slice, when the

@@ -142,7 +142,7 @@ func (w *writer) summaryLeach(p *page) {
 	p.header("gas", "P50 mol", "P50 m³", "P90 m³")
 	for _, name := range names {
 		g := l.Gases[name]
-		p.add(name, kg(g.Mol.P50), kg(g.M3STP.P50), kg(g.M3STP.P90))
+		p.add(as(wrapped, name), kg(g.Mol.P50), kg(g.M3STP.P50), kg(g.M3STP.P90))
 	}
 	if len(names) == 0 {
 		p.add("none in the plan")

@@ -12,15 +12,27 @@ import (
 func WriteMix(w io.Writer, m *assay.MixFit) {
 	fmt.Fprintf(w, "chemistry mix that best explains the assay (%d bootstrap draws)\n", m.Bootstrap)
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
-	fmt.Fprintln(tw, "component\tbest kg/kg\tP10\tP50\tP90\t95 % range\tcathode share P50\t")
+	fmt.Fprintln(tw, "component\tbest kg/kg\tP10\tP50\tP90\t95 % range\tcathode share (best)\tshare P10–P90\t")
+	multimodal := false
 	for _, c := range m.Components {
-		share := ""
-		if c.CathodeShare != nil {
-			share = fmt.Sprintf("%.3f", c.CathodeShare.P50)
+		share, spread := "", ""
+		if c.BestShare != nil {
+			share = fmt.Sprintf("%.3f", *c.BestShare)
 		}
-		fmt.Fprintf(tw, "%s\t%.4f\t%.4f\t%.4f\t%.4f\t%.4f–%.4f\t%s\t\n", c.Name, c.Best, c.KgPerKg.P10, c.KgPerKg.P50, c.KgPerKg.P90, c.Interval95[0], c.Interval95[1], share)
+		if c.CathodeShare != nil {
+			spread = fmt.Sprintf("%.3f–%.3f", c.CathodeShare.P10, c.CathodeShare.P90)
+		}
+		mark := ""
+		if c.Multimodal {
+			mark, multimodal = "*", true
+		}
+		fmt.Fprintf(tw, "%s\t%.4f%s\t%.4f\t%.4f\t%.4f\t%.4f–%.4f\t%s\t%s\t\n", c.Name, c.Best, mark, c.KgPerKg.P10, c.KgPerKg.P50, c.KgPerKg.P90,
+			c.Interval95[0], c.Interval95[1], share, spread)
 	}
 	tw.Flush()
+	if multimodal {
+		fmt.Fprintln(w, "* multi-modal bootstrap: the best fit is one of several near-equal mixes (see the note)")
+	}
 	fmt.Fprintf(w, "explained mass fraction %.3f\n", m.Explained)
 	tw = tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
 	fmt.Fprintln(tw, "element\tassay − fit wt%\tin σ\t")

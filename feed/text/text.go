@@ -351,9 +351,6 @@ func writeLeachText(w io.Writer, r *report.Report) {
 	fmt.Fprintln(tw, "gas (0 °C, 1 atm)\tP50 mol\tP50 volume\tP90 volume\t")
 	for _, name := range slices.Sorted(maps.Keys(l.Gases)) {
 		g := l.Gases[name]
-		if g.Mol.P90 <= 0 {
-			continue
-		}
 		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t\n", name, Num(g.Mol.P50), fmtVolume(1000*g.M3STP.P50), fmtVolume(1000*g.M3STP.P90))
 	}
 	tw.Flush()
