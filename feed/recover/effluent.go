@@ -29,8 +29,7 @@ func (p *planner) effluent(c *ctx, st Step, s *State) {
 		cryst = (kg - sol/100*s.WaterKg) / (1 - sol/100*w)
 		hyd := cryst * (1 + w)
 		c.figure("would crystallise, kg (decahydrate below 32.4 °C)", hyd)
-		c.warn(salt + " would crystallise from the effluent at its temperature in some samples: keep it warm or " +
-			"crystallise it on purpose")
+		c.warn(salt + " would crystallise from the effluent at its temperature: keep it warm or crystallise it on purpose")
 	} else {
 		c.figure("would crystallise, kg (decahydrate below 32.4 °C)", 0)
 	}

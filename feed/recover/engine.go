@@ -14,7 +14,8 @@ type tally struct {
 	kWh, hours []float64
 	figures    map[string][]float64 // the stage's own numbers (stages, recoveries ...)
 	figOrder   []string
-	warnings   map[string]bool
+	warnings   map[string]int // warning -> samples it arose in
+	warned     map[string]int // warning -> last sample + 1 it was counted for
 }
 
 // solidTally is a product or cake: its phases' mol and its wet-to-dry ratio.
@@ -28,7 +29,7 @@ type solidTally struct {
 func newTally(n int) *tally {
 	return &tally{reagentMol: map[string][]float64{}, solids: map[string]*solidTally{}, gasMol: map[string][]float64{},
 		waterKg: map[string][]float64{}, kWh: make([]float64, n), hours: make([]float64, n), figures: map[string][]float64{},
-		warnings: map[string]bool{}}
+		warnings: map[string]int{}}
 }
 
 // ctx is one sample's run through the stages.
@@ -111,7 +112,17 @@ func (c *ctx) figure(name string, v float64) {
 	col(c.tl.figures, name, c.n)[c.i] = v
 }
 
-func (c *ctx) warn(msg string) { c.tl.warnings[msg] = true }
+// warn records a warning for sample c.i (once per sample).
+func (c *ctx) warn(msg string) {
+	if c.tl.warned == nil {
+		c.tl.warned = map[string]int{}
+	}
+	if w, ok := c.tl.warned[msg]; ok && w == c.i+1 {
+		return
+	}
+	c.tl.warned[msg] = c.i + 1
+	c.tl.warnings[msg]++
+}
 
 // take moves mol of element el out of the solution (never below zero).
 func take(s *State, el string, mol float64) float64 {

@@ -36,6 +36,8 @@ type Step struct {
 	TemperatureC float64 `json:"temperature_c,omitempty"`
 	// FeOxidant oxidises Fe(II) before the impurity precipitation: H2O2 or air.
 	FeOxidant string `json:"fe_oxidant,omitempty"`
+	// Copper is the impurity stage's copper route: cement (on iron powder, first) or none.
+	Copper string `json:"copper,omitempty"`
 	// Oxidant takes Mn(II) to MnO2: KMnO4, NaClO, O3, SO2 (with air) or Na2S2O8.
 	Oxidant string `json:"oxidant,omitempty"`
 	// OA is the solvent extraction's organic-to-aqueous ratio; Stages its counter-current stages
@@ -65,7 +67,7 @@ type Flowsheet struct {
 func DefaultStep(kind string) Step {
 	switch kind {
 	case KindImpurity:
-		return Step{Kind: kind, Base: "NaOH", PH: 4.5, TemperatureC: 60, FeOxidant: "H2O2"}
+		return Step{Kind: kind, Base: "NaOH", PH: 4.5, TemperatureC: 60, FeOxidant: "H2O2", Copper: "cement"}
 	case KindManganese:
 		return Step{Kind: kind, Oxidant: "KMnO4", Base: "NaOH", PH: 4.0, TemperatureC: 60}
 	case KindSX:
@@ -183,6 +185,9 @@ func (f Flowsheet) validateStep(st Step) error {
 			if err := oneOf("fe-oxidant", st.FeOxidant, feOxChoices); err != nil {
 				return err
 			}
+			if err := oneOf("copper", st.Copper, []string{"cement", "none"}); err != nil {
+				return err
+			}
 		} else if err := oneOf("oxidant", st.Oxidant, oxidantChoices); err != nil {
 			return err
 		}
@@ -282,6 +287,8 @@ func setField(st *Step, kv string) error {
 		return num(&st.TemperatureC)
 	case "fe-oxidant":
 		st.FeOxidant = v
+	case "copper":
+		st.Copper = v
 	case "oxidant":
 		st.Oxidant = v
 	case "oa":
@@ -303,7 +310,7 @@ func setField(st *Step, kv string) error {
 	case "evaporate":
 		return num(&st.Evaporate)
 	default:
-		return fmt.Errorf("%q is not a setting (base, ph, temperature, fe-oxidant, oxidant, oa, stages, co-recovery, "+
+		return fmt.Errorf("%q is not a setting (base, ph, temperature, fe-oxidant, copper, oxidant, oa, stages, co-recovery, "+
 			"product, current-density, cathode-area, evaporate)", k)
 	}
 	return nil
@@ -324,6 +331,7 @@ func (st Step) String() string {
 		add("base", st.Base)
 		add("ph", g(st.PH))
 		add("fe-oxidant", st.FeOxidant)
+		add("copper", st.Copper)
 	case KindManganese:
 		add("oxidant", st.Oxidant)
 		add("base", st.Base)

@@ -11,6 +11,9 @@ func (p *planner) impurity(c *ctx, st Step, s *State) {
 	const stage = KindImpurity
 	cake := "impurity cake"
 	c.solidName(cake)
+	if st.Copper == "cement" {
+		p.cement(c, s)
+	}
 	p.oxidiseFe(c, st, s)
 	p.phosphates(c, st, s, cake)
 	alBefore, cuBefore := s.Mol["Al"], s.Mol["Cu"]
@@ -45,6 +48,25 @@ func (p *planner) impurity(c *ctx, st Step, s *State) {
 		c.warn("most Cu stays in the liquor at this pH (its hydroxide overlaps Ni and Co): it follows Co through the " +
 			"extraction into the cobalt product; remove it by cementation or its own extraction first")
 	}
+}
+
+// cement takes Cu out on iron powder first, Cu2+ + Fe -> Cu + Fe2+ (0.8788 kg Fe per kg Cu), the
+// powder's excess dissolving in the free acid, Fe + 2 H+ -> Fe2+ + H2; the Fe(II) made is then
+// oxidised and precipitated with the rest.
+func (p *planner) cement(c *ctx, s *State) {
+	cu := s.Mol["Cu"]
+	if cu <= 0 {
+		return
+	}
+	x := take(s, "Cu", p.val(c, KindImpurity, "cementation_yield")*cu)
+	fe := x * p.val(c, KindImpurity, "fe_powder_excess")
+	c.reagent(s, "Fe", fe)
+	c.solid("Cu cement", "product", "Cu", x)
+	s.Mol["Fe"] += fe
+	// Fe(II) from the excess takes 2 H+ each and gives H2.
+	s.FreeHMol -= 2 * (fe - x)
+	c.gas("H2", fe-x)
+	c.figure("Cu cemented, share", x/cu)
 }
 
 // oxidiseFe takes Fe(II) to Fe(III): 2 Fe2+ + H2O2 + 2 H+ -> 2 Fe3+ + 2 H2O (the excess

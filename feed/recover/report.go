@@ -297,7 +297,9 @@ func (p *planner) stageReport(st Step, tl *tally) StageReport {
 	for _, f := range tl.figOrder {
 		sr.Figures = append(sr.Figures, Figure{Name: f, Value: dist.Summarise(tl.figures[f])})
 	}
-	sr.Warnings = sortedKeys(tl.warnings)
+	for _, wn := range sortedKeys(tl.warnings) {
+		sr.Warnings = append(sr.Warnings, fmt.Sprintf("%s (%.0f %% of samples)", wn, 100*float64(tl.warnings[wn])/float64(p.n)))
+	}
 	return sr
 }
 
@@ -390,18 +392,27 @@ func (p *planner) value(pr *ProductPrices, products []Solid, tallies []*tally, f
 	return v
 }
 
-// productKey is the price list's name of a product: "Co cathode" is priced as Co metal.
+// productKey is the price list's name of a product: "Co cathode" and "Cu cement" are priced as
+// the metal.
 func productKey(name string) string {
-	k, _ := strings.CutSuffix(name, " cathode")
-	return k
+	for _, suffix := range []string{" cathode", " cement"} {
+		if k, ok := strings.CutSuffix(name, suffix); ok {
+			return k
+		}
+	}
+	return name
 }
 
 // stageDescription says what a stage does, in a line.
 func stageDescription(st Step) string {
 	switch st.Kind {
 	case KindImpurity:
-		return fmt.Sprintf("Fe(II) oxidised with %s; %s to pH %g at %g °C: Fe(III), Al, Cu out as phosphates and hydroxides "+
-			"(solubility from minteq.v4 log K, van 't Hoff)", st.FeOxidant, st.Base, st.PH, st.TemperatureC)
+		cu := ""
+		if st.Copper == "cement" {
+			cu = "Cu cemented on iron powder; "
+		}
+		return fmt.Sprintf("%sFe(II) oxidised with %s; %s to pH %g at %g °C: Fe(III), Al (and Cu) out as phosphates and "+
+			"hydroxides (solubility from minteq.v4 log K, van 't Hoff)", cu, st.FeOxidant, st.Base, st.PH, st.TemperatureC)
 	case KindManganese:
 		return fmt.Sprintf("Mn(II) to MnO2 with %s, the acid made neutralised with %s to pH %g", st.Oxidant, st.Base, st.PH)
 	case KindSX:
@@ -431,6 +442,9 @@ func stageCautions(st Step) []string {
 	switch st.Kind {
 	case KindImpurity:
 		c = append(c, "Neutralising acid liquor is exothermic; add base slowly with stirring and eye and skin protection.")
+		if st.Copper == "cement" {
+			c = append(c, "Iron powder in acid gives hydrogen: no ignition sources, ventilation; the powder itself is combustible.")
+		}
 		if st.FeOxidant == "H2O2" {
 			c = append(c, "Hydrogen peroxide is an oxidiser: keep it from organics and metals that decompose it; vent the O2.")
 		}

@@ -16,6 +16,7 @@ import (
 	"blackmass/feed/leach"
 	"blackmass/feed/lot"
 	"blackmass/feed/manifest"
+	"blackmass/feed/recover"
 	"blackmass/feed/report"
 	"blackmass/feed/value"
 )
@@ -52,6 +53,8 @@ type Options struct {
 	Assay     *assay.Assay
 	FlagSigma float64
 	Mix       *MixOptions
+	// Recover takes the leach liquor through a flowsheet of recovery stages; nil leaves it out.
+	Recover *recover.Flowsheet
 }
 
 // MixOptions are the settings of the mix inference: the candidate chemistries (nil: the lot's
@@ -98,6 +101,14 @@ func (o *Options) Validate() error {
 	}
 	if o.Assay != nil && !(o.FlagSigma > 0) {
 		return optionErr("flag-sigma", "the reconciliation threshold is a positive number of standard uncertainties, got %g", o.FlagSigma)
+	}
+	if o.Recover != nil {
+		if o.Leach == nil {
+			return optionErr("recover", "recovery takes the leach's liquor: plan the leach too")
+		}
+		if err := o.Recover.Validate(); err != nil {
+			return err
+		}
 	}
 	if o.Mix != nil && o.Mix.Bootstrap < 1 {
 		return optionErr("bootstrap", "the mix inference needs bootstrap draws, got %d", o.Mix.Bootstrap)
@@ -175,6 +186,9 @@ func Estimate(t *Tables, o Options, m Manifest) (*report.Report, error) {
 				return nil, err
 			}
 		}
+	}
+	if err := planRecovery(t, o, r); err != nil {
+		return nil, err
 	}
 	return finish(r, o)
 }

@@ -48,6 +48,7 @@ func Write(w io.Writer, r *report.Report, command string, quiet bool) {
 		writeGroupsText(w, r)
 	}
 	writeLeachText(w, r)
+	WriteRecovery(w, r.Recovery)
 	writeOrderText(w, r.Order)
 	writeValueText(w, r)
 	writeTail(w, r)
