@@ -10,6 +10,9 @@ import (
 
 	"blackmass/feed/intake"
 	"blackmass/feed/recover"
+	"blackmass/feed/report"
+	"blackmass/feed/run"
+	"blackmass/feed/text"
 )
 
 // recoverFlags choose the recovery flowsheet: --recover for the default, --flowsheet for the
@@ -94,4 +97,102 @@ func (f *recoverFlags) flowsheet() (*recover.Flowsheet, error) {
 		return nil, err
 	}
 	return &fs, nil
+}
+
+type recoverCmdOptions struct {
+	flags   recoverFlags
+	seed    uint64
+	samples int
+	volume  string
+	asJSON  bool
+	prices  string
+}
+
+func newRecoverCmd() *cobra.Command {
+	o := &recoverCmdOptions{}
+	cmd := &cobra.Command{
+		Use:   "recover LIQUOR.csv",
+		Short: "Plan the recovery stages for a measured leach liquor (element,value,unit: g/L or mg/L)",
+		Example: `  blackmass recover liquor.csv --volume 1200L
+  blackmass recover liquor.csv --volume 1.2m3 --mn-oxidant NaClO --co-product sulfate --json
+  blackmass recover liquor.csv --volume 800L --flowsheet bench.flowsheet`,
+		Args: cobra.ExactArgs(1),
+		RunE: func(cmd *cobra.Command, args []string) error { return runRecover(cmd, o, args[0]) },
+	}
+	o.flags.bind(cmd)
+	fl := cmd.Flags()
+	fl.Uint64Var(&o.seed, "seed", 1, "Monte Carlo seed")
+	intVar(fl, &o.samples, "samples", 2000, 10, 200_000, "from 10 to 200,000", "Monte Carlo samples of the stages' parameters")
+	fl.StringVar(&o.volume, "volume", "", "the liquor's volume: 1200L, 1.2m3 (or a volume row in the file)")
+	fl.BoolVar(&o.asJSON, "json", false, "write the report as JSON")
+	fl.StringVar(&o.prices, "prices", "", "prices CSV: Co, Ni, Cu metal and Li (LCE) price the products")
+	return cmd
+}
+
+func runRecover(cmd *cobra.Command, o *recoverCmdOptions, path string) error {
+	o.flags.on = true
+	fsheet, err := o.flags.flowsheet()
+	if err != nil {
+		return err
+	}
+	vol, err := parseVolume(o.volume)
+	if err != nil {
+		return usageError{err}
+	}
+	f, err := os.Open(path)
+	if err != nil {
+		return err
+	}
+	defer f.Close()
+	m, err := intake.ReadLiquor(f, path)
+	if err != nil {
+		return err
+	}
+	if vol > 0 {
+		m.VolumeL = vol
+	}
+	t, err := run.DefaultTables()
+	if err != nil {
+		return err
+	}
+	eo := estimateOptions{prices: o.prices}
+	prices, err := eo.loadPrices()
+	if err != nil {
+		return err
+	}
+	ro := run.Options{Seed: o.seed, Samples: o.samples, Recover: fsheet, Prices: prices,
+		Inputs: report.Inputs{Version: version}}
+	rep, err := run.RecoverLiquor(t, ro, m)
+	if err != nil {
+		return err
+	}
+	if o.asJSON {
+		return writeJSON(cmd.OutOrStdout(), rep)
+	}
+	w := cmd.OutOrStdout()
+	lq := rep.Liquor
+	fmt.Fprintf(w, "liquor %s: %g L, %s, free acid %g mol/L; Monte Carlo %d samples, seed %d\n", lq.File, lq.VolumeL,
+		lq.Anion, lq.FreeAcidMolPerL, rep.Inputs.Samples, rep.Inputs.Seed)
+	text.WriteRecovery(w, rep.Recovery)
+	return nil
+}
+
+// parseVolume reads 1200L, 1200 L, 1.2m3 or 1200 (litres); "" is no volume.
+func parseVolume(s string) (float64, error) {
+	t := strings.ToLower(strings.ReplaceAll(strings.TrimSpace(s), " ", ""))
+	if t == "" {
+		return 0, nil
+	}
+	f := 1.0
+	switch {
+	case strings.HasSuffix(t, "m3"):
+		t, f = strings.TrimSuffix(t, "m3"), 1000
+	case strings.HasSuffix(t, "l"):
+		t = strings.TrimSuffix(t, "l")
+	}
+	v, err := intake.ParseNumber(t, false)
+	if err != nil || !(v > 0) || v*f > 1e7 {
+		return 0, fmt.Errorf("--volume %q: want a positive volume up to 10,000 m3, such as 1200L or 1.2m3", intake.Printable(s, 20))
+	}
+	return v * f, nil
 }

@@ -53,3 +53,31 @@ func ProductPrices(pl *value.PriceList) *recover.ProductPrices {
 	}
 	return pp
 }
+
+// RecoverLiquor plans the recovery of a measured liquor with the flowsheet of o.Recover (the
+// default when nil), over o.Samples draws of the stages' parameters on o.Seed.
+func RecoverLiquor(t *Tables, o Options, m *recover.Measured) (*report.LiquorReport, error) {
+	if o.Samples < 1 || o.Samples > 200_000 {
+		return nil, optionErr("samples", "samples must be from 1 to 200000, got %d", o.Samples)
+	}
+	if !(m.VolumeL > 0) {
+		return nil, optionErr("volume", "%s: a liquor without a volume cannot be planned: give --volume (e.g. 1200L) "+
+			"or a volume row", m.File)
+	}
+	fs := recover.DefaultFlowsheet()
+	if o.Recover != nil {
+		fs = *o.Recover
+	}
+	rec, err := recover.Plan(recover.Input{Liquor: m.Samples(o.Samples), Flowsheet: fs, Tables: t.Recover,
+		Draws: dist.NewDrawer(o.Seed, o.Samples), Prices: ProductPrices(o.Prices)})
+	if err != nil {
+		return nil, err
+	}
+	in := o.Inputs
+	in.File, in.Seed, in.Samples = m.File, o.Seed, o.Samples
+	r := &report.LiquorReport{Inputs: in, Liquor: m, Recovery: rec}
+	if err := r.CheckFinite(); err != nil {
+		return nil, err
+	}
+	return r, nil
+}
