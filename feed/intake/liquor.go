@@ -76,7 +76,9 @@ func ReadLiquor(r io.Reader, name string) (*recover.Measured, error) {
 
 // liquorRow reads one row of a liquor file into m.
 func liquorRow(m *recover.Measured, es *cathode.Elements, el, val, unit, name string, line int, seen map[string]int) error {
-	fail := func(c, v, reason string) error { return &Error{File: name, Line: line, Column: c, Value: v, Reason: reason} }
+	fail := func(c, v, reason string) error {
+		return &Error{File: name, Line: line, Column: c, Value: v, Reason: reason}
+	}
 	key := strings.ToLower(el)
 	switch key {
 	case "fe(iii)", "fe3", "fe3+":

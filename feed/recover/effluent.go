@@ -19,11 +19,11 @@ func (p *planner) effluent(c *ctx, st Step, s *State) {
 	c.figure(salt+" solubility at the effluent temperature, g/100 g water", sol)
 	c.figure(salt+", g/100 g water", 100*kg/s.WaterKg)
 	cryst := 0.0
-	if salt == "Na2SO4" && 100*kg/s.WaterKg > sol {
+	if 100*kg/s.WaterKg > sol {
 		// Solve (m0 − x)/(W − w·x) = S/100 for x kg of Na2SO4 crystallising, w the water it
 		// takes per kg (10 H2O per Na2SO4 as the decahydrate).
 		w := 0.0
-		if st.TemperatureC < mirabiliteC {
+		if salt == "Na2SO4" && st.TemperatureC < mirabiliteC {
 			w = 10 * p.t.molarMass("H2O") / mw
 		}
 		cryst = (kg - sol/100*s.WaterKg) / (1 - sol/100*w)
