@@ -44,6 +44,20 @@ func TestDemoRecover(t *testing.T) {
 	}
 }
 
+// quote --recover plans the recovery of the quoted black mass's liquor; a sulfate product on a
+// chloride liquor is refused.
+func TestQuoteRecover(t *testing.T) {
+	assay := filepath.Join("..", "..", "testdata", "assay-KR-2611.csv")
+	code, out, errs := cli(t, "", "quote", assay, "--mass", "1.2t", "--recover", "--samples", "200", "--li-product", "phosphate")
+	if code != 0 || !strings.Contains(out, "Li3PO4") || !strings.Contains(out, "recovery plan") {
+		t.Errorf("quote --recover: exit %d, %s", code, errs)
+	}
+	code, _, errs = cli(t, "", "demo", "--route", "hydrochloric", "--recover", "--co-product", "sulfate", "--samples", "50")
+	if code != 1 || !strings.Contains(errs, "sulfate crystallisation needs a sulfate liquor") {
+		t.Errorf("sulfate on chloride: exit %d, %s", code, errs)
+	}
+}
+
 func TestRecoverCommand(t *testing.T) {
 	liq := filepath.Join("..", "..", "testdata", "recover", "liquor.csv")
 	fsheet := filepath.Join("..", "..", "testdata", "recover", "bench.flowsheet")

@@ -40,6 +40,9 @@ func (p *planner) manganese(c *ctx, st Step, s *State) {
 		s.FreeHMol -= e // ClO- + 2 H+ + 2 e- -> Cl- + H2O; the excess ClO- -> Cl- + ½ O2
 		c.waterMol(s, e/2)
 		c.gas("O2", (mol-e/2)/2)
+		// In acid the excess would give chlorine instead (ClO- + Cl- + 2 H+ -> Cl2 + H2O): the
+		// worst case, beside the balance, for the off-gas treatment.
+		c.figure("Cl2 if the excess hypochlorite meets acid, kg (worst case)", (mol-e/2)*p.t.molarMass("Cl2")/1000)
 	case "O3":
 		mol := e / 2 * x / p.val(c, stage, "o3_use")
 		c.reagent(s, "O3", mol)

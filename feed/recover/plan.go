@@ -102,6 +102,11 @@ func Plan(in Input) (*Report, error) {
 	if p.anion != "SO4" && p.anion != "Cl" {
 		return nil, fmt.Errorf("recover: anion %q: want SO4 or Cl", lq.Anion)
 	}
+	for _, st := range in.Flowsheet.Steps {
+		if st.Product == "sulfate" && p.anion != "SO4" {
+			return nil, in.Flowsheet.fail(st, "product", "sulfate crystallisation needs a sulfate liquor; this one is chloride")
+		}
+	}
 	tallies := make([]*tally, len(in.Flowsheet.Steps))
 	for k := range tallies {
 		tallies[k] = newTally(n)
