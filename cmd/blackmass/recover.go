@@ -121,6 +121,7 @@ func newRecoverCmd() *cobra.Command {
 	}
 	o.flags.bind(cmd)
 	fl := cmd.Flags()
+	_ = fl.MarkHidden("recover") // always on here
 	fl.Uint64Var(&o.seed, "seed", 1, "Monte Carlo seed")
 	intVar(fl, &o.samples, "samples", 2000, 10, 200_000, "from 10 to 200,000", "Monte Carlo samples of the stages' parameters")
 	fl.StringVar(&o.volume, "volume", "", "the liquor's volume: 1200L, 1.2m3 (or a volume row in the file)")

@@ -102,6 +102,7 @@ func (p *planner) sx(c *ctx, st Step, s *State) {
 	for _, x := range loaded {
 		tot += x
 	}
+	c.figure("organic loaded, share of its capacity", tot/capMol)
 	if tot > p.val(c, stage, "max_loading")*capMol {
 		c.warn("the loaded metals pass the organic's working capacity (4 HA per M2+): raise O/A or the extractant's concentration")
 	}
