@@ -48,6 +48,20 @@ func TestBalanceEveryChoice(t *testing.T) {
 		if !(r.ChargeResidual < 1e-9) {
 			t.Errorf("%s: charge residual %g", name, r.ChargeResidual)
 		}
+		// The reagents to order add up every stage's: means are additive.
+		for _, tot := range r.Reagents {
+			sum := 0.0
+			for _, st := range r.Stages {
+				for _, g := range st.Reagents {
+					if g.Name == tot.Name {
+						sum += g.Kg.Mean
+					}
+				}
+			}
+			if !near(tot.Kg.Mean, sum, 1e-6) {
+				t.Errorf("%s: %s total %g kg, stages add to %g", name, tot.Name, tot.Kg.Mean, sum)
+			}
+		}
 		if testing.Verbose() {
 			fmt.Println(name, r.BalanceResidual)
 		}

@@ -17,6 +17,8 @@ type Report struct {
 	Flowsheet []string      `json:"flowsheet"`
 	Stages    []StageReport `json:"stages"`
 	Products  []Solid       `json:"products"`
+	// Reagents are every stage's reagents added up, as bought: what to order.
+	Reagents []Reagent2 `json:"reagents_total"`
 	// Fates is each element's destination, liquor and reagents in = products + cakes + gases +
 	// solutions left (effluent, the cobalt circuit's spent liquor).
 	Fates []Fate `json:"fates"`
@@ -178,6 +180,7 @@ func (p *planner) report(in Input, tallies []*tally, res *results) *Report {
 		addDest(el, "cobalt circuit liquor", v)
 	}
 	r.Fates = p.fates(res, dest)
+	r.Reagents = p.reagentTotals(tallies)
 	r.Water = []Flow{{Name: "in: liquor", Kg: dist.Summarise(res.water0)}}
 	for _, cause := range waterOrder {
 		r.Water = append(r.Water, Flow{Name: cause, Kg: dist.Summarise(water[cause])})
@@ -215,6 +218,37 @@ func waterResidual(res *results, water map[string][]float64) float64 {
 		worst = math.Max(worst, math.Abs(in-out)/res.water0[i])
 	}
 	return dist.Round(worst, 12)
+}
+
+// reagentTotals adds each reagent up over the stages, sample by sample.
+func (p *planner) reagentTotals(tallies []*tally) []Reagent2 {
+	mol := map[string][]float64{}
+	for _, tl := range tallies {
+		for name, v := range tl.reagentMol {
+			m := col(mol, name, p.n)
+			for i := range v {
+				m[i] += v[i]
+			}
+		}
+	}
+	return p.reagentRows(mol)
+}
+
+// reagentRows summarises reagents given in mol per sample: pure kg, as bought, litres.
+func (p *planner) reagentRows(mol map[string][]float64) []Reagent2 {
+	var out []Reagent2
+	for _, name := range sortedKeys(mol) {
+		rg := p.t.reagents[name]
+		kg := scale(mol[name], p.t.molarMass(rg.Formula)/1000)
+		com := scale(kg, 100/rg.WtPct)
+		r2 := Reagent2{Name: name, Kg: dist.Summarise(kg), WtPct: rg.WtPct, Commercial: dist.Summarise(com)}
+		if rg.DensityGPerML > 0 {
+			l := dist.Summarise(scale(com, 1/rg.DensityGPerML))
+			r2.Litres = &l
+		}
+		out = append(out, r2)
+	}
+	return out
 }
 
 func scale(v []float64, f float64) []float64 {
@@ -266,17 +300,7 @@ func (p *planner) fates(res *results, dest map[string]map[string][]float64) []Fa
 func (p *planner) stageReport(st Step, tl *tally) StageReport {
 	sr := StageReport{Kind: st.Kind, Setting: st.String(), Description: stageDescription(st),
 		Cautions: stageCautions(st)}
-	for _, name := range sortedKeys(tl.reagentMol) {
-		rg := p.t.reagents[name]
-		kg := scale(tl.reagentMol[name], p.t.molarMass(rg.Formula)/1000)
-		com := scale(kg, 100/rg.WtPct)
-		r2 := Reagent2{Name: name, Kg: dist.Summarise(kg), WtPct: rg.WtPct, Commercial: dist.Summarise(com)}
-		if rg.DensityGPerML > 0 {
-			l := dist.Summarise(scale(com, 1/rg.DensityGPerML))
-			r2.Litres = &l
-		}
-		sr.Reagents = append(sr.Reagents, r2)
-	}
+	sr.Reagents = p.reagentRows(tl.reagentMol)
 	for _, name := range tl.solidOrder {
 		if s, ok := p.solid(st.Kind, tl.solids[name]); ok {
 			sr.Solids = append(sr.Solids, s)

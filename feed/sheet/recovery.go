@@ -70,6 +70,14 @@ func (w *writer) recovery() error {
 		rw.stage(sr)
 	}
 	rw.products(rec)
+	rw.section("Recovery reagents to order: all stages, as bought")
+	for _, g := range rec.Reagents {
+		note := ""
+		if g.Litres != nil {
+			note = fmt.Sprintf("%.4g L (P50), %.4g L (P90)", g.Litres.P50, g.Litres.P90)
+		}
+		rw.stat(fmt.Sprintf("%s %g %%", g.Name, g.WtPct), g.Commercial, "kg", note, st.num)
+	}
 	rw.fates(rec)
 	rw.section("Water balance (+ into the solution, − out of it)")
 	for _, f := range rec.Water {

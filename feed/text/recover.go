@@ -23,6 +23,16 @@ func WriteRecovery(w io.Writer, r *recover.Report) {
 		writeStageText(w, st)
 	}
 	writeProductsText(w, r)
+	fmt.Fprintln(w, "\nrecovery reagents to order (as bought, all stages):")
+	tw0 := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
+	for _, g := range r.Reagents {
+		l := ""
+		if g.Litres != nil {
+			l = fmt.Sprintf("%s / %s L", Num(g.Litres.P50), Num(g.Litres.P90))
+		}
+		fmt.Fprintf(tw0, "  %s %g %%\t%s / %s kg (P50 / P90)\t%s\t\n", g.Name, g.WtPct, Num(g.Commercial.P50), Num(g.Commercial.P90), l)
+	}
+	tw0.Flush()
 	writeFatesText(w, r)
 	fmt.Fprintln(w, "\nwater balance (kg, + into the solution, - out of it):")
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
