@@ -129,7 +129,7 @@ var (
 	oxidantChoices   = []string{"KMnO4", "NaClO", "O3", "SO2", "Na2S2O8"}
 	metalProducts    = []string{"electrowin", "hydroxide", "carbonate", "sulfate"}
 	lithiumProducts  = []string{"carbonate", "phosphate"}
-	carbonateBaseMax = 6.3 // pKa1 of carbonic acid, 6.35 at 25 °C (CRC Handbook, Dissociation constants of inorganic acids)
+	carbonateBaseMax = 6.3 // pKa1 of carbonic acid, 6.35 at 25 °C (from memory)
 )
 
 // Validate checks the order of the stages and every setting.

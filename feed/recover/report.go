@@ -115,6 +115,9 @@ type ProductValue struct {
 	Unpriced []string  `json:"unpriced,omitempty"`
 }
 
+// negligibleMol is an amount too small to report (a gas of 1e-9 mol is 22 µL).
+const negligibleMol = 1e-9
+
 // molarVolumeL is the ideal gas volume at 0 °C and 101.325 kPa, 22.413 97 L/mol (CODATA 2018).
 const molarVolumeL = 22.41397
 
@@ -308,7 +311,7 @@ func (p *planner) stageReport(st Step, tl *tally) StageReport {
 	}
 	for _, g := range sortedKeys(tl.gasMol) {
 		mol := tl.gasMol[g]
-		if slices.Max(mol) <= 0 {
+		if slices.Max(mol) < negligibleMol {
 			continue
 		}
 		sr.Gases = append(sr.Gases, Gas{Formula: g, Kg: dist.Summarise(scale(mol, p.t.molarMass(g)/1000)),

@@ -102,10 +102,10 @@ func (w *writer) recovery() error {
 	// The chart and its data start a page of their own, so that the chart is not cut.
 	_ = w.f.InsertPageBreak(s, rw.cell("A"))
 	rw.chartData(rec)
-	_ = w.f.SetColWidth(s, "A", "A", 34)
+	_ = w.f.SetColWidth(s, "A", "A", 44)
 	_ = w.f.SetColWidth(s, "B", "D", 11)
 	_ = w.f.SetColWidth(s, "E", "E", 7)
-	_ = w.f.SetColWidth(s, "F", "F", 34)
+	_ = w.f.SetColWidth(s, "F", "F", 30)
 	_ = w.f.SetDefinedName(&excelize.DefinedName{Name: "_xlnm.Print_Titles", RefersTo: "'" + s + "'!$3:$3", Scope: s})
 	w.printSetup(s, false)
 	return rw.chart(rec)
