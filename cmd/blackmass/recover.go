@@ -2,7 +2,9 @@ package main
 
 import (
 	"fmt"
+	"io"
 	"os"
+	"path/filepath"
 	"slices"
 	"strings"
 
@@ -57,7 +59,14 @@ func (f *recoverFlags) flowsheet() (*recover.Flowsheet, error) {
 			return nil, err
 		}
 		defer r.Close()
-		if fs, err = recover.ParseFlowsheet(r, f.file); err != nil {
+		// A table= file is read beside the flowsheet.
+		open := func(p string) (io.ReadCloser, error) {
+			if !filepath.IsAbs(p) {
+				p = filepath.Join(filepath.Dir(f.file), p)
+			}
+			return os.Open(p)
+		}
+		if fs, err = recover.ParseFlowsheetWith(r, f.file, open); err != nil {
 			return nil, err
 		}
 	}

@@ -71,6 +71,12 @@ func TestRecoverCommand(t *testing.T) {
 			t.Errorf("output lacks %q", want)
 		}
 	}
+	// A distribution table beside the flowsheet file.
+	thio := filepath.Join("..", "..", "testdata", "recover", "thiocyanate.flowsheet")
+	code, out, errs = cli(t, "", "recover", liq, "--volume", "1200L", "--samples", "100", "--flowsheet", thio)
+	if code != 0 || !strings.Contains(out, "D from the table thiocyanate.csv") {
+		t.Errorf("thiocyanate flowsheet: exit %d, %s", code, errs)
+	}
 	dir := t.TempDir()
 	write := func(name, text string) string {
 		p := filepath.Join(dir, name)

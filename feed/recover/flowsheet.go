@@ -2,6 +2,7 @@ package recover
 
 import (
 	"bufio"
+	"errors"
 	"fmt"
 	"io"
 	"slices"
@@ -45,6 +46,10 @@ type Step struct {
 	OA         float64 `json:"oa,omitempty"`
 	Stages     int     `json:"stages,omitempty"`
 	CoRecovery float64 `json:"co_recovery,omitempty"`
+	// Table is the sx stage's own distribution table (its file in TableFile), in place of
+	// recover_sx.csv.
+	TableFile string        `json:"table,omitempty"`
+	Table     *Distribution `json:"-"`
 	// Product: electrowin, hydroxide, carbonate or sulfate (cobalt, nickel); carbonate or
 	// phosphate (lithium).
 	Product string `json:"product,omitempty"`
@@ -192,8 +197,12 @@ func (f Flowsheet) validateStep(st Step) error {
 			return err
 		}
 	case KindSX:
-		if !(st.PH >= 2 && st.PH <= 7) {
-			return f.fail(st, "ph", "%g: the extraction's equilibrium pH runs from 2 to 7", st.PH)
+		lo := 2.0 // the phosphinic acid's tables start there
+		if st.Table != nil {
+			lo = 0
+		}
+		if !(st.PH >= lo && st.PH <= 7) {
+			return f.fail(st, "ph", "%g: the extraction's equilibrium pH runs from %g to 7", st.PH, lo)
 		}
 		if !(st.OA > 0 && st.OA <= 10) {
 			return f.fail(st, "oa", "%g: the O/A ratio is more than 0 and at most 10", st.OA)
@@ -206,6 +215,17 @@ func (f Flowsheet) validateStep(st Step) error {
 		}
 		if err := oneOf("base", st.Base, []string{"NaOH"}); err != nil {
 			return err
+		}
+		if st.TableFile != "" && st.Table == nil {
+			return f.fail(st, "table", "%s was not read", st.TableFile)
+		}
+		if st.Table != nil {
+			if err := st.Table.check(st.PH); err != nil {
+				return err
+			}
+			if _, ok := st.Table.points["Co"]; !ok {
+				return &FlowsheetError{File: st.Table.File, Field: "metal", Err: errors.New("no Co points: the extraction is designed on Co")}
+			}
 		}
 	case KindCobalt, KindNickel:
 		if err := oneOf("product", st.Product, metalProducts); err != nil {
@@ -232,8 +252,13 @@ func (f Flowsheet) validateStep(st Step) error {
 }
 
 // ParseFlowsheet reads a flowsheet file: one stage a line, its kind first, then settings as
-// key=value; '#' starts a comment. A setting left out takes the stage's default.
-func ParseFlowsheet(r io.Reader, name string) (Flowsheet, error) {
+// key=value; '#' starts a comment. A setting left out takes the stage's default. A table=
+// setting needs ParseFlowsheetWith, which can open it.
+func ParseFlowsheet(r io.Reader, name string) (Flowsheet, error) { return ParseFlowsheetWith(r, name, nil) }
+
+// ParseFlowsheetWith is ParseFlowsheet with open reading an sx stage's table= file (nil: none
+// can be read).
+func ParseFlowsheetWith(r io.Reader, name string, open func(path string) (io.ReadCloser, error)) (Flowsheet, error) {
 	f := Flowsheet{File: name}
 	sc := bufio.NewScanner(data.CapBytes(r, data.MaxTableBytes))
 	line := 0
@@ -256,12 +281,31 @@ func ParseFlowsheet(r io.Reader, name string) (Flowsheet, error) {
 				return f, &FlowsheetError{File: name, Line: line, Field: strings.SplitN(kv, "=", 2)[0], Err: err}
 			}
 		}
+		if st.TableFile != "" {
+			if err := readTable(&st, open); err != nil {
+				return f, &FlowsheetError{File: name, Line: line, Field: "table", Err: err}
+			}
+		}
 		f.Steps = append(f.Steps, st)
 	}
 	if err := sc.Err(); err != nil {
 		return f, &FlowsheetError{File: name, Line: line + 1, Err: err}
 	}
 	return f, f.Validate()
+}
+
+// readTable reads a step's distribution table with open.
+func readTable(st *Step, open func(string) (io.ReadCloser, error)) error {
+	if open == nil {
+		return errors.New("a distribution table is read only from a flowsheet file")
+	}
+	rc, err := open(st.TableFile)
+	if err != nil {
+		return err
+	}
+	defer rc.Close()
+	st.Table, err = ParseDistribution(rc, st.TableFile)
+	return err
 }
 
 // setField sets one key=value of a step.
@@ -301,6 +345,8 @@ func setField(st *Step, kv string) error {
 		st.Stages = n
 	case "co-recovery":
 		return num(&st.CoRecovery)
+	case "table":
+		st.TableFile = v
 	case "product":
 		st.Product = v
 	case "current-density":
@@ -310,7 +356,7 @@ func setField(st *Step, kv string) error {
 	case "evaporate":
 		return num(&st.Evaporate)
 	default:
-		return fmt.Errorf("%q is not a setting (base, ph, temperature, fe-oxidant, copper, oxidant, oa, stages, co-recovery, "+
+		return fmt.Errorf("%q is not a setting (base, ph, temperature, fe-oxidant, copper, oxidant, oa, stages, co-recovery, table, "+
 			"product, current-density, cathode-area, evaporate)", k)
 	}
 	return nil
@@ -340,6 +386,7 @@ func (st Step) String() string {
 		add("ph", g(st.PH))
 		add("oa", g(st.OA))
 		add("stages", strconv.Itoa(st.Stages))
+		add("table", st.TableFile)
 		if st.Stages == 0 {
 			add("co-recovery", g(st.CoRecovery))
 		}

@@ -443,6 +443,11 @@ func stageDescription(st Step) string {
 	case KindManganese:
 		return fmt.Sprintf("Mn(II) to MnO2 with %s, the acid made neutralised with %s to pH %g", st.Oxidant, st.Base, st.PH)
 	case KindSX:
+		if st.Table != nil {
+			return fmt.Sprintf("Co extracted at pH %g, O/A %g, counter-current (Kremser), D from the table %s (the base "+
+				"and strip acid are those of a cation-exchange extractant, 2 H+ per M2+); Ni, Li, Na scrubbed back; strip with acid",
+				st.PH, st.OA, st.Table.File)
+		}
 		return fmt.Sprintf("Co extracted into a saponified phosphinic acid at pH %g, O/A %g, counter-current (Kremser); "+
 			"Ni, Li, Na scrubbed back; strip with acid", st.PH, st.OA)
 	case KindCobalt, KindNickel:

@@ -38,7 +38,11 @@ func (p *planner) designStages(st Step) int {
 		return st.Stages
 	}
 	co := p.t.sx["Co"]
-	n := KremserStages(distribution(co, co.mode, st.PH)*st.OA, 1-st.CoRecovery)
+	d := distribution(co, co.mode, st.PH)
+	if st.Table != nil {
+		d = st.Table.ratio("Co", st.PH)
+	}
+	n := KremserStages(d*st.OA, 1-st.CoRecovery)
 	if math.IsInf(n, 1) || n > 20 {
 		return 20
 	}
@@ -56,14 +60,20 @@ func (p *planner) sx(c *ctx, st Step, s *State) {
 	n := p.designStages(st)
 	loaded := map[string]float64{}
 	var fe3 float64
-	metals := []string{"Fe3", "Al", "Cu", "Mn", "Co", "Ni", "Fe2", "Li", "Na"}
+	metals := []string{"Fe3", "Al", "Cu", "Zn", "Mn", "Co", "Ni", "Fe2", "Mg", "Ca", "Li", "Na"}
 	for _, m := range metals {
-		info, ok := p.t.sx[m]
-		if !ok {
-			continue
+		var dm float64
+		if st.Table != nil {
+			dm = st.Table.ratio(m, st.PH)
+		} else {
+			info, ok := p.t.sx[m]
+			if !ok {
+				continue
+			}
+			pH50 := p.draw(stage, "pH50 "+m, info.lo, info.mode, info.hi, "pH", info.source)[c.i]
+			dm = distribution(info, pH50, st.PH)
 		}
-		pH50 := p.draw(stage, "pH50 "+m, info.lo, info.mode, info.hi, "pH", info.source)[c.i]
-		frac := 1 - KremserRaffinate(distribution(info, pH50, st.PH)*st.OA, n)
+		frac := 1 - KremserRaffinate(dm*st.OA, n)
 		switch m {
 		case "Fe3":
 			x := frac * s.Fe3Mol
@@ -102,8 +112,10 @@ func (p *planner) sx(c *ctx, st Step, s *State) {
 	for _, x := range loaded {
 		tot += x
 	}
-	c.figure("organic loaded, share of its capacity", tot/capMol)
-	if tot > p.val(c, stage, "max_loading")*capMol {
+	if st.Table == nil {
+		c.figure("organic loaded, share of its capacity", tot/capMol)
+	}
+	if st.Table == nil && tot > p.val(c, stage, "max_loading")*capMol {
 		c.warn("the loaded metals pass the organic's working capacity (4 HA per M2+): raise O/A or the extractant's concentration")
 	}
 }
