@@ -254,7 +254,9 @@ func (f Flowsheet) validateStep(st Step) error {
 // ParseFlowsheet reads a flowsheet file: one stage a line, its kind first, then settings as
 // key=value; '#' starts a comment. A setting left out takes the stage's default. A table=
 // setting needs ParseFlowsheetWith, which can open it.
-func ParseFlowsheet(r io.Reader, name string) (Flowsheet, error) { return ParseFlowsheetWith(r, name, nil) }
+func ParseFlowsheet(r io.Reader, name string) (Flowsheet, error) {
+	return ParseFlowsheetWith(r, name, nil)
+}
 
 // ParseFlowsheetWith is ParseFlowsheet with open reading an sx stage's table= file (nil: none
 // can be read).
