@@ -36,8 +36,8 @@ func (f *recoverFlags) bind(cmd *cobra.Command) {
 	fl.StringVar(&f.file, "flowsheet", "", "plan the recovery with this flowsheet file (one stage a line; see the README)")
 	fl.StringVar(&f.base, "recover-base", "", "base of the impurity and Mn stages: NaOH, Na2CO3, CaCO3, Ca(OH)2 or LiOH")
 	fl.StringVar(&f.mnOxidant, "mn-oxidant", "", "Mn oxidant: KMnO4, NaClO, O3, SO2 or Na2S2O8")
-	fl.StringVar(&f.coProduct, "co-product", "", "cobalt product: electrowin, hydroxide, carbonate or sulfate")
-	fl.StringVar(&f.niProduct, "ni-product", "", "nickel product: electrowin, hydroxide, carbonate or sulfate")
+	fl.StringVar(&f.coProduct, "co-product", "", "cobalt product: electrowin, hydroxide, carbonate, sulfate or oxalate")
+	fl.StringVar(&f.niProduct, "ni-product", "", "nickel product: electrowin, hydroxide, carbonate, sulfate or oxalate")
 	fl.StringVar(&f.liProduct, "li-product", "", "lithium product: carbonate or phosphate")
 }
 
@@ -80,9 +80,11 @@ func (f *recoverFlags) flowsheet() (*recover.Flowsheet, error) {
 			[]string{"NaOH", "Na2CO3", "CaCO3", "Ca(OH)2", "LiOH"}, func(s *recover.Step) { s.Base = f.base }},
 		{"--mn-oxidant", f.mnOxidant, []string{recover.KindManganese}, []string{"KMnO4", "NaClO", "O3", "SO2", "Na2S2O8"},
 			func(s *recover.Step) { s.Oxidant = f.mnOxidant }},
-		{"--co-product", f.coProduct, []string{recover.KindCobalt}, []string{"electrowin", "hydroxide", "carbonate", "sulfate"},
+		{"--co-product", f.coProduct, []string{recover.KindCobalt}, []string{"electrowin", "hydroxide", "carbonate", "sulfate",
+			"oxalate"},
 			func(s *recover.Step) { s.Product = f.coProduct }},
-		{"--ni-product", f.niProduct, []string{recover.KindNickel}, []string{"electrowin", "hydroxide", "carbonate", "sulfate"},
+		{"--ni-product", f.niProduct, []string{recover.KindNickel}, []string{"electrowin", "hydroxide", "carbonate", "sulfate",
+			"oxalate"},
 			func(s *recover.Step) { s.Product = f.niProduct }},
 		{"--li-product", f.liProduct, []string{recover.KindLithium}, []string{"carbonate", "phosphate"},
 			func(s *recover.Step) { s.Product = f.liProduct }},

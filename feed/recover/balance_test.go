@@ -25,7 +25,8 @@ func TestBalanceEveryChoice(t *testing.T) {
 			f.Steps[4].Product = "carbonate"
 			f.Steps[5].Product = "phosphate"
 		},
-		"ni-ew": func(f *recover.Flowsheet) { f.Steps[4].Product = "electrowin"; f.Steps[5].Evaporate = 0.6 },
+		"ni-ew":   func(f *recover.Flowsheet) { f.Steps[4].Product = "electrowin"; f.Steps[5].Evaporate = 0.6 },
+		"oxalate": func(f *recover.Flowsheet) { f.Steps[3].Product = "oxalate"; f.Steps[4].Product = "oxalate" },
 		"ni-sulfate": func(f *recover.Flowsheet) {
 			f.Steps[4].Product = "sulfate"
 			f.Steps[2].Stages = 2

@@ -132,7 +132,7 @@ var (
 	baseChoices      = []string{"NaOH", "Na2CO3", "CaCO3", "Ca(OH)2", "LiOH"}
 	feOxChoices      = []string{"H2O2", "air"}
 	oxidantChoices   = []string{"KMnO4", "NaClO", "O3", "SO2", "Na2S2O8"}
-	metalProducts    = []string{"electrowin", "hydroxide", "carbonate", "sulfate"}
+	metalProducts    = []string{"electrowin", "hydroxide", "carbonate", "sulfate", "oxalate"}
 	lithiumProducts  = []string{"carbonate", "phosphate"}
 	carbonateBaseMax = 6.3 // pKa1 of carbonic acid, 6.35 at 25 °C (from memory)
 )

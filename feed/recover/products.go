@@ -20,6 +20,8 @@ func (p *planner) metalProduct(c *ctx, st Step, s *State, metal string) {
 		p.carbonateProduct(c, st, s, metal)
 	case "sulfate":
 		p.sulfateProduct(c, st, s, metal)
+	case "oxalate":
+		p.oxalateProduct(c, s, metal)
 	}
 }
 
@@ -112,6 +114,23 @@ func (p *planner) dissolvedCarbonate(s *State, mol float64) {
 	}
 	s.Mol["C"] += mol
 	s.FreeHMol -= 2 * mol
+}
+
+// oxalateProduct precipitates the oxalate dihydrate from the acid liquor with oxalic acid,
+// M2+ + H2C2O4 + 2 H2O -> MC2O4·2H2O + 2 H+ (for Co: 2.139 kg H2C2O4·2H2O and 3.105 kg product per
+// kg, 1.664 kg H2SO4 freed), a share of the metal per the yield; the excess acid stays dissolved.
+func (p *planner) oxalateProduct(c *ctx, s *State, metal string) {
+	phase := metal + "C2O4·2H2O"
+	have := s.Mol[metal]
+	mol := have * p.val(c, "product", "oxalic_excess")
+	c.reagent(s, "H2C2O4", mol)
+	n := take(s, metal, p.val(c, "product", "oxalate_yield")*have)
+	c.solid(phase, "product", phase, n)
+	s.Mol["C"] += 2 * (mol - n)
+	s.FreeHMol += 2 * n
+	c.waterMol(s, -2*n)
+	c.figure("acid freed, kg H2SO4", n*p.t.molarMass("H2SO4")/1000)
+	c.cake(s, phase, p.val(c, "product", "cake_wet_ratio"))
 }
 
 // sulfateProduct crystallises the metal's sulfate hydrate (CoSO4·7H2O, NiSO4·6H2O) from a

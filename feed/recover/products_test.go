@@ -59,6 +59,19 @@ func TestMetalProducts(t *testing.T) {
 		t.Errorf("Ni %g kWh/kg, want %g", got, 0.9133*3.5/0.95)
 	}
 	co := one(1000, map[string]float64{"Co": 10}, 0)
+	// CoSO4 + H2C2O4 + 2 H2O -> CoC2O4·2H2O + H2SO4: 2.139 kg H2C2O4·2H2O (126.07/58.933) per kg Co
+	// in the liquor times the excess (mode 1.2), 3.105 kg product (182.98/58.933) per kg Co
+	// precipitated (yield mode 0.9).
+	r = plan(t, co, steps(step(recover.KindSX, nil), step(recover.KindCobalt, func(s *recover.Step) { s.Product = "oxalate" })), 1)
+	inStrip := 10 * figure(t, r, "sx", "Co extracted")
+	for _, g := range r.Stages[1].Reagents {
+		if g.Name == "H2C2O4" && !near(g.Commercial.P50, 2.139*inStrip*1.2, 2e-3) {
+			t.Errorf("oxalic acid dihydrate %g kg, want %g", g.Commercial.P50, 2.139*inStrip*1.2)
+		}
+	}
+	if got := phaseKg(t, solid(t, r, "CoC2O4·2H2O"), "CoC2O4·2H2O"); !near(got, 3.105*inStrip*0.9, 2e-3) {
+		t.Errorf("CoC2O4·2H2O %g kg, want %g", got, 3.105*inStrip*0.9)
+	}
 	r = plan(t, co, steps(step(recover.KindSX, nil), step(recover.KindCobalt, func(s *recover.Step) { s.Product = "sulfate" })), 1)
 	coKg := 10 * figure(t, r, "sx", "Co extracted") * 0.9
 	if got := phaseKg(t, solid(t, r, "CoSO4·7H2O"), "CoSO4·7H2O"); !near(got, 4.770*coKg, 1e-3) {

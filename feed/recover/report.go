@@ -456,7 +456,7 @@ func stageDescription(st Step) string {
 			m = "Ni from the raffinate"
 		}
 		return m + " as " + map[string]string{"electrowin": "electrowon metal (Faraday's law)", "hydroxide": "hydroxide",
-			"carbonate": "carbonate", "sulfate": "sulfate crystals"}[st.Product]
+			"carbonate": "carbonate", "sulfate": "sulfate crystals", "oxalate": "oxalate dihydrate with oxalic acid"}[st.Product]
 	case KindLithium:
 		if st.Product == "phosphate" {
 			return fmt.Sprintf("Li as Li3PO4 with Na3PO4 at %g °C", st.TemperatureC)
