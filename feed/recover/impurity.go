@@ -11,12 +11,13 @@ func (p *planner) impurity(c *ctx, st Step, s *State) {
 	const stage = KindImpurity
 	cake := "impurity cake"
 	c.solidName(cake)
+	cuBefore := s.Mol["Cu"]
 	if st.Copper == "cement" {
 		p.cement(c, s)
 	}
 	p.oxidiseFe(c, st, s)
 	p.phosphates(c, st, s, cake)
-	alBefore, cuBefore := s.Mol["Al"], s.Mol["Cu"]
+	alBefore := s.Mol["Al"]
 	for _, m := range []string{"Fe3", "Al", "Cu", "Fe2", "Ni", "Co", "Mn"} {
 		h, ok := p.t.ksp[m]
 		if !ok {

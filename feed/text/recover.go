@@ -64,6 +64,22 @@ func WriteRecovery(w io.Writer, r *recover.Report) {
 	}
 }
 
+// writeRecoverySummary is the recovery's line in the summary: the products (P50) and their value.
+func writeRecoverySummary(w io.Writer, r *recover.Report) {
+	if r == nil {
+		return
+	}
+	var parts []string
+	for _, p := range r.Products {
+		parts = append(parts, fmt.Sprintf("%s %s", p.Name, FmtMass(p.DryKg.P50)))
+	}
+	fmt.Fprintf(w, "recovery: %s (P50)", strings.Join(parts, ", "))
+	if v := r.Value; v != nil {
+		fmt.Fprintf(w, "; products' value %s %s", Money(v.Total.P50), v.Currency)
+	}
+	fmt.Fprintln(w)
+}
+
 func stat3(s dist.Stat) string { return Num(s.P10) + " / " + Num(s.P50) + " / " + Num(s.P90) }
 
 func writeStageText(w io.Writer, st recover.StageReport) {
