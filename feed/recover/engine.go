@@ -255,6 +255,7 @@ func (c *ctx) solidName(name string) {
 	if _, ok := c.tl.solids[name]; ok {
 		return
 	}
-	c.tl.solids[name] = &solidTally{name: name, kind: "cake", phaseMol: map[string][]float64{}, wetRatio: make([]float64, c.n)}
+	c.tl.solids[name] = &solidTally{name: name, kind: "cake", phaseMol: map[string][]float64{},
+		wetRatio: make([]float64, c.n)}
 	c.tl.solidOrder = append(c.tl.solidOrder, name)
 }

@@ -325,7 +325,8 @@ func (p *planner) stageReport(st Step, tl *tally) StageReport {
 		sr.Figures = append(sr.Figures, Figure{Name: f, Value: dist.Summarise(tl.figures[f])})
 	}
 	for _, wn := range sortedKeys(tl.warnings) {
-		sr.Warnings = append(sr.Warnings, fmt.Sprintf("%s (%.0f %% of samples)", wn, 100*float64(tl.warnings[wn])/float64(p.n)))
+		share := 100 * float64(tl.warnings[wn]) / float64(p.n)
+		sr.Warnings = append(sr.Warnings, fmt.Sprintf("%s (%.0f %% of samples)", wn, share))
 	}
 	return sr
 }

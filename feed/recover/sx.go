@@ -116,7 +116,8 @@ func (p *planner) sx(c *ctx, st Step, s *State) {
 		c.figure("organic loaded, share of its capacity", tot/capMol)
 	}
 	if st.Table == nil && tot > p.val(c, stage, "max_loading")*capMol {
-		c.warn("the loaded metals pass the organic's working capacity (4 HA per M2+): raise O/A or the extractant's concentration")
+		c.warn("the loaded metals pass the organic's working capacity (4 HA per M2+): raise O/A or the " +
+			"extractant's concentration")
 	}
 }
 

@@ -61,7 +61,8 @@ func LoadTables(fsys fs.FS) (*Tables, error) {
 		return nil, err
 	}
 	t := &Tables{elements: es, params: map[string]Param{}, ksp: map[string]hydroxide{},
-		salts: map[string][][2]float64{}, saltSrc: map[string]string{}, reagents: map[string]Reagent{}, sx: map[string]sxMetal{}}
+		salts: map[string][][2]float64{}, saltSrc: map[string]string{}, reagents: map[string]Reagent{},
+		sx: map[string]sxMetal{}}
 	for _, read := range []func(fs.FS) error{t.readParams, t.readKsp, t.readSalts, t.readReagents, t.readSX} {
 		if err := read(fsys); err != nil {
 			return nil, err

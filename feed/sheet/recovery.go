@@ -35,7 +35,8 @@ func (w *writer) recoveryStyles() (recoveryStyles, error) {
 	st.pct = mk(&excelize.Style{CustomNumFmt: &p1})
 	st.money = mk(&excelize.Style{CustomNumFmt: &m2})
 	st.text = mk(&excelize.Style{Alignment: &excelize.Alignment{WrapText: true, Vertical: "top"}})
-	st.note = mk(&excelize.Style{Alignment: &excelize.Alignment{WrapText: true, Vertical: "top"}, Font: &excelize.Font{Size: 9}})
+	st.note = mk(&excelize.Style{Alignment: &excelize.Alignment{WrapText: true, Vertical: "top"},
+		Font: &excelize.Font{Size: 9}})
 	return st, err
 }
 

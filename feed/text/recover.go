@@ -30,7 +30,8 @@ func WriteRecovery(w io.Writer, r *recover.Report) {
 		if g.Litres != nil {
 			l = fmt.Sprintf("%s / %s L", Num(g.Litres.P50), Num(g.Litres.P90))
 		}
-		fmt.Fprintf(tw0, "  %s %g %%\t%s / %s kg (P50 / P90)\t%s\t\n", g.Name, g.WtPct, Num(g.Commercial.P50), Num(g.Commercial.P90), l)
+		fmt.Fprintf(tw0, "  %s %g %%\t%s / %s kg (P50 / P90)\t%s\t\n", g.Name, g.WtPct, Num(g.Commercial.P50),
+			Num(g.Commercial.P90), l)
 	}
 	tw0.Flush()
 	writeFatesText(w, r)
@@ -90,7 +91,8 @@ func writeStageText(w io.Writer, st recover.StageReport) {
 		if g.Litres != nil {
 			l = fmt.Sprintf(", %s L", Num(g.Litres.P50))
 		}
-		fmt.Fprintf(tw, "   reagent %s\t%s kg\tas bought %g %%: %s kg%s (P50)\t\n", g.Name, stat3(g.Kg), g.WtPct, Num(g.Commercial.P50), l)
+		fmt.Fprintf(tw, "   reagent %s\t%s kg\tas bought %g %%: %s kg%s (P50)\t\n", g.Name, stat3(g.Kg), g.WtPct,
+			Num(g.Commercial.P50), l)
 	}
 	for _, s := range st.Solids {
 		var parts []string
@@ -109,7 +111,8 @@ func writeStageText(w io.Writer, st recover.StageReport) {
 		fmt.Fprintf(tw, "   gas %s\t%s kg\t%s (P50, 0 °C, 1 atm)\t\n", g.Formula, stat3(g.Kg), fmtVolume(g.Litres.P50))
 	}
 	if st.KWh != nil {
-		fmt.Fprintf(tw, "   electricity\t%s kWh\t%s h at the current density and area given (P50)\t\n", stat3(*st.KWh), Num(st.Hours.P50))
+		fmt.Fprintf(tw, "   electricity\t%s kWh\t%s h at the current density and area given (P50)\t\n", stat3(*st.KWh),
+			Num(st.Hours.P50))
 	}
 	for _, f := range st.Figures {
 		fmt.Fprintf(tw, "   %s\t%s\t\t\n", f.Name, stat3(f.Value))
