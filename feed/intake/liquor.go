@@ -1,6 +1,7 @@
 package intake
 
 import (
+	"encoding/csv"
 	"errors"
 	"fmt"
 	"io"
@@ -50,10 +51,14 @@ func ReadLiquor(r io.Reader, name string) (*recover.Measured, error) {
 		if errors.Is(err, io.EOF) {
 			break
 		}
-		line, _ := cr.FieldPos(0)
 		if err != nil {
-			return nil, &Error{File: name, Line: line, Reason: err.Error()}
+			var pe *csv.ParseError
+			if errors.As(err, &pe) {
+				return nil, &Error{File: name, Line: data.ErrorLine(pe), Reason: pe.Err.Error()}
+			}
+			return nil, &Error{File: name, Reason: err.Error()}
 		}
+		line, _ := cr.FieldPos(0)
 		get := func(c string) string {
 			if i := col[c]; i < len(rec) {
 				return strings.TrimSpace(rec[i])

@@ -1,6 +1,7 @@
 package recover
 
 import (
+	"encoding/csv"
 	"errors"
 	"fmt"
 	"io"
@@ -44,10 +45,14 @@ func ParseDistribution(r io.Reader, name string) (*Distribution, error) {
 		if errors.Is(err, io.EOF) {
 			break
 		}
-		line, _ := cr.FieldPos(0)
 		if err != nil {
-			return nil, &FlowsheetError{File: name, Line: line, Err: err}
+			var pe *csv.ParseError
+			if errors.As(err, &pe) {
+				return nil, &FlowsheetError{File: name, Line: data.ErrorLine(pe), Err: pe.Err}
+			}
+			return nil, &FlowsheetError{File: name, Err: err}
 		}
+		line, _ := cr.FieldPos(0)
 		get := func(c string) string {
 			if i := col[c]; i < len(rec) {
 				return strings.TrimSpace(rec[i])
