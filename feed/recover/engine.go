@@ -246,7 +246,13 @@ func (c *ctx) cake(s *State, name string, ratio float64) {
 	for _, ph := range st.phases {
 		dry += st.phaseMol[ph][c.i] * c.t.molarMass(ph) / 1000
 	}
-	c.water(s, "cake moisture", -dry*(ratio-1))
+	moist := dry * (ratio - 1)
+	if moist > 0.9*s.WaterKg {
+		// A cake cannot take the liquor's water: hold it to a share and say so.
+		moist = 0.9 * s.WaterKg
+		c.warn(name + " would hold more water than the liquor has: the liquor is too concentrated for this stage")
+	}
+	c.water(s, "cake moisture", -moist)
 }
 
 // solidName opens a cake of the current stage before anything precipitates into it, so that a

@@ -102,3 +102,21 @@ func nonFinite(v reflect.Value, path string) string {
 	}
 	return ""
 }
+
+// A liquor far too strong (every metal at hundreds of g/L) still gives finite numbers, with warnings.
+func TestConcentratedLiquor(t *testing.T) {
+	t.Parallel()
+	g := map[string]float64{"Fe": 300, "Al": 200, "Ni": 300, "Co": 300, "Mn": 300, "Li": 100, "Cu": 100, "P": 100}
+	r := plan(t, liquor(30, 1, g, 5, 0, 2), recover.DefaultFlowsheet(), 30)
+	if p := nonFinite(reflect.ValueOf(r), "report"); p != "" {
+		t.Fatalf("non-finite %s", p)
+	}
+	for el, res := range r.BalanceResidual {
+		if !(res < 1e-3) {
+			t.Errorf("%s residual %g", el, res)
+		}
+	}
+	if len(r.Warnings) == 0 {
+		t.Error("no warning for a liquor this strong")
+	}
+}
