@@ -184,7 +184,11 @@ func (o *estimateOptions) runOptions() (*run.Tables, run.Options, error) {
 	if err != nil {
 		return nil, ro, err
 	}
-	ro = run.Options{Recover: fsheet, Seed: o.seed, Samples: o.samples, Leach: leachOpt, LeachPrices: o.leach.prices, Prices: prices, Containers: cs,
+	rp, err := o.recover.reagentPrices()
+	if err != nil {
+		return nil, ro, err
+	}
+	ro = run.Options{Recover: fsheet, RecoverPrices: rp, Seed: o.seed, Samples: o.samples, Leach: leachOpt, LeachPrices: o.leach.prices, Prices: prices, Containers: cs,
 		// Per-line detail is kept only for the outputs that print it (JSON and the workbook): the
 		// text report never does, and keeping it costs memory in proportion to the manifest.
 		KeepLines:      o.keepLines || (!o.noLines && (o.asJSON || o.xlsxPath != "")),

@@ -27,6 +27,7 @@ type recoverFlags struct {
 	coProduct string
 	niProduct string
 	liProduct string
+	prices    string // the recovery reagents' prices file
 }
 
 func (f *recoverFlags) bind(cmd *cobra.Command) {
@@ -39,11 +40,26 @@ func (f *recoverFlags) bind(cmd *cobra.Command) {
 	fl.StringVar(&f.coProduct, "co-product", "", "cobalt product: electrowin, hydroxide, carbonate, sulfate or oxalate")
 	fl.StringVar(&f.niProduct, "ni-product", "", "nickel product: electrowin, hydroxide, carbonate, sulfate or oxalate")
 	fl.StringVar(&f.liProduct, "li-product", "", "lithium product: carbonate or phosphate")
+	fl.StringVar(&f.prices, "recover-prices", "", "the recovery reagents' prices CSV (reagent, price_per_kg as bought, "+
+		"currency, source)")
+}
+
+// reagentPrices reads --recover-prices; nil without it.
+func (f *recoverFlags) reagentPrices() (*recover.ReagentPrices, error) {
+	if f.prices == "" {
+		return nil, nil
+	}
+	r, err := os.Open(f.prices)
+	if err != nil {
+		return nil, err
+	}
+	defer r.Close()
+	return intake.ReadReagentPrices(r, f.prices)
 }
 
 // set reports whether any recovery flag was given.
 func (f *recoverFlags) set() bool {
-	return f.on || f.file != "" || f.base != "" || f.mnOxidant != "" || f.coProduct != "" || f.niProduct != "" ||
+	return f.on || f.file != "" || f.prices != "" || f.base != "" || f.mnOxidant != "" || f.coProduct != "" || f.niProduct != "" ||
 		f.liProduct != ""
 }
 
@@ -172,7 +188,11 @@ func runRecover(cmd *cobra.Command, o *recoverCmdOptions, path string) error {
 	if err != nil {
 		return err
 	}
-	ro := run.Options{Seed: o.seed, Samples: o.samples, Recover: fsheet, Prices: prices,
+	rp, err := o.flags.reagentPrices()
+	if err != nil {
+		return err
+	}
+	ro := run.Options{Seed: o.seed, Samples: o.samples, Recover: fsheet, Prices: prices, RecoverPrices: rp,
 		Inputs: report.Inputs{Version: version}}
 	rep, err := run.RecoverLiquor(t, ro, m)
 	if err != nil {

@@ -71,6 +71,12 @@ func TestRecoverCommand(t *testing.T) {
 			t.Errorf("output lacks %q", want)
 		}
 	}
+	// Reagent prices: the cost and the net beside the products' value.
+	rp := filepath.Join("..", "..", "testdata", "recover", "reagent-prices-invented.csv")
+	code, out, errs = cli(t, "", "demo", "--recover", "--samples", "100", "--recover-prices", rp)
+	if code != 0 || !strings.Contains(out, "recovery reagents' cost") || !strings.Contains(out, "less the reagents' cost") {
+		t.Errorf("--recover-prices: exit %d, %s", code, errs)
+	}
 	// A distribution table beside the flowsheet file.
 	thio := filepath.Join("..", "..", "testdata", "recover", "thiocyanate.flowsheet")
 	code, out, errs = cli(t, "", "recover", liq, "--volume", "1200L", "--samples", "100", "--flowsheet", thio)

@@ -156,3 +156,45 @@ func liquorRow(m *recover.Measured, es *cathode.Elements, el, val, unit, name st
 	m.GPerL[el] = v
 	return nil
 }
+
+// ReadReagentPrices reads the recovery reagents' prices: columns reagent (as named in
+// recover_reagents.csv: NaOH, Na2CO3, KMnO4 ...), price_per_kg (per kg as bought), currency,
+// source. One currency; a reagent priced once.
+func ReadReagentPrices(r io.Reader, name string) (*recover.ReagentPrices, error) {
+	t, err := data.ParseTable(r, name)
+	if err != nil {
+		return nil, &Error{File: name, Reason: strings.TrimPrefix(err.Error(), name+": ")}
+	}
+	for _, c := range []string{"reagent", "price_per_kg", "currency"} {
+		if !t.Has(c) {
+			return nil, &Error{File: name, Line: 1, Reason: fmt.Sprintf("missing column %q (want reagent, price_per_kg, "+
+				"currency, source)", c)}
+		}
+	}
+	rp := &recover.ReagentPrices{File: name, PerKg: map[string]float64{}, Line: map[string]int{}}
+	for _, row := range t.Rows {
+		fail := func(col, val, reason string) error {
+			return &Error{File: name, Line: row.Line, Column: col, Value: val, Reason: reason}
+		}
+		g := row.Str("reagent")
+		if first, dup := rp.Line[g]; dup {
+			return nil, fail("reagent", g, fmt.Sprintf("priced twice (first on line %d)", first))
+		}
+		price, err := ParseNumber(row.Str("price_per_kg"), false)
+		if err != nil || price < 0 || price > maxPricePerKg {
+			return nil, fail("price_per_kg", row.Str("price_per_kg"), fmt.Sprintf("want a price from 0 to %g per kg",
+				float64(maxPricePerKg)))
+		}
+		cur := strings.ToUpper(row.Str("currency"))
+		if cur == "" || len(cur) > 8 {
+			return nil, fail("currency", row.Str("currency"), "want a currency code such as EUR or USD")
+		}
+		if rp.Currency == "" {
+			rp.Currency = cur
+		} else if cur != rp.Currency {
+			return nil, fail("currency", cur, fmt.Sprintf("every row must use one currency (the first row uses %s)", rp.Currency))
+		}
+		rp.PerKg[g], rp.Line[g] = price, row.Line
+	}
+	return rp, nil
+}

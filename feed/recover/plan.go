@@ -33,6 +33,8 @@ type Input struct {
 	Tables    *Tables
 	Draws     *dist.Drawer
 	Prices    *ProductPrices
+	// ReagentPrices price the recovery's reagents as bought; nil leaves the cost out.
+	ReagentPrices *ReagentPrices
 }
 
 // ProductPrices are prices per kg of product (keys: Li2CO3, Li3PO4, Co, Ni, CoSO4·7H2O,
@@ -97,6 +99,11 @@ func Plan(in Input) (*Report, error) {
 	}
 	if err := checkLiquor(lq, n); err != nil {
 		return nil, err
+	}
+	if in.ReagentPrices != nil {
+		if err := in.ReagentPrices.check(in.Tables, in.Prices); err != nil {
+			return nil, err
+		}
 	}
 	p := &planner{t: in.Tables, d: in.Draws, n: n, anion: lq.Anion, seen: map[string]bool{}}
 	if p.anion != "SO4" && p.anion != "Cl" {

@@ -30,6 +30,7 @@ type Report struct {
 	Water         []Flow        `json:"water_balance_kg"`
 	WaterResidual float64       `json:"water_balance_max_relative_residual"`
 	Value         *ProductValue `json:"value,omitempty"`
+	Cost          *ReagentCost  `json:"reagent_cost,omitempty"`
 	GasReference  string        `json:"gas_reference"`
 	Parameters    []dist.Param  `json:"parameters"`
 	Warnings      []string      `json:"warnings,omitempty"`
@@ -196,7 +197,9 @@ func (p *planner) report(in Input, tallies []*tally, res *results) *Report {
 	for _, st := range in.Flowsheet.Steps {
 		r.Flowsheet = append(r.Flowsheet, st.String())
 	}
-	r.Value = p.value(in.Prices, r.Products, tallies, in.Flowsheet)
+	var valueDraws []float64
+	r.Value, valueDraws = p.value(in.Prices, r.Products, tallies, in.Flowsheet)
+	r.Cost = p.cost(in.ReagentPrices, tallies, valueDraws)
 	sort.SliceStable(p.params, func(i, j int) bool { return p.params[i].Scope < p.params[j].Scope })
 	r.Parameters = p.params
 	for _, sr := range r.Stages {
@@ -384,9 +387,9 @@ func (p *planner) solid(stage string, st *solidTally) (Solid, bool) {
 }
 
 // value prices the products: a product is priced by its name, or by its main phase.
-func (p *planner) value(pr *ProductPrices, products []Solid, tallies []*tally, fs Flowsheet) *ProductValue {
+func (p *planner) value(pr *ProductPrices, products []Solid, tallies []*tally, fs Flowsheet) (*ProductValue, []float64) {
 	if pr == nil {
-		return nil
+		return nil, nil
 	}
 	v := &ProductValue{Currency: pr.Currency}
 	total := make([]float64, p.n)
@@ -417,7 +420,7 @@ func (p *planner) value(pr *ProductPrices, products []Solid, tallies []*tally, f
 		}
 	}
 	v.Total = dist.Summarise(total)
-	return v
+	return v, total
 }
 
 // productKey is the price list's name of a product: "Co cathode" and "Cu cement" are priced as

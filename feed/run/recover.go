@@ -21,7 +21,7 @@ func planRecovery(t *Tables, o Options, r *report.Report) error {
 	}
 	lq := LiquorFromLeach(r.Leach.LiquorSamples)
 	rec, err := recover.Plan(recover.Input{Liquor: lq, Flowsheet: *o.Recover, Tables: t.Recover,
-		Draws: dist.NewDrawer(o.Seed, len(lq.VolumeL)), Prices: ProductPrices(o.Prices)})
+		Draws: dist.NewDrawer(o.Seed, len(lq.VolumeL)), Prices: ProductPrices(o.Prices), ReagentPrices: o.RecoverPrices})
 	if err != nil {
 		return err
 	}
@@ -69,7 +69,7 @@ func RecoverLiquor(t *Tables, o Options, m *recover.Measured) (*report.LiquorRep
 		fs = *o.Recover
 	}
 	rec, err := recover.Plan(recover.Input{Liquor: m.Samples(o.Samples), Flowsheet: fs, Tables: t.Recover,
-		Draws: dist.NewDrawer(o.Seed, o.Samples), Prices: ProductPrices(o.Prices)})
+		Draws: dist.NewDrawer(o.Seed, o.Samples), Prices: ProductPrices(o.Prices), ReagentPrices: o.RecoverPrices})
 	if err != nil {
 		return nil, err
 	}

@@ -55,6 +55,8 @@ type Options struct {
 	Mix       *MixOptions
 	// Recover takes the leach liquor through a flowsheet of recovery stages; nil leaves it out.
 	Recover *recover.Flowsheet
+	// RecoverPrices price the recovery's reagents (nil: no cost).
+	RecoverPrices *recover.ReagentPrices
 }
 
 // MixOptions are the settings of the mix inference: the candidate chemistries (nil: the lot's

@@ -79,6 +79,19 @@ func (w *writer) recovery() error {
 		}
 		rw.stat(fmt.Sprintf("%s %g %%", g.Name, g.WtPct), g.Commercial, "kg", note, st.num)
 	}
+	if c := rec.Cost; c != nil {
+		for _, it := range c.Items {
+			rw.stat("cost of "+it.Name, it.Kg, c.Currency, "", st.money)
+		}
+		note := ""
+		if len(c.Unpriced) > 0 {
+			note = "without " + strings.Join(c.Unpriced, ", ") + ": no price given"
+		}
+		rw.stat("recovery reagents' cost", c.Total, c.Currency, note, st.money)
+		if c.Net != nil {
+			rw.stat("products' value less the reagents' cost", *c.Net, c.Currency, "", st.money)
+		}
+	}
 	rw.fates(rec)
 	rw.section("Water balance (+ into the solution, − out of it)")
 	for _, f := range rec.Water {

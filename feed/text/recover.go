@@ -34,6 +34,19 @@ func WriteRecovery(w io.Writer, r *recover.Report) {
 			Num(g.Commercial.P90), l)
 	}
 	tw0.Flush()
+	if c := r.Cost; c != nil {
+		for _, it := range c.Items {
+			fmt.Fprintf(w, "  cost of %s: %s %s\n", it.Name, stat3(it.Kg), c.Currency)
+		}
+		fmt.Fprintf(w, "  recovery reagents' cost: %s %s", stat3(c.Total), c.Currency)
+		if len(c.Unpriced) > 0 {
+			fmt.Fprintf(w, " (without %s: no price given)", strings.Join(c.Unpriced, ", "))
+		}
+		fmt.Fprintln(w)
+		if c.Net != nil {
+			fmt.Fprintf(w, "  products' value less the reagents' cost: %s %s\n", stat3(*c.Net), c.Currency)
+		}
+	}
 	writeFatesText(w, r)
 	fmt.Fprintln(w, "\nwater balance (kg, + into the solution, - out of it):")
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
@@ -77,6 +90,9 @@ func writeRecoverySummary(w io.Writer, r *recover.Report) {
 	fmt.Fprintf(w, "recovery: %s (P50)", strings.Join(parts, ", "))
 	if v := r.Value; v != nil {
 		fmt.Fprintf(w, "; products' value %s %s", Money(v.Total.P50), v.Currency)
+	}
+	if c := r.Cost; c != nil {
+		fmt.Fprintf(w, "; reagents' cost %s %s", Money(c.Total.P50), c.Currency)
 	}
 	fmt.Fprintln(w)
 }
