@@ -53,3 +53,20 @@ func TestReadLiquor(t *testing.T) {
 		}
 	}
 }
+
+func TestReadReagentPrices(t *testing.T) {
+	rp, err := intake.ReadReagentPrices(strings.NewReader("reagent,price_per_kg,currency,source\nNaOH,0.45,eur,x\nKMnO4,4,EUR,y\n"), "p.csv")
+	if err != nil || rp.PerKg["NaOH"] != 0.45 || rp.Currency != "EUR" || rp.Line["KMnO4"] != 3 {
+		t.Fatalf("%+v %v", rp, err)
+	}
+	for _, c := range []struct{ in, want string }{
+		{"reagent,price_per_kg,source\nNaOH,1,x\n", "p.csv:1: missing column \"currency\""},
+		{"reagent,price_per_kg,currency,source\nNaOH,1,EUR,x\nNaOH,2,EUR,x\n", "p.csv:3: reagent \"NaOH\": priced twice"},
+		{"reagent,price_per_kg,currency,source\nNaOH,-1,EUR,x\n", "p.csv:2: price_per_kg \"-1\""},
+		{"reagent,price_per_kg,currency,source\nNaOH,1,EUR,x\nKMnO4,1,USD,x\n", "p.csv:3: currency \"USD\""},
+	} {
+		if _, err := intake.ReadReagentPrices(strings.NewReader(c.in), "p.csv"); err == nil || !strings.Contains(err.Error(), c.want) {
+			t.Errorf("%q: %v, want %q", c.in, err, c.want)
+		}
+	}
+}
