@@ -39,6 +39,7 @@ type estimateOptions struct {
 	lotID     string
 	supplier  string
 	leach     leachFlags
+	recover   recoverFlags
 	xlsxPath  string
 	force     bool
 	prices    string
@@ -74,6 +75,7 @@ func (o *estimateOptions) bind(cmd *cobra.Command) {
 	_ = cmd.RegisterFlagCompletionFunc("paper", cobra.FixedCompletions([]string{"a4", "letter"}, cobra.ShellCompDirectiveNoFileComp))
 	fl.StringVar(&o.prices, "prices", "", "prices CSV (item, basis, price_per_kg, currency, payable, source): adds the lot's value")
 	o.leach.bind(cmd)
+	o.recover.bind(cmd)
 }
 
 func newEstimateCmd() *cobra.Command {
@@ -192,7 +194,15 @@ func (o *estimateOptions) runOptions() (*run.Tables, run.Options, error) {
 	if err != nil {
 		return nil, ro, err
 	}
-	ro = run.Options{Seed: o.seed, Samples: o.samples, Leach: leachOpt, LeachPrices: o.leach.prices, Prices: prices, Containers: cs,
+	fsheet, err := o.recover.flowsheet()
+	if err != nil {
+		return nil, ro, err
+	}
+	rp, err := o.recover.reagentPrices()
+	if err != nil {
+		return nil, ro, err
+	}
+	ro = run.Options{Recover: fsheet, RecoverPrices: rp, Seed: o.seed, Samples: o.samples, Leach: leachOpt, LeachPrices: o.leach.prices, Prices: prices, Containers: cs,
 		// Per-line detail is kept only for the outputs that print it (JSON and the workbook): the
 		// text report never does, and keeping it costs memory in proportion to the manifest.
 		KeepLines:      o.keepLines || (!o.noLines && (o.asJSON || o.xlsxPath != "")),

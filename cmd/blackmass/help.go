@@ -16,6 +16,8 @@ var flagGroups = []struct {
 	{"Model", []string{"seed", "samples", "candidates", "bootstrap", "flag-sigma", "calibrated", "db"}},
 	{"Leach", []string{"plan", "route", "acid-strength", "acid-excess", "free-acid", "acid-molarity", "reductant", "h2o2-strength", "h2o2-excess",
 		"h2o2-vol-pct", "reductant-g-per-l", "temperature", "pulp-density", "liquor-volume", "grow-volume", "extraction"}},
+	{"Recovery", []string{"recover", "flowsheet", "volume", "recover-base", "mn-oxidant", "co-product", "ni-product", "li-product",
+		"recover-prices"}},
 	{"Costs and value", []string{"acid-price", "h2o2-price", "currency", "containers", "prices"}},
 	{"Output", []string{"json", "quiet", "no-lines", "xlsx", "paper", "force"}},
 }

@@ -90,7 +90,7 @@ toxic gases (H2, Cl2, HF) are hazards: follow local codes, safety data sheets an
 	}
 	root.SetVersionTemplate("{{.Name}} {{.Version}}\n")
 	root.SetUsageTemplate(usageTemplate)
-	root.AddCommand(newChemCmd(), newEstimateCmd(), newDemoCmd(), newQuoteCmd(), newReconcileCmd(), newInferCmd(), newLotCmd(), newCalibrateCmd())
+	root.AddCommand(newChemCmd(), newEstimateCmd(), newDemoCmd(), newQuoteCmd(), newReconcileCmd(), newInferCmd(), newLotCmd(), newCalibrateCmd(), newRecoverCmd())
 	markUsageErrors(root)
 	return root
 }

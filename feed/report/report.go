@@ -9,6 +9,7 @@ import (
 	"blackmass/feed/dist"
 	"blackmass/feed/leach"
 	"blackmass/feed/lot"
+	"blackmass/feed/recover"
 	"blackmass/feed/value"
 )
 
@@ -43,6 +44,8 @@ type Report struct {
 	Leach       *leach.Report          `json:"leach,omitempty"`
 	// Value is the lot's worth at the prices given; nil when no prices were given.
 	Value *value.Value `json:"value,omitempty"`
+	// Recovery is the plan of the stages after the leach; nil when none was asked for.
+	Recovery *recover.Report `json:"recovery,omitempty"`
 	// Order is what to order for the leach, in the containers named.
 	Order *value.OrderSheet `json:"order,omitempty"`
 	// Assay, Reconciliation and Mix are present when a lab assay was given.

@@ -44,5 +44,8 @@ func Quote(t *Tables, o Options, a *assay.Assay, qo assay.QuoteOptions) (*report
 			return nil, err
 		}
 	}
+	if err := planRecovery(t, o, r); err != nil {
+		return nil, err
+	}
 	return finish(r, o)
 }

@@ -17,6 +17,7 @@ import (
 	"blackmass/feed/leach"
 	"blackmass/feed/lot"
 	"blackmass/feed/manifest"
+	"blackmass/feed/recover"
 	"blackmass/feed/report"
 	"blackmass/feed/value"
 )
@@ -62,6 +63,10 @@ type Options struct {
 	// names it; without it nothing is scaled.
 	Calibration       *calibrate.Calibration
 	CalibrationSource string
+	// Recover takes the leach liquor through a flowsheet of recovery stages; nil leaves it out.
+	Recover *recover.Flowsheet
+	// RecoverPrices price the recovery's reagents (nil: no cost).
+	RecoverPrices *recover.ReagentPrices
 }
 
 // MixOptions are the settings of the mix inference: the candidate chemistries (nil: the lot's
@@ -108,6 +113,14 @@ func (o *Options) Validate() error {
 	}
 	if o.Assay != nil && !(o.FlagSigma > 0) {
 		return optionErr("flag-sigma", "the reconciliation threshold is a positive number of standard uncertainties, got %g", o.FlagSigma)
+	}
+	if o.Recover != nil {
+		if o.Leach == nil {
+			return optionErr("recover", "recovery takes the leach's liquor: plan the leach too")
+		}
+		if err := o.Recover.Validate(); err != nil {
+			return err
+		}
 	}
 	if o.Mix != nil && o.Mix.Bootstrap < 1 {
 		return optionErr("bootstrap", "the mix inference needs bootstrap draws, got %d", o.Mix.Bootstrap)
@@ -186,6 +199,9 @@ func Estimate(t *Tables, o Options, m Manifest) (*report.Report, error) {
 				return nil, err
 			}
 		}
+	}
+	if err := planRecovery(t, o, r); err != nil {
+		return nil, err
 	}
 	return finish(r, o)
 }

@@ -7,6 +7,7 @@ import (
 	"blackmass/data"
 	"blackmass/feed/leach"
 	"blackmass/feed/lot"
+	"blackmass/feed/recover"
 )
 
 // Tables are every reference table an estimate uses, loaded together from one fs.FS: the
@@ -18,6 +19,7 @@ type Tables struct {
 	Catalogue *cathode.Catalogue
 	Model     *lot.Model
 	Leach     *leach.Tables
+	Recover   *recover.Tables
 }
 
 // LoadTables reads every table from fsys.
@@ -34,7 +36,11 @@ func LoadTables(fsys fs.FS) (*Tables, error) {
 	if err != nil {
 		return nil, err
 	}
-	return &Tables{Catalogue: cat, Model: m, Leach: lt}, nil
+	rt, err := recover.LoadTables(fsys)
+	if err != nil {
+		return nil, err
+	}
+	return &Tables{Catalogue: cat, Model: m, Leach: lt, Recover: rt}, nil
 }
 
 // DefaultTables reads the embedded tables. It reads them afresh at each call: a command calls it

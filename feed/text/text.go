@@ -48,6 +48,7 @@ func Write(w io.Writer, r *report.Report, command string, quiet bool) {
 		writeGroupsText(w, r)
 	}
 	writeLeachText(w, r)
+	WriteRecovery(w, r.Recovery)
 	writeOrderText(w, r.Order)
 	writeValueText(w, r)
 	writeTail(w, r)
@@ -159,10 +160,16 @@ func writeSummaryText(w io.Writer, r *report.Report, command string) {
 	if v := r.Value; v != nil {
 		fmt.Fprintf(w, "value: payable %s %s (P10–P90 %s–%s), prices from %s\n", Money(v.Payable.P50), v.Currency, Money(v.Payable.P10), Money(v.Payable.P90), intake.Printable(v.PricesFile, 100))
 	}
+	writeRecoverySummary(w, r.Recovery)
 	var warn []string
 	warn = append(warn, r.Warnings...)
 	if r.Leach != nil {
 		warn = append(warn, r.Leach.Warnings...)
+	}
+	if r.Recovery != nil {
+		for _, s := range r.Recovery.Warnings {
+			warn = append(warn, "recovery "+s)
+		}
 	}
 	if len(warn) > 0 {
 		fmt.Fprintln(w, "warnings:")

@@ -1,0 +1,83 @@
+package run
+
+import (
+	"errors"
+
+	"blackmass/feed/dist"
+	"blackmass/feed/leach"
+	"blackmass/feed/recover"
+	"blackmass/feed/report"
+	"blackmass/feed/value"
+)
+
+// planRecovery takes the leach's per-sample liquor through the flowsheet of o.Recover, when one
+// is given, on the run's seed.
+func planRecovery(t *Tables, o Options, r *report.Report) error {
+	if o.Recover == nil {
+		return nil
+	}
+	if r.Leach == nil || r.Leach.LiquorSamples == nil {
+		return errors.New("recovery needs the leach's liquor: the leach was not planned")
+	}
+	lq := LiquorFromLeach(r.Leach.LiquorSamples)
+	rec, err := recover.Plan(recover.Input{Liquor: lq, Flowsheet: *o.Recover, Tables: t.Recover,
+		Draws: dist.NewDrawer(o.Seed, len(lq.VolumeL)), Prices: ProductPrices(o.Prices), ReagentPrices: o.RecoverPrices})
+	if err != nil {
+		return err
+	}
+	r.Recovery = rec
+	return nil
+}
+
+// LiquorFromLeach is the leach's per-sample liquor as the recovery planner reads it.
+func LiquorFromLeach(ls *leach.LiquorSamples) recover.Liquor {
+	return recover.Liquor{VolumeL: ls.VolumeL, WaterKg: ls.WaterKg, ElementKg: ls.ElementKg, FreeAcidMol: ls.FreeAcidMol,
+		Fe3Kg: ls.Fe3Kg, Anion: ls.Anion, AnionMol: ls.AnionMol}
+}
+
+// ProductPrices prices the recovery's products from a price list: Co, Ni and Cu metal at their
+// metal price, Li2CO3 at lithium's price per kg of lithium carbonate equivalent. Salts and
+// hydroxides have no price of their own in a price list by metal, and stay unpriced.
+func ProductPrices(pl *value.PriceList) *recover.ProductPrices {
+	if pl == nil {
+		return nil
+	}
+	pp := &recover.ProductPrices{Currency: pl.Currency, PerKg: map[string]float64{}}
+	for _, p := range pl.Prices {
+		switch {
+		case p.Element == "Li" && p.Basis == value.BasisLCE:
+			pp.PerKg["Li2CO3"] = p.PerKg
+		case (p.Element == "Co" || p.Element == "Ni" || p.Element == "Cu") && p.Basis == value.BasisMetal:
+			pp.PerKg[p.Element] = p.PerKg
+		}
+	}
+	return pp
+}
+
+// RecoverLiquor plans the recovery of a measured liquor with the flowsheet of o.Recover (the
+// default when nil), over o.Samples draws of the stages' parameters on o.Seed.
+func RecoverLiquor(t *Tables, o Options, m *recover.Measured) (*report.LiquorReport, error) {
+	if o.Samples < 1 || o.Samples > 200_000 {
+		return nil, optionErr("samples", "samples must be from 1 to 200000, got %d", o.Samples)
+	}
+	if !(m.VolumeL > 0) {
+		return nil, optionErr("volume", "%s: a liquor without a volume cannot be planned: give --volume (e.g. 1200L) "+
+			"or a volume row", m.File)
+	}
+	fs := recover.DefaultFlowsheet()
+	if o.Recover != nil {
+		fs = *o.Recover
+	}
+	rec, err := recover.Plan(recover.Input{Liquor: m.Samples(o.Samples), Flowsheet: fs, Tables: t.Recover,
+		Draws: dist.NewDrawer(o.Seed, o.Samples), Prices: ProductPrices(o.Prices), ReagentPrices: o.RecoverPrices})
+	if err != nil {
+		return nil, err
+	}
+	in := o.Inputs
+	in.File, in.Seed, in.Samples = m.File, o.Seed, o.Samples
+	r := &report.LiquorReport{Inputs: in, Liquor: m, Recovery: rec}
+	if err := r.CheckFinite(); err != nil {
+		return nil, err
+	}
+	return r, nil
+}
