@@ -173,6 +173,13 @@ func TestEstimateCalibrated(t *testing.T) {
 	if w := cal["warnings"].([]any)[0].(string); !strings.HasPrefix(w, "calibrated:") {
 		t.Errorf("first warning %q", w)
 	}
+	plan := filepath.Join(t.TempDir(), "cal.plan")
+	if err := os.WriteFile(plan, []byte("# the bench's calibrated plan (invented)\ncalibrated = 1\ndb = "+db+"\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	if _, c, errs := cli(t, "", "demo", "--json", "--samples", "300", "--no-lines", "--plan", plan); c != a {
+		t.Errorf("a plan's calibrated and db keys do not give what the flags give: %s", errs)
+	}
 	if _, ok := plain["calibration"]; ok {
 		t.Error("an uncalibrated report names a calibration")
 	}

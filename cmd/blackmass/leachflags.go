@@ -29,10 +29,11 @@ type leachFlags struct {
 	fromPlan   map[string]bool // keys the plan file set
 }
 
-// planKeys are the flags a plan file may set.
+// planKeys are the flags a plan file may set ("calibrated" and "db" name a register's
+// calibration, on the commands that take one).
 var planKeys = []string{"route", "acid-strength", "h2o2-strength", "acid-excess", "free-acid", "h2o2-excess", "pulp-density",
 	"liquor-volume", "acid-molarity", "h2o2-vol-pct", "acid-price", "h2o2-price", "reductant", "reductant-g-per-l", "temperature",
-	"grow-volume", "extraction", "prices", "currency", "containers"}
+	"grow-volume", "extraction", "prices", "currency", "containers", "calibrated", "db"}
 
 func (l *leachFlags) bind(cmd *cobra.Command) {
 	d := leach.DefaultOptions()
