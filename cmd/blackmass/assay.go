@@ -203,10 +203,7 @@ func runReconcile(w io.Writer, o *reconcileOptions, name string, in io.Reader, a
 		return err
 	}
 	ro.Assay, ro.FlagSigma = a, o.threshold
-	scratch, done := scratchDir()
-	defer done()
-	ro.TempDir = scratch
-	rep, err := run.Estimate(t, ro, run.Manifest{Name: name, R: in})
+	rep, err := estimate(t, ro, run.Manifest{Name: name, R: in})
 	if err != nil {
 		return err
 	}

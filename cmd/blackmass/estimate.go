@@ -156,10 +156,7 @@ func runEstimate(w io.Writer, o *estimateOptions, name string, in io.Reader) err
 	if err != nil {
 		return err
 	}
-	scratch, done := scratchDir()
-	defer done()
-	ro.TempDir = scratch
-	rep, err := run.Estimate(t, ro, run.Manifest{Name: name, R: in})
+	rep, err := estimate(t, ro, run.Manifest{Name: name, R: in})
 	if err != nil {
 		return err
 	}

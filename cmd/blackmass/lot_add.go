@@ -59,10 +59,7 @@ func runLotAdd(w io.Writer, lo *lotOptions, o *estimateOptions, path, received s
 	if err != nil {
 		return err
 	}
-	scratch, done := scratchDir()
-	defer done()
-	ro.TempDir = scratch
-	rep, err := run.Estimate(t, ro, run.Manifest{Name: path, R: bytes.NewReader(b)})
+	rep, err := estimate(t, ro, run.Manifest{Name: path, R: bytes.NewReader(b)})
 	if err != nil {
 		return err
 	}

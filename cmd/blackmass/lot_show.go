@@ -4,7 +4,6 @@ import (
 	"context"
 	"fmt"
 	"io"
-	"slices"
 	"text/tabwriter"
 
 	"github.com/spf13/cobra"
@@ -51,7 +50,7 @@ func runLotShow(w io.Writer, lo *lotOptions, id string) error {
 			text.Num(dm.MoistureWtPct), dm.MoistureFrom, text.Num(dm.Kg), text.Num(dm.SigmaKg))
 	}
 	fmt.Fprintln(w)
-	els := showElements(ev)
+	els := ev.PayableFirst(value.PayableMetals())
 	fmt.Fprintln(w, "\nmetal in kg: the lot's figure, the measurement (assay × dry mass) and the estimate")
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
 	fmt.Fprintln(tw, "metal\tbasis\tkg\tmeasured kg\t± kg\testimate kg P10\tP50\tP90\tmeasured/estimate\t")
@@ -102,20 +101,6 @@ func basisText(basis string) string {
 		return "assay × dry weighed mass where assayed, the estimate elsewhere"
 	}
 	return "the estimate (no assay with a dry weighed mass)"
-}
-
-// showElements are the payable metals, then every other element assayed.
-func showElements(ev register.Evidence) []register.ElementEvidence {
-	var out []register.ElementEvidence
-	for _, el := range value.PayableMetals() {
-		out = append(out, ev.Element(el))
-	}
-	for _, e := range ev.Elements {
-		if e.Assay != nil && !slices.Contains(value.PayableMetals(), e.Element) {
-			out = append(out, e)
-		}
-	}
-	return out
 }
 
 // showRecords lists a lot's assays, weighings and audit trail.

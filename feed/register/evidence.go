@@ -241,6 +241,21 @@ func (ev Evidence) Element(el string) ElementEvidence {
 	return ElementEvidence{Element: el, Basis: BasisEstimate}
 }
 
+// PayableFirst lists the elements to show: each of the payable metals (in their order, assayed
+// or not), then every other element assayed.
+func (ev Evidence) PayableFirst(payable []string) []ElementEvidence {
+	out := make([]ElementEvidence, 0, len(payable))
+	for _, el := range payable {
+		out = append(out, ev.Element(el))
+	}
+	for _, e := range ev.Elements {
+		if e.Assay != nil && !slices.Contains(payable, e.Element) {
+			out = append(out, e)
+		}
+	}
+	return out
+}
+
 // massOf is the metal in the dry mass for a dry-basis wt% and its standard uncertainty.
 func massOf(wtPct, sigmaWtPct float64, dm *DryMass) (kg, sigmaKg float64) {
 	w, sw := wtPct/100, sigmaWtPct/100

@@ -4,7 +4,6 @@ import (
 	"fmt"
 	"io"
 	"math"
-	"slices"
 	"strconv"
 	"strings"
 	"time"
@@ -163,7 +162,7 @@ func MetalsTable(lots []register.Summary) ([]Column, [][]any) {
 		{"estimate wt% P50", KindPct}, {"payable value", KindMoney}}
 	var rows [][]any
 	for _, l := range lots {
-		for _, e := range metalsOf(l.Evidence) {
+		for _, e := range l.Evidence.PayableFirst(value.PayableMetals()) {
 			row := []any{l.ID, e.Element, e.Basis, e.Kg}
 			if m := e.Measured; m != nil {
 				row = append(row, m.Kg, m.SigmaKg, m.MinKg, m.MaxKg)
@@ -187,20 +186,6 @@ func MetalsTable(lots []register.Summary) ([]Column, [][]any) {
 		}
 	}
 	return cols, rows
-}
-
-// metalsOf is every payable metal, then every other element assayed.
-func metalsOf(ev register.Evidence) []register.ElementEvidence {
-	var out []register.ElementEvidence
-	for _, el := range value.PayableMetals() {
-		out = append(out, ev.Element(el))
-	}
-	for _, e := range ev.Elements {
-		if e.Assay != nil && !slices.Contains(value.PayableMetals(), e.Element) {
-			out = append(out, e)
-		}
-	}
-	return out
 }
 
 // WriteRegister writes the register's export as a workbook of two sheets, the lots and their
