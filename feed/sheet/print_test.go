@@ -15,7 +15,7 @@ import (
 )
 
 // landscapeSheets are the sheets printed in landscape; the others are portrait.
-var landscapeSheets = map[string]bool{sheet.Lines: true, sheet.Leach: true, sheet.ValueSheet: true, sheet.AssaySheet: true}
+var landscapeSheets = map[string]bool{sheet.Leach: true, sheet.ValueSheet: true, sheet.AssaySheet: true}
 
 // titledSheets hold one table that may run over pages, so they repeat its header row; the
 // others hold short tables, each kept on one page.
