@@ -242,6 +242,11 @@ func calibrationCharts(f *excelize.File, o *calibrate.Outcome, spans []span, at 
 				return err
 			}
 		}
+		for col, v := range map[string]float64{"K": lo, "L": hi} {
+			if st, err := f.NewStyle(&excelize.Style{CustomNumFmt: ptr(sigFmt(v))}); err == nil {
+				_ = f.SetCellStyle(CalibrationLots, fmt.Sprintf("%s%d", col, r), fmt.Sprintf("%s%d", col, r), st)
+			}
+		}
 		ref := func(col string) string {
 			return fmt.Sprintf("'%s'!$%s$%d:$%s$%d", CalibrationLots, col, sp.first, col, sp.last)
 		}

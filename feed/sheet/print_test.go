@@ -250,3 +250,63 @@ func rowBreaks(t *testing.T, xlsx []byte, f *excelize.File) map[string]map[int]b
 	}
 	return out
 }
+
+// The register's export and the calibration workbook print as the intake workbook does: A4 in
+// their orientation, one page wide at 100 % (the printed columns fit between the margins), the
+// header row repeated on every page of a long table, page numbers in the header or footer, a
+// number format on every number, no font under 8 pt and no text cut by a filled neighbour.
+func TestPrintPackRegisterAndCalibration(t *testing.T) {
+	var reg, cal bytes.Buffer
+	if err := sheet.WriteRegister(&reg, sheet.RegisterLots()); err != nil {
+		t.Fatal(err)
+	}
+	if err := sheet.WriteCalibration(&cal, sheet.CalibrationOutcome(t)); err != nil {
+		t.Fatal(err)
+	}
+	for _, wb := range []struct {
+		name      string
+		xlsx      []byte
+		landscape bool
+		titled    map[string]bool
+	}{
+		{"register", reg.Bytes(), true, map[string]bool{sheet.RegisterSheet: true, sheet.RegisterMetalsSheet: true}},
+		{"calibration", cal.Bytes(), false, map[string]bool{sheet.CalibrationLots: true}},
+	} {
+		f, err := excelize.OpenReader(bytes.NewReader(wb.xlsx))
+		if err != nil {
+			t.Fatal(err)
+		}
+		titles, areas := map[string]bool{}, map[string]string{}
+		for _, n := range f.GetDefinedName() {
+			switch n.Name {
+			case "_xlnm.Print_Titles":
+				titles[n.Scope] = strings.HasSuffix(n.RefersTo, "!$1:$1")
+			case "_xlnm.Print_Area":
+				areas[n.Scope] = n.RefersTo
+			}
+		}
+		want := "portrait"
+		if wb.landscape {
+			want = "landscape"
+		}
+		for _, s := range f.GetSheetList() {
+			pl, _ := f.GetPageLayout(s)
+			if pl.Size == nil || *pl.Size != sheet.PaperA4 || pl.Orientation == nil || *pl.Orientation != want ||
+				pl.FitToWidth == nil || *pl.FitToWidth != 1 || pl.FitToHeight == nil || *pl.FitToHeight != 0 {
+				t.Errorf("%s %s: page layout %+v, want A4 %s one page wide", wb.name, s, pl, want)
+			}
+			if pr, _ := f.GetSheetProps(s); pr.FitToPage == nil || !*pr.FitToPage {
+				t.Errorf("%s %s: not fitted to the page width", wb.name, s)
+			}
+			if hf, _ := f.GetHeaderFooter(s); hf == nil || !strings.Contains(hf.OddHeader+hf.OddFooter, "Page &P of &N") {
+				t.Errorf("%s %s: header and footer %+v lack the page number", wb.name, s, hf)
+			}
+			if titles[s] != wb.titled[s] {
+				t.Errorf("%s %s: header row repeated %v, want %v", wb.name, s, titles[s], wb.titled[s])
+			}
+			checkWidth(t, f, s, sheet.PaperA4, wb.landscape, areas[s])
+			checkCells(t, f, s)
+		}
+		f.Close()
+	}
+}

@@ -159,7 +159,7 @@ func LotsTable(lots []register.Summary) ([]Column, [][]any) {
 func MetalsTable(lots []register.Summary) ([]Column, [][]any) {
 	cols := []Column{{"lot", KindText}, {"element", KindText}, {"basis", KindText}, {"kg", KindKg}, {"measured kg", KindKg},
 		{"measured sd kg", KindKg}, {"measured min kg", KindKg}, {"measured max kg", KindKg}, {"estimate kg P10", KindKg},
-		{"estimate kg P50", KindKg}, {"estimate kg P90", KindKg}, {"measured/estimate", KindRatio}, {"assay wt%", KindPct},
+		{"estimate kg P50", KindKg}, {"estimate kg P90", KindKg}, {"measured / estimate", KindRatio}, {"assay wt%", KindPct},
 		{"assay sd wt%", KindPct}, {"below limit", KindText}, {"assays", KindInt}, {"assays disagree", KindText},
 		{"estimate wt% P50", KindPct}, {"payable value", KindMoney}}
 	var rows [][]any
@@ -278,7 +278,7 @@ func metalsSheet(lots []register.Summary) ([]Column, [][]any, int) {
 // mass and payable metals on their best evidence, and its value. The rest follow them in the
 // file, out of the print area.
 func lotsPrinted() []string {
-	heads := []string{"lot", "received", "supplier", "items", "basis", "estimate black mass kg (P50)", "weighed kg",
+	heads := []string{"lot", "received", "supplier", "basis", "estimate black mass kg (P50)",
 		"dry black mass kg"}
 	for _, el := range value.PayableMetals() {
 		heads = append(heads, el+" kg")
@@ -288,7 +288,7 @@ func lotsPrinted() []string {
 
 // metalsPrinted are the metals sheet's columns that print, in their order.
 var metalsPrinted = []string{"lot", "element", "basis", "kg", "measured kg", "measured sd kg", "estimate kg P10",
-	"estimate kg P50", "estimate kg P90", "measured/estimate", "assay wt%", "estimate wt% P50", "payable value"}
+	"estimate kg P50", "estimate kg P90", "measured / estimate", "assay wt%", "payable value"}
 
 // printedFirst moves the columns headed printed to the front, in that order, the others after
 // them in theirs, and says how many print.
@@ -334,9 +334,9 @@ func streamTable(f *excelize.File, sheet string, cols []Column, rows [][]any, pr
 		for _, word := range strings.Fields(c.Head) {
 			w = max(w, utf8.RuneCountInString(word))
 		}
-		w = max(w, min(utf8.RuneCountInString(c.Head), 12)) // a short header stays on one line
-		w += (w + 4) / 5                                    // the header is bold: a fifth wider
-		least[j] = w
+		least[j] = w + (w+4)/5                              // the header's longest word, bold: a fifth wider
+		w = max(w, min(utf8.RuneCountInString(c.Head), 12)) // a short header stays on one line if it can
+		w += (w + 4) / 5
 		for _, r := range rows {
 			t := shownText(r[j], c.Kind)
 			w = max(w, utf8.RuneCountInString(t))
@@ -345,11 +345,15 @@ func streamTable(f *excelize.File, sheet string, cols []Column, rows [][]any, pr
 					least[j] = max(least[j], utf8.RuneCountInString(word))
 				}
 			} else {
-				least[j] = w // a number is never wrapped
+				least[j] = max(least[j], utf8.RuneCountInString(t)) // a number is never wrapped
 			}
 		}
-		widths[j] = min(max(w+2, 6), maxColumnWidth)
-		least[j] = min(max(least[j]+2, 6), widths[j])
+		pad := 0
+		if c.Kind == KindText {
+			pad = 2 // the text is indented from the number to its left
+		}
+		widths[j] = min(max(unitsOf(w)+pad, 6), maxColumnWidth)
+		least[j] = min(max(unitsOf(least[j])+pad, 6), widths[j])
 	}
 	fitWidths(widths[:printed], least[:printed], PrintableWidthPt(PaperA4, true))
 	for j := range widths {
@@ -387,6 +391,11 @@ func streamTable(f *excelize.File, sheet string, cols []Column, rows [][]any, pr
 	}
 	return sw.Flush()
 }
+
+// unitsOf is the column width that holds n characters of the export's 10 pt type, with the
+// cell's padding: 10 pt text holds about 1.2 characters per width unit (charsPerUnit), a
+// margin left for bold and for wide letters.
+func unitsOf(n int) int { return int(math.Ceil(float64(n)/1.1)) + 1 }
 
 // maxColumnWidth is the widest a column of the register's export gets; longer text wraps.
 const maxColumnWidth = 40
