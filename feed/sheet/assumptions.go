@@ -17,8 +17,9 @@ var assumptionsWidths = []float64{19, 10, 6.5, 7, 6.5, 9, 38}
 // fullSourceWidth is the width of the column holding each source in full.
 const fullSourceWidth = 120
 
-// shortSourceChars is about what one line of the printed source column holds at 8 pt.
-const shortSourceChars = 62
+// shortSourceChars is about what one line of the printed source column holds at 8 pt, less its
+// indent: (38 - 1.5) units × 1.2 characters per unit at 10 pt × 10/8.
+const shortSourceChars = 54
 
 // assumptions lists what produced the report, then every parameter of the model on one row: its
 // range and unit, and its source beside it.
@@ -139,7 +140,7 @@ func unitWords(u string) string {
 	case "ratio":
 		return "ratio"
 	case "mass fraction":
-		return "share of mass"
+		return "mass share"
 	case "fraction":
 		return "share"
 	}

@@ -88,8 +88,8 @@ func calibrationLots(f *excelize.File, o *calibrate.Outcome, hdr int) ([]span, e
 				return nil, err
 			}
 			// Each mass to three significant figures, z to two decimals.
-			for col, v := range map[int]float64{3: p.MeasuredKg, 4: p.EstimateKg, 5: p.PredictedKg, 6: p.SDKg} {
-				code := sigFmt(v)
+			for k, v := range []float64{p.MeasuredKg, p.EstimateKg, p.PredictedKg, p.SDKg} {
+				col, code := 3+k, sigFmt(v)
 				if _, ok := kgStyle[code]; !ok {
 					kgStyle[code], _ = f.NewStyle(&excelize.Style{CustomNumFmt: ptr(code)})
 				}
@@ -242,7 +242,8 @@ func calibrationCharts(f *excelize.File, o *calibrate.Outcome, spans []span, at 
 				return err
 			}
 		}
-		for col, v := range map[string]float64{"K": lo, "L": hi} {
+		for k, v := range []float64{lo, hi} {
+			col := string(rune('K' + k))
 			if st, err := f.NewStyle(&excelize.Style{CustomNumFmt: ptr(sigFmt(v))}); err == nil {
 				_ = f.SetCellStyle(CalibrationLots, fmt.Sprintf("%s%d", col, r), fmt.Sprintf("%s%d", col, r), st)
 			}

@@ -125,12 +125,15 @@ func cellHeight(s string, widthUnits float64, b base) float64 {
 	case small:
 		return float64(textLines(s, widthUnits*bodyPt/9, false))*11.5 + 2
 	case fine:
-		return float64(textLines(s, widthUnits*bodyPt/8*1.12, false))*10.2 + 2
+		return float64(textLines(s, (widthUnits-indentUnits)*bodyPt/8, false))*10.2 + 2
 	case head, bold, boldWrap, total, alert:
 		return float64(textLines(s, widthUnits, true))*linePt + 2
 	}
 	return float64(textLines(s, widthUnits, false))*linePt + 2
 }
+
+// indentUnits is about the width an indent of one level takes, in column width units.
+const indentUnits = 1.5
 
 // setHeight fixes a row's height and counts it on the printed page.
 func (p *page) setHeight(r int, h float64) {

@@ -4,6 +4,7 @@ import (
 	"archive/zip"
 	"bytes"
 	"io"
+	"math"
 	"regexp"
 	"strconv"
 	"strings"
@@ -158,6 +159,7 @@ func checkCells(t *testing.T, f *excelize.File, s string) {
 				continue
 			}
 			if st.Alignment != nil && st.Alignment.WrapText {
+				checkWrapped(t, f, s, cell, v, size, st.Alignment.Indent, merged, covered, ci, ri)
 				continue
 			}
 			full := ci+1 < len(row) && row[ci+1] != ""
@@ -308,5 +310,31 @@ func TestPrintPackRegisterAndCalibration(t *testing.T) {
 			checkCells(t, f, s)
 		}
 		f.Close()
+	}
+}
+
+// checkWrapped: a wrapped text's row is tall enough for its lines. Type of size pt holds at most
+// 1.25 × 10/size characters per column width unit (Calibri's average is near 1.2 at 10 pt), an
+// indent takes about 1.5 units, and a line takes 1.2 × size pt; words are not split, so the count
+// of lines here is a floor.
+func checkWrapped(t *testing.T, f *excelize.File, s, cell, v string, size float64, indent int,
+	merged map[string]float64, covered map[string]bool, ci, ri int) {
+	t.Helper()
+	wd, isMerged := merged[cell]
+	if !isMerged {
+		if covered[cell] {
+			return
+		}
+		name, _ := excelize.ColumnNumberToName(ci + 1)
+		wd, _ = f.GetColWidth(s, name)
+	}
+	perLine := (wd - 1.5*float64(indent)) * 1.25 * 10 / size
+	lines := 0
+	for _, para := range strings.Split(v, "\n") {
+		lines += max(1, int(math.Ceil(float64(len([]rune(para)))/perLine)))
+	}
+	h, _ := f.GetRowHeight(s, ri+1)
+	if need := float64(lines) * 1.2 * size; h+0.5 < need {
+		t.Errorf("%s!%s: %q wraps to at least %d lines in a column %.1f wide, its row is %.1f pt (needs %.1f)", s, cell, v, lines, wd, h, need)
 	}
 }
