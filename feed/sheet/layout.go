@@ -53,7 +53,10 @@ func (p *page) width(from, to int) float64 {
 func (p *page) add(vals ...any) int {
 	r := p.row
 	h := rowPt
-	if allSmall(vals) {
+	switch {
+	case allFine(vals):
+		h = fineRowPt
+	case allSmall(vals):
 		h = smallRowPt
 	}
 	for i, v := range vals {
@@ -83,7 +86,7 @@ func (p *page) add(vals ...any) int {
 			_ = p.w.f.SetCellStyle(p.s, a, b, p.w.styleOf(c.b, c.fmt))
 		}
 		p.w.set(p.s, i+1, r, c)
-		if c.b != plain && c.b != bold && c.b != total {
+		if c.b != plain && c.b != bold && c.b != total && c.b != dense && c.b != fineLine {
 			h = max(h, cellHeight(s, wd, c.b))
 		}
 	}
@@ -92,14 +95,31 @@ func (p *page) add(vals ...any) int {
 	return r
 }
 
-// smallRowPt is the height of a row of one line of 8 and 9 pt text.
-const smallRowPt = 11.5
+// smallRowPt is the height of a row of one line of 8 and 9 pt text; fineRowPt of 8 pt text only,
+// and fineLinePt each line of wrapped 8 pt text.
+const (
+	smallRowPt = 11.5
+	fineRowPt  = 10.5
+	fineLinePt = 9.75
+)
+
+// allFine reports whether every value of a row is in 8 pt type.
+func allFine(vals []any) bool {
+	for _, v := range vals {
+		switch toCell(v).b {
+		case fine, fineLine, dense, denseWrap:
+		default:
+			return false
+		}
+	}
+	return len(vals) > 0
+}
 
 // allSmall reports whether every value of a row is in 8 or 9 pt type.
 func allSmall(vals []any) bool {
 	for _, v := range vals {
 		switch toCell(v).b {
-		case small, fine, fineLine, smallNumBase:
+		case small, fine, fineLine, smallNumBase, dense, denseWrap:
 		default:
 			return false
 		}
@@ -125,7 +145,9 @@ func cellHeight(s string, widthUnits float64, b base) float64 {
 	case small:
 		return float64(textLines(s, widthUnits*bodyPt/9, false))*11.5 + 2
 	case fine:
-		return float64(textLines(s, (widthUnits-indentUnits)*bodyPt/8, false))*10.2 + 2
+		return float64(textLines(s, (widthUnits-indentUnits)*bodyPt/densePt, false))*fineLinePt + 0.75
+	case denseWrap:
+		return float64(textLines(s, widthUnits*bodyPt/densePt, false))*fineLinePt + 0.75
 	case head, bold, boldWrap, total, alert:
 		return float64(textLines(s, widthUnits, true))*linePt + 2
 	}
