@@ -15,7 +15,7 @@ const (
 	titlePt = 13.0
 	// linePt is the height of one line of 10 pt text in a row; rowPt a row of one line.
 	linePt = 13.0
-	rowPt  = 14.0
+	rowPt  = 13.0
 )
 
 // base is the look of a cell apart from its number format.
@@ -39,6 +39,8 @@ const (
 	dense             // 8 pt text on one line (the Lines sheet's rows)
 	denseWrap         // 8 pt text wrapped in its column
 	denseHead         // the Lines sheet's 8 pt header row: bold, shaded, ruled below, wrapped
+	headNum           // a header over a column of numbers: as head, aligned right as they are
+	denseHeadNum      // denseHead over a column of numbers
 )
 
 // densePt is the type size of the Lines sheet, the one long table of the workbook: the smallest
@@ -154,10 +156,17 @@ func (w *writer) styleOf(b base, numFmt string) int {
 	case denseWrap:
 		font.Size = densePt
 		st.Alignment.WrapText = true
-	case denseHead:
+	case denseHead, denseHeadNum:
 		font.Bold, font.Size = true, densePt
 		st.Fill, st.Border = shade, rule
 		st.Alignment.WrapText = true
+	case headNum:
+		font.Bold = true
+		st.Fill, st.Border = shade, rule
+		st.Alignment.WrapText = true
+	}
+	if b == headNum || b == denseHeadNum {
+		st.Alignment.Horizontal = "right"
 	}
 	if numFmt != "" {
 		f := numFmt

@@ -20,6 +20,7 @@ type page struct {
 	landscape bool
 	heights   map[int]float64 // each row's height
 	pending   *block          // the table being written, kept whole when it ends (blank)
+	headRow   int             // the last header row written (0: none)
 }
 
 // newPage makes a sheet (or takes the existing first sheet, renamed) with its columns' widths
@@ -59,11 +60,17 @@ func (p *page) add(vals ...any) int {
 	case allSmall(vals):
 		h = smallRowPt
 	}
+	underHead := p.headRow > 0 && p.headRow == r-1
 	for i, v := range vals {
 		c := toCell(v)
 		s, isText := c.v.(string)
 		if !isText {
 			p.w.set(p.s, i+1, r, c)
+			if _, num := c.v.(float64); (num || c.fmt == fmtCount) && underHead {
+				// The header over a column of numbers is aligned as they are, right.
+				cell, _ := excelize.CoordinatesToCellName(i+1, p.headRow)
+				_ = p.w.f.SetCellStyle(p.s, cell, cell, p.w.styleOf(headNum, ""))
+			}
 			continue
 		}
 		neighbour := !restEmpty(vals[i+1:])
@@ -181,7 +188,8 @@ func (p *page) header(names ...string) int {
 	for i, n := range names {
 		vals[i] = cellValue{v: n, b: head}
 	}
-	return p.add(vals...)
+	p.headRow = p.add(vals...)
+	return p.headRow
 }
 
 // title writes a heading over the whole width.

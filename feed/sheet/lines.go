@@ -101,7 +101,14 @@ func (w *writer) streamLines() error {
 			headH = max(headH, float64(denseLines(c.head, c.width, true))*lineLinePt+2)
 		}
 	}
-	if err := sw.SetRow("A1", names, excelize.RowOpts{StyleID: w.styleOf(denseHead, ""), Height: headH}); err != nil {
+	for i, c := range cols {
+		st := w.styleOf(denseHead, "")
+		if !c.wrap {
+			st = w.styleOf(denseHeadNum, "") // over a column of numbers, aligned as they are
+		}
+		names[i] = excelize.Cell{StyleID: st, Value: c.head}
+	}
+	if err := sw.SetRow("A1", names, excelize.RowOpts{Height: headH}); err != nil {
 		return err
 	}
 	textStyle, wrapStyle, countStyle := w.styleOf(dense, fmtText), w.styleOf(denseWrap, fmtText), w.styleOf(dense, fmtCount)
