@@ -40,6 +40,7 @@ const (
 	denseWrap         // 8 pt text wrapped in its column
 	denseHead         // the Lines sheet's 8 pt header row: bold, shaded, ruled below, wrapped
 	headNum           // a header over a column of numbers: as head, aligned right as they are
+	headIndent        // a header over text after a column of numbers: as head, indented
 	denseHeadNum      // denseHead over a column of numbers
 )
 
@@ -160,13 +161,16 @@ func (w *writer) styleOf(b base, numFmt string) int {
 		font.Bold, font.Size = true, densePt
 		st.Fill, st.Border = shade, rule
 		st.Alignment.WrapText = true
-	case headNum:
+	case headNum, headIndent:
 		font.Bold = true
 		st.Fill, st.Border = shade, rule
 		st.Alignment.WrapText = true
 	}
-	if b == headNum || b == denseHeadNum {
+	switch b {
+	case headNum, denseHeadNum:
 		st.Alignment.Horizontal = "right"
+	case headIndent:
+		st.Alignment.Horizontal, st.Alignment.Indent = "left", 1
 	}
 	if numFmt != "" {
 		f := numFmt

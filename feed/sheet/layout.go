@@ -20,7 +20,9 @@ type page struct {
 	landscape bool
 	heights   map[int]float64 // each row's height
 	pending   *block          // the table being written, kept whole when it ends (blank)
-	headRow   int             // the last header row written (0: none)
+	headRow   int             // the header row of the table being written (0: none)
+	headCols  int             // how many columns the header names
+	headNums  map[int]bool    // the header's columns found to hold numbers
 }
 
 // newPage makes a sheet (or takes the existing first sheet, renamed) with its columns' widths
@@ -60,16 +62,13 @@ func (p *page) add(vals ...any) int {
 	case allSmall(vals):
 		h = smallRowPt
 	}
-	underHead := p.headRow > 0 && p.headRow == r-1
 	for i, v := range vals {
 		c := toCell(v)
 		s, isText := c.v.(string)
 		if !isText {
 			p.w.set(p.s, i+1, r, c)
-			if _, num := c.v.(float64); (num || c.fmt == fmtCount) && underHead {
-				// The header over a column of numbers is aligned as they are, right.
-				cell, _ := excelize.CoordinatesToCellName(i+1, p.headRow)
-				_ = p.w.f.SetCellStyle(p.s, cell, cell, p.w.styleOf(headNum, ""))
+			if _, num := c.v.(float64); num || c.fmt == fmtCount {
+				p.alignHead(i + 1)
 			}
 			continue
 		}
@@ -178,6 +177,7 @@ func (p *page) setHeight(r int, h float64) {
 // blank leaves an empty row, ending a table.
 func (p *page) blank() {
 	p.endTable()
+	p.headRow = 0
 	p.setHeight(p.row, rowPt*0.7)
 	p.row++
 }
@@ -189,7 +189,23 @@ func (p *page) header(names ...string) int {
 		vals[i] = cellValue{v: n, b: head}
 	}
 	p.headRow = p.add(vals...)
+	p.headCols, p.headNums = len(names), map[int]bool{}
 	return p.headRow
+}
+
+// alignHead aligns the header over column col right, as the numbers under it, and indents the
+// header after it, if over text, so that the two do not run together.
+func (p *page) alignHead(col int) {
+	if p.headRow == 0 || col > p.headCols || p.headNums[col] {
+		return
+	}
+	p.headNums[col] = true
+	cell, _ := excelize.CoordinatesToCellName(col, p.headRow)
+	_ = p.w.f.SetCellStyle(p.s, cell, cell, p.w.styleOf(headNum, ""))
+	if next := col + 1; next <= p.headCols && !p.headNums[next] {
+		cell, _ := excelize.CoordinatesToCellName(next, p.headRow)
+		_ = p.w.f.SetCellStyle(p.s, cell, cell, p.w.styleOf(headIndent, ""))
+	}
 }
 
 // title writes a heading over the whole width.
