@@ -70,6 +70,7 @@ func TestPrintPack(t *testing.T) {
 			}
 			checkWidth(t, f, s, paper, landscape, areas[s])
 			checkCells(t, f, s)
+			checkHeadAlign(t, f, s)
 			if !titledSheets[s] {
 				checkTablesWhole(t, f, s, breaks[s], sheet.PrintableHeightPt(paper, landscape))
 			}
@@ -336,5 +337,66 @@ func checkWrapped(t *testing.T, f *excelize.File, s, cell, v string, size float6
 	h, _ := f.GetRowHeight(s, ri+1)
 	if need := float64(lines) * 1.2 * size; h+0.5 < need {
 		t.Errorf("%s!%s: %q wraps to at least %d lines in a column %.1f wide, its row is %.1f pt (needs %.1f)", s, cell, v, lines, wd, h, need)
+	}
+}
+
+// checkHeadAlign: a header over a column of numbers is aligned right, as the numbers are (a
+// header row is bold, shaded and ruled; its column holds a number in the row below it).
+func checkHeadAlign(t *testing.T, f *excelize.File, s string) {
+	t.Helper()
+	rows, _ := f.GetRows(s, excelize.Options{RawCellValue: true})
+	for ri := 0; ri+1 < len(rows); ri++ {
+		for ci, v := range rows[ri] {
+			if v == "" || ci >= len(rows[ri+1]) {
+				continue
+			}
+			cell, _ := excelize.CoordinatesToCellName(ci+1, ri+1)
+			id, _ := f.GetCellStyle(s, cell)
+			st, _ := f.GetStyle(id)
+			if st == nil || st.Font == nil || !st.Font.Bold || len(st.Border) == 0 || len(st.Fill.Color) == 0 {
+				continue
+			}
+			below, _ := excelize.CoordinatesToCellName(ci+1, ri+2)
+			typ, _ := f.GetCellType(s, below)
+			if _, err := strconv.ParseFloat(rows[ri+1][ci], 64); err != nil || typ == excelize.CellTypeSharedString ||
+				typ == excelize.CellTypeInlineString {
+				continue
+			}
+			if st.Alignment == nil || st.Alignment.Horizontal != "right" {
+				t.Errorf("%s!%s: the header %q over a column of numbers is not aligned right", s, cell, v)
+			}
+		}
+	}
+}
+
+// The Lines sheet, the one long table, prints in 8 pt on rows of 10.5 pt, so that a lot of a
+// few hundred lines takes a few pages: about 69 single-line rows to an A4 page.
+func TestLinesDense(t *testing.T) {
+	r := sampleReport(t, 60)
+	var buf bytes.Buffer
+	if err := sheet.WriteOn(&buf, r, sheet.PaperA4); err != nil {
+		t.Fatal(err)
+	}
+	f, err := excelize.OpenReader(bytes.NewReader(buf.Bytes()))
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer f.Close()
+	single := 0
+	for row := 2; row <= len(r.Lines)+1; row++ {
+		h, _ := f.GetRowHeight(sheet.Lines, row)
+		if h <= 10.5 {
+			single++
+		}
+		for col := 1; col <= sheet.PrintedLineColumns; col++ {
+			cell, _ := excelize.CoordinatesToCellName(col, row)
+			id, _ := f.GetCellStyle(sheet.Lines, cell)
+			if st, _ := f.GetStyle(id); st == nil || st.Font == nil || st.Font.Size != 8 {
+				t.Fatalf("Lines!%s: font %+v, want 8 pt", cell, st)
+			}
+		}
+	}
+	if single < len(r.Lines)/2 {
+		t.Errorf("%d of %d lines on rows of one 8 pt line", single, len(r.Lines))
 	}
 }
