@@ -18,6 +18,9 @@ func (w *writer) weighIn() error {
 	p.blank()
 	head := p.header("container", "gross (kg)", "tare (kg)", "net (kg)", "moisture (wt%)", "dry net (kg)")
 	w.printTitles(s, head, head)
+	for col := 2; col <= 6; col++ {
+		p.alignHead(col) // the columns take weights and moisture: numbers, aligned right
+	}
 	const first, last = 4, 23
 	in := cellValue{fmt: fmtSig3, b: edit}
 	for i := first; i <= last; i++ {
