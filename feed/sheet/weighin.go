@@ -3,7 +3,7 @@ package sheet
 import "fmt"
 
 // weighInWidths are the Weigh-in sheet's columns (A4 portrait at 100 %).
-var weighInWidths = []float64{30, 11, 11, 11, 12, 12}
+var weighInWidths = []float64{28, 11, 11, 11, 14, 12}
 
 // weighIn is where the bench records container weights and moisture; live formulas give the net
 // and dry weights and compare the net weight with the estimate.
