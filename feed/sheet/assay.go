@@ -37,7 +37,8 @@ func (w *writer) assay() error {
 	if m := r.Mix; m != nil {
 		p.blank()
 		p.keepRows(len(m.Components))
-		p.header("mix component", "best fit (kg/kg)", "P10", "P50", "P90", "95 % low", "95 % high", "cathode share P50")
+		p.header("mix component", "best fit (kg/kg)", "P10 (kg/kg)", "P50 (kg/kg)", "P90 (kg/kg)", "95 % low (kg/kg)", "95 % high (kg/kg)",
+			"cathode share P50")
 		for _, c := range m.Components {
 			vals := []any{c.Name, c.Best, c.KgPerKg.P10, c.KgPerKg.P50, c.KgPerKg.P90, c.Interval95[0], c.Interval95[1]}
 			if c.CathodeShare != nil {
@@ -47,7 +48,7 @@ func (w *writer) assay() error {
 		}
 		p.blank()
 		for _, n := range m.Notes {
-			p.paragraph(n, small)
+			p.paragraph(n, fine)
 		}
 	}
 	return nil

@@ -12,13 +12,14 @@ import (
 // assumptionsWidths are the Assumptions sheet's printed columns (A4 portrait at 100 %): what,
 // applies to, min, most likely, max, unit, source (shortened to a line); the source in full is
 // in the column after them, out of the print area.
-var assumptionsWidths = []float64{19, 10, 6.5, 7, 6.5, 9, 38}
+var assumptionsWidths = []float64{19, 11, 6.5, 7, 6.5, 9, 37}
 
 // fullSourceWidth is the width of the column holding each source in full.
 const fullSourceWidth = 120
 
-// shortSourceChars is about what one line of the printed source column holds at 8 pt.
-const shortSourceChars = 62
+// shortSourceChars is about what one line of the printed source column holds at 8 pt, less its
+// indent: (37 - 1.5) units × 1.2 characters per unit at 10 pt × 10/8.
+const shortSourceChars = 52
 
 // assumptions lists what produced the report, then every parameter of the model on one row: its
 // range and unit, and its source beside it.
@@ -63,7 +64,7 @@ func (w *writer) assumptions() error {
 			src, memory = "from memory ¹", memory+1
 		}
 		prev = pm.Source
-		row := p.add(note(paramWords(pm)), fineText(scopeWords(pm.Scope)), smallNum(pm.Min), smallNum(pm.Mode), smallNum(pm.Max),
+		row := p.add(as(denseWrap, paramWords(pm)), fineText(scopeWords(pm.Scope)), as(dense, pm.Min), as(dense, pm.Mode), as(dense, pm.Max),
 			fineText(unitWords(pm.Unit)), fineText(shortText(src, shortSourceChars)))
 		w.set(Assumptions, 8, row, cellValue{v: pm.Source, b: fineLine})
 	}
@@ -139,7 +140,7 @@ func unitWords(u string) string {
 	case "ratio":
 		return "ratio"
 	case "mass fraction":
-		return "share of mass"
+		return "mass share"
 	case "fraction":
 		return "share"
 	}

@@ -29,7 +29,7 @@ func WriteCalibration(w io.Writer, o *calibrate.Outcome) error {
 	if _, err := f.NewSheet(CalibrationLots); err != nil {
 		return err
 	}
-	bold, err := f.NewStyle(&excelize.Style{Font: &excelize.Font{Bold: true}, Fill: excelize.Fill{Type: "pattern", Pattern: 1,
+	bold, err := f.NewStyle(&excelize.Style{Font: &excelize.Font{Bold: true, Size: 11, Family: "Calibri"}, Fill: excelize.Fill{Type: "pattern", Pattern: 1,
 		Color: []string{"D9E2D0"}}, Border: []excelize.Border{{Type: "bottom", Color: "5B6B4E", Style: 1}},
 		Alignment: &excelize.Alignment{WrapText: true, Vertical: "top"}})
 	if err != nil {
@@ -42,10 +42,13 @@ func WriteCalibration(w io.Writer, o *calibrate.Outcome) error {
 	if err := calibrationSummary(f, o, bold, spans); err != nil {
 		return err
 	}
-	paper, one, auto, fit := PaperA4, 1, 0, true
+	paper, orient, one, auto, fit := PaperA4, "portrait", 1, 0, true
+	side, top, band := MarginSideIn, MarginTopIn, MarginHeaderIn
 	for _, s := range []string{CalibrationSheet, CalibrationLots} {
-		_ = f.SetPageLayout(s, &excelize.PageLayoutOptions{Size: &paper, FitToWidth: &one, FitToHeight: &auto})
+		_ = f.SetPageLayout(s, &excelize.PageLayoutOptions{Size: &paper, Orientation: &orient, FitToWidth: &one, FitToHeight: &auto})
 		_ = f.SetSheetProps(s, &excelize.SheetPropsOptions{FitToPage: &fit})
+		_ = f.SetPageMargins(s, &excelize.PageLayoutMarginsOptions{Left: &side, Right: &side, Top: &top, Bottom: &top,
+			Header: &band, Footer: &band})
 		_ = f.SetHeaderFooter(s, &excelize.HeaderFooterOptions{
 			OddHeader: "&L" + escapeHF(fmt.Sprintf("Calibration %d", o.Calibration.Version)) + "&C" + escapeHF(s) + "&RPage &P of &N",
 			OddFooter: "&L" + escapeHF("blackmass: a calibration from the bench's own assays; planning figures only")})
@@ -68,8 +71,10 @@ func calibrationLots(f *excelize.File, o *calibrate.Outcome, hdr int) ([]span, e
 		return nil, err
 	}
 	_ = f.SetCellStyle(s, "A1", "H1", hdr)
+	_ = f.SetRowHeight(s, 1, 45)
 	row := 1
 	var spans []span
+	kgStyle := map[string]int{}
 	for _, e := range o.Report.Elements {
 		if len(e.Points) == 0 {
 			continue
@@ -78,19 +83,35 @@ func calibrationLots(f *excelize.File, o *calibrate.Outcome, hdr int) ([]span, e
 		for _, p := range e.Points {
 			row++
 			cell, _ := excelize.CoordinatesToCellName(1, row)
-			vals := []any{e.Element, p.Lot, p.MeasuredKg, p.EstimateKg, p.PredictedKg, p.SDKg, p.Z, p.Censored}
+			vals := []any{e.Element, p.Lot, p.MeasuredKg, p.EstimateKg, p.PredictedKg, p.SDKg, p.Z, yesNo(p.Censored)}
 			if err := f.SetSheetRow(s, cell, &vals); err != nil {
 				return nil, err
 			}
+			// Each mass to three significant figures, z to two decimals.
+			for k, v := range []float64{p.MeasuredKg, p.EstimateKg, p.PredictedKg, p.SDKg} {
+				col, code := 3+k, sigFmt(v)
+				if _, ok := kgStyle[code]; !ok {
+					kgStyle[code], _ = f.NewStyle(&excelize.Style{CustomNumFmt: ptr(code)})
+				}
+				c, _ := excelize.CoordinatesToCellName(col, row)
+				_ = f.SetCellStyle(s, c, c, kgStyle[code])
+			}
 		}
 	}
-	if num, err := f.NewStyle(&excelize.Style{CustomNumFmt: ptr("0.000")}); err == nil && row > 1 {
-		_ = f.SetCellStyle(s, "C2", fmt.Sprintf("G%d", row), num)
+	if num, err := f.NewStyle(&excelize.Style{CustomNumFmt: ptr("0.00")}); err == nil && row > 1 {
+		_ = f.SetCellStyle(s, "G2", fmt.Sprintf("G%d", row), num)
 	}
+	if mid, err := f.NewStyle(&excelize.Style{Alignment: &excelize.Alignment{Horizontal: "center"}}); err == nil && row > 1 {
+		_ = f.SetCellStyle(s, "H2", fmt.Sprintf("H%d", row), mid)
+	}
+	// A4 portrait at 100 %: the eight columns print within 530 pt; the charts' cells (J on) do not print.
 	_ = f.SetColWidth(s, "A", "A", 9)
-	_ = f.SetColWidth(s, "B", "B", 16)
-	_ = f.SetColWidth(s, "C", "H", 14)
+	_ = f.SetColWidth(s, "B", "B", 13)
+	_ = f.SetColWidth(s, "C", "G", 10.5)
+	_ = f.SetColWidth(s, "H", "H", 11)
 	_ = f.SetPanes(s, &excelize.Panes{Freeze: true, YSplit: 1, TopLeftCell: "A2", ActivePane: "bottomLeft"})
+	_ = f.SetDefinedName(&excelize.DefinedName{Name: "_xlnm.Print_Titles", RefersTo: fmt.Sprintf("'%s'!$1:$1", s), Scope: s})
+	_ = f.SetDefinedName(&excelize.DefinedName{Name: "_xlnm.Print_Area", RefersTo: fmt.Sprintf("'%s'!$A$1:$H$%d", s, row), Scope: s})
 	return spans, nil
 }
 
@@ -145,8 +166,25 @@ func calibrationSummary(f *excelize.File, o *calibrate.Outcome, hdr int, spans [
 	_ = f.SetRowHeight(s, 6, 30)
 	fh := fmt.Sprintf("A%d", factorHead)
 	_ = f.SetCellStyle(s, fh, fmt.Sprintf("G%d", factorHead), hdr)
-	_ = f.SetColWidth(s, "A", "A", 12)
-	_ = f.SetColWidth(s, "B", "H", 14)
+	// A4 portrait at 100 %: eight columns within the 530 pt between the margins.
+	_ = f.SetColWidth(s, "A", "B", 10)
+	_ = f.SetColWidth(s, "C", "C", 15)
+	_ = f.SetColWidth(s, "D", "H", 11.5)
+	const pageUnits = 10 + 10 + 15 + 5*11.5
+	wrap, _ := f.NewStyle(&excelize.Style{Alignment: &excelize.Alignment{WrapText: true, Vertical: "top"}})
+	for i := 1; i <= 4; i++ { // the heading's sentences, wrapped over the page's width
+		_ = f.MergeCell(s, fmt.Sprintf("A%d", i), fmt.Sprintf("H%d", i))
+		_ = f.SetCellStyle(s, fmt.Sprintf("A%d", i), fmt.Sprintf("H%d", i), wrap)
+		// 11 pt text: 10/11 of the characters of 10 pt per unit, lines of 15 pt.
+		_ = f.SetRowHeight(s, i, float64(textLines(fmt.Sprint(rows[i-1][0]), pageUnits*bodyPt/11, false))*15+1)
+	}
+	for i := factorEnd + 1; i <= len(rows); i++ { // the reasons, wrapped beside their lots
+		if len(rows[i-1]) == 2 {
+			_ = f.MergeCell(s, fmt.Sprintf("B%d", i), fmt.Sprintf("H%d", i))
+			_ = f.SetCellStyle(s, fmt.Sprintf("B%d", i), fmt.Sprintf("H%d", i), wrap)
+		}
+	}
+	_ = f.SetCellStyle(s, "H7", fmt.Sprintf("H%d", 6+len(r.Elements)), wrap)
 	if st, err := f.NewStyle(&excelize.Style{CustomNumFmt: ptr("0.000")}); err == nil {
 		_ = f.SetCellStyle(s, "C7", fmt.Sprintf("D%d", 6+len(r.Elements)), st)
 		_ = f.SetCellStyle(s, fmt.Sprintf("D%d", factorHead+1), fmt.Sprintf("F%d", factorEnd), st)
@@ -154,11 +192,23 @@ func calibrationSummary(f *excelize.File, o *calibrate.Outcome, hdr int, spans [
 	if st, err := f.NewStyle(&excelize.Style{CustomNumFmt: ptr("0 %")}); err == nil {
 		_ = f.SetCellStyle(s, "E7", fmt.Sprintf("F%d", 6+len(r.Elements)), st)
 	}
+	if st, err := f.NewStyle(&excelize.Style{CustomNumFmt: ptr("0")}); err == nil {
+		_ = f.SetCellStyle(s, "B7", fmt.Sprintf("B%d", 6+len(r.Elements)), st)
+		_ = f.SetCellStyle(s, "G7", fmt.Sprintf("G%d", 6+len(r.Elements)), st)
+	}
 	if st, err := f.NewStyle(&excelize.Style{CustomNumFmt: ptr("0.0")}); err == nil {
 		_ = f.SetCellStyle(s, fmt.Sprintf("G%d", factorHead+1), fmt.Sprintf("G%d", factorEnd), st)
 	}
 	return calibrationCharts(f, o, spans, len(rows)+2)
 }
+
+// A chart's size in pixels (0.75 pt each), and the rows of 15 pt a row of charts takes: two side
+// by side within an A4 portrait page's width, three rows of them to a page's height.
+const (
+	chartWidthPx  = 335
+	chartHeightPx = 290
+	chartRows     = 16
+)
 
 // span is the rows of one element on the Lots sheet.
 type span struct {
@@ -192,6 +242,12 @@ func calibrationCharts(f *excelize.File, o *calibrate.Outcome, spans []span, at 
 				return err
 			}
 		}
+		for k, v := range []float64{lo, hi} {
+			col := string(rune('K' + k))
+			if st, err := f.NewStyle(&excelize.Style{CustomNumFmt: ptr(sigFmt(v))}); err == nil {
+				_ = f.SetCellStyle(CalibrationLots, fmt.Sprintf("%s%d", col, r), fmt.Sprintf("%s%d", col, r), st)
+			}
+		}
 		ref := func(col string) string {
 			return fmt.Sprintf("'%s'!$%s$%d:$%s$%d", CalibrationLots, col, sp.first, col, sp.last)
 		}
@@ -211,13 +267,23 @@ func calibrationCharts(f *excelize.File, o *calibrate.Outcome, spans []span, at 
 		title := func(t string) excelize.ChartTitle {
 			return excelize.ChartTitle{Paragraph: []excelize.RichTextRun{{Text: t}}}
 		}
-		cell, _ := excelize.CoordinatesToCellName(1+5*(i%2), at+18*(i/2))
+		// Charts start on a page of their own, two to a row, three rows to a page.
+		if i%6 == 0 {
+			brk, _ := excelize.CoordinatesToCellName(1, at+chartRows*(i/2))
+			_ = f.InsertPageBreak(CalibrationSheet, brk)
+		}
+		if i%2 == 0 { // rows of a known height under the charts, whatever a viewer's default
+			for r := at + chartRows*(i/2); r < at+chartRows*(i/2+1); r++ {
+				_ = f.SetRowHeight(CalibrationSheet, r, 15)
+			}
+		}
+		cell, _ := excelize.CoordinatesToCellName(1+4*(i%2), at+chartRows*(i/2))
 		if err := f.AddChart(CalibrationSheet, cell, &excelize.Chart{Type: excelize.Scatter, Series: series,
 			Title:     title(sp.element + ": assay against estimate (kg)"),
 			XAxis:     excelize.ChartAxis{MajorGridLines: true, Title: title("estimate kg")},
 			YAxis:     excelize.ChartAxis{MajorGridLines: true, Title: title("assay kg")},
 			Legend:    excelize.ChartLegend{Position: "bottom"},
-			Dimension: excelize.ChartDimension{Width: 440, Height: 340}}); err != nil {
+			Dimension: excelize.ChartDimension{Width: chartWidthPx, Height: chartHeightPx}}); err != nil {
 			return err
 		}
 	}

@@ -15,7 +15,7 @@ const (
 	titlePt = 13.0
 	// linePt is the height of one line of 10 pt text in a row; rowPt a row of one line.
 	linePt = 13.0
-	rowPt  = 14.0
+	rowPt  = 13.0
 )
 
 // base is the look of a cell apart from its number format.
@@ -36,7 +36,17 @@ const (
 	fine              // 8 pt wrapped text (sources)
 	fineLine          // 8 pt text on one line (a source in full, out of the print area)
 	smallNumBase      // a 9 pt number
+	dense             // 8 pt text on one line (the Lines sheet's rows)
+	denseWrap         // 8 pt text wrapped in its column
+	denseHead         // the Lines sheet's 8 pt header row: bold, shaded, ruled below, wrapped
+	headNum           // a header over a column of numbers: as head, aligned right as they are
+	headIndent        // a header over text after a column of numbers: as head, indented
+	denseHeadNum      // denseHead over a column of numbers
 )
+
+// densePt is the type size of the Lines sheet, the one long table of the workbook: the smallest
+// size of the print pack, so that a lot of a few hundred lines prints on a few pages.
+const densePt = 8.0
 
 // head0 is the header look, for cells written outside a page's columns.
 const head0 = head
@@ -70,12 +80,12 @@ func sigDecimals(v float64) int {
 	return min(max(d, 0), 6)
 }
 
-// sigStyle is the plain style showing v to three significant figures, looked up without
+// sigStyle is the dense style showing v to three significant figures, looked up without
 // building its format (for the long Lines sheet).
 func (w *writer) sigStyle(v float64) int {
 	d := sigDecimals(v) + 1
 	if w.sigStyles[d] == 0 {
-		w.sigStyles[d] = w.styleOf(plain, sigFmt(v))
+		w.sigStyles[d] = w.styleOf(dense, sigFmt(v))
 	}
 	return w.sigStyles[d]
 }
@@ -142,6 +152,25 @@ func (w *writer) styleOf(b base, numFmt string) int {
 		font.Size = 8
 	case smallNumBase:
 		font.Size = 9
+	case dense:
+		font.Size = densePt
+	case denseWrap:
+		font.Size = densePt
+		st.Alignment.WrapText = true
+	case denseHead, denseHeadNum:
+		font.Bold, font.Size = true, densePt
+		st.Fill, st.Border = shade, rule
+		st.Alignment.WrapText = true
+	case headNum, headIndent:
+		font.Bold = true
+		st.Fill, st.Border = shade, rule
+		st.Alignment.WrapText = true
+	}
+	switch b {
+	case headNum, denseHeadNum:
+		st.Alignment.Horizontal = "right"
+	case headIndent:
+		st.Alignment.Horizontal, st.Alignment.Indent = "left", 1
 	}
 	if numFmt != "" {
 		f := numFmt

@@ -20,6 +20,9 @@ type page struct {
 	landscape bool
 	heights   map[int]float64 // each row's height
 	pending   *block          // the table being written, kept whole when it ends (blank)
+	headRow   int             // the header row of the table being written (0: none)
+	headCols  int             // how many columns the header names
+	headNums  map[int]bool    // the header's columns found to hold numbers
 }
 
 // newPage makes a sheet (or takes the existing first sheet, renamed) with its columns' widths
@@ -53,7 +56,10 @@ func (p *page) width(from, to int) float64 {
 func (p *page) add(vals ...any) int {
 	r := p.row
 	h := rowPt
-	if allSmall(vals) {
+	switch {
+	case allFine(vals):
+		h = fineRowPt
+	case allSmall(vals):
 		h = smallRowPt
 	}
 	for i, v := range vals {
@@ -61,6 +67,9 @@ func (p *page) add(vals ...any) int {
 		s, isText := c.v.(string)
 		if !isText {
 			p.w.set(p.s, i+1, r, c)
+			if _, num := c.v.(float64); num || c.fmt == fmtCount {
+				p.alignHead(i + 1)
+			}
 			continue
 		}
 		neighbour := !restEmpty(vals[i+1:])
@@ -83,7 +92,7 @@ func (p *page) add(vals ...any) int {
 			_ = p.w.f.SetCellStyle(p.s, a, b, p.w.styleOf(c.b, c.fmt))
 		}
 		p.w.set(p.s, i+1, r, c)
-		if c.b != plain && c.b != bold && c.b != total {
+		if c.b != plain && c.b != bold && c.b != total && c.b != dense && c.b != fineLine {
 			h = max(h, cellHeight(s, wd, c.b))
 		}
 	}
@@ -92,14 +101,31 @@ func (p *page) add(vals ...any) int {
 	return r
 }
 
-// smallRowPt is the height of a row of one line of 8 and 9 pt text.
-const smallRowPt = 11.5
+// smallRowPt is the height of a row of one line of 8 and 9 pt text; fineRowPt of 8 pt text only,
+// and fineLinePt each line of wrapped 8 pt text.
+const (
+	smallRowPt = 11.5
+	fineRowPt  = 10.5
+	fineLinePt = 9.75
+)
+
+// allFine reports whether every value of a row is in 8 pt type.
+func allFine(vals []any) bool {
+	for _, v := range vals {
+		switch toCell(v).b {
+		case fine, fineLine, dense, denseWrap:
+		default:
+			return false
+		}
+	}
+	return len(vals) > 0
+}
 
 // allSmall reports whether every value of a row is in 8 or 9 pt type.
 func allSmall(vals []any) bool {
 	for _, v := range vals {
 		switch toCell(v).b {
-		case small, fine, fineLine, smallNumBase:
+		case small, fine, fineLine, smallNumBase, dense, denseWrap:
 		default:
 			return false
 		}
@@ -125,12 +151,17 @@ func cellHeight(s string, widthUnits float64, b base) float64 {
 	case small:
 		return float64(textLines(s, widthUnits*bodyPt/9, false))*11.5 + 2
 	case fine:
-		return float64(textLines(s, widthUnits*bodyPt/8*1.12, false))*10.2 + 2
+		return float64(textLines(s, (widthUnits-indentUnits)*bodyPt/densePt, false))*fineLinePt + 0.75
+	case denseWrap:
+		return float64(textLines(s, widthUnits*bodyPt/densePt, false))*fineLinePt + 0.75
 	case head, bold, boldWrap, total, alert:
 		return float64(textLines(s, widthUnits, true))*linePt + 2
 	}
 	return float64(textLines(s, widthUnits, false))*linePt + 2
 }
+
+// indentUnits is about the width an indent of one level takes, in column width units.
+const indentUnits = 1.5
 
 // setHeight fixes a row's height and counts it on the printed page.
 func (p *page) setHeight(r int, h float64) {
@@ -146,6 +177,7 @@ func (p *page) setHeight(r int, h float64) {
 // blank leaves an empty row, ending a table.
 func (p *page) blank() {
 	p.endTable()
+	p.headRow = 0
 	p.setHeight(p.row, rowPt*0.7)
 	p.row++
 }
@@ -156,7 +188,24 @@ func (p *page) header(names ...string) int {
 	for i, n := range names {
 		vals[i] = cellValue{v: n, b: head}
 	}
-	return p.add(vals...)
+	p.headRow = p.add(vals...)
+	p.headCols, p.headNums = len(names), map[int]bool{}
+	return p.headRow
+}
+
+// alignHead aligns the header over column col right, as the numbers under it, and indents the
+// header after it, if over text, so that the two do not run together.
+func (p *page) alignHead(col int) {
+	if p.headRow == 0 || col > p.headCols || p.headNums[col] {
+		return
+	}
+	p.headNums[col] = true
+	cell, _ := excelize.CoordinatesToCellName(col, p.headRow)
+	_ = p.w.f.SetCellStyle(p.s, cell, cell, p.w.styleOf(headNum, ""))
+	if next := col + 1; next <= p.headCols && !p.headNums[next] {
+		cell, _ := excelize.CoordinatesToCellName(next, p.headRow)
+		_ = p.w.f.SetCellStyle(p.s, cell, cell, p.w.styleOf(headIndent, ""))
+	}
 }
 
 // title writes a heading over the whole width.

@@ -29,10 +29,10 @@ func (w *writer) lines() error {
 		return err
 	}
 	// Page setup goes in before the stream writer takes the sheet: the columns a bench reads
-	// print on one landscape page width with the header row on every page; the rest of the
-	// columns (what the manifest said, and what the estimate made of it) stay in the file, out of
-	// the print area.
-	w.printSetup(Lines, true)
+	// print on one portrait page width, in 8 pt on rows as low as the type allows, with the
+	// header row on every page; the rest of the columns (what the manifest said, and what the
+	// estimate made of it) stay in the file, out of the print area.
+	w.printSetup(Lines, false)
 	w.printTitles(Lines, 1, 1)
 	w.printArea(Lines, PrintedLineColumns, len(r.Lines)+2)
 	return nil
@@ -54,16 +54,25 @@ type lineColumn struct {
 // are read past.
 func lineColumns(idWidth float64) []lineColumn {
 	d := manifest.DerivedLineColumns // line, chemistry resolved, energy, modelled mass, Wh/kg, cathode, black mass, flags
-	return []lineColumn{{"id", idWidth, true}, {"description", 34, true}, {"chemistry", 18, true}, {"format", 12, true},
-		{"count", 8, false}, {d[2], 12, false}, {"mass (kg)", 10, false}, {d[6], 14, false},
+	return []lineColumn{{"id", idWidth, true}, {"description", 30, true}, {"chemistry", 15, true}, {"format", 8, true},
+		{"count", 6, false}, {d[2], 9, false}, {"mass (kg)", 8, false}, {d[6], 11, false},
 		{"capacity", 11, true}, {"capacity basis", 9, true}, {"voltage (V)", 8, false}, {"cells per pack", 8, false},
 		{"notes", 30, true}, {"application", 12, true}, {d[0], 6, false}, {d[1], 18, true},
 		{d[3], 12, false}, {d[4], 10, false}, {d[5], 12, false}, {d[7], 50, true}}
 }
 
-// lineRowPt is the height of a Lines row of one line of 10 pt text: the sheet is long, so its
-// rows are as low as the text allows.
-const lineRowPt = 12.75
+// lineRowPt is the height of a Lines row of one line of 8 pt text, and lineLinePt of each line
+// of a wrapped text: the sheet is long, so its rows are as low as the type allows.
+const (
+	lineRowPt  = 10.5
+	lineLinePt = 9.75
+)
+
+// denseLines is about how many lines a text takes wrapped in a Lines column widthUnits wide
+// (8 pt text holds 10/8 as many characters as 10 pt).
+func denseLines(s string, widthUnits float64, boldText bool) int {
+	return textLines(s, widthUnits*bodyPt/densePt, boldText)
+}
 
 // streamLines writes the Lines sheet's rows through the stream writer.
 func (w *writer) streamLines() error {
@@ -75,25 +84,34 @@ func (w *writer) streamLines() error {
 	if err != nil {
 		return err
 	}
-	idWidth := 6.0
+	idWidth := 4.5
 	for _, l := range r.Lines {
-		idWidth = max(idWidth, float64(len([]rune(l.ID)))+2)
+		idWidth = max(idWidth, float64(len([]rune(l.ID)))*densePt/bodyPt/charsPerUnit+1.5)
 	}
-	cols := lineColumns(min(idWidth, 14))
+	cols := lineColumns(min(idWidth, 11))
 	for i, c := range cols {
 		_ = sw.SetColWidth(i+1, i+1, c.width)
 	}
 	_ = sw.SetPanes(&excelize.Panes{Freeze: true, XSplit: 1, YSplit: 1, TopLeftCell: "B2", ActivePane: "bottomRight"})
 	names := make([]any, len(cols))
-	headH := rowPt
+	headH := lineRowPt
 	for i, c := range cols {
 		names[i] = c.head
-		headH = max(headH, cellHeight(c.head, c.width, head))
+		if i < PrintedLineColumns {
+			headH = max(headH, float64(denseLines(c.head, c.width, true))*lineLinePt+2)
+		}
 	}
-	if err := sw.SetRow("A1", names, excelize.RowOpts{StyleID: w.styleOf(head, ""), Height: headH}); err != nil {
+	for i, c := range cols {
+		st := w.styleOf(denseHead, "")
+		if !c.wrap {
+			st = w.styleOf(denseHeadNum, "") // over a column of numbers, aligned as they are
+		}
+		names[i] = excelize.Cell{StyleID: st, Value: c.head}
+	}
+	if err := sw.SetRow("A1", names, excelize.RowOpts{Height: headH}); err != nil {
 		return err
 	}
-	textStyle, wrapStyle, countStyle := w.styleOf(plain, fmtText), w.styleOf(wrapped, fmtText), w.styleOf(plain, fmtCount)
+	textStyle, wrapStyle, countStyle := w.styleOf(dense, fmtText), w.styleOf(denseWrap, fmtText), w.styleOf(dense, fmtCount)
 	for i, l := range r.Lines {
 		vals := []any{l.ID, l.Description, l.ChemistryLabel, l.Format, l.Count, l.EnergyWhPerItem, opt(l.MeasuredMassKg), l.BlackMassKg,
 			l.CapacityGiven, l.CapacityBasis, opt(l.VoltageV), optInt(l.CellsPerItem), l.Notes, l.Application,
@@ -107,8 +125,8 @@ func (w *writer) streamLines() error {
 				if cols[j].wrap {
 					st = wrapStyle
 					if j < PrintedLineColumns { // the printed rows are as tall as their text
-						if n := textLines(x, cols[j].width, false); n > 1 {
-							h = max(h, float64(n)*linePt+2)
+						if n := denseLines(x, cols[j].width, false); n > 1 {
+							h = max(h, float64(n)*lineLinePt+1)
 						}
 					}
 				}

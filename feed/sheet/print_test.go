@@ -4,6 +4,7 @@ import (
 	"archive/zip"
 	"bytes"
 	"io"
+	"math"
 	"regexp"
 	"strconv"
 	"strings"
@@ -15,7 +16,7 @@ import (
 )
 
 // landscapeSheets are the sheets printed in landscape; the others are portrait.
-var landscapeSheets = map[string]bool{sheet.Lines: true, sheet.Leach: true, sheet.ValueSheet: true, sheet.AssaySheet: true}
+var landscapeSheets = map[string]bool{sheet.Leach: true, sheet.ValueSheet: true, sheet.AssaySheet: true}
 
 // titledSheets hold one table that may run over pages, so they repeat its header row; the
 // others hold short tables, each kept on one page.
@@ -69,6 +70,7 @@ func TestPrintPack(t *testing.T) {
 			}
 			checkWidth(t, f, s, paper, landscape, areas[s])
 			checkCells(t, f, s)
+			checkHeadAlign(t, f, s)
 			if !titledSheets[s] {
 				checkTablesWhole(t, f, s, breaks[s], sheet.PrintableHeightPt(paper, landscape))
 			}
@@ -158,6 +160,7 @@ func checkCells(t *testing.T, f *excelize.File, s string) {
 				continue
 			}
 			if st.Alignment != nil && st.Alignment.WrapText {
+				checkWrapped(t, f, s, cell, v, size, st.Alignment.Indent, merged, covered, ci, ri)
 				continue
 			}
 			full := ci+1 < len(row) && row[ci+1] != ""
@@ -249,4 +252,151 @@ func rowBreaks(t *testing.T, xlsx []byte, f *excelize.File) map[string]map[int]b
 		out[name] = byPart["xl/worksheets/sheet"+strconv.Itoa(i)+".xml"]
 	}
 	return out
+}
+
+// The register's export and the calibration workbook print as the intake workbook does: A4 in
+// their orientation, one page wide at 100 % (the printed columns fit between the margins), the
+// header row repeated on every page of a long table, page numbers in the header or footer, a
+// number format on every number, no font under 8 pt and no text cut by a filled neighbour.
+func TestPrintPackRegisterAndCalibration(t *testing.T) {
+	var reg, cal bytes.Buffer
+	if err := sheet.WriteRegister(&reg, sheet.RegisterLots()); err != nil {
+		t.Fatal(err)
+	}
+	if err := sheet.WriteCalibration(&cal, sheet.CalibrationOutcome(t)); err != nil {
+		t.Fatal(err)
+	}
+	for _, wb := range []struct {
+		name      string
+		xlsx      []byte
+		landscape bool
+		titled    map[string]bool
+	}{
+		{"register", reg.Bytes(), true, map[string]bool{sheet.RegisterSheet: true, sheet.RegisterMetalsSheet: true}},
+		{"calibration", cal.Bytes(), false, map[string]bool{sheet.CalibrationLots: true}},
+	} {
+		f, err := excelize.OpenReader(bytes.NewReader(wb.xlsx))
+		if err != nil {
+			t.Fatal(err)
+		}
+		titles, areas := map[string]bool{}, map[string]string{}
+		for _, n := range f.GetDefinedName() {
+			switch n.Name {
+			case "_xlnm.Print_Titles":
+				titles[n.Scope] = strings.HasSuffix(n.RefersTo, "!$1:$1")
+			case "_xlnm.Print_Area":
+				areas[n.Scope] = n.RefersTo
+			}
+		}
+		want := "portrait"
+		if wb.landscape {
+			want = "landscape"
+		}
+		for _, s := range f.GetSheetList() {
+			pl, _ := f.GetPageLayout(s)
+			if pl.Size == nil || *pl.Size != sheet.PaperA4 || pl.Orientation == nil || *pl.Orientation != want ||
+				pl.FitToWidth == nil || *pl.FitToWidth != 1 || pl.FitToHeight == nil || *pl.FitToHeight != 0 {
+				t.Errorf("%s %s: page layout %+v, want A4 %s one page wide", wb.name, s, pl, want)
+			}
+			if pr, _ := f.GetSheetProps(s); pr.FitToPage == nil || !*pr.FitToPage {
+				t.Errorf("%s %s: not fitted to the page width", wb.name, s)
+			}
+			if hf, _ := f.GetHeaderFooter(s); hf == nil || !strings.Contains(hf.OddHeader+hf.OddFooter, "Page &P of &N") {
+				t.Errorf("%s %s: header and footer %+v lack the page number", wb.name, s, hf)
+			}
+			if titles[s] != wb.titled[s] {
+				t.Errorf("%s %s: header row repeated %v, want %v", wb.name, s, titles[s], wb.titled[s])
+			}
+			checkWidth(t, f, s, sheet.PaperA4, wb.landscape, areas[s])
+			checkCells(t, f, s)
+		}
+		f.Close()
+	}
+}
+
+// checkWrapped: a wrapped text's row is tall enough for its lines. Type of size pt holds at most
+// 1.25 × 10/size characters per column width unit (Calibri's average is near 1.2 at 10 pt), an
+// indent takes about 1.5 units, and a line takes 1.2 × size pt; words are not split, so the count
+// of lines here is a floor.
+func checkWrapped(t *testing.T, f *excelize.File, s, cell, v string, size float64, indent int,
+	merged map[string]float64, covered map[string]bool, ci, ri int) {
+	t.Helper()
+	wd, isMerged := merged[cell]
+	if !isMerged {
+		if covered[cell] {
+			return
+		}
+		name, _ := excelize.ColumnNumberToName(ci + 1)
+		wd, _ = f.GetColWidth(s, name)
+	}
+	perLine := (wd - 1.5*float64(indent)) * 1.25 * 10 / size
+	lines := 0
+	for _, para := range strings.Split(v, "\n") {
+		lines += max(1, int(math.Ceil(float64(len([]rune(para)))/perLine)))
+	}
+	h, _ := f.GetRowHeight(s, ri+1)
+	if need := float64(lines) * 1.2 * size; h+0.5 < need {
+		t.Errorf("%s!%s: %q wraps to at least %d lines in a column %.1f wide, its row is %.1f pt (needs %.1f)", s, cell, v, lines, wd, h, need)
+	}
+}
+
+// checkHeadAlign: a header over a column of numbers is aligned right, as the numbers are (a
+// header row is bold, shaded and ruled; its column holds a number in the row below it).
+func checkHeadAlign(t *testing.T, f *excelize.File, s string) {
+	t.Helper()
+	rows, _ := f.GetRows(s, excelize.Options{RawCellValue: true})
+	for ri := 0; ri+1 < len(rows); ri++ {
+		for ci, v := range rows[ri] {
+			if v == "" || ci >= len(rows[ri+1]) {
+				continue
+			}
+			cell, _ := excelize.CoordinatesToCellName(ci+1, ri+1)
+			id, _ := f.GetCellStyle(s, cell)
+			st, _ := f.GetStyle(id)
+			if st == nil || st.Font == nil || !st.Font.Bold || len(st.Border) == 0 || len(st.Fill.Color) == 0 {
+				continue
+			}
+			below, _ := excelize.CoordinatesToCellName(ci+1, ri+2)
+			typ, _ := f.GetCellType(s, below)
+			if _, err := strconv.ParseFloat(rows[ri+1][ci], 64); err != nil || typ == excelize.CellTypeSharedString ||
+				typ == excelize.CellTypeInlineString {
+				continue
+			}
+			if st.Alignment == nil || st.Alignment.Horizontal != "right" {
+				t.Errorf("%s!%s: the header %q over a column of numbers is not aligned right", s, cell, v)
+			}
+		}
+	}
+}
+
+// The Lines sheet, the one long table, prints in 8 pt on rows of 10.5 pt, so that a lot of a
+// few hundred lines takes a few pages: about 69 single-line rows to an A4 page.
+func TestLinesDense(t *testing.T) {
+	r := sampleReport(t, 60)
+	var buf bytes.Buffer
+	if err := sheet.WriteOn(&buf, r, sheet.PaperA4); err != nil {
+		t.Fatal(err)
+	}
+	f, err := excelize.OpenReader(bytes.NewReader(buf.Bytes()))
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer f.Close()
+	single := 0
+	for row := 2; row <= len(r.Lines)+1; row++ {
+		h, _ := f.GetRowHeight(sheet.Lines, row)
+		if h <= 10.5 {
+			single++
+		}
+		for col := 1; col <= sheet.PrintedLineColumns; col++ {
+			cell, _ := excelize.CoordinatesToCellName(col, row)
+			id, _ := f.GetCellStyle(sheet.Lines, cell)
+			if st, _ := f.GetStyle(id); st == nil || st.Font == nil || st.Font.Size != 8 {
+				t.Fatalf("Lines!%s: font %+v, want 8 pt", cell, st)
+			}
+		}
+	}
+	if single < len(r.Lines)/2 {
+		t.Errorf("%d of %d lines on rows of one 8 pt line", single, len(r.Lines))
+	}
 }

@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"slices"
 	"strconv"
 	"strings"
 	"time"
@@ -34,11 +35,12 @@ const (
 )
 
 // Number formats of the kinds (ECMA-376 Part 1, §18.8.31 numFmts). A mass shows three
-// significant figures from 1 kg to 999 kg, and whole kilograms above.
+// significant figures, each cell in the format of its own value (kgFormat); whole kilograms, with
+// thousands separators, from 100 kg.
 var kindFormat = map[CellKind]string{
-	KindInt:   "0",
+	KindInt:   "#,##0",
 	KindDate:  "yyyy-mm-dd",
-	KindKg:    "[>=100]#,##0;[>=10]0.0;0.00",
+	KindKg:    "#,##0",
 	KindMoney: "#,##0.00",
 	KindRatio: "0.00",
 	KindPct:   "0.00",
@@ -157,7 +159,7 @@ func LotsTable(lots []register.Summary) ([]Column, [][]any) {
 func MetalsTable(lots []register.Summary) ([]Column, [][]any) {
 	cols := []Column{{"lot", KindText}, {"element", KindText}, {"basis", KindText}, {"kg", KindKg}, {"measured kg", KindKg},
 		{"measured sd kg", KindKg}, {"measured min kg", KindKg}, {"measured max kg", KindKg}, {"estimate kg P10", KindKg},
-		{"estimate kg P50", KindKg}, {"estimate kg P90", KindKg}, {"measured/estimate", KindRatio}, {"assay wt%", KindPct},
+		{"estimate kg P50", KindKg}, {"estimate kg P90", KindKg}, {"measured / estimate", KindRatio}, {"assay wt%", KindPct},
 		{"assay sd wt%", KindPct}, {"below limit", KindText}, {"assays", KindInt}, {"assays disagree", KindText},
 		{"estimate wt% P50", KindPct}, {"payable value", KindMoney}}
 	var rows [][]any
@@ -204,7 +206,7 @@ func WriteRegister(out io.Writer, lots []register.Summary) error {
 	var head [2]int // text columns, number columns
 	var err error
 	for i, align := range []string{"left", "right"} {
-		head[i], err = f.NewStyle(&excelize.Style{Font: &excelize.Font{Bold: true},
+		head[i], err = f.NewStyle(&excelize.Style{Font: &excelize.Font{Bold: true, Size: registerPt, Family: "Calibri"},
 			Alignment: &excelize.Alignment{Vertical: "top", WrapText: true, Horizontal: align},
 			Border:    []excelize.Border{{Type: "bottom", Color: "000000", Style: 1}}})
 		if err != nil {
@@ -214,50 +216,133 @@ func WriteRegister(out io.Writer, lots []register.Summary) error {
 	styles := map[CellKind]int{}
 	for k, code := range kindFormat {
 		fmtCode := code
-		if styles[k], err = f.NewStyle(&excelize.Style{CustomNumFmt: &fmtCode, Alignment: &excelize.Alignment{Vertical: "top"}}); err != nil {
+		if styles[k], err = f.NewStyle(&excelize.Style{CustomNumFmt: &fmtCode, Font: &excelize.Font{Size: registerPt, Family: "Calibri"},
+			Alignment: &excelize.Alignment{Vertical: "top"}}); err != nil {
 			return err
 		}
 	}
-	text := &excelize.Style{Alignment: &excelize.Alignment{Vertical: "top", WrapText: true, Horizontal: "left", Indent: 1}}
+	for d := 1; d <= 6; d++ {
+		fmtCode := fixedFmt(d)
+		if styles[kgKind(d)], err = f.NewStyle(&excelize.Style{CustomNumFmt: &fmtCode, Font: &excelize.Font{Size: registerPt,
+			Family: "Calibri"}, Alignment: &excelize.Alignment{Vertical: "top"}}); err != nil {
+			return err
+		}
+	}
+	text := &excelize.Style{Font: &excelize.Font{Size: registerPt, Family: "Calibri"},
+		Alignment: &excelize.Alignment{Vertical: "top", WrapText: true, Horizontal: "left", Indent: 1}}
 	if styles[KindText], err = f.NewStyle(text); err != nil {
 		return err
 	}
-	lc, lr := LotsTable(lots)
-	mc, mr := MetalsTable(lots)
 	for _, t := range []struct {
 		sheet string
-		cols  []Column
-		rows  [][]any
-	}{{RegisterSheet, lc, lr}, {RegisterMetalsSheet, mc, mr}} {
-		if err := registerPrint(f, t.sheet); err != nil { // before the stream writer takes the sheet
+		table func([]register.Summary) ([]Column, [][]any, int)
+	}{{RegisterSheet, lotsSheet}, {RegisterMetalsSheet, metalsSheet}} {
+		cols, rows, n := t.table(lots)
+		if err := registerPrint(f, t.sheet, n, len(rows)+1); err != nil { // before the stream writer takes the sheet
 			return err
 		}
-		if err := streamTable(f, t.sheet, t.cols, t.rows, head, styles); err != nil {
+		if err := streamTable(f, t.sheet, cols, rows, n, head, styles); err != nil {
 			return err
 		}
 	}
 	return f.Write(out)
 }
 
+// lotsSheet is LotsTable with its printed columns first, and how many print.
+func lotsSheet(lots []register.Summary) ([]Column, [][]any, int) {
+	cols, rows := LotsTable(lots)
+	return printedFirst(cols, rows, lotsPrinted())
+}
+
+// metalsSheet is MetalsTable with its printed columns first, and how many print.
+func metalsSheet(lots []register.Summary) ([]Column, [][]any, int) {
+	cols, rows := MetalsTable(lots)
+	return printedFirst(cols, rows, metalsPrinted)
+}
+
+// lotsPrinted are the lots sheet's columns that print, in their order: what a lot is, its black
+// mass and payable metals on their best evidence, and its value. The rest follow them in the
+// file, out of the print area.
+func lotsPrinted() []string {
+	heads := []string{"lot", "received", "supplier", "basis", "estimate black mass kg (P50)",
+		"dry black mass kg"}
+	for _, el := range value.PayableMetals() {
+		heads = append(heads, el+" kg")
+	}
+	return append(heads, "currency", "payable value")
+}
+
+// metalsPrinted are the metals sheet's columns that print, in their order.
+var metalsPrinted = []string{"lot", "element", "basis", "kg", "measured kg", "measured sd kg", "estimate kg P10",
+	"estimate kg P50", "estimate kg P90", "measured / estimate", "assay wt%", "payable value"}
+
+// printedFirst moves the columns headed printed to the front, in that order, the others after
+// them in theirs, and says how many print.
+func printedFirst(cols []Column, rows [][]any, printed []string) ([]Column, [][]any, int) {
+	var order []int
+	for _, h := range printed {
+		if j := slices.IndexFunc(cols, func(c Column) bool { return c.Head == h }); j >= 0 {
+			order = append(order, j)
+		}
+	}
+	n := len(order)
+	for j := range cols {
+		if !slices.Contains(order, j) {
+			order = append(order, j)
+		}
+	}
+	outCols := make([]Column, len(cols))
+	for i, j := range order {
+		outCols[i] = cols[j]
+	}
+	outRows := make([][]any, len(rows))
+	for k, r := range rows {
+		outRows[k] = make([]any, len(r))
+		for i, j := range order {
+			outRows[k][i] = r[j]
+		}
+	}
+	return outCols, outRows, n
+}
+
 // streamTable writes one sheet's header and rows through the stream writer, each column as wide
-// as its widest cell or the longest word of its (wrapped) header.
-func streamTable(f *excelize.File, sheet string, cols []Column, rows [][]any, head [2]int, styles map[CellKind]int) error {
+// as its widest cell or the longest word of its (wrapped) header; the text columns of the first
+// printed are narrowed (wrapped) until those columns fit the page width at 100 %.
+func streamTable(f *excelize.File, sheet string, cols []Column, rows [][]any, printed int, head [2]int,
+	styles map[CellKind]int) error {
 	sw, err := f.NewStreamWriter(sheet)
 	if err != nil {
 		return err
 	}
-	widths := make([]int, len(cols))
+	widths, least := make([]int, len(cols)), make([]int, len(cols))
 	for j, c := range cols {
 		w := 0
 		for _, word := range strings.Fields(c.Head) {
 			w = max(w, utf8.RuneCountInString(word))
 		}
-		w = max(w, min(utf8.RuneCountInString(c.Head), 12)) // a short header stays on one line
-		w += (w + 4) / 5                                    // the header is bold: a fifth wider
+		least[j] = w + (w+4)/5                              // the header's longest word, bold: a fifth wider
+		w = max(w, min(utf8.RuneCountInString(c.Head), 12)) // a short header stays on one line if it can
+		w += (w + 4) / 5
 		for _, r := range rows {
-			w = max(w, utf8.RuneCountInString(shownText(r[j], c.Kind)))
+			t := shownText(r[j], c.Kind)
+			w = max(w, utf8.RuneCountInString(t))
+			if c.Kind == KindText {
+				for _, word := range strings.Fields(t) {
+					least[j] = max(least[j], utf8.RuneCountInString(word))
+				}
+			} else {
+				least[j] = max(least[j], utf8.RuneCountInString(t)) // a number is never wrapped
+			}
 		}
-		widths[j] = min(max(w+2, 6), maxColumnWidth)
+		pad := 0
+		if c.Kind == KindText {
+			pad = 2 // the text is indented from the number to its left
+		}
+		widths[j] = min(max(unitsOf(w)+pad, 6), maxColumnWidth)
+		least[j] = min(max(unitsOf(least[j])+pad, 6), widths[j])
+	}
+	fitWidths(widths[:printed], least[:printed], PrintableWidthPt(PaperA4, true))
+	for j := range widths {
 		if err := sw.SetColWidth(j+1, j+1, float64(widths[j])); err != nil {
 			return err
 		}
@@ -293,11 +378,38 @@ func streamTable(f *excelize.File, sheet string, cols []Column, rows [][]any, he
 	return sw.Flush()
 }
 
+// unitsOf is the column width that holds n characters of the export's 10 pt type, with the
+// cell's padding: 10 pt text holds about 1.2 characters per width unit (charsPerUnit), a
+// margin left for bold and for wide letters.
+func unitsOf(n int) int { return int(math.Ceil(float64(n)/1.1)) + 1 }
+
 // maxColumnWidth is the widest a column of the register's export gets; longer text wraps.
 const maxColumnWidth = 40
 
-// lineHeight is the height of one line of text in points (the default 11-point font).
-const lineHeight = 15
+// fitWidths narrows the widest column that can be narrowed (down to least, its longest word),
+// one unit at a time, until the columns print within pagePt.
+func fitWidths(widths, least []int, pagePt float64) {
+	for {
+		total, widest := 0.0, -1
+		for j, w := range widths {
+			total += ColumnPt(float64(w))
+			if w > least[j] && (widest < 0 || w > widths[widest]) {
+				widest = j
+			}
+		}
+		if total <= pagePt || widest < 0 {
+			return
+		}
+		widths[widest]--
+	}
+}
+
+// registerPt is the type size of the register's export, and lineHeight the height of one line
+// of it in points.
+const (
+	registerPt = 10.0
+	lineHeight = 13
+)
 
 // rowHeight is the height of a row whose text cells wrap at their columns' widths, word by word
 // (bold text a fifth wider).
@@ -325,7 +437,7 @@ func rowHeight(cells []any, widths []int, bold bool) float64 {
 		}
 		lines = max(lines, n)
 	}
-	return float64(lines * lineHeight)
+	return float64(lines*lineHeight + 2)
 }
 
 // registerCell is one cell: text as text (never a formula), a date as a date, a number with its
@@ -342,8 +454,14 @@ func registerCell(v any, k CellKind, styles map[CellKind]int) any {
 		}
 		return excelize.Cell{StyleID: styles[KindText], Value: x}
 	}
+	if x, ok := v.(float64); ok && k == KindKg && sigDecimals(x) > 0 {
+		return excelize.Cell{StyleID: styles[kgKind(sigDecimals(x))], Value: v}
+	}
 	return excelize.Cell{StyleID: styles[k], Value: v}
 }
+
+// kgKind is the style's key of a mass shown to d decimals (three significant figures).
+func kgKind(d int) CellKind { return CellKind(100 + d) }
 
 // shownText is about what a cell shows, to fit its column's width.
 func shownText(v any, k CellKind) string {
@@ -368,7 +486,7 @@ func shownText(v any, k CellKind) string {
 // registerPrint sets the print setup: A4 landscape, fitted to one page wide (as many pages
 // tall as it takes), the header row repeated on every page, the title in the header and page
 // numbers in the footer.
-func registerPrint(f *excelize.File, sheet string) error {
+func registerPrint(f *excelize.File, sheet string, printedCols, lastRow int) error {
 	paper, orient, one, auto, fit := PaperA4, "landscape", 1, 0, true
 	if err := f.SetPageLayout(sheet, &excelize.PageLayoutOptions{Size: &paper, Orientation: &orient, FitToWidth: &one,
 		FitToHeight: &auto}); err != nil {
@@ -378,8 +496,18 @@ func registerPrint(f *excelize.File, sheet string) error {
 		return err
 	}
 	if err := f.SetHeaderFooter(sheet, &excelize.HeaderFooterOptions{
-		OddHeader: "&Lblackmass lot register: " + escapeRegisterHF(sheet) + "&R&D",
-		OddFooter: "&LEach figure on its best evidence: see the basis columns&RPage &P of &N"}); err != nil {
+		OddHeader: "&Lblackmass lot register: " + escapeRegisterHF(sheet) + "&RPage &P of &N",
+		OddFooter: "&L" + escapeRegisterHF("Each figure on its best evidence: see the basis columns; more columns in the file, right of the printed ones") + "&RPage &P of &N"}); err != nil {
+		return err
+	}
+	side, top, band := MarginSideIn, MarginTopIn, MarginHeaderIn
+	if err := f.SetPageMargins(sheet, &excelize.PageLayoutMarginsOptions{Left: &side, Right: &side, Top: &top, Bottom: &top,
+		Header: &band, Footer: &band}); err != nil {
+		return err
+	}
+	end, _ := excelize.ColumnNumberToName(max(printedCols, 1))
+	if err := f.SetDefinedName(&excelize.DefinedName{Name: "_xlnm.Print_Area",
+		RefersTo: fmt.Sprintf("'%s'!$A$1:$%s$%d", sheet, end, max(lastRow, 1)), Scope: sheet}); err != nil {
 		return err
 	}
 	return f.SetDefinedName(&excelize.DefinedName{Name: "_xlnm.Print_Titles", RefersTo: "'" + sheet + "'!$1:$1", Scope: sheet})

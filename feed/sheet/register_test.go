@@ -47,8 +47,8 @@ func TestWriteRegister(t *testing.T) {
 		t.Fatal(err)
 	}
 	defer f.Close()
-	lc, lr := LotsTable(registerLots())
-	mc, mr := MetalsTable(registerLots())
+	lc, lr, _ := lotsSheet(registerLots())
+	mc, mr, _ := metalsSheet(registerLots())
 	for _, tab := range []struct {
 		sheet string
 		cols  []Column
@@ -63,14 +63,21 @@ func TestWriteRegister(t *testing.T) {
 			name, _ := excelize.ColumnNumberToName(j + 1)
 			w, _ := f.GetColWidth(sheet, name)
 			// The header wraps at its spaces: the column holds its longest word and every cell's text.
+			// A text column of the printed ones may be narrower, wrapped, down to its longest word.
 			need := 0
 			for _, word := range strings.Fields(c.Head) {
 				need = max(need, len([]rune(word)))
 			}
 			for _, r := range rows {
-				need = max(need, len([]rune(shownText(r[j], c.Kind))))
+				if c.Kind == KindText {
+					for _, word := range strings.Fields(shownText(r[j], c.Kind)) {
+						need = max(need, len([]rune(word)))
+					}
+				} else {
+					need = max(need, len([]rune(shownText(r[j], c.Kind))))
+				}
 			}
-			if w < float64(min(need+1, maxColumnWidth)) {
+			if w < min(float64(need)/1.1+1, maxColumnWidth) { // 10 pt text: 1.1 characters a unit with a margin
 				t.Errorf("column %s %q: width %v, its text needs %d", name, c.Head, w, need)
 			}
 			head, _ := f.GetCellValue(sheet, name+"1")
@@ -91,6 +98,14 @@ func TestWriteRegister(t *testing.T) {
 					if style.CustomNumFmt == nil || *style.CustomNumFmt != "yyyy-mm-dd" || typ == excelize.CellTypeSharedString || typ == excelize.CellTypeInlineString {
 						t.Errorf("%s: a date should be a number formatted as a date (type %v, style %+v)", cell, typ, style.CustomNumFmt)
 					}
+				case !isText && c.Kind == KindKg:
+					want := kindFormat[KindKg] // zero, and from 100 kg: whole kilograms
+					if d := sigDecimals(r[j].(float64)); d > 0 {
+						want = fixedFmt(d)
+					}
+					if style.CustomNumFmt == nil || *style.CustomNumFmt != want {
+						t.Errorf("%s (%s): number format %v, want %q (three significant figures)", cell, c.Head, style.CustomNumFmt, want)
+					}
 				case !isText && (style.CustomNumFmt == nil || *style.CustomNumFmt != kindFormat[c.Kind]):
 					t.Errorf("%s (%s): number format %v, want %q", cell, c.Head, style.CustomNumFmt, kindFormat[c.Kind])
 				}
@@ -99,7 +114,7 @@ func TestWriteRegister(t *testing.T) {
 		checkPrint(t, f, sheet)
 	}
 	// The money format has thousands separators and two decimals; a mass three figures.
-	if !strings.Contains(kindFormat[KindMoney], "#,##0.00") || !strings.Contains(kindFormat[KindKg], "0.00") {
+	if !strings.Contains(kindFormat[KindMoney], "#,##0.00") || sigFmt(0.0123) != "#,##0.0000" {
 		t.Errorf("formats %v", kindFormat)
 	}
 	// Text that looks like a formula stays text.

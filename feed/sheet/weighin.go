@@ -3,7 +3,7 @@ package sheet
 import "fmt"
 
 // weighInWidths are the Weigh-in sheet's columns (A4 portrait at 100 %).
-var weighInWidths = []float64{30, 11, 11, 11, 12, 12}
+var weighInWidths = []float64{28, 11, 11, 11, 14, 12}
 
 // weighIn is where the bench records container weights and moisture; live formulas give the net
 // and dry weights and compare the net weight with the estimate.
@@ -18,6 +18,9 @@ func (w *writer) weighIn() error {
 	p.blank()
 	head := p.header("container", "gross (kg)", "tare (kg)", "net (kg)", "moisture (wt%)", "dry net (kg)")
 	w.printTitles(s, head, head)
+	for col := 2; col <= 6; col++ {
+		p.alignHead(col) // the columns take weights and moisture: numbers, aligned right
+	}
 	const first, last = 4, 23
 	in := cellValue{fmt: fmtSig3, b: edit}
 	for i := first; i <= last; i++ {
