@@ -97,7 +97,7 @@ func (w *writer) order(p *page) {
 		p.add(l.Reagent, kg(l.Kg.P50*perKg), kg(l.Kg.P90*perKg), lp50, lp90, kg(l.KgPerTonneBM), as(indented, suggestion(l)), price, cost)
 	}
 	if len(o.Unpriced) > 0 {
-		p.add(note("Not priced reagents are left out of every cost; give --acid-price and --h2o2-price to price them."))
+		p.add(note("Not priced reagents are left out of every cost; give --acid-price and --h2o2-price (--recover-prices for the recovery's) to price them."))
 	}
 	p.blank()
 }
