@@ -15,6 +15,7 @@ import (
 	"blackmass/feed/report"
 	"blackmass/feed/run"
 	"blackmass/feed/text"
+	"blackmass/feed/value"
 )
 
 // recoverFlags choose the recovery flowsheet: --recover for the default, --flowsheet for the
@@ -193,7 +194,7 @@ func runRecover(cmd *cobra.Command, o *recoverCmdOptions, path string) error {
 		return err
 	}
 	ro := run.Options{Seed: o.seed, Samples: o.samples, Recover: fsheet, Prices: prices, RecoverPrices: rp,
-		Inputs: report.Inputs{Version: version}}
+		Containers: value.DefaultContainers(), Inputs: report.Inputs{Version: version}}
 	rep, err := run.RecoverLiquor(t, ro, m)
 	if err != nil {
 		return err
@@ -206,6 +207,7 @@ func runRecover(cmd *cobra.Command, o *recoverCmdOptions, path string) error {
 	fmt.Fprintf(w, "liquor %s: %g L, %s, free acid %g mol/L; Monte Carlo %d samples, seed %d\n", lq.File, lq.VolumeL,
 		lq.Anion, lq.FreeAcidMolPerL, rep.Inputs.Samples, rep.Inputs.Seed)
 	text.WriteRecovery(w, rep.Recovery)
+	text.WriteOrder(w, rep.Order)
 	return nil
 }
 

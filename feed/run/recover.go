@@ -103,7 +103,12 @@ func RecoverLiquor(t *Tables, o Options, m *recover.Measured) (*report.LiquorRep
 	}
 	in := o.Inputs
 	in.File, in.Seed, in.Samples = m.File, o.Seed, o.Samples
-	r := &report.LiquorReport{Inputs: in, Liquor: m, Recovery: rec}
+	cur := ""
+	if o.RecoverPrices != nil {
+		cur = o.RecoverPrices.Currency
+	}
+	r := &report.LiquorReport{Inputs: in, Liquor: m, Recovery: rec,
+		Order: value.Order(nil, recoveryPurchases(rec, o.RecoverPrices), 0, o.Containers, cur)}
 	if err := r.CheckFinite(); err != nil {
 		return nil, err
 	}

@@ -55,6 +55,9 @@ func Write(w io.Writer, r *report.Report, command string, quiet bool) {
 	writeTail(w, r)
 }
 
+// WriteOrder prints an order sheet on its own (a measured liquor's recovery reagents).
+func WriteOrder(w io.Writer, o *value.OrderSheet) { writeOrderText(w, o) }
+
 // writeOrderText prints the order sheet: each reagent for the lot and per tonne of black mass,
 // in the containers named, with its price or the lack of one.
 func writeOrderText(w io.Writer, o *value.OrderSheet) {
@@ -81,7 +84,11 @@ func writeOrderText(w io.Writer, o *value.OrderSheet) {
 		if l.CostP90 != nil {
 			cost = Money(*l.CostP90) + " " + cur
 		}
-		fmt.Fprintf(tw, "  %s\t%s\t%s\t%s\t%s\n", l.Reagent, amount, FmtMass(l.KgPerTonneBM), buy, cost)
+		perT := "—" // no black mass: a measured liquor
+		if l.KgPerTonneBM > 0 {
+			perT = FmtMass(l.KgPerTonneBM)
+		}
+		fmt.Fprintf(tw, "  %s\t%s\t%s\t%s\t%s\n", l.Reagent, amount, perT, buy, cost)
 	}
 	tw.Flush()
 	if len(o.Unpriced) > 0 {

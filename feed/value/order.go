@@ -79,10 +79,14 @@ type Purchase struct {
 
 // Order builds the order sheet of a leach plan, and of the recovery's reagents after it
 // (recovery, in the order given), in the containers given; blackMassKg is the lot's black mass
-// (P50), for the amounts per tonne.
+// (P50), for the amounts per tonne (0: none, as for a measured liquor). Nil without a leach and
+// without recovery reagents.
 func Order(l *leach.Report, recovery []Purchase, blackMassKg float64, containers []Container, currency string) *OrderSheet {
-	if l == nil {
+	if l == nil && len(recovery) == 0 {
 		return nil
+	}
+	if l == nil { // a measured liquor's recovery: no leach to buy for
+		l = &leach.Report{}
 	}
 	os := &OrderSheet{Basis: "each reagent to its P90 amount (short in at most one outcome of ten)", Currency: currency}
 	bmT := blackMassKg / 1000
