@@ -154,7 +154,8 @@ func newRecoverCmd() *cobra.Command {
 	intVar(fl, &o.samples, "samples", 2000, 10, 200_000, "from 10 to 200,000", "Monte Carlo samples of the stages' parameters")
 	fl.StringVar(&o.volume, "volume", "", "the liquor's volume: 1200L, 1.2m3 (or a volume row in the file)")
 	fl.BoolVar(&o.asJSON, "json", false, "write the report as JSON")
-	fl.StringVar(&o.prices, "prices", "", "prices CSV: Co, Ni, Cu metal and Li (LCE) price the products")
+	fl.StringVar(&o.prices, "prices", "", "prices CSV: product rows (Li2CO3, CoSO4·7H2O, Co cathode ...) price the products; "+
+		"without one, Co, Ni, Cu metal and Li (LCE)")
 	return cmd
 }
 
