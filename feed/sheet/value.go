@@ -114,7 +114,7 @@ func productValue(p *page, pv *recover.ProductValue) {
 	p.title(fmt.Sprintf("Recovered products instead, at product prices (%s)", pv.Currency))
 	p.header("product", "dry kg (P50)", "price per kg", "priced as", "", "value P10", "value P50", "value P90", "price source")
 	for _, it := range pv.Items {
-		p.add(it.Name, it.DryKg.P50, money(it.PricePerKg), it.Item, nil, money(it.Value.P10), money(it.Value.P50),
+		p.add(it.Name, it.DryKg.P50, money(it.PricePerKg), as(indented, it.Item), nil, money(it.Value.P10), money(it.Value.P50),
 			money(it.Value.P90), as(indented, it.Source))
 	}
 	for _, name := range pv.Unpriced {
