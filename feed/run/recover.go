@@ -31,7 +31,7 @@ func planRecovery(t *Tables, o Options, r *report.Report) error {
 
 // recoveryPurchases are the recovery's reagents to order, as bought, each at its price from
 // the recovery reagents' prices (when given); those not bought (air, ozone made on site) are
-// left out.
+// marked so.
 func recoveryPurchases(rec *recover.Report, rp *recover.ReagentPrices) []value.Purchase {
 	if rec == nil {
 		return nil
@@ -39,6 +39,7 @@ func recoveryPurchases(rec *recover.Report, rp *recover.ReagentPrices) []value.P
 	var out []value.Purchase
 	for _, g := range rec.Reagents {
 		if g.OrderAs == "" {
+			out = append(out, value.Purchase{Reagent: g.Name + " (recovery)", NotBought: true})
 			continue
 		}
 		p := value.Purchase{Reagent: g.OrderAs + " (recovery)", Kg: g.Commercial, Litres: g.Litres}

@@ -94,6 +94,9 @@ func writeOrderText(w io.Writer, o *value.OrderSheet) {
 	if len(o.Unpriced) > 0 {
 		fmt.Fprintf(w, "  not priced: %s (their cost is left out of every total)\n", strings.Join(o.Unpriced, ", "))
 	}
+	if len(o.NotBought) > 0 {
+		fmt.Fprintf(w, "  not bought: %s (air, or made on site)\n", strings.Join(o.NotBought, ", "))
+	}
 }
 
 // keyMetalsShown are the metals the summary names.

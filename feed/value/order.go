@@ -60,6 +60,8 @@ type OrderSheet struct {
 	Currency string      `json:"currency,omitempty"`
 	Lines    []OrderLine `json:"reagents"`
 	Unpriced []string    `json:"unpriced,omitempty"`
+	// NotBought are reagents a stage uses that are not bought (air, ozone made on site).
+	NotBought []string `json:"not_bought,omitempty"`
 }
 
 // Stages an order line is bought for.
@@ -75,6 +77,8 @@ type Purchase struct {
 	Kg         dist.Stat
 	Litres     *dist.Stat
 	PricePerKg float64
+	// NotBought marks a reagent that is not ordered (air, ozone made on site): listed, no line.
+	NotBought bool
 }
 
 // Order builds the order sheet of a leach plan, and of the recovery's reagents after it
@@ -138,6 +142,10 @@ func Order(l *leach.Report, recovery []Purchase, blackMassKg float64, containers
 		add(StageLeach, sc.Reagent+" (chlorine scrubber)", sc.Kg, &v, 0)
 	}
 	for _, p := range recovery {
+		if p.NotBought {
+			os.NotBought = append(os.NotBought, p.Reagent)
+			continue
+		}
 		add(StageRecovery, p.Reagent, p.Kg, p.Litres, p.PricePerKg)
 	}
 	return os

@@ -90,6 +90,7 @@ func TestOrderRecoveryReagents(t *testing.T) {
 	rec := []Purchase{
 		{Reagent: "NaOH 50 % (recovery)", Kg: naoh, Litres: &naohL, PricePerKg: 0.45},
 		{Reagent: "KMnO4 (recovery)", Kg: dist.Stat{P50: 20.5, P90: 23.0}},
+		{Reagent: "O3 (recovery)", Kg: dist.Stat{P50: 9, P90: 10}, NotBought: true},
 	}
 	o := Order(&leach.Report{}, rec, 237, DefaultContainers(), "EUR")
 	if len(o.Lines) != 2 {
@@ -116,6 +117,9 @@ func TestOrderRecoveryReagents(t *testing.T) {
 		if strings.Contains(c.Container, " L ") {
 			t.Errorf("a solid offered in %s", c.Container)
 		}
+	}
+	if len(o.NotBought) != 1 || o.NotBought[0] != "O3 (recovery)" {
+		t.Errorf("not bought %v", o.NotBought)
 	}
 	if len(o.Unpriced) != 1 || o.Unpriced[0] != "KMnO4 (recovery)" {
 		t.Errorf("unpriced %v", o.Unpriced)
