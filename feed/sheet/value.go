@@ -2,6 +2,7 @@ package sheet
 
 import (
 	"fmt"
+	"strings"
 
 	"blackmass/feed/recover"
 	"blackmass/feed/value"
@@ -103,6 +104,9 @@ func (w *writer) order(p *page) {
 	}
 	if len(o.Unpriced) > 0 {
 		p.add(note("Not priced reagents are left out of every cost; give --acid-price and --h2o2-price (--recover-prices for the recovery's) to price them."))
+	}
+	if len(o.NotBought) > 0 {
+		p.add(note("Not bought (air, or made on site): " + strings.Join(o.NotBought, ", ") + "."))
 	}
 	p.blank()
 }
