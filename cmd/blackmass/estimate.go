@@ -73,7 +73,8 @@ func (o *estimateOptions) bind(cmd *cobra.Command) {
 	fl.BoolVar(&o.force, "force", false, "overwrite an existing workbook")
 	fl.StringVar(&o.paper, "paper", "a4", "the workbook's paper size: a4 or letter")
 	_ = cmd.RegisterFlagCompletionFunc("paper", cobra.FixedCompletions([]string{"a4", "letter"}, cobra.ShellCompDirectiveNoFileComp))
-	fl.StringVar(&o.prices, "prices", "", "prices CSV (item, basis, price_per_kg, currency, payable, source): adds the lot's value")
+	fl.StringVar(&o.prices, "prices", "", "prices CSV (item, basis, price_per_kg, currency, payable, source): adds the lot's value; "+
+		"product rows (Li2CO3, CoSO4·7H2O, Co cathode ...; basis product) value the recovery's products")
 	o.leach.bind(cmd)
 	o.recover.bind(cmd)
 }

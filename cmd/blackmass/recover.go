@@ -15,6 +15,7 @@ import (
 	"blackmass/feed/report"
 	"blackmass/feed/run"
 	"blackmass/feed/text"
+	"blackmass/feed/value"
 )
 
 // recoverFlags choose the recovery flowsheet: --recover for the default, --flowsheet for the
@@ -153,7 +154,8 @@ func newRecoverCmd() *cobra.Command {
 	intVar(fl, &o.samples, "samples", 2000, 10, 200_000, "from 10 to 200,000", "Monte Carlo samples of the stages' parameters")
 	fl.StringVar(&o.volume, "volume", "", "the liquor's volume: 1200L, 1.2m3 (or a volume row in the file)")
 	fl.BoolVar(&o.asJSON, "json", false, "write the report as JSON")
-	fl.StringVar(&o.prices, "prices", "", "prices CSV: Co, Ni, Cu metal and Li (LCE) price the products")
+	fl.StringVar(&o.prices, "prices", "", "prices CSV: product rows (Li2CO3, CoSO4·7H2O, Co cathode ...) price the products; "+
+		"without one, Co, Ni, Cu metal and Li (LCE)")
 	return cmd
 }
 
@@ -193,7 +195,7 @@ func runRecover(cmd *cobra.Command, o *recoverCmdOptions, path string) error {
 		return err
 	}
 	ro := run.Options{Seed: o.seed, Samples: o.samples, Recover: fsheet, Prices: prices, RecoverPrices: rp,
-		Inputs: report.Inputs{Version: version}}
+		Containers: value.DefaultContainers(), Inputs: report.Inputs{Version: version}}
 	rep, err := run.RecoverLiquor(t, ro, m)
 	if err != nil {
 		return err
@@ -206,6 +208,7 @@ func runRecover(cmd *cobra.Command, o *recoverCmdOptions, path string) error {
 	fmt.Fprintf(w, "liquor %s: %g L, %s, free acid %g mol/L; Monte Carlo %d samples, seed %d\n", lq.File, lq.VolumeL,
 		lq.Anion, lq.FreeAcidMolPerL, rep.Inputs.Samples, rep.Inputs.Seed)
 	text.WriteRecovery(w, rep.Recovery)
+	text.WriteOrder(w, rep.Order)
 	return nil
 }
 

@@ -119,3 +119,37 @@ func TestRecoverCommand(t *testing.T) {
 		}
 	}
 }
+
+// demo --recover puts the recovery's reagents on the order sheet after the leach's and values
+// the products at the invented product prices beside the payables; a prices file with an item
+// that is neither a metal nor a product is refused naming its file, line and column.
+func TestDemoRecoverOrderAndProductPrices(t *testing.T) {
+	code, out, errs := cli(t, "", "demo", "--recover", "--samples", "300")
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	order := out[strings.Index(out, "order sheet ("):]
+	for _, want := range []string{"H2SO4 98 %", "NaOH 50 % (recovery)", "KMnO4 (recovery)", "Na2CO3 soda ash (recovery)",
+		"iron powder (recovery)", "200 L drum"} {
+		if !strings.Contains(order, want) {
+			t.Errorf("order sheet lacks %q:\n%s", want, order)
+		}
+	}
+	if strings.Index(order, "H2SO4 98 %") > strings.Index(order, "(recovery)") {
+		t.Error("the leach's reagents come first")
+	}
+	for _, want := range []string{"recovered products instead (EUR", "value of Ni(OH)2:", "value of Co cathode:"} {
+		if !strings.Contains(out, want) {
+			t.Errorf("text lacks %q", want)
+		}
+	}
+	p := filepath.Join(t.TempDir(), "p.csv")
+	body := "item,basis,price_per_kg,currency,payable,source\nCo,metal,24,EUR,0.7,x\nCoSO4·5H2O,product,5,EUR,,x\n"
+	if err := os.WriteFile(p, []byte(body), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	code, _, errs = cli(t, "", "demo", "--recover", "--samples", "50", "--prices", p)
+	if code == 0 || !strings.Contains(errs, "p.csv:3: item \"CoSO4·5H2O\"") {
+		t.Errorf("unknown product: exit %d, %s", code, errs)
+	}
+}

@@ -8,6 +8,7 @@ import (
 
 	"blackmass/cathode"
 	"blackmass/data"
+	"blackmass/feed/recover"
 	"blackmass/feed/value"
 )
 
@@ -15,9 +16,12 @@ import (
 // (common practice, with a wide margin).
 const maxPricePerKg = 1e6
 
-// ReadPrices reads a prices file: columns item (an element symbol), basis (metal, or LCE for
-// lithium), price_per_kg, currency, payable (a share 0..1 or a percentage), source. Every row
-// must carry the same currency; an element may be priced once.
+// ReadPrices reads a prices file: columns item, basis, price_per_kg, currency, payable, source.
+// An element row (item a metal symbol; basis metal, or LCE for lithium) prices the black mass,
+// with its payable share (0..1 or a percentage); a product row (item a product of the
+// recovery by formula or name, Li2CO3, CoSO4·7H2O, Co cathode ...; basis product or empty)
+// prices that product per kg as sold, payable left empty. Every row carries the same currency;
+// an element or a product is priced once.
 func ReadPrices(r io.Reader, name string) (*value.PriceList, error) {
 	t, err := data.ParseTable(r, name)
 	if err != nil {
@@ -45,14 +49,26 @@ func ReadPrices(r io.Reader, name string) (*value.PriceList, error) {
 			return &Error{File: name, Line: row.Line, Column: col, Value: val, Reason: reason}
 		}
 		el := row.Str("item")
-		if es.Lookup(el) == nil || !cathode.IsMetal(el) {
-			return nil, fail("item", el, "not a metal symbol (Co, Ni, Li, Mn, Cu, Al ...; case matters)")
+		basis := row.Str("basis")
+		if strings.EqualFold(basis, value.BasisProduct) || es.Lookup(el) == nil || !cathode.IsMetal(el) {
+			pp, err := productPrice(row, fail, el, basis)
+			if err != nil {
+				return nil, err
+			}
+			if first, dup := seen["product "+pp.Item]; dup {
+				return nil, fail("item", el, fmt.Sprintf("product %s priced twice (first on line %d)", pp.Item, first))
+			}
+			seen["product "+pp.Item] = row.Line
+			if err := oneCurrency(pl, row, fail); err != nil {
+				return nil, err
+			}
+			pl.Products = append(pl.Products, pp)
+			continue
 		}
 		if first, dup := seen[el]; dup {
 			return nil, fail("item", el, fmt.Sprintf("priced twice (first on line %d)", first))
 		}
 		seen[el] = row.Line
-		basis := row.Str("basis")
 		switch {
 		case basis == "" || strings.EqualFold(basis, value.BasisMetal):
 			basis = value.BasisMetal
@@ -65,14 +81,8 @@ func ReadPrices(r io.Reader, name string) (*value.PriceList, error) {
 		if err != nil || price < 0 || price > maxPricePerKg {
 			return nil, fail("price_per_kg", row.Str("price_per_kg"), fmt.Sprintf("want a price from 0 to %g per kg", float64(maxPricePerKg)))
 		}
-		cur := strings.ToUpper(row.Str("currency"))
-		if cur == "" || len(cur) > 8 {
-			return nil, fail("currency", row.Str("currency"), "want a currency code such as EUR or USD")
-		}
-		if pl.Currency == "" {
-			pl.Currency = cur
-		} else if cur != pl.Currency {
-			return nil, fail("currency", cur, fmt.Sprintf("every row must use one currency (the first row uses %s)", pl.Currency))
+		if err := oneCurrency(pl, row, fail); err != nil {
+			return nil, err
 		}
 		pay, err := share(row.Str("payable"))
 		if err != nil {
@@ -81,6 +91,48 @@ func ReadPrices(r io.Reader, name string) (*value.PriceList, error) {
 		pl.Prices = append(pl.Prices, value.Price{Element: el, Basis: basis, PerKg: price, Payable: pay, Source: row.Str("source")})
 	}
 	return pl, nil
+}
+
+// productPrice reads a row that prices a product of the recovery: the item by formula or name
+// (Li2CO3, CoSO4·7H2O, nickel hydroxide, Co cathode; a metal symbol with basis product is its
+// electrowon metal), per kg of the product as sold, so the payable share is left empty (or 1).
+func productPrice(row data.Row, fail func(col, val, reason string) error, item, basis string) (value.ProductPrice, error) {
+	if basis != "" && !strings.EqualFold(basis, value.BasisProduct) {
+		return value.ProductPrice{}, fail("basis", basis, "a product is priced per kg of the product: basis product (or empty)")
+	}
+	key, ok := recover.LookupProduct(item)
+	if !ok && strings.EqualFold(basis, value.BasisProduct) {
+		key, ok = recover.LookupProduct(item + " metal")
+	}
+	if !ok {
+		return value.ProductPrice{}, fail("item", item, "neither a metal symbol (Co, Ni, Li, Mn, Cu, Al ...; case matters) "+
+			"nor a product of the recovery (want one of "+strings.Join(recover.ProductKeys(), ", ")+")")
+	}
+	price, err := ParseNumber(row.Str("price_per_kg"), false)
+	if err != nil || price < 0 || price > maxPricePerKg {
+		return value.ProductPrice{}, fail("price_per_kg", row.Str("price_per_kg"),
+			fmt.Sprintf("want a price from 0 to %g per kg", float64(maxPricePerKg)))
+	}
+	if p := strings.TrimSpace(row.Str("payable")); p != "" {
+		if v, err := share(p); err != nil || v != 1 {
+			return value.ProductPrice{}, fail("payable", p, "a product is priced as sold: leave payable empty (or 1)")
+		}
+	}
+	return value.ProductPrice{Item: key, PerKg: price, Source: row.Str("source"), Line: row.Line}, nil
+}
+
+// oneCurrency reads a row's currency, the same for every row of the file.
+func oneCurrency(pl *value.PriceList, row data.Row, fail func(col, val, reason string) error) error {
+	cur := strings.ToUpper(row.Str("currency"))
+	if cur == "" || len(cur) > 8 {
+		return fail("currency", row.Str("currency"), "want a currency code such as EUR or USD")
+	}
+	if pl.Currency == "" {
+		pl.Currency = cur
+	} else if cur != pl.Currency {
+		return fail("currency", cur, fmt.Sprintf("every row must use one currency (the first row uses %s)", pl.Currency))
+	}
+	return nil
 }
 
 // priceColumns are the columns of a prices file; any other is refused by name, so a misspelt

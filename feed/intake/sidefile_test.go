@@ -95,3 +95,44 @@ func TestCheckFreeText(t *testing.T) {
 		}
 	}
 }
+
+// A prices file carries the recovery's products by formula or name beside the elements, each
+// at its own price per kg as sold; an item that is neither a metal nor a product is refused by
+// file, line and column.
+func TestPricesProducts(t *testing.T) {
+	t.Parallel()
+	in := pricesHead + "Co,metal,30,EUR,0.7,a\nLi2CO3,product,9.5,EUR,,b\nCoSO4.7H2O,,5.2,EUR,,c\n" +
+		"nickel hydroxide,product,9,EUR,100%,d\nNi,product,16,EUR,,e\n"
+	pl, err := intake.ReadPrices(strings.NewReader(in), "p.csv")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(pl.Prices) != 1 || pl.Prices[0].Element != "Co" {
+		t.Errorf("elements %+v", pl.Prices)
+	}
+	want := []struct {
+		item  string
+		price float64
+		line  int
+	}{{"Li2CO3", 9.5, 3}, {"CoSO4·7H2O", 5.2, 4}, {"Ni(OH)2", 9, 5}, {"Ni cathode", 16, 6}}
+	if len(pl.Products) != len(want) {
+		t.Fatalf("products %+v", pl.Products)
+	}
+	for i, w := range want {
+		if p := pl.Products[i]; p.Item != w.item || p.PerKg != w.price || p.Line != w.line {
+			t.Errorf("product %d: %+v, want %+v", i, p, w)
+		}
+	}
+	for _, c := range []struct{ in, want string }{
+		{"Unobtainium oxide,product,3,EUR,,x\n", `p.csv:2: item "Unobtainium oxide": neither a metal symbol`},
+		{"Co,metal,30,EUR,0.7,a\nLiOH·H2O,,3,EUR,,x\n", `p.csv:3: item "LiOH·H2O": neither a metal symbol`},
+		{"Li2CO3,LCE,9,EUR,,x\n", `p.csv:2: basis "LCE"`},
+		{"Li2CO3,product,9,EUR,0.8,x\n", `p.csv:2: payable "0.8"`},
+		{"Li2CO3,product,9,EUR,,x\nlithium carbonate,product,9,EUR,,x\n", `p.csv:3: item "lithium carbonate": product Li2CO3 priced twice`},
+		{"Co,metal,30,EUR,0.7,a\nLi2CO3,product,9,USD,,x\n", `p.csv:3: currency "USD"`},
+	} {
+		if _, err := intake.ReadPrices(strings.NewReader(pricesHead+c.in), "p.csv"); err == nil || !strings.Contains(err.Error(), c.want) {
+			t.Errorf("%q: %v, want %q", c.in, err, c.want)
+		}
+	}
+}

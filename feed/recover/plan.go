@@ -37,11 +37,13 @@ type Input struct {
 	ReagentPrices *ReagentPrices
 }
 
-// ProductPrices are prices per kg of product (keys: Li2CO3, Li3PO4, Co, Ni, CoSO4·7H2O,
-// NiSO4·6H2O, Co(OH)2, Ni(OH)2, CoCO3, NiCO3).
+// ProductPrices are prices per kg of product, by a ProductItems key (Li2CO3, Co cathode,
+// CoSO4·7H2O, MnO2 ...) or, as a fallback for electrowon metal and cement, by the metal's
+// symbol (Co, Ni, Cu). Source says where each price came from.
 type ProductPrices struct {
 	Currency string
 	PerKg    map[string]float64
+	Source   map[string]string
 }
 
 type planner struct {

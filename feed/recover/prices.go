@@ -2,6 +2,7 @@ package recover
 
 import (
 	"fmt"
+	"strings"
 
 	"blackmass/feed/dist"
 )
@@ -79,4 +80,74 @@ func (p *planner) cost(rp *ReagentPrices, tallies []*tally, value []float64) *Re
 		rc.Net = &s
 	}
 	return rc
+}
+
+// ProductItem is a product (or cake) the planner can make that a prices file may price: its
+// key (the product's name in the report, or the cake's main phase) and the other names it is
+// known by.
+type ProductItem struct {
+	Key   string
+	Names []string
+}
+
+// ProductItems are the items a prices file may price by formula or name: every product of the
+// stages (electrowon metal, hydroxide, carbonate, oxalate and sulfate of Co and Ni, copper
+// cement, lithium carbonate and phosphate) and the MnO2 cake.
+func ProductItems() []ProductItem {
+	return []ProductItem{
+		{"Li2CO3", []string{"lithium carbonate"}},
+		{"Li3PO4", []string{"lithium phosphate"}},
+		{"Co cathode", []string{"Co metal", "cobalt cathode", "cobalt metal"}},
+		{"Ni cathode", []string{"Ni metal", "nickel cathode", "nickel metal"}},
+		{"Cu cement", []string{"Cu metal", "copper cement"}},
+		{"CoSO4·7H2O", []string{"cobalt sulfate heptahydrate", "cobalt sulphate heptahydrate"}},
+		{"NiSO4·6H2O", []string{"nickel sulfate hexahydrate", "nickel sulphate hexahydrate"}},
+		{"Co(OH)2", []string{"cobalt hydroxide"}},
+		{"Ni(OH)2", []string{"nickel hydroxide"}},
+		{"CoCO3", []string{"cobalt carbonate"}},
+		{"NiCO3", []string{"nickel carbonate"}},
+		{"CoC2O4·2H2O", []string{"cobalt oxalate", "cobalt oxalate dihydrate"}},
+		{"NiC2O4·2H2O", []string{"nickel oxalate", "nickel oxalate dihydrate"}},
+		{"MnO2", []string{"MnO2 cake", "manganese dioxide"}},
+	}
+}
+
+// LookupProduct finds a product item by its key or one of its names, ignoring case, spaces and
+// how a hydrate's dot is written (CoSO4.7H2O, CoSO4*7H2O, CoSO4·7H2O).
+func LookupProduct(s string) (string, bool) {
+	want := productFold(s)
+	for _, it := range ProductItems() {
+		if productFold(it.Key) == want {
+			return it.Key, true
+		}
+		for _, n := range it.Names {
+			if productFold(n) == want {
+				return it.Key, true
+			}
+		}
+	}
+	return "", false
+}
+
+// ProductKeys are the keys of ProductItems, for a message.
+func ProductKeys() []string {
+	var out []string
+	for _, it := range ProductItems() {
+		out = append(out, it.Key)
+	}
+	return out
+}
+
+func productFold(s string) string {
+	var b strings.Builder
+	for _, r := range strings.ToLower(s) {
+		switch r {
+		case ' ', '\t':
+		case '.', '*', '•', '∙', '⋅':
+			b.WriteRune('·')
+		default:
+			b.WriteRune(r)
+		}
+	}
+	return b.String()
 }

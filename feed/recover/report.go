@@ -59,6 +59,8 @@ type Reagent2 struct {
 	WtPct      float64    `json:"commercial_wt_pct"`
 	Commercial dist.Stat  `json:"commercial_kg"`
 	Litres     *dist.Stat `json:"commercial_litres,omitempty"`
+	// OrderAs is its line on the order sheet; empty when it is not bought (air, ozone made on site).
+	OrderAs string `json:"order_as,omitempty"`
 }
 
 // Solid is a product or cake: dry and wet mass, and its composition.
@@ -110,10 +112,22 @@ type Fate struct {
 
 // ProductValue is the products at the prices given.
 type ProductValue struct {
-	Currency string    `json:"currency"`
-	Items    []Flow    `json:"items"` // Kg carries money here
-	Total    dist.Stat `json:"total"`
-	Unpriced []string  `json:"unpriced,omitempty"`
+	Currency string        `json:"currency"`
+	Items    []PricedSolid `json:"items"`
+	Total    dist.Stat     `json:"total"`
+	// Unpriced are the products without a price: valued at nothing, not at a guess.
+	Unpriced []string `json:"unpriced,omitempty"`
+}
+
+// PricedSolid is one product (or cake) at its price: dry kg × price per kg, sample by sample.
+type PricedSolid struct {
+	Name string `json:"name"`
+	// Item is the price list's item it is priced as (the product, or the metal for a cathode).
+	Item       string    `json:"priced_as"`
+	PricePerKg float64   `json:"price_per_kg"`
+	Source     string    `json:"price_source,omitempty"`
+	DryKg      dist.Stat `json:"dry_kg"`
+	Value      dist.Stat `json:"value"`
 }
 
 // negligibleMol is an amount too small to report (a gas of 1e-9 mol is 22 µL).
@@ -198,7 +212,7 @@ func (p *planner) report(in Input, tallies []*tally, res *results) *Report {
 		r.Flowsheet = append(r.Flowsheet, st.String())
 	}
 	var valueDraws []float64
-	r.Value, valueDraws = p.value(in.Prices, r.Products, tallies, in.Flowsheet)
+	r.Value, valueDraws = p.value(in.Prices, tallies)
 	r.Cost = p.cost(in.ReagentPrices, tallies, valueDraws)
 	sort.SliceStable(p.params, func(i, j int) bool { return p.params[i].Scope < p.params[j].Scope })
 	r.Parameters = p.params
@@ -247,7 +261,7 @@ func (p *planner) reagentRows(mol map[string][]float64) []Reagent2 {
 		rg := p.t.reagents[name]
 		kg := scale(mol[name], p.t.molarMass(rg.Formula)/1000)
 		com := scale(kg, 100/rg.WtPct)
-		r2 := Reagent2{Name: name, Kg: dist.Summarise(kg), WtPct: rg.WtPct, Commercial: dist.Summarise(com)}
+		r2 := Reagent2{Name: name, Kg: dist.Summarise(kg), WtPct: rg.WtPct, Commercial: dist.Summarise(com), OrderAs: rg.OrderAs}
 		if rg.DensityGPerML > 0 {
 			l := dist.Summarise(scale(com, 1/rg.DensityGPerML))
 			r2.Litres = &l
@@ -386,52 +400,56 @@ func (p *planner) solid(stage string, st *solidTally) (Solid, bool) {
 	return s, true
 }
 
-// value prices the products: a product is priced by its name, or by its main phase.
-func (p *planner) value(pr *ProductPrices, products []Solid, tallies []*tally, fs Flowsheet) (*ProductValue, []float64) {
+// value prices the products: a product by its name (Co cathode, Li2CO3), else as its metal
+// (Co, Ni, Cu for cathode and cement); a cake only when its main phase is priced (MnO2).
+func (p *planner) value(pr *ProductPrices, tallies []*tally) (*ProductValue, []float64) {
 	if pr == nil {
 		return nil, nil
 	}
 	v := &ProductValue{Currency: pr.Currency}
 	total := make([]float64, p.n)
-	for k, st := range fs.Steps {
-		tl := tallies[k]
+	for _, tl := range tallies {
 		for _, name := range tl.solidOrder {
 			sol := tl.solids[name]
-			if sol.kind != "product" {
-				continue
-			}
-			key := productKey(name)
-			price, ok := pr.PerKg[key]
+			key, price, ok := priceOf(pr, name)
 			if !ok {
-				v.Unpriced = append(v.Unpriced, name)
+				if sol.kind == "product" {
+					v.Unpriced = append(v.Unpriced, name)
+				}
 				continue
 			}
-			_ = st
-			money := make([]float64, p.n)
+			kg := make([]float64, p.n)
 			for _, ph := range sol.phases {
 				for i, m := range sol.phaseMol[ph] {
-					money[i] += m * p.t.molarMass(ph) / 1000 * price
+					kg[i] += m * p.t.molarMass(ph) / 1000
 				}
 			}
+			money := scale(kg, price)
 			for i := range total {
 				total[i] += money[i]
 			}
-			v.Items = append(v.Items, Flow{Name: name, Kg: dist.Summarise(money)})
+			v.Items = append(v.Items, PricedSolid{Name: name, Item: key, PricePerKg: price, Source: pr.Source[key],
+				DryKg: dist.Summarise(kg), Value: dist.Summarise(money)})
 		}
 	}
 	v.Total = dist.Summarise(total)
 	return v, total
 }
 
-// productKey is the price list's name of a product: "Co cathode" and "Cu cement" are priced as
-// the metal.
-func productKey(name string) string {
-	for _, suffix := range []string{" cathode", " cement"} {
+// priceOf finds a solid's price: by its own name, then by the name without " cathode",
+// " cement" or " cake" (the metal, or the cake's phase).
+func priceOf(pr *ProductPrices, name string) (string, float64, bool) {
+	if v, ok := pr.PerKg[name]; ok {
+		return name, v, true
+	}
+	for _, suffix := range []string{" cathode", " cement", " cake"} {
 		if k, ok := strings.CutSuffix(name, suffix); ok {
-			return k
+			if v, ok := pr.PerKg[k]; ok {
+				return k, v, true
+			}
 		}
 	}
-	return name
+	return "", 0, false
 }
 
 // stageDescription says what a stage does, in a line.

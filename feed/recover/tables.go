@@ -35,7 +35,9 @@ type Reagent struct {
 	Name, Formula string
 	WtPct         float64
 	DensityGPerML float64 // 0 for a solid or gas
-	Source        string
+	// OrderAs names it on the order sheet; empty when it is not bought (air, ozone made on site).
+	OrderAs string
+	Source  string
 }
 
 // hydroxide is a hydroxide's solubility constant: M(OH)n + n H+ = M + n H2O.
@@ -150,7 +152,7 @@ func (t *Tables) readReagents(fsys fs.FS) error {
 		return err
 	}
 	for _, r := range tb.Rows {
-		g := Reagent{Name: r.Str("reagent"), Formula: r.Str("formula"), Source: r.Str("source")}
+		g := Reagent{Name: r.Str("reagent"), Formula: r.Str("formula"), OrderAs: r.Str("order_as"), Source: r.Str("source")}
 		if _, err := t.elements.ParseFormula(g.Formula); err != nil {
 			return r.Errorf("formula %q: %v", g.Formula, err)
 		}

@@ -5,6 +5,7 @@ import (
 	"reflect"
 
 	"blackmass/feed/recover"
+	"blackmass/feed/value"
 )
 
 // LiquorReport is the recovery plan of a measured liquor.
@@ -12,6 +13,8 @@ type LiquorReport struct {
 	Inputs   Inputs            `json:"inputs"`
 	Liquor   *recover.Measured `json:"liquor"`
 	Recovery *recover.Report   `json:"recovery"`
+	// Order is the recovery's reagents to order, each to its P90 as bought.
+	Order *value.OrderSheet `json:"order,omitempty"`
 }
 
 // CheckFinite returns an error naming the first number that is NaN or infinite.

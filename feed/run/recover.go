@@ -29,27 +29,56 @@ func planRecovery(t *Tables, o Options, r *report.Report) error {
 	return nil
 }
 
+// recoveryPurchases are the recovery's reagents to order, as bought, each at its price from
+// the recovery reagents' prices (when given); those not bought (air, ozone made on site) are
+// marked so.
+func recoveryPurchases(rec *recover.Report, rp *recover.ReagentPrices) []value.Purchase {
+	if rec == nil {
+		return nil
+	}
+	var out []value.Purchase
+	for _, g := range rec.Reagents {
+		if g.OrderAs == "" {
+			out = append(out, value.Purchase{Reagent: g.Name + " (recovery)", NotBought: true})
+			continue
+		}
+		p := value.Purchase{Reagent: g.OrderAs + " (recovery)", Kg: g.Commercial, Litres: g.Litres}
+		if rp != nil {
+			p.PricePerKg = rp.PerKg[g.Name]
+		}
+		out = append(out, p)
+	}
+	return out
+}
+
 // LiquorFromLeach is the leach's per-sample liquor as the recovery planner reads it.
 func LiquorFromLeach(ls *leach.LiquorSamples) recover.Liquor {
 	return recover.Liquor{VolumeL: ls.VolumeL, WaterKg: ls.WaterKg, ElementKg: ls.ElementKg, FreeAcidMol: ls.FreeAcidMol,
 		Fe3Kg: ls.Fe3Kg, Anion: ls.Anion, AnionMol: ls.AnionMol}
 }
 
-// ProductPrices prices the recovery's products from a price list: Co, Ni and Cu metal at their
-// metal price, Li2CO3 at lithium's price per kg of lithium carbonate equivalent. Salts and
-// hydroxides have no price of their own in a price list by metal, and stay unpriced.
+// ProductPrices prices the recovery's products from a price list: each product row at its own
+// price; without one, Co, Ni and Cu metal (cathode, cement) at their metal price and Li2CO3 at
+// lithium's price per kg of lithium carbonate equivalent. A product with neither stays unpriced.
 func ProductPrices(pl *value.PriceList) *recover.ProductPrices {
 	if pl == nil {
 		return nil
 	}
-	pp := &recover.ProductPrices{Currency: pl.Currency, PerKg: map[string]float64{}}
+	pp := &recover.ProductPrices{Currency: pl.Currency, PerKg: map[string]float64{}, Source: map[string]string{}}
 	for _, p := range pl.Prices {
+		key := ""
 		switch {
 		case p.Element == "Li" && p.Basis == value.BasisLCE:
-			pp.PerKg["Li2CO3"] = p.PerKg
+			key = "Li2CO3"
 		case (p.Element == "Co" || p.Element == "Ni" || p.Element == "Cu") && p.Basis == value.BasisMetal:
-			pp.PerKg[p.Element] = p.PerKg
+			key = p.Element
+		default:
+			continue
 		}
+		pp.PerKg[key], pp.Source[key] = p.PerKg, "black mass price of "+p.Element+" ("+p.Basis+"): "+p.Source
+	}
+	for _, p := range pl.Products {
+		pp.PerKg[p.Item], pp.Source[p.Item] = p.PerKg, p.Source
 	}
 	return pp
 }
@@ -75,7 +104,12 @@ func RecoverLiquor(t *Tables, o Options, m *recover.Measured) (*report.LiquorRep
 	}
 	in := o.Inputs
 	in.File, in.Seed, in.Samples = m.File, o.Seed, o.Samples
-	r := &report.LiquorReport{Inputs: in, Liquor: m, Recovery: rec}
+	cur := ""
+	if o.RecoverPrices != nil {
+		cur = o.RecoverPrices.Currency
+	}
+	r := &report.LiquorReport{Inputs: in, Liquor: m, Recovery: rec,
+		Order: value.Order(nil, recoveryPurchases(rec, o.RecoverPrices), 0, o.Containers, cur)}
 	if err := r.CheckFinite(); err != nil {
 		return nil, err
 	}

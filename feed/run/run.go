@@ -128,8 +128,15 @@ func (o *Options) Validate() error {
 	return o.checkCurrency()
 }
 
-// checkCurrency refuses reagent prices in another currency than the prices file's.
+// checkCurrency refuses reagent prices in another currency than the prices file's, and
+// recovery reagent prices in another than the leach's.
 func (o *Options) checkCurrency() error {
+	if rp := o.RecoverPrices; rp != nil && rp.Currency != "" {
+		if cur := o.LeachPrices.Currency; cur != "" && !strings.EqualFold(cur, rp.Currency) {
+			return optionErr("currency", "--currency %s and the recovery prices' %s (%s) disagree: give every price in one currency",
+				cur, rp.Currency, rp.File)
+		}
+	}
 	if o.Leach == nil || o.Prices == nil {
 		return nil
 	}
@@ -280,7 +287,10 @@ func finish(r *report.Report, o Options) (*report.Report, error) {
 		if r.Value != nil {
 			cur = r.Value.Currency
 		}
-		r.Order = value.Order(r.Leach, r.BlackMassKg.P50, o.Containers, cur)
+		if cur == "" && o.RecoverPrices != nil {
+			cur = o.RecoverPrices.Currency
+		}
+		r.Order = value.Order(r.Leach, recoveryPurchases(r.Recovery, o.RecoverPrices), r.BlackMassKg.P50, o.Containers, cur)
 	}
 	if err := r.CheckFinite(); err != nil {
 		return nil, err

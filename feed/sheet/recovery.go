@@ -206,7 +206,8 @@ func (r *recoveryRows) products(rec *recover.Report) {
 	}
 	if v := rec.Value; v != nil {
 		for _, it := range v.Items {
-			r.stat("value of "+it.Name, it.Kg, v.Currency, "", r.st.money)
+			r.stat("value of "+it.Name, it.Value, v.Currency, fmt.Sprintf("at %.4g per kg as %s", it.PricePerKg, it.Item),
+				r.st.money)
 		}
 		note := ""
 		if len(v.Unpriced) > 0 {

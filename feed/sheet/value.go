@@ -1,8 +1,11 @@
 package sheet
 
 import (
-	"blackmass/feed/value"
 	"fmt"
+	"strings"
+
+	"blackmass/feed/recover"
+	"blackmass/feed/value"
 )
 
 // ValueSheet is the name of the sheet of the order and the value.
@@ -64,6 +67,9 @@ func (w *writer) value() error {
 		p.add(wrap("payable net of reagents"), money(n.P10), money(n.P50), money(n.P90))
 	}
 	p.blank()
+	if rec := r.Recovery; rec != nil && rec.Value != nil {
+		productValue(p, rec.Value)
+	}
 	for _, n := range v.Notes {
 		p.paragraph(n, plain)
 	}
@@ -97,7 +103,28 @@ func (w *writer) order(p *page) {
 		p.add(l.Reagent, kg(l.Kg.P50*perKg), kg(l.Kg.P90*perKg), lp50, lp90, kg(l.KgPerTonneBM), as(indented, suggestion(l)), price, cost)
 	}
 	if len(o.Unpriced) > 0 {
-		p.add(note("Not priced reagents are left out of every cost; give --acid-price and --h2o2-price to price them."))
+		p.add(note("Not priced reagents are left out of every cost; give --acid-price and --h2o2-price (--recover-prices for the recovery's) to price them."))
 	}
+	if len(o.NotBought) > 0 {
+		p.add(note("Not bought (air, or made on site): " + strings.Join(o.NotBought, ", ") + "."))
+	}
+	p.blank()
+}
+
+// productValue lays out the recovery's products at product prices, beside the payables: each
+// priced product P10/P50/P90, those not priced, and the total.
+func productValue(p *page, pv *recover.ProductValue) {
+	p.keepRows(len(pv.Items) + len(pv.Unpriced) + 3)
+	p.title(fmt.Sprintf("Recovered products instead, at product prices (%s)", pv.Currency))
+	p.header("product", "dry kg (P50)", "price per kg", "priced as", "", "value P10", "value P50", "value P90", "price source")
+	for _, it := range pv.Items {
+		p.add(it.Name, it.DryKg.P50, money(it.PricePerKg), as(indented, it.Item), nil, money(it.Value.P10), money(it.Value.P50),
+			money(it.Value.P90), as(indented, it.Source))
+	}
+	for _, name := range pv.Unpriced {
+		p.add(name, nil, "not priced")
+	}
+	p.add(as(total, "products"), as(total, nil), as(total, nil), as(total, nil), as(total, nil), as(total, money(pv.Total.P10)),
+		as(total, money(pv.Total.P50)), as(total, money(pv.Total.P90)), as(total, nil))
 	p.blank()
 }

@@ -149,7 +149,11 @@ func writeProductsText(w io.Writer, r *recover.Report) {
 	tw.Flush()
 	if v := r.Value; v != nil {
 		for _, it := range v.Items {
-			fmt.Fprintf(w, "  value of %s: %s %s\n", it.Name, stat3(it.Kg), v.Currency)
+			fmt.Fprintf(w, "  value of %s: %s %s (%s kg P50 at %s/kg as %s)\n", it.Name, stat3(it.Value), v.Currency,
+				Num(it.DryKg.P50), Money(it.PricePerKg), it.Item)
+		}
+		for _, name := range v.Unpriced {
+			fmt.Fprintf(w, "  value of %s: not priced\n", name)
 		}
 		fmt.Fprintf(w, "  products' value: %s %s", stat3(v.Total), v.Currency)
 		if len(v.Unpriced) > 0 {

@@ -14,6 +14,7 @@ import (
 	"blackmass/cathode"
 	"blackmass/feed/intake"
 	"blackmass/feed/lot"
+	"blackmass/feed/recover"
 	"blackmass/feed/report"
 	"blackmass/feed/value"
 )
@@ -54,6 +55,9 @@ func Write(w io.Writer, r *report.Report, command string, quiet bool) {
 	writeTail(w, r)
 }
 
+// WriteOrder prints an order sheet on its own (a measured liquor's recovery reagents).
+func WriteOrder(w io.Writer, o *value.OrderSheet) { writeOrderText(w, o) }
+
 // writeOrderText prints the order sheet: each reagent for the lot and per tonne of black mass,
 // in the containers named, with its price or the lack of one.
 func writeOrderText(w io.Writer, o *value.OrderSheet) {
@@ -80,11 +84,18 @@ func writeOrderText(w io.Writer, o *value.OrderSheet) {
 		if l.CostP90 != nil {
 			cost = Money(*l.CostP90) + " " + cur
 		}
-		fmt.Fprintf(tw, "  %s\t%s\t%s\t%s\t%s\n", l.Reagent, amount, FmtMass(l.KgPerTonneBM), buy, cost)
+		perT := "—" // no black mass: a measured liquor
+		if l.KgPerTonneBM > 0 {
+			perT = FmtMass(l.KgPerTonneBM)
+		}
+		fmt.Fprintf(tw, "  %s\t%s\t%s\t%s\t%s\n", l.Reagent, amount, perT, buy, cost)
 	}
 	tw.Flush()
 	if len(o.Unpriced) > 0 {
 		fmt.Fprintf(w, "  not priced: %s (their cost is left out of every total)\n", strings.Join(o.Unpriced, ", "))
+	}
+	if len(o.NotBought) > 0 {
+		fmt.Fprintf(w, "  not bought: %s (air, or made on site)\n", strings.Join(o.NotBought, ", "))
 	}
 }
 
@@ -265,9 +276,29 @@ func writeValueText(w io.Writer, r *report.Report) {
 	if v.NetOfReagents != nil {
 		fmt.Fprintf(w, "reagents %s, payable net of reagents %s / %s / %s (P10/P50/P90)\n", Money(v.ReagentCost.P50), Money(v.NetOfReagents.P10), Money(v.NetOfReagents.P50), Money(v.NetOfReagents.P90))
 	}
+	if rec := r.Recovery; rec != nil && rec.Value != nil {
+		writeProductValueText(w, rec.Value)
+	}
 	for _, n := range v.Notes {
 		fmt.Fprintln(w, "  - "+n)
 	}
+}
+
+// writeProductValueText prints the recovery's products at product prices, beside the black
+// mass's payables: each priced product P10/P50/P90, the total, and those not priced.
+func writeProductValueText(w io.Writer, pv *recover.ProductValue) {
+	fmt.Fprintf(w, "recovered products instead (%s, P10/P50/P90):\n", pv.Currency)
+	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
+	fmt.Fprintf(tw, "product\tdry kg P50\tprice/kg\tvalue P10\tvalue P50\tvalue P90\t\n")
+	for _, it := range pv.Items {
+		fmt.Fprintf(tw, "%s\t%s\t%.2f\t%s\t%s\t%s\t\n", it.Name, Num(it.DryKg.P50), it.PricePerKg, Money(it.Value.P10),
+			Money(it.Value.P50), Money(it.Value.P90))
+	}
+	for _, name := range pv.Unpriced {
+		fmt.Fprintf(tw, "%s\t\tnot priced\t\t\t\t\n", name)
+	}
+	fmt.Fprintf(tw, "products\t\t\t%s\t%s\t%s\t\n", Money(pv.Total.P10), Money(pv.Total.P50), Money(pv.Total.P90))
+	tw.Flush()
 }
 
 // Money prints an amount of money to the unit (cents for small amounts).
@@ -349,8 +380,16 @@ func writeLeachText(w io.Writer, r *report.Report) {
 			cur = "(no currency given)"
 		}
 		fmt.Fprintf(w, "reagent cost P10/P50/P90: %s / %s / %s %s", Money(l.TotalCost.P10), Money(l.TotalCost.P50), Money(l.TotalCost.P90), cur)
-		if r.Order != nil && len(r.Order.Unpriced) > 0 {
-			fmt.Fprintf(w, " (without %s: no price given)", strings.Join(r.Order.Unpriced, ", "))
+		if r.Order != nil {
+			var unpriced []string
+			for _, ol := range r.Order.Lines {
+				if ol.Stage == value.StageLeach && ol.CostP90 == nil {
+					unpriced = append(unpriced, ol.Reagent)
+				}
+			}
+			if len(unpriced) > 0 {
+				fmt.Fprintf(w, " (without %s: no price given)", strings.Join(unpriced, ", "))
+			}
 		}
 		fmt.Fprintln(w)
 	}

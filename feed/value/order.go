@@ -34,7 +34,9 @@ const MaxSuggestedCount = 3
 // in each container that suits its form (litre containers for liquids, kg packages for solids
 // and gases bought by weight).
 type OrderLine struct {
-	Reagent      string           `json:"reagent"`
+	Reagent string `json:"reagent"`
+	// Stage is the stage it is bought for: leach or recovery.
+	Stage        string           `json:"stage"`
 	Kg           dist.Stat        `json:"kg"`
 	Litres       *dist.Stat       `json:"litres,omitempty"`
 	KgPerTonneBM float64          `json:"kg_per_tonne_black_mass_p50"`
@@ -51,25 +53,49 @@ type ContainerCount struct {
 	Count     int    `json:"count"`
 }
 
-// OrderSheet is what to order for the lot's leach: each reagent to its P90 amount, so the lot
+// OrderSheet is what to order for the lot's leach and recovery: each reagent to its P90 amount, so the lot
 // runs short in at most one outcome of ten.
 type OrderSheet struct {
 	Basis    string      `json:"basis"`
 	Currency string      `json:"currency,omitempty"`
 	Lines    []OrderLine `json:"reagents"`
 	Unpriced []string    `json:"unpriced,omitempty"`
+	// NotBought are reagents a stage uses that are not bought (air, ozone made on site).
+	NotBought []string `json:"not_bought,omitempty"`
 }
 
-// Order builds the order sheet of a leach plan in the containers given; blackMassKg is the
-// lot's black mass (P50), for the amounts per tonne.
-func Order(l *leach.Report, blackMassKg float64, containers []Container, currency string) *OrderSheet {
-	if l == nil {
+// Stages an order line is bought for.
+const (
+	StageLeach    = "leach"
+	StageRecovery = "recovery"
+)
+
+// Purchase is a reagent of a later stage to order beside the leach's: its amount as bought
+// (kg, and litres for a solution), and its price per kg as bought (0: not priced).
+type Purchase struct {
+	Reagent    string
+	Kg         dist.Stat
+	Litres     *dist.Stat
+	PricePerKg float64
+	// NotBought marks a reagent that is not ordered (air, ozone made on site): listed, no line.
+	NotBought bool
+}
+
+// Order builds the order sheet of a leach plan, and of the recovery's reagents after it
+// (recovery, in the order given), in the containers given; blackMassKg is the lot's black mass
+// (P50), for the amounts per tonne (0: none, as for a measured liquor). Nil without a leach and
+// without recovery reagents.
+func Order(l *leach.Report, recovery []Purchase, blackMassKg float64, containers []Container, currency string) *OrderSheet {
+	if l == nil && len(recovery) == 0 {
 		return nil
+	}
+	if l == nil { // a measured liquor's recovery: no leach to buy for
+		l = &leach.Report{}
 	}
 	os := &OrderSheet{Basis: "each reagent to its P90 amount (short in at most one outcome of ten)", Currency: currency}
 	bmT := blackMassKg / 1000
-	add := func(name string, kg dist.Stat, litres *dist.Stat, price float64) {
-		ol := OrderLine{Reagent: name, Kg: kg, Litres: litres, PricePerKg: price}
+	add := func(stage, name string, kg dist.Stat, litres *dist.Stat, price float64) {
+		ol := OrderLine{Reagent: name, Stage: stage, Kg: kg, Litres: litres, PricePerKg: price}
 		var capacity []float64
 		if bmT > 0 {
 			ol.KgPerTonneBM = dist.Sig(kg.P50 / bmT)
@@ -109,11 +135,18 @@ func Order(l *leach.Report, blackMassKg float64, containers []Container, currenc
 				price = p.ReductantPerKg
 			}
 		}
-		add(g.Name, g.Kg, litres, price)
+		add(StageLeach, g.Name, g.Kg, litres, price)
 	}
 	if sc := l.Scrubber; sc != nil {
 		v := sc.Litres
-		add(sc.Reagent+" (chlorine scrubber)", sc.Kg, &v, 0)
+		add(StageLeach, sc.Reagent+" (chlorine scrubber)", sc.Kg, &v, 0)
+	}
+	for _, p := range recovery {
+		if p.NotBought {
+			os.NotBought = append(os.NotBought, p.Reagent)
+			continue
+		}
+		add(StageRecovery, p.Reagent, p.Kg, p.Litres, p.PricePerKg)
 	}
 	return os
 }

@@ -1,8 +1,12 @@
 package value
 
 import (
+	"math"
 	"strings"
 	"testing"
+
+	"blackmass/feed/dist"
+	"blackmass/feed/leach"
 )
 
 // A bench amount is bought in the one bottle that holds it, a plant amount in drums or IBCs; the
@@ -73,5 +77,51 @@ func TestParseContainer(t *testing.T) {
 		if c, err := ParseContainer(strings.TrimSpace(p)); err != nil || c != def[i] {
 			t.Errorf("%q: %+v %v, want %+v", p, c, err, def[i])
 		}
+	}
+}
+
+// The recovery's reagents join the leach's on the order sheet, each to its P90 as bought: 293 L
+// of 50 % caustic is bought as 2 × 200 L drums (400 L; one IBC would buy 1000 L, 12 cans more
+// than three), 23.0 kg of permanganate as 1 × 25 kg bag; the cost is the P90 kg × price
+// (447 kg × 0.45 = 201.15), and a reagent without a price is listed unpriced.
+func TestOrderRecoveryReagents(t *testing.T) {
+	naoh := dist.Stat{P10: 400, P50: 422, P90: 447}
+	naohL := dist.Stat{P10: 262, P50: 277, P90: 293}
+	rec := []Purchase{
+		{Reagent: "NaOH 50 % (recovery)", Kg: naoh, Litres: &naohL, PricePerKg: 0.45},
+		{Reagent: "KMnO4 (recovery)", Kg: dist.Stat{P50: 20.5, P90: 23.0}},
+		{Reagent: "O3 (recovery)", Kg: dist.Stat{P50: 9, P90: 10}, NotBought: true},
+	}
+	o := Order(&leach.Report{}, rec, 237, DefaultContainers(), "EUR")
+	if len(o.Lines) != 2 {
+		t.Fatalf("lines %+v", o.Lines)
+	}
+	n, k := o.Lines[0], o.Lines[1]
+	if n.Stage != StageRecovery || n.Kg.P90 != 447 || n.Litres == nil || n.Litres.P90 != 293 {
+		t.Errorf("NaOH line %+v", n)
+	}
+	if n.Suggested == nil || n.Suggested.Container != "200 L drum" || n.Suggested.Count != 2 {
+		t.Errorf("NaOH bought as %+v, want 2 × 200 L drum", n.Suggested)
+	}
+	if n.CostP90 == nil || math.Abs(*n.CostP90-201.15) > 1e-6 {
+		t.Errorf("NaOH cost %v, want 201.15", n.CostP90)
+	}
+	// 422 kg per 0.237 t of black mass.
+	if math.Abs(n.KgPerTonneBM-1780.59072) > 1e-3 {
+		t.Errorf("NaOH per tonne %g", n.KgPerTonneBM)
+	}
+	if k.Suggested == nil || k.Suggested.Container != "25 kg bag" || k.Suggested.Count != 1 || k.CostP90 != nil {
+		t.Errorf("KMnO4 line %+v", k)
+	}
+	for _, c := range k.Containers {
+		if strings.Contains(c.Container, " L ") {
+			t.Errorf("a solid offered in %s", c.Container)
+		}
+	}
+	if len(o.NotBought) != 1 || o.NotBought[0] != "O3 (recovery)" {
+		t.Errorf("not bought %v", o.NotBought)
+	}
+	if len(o.Unpriced) != 1 || o.Unpriced[0] != "KMnO4 (recovery)" {
+		t.Errorf("unpriced %v", o.Unpriced)
 	}
 }

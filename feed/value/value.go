@@ -21,12 +21,26 @@ type Price struct {
 	Source  string
 }
 
-// PriceList is a prices file: one currency for every row.
+// PriceList is a prices file: one currency for every row. Prices are the black mass's
+// elements; Products the recovery's products, each at its own price per kg of product.
 type PriceList struct {
 	File     string
 	Currency string
 	Prices   []Price
+	Products []ProductPrice
 }
+
+// ProductPrice is what a product of the recovery sells for, per kg of the product as made
+// (dry): Item is the planner's name of it (Li2CO3, CoSO4·7H2O, Co cathode ...).
+type ProductPrice struct {
+	Item   string
+	PerKg  float64
+	Source string
+	Line   int
+}
+
+// BasisProduct marks a prices file's row as a product of the recovery, priced per kg of it.
+const BasisProduct = "product"
 
 // Price bases.
 const (
