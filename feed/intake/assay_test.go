@@ -84,3 +84,22 @@ func TestReadAssayBelowDetectionErrors(t *testing.T) {
 		}
 	}
 }
+
+// Cadmium and lead are what nickel-cadmium and lead-acid cells shredded with a lot bring into
+// it, and an ICP report on black mass lists them: both read, a lead below detection as censored.
+func TestReadAssayCadmiumLead(t *testing.T) {
+	t.Parallel()
+	in := "element,value,unit,uncertainty,LOD\nCo,14.0,wt%,0.4,\nCd,0.12,wt%,0.01,\nPb,ND,ppm,,25\n"
+	a, err := intake.ReadAssay(strings.NewReader(in), "icp.csv")
+	if err != nil {
+		t.Fatal(err)
+	}
+	var got []string
+	for _, v := range a.Values {
+		got = append(got, v.Element+" "+v.Text())
+	}
+	// 25 ppm = 0.0025 wt% (1 wt% = 10^4 ppm).
+	if s, want := strings.Join(got, ", "), "Co 14 wt%, Cd 0.12 wt%, Pb < 0.0025 wt%"; s != want {
+		t.Errorf("read %s, want %s", s, want)
+	}
+}
