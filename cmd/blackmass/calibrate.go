@@ -162,6 +162,13 @@ func (o *estimateOptions) loadCalibration(ro *run.Options) error {
 	if o.calDB != nil {
 		path = *o.calDB
 	}
+	if path == "" {
+		if p, err := defaultDBPath(); err == nil {
+			if _, err := os.Stat(p); errors.Is(err, fs.ErrNotExist) {
+				return usageError{fmt.Errorf("--calibrated: no --db given and no register at %s: give --db with the register that holds the calibration", p)}
+			}
+		}
+	}
 	reg, err := openExisting(path)
 	if err != nil {
 		return err

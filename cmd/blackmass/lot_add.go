@@ -66,7 +66,7 @@ func runLotAdd(w io.Writer, lo *lotOptions, o *estimateOptions, path, received s
 	if err != nil {
 		return err
 	}
-	reg, err := lo.open()
+	reg, err := lo.create()
 	if err != nil {
 		return err
 	}
