@@ -56,6 +56,11 @@ type Residual struct {
 
 func (s *fitState) report(fits map[string]*elementFit) *Report {
 	r := &Report{Lots: s.assayed, Used: s.used(), LeftOut: s.leftOutList()}
+	for _, lo := range r.LeftOut {
+		if lo.Excluded {
+			r.Lots++ // given, though not counted among the lots the rules judge
+		}
+	}
 	for _, el := range s.elements {
 		er := ElementReport{Element: el}
 		f := fits[el]
