@@ -121,7 +121,7 @@ func (ar *assayRow) read(rec []string, line int) (assay.Value, error) {
 		}
 		if i >= ar.width && strings.TrimSpace(f) != "" {
 			return assay.Value{}, ar.fail(line, fmt.Sprintf("column %d", i+1), f,
-				fmt.Sprintf("a value beyond the header's %d columns", ar.width))
+				fmt.Sprintf("a value beyond the header's %d columns", ar.width)+decimalCommaSplit(rec))
 		}
 	}
 	el := get("element")

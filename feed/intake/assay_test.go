@@ -103,3 +103,19 @@ func TestReadAssayCadmiumLead(t *testing.T) {
 		t.Errorf("read %s, want %s", s, want)
 	}
 }
+
+// A value with no number in it is refused as not a number (not as a unit that disagrees), and
+// an unquoted decimal comma that splits a row gets the same hint as in a manifest.
+func TestReadAssayNotANumber(t *testing.T) {
+	t.Parallel()
+	for in, want := range map[string]string{
+		"element,value,unit\nNi,abc,wt%\n":                  `a.csv:2: value "abc": not a number`,
+		"element,value,unit\nNi,N/A,wt%\n":                  `a.csv:2: value "N/A": not a number`,
+		"element,value,unit\nNi,12,5,wt%\n":                 `columns 2 and 3 hold "12" and "5": a number written with a decimal comma ("12,5")`,
+		"element,value,unit,uncertainty\nNi,12.5,wt%,0,4\n": `columns 4 and 5 hold "0" and "4"`,
+	} {
+		if _, err := intake.ReadAssay(strings.NewReader(in), "a.csv"); err == nil || !strings.Contains(err.Error(), want) {
+			t.Errorf("ReadAssay(%q) = %v, want %q", in, err, want)
+		}
+	}
+}
