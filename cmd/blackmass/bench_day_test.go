@@ -266,3 +266,27 @@ func readBenchCSV(t *testing.T, path string) map[string]map[string]string {
 	}
 	return out
 }
+
+// reconcile sets the estimate beside an ICP assay with values below detection: those print as
+// "< limit" in the table, never as the half-limit the Monte Carlo draws around.
+func TestReconcileCensoredText(t *testing.T) {
+	out := benchRun(t, "reconcile", benchDir+"/lot-HM-1001.csv", benchDir+"/assay-HM-1001-icp.csv", "--samples", "200", "--bootstrap", "50")
+	_, table, ok := strings.Cut(out, "estimate vs assay")
+	if !ok {
+		t.Fatalf("no comparison table:\n%s", out)
+	}
+	row := func(el string) string {
+		for _, l := range strings.Split(table, "\n") {
+			if f := strings.Fields(l); len(f) > 0 && f[0] == el && strings.Contains(l, ".") {
+				return l
+			}
+		}
+		return ""
+	}
+	// Fe < 0.05 wt%, Zn < 50 ppm = 0.005 wt%, Cd n.d. below 20 mg/kg = 0.002 wt%.
+	for el, want := range map[string]string{"Fe": "< 0.05", "Zn": "< 0.005", "Cd": "< 0.002"} {
+		if r := row(el); !strings.Contains(r, want) || strings.Contains(r, "0.03") {
+			t.Errorf("%s row %q, want the assay as %q", el, r, want)
+		}
+	}
+}
