@@ -1,6 +1,7 @@
 package calibrate
 
 import (
+	"fmt"
 	"math"
 	"slices"
 )
@@ -65,7 +66,7 @@ func (s *fitState) report(fits map[string]*elementFit) *Report {
 		er := ElementReport{Element: el}
 		f := fits[el]
 		if f == nil {
-			er.Skipped = "fewer than the minimum number of lots with an estimate of the element"
+			er.Skipped = fmt.Sprintf("needs at least %d lots with an estimate and an assay of the element", s.opt.MinLots)
 			for _, o := range s.byEl[el] {
 				if _, out := s.leftOut[o.lot]; !out {
 					er.Lots++
