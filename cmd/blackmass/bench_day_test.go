@@ -290,3 +290,24 @@ func TestReconcileCensoredText(t *testing.T) {
 		}
 	}
 }
+
+// A wet weighing recorded before any assay gives a moisture says that the lot's dry mass is not
+// known yet (its metal stays on the estimate), not that an assay's moisture was used; once an
+// assay with a moisture row arrives, the weighing counts: 40 kg × (1 − 0.075) = 37 kg dry.
+func TestWetWeighingBeforeTheAssay(t *testing.T) {
+	db := filepath.Join(t.TempDir(), "r.db")
+	benchRun(t, "lot", "add", benchDir+"/lot-HM-1003.csv", "--lot", "HM-1003", "--db", db, "--samples", "100", "-q")
+	out := benchRun(t, "lot", "weigh", "HM-1003", "--mass", "40 kg", "--wet", "--date", "2026-11-28", "--db", db)
+	if !strings.Contains(out, "dry mass not known yet") {
+		t.Errorf("lot weigh --wet with no moisture known:\n%s", out)
+	}
+	benchRun(t, "lot", "assay", "HM-1003", benchDir+"/assay-HM-1003-icp.csv", "--lab", "Pellow assay lab", "--db", db)
+	if d := benchShow(t, db, "HM-1003"); d.Evidence.DryMass == nil || math.Abs(d.Evidence.DryMass.Kg-37) > 1e-9 {
+		t.Errorf("after the assay: dry mass %+v, want 37 kg", d.Evidence.DryMass)
+	}
+	out = benchRun(t, "lot", "weigh", "HM-1003", "--mass", "39 kg", "--moisture", "7", "--date", "2026-11-29", "--db", db)
+	// 39 × 0.93 = 36.27 kg dry.
+	if !strings.Contains(out, "36.3 kg dry") {
+		t.Errorf("lot weigh --moisture 7:\n%s", out)
+	}
+}

@@ -92,6 +92,9 @@ func newLotWeighCmd(lo *lotOptions) *cobra.Command {
 					return err
 				}
 				fmt.Fprintf(cmd.OutOrStdout(), "lot %s weighed: %s kg on %s (%s)\n", intake.Printable(args[0], 64), text.Num(wg.Kg), wg.On, weighedAs(wg))
+				if wg.State == register.StateWet && wg.MoistureWtPct == nil {
+					return wetDryMass(cmd.OutOrStdout(), reg, args[0])
+				}
 				return nil
 			})
 		},
@@ -144,6 +147,22 @@ func (o *weighFlags) weighing() (register.WeighingEvidence, error) {
 		return wg, usageError{err}
 	}
 	return wg, nil
+}
+
+// wetDryMass says, after a wet weighing without a moisture of its own, what dry mass the lot now
+// rests on: the assay's moisture taken off, or not known yet.
+func wetDryMass(w io.Writer, reg *register.Register, id string) error {
+	d, err := reg.Show(context.Background(), id)
+	if err != nil {
+		return err
+	}
+	if dm := d.Evidence.DryMass; dm != nil {
+		fmt.Fprintf(w, "  dry mass %s ± %s kg (moisture %s wt%%, %s)\n", text.Num(dm.Kg), text.Num(dm.SigmaKg), text.Num(dm.MoistureWtPct), dm.MoistureFrom)
+		return nil
+	}
+	fmt.Fprintln(w, "  dry mass not known yet: no assay of the lot gives a moisture; its metal stays on the estimate until one does"+
+		" (or weigh again with --moisture)")
+	return nil
 }
 
 // weighedAs says how a weighing was recorded.
