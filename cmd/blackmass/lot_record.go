@@ -92,7 +92,7 @@ func newLotWeighCmd(lo *lotOptions) *cobra.Command {
 					return err
 				}
 				fmt.Fprintf(cmd.OutOrStdout(), "lot %s weighed: %s kg on %s (%s)\n", intake.Printable(args[0], 64), text.Num(wg.Kg), wg.On, weighedAs(wg))
-				if wg.State == register.StateWet && wg.MoistureWtPct == nil {
+				if wg.State != register.StateDry && wg.MoistureWtPct == nil {
 					return wetDryMass(cmd.OutOrStdout(), reg, args[0])
 				}
 				return nil
