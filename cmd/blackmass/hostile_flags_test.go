@@ -79,3 +79,29 @@ func TestLotCommandsNeedAnExistingRegister(t *testing.T) {
 		t.Error("lot export wrote its file from a missing register")
 	}
 }
+
+// lot assay and lot weigh check their flags before the register is touched: a bad date or no
+// lab is a usage error naming the flag, and nothing is recorded.
+func TestLotAssayWeighFlagErrors(t *testing.T) {
+	db := filepath.Join(t.TempDir(), "r.db")
+	if code, _, errs := cli(t, "", "lot", "add", "../../testdata/bench/lot-HM-1003.csv", "--lot", "HM-1003", "--db", db, "--samples", "100", "-q"); code != 0 {
+		t.Fatalf("lot add: exit %d: %s", code, errs)
+	}
+	a := "../../testdata/bench/assay-HM-1003-icp.csv"
+	for _, c := range []struct {
+		flag string
+		args []string
+	}{
+		{"--date", []string{"lot", "assay", "HM-1003", a, "--lab", "Pellow assay lab", "--date", "2026-02-30"}},
+		{"--lab", []string{"lot", "assay", "HM-1003", a}},
+		{"--date", []string{"lot", "weigh", "HM-1003", "--mass", "40 kg", "--date", "2026-13-01"}},
+	} {
+		code, out, errs := cli(t, "", append(c.args, "--db", db)...)
+		if code != exitUsage || !strings.Contains(errs, c.flag) || out != "" {
+			t.Errorf("%v: exit %d, %s; want exit %d naming %s", c.args, code, errs, exitUsage, c.flag)
+		}
+	}
+	if _, out, _ := cli(t, "", "lot", "show", "HM-1003", "--db", db); strings.Contains(out, "assay 1") || strings.Contains(out, "weighed 2") {
+		t.Errorf("a refused assay or weighing was recorded:\n%s", out)
+	}
+}

@@ -9,6 +9,7 @@ import (
 	"fmt"
 	"io"
 	"path/filepath"
+	"strings"
 
 	"github.com/spf13/cobra"
 
@@ -37,6 +38,9 @@ func newLotAssayCmd(lo *lotOptions) *cobra.Command {
 func runLotAssay(w io.Writer, lo *lotOptions, id, path, lab, on string) error {
 	if on == "" {
 		on = today()
+	}
+	if err := register.CheckAssay(lab, on); err != nil {
+		return usageError{flagged("--date", err)}
 	}
 	b, err := readCapped(path, 1<<20)
 	if err != nil {
@@ -144,7 +148,7 @@ func (o *weighFlags) weighing() (register.WeighingEvidence, error) {
 		}
 	}
 	if err := register.CheckWeighing(wg); err != nil {
-		return wg, usageError{err}
+		return wg, usageError{flagged("--date", err)}
 	}
 	return wg, nil
 }
@@ -163,6 +167,14 @@ func wetDryMass(w io.Writer, reg *register.Register, id string) error {
 	fmt.Fprintln(w, "  dry mass not known yet: no assay of the lot gives a moisture; its metal stays on the estimate until one does"+
 		" (or weigh again with --moisture)")
 	return nil
+}
+
+// flagged names the flag of a date error ("--date: date ..."); other errors name their own.
+func flagged(flag string, err error) error {
+	if strings.HasPrefix(err.Error(), "date ") {
+		return fmt.Errorf("%s: %w", flag, err)
+	}
+	return err
 }
 
 // weighedAs says how a weighing was recorded.
