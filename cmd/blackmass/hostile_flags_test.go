@@ -105,3 +105,21 @@ func TestLotAssayWeighFlagErrors(t *testing.T) {
 		t.Errorf("a refused assay or weighing was recorded:\n%s", out)
 	}
 }
+
+// lot add with a date that is not one is a usage error naming --received; a workbook path
+// that is a directory is refused as such, without suggesting --force.
+func TestLotAddReceivedAndDirectoryTarget(t *testing.T) {
+	dir := t.TempDir()
+	db := filepath.Join(dir, "r.db")
+	code, _, errs := cli(t, "", "lot", "add", "../../testdata/bench/lot-HM-1003.csv", "--lot", "HM-1003", "--received", "2026-02-30", "--db", db)
+	if code != exitUsage || !strings.Contains(errs, "--received") {
+		t.Errorf("--received 2026-02-30: exit %d, %s", code, errs)
+	}
+	if _, err := os.Stat(db); err == nil {
+		t.Error("a refused lot add created the register")
+	}
+	code, _, errs = cli(t, "", "estimate", "../../testdata/bench/lot-HM-1003.csv", "--xlsx", dir, "--samples", "100", "-q")
+	if code == 0 || !strings.Contains(errs, "not a regular file") || strings.Contains(errs, "pass --force") {
+		t.Errorf("--xlsx DIR: exit %d, %s", code, errs)
+	}
+}
