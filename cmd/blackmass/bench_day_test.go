@@ -311,3 +311,56 @@ func TestWetWeighingBeforeTheAssay(t *testing.T) {
 		t.Errorf("lot weigh --moisture 7:\n%s", out)
 	}
 }
+
+// lot list --json gives the latest assay's measured values as numbers and its values below the
+// detection limit apart, as limits: HM-1001's ICP has Fe < 0.05 wt%, never Fe 0.025.
+func TestListJSONCensored(t *testing.T) {
+	db := filepath.Join(t.TempDir(), "r.db")
+	benchRun(t, "lot", "add", benchDir+"/lot-HM-1001.csv", "--lot", "HM-1001", "--db", db, "--samples", "100", "-q")
+	benchRun(t, "lot", "assay", "HM-1001", benchDir+"/assay-HM-1001-icp.csv", "--lab", "Pellow assay lab", "--db", db)
+	var lots []register.Summary
+	if err := json.Unmarshal([]byte(benchRun(t, "lot", "list", "--json", "--db", db)), &lots); err != nil {
+		t.Fatal(err)
+	}
+	if len(lots) != 1 {
+		t.Fatalf("%d lots", len(lots))
+	}
+	l := lots[0]
+	if _, ok := l.AssayWtPct["Fe"]; ok || l.AssayBelowLimit["Fe"] != 0.05 || l.AssayWtPct["Co"] != 14 {
+		t.Errorf("latest assay %v, below the limit %v; want Co 14 measured and Fe below 0.05", l.AssayWtPct, l.AssayBelowLimit)
+	}
+}
+
+// The workbook of a quote and of a reconciliation shows an assay value below the detection
+// limit as "< limit" on the Assay sheet, not as its half-limit.
+func TestWorkbookAssayCensored(t *testing.T) {
+	dir := t.TempDir()
+	for name, args := range map[string][]string{
+		"quote.xlsx":     {"quote", benchDir + "/assay-HM-1001-icp.csv", "--mass", "19.2 kg"},
+		"reconcile.xlsx": {"reconcile", benchDir + "/lot-HM-1001.csv", benchDir + "/assay-HM-1001-icp.csv"},
+	} {
+		path := filepath.Join(dir, name)
+		benchRun(t, append(args, "--xlsx", path, "--samples", "200", "--bootstrap", "50", "-q")...)
+		f, err := excelize.OpenFile(path)
+		if err != nil {
+			t.Fatal(err)
+		}
+		rows, err := f.GetRows("Assay")
+		f.Close()
+		if err != nil {
+			t.Fatal(err)
+		}
+		found := false
+		for _, r := range rows {
+			if len(r) > 3 && r[0] == "Fe" {
+				found = true
+				if !strings.Contains(strings.Join(r, " "), "< 0.05") {
+					t.Errorf("%s: Fe row %q, want the assay as < 0.05", name, r)
+				}
+			}
+		}
+		if !found {
+			t.Errorf("%s: no Fe row on the Assay sheet", name)
+		}
+	}
+}
