@@ -1,6 +1,7 @@
 package intake_test
 
 import (
+	"fmt"
 	"math"
 	"os"
 	"path/filepath"
@@ -117,5 +118,27 @@ func TestReadAssayNotANumber(t *testing.T) {
 		if _, err := intake.ReadAssay(strings.NewReader(in), "a.csv"); err == nil || !strings.Contains(err.Error(), want) {
 			t.Errorf("ReadAssay(%q) = %v, want %q", in, err, want)
 		}
+	}
+}
+
+// An assay saved with semicolons as separators and decimal commas (as spreadsheets in
+// decimal-comma locales save CSV) reads as the same assay written with commas and points.
+func TestReadAssaySemicolons(t *testing.T) {
+	t.Parallel()
+	semi := "# lab export\nelement;value;unit;uncertainty;LOD\nCo;14,2;wt%;0,5;\nNi;9,8;wt%;0,4;\nFe;n.d.;wt%;;0,05\nMoisture;4,0;wt%;0,3;\n"
+	comma := "element,value,unit,uncertainty,LOD\nCo,14.2,wt%,0.5,\nNi,9.8,wt%,0.4,\nFe,n.d.,wt%,,0.05\nMoisture,4.0,wt%,0.3,\n"
+	text := func(in string) string {
+		a, err := intake.ReadAssay(strings.NewReader(in), "a.csv")
+		if err != nil {
+			t.Fatal(err)
+		}
+		var out []string
+		for _, v := range a.Values {
+			out = append(out, fmt.Sprintf("%s %s ± %g", v.Element, v.Text(), v.SigmaWtPct))
+		}
+		return strings.Join(out, ", ") + "; moisture " + a.Moisture.Text()
+	}
+	if s, c := text(semi), text(comma); s != c {
+		t.Errorf("semicolons read\n %s\ncommas\n %s", s, c)
 	}
 }
