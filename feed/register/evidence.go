@@ -199,6 +199,8 @@ func RankEvidence(est Estimate, assays []AssayEvidence, weighings []WeighingEvid
 			m.Kg, m.SigmaKg = massOf(m.WtPct, m.SigmaWtPct, dm)
 			if m.Censored {
 				m.MinKg, m.MaxKg = 0, m.LimitWtPct/100*dm.Kg
+				ev.Notes = append(ev.Notes, fmt.Sprintf("%s: below the detection limit, 0 to %.3g kg; sums and value use the middle, %.3g kg",
+					el, m.MaxKg, m.Kg))
 			} else {
 				m.MinKg, m.MaxKg = math.Max(0, m.Kg-2*m.SigmaKg), m.Kg+2*m.SigmaKg
 			}

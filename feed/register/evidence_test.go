@@ -179,4 +179,9 @@ func TestRankCensoredRatioIsABound(t *testing.T) {
 	if e.RatioAtMost == nil || !near(*e.RatioAtMost, 0.25, 1e-12) {
 		t.Errorf("ratio at most %v, want 0.05 kg / 0.2 kg = 0.25", e.RatioAtMost)
 	}
+	// The notes (lot show, the export's notes column) say so, with the range.
+	ev := RankEvidence(estimate(0.2), as, ws)
+	if !strings.Contains(strings.Join(ev.Notes, "\n"), "Co: below the detection limit, 0 to 0.05 kg") {
+		t.Errorf("notes %q lack the censored Co", ev.Notes)
+	}
 }
