@@ -32,8 +32,8 @@ func newCalibrateCmd() *cobra.Command {
 	cmd := &cobra.Command{
 		Use:   "calibrate --db FILE",
 		Short: "Fit the model's corrections from the register's assayed and weighed lots, and save them",
-		Long: `calibrate reads every lot of the register that has a manifest, an assay and a weighing (the
-latest of each; the weighing taken as the dry black mass), and fits per element and per (chemistry,
+		Long: `calibrate reads every lot of the register that has a manifest, an assay and a weighing (its
+assays combined, times the dry mass of its latest weighing, moisture taken off), and fits per element and per (chemistry,
 format) a factor on what the model sends to the black mass, with today's model as the prior. The
 calibration is saved in the register under the next version; estimate, demo and lot add use it only
 with --calibrated. The report gives, per element, the bias and the P10-P90 coverage before and after
@@ -161,6 +161,13 @@ func (o *estimateOptions) loadCalibration(ro *run.Options) error {
 	path := ""
 	if o.calDB != nil {
 		path = *o.calDB
+	}
+	if path == "" {
+		if p, err := defaultDBPath(); err == nil {
+			if _, err := os.Stat(p); errors.Is(err, fs.ErrNotExist) {
+				return usageError{fmt.Errorf("--calibrated: no --db given and no register at %s: give --db with the register that holds the calibration", p)}
+			}
+		}
 	}
 	reg, err := openExisting(path)
 	if err != nil {

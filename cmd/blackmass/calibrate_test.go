@@ -58,9 +58,10 @@ func TestCalibrateDemoRegister(t *testing.T) {
 	if err := json.Unmarshal([]byte(out), &o); err != nil {
 		t.Fatal(err)
 	}
-	// 30 lots, one excluded by name.
-	if o.Calibration.Version != 2 || o.Report.Lots != 29 {
-		t.Errorf("version %d from %d lots, want 2 from 29", o.Calibration.Version, o.Report.Lots)
+	// 30 lots given, one excluded by name and one left out by the rules: 28 used.
+	if o.Calibration.Version != 2 || o.Report.Lots != 30 || len(o.Report.Used) != 28 || len(o.Report.LeftOut) != 2 {
+		t.Errorf("version %d from %d lots (%d used, %d left out), want 2 from 30 (28, 2)", o.Calibration.Version, o.Report.Lots,
+			len(o.Report.Used), len(o.Report.LeftOut))
 	}
 	left := map[string]calibrate.LeftOut{}
 	for _, l := range o.Report.LeftOut {

@@ -28,8 +28,9 @@ func newLotCmd() *cobra.Command {
 		Use:   "lot",
 		Short: "Keep every lot in the register: add, list, show, assay, weigh, export, totals, remove",
 		Long: `The lot register is one SQLite file (default: ` + defaultDBHint() + `;
---db PATH or $BLACKMASS_DB to choose), created on first use. Each lot keeps its manifest as received,
-the lines as parsed, the settings and report, every assay and weighing, and an audit trail.`,
+--db PATH or $BLACKMASS_DB to choose), created by the first lot add; the other lot commands refuse a
+register that does not exist. Each lot keeps its manifest as received, the lines as parsed, the
+settings and report, every assay and weighing, and an audit trail.`,
 		Example: `  blackmass lot add data/demo/lot-KR-2611.csv --lot KR-2611 --supplier "Larkfield Municipal Drop-off Yard" --received 2026-11-28
   blackmass lot assay KR-2611 testdata/assay-KR-2611.csv --lab "Tarn Valley Assay Lab" --date 2026-12-01
   blackmass lot weigh KR-2611 --mass "212 kg" --date 2026-12-01
@@ -74,7 +75,12 @@ func defaultDBPath() (string, error) {
 	return filepath.Join(dir, "blackmass", "register.db"), nil
 }
 
-func (lo *lotOptions) open() (*register.Register, error) {
+// open opens the register, which must exist: only lot add creates one (create), so that a
+// mistyped --db is named rather than answered from a new empty file.
+func (lo *lotOptions) open() (*register.Register, error) { return openExisting(lo.dbPath) }
+
+// create opens the register, creating it on first use.
+func (lo *lotOptions) create() (*register.Register, error) {
 	path := lo.dbPath
 	if path == "" {
 		var err error

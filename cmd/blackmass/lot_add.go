@@ -48,7 +48,7 @@ func runLotAdd(w io.Writer, lo *lotOptions, o *estimateOptions, path, received s
 		received = today()
 	}
 	if err := register.CheckLot(o.lotID, received); err != nil {
-		return err
+		return usageError{flagged("--received", err)}
 	}
 	b, err := readCapped(path, maxManifestBytes)
 	if err != nil {
@@ -63,7 +63,7 @@ func runLotAdd(w io.Writer, lo *lotOptions, o *estimateOptions, path, received s
 	if err != nil {
 		return err
 	}
-	reg, err := lo.open()
+	reg, err := lo.create()
 	if err != nil {
 		return err
 	}

@@ -75,7 +75,11 @@ func runLotList(w io.Writer, lo *lotOptions, f register.Filter) error {
 			l.NameplateKWh, l.Basis, text.Num(l.BlackMassKg), dry)
 		for _, el := range listMetals {
 			e := ev.Element(el)
-			row += "\t" + text.Num(e.Kg) + " " + basisMark(e.Basis) + "\t" + ratioText(e.Ratio)
+			kg := text.Num(e.Kg)
+			if m := e.Measured; m != nil && m.Censored && e.Basis == register.BasisMeasured {
+				kg = "< " + text.Num(m.MaxKg) // below the detection limit: the range, not its middle
+			}
+			row += "\t" + kg + " " + basisMark(e.Basis) + "\t" + elementRatioText(e)
 		}
 		pay := "—"
 		if ev.Payable != nil {
@@ -91,6 +95,15 @@ func runLotList(w io.Writer, lo *lotOptions, f register.Filter) error {
 }
 
 // ratioText is measured over estimate, "—" without both.
+// elementRatioText is an element's measured/estimate: "< 0.46" when the measurement is below
+// the detection limit.
+func elementRatioText(e register.ElementEvidence) string {
+	if e.RatioAtMost != nil {
+		return fmt.Sprintf("< %.2f", *e.RatioAtMost)
+	}
+	return ratioText(e.Ratio)
+}
+
 func ratioText(r *float64) string {
 	if r == nil {
 		return "—"

@@ -9,6 +9,7 @@ import (
 	"fmt"
 	"io"
 	"path/filepath"
+	"strings"
 
 	"github.com/spf13/cobra"
 
@@ -37,6 +38,9 @@ func newLotAssayCmd(lo *lotOptions) *cobra.Command {
 func runLotAssay(w io.Writer, lo *lotOptions, id, path, lab, on string) error {
 	if on == "" {
 		on = today()
+	}
+	if err := register.CheckAssay(lab, on); err != nil {
+		return usageError{flagged("--date", err)}
 	}
 	b, err := readCapped(path, 1<<20)
 	if err != nil {
@@ -92,6 +96,9 @@ func newLotWeighCmd(lo *lotOptions) *cobra.Command {
 					return err
 				}
 				fmt.Fprintf(cmd.OutOrStdout(), "lot %s weighed: %s kg on %s (%s)\n", intake.Printable(args[0], 64), text.Num(wg.Kg), wg.On, weighedAs(wg))
+				if wg.State != register.StateDry && wg.MoistureWtPct == nil {
+					return wetDryMass(cmd.OutOrStdout(), reg, args[0])
+				}
 				return nil
 			})
 		},
@@ -141,9 +148,33 @@ func (o *weighFlags) weighing() (register.WeighingEvidence, error) {
 		}
 	}
 	if err := register.CheckWeighing(wg); err != nil {
-		return wg, usageError{err}
+		return wg, usageError{flagged("--date", err)}
 	}
 	return wg, nil
+}
+
+// wetDryMass says, after a wet weighing without a moisture of its own, what dry mass the lot now
+// rests on: the assay's moisture taken off, or not known yet.
+func wetDryMass(w io.Writer, reg *register.Register, id string) error {
+	d, err := reg.Show(context.Background(), id)
+	if err != nil {
+		return err
+	}
+	if dm := d.Evidence.DryMass; dm != nil {
+		fmt.Fprintf(w, "  dry mass %s ± %s kg (moisture %s wt%%, %s)\n", text.Num(dm.Kg), text.Num(dm.SigmaKg), text.Num(dm.MoistureWtPct), dm.MoistureFrom)
+		return nil
+	}
+	fmt.Fprintln(w, "  dry mass not known yet: no assay of the lot gives a moisture; its metal stays on the estimate until one does"+
+		" (or weigh again with --moisture)")
+	return nil
+}
+
+// flagged names the flag of a date error ("--date: date ..."); other errors name their own.
+func flagged(flag string, err error) error {
+	if strings.HasPrefix(err.Error(), "date ") {
+		return fmt.Errorf("%s: %w", flag, err)
+	}
+	return err
 }
 
 // weighedAs says how a weighing was recorded.

@@ -62,8 +62,12 @@ func runLotShow(w io.Writer, lo *lotOptions, id string) error {
 				mkg, msd = "< "+text.Num(m.MaxKg), "range"
 			}
 		}
-		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t\n", e.Element, basisMark(e.Basis), text.Num(e.Kg), mkg, msd,
-			text.Num(e.EstimateKgP10), text.Num(e.EstimateKgP50), text.Num(e.EstimateKgP90), ratioText(e.Ratio))
+		kg := text.Num(e.Kg)
+		if m := e.Measured; m != nil && m.Censored && e.Basis == register.BasisMeasured {
+			kg = mkg // below the detection limit: the range, not its middle
+		}
+		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t\n", e.Element, basisMark(e.Basis), kg, mkg, msd,
+			text.Num(e.EstimateKgP10), text.Num(e.EstimateKgP50), text.Num(e.EstimateKgP90), elementRatioText(e))
 	}
 	tw.Flush()
 	fmt.Fprintln(w, "\nmetal in wt% of the dry black mass: the assays combined and the estimate")

@@ -8,6 +8,7 @@ import (
 	"strings"
 
 	"github.com/spf13/cobra"
+	"github.com/spf13/pflag"
 
 	"blackmass/cathode"
 	"blackmass/feed/leach"
@@ -61,6 +62,9 @@ func (u usageError) Unwrap() error { return u.error }
 // markUsageErrors makes flag and argument errors of every command usage errors.
 func markUsageErrors(c *cobra.Command) {
 	c.SetFlagErrorFunc(func(_ *cobra.Command, err error) error { return usageError{err} })
+	if c.PreRunE == nil && c.PreRun == nil {
+		c.PreRunE = refuseEmptyFlags
+	}
 	if args := c.Args; args != nil {
 		c.Args = func(cmd *cobra.Command, a []string) error {
 			if err := args(cmd, a); err != nil {
@@ -72,6 +76,19 @@ func markUsageErrors(c *cobra.Command) {
 	for _, sub := range c.Commands() {
 		markUsageErrors(sub)
 	}
+}
+
+// refuseEmptyFlags refuses a text flag given with an empty value (--moisture "", --calibrated=):
+// read as the flag left off, a script's unset variable would turn a wet weighing dry or drop a
+// calibration without a word.
+func refuseEmptyFlags(cmd *cobra.Command, _ []string) error {
+	var err error
+	cmd.Flags().Visit(func(f *pflag.Flag) {
+		if err == nil && f.Value.Type() == "string" && strings.TrimSpace(f.Value.String()) == "" {
+			err = usageError{fmt.Errorf("--%s: an empty value; give one, or leave the flag off", f.Name)}
+		}
+	})
+	return err
 }
 
 func newRootCmd() *cobra.Command {

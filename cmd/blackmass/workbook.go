@@ -23,10 +23,10 @@ func checkWritable(path string, force bool) error {
 	}
 	st, err := os.Lstat(path)
 	switch {
-	case err == nil && !force:
-		return fmt.Errorf("%s exists; pass --force to overwrite it", path)
 	case err == nil && !st.Mode().IsRegular():
 		return fmt.Errorf("%s exists and is not a regular file; not overwritten even with --force", path)
+	case err == nil && !force:
+		return fmt.Errorf("%s exists; pass --force to overwrite it", path)
 	case err != nil && !errors.Is(err, fs.ErrNotExist):
 		return fmt.Errorf("%s: %w", path, err)
 	}

@@ -339,7 +339,17 @@ func quoteWarnings(a *Assay, opt QuoteOptions, unassigned map[string]float64, mi
 		w = append(w, m.Note)
 	}
 	w = append(w, moisture...)
+	censored := map[string]Value{}
+	for _, v := range a.Values {
+		if v.Censored {
+			censored[v.Element] = v
+		}
+	}
 	for _, el := range slices.Sorted(maps.Keys(unassigned)) {
+		if v, ok := censored[el]; ok { // its limit, not the half-limit draw 0 holds
+			w = append(w, fmt.Sprintf("%s %s (below the detection limit) could not be placed in a species and is left out of the leach", el, v.Text()))
+			continue
+		}
 		w = append(w, fmt.Sprintf("%.3g wt%% %s could not be placed in a species and is left out of the leach", unassigned[el], el))
 	}
 	for _, v := range a.Values {

@@ -244,3 +244,25 @@ func TestMissingLiFromMix(t *testing.T) {
 		t.Errorf("without a fit: %+v", m)
 	}
 }
+
+// An element below the detection limit that no species takes is named with its limit, never
+// with the half-limit the Monte Carlo draws around: the lab said "< 20 mg/kg", not 0.001 wt%.
+func TestQuoteUnplacedCensoredShowsLimit(t *testing.T) {
+	t.Parallel()
+	a := readTestAssay(t, "censored-WB-0412.csv")
+	q, err := assay.QuoteFrom(a, assay.QuoteOptions{Tables: embeddedTables(t), BlackMassKg: 100, Samples: 50, Seed: 3, Leach: leach.DefaultOptions()})
+	if err != nil {
+		t.Fatal(err)
+	}
+	// Mg ND with LOD 20 mg/kg = 0.002 wt%; Zn BDL with LOD 30 ppm = 0.003 wt% (1 wt% = 10^4 ppm).
+	for _, want := range []string{"Mg < 0.002 wt% (below the detection limit) could not be placed", "Zn < 0.003 wt% (below the detection limit) could not be placed"} {
+		if !slices.ContainsFunc(q.Warnings, func(w string) bool { return strings.Contains(w, want) }) {
+			t.Errorf("no warning %q in %q", want, q.Warnings)
+		}
+	}
+	for _, w := range q.Warnings {
+		if strings.Contains(w, "0.001 wt% Mg") || strings.Contains(w, "0.0015 wt% Zn") {
+			t.Errorf("a censored value shown as its half-limit: %q", w)
+		}
+	}
+}

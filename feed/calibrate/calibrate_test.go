@@ -168,6 +168,10 @@ func TestExcludeAndKeepIDs(t *testing.T) {
 	if len(rep.LeftOut) != 1 || !rep.LeftOut[0].Excluded || slices.Contains(c.Lots, lots[2].ID) || len(c.Lots) != 9 {
 		t.Errorf("left out %+v, used %v", rep.LeftOut, c.Lots)
 	}
+	// The report counts every assayed lot given, the excluded one too: 10 given = 9 used + 1 out.
+	if rep.Lots != 10 || len(rep.Used)+len(rep.LeftOut) != rep.Lots {
+		t.Errorf("report: %d lots given, %d used, %d left out; want 10 = 9 + 1", rep.Lots, len(rep.Used), len(rep.LeftOut))
+	}
 	opt.Keep = []string{"NO-SUCH-LOT"}
 	if _, _, err := Fit(lots, opt); err == nil || !strings.Contains(err.Error(), "NO-SUCH-LOT") {
 		t.Errorf("unknown kept lot: %v", err)

@@ -1,6 +1,7 @@
 package calibrate
 
 import (
+	"fmt"
 	"math"
 	"slices"
 )
@@ -56,11 +57,16 @@ type Residual struct {
 
 func (s *fitState) report(fits map[string]*elementFit) *Report {
 	r := &Report{Lots: s.assayed, Used: s.used(), LeftOut: s.leftOutList()}
+	for _, lo := range r.LeftOut {
+		if lo.Excluded {
+			r.Lots++ // given, though not counted among the lots the rules judge
+		}
+	}
 	for _, el := range s.elements {
 		er := ElementReport{Element: el}
 		f := fits[el]
 		if f == nil {
-			er.Skipped = "fewer than the minimum number of lots with an estimate of the element"
+			er.Skipped = fmt.Sprintf("needs at least %d lots with an estimate and an assay of the element", s.opt.MinLots)
 			for _, o := range s.byEl[el] {
 				if _, out := s.leftOut[o.lot]; !out {
 					er.Lots++

@@ -1,6 +1,8 @@
 package intake
 
 import (
+	"bufio"
+	"bytes"
 	"encoding/csv"
 	"errors"
 	"fmt"
@@ -36,7 +38,7 @@ func ReadAssay(r io.Reader, name string) (*assay.Assay, error) {
 	if err != nil {
 		return nil, err
 	}
-	cr := data.NewCSVReader(br, ',')
+	cr := data.NewCSVReader(br, assaySeparator(br))
 	cr.FieldsPerRecord = -1 // the uncertainty may be left off a row
 	header, err := cr.Read()
 	if errors.Is(err, io.EOF) {
@@ -87,6 +89,25 @@ func ReadAssay(r io.Reader, name string) (*assay.Assay, error) {
 	return a, nil
 }
 
+// assaySeparator is ';' when the assay's header (its first line that is neither blank nor a
+// comment) holds semicolons and no commas, as spreadsheets of decimal-comma locales save CSV;
+// else ','. Its numbers then take a decimal comma, which ParseNumber reads ("14,2").
+func assaySeparator(br *bufio.Reader) rune {
+	head, _ := br.Peek(br.Size())
+	for len(head) > 0 {
+		line, rest, _ := bytes.Cut(head, []byte("\n"))
+		head = rest
+		if t := bytes.TrimSpace(line); len(t) == 0 || t[0] == '#' {
+			continue
+		}
+		if bytes.IndexByte(line, ';') >= 0 && bytes.IndexByte(line, ',') < 0 {
+			return ';'
+		}
+		break
+	}
+	return ','
+}
+
 // moistureElement is the element name a moisture row is kept under.
 const moistureElement = "H2O"
 
@@ -121,7 +142,7 @@ func (ar *assayRow) read(rec []string, line int) (assay.Value, error) {
 		}
 		if i >= ar.width && strings.TrimSpace(f) != "" {
 			return assay.Value{}, ar.fail(line, fmt.Sprintf("column %d", i+1), f,
-				fmt.Sprintf("a value beyond the header's %d columns", ar.width))
+				fmt.Sprintf("a value beyond the header's %d columns", ar.width)+decimalCommaSplit(rec))
 		}
 	}
 	el := get("element")

@@ -1,6 +1,7 @@
 package intake_test
 
 import (
+	"fmt"
 	"math"
 	"os"
 	"path/filepath"
@@ -82,5 +83,62 @@ func TestReadAssayBelowDetectionErrors(t *testing.T) {
 		if _, err := intake.ReadAssay(strings.NewReader(in), "a.csv"); err == nil || !strings.Contains(err.Error(), want) {
 			t.Errorf("ReadAssay(%q) = %v, want %q", in, err, want)
 		}
+	}
+}
+
+// Cadmium and lead are what nickel-cadmium and lead-acid cells shredded with a lot bring into
+// it, and an ICP report on black mass lists them: both read, a lead below detection as censored.
+func TestReadAssayCadmiumLead(t *testing.T) {
+	t.Parallel()
+	in := "element,value,unit,uncertainty,LOD\nCo,14.0,wt%,0.4,\nCd,0.12,wt%,0.01,\nPb,ND,ppm,,25\n"
+	a, err := intake.ReadAssay(strings.NewReader(in), "icp.csv")
+	if err != nil {
+		t.Fatal(err)
+	}
+	var got []string
+	for _, v := range a.Values {
+		got = append(got, v.Element+" "+v.Text())
+	}
+	// 25 ppm = 0.0025 wt% (1 wt% = 10^4 ppm).
+	if s, want := strings.Join(got, ", "), "Co 14 wt%, Cd 0.12 wt%, Pb < 0.0025 wt%"; s != want {
+		t.Errorf("read %s, want %s", s, want)
+	}
+}
+
+// A value with no number in it is refused as not a number (not as a unit that disagrees), and
+// an unquoted decimal comma that splits a row gets the same hint as in a manifest.
+func TestReadAssayNotANumber(t *testing.T) {
+	t.Parallel()
+	for in, want := range map[string]string{
+		"element,value,unit\nNi,abc,wt%\n":                  `a.csv:2: value "abc": not a number`,
+		"element,value,unit\nNi,N/A,wt%\n":                  `a.csv:2: value "N/A": not a number`,
+		"element,value,unit\nNi,12,5,wt%\n":                 `columns 2 and 3 hold "12" and "5": a number written with a decimal comma ("12,5")`,
+		"element,value,unit,uncertainty\nNi,12.5,wt%,0,4\n": `columns 4 and 5 hold "0" and "4"`,
+	} {
+		if _, err := intake.ReadAssay(strings.NewReader(in), "a.csv"); err == nil || !strings.Contains(err.Error(), want) {
+			t.Errorf("ReadAssay(%q) = %v, want %q", in, err, want)
+		}
+	}
+}
+
+// An assay saved with semicolons as separators and decimal commas (as spreadsheets in
+// decimal-comma locales save CSV) reads as the same assay written with commas and points.
+func TestReadAssaySemicolons(t *testing.T) {
+	t.Parallel()
+	semi := "# lab export\nelement;value;unit;uncertainty;LOD\nCo;14,2;wt%;0,5;\nNi;9,8;wt%;0,4;\nFe;n.d.;wt%;;0,05\nMoisture;4,0;wt%;0,3;\n"
+	comma := "element,value,unit,uncertainty,LOD\nCo,14.2,wt%,0.5,\nNi,9.8,wt%,0.4,\nFe,n.d.,wt%,,0.05\nMoisture,4.0,wt%,0.3,\n"
+	text := func(in string) string {
+		a, err := intake.ReadAssay(strings.NewReader(in), "a.csv")
+		if err != nil {
+			t.Fatal(err)
+		}
+		var out []string
+		for _, v := range a.Values {
+			out = append(out, fmt.Sprintf("%s %s ± %g", v.Element, v.Text(), v.SigmaWtPct))
+		}
+		return strings.Join(out, ", ") + "; moisture " + a.Moisture.Text()
+	}
+	if s, c := text(semi), text(comma); s != c {
+		t.Errorf("semicolons read\n %s\ncommas\n %s", s, c)
 	}
 }

@@ -1,6 +1,7 @@
 package intake
 
 import (
+	"errors"
 	"fmt"
 	"strings"
 )
@@ -83,6 +84,11 @@ func assayQuantity(s, unitCol string) (float64, float64, error) {
 		i++
 	}
 	num, own := s[:i], normUnit(s[i:])
+	if strings.Trim(num, "+-.,") == "" && own != "" {
+		if _, ok := assayUnits[own]; !ok { // "abc", "N/A": no number, and no unit either
+			return 0, 0, errors.New("not a number (below detection is written <0.05, n.d. or BDL; leave out the row of an element not analysed)")
+		}
+	}
 	col := normUnit(unitCol)
 	unit := col
 	switch {

@@ -308,9 +308,6 @@ func parseHeader(rec []string, ignore []string, file string, line int) (*header,
 	if len(missing) > 0 {
 		return nil, &Error{File: file, Line: line, Reason: fmt.Sprintf("missing required column(s) %s", strings.Join(missing, ", "))}
 	}
-	if h.pos[ColMass] >= 0 && h.pos[ColTotalMass] >= 0 {
-		return nil, &Error{File: file, Line: line, Reason: "both a per-item mass and a total mass column: keep one"}
-	}
 	return h, nil
 }
 

@@ -608,11 +608,31 @@ func (p *lineParser) mass(l *manifest.Line, rec []string, line int) error {
 	v := q.v
 	if col == ColTotalMass {
 		v /= float64(l.Count)
+	} else if err := p.totalAgrees(l, rec, line, v); err != nil {
+		return err
 	}
 	if v < minItemKg || v > maxItemKg {
 		return p.fail(line, col, ms, fmt.Sprintf("%.4g kg per item is outside %g to %g kg", v, minItemKg, float64(maxItemKg)))
 	}
 	l.MassKg = v
+	return nil
+}
+
+// totalAgrees checks a line that gives both a per-item mass and a total mass: count × mass must
+// be the total within half a per cent (the totals row's tolerance), else the line is refused.
+func (p *lineParser) totalAgrees(l *manifest.Line, rec []string, line int, itemKg float64) error {
+	ts := p.get(rec, ColTotalMass)
+	if ts == "" {
+		return nil
+	}
+	q := p.quantity(ColTotalMass, ts, MassUnits, p.hdr.unit[ColTotalMass])
+	if q.err != nil {
+		return p.fail(line, ColTotalMass, ts, q.err.Error())
+	}
+	if lineKg := float64(l.Count) * itemKg; math.Abs(q.v-lineKg) > 0.005*lineKg {
+		return p.fail(line, ColTotalMass, ts, fmt.Sprintf("disagrees with count × mass = %d × %.4g kg = %.4g kg; give one of the two",
+			l.Count, itemKg, lineKg))
+	}
 	return nil
 }
 

@@ -184,6 +184,12 @@ func (p *lineParser) decimalCommaHint(rec []string) string {
 	if p.decimalComma {
 		return ""
 	}
+	return decimalCommaSplit(rec)
+}
+
+// decimalCommaSplit is the hint for a comma-separated row with a field too many: the first two
+// neighbouring fields that read as the two halves of a number with a decimal comma.
+func decimalCommaSplit(rec []string) string {
 	for j := 0; j+1 < len(rec); j++ {
 		a, b := strings.TrimSpace(rec[j]), strings.TrimLeft(rec[j+1], " ")
 		if a != "" && b != "" && strings.Trim(a, "0123456789+-") == "" && b[0] >= '0' && b[0] <= '9' {

@@ -1,6 +1,7 @@
 package intake_test
 
 import (
+	"errors"
 	"math"
 	"os"
 	"path/filepath"
@@ -146,5 +147,39 @@ func TestOtherBatteriesKeptApart(t *testing.T) {
 	}
 	if nl := r.NonLithium[4]; nl.LinesWithoutMass != 1 {
 		t.Errorf("zinc-carbon: %+v", nl)
+	}
+}
+
+// A manifest with a per-item mass column and a total mass column: most lines give one item's
+// mass, a bag weighed whole gives its total, and a line giving both is read when they agree
+// (count × mass = total mass) and refused, naming the line and column, when they do not.
+func TestMassAndTotalMassColumns(t *testing.T) {
+	t.Parallel()
+	hdr := "id,chemistry,format,capacity,count,mass,total_mass\n"
+	lines, err := readString(t, hdr+
+		"p1,NMC532,pack,90 Wh,40,0.62 kg,\n"+
+		"p2,Li-ion,cylindrical,,,,9.5 kg\n"+
+		"p3,NMC622,pack,180 Wh,12,,13.8 kg\n"+
+		"p4,LFP,pack,960 Wh,2,8.9 kg,17.8 kg\n")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(lines) != 4 {
+		t.Fatalf("%d lines, want 4", len(lines))
+	}
+	// p1: 0.62 kg each; p2: one bag of 9.5 kg; p3: 13.8 kg / 12 = 1.15 kg each; p4: 8.9 kg each
+	// (2 × 8.9 = 17.8 kg, the total given).
+	for i, want := range []float64{0.62, 9.5, 1.15, 8.9} {
+		if math.Abs(lines[i].MassKg-want) > 1e-9 {
+			t.Errorf("line %d: %v kg per item, want %v", lines[i].Num, lines[i].MassKg, want)
+		}
+	}
+	if !lines[1].CountUnknown {
+		t.Errorf("line %d: a bag weighed whole should have an unknown count", lines[1].Num)
+	}
+	_, err = readString(t, hdr+"p1,NMC532,pack,90 Wh,40,0.62 kg,\np4,LFP,pack,960 Wh,2,8.9 kg,20 kg\n")
+	var ie *intake.Error
+	if !errors.As(err, &ie) || ie.Line != 3 || ie.Column != "total_mass" || !strings.Contains(ie.Reason, "17.8") {
+		t.Errorf("count × mass 17.8 kg against a total of 20 kg: got %v, want an error on line 3, column total_mass, naming 17.8 kg", err)
 	}
 }

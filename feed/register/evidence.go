@@ -112,8 +112,11 @@ type ElementEvidence struct {
 	EstimateKgP50    float64 `json:"estimate_kg_p50"`
 	EstimateKgP90    float64 `json:"estimate_kg_p90"`
 	EstimateWtPctP50 float64 `json:"estimate_wt_pct_p50"`
-	// Ratio is measured kg over the estimate's P50 kg; nil unless both are there.
-	Ratio *float64 `json:"measured_over_estimate,omitempty"`
+	// Ratio is measured kg over the estimate's P50 kg; nil unless both are there, and nil for a
+	// measurement below the detection limit, whose ratio is only bounded: RatioAtMost is then
+	// its upper end, limit × dry mass over the estimate's P50.
+	Ratio       *float64 `json:"measured_over_estimate,omitempty"`
+	RatioAtMost *float64 `json:"measured_over_estimate_at_most,omitempty"`
 	// PayableValue is the element's payable value on its basis; nil when unpriced.
 	PayableValue *float64 `json:"payable_value,omitempty"`
 }
@@ -196,13 +199,20 @@ func RankEvidence(est Estimate, assays []AssayEvidence, weighings []WeighingEvid
 			m.Kg, m.SigmaKg = massOf(m.WtPct, m.SigmaWtPct, dm)
 			if m.Censored {
 				m.MinKg, m.MaxKg = 0, m.LimitWtPct/100*dm.Kg
+				ev.Notes = append(ev.Notes, fmt.Sprintf("%s: below the detection limit, 0 to %.3g kg; sums and value use the middle, %.3g kg",
+					el, m.MaxKg, m.Kg))
 			} else {
 				m.MinKg, m.MaxKg = math.Max(0, m.Kg-2*m.SigmaKg), m.Kg+2*m.SigmaKg
 			}
 			ee.Measured, ee.Basis, ee.Kg, ev.Basis = &m, BasisMeasured, m.Kg, BasisMeasured
 			if e.Kg.P50 > 0 {
-				r := m.Kg / e.Kg.P50
-				ee.Ratio = &r
+				r := m.Kg / e.Kg.P50 // the value rests on the expected kg, the middle of a range
+				if m.Censored {
+					at := m.MaxKg / e.Kg.P50
+					ee.RatioAtMost = &at
+				} else {
+					ee.Ratio = &r
+				}
 				if e.PayableValue != nil {
 					p := *e.PayableValue * r
 					payShift, shifted = payShift+p-*e.PayableValue, true

@@ -162,3 +162,26 @@ func TestRankEstimateOnly(t *testing.T) {
 		}
 	}
 }
+
+// A censored measurement has no measured/estimate ratio (a range divided by a number is a
+// range): only its upper end, limit × dry mass over the estimate's P50. By hand: Co below
+// 0.05 wt% of 100 kg dry is below 0.05 kg; over an estimate of 0.2 kg that is below 0.25.
+func TestRankCensoredRatioIsABound(t *testing.T) {
+	var co assay.Value
+	co.Element = "Co"
+	co.Censor(0.05)
+	as := []AssayEvidence{{ID: 1, On: "2026-12-01", Values: []assay.Value{co}}}
+	ws := []WeighingEvidence{{Kg: 100, State: StateDry, On: "2026-12-01"}}
+	e := RankEvidence(estimate(0.2), as, ws).Element("Co")
+	if e.Ratio != nil {
+		t.Errorf("a censored Co has a ratio %v (from the half-limit); want none", *e.Ratio)
+	}
+	if e.RatioAtMost == nil || !near(*e.RatioAtMost, 0.25, 1e-12) {
+		t.Errorf("ratio at most %v, want 0.05 kg / 0.2 kg = 0.25", e.RatioAtMost)
+	}
+	// The notes (lot show, the export's notes column) say so, with the range.
+	ev := RankEvidence(estimate(0.2), as, ws)
+	if !strings.Contains(strings.Join(ev.Notes, "\n"), "Co: below the detection limit, 0 to 0.05 kg") {
+		t.Errorf("notes %q lack the censored Co", ev.Notes)
+	}
+}

@@ -303,11 +303,14 @@ type Summary struct {
 	Chemistries  []string           `json:"chemistries"`
 	Assays       int                `json:"assays"`
 	AssayWtPct   map[string]float64 `json:"latest_assay_wt_pct,omitempty"`
-	AssayLab     string             `json:"latest_assay_lab,omitempty"`
-	WeighedKg    float64            `json:"weighed_kg,omitempty"` // the latest weighing
-	Currency     string             `json:"currency,omitempty"`
-	Payable      *float64           `json:"payable_value_p50,omitempty"` // the estimate's
-	ReagentCost  *float64           `json:"reagent_cost_p50,omitempty"`
+	// AssayBelowLimit holds the latest assay's elements below the detection limit: their limit,
+	// wt% (they are not in AssayWtPct, whose numbers are measured values).
+	AssayBelowLimit map[string]float64 `json:"latest_assay_below_detection_limit_wt_pct,omitempty"`
+	AssayLab        string             `json:"latest_assay_lab,omitempty"`
+	WeighedKg       float64            `json:"weighed_kg,omitempty"` // the latest weighing
+	Currency        string             `json:"currency,omitempty"`
+	Payable         *float64           `json:"payable_value_p50,omitempty"` // the estimate's
+	ReagentCost     *float64           `json:"reagent_cost_p50,omitempty"`
 	// Basis is what the lot's metal and value rest on (BasisMeasured or BasisEstimate), and
 	// Evidence the figures on it, element by element, with the estimate beside each.
 	Basis    string   `json:"basis"`
@@ -426,6 +429,13 @@ func (s *Summary) apply(le *lotEvidence) {
 		s.AssayLab = latest.Lab
 		s.AssayWtPct = map[string]float64{}
 		for _, v := range latest.Values {
+			if v.Censored {
+				if s.AssayBelowLimit == nil {
+					s.AssayBelowLimit = map[string]float64{}
+				}
+				s.AssayBelowLimit[v.Element] = v.LimitWtPct
+				continue
+			}
 			s.AssayWtPct[v.Element] = v.WtPct
 		}
 	}

@@ -1,6 +1,7 @@
 package register
 
 import (
+	"errors"
 	"fmt"
 	"strings"
 
@@ -15,6 +16,18 @@ func CheckLot(id, received string) error {
 	}
 	_, err := date(received)
 	return err
+}
+
+// CheckAssay checks what an assay is recorded with, the lab and the date it was made
+// (YYYY-MM-DD), before any file is read or the register opened; AddAssay refuses the same.
+func CheckAssay(lab, assayedOn string) error {
+	if _, err := date(assayedOn); err != nil {
+		return err
+	}
+	if strings.TrimSpace(lab) == "" {
+		return errors.New("name the lab (--lab)")
+	}
+	return nil
 }
 
 // Validate checks a lot before it is recorded: its id, the date it was received and its

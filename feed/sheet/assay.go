@@ -1,5 +1,7 @@
 package sheet
 
+import "strings"
+
 // assayWidths are the Assay sheet's columns (A4 landscape at 100 %).
 var assayWidths = []float64{20, 11, 11, 11, 11, 12, 12, 13, 30}
 
@@ -19,6 +21,9 @@ func (w *writer) assay() error {
 		for _, c := range rc.Comparisons {
 			reading := c.Interpretation
 			vals := []any{c.Element, fixed(c.EstimateWtPct, 2), fixed(c.EstimateSigma, 2), fixed(c.AssayWtPct, 2), fixed(c.AssaySigma, 2), fixed(c.Z, 1), as(indented, reading)}
+			if strings.HasPrefix(c.AssayText, "<") { // below the detection limit: the limit, not its middle
+				vals[3], vals[4] = strings.TrimSuffix(c.AssayText, " wt%"), "range"
+			}
 			if c.Flag {
 				// A disagreement beyond the threshold is coloured, so it is seen on paper too.
 				vals[6] = as(indented, "DISAGREES: "+reading)
@@ -31,6 +36,10 @@ func (w *writer) assay() error {
 	} else {
 		p.header("element", "assay wt%", "σ (wt%)", "σ assumed")
 		for _, v := range r.Assay.Values {
+			if v.Censored {
+				p.add(v.Element, strings.TrimSuffix(v.Text(), " wt%"), "range", as(indented, yesNo(v.SigmaAssumed)))
+				continue
+			}
 			p.add(v.Element, fixed(v.WtPct, 2), fixed(v.SigmaWtPct, 2), as(indented, yesNo(v.SigmaAssumed)))
 		}
 	}

@@ -4,6 +4,7 @@ import (
 	"blackmass/feed/assay"
 	"fmt"
 	"io"
+	"strings"
 	"text/tabwriter"
 )
 
@@ -58,7 +59,11 @@ func writeReconcileText(w io.Writer, rc *assay.Reconciliation) {
 		if c.Interpretation != "" && !c.Flag {
 			flag = "not modelled"
 		}
-		fmt.Fprintf(tw, "%s\t%.2f\t%.2f\t%.2f\t%.2f\t%+.1f\t%s\t\n", c.Element, c.EstimateWtPct, c.EstimateSigma, c.AssayWtPct, c.AssaySigma, c.Z, flag)
+		as, asd := fmt.Sprintf("%.2f", c.AssayWtPct), fmt.Sprintf("%.2f", c.AssaySigma)
+		if strings.HasPrefix(c.AssayText, "<") { // below the detection limit: the limit, not its middle
+			as, asd = strings.TrimSuffix(c.AssayText, " wt%"), "range"
+		}
+		fmt.Fprintf(tw, "%s\t%.2f\t%.2f\t%s\t%s\t%+.1f\t%s\t\n", c.Element, c.EstimateWtPct, c.EstimateSigma, as, asd, c.Z, flag)
 	}
 	tw.Flush()
 	for _, c := range rc.Comparisons {

@@ -26,7 +26,8 @@ func WriteCalibration(w io.Writer, o *calibrate.Outcome) {
 	fmt.Fprintln(tw, "element\tlots\tbias before\tbias after\tcoverage before\tcoverage after\tdisagree\t")
 	for _, e := range r.Elements {
 		if e.Skipped != "" {
-			fmt.Fprintf(tw, "%s\t%d\t%s\t\t\t\t\t\n", e.Element, e.Lots, "not fitted: "+e.Skipped)
+			// The reason is the row's last cell, not tab-terminated: it does not widen the column.
+			fmt.Fprintf(tw, "%s\t%d\t%s\n", e.Element, e.Lots, "not fitted: "+e.Skipped)
 			continue
 		}
 		fmt.Fprintf(tw, "%s\t%d\t%+.3f\t%+.3f\t%.0f %%\t%.0f %%\t%d\t\n", e.Element, e.Lots, e.BiasBefore, e.BiasAfter,
