@@ -80,9 +80,11 @@
 // # Applying a calibration
 //
 // Calibration is plain data (JSON, versioned by FormatVersion). Calibration.Sampler takes the
-// (element, family, format) keys a lot's Monte Carlo needs and draws, per sample, f = mean + L·z
-// from the marginal posterior of just the factors those keys use (L its Cholesky factor, z
-// standard normal), jointly within an element; Sampler.DrawWith takes each element's stream from
+// (element, family, format) keys a lot's Monte Carlo needs and draws, per sample, from the
+// marginal posterior of just the factors those keys use, jointly within an element: the
+// correlated deviation L·z (L its Cholesky factor, z standard normal) is turned into a log-normal
+// draw with the posterior's mean and standard deviation, since a factor on a mass cannot be
+// negative and a factor few lots inform can have a spread near its mean; Sampler.DrawWith takes each element's stream from
 // a dist.Drawer. Each sample's kg of an element from a part is multiplied by its factor's draw
 // for that sample. The Monte Carlo's own spread stays as it was and the posterior's is added to
 // it; a part without a factor keeps factor 1 rather than a draw from the prior, so a calibration

@@ -28,6 +28,7 @@ type drawGroup struct {
 	element string
 	set     int
 	mean    []float64
+	sd      []float64 // each factor's marginal standard deviation
 	chol    []float64 // lower-triangular, k×k row-major
 }
 
@@ -82,6 +83,7 @@ func (c *Calibration) Sampler(keys []Key) *Sampler {
 			for b, fb := range cells[g] {
 				sub[a][b] = cov[fa][fb]
 			}
+			s.groups[g].sd = append(s.groups[g].sd, math.Sqrt(cov[fa][fa]))
 		}
 		// Check has shown the full covariance positive definite, so is every principal submatrix.
 		s.groups[g].chol, _ = cholesky(sub)
@@ -121,27 +123,44 @@ func (s *Sampler) means() [][]float64 {
 	return out
 }
 
-// draw makes n joint draws per group, f = mean + L·z with z standard normal; a draw below 0
-// (a factor some ten standard deviations from its mean) is taken as 0.
+// draw makes n joint draws per group. The posterior is Gaussian, but a factor on a mass cannot
+// be negative, and where few lots inform a factor its spread can reach its mean (a draw of 0,
+// or below, would remove the metal from the lot). So each factor is drawn log-normal with the
+// posterior's mean and standard deviation, correlated through the posterior's Cholesky factor:
+// u = (L·z)_a / sd_a is standard normal and f = mean·exp(σu − σ²/2) with σ² = ln(1 + (sd/mean)²)
+// (the moments of the log-normal: Johnson, Kotz and Balakrishnan 1994, Continuous Univariate
+// Distributions vol. 1, ch. 14). A well-informed factor (sd a few per cent of its mean) draws
+// all but as the Gaussian; a factor with a mean not above 0 is taken as 0.
 func (s *Sampler) draw(n int, rng func(g int) *rand.Rand) [][]float64 {
 	per := make([][][]float64, len(s.groups))
 	for g, gr := range s.groups {
 		k := len(gr.mean)
 		per[g] = make([][]float64, k)
+		sigma := make([]float64, k)
 		for a := range k {
 			per[g][a] = make([]float64, n)
+			if gr.mean[a] > 0 {
+				cv := gr.sd[a] / gr.mean[a]
+				sigma[a] = math.Sqrt(math.Log1p(cv * cv))
+			}
 		}
 		r := rng(g)
 		z := make([]float64, k)
 		for i := range n {
 			for a := range k {
 				z[a] = r.NormFloat64()
-				f := gr.mean[a]
-				row := gr.chol[a*k : a*k+a+1]
-				for b, l := range row {
-					f += l * z[b]
+				if gr.mean[a] <= 0 {
+					continue // per[g][a][i] stays 0
 				}
-				per[g][a][i] = math.Max(f, 0)
+				dev := 0.0
+				for b, l := range gr.chol[a*k : a*k+a+1] {
+					dev += l * z[b]
+				}
+				u := 0.0
+				if gr.sd[a] > 0 {
+					u = dev / gr.sd[a]
+				}
+				per[g][a][i] = gr.mean[a] * math.Exp(sigma[a]*u-sigma[a]*sigma[a]/2)
 			}
 		}
 	}
