@@ -27,7 +27,7 @@ var onePageSheets = map[string]bool{sheet.Leach: true}
 
 // titledSheets hold one table that may run over pages, so they repeat its header row; the
 // others hold short tables, each kept on one page.
-var titledSheets = map[string]bool{sheet.Lines: true, sheet.Metals: true, sheet.Assumptions: true, sheet.WeighIn: true}
+var titledSheets = map[string]bool{sheet.Lines: true, sheet.Assumptions: true, sheet.WeighIn: true}
 
 // Every sheet prints on the paper asked for, in its orientation, one page wide at 100 % (its
 // printed columns fit between the margins), with the lot and page numbers in the header, a
