@@ -246,6 +246,7 @@ func (w *writer) summaryNotes(p *page) {
 		p.blank()
 	}
 }
+
 // rangeChart draws a column's P50 as points with a line from P10 to P90 in each category (a
 // high-low chart: the xlsx library has no error bars), labels dark enough to print. first and
 // last are the data rows; the columns hold P10, P50 and P90, the categories are in A.
