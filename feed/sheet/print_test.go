@@ -30,7 +30,8 @@ var onePageSheets = map[string]bool{sheet.Leach: true}
 var titledSheets = map[string]bool{sheet.Lines: true, sheet.Assumptions: true, sheet.WeighIn: true}
 
 // Every sheet prints on the paper asked for, in its orientation, one page wide at 100 % (its
-// printed columns fit between the margins), with the lot and page numbers in the header, a
+// printed columns fit between the margins) or, the Leach sheet, fitted at no less than its scale
+// with no font under 8 pt as printed and on one page, with the lot and page numbers in the header, a
 // repeated header row on a long table and short tables kept whole on a page; every number has
 // a number format, no font is under 8 pt, and no text is cut by a filled neighbour.
 func TestPrintPack(t *testing.T) {
