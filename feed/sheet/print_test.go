@@ -407,8 +407,10 @@ func checkHeadAlign(t *testing.T, f *excelize.File, s string) {
 	}
 }
 
-// The Lines sheet, the one long table, prints in 8 pt on rows of 10.5 pt, so that a lot of a
-// few hundred lines takes a few pages: about 69 single-line rows to an A4 page.
+// The Lines sheet, the one long table, prints in 8 pt on rows of 10 pt under a header of two
+// lines, so that a lot of a few hundred lines takes a few pages: 72 single-line rows to an A4
+// page, 68 to a Letter one; a lot of 200 lines of one line each and its total print on 3 pages
+// of either.
 func TestLinesDense(t *testing.T) {
 	r := sampleReport(t, 60)
 	var buf bytes.Buffer
@@ -423,7 +425,7 @@ func TestLinesDense(t *testing.T) {
 	single := 0
 	for row := 2; row <= len(r.Lines)+1; row++ {
 		h, _ := f.GetRowHeight(sheet.Lines, row)
-		if h <= 10.5 {
+		if h <= 10 {
 			single++
 		}
 		for col := 1; col <= sheet.PrintedLineColumns; col++ {
@@ -436,5 +438,37 @@ func TestLinesDense(t *testing.T) {
 	}
 	if single < len(r.Lines)/2 {
 		t.Errorf("%d of %d lines on rows of one 8 pt line", single, len(r.Lines))
+	}
+}
+
+func TestLines200OnThreePages(t *testing.T) {
+	r := sampleReport(t, 200)
+	for _, paper := range []int{sheet.PaperA4, sheet.PaperLetter} {
+		var buf bytes.Buffer
+		if err := sheet.WriteOn(&buf, r, paper); err != nil {
+			t.Fatal(err)
+		}
+		f, err := excelize.OpenReader(bytes.NewReader(buf.Bytes()))
+		if err != nil {
+			t.Fatal(err)
+		}
+		head, _ := f.GetRowHeight(sheet.Lines, 1)
+		if head > 2*9.75+2 {
+			t.Errorf("paper %d: Lines header %.2f pt, more than two lines of 8 pt", paper, head)
+		}
+		// Rows fill a page under the repeated header; a row that does not fit starts the next.
+		pagePt := sheet.PrintableHeightPt(paper, false)
+		pages, used := 1, head
+		for row := 2; row <= len(r.Lines)+2; row++ {
+			h, _ := f.GetRowHeight(sheet.Lines, row)
+			if used+h > pagePt {
+				pages, used = pages+1, head
+			}
+			used += h
+		}
+		if pages > 3 {
+			t.Errorf("paper %d: 200 lines on %d pages, want 3", paper, pages)
+		}
+		f.Close()
 	}
 }
