@@ -30,7 +30,7 @@ func TestWorkbook(t *testing.T) {
 		t.Fatal(err)
 	}
 	defer f.Close()
-	for _, s := range []string{sheet.Summary, sheet.Lines, sheet.Metals, sheet.Leach, sheet.Assumptions, sheet.WeighIn} {
+	for _, s := range []string{sheet.Summary, sheet.Lines, sheet.Leach, sheet.Assumptions, sheet.WeighIn} {
 		if idx, _ := f.GetSheetIndex(s); idx < 0 {
 			t.Errorf("no sheet %q", s)
 		}
@@ -45,8 +45,8 @@ func TestWorkbook(t *testing.T) {
 		t.Errorf("A2 = %q", v)
 	}
 	// Numbers are numbers.
-	if typ, _ := f.GetCellType(sheet.Metals, "C2"); typ != excelize.CellTypeNumber && typ != excelize.CellTypeUnset {
-		t.Errorf("Metals!C2 type %v", typ)
+	if typ, _ := f.GetCellType(sheet.Leach, "C4"); typ != excelize.CellTypeNumber && typ != excelize.CellTypeUnset {
+		t.Errorf("Leach!C4 type %v", typ)
 	}
 	// Live formulas: cost = kg × price, evaluated by the calculation engine against the Go values.
 	kg := cellFloat(t, f, sheet.Leach, "C4")

@@ -38,8 +38,21 @@ func (w *writer) newPage(sheet string, landscape bool, widths ...float64) (*page
 		_ = w.f.SetColWidth(sheet, col, col, wd)
 	}
 	w.printSetup(sheet, landscape)
+	// A sheet laid out wider than the page prints shrunk to its width (the fit), so its page
+	// holds that much more height.
+	heightPt := PrintableHeightPt(w.paperSize(), landscape) * pageFill / printScale(w.paperSize(), landscape, widths)
 	return &page{w: w, s: sheet, row: 1, widths: widths, landscape: landscape, heights: map[int]float64{},
-		heightPt: PrintableHeightPt(w.paperSize(), landscape) * pageFill}, nil
+		heightPt: heightPt}, nil
+}
+
+// printScale is the scale a sheet of these columns prints at when fitted to the page width:
+// 1 if they fit between the margins.
+func printScale(paper int, landscape bool, widths []float64) float64 {
+	total := 0.0
+	for _, wd := range widths {
+		total += ColumnPt(wd)
+	}
+	return min(1, PrintableWidthPt(paper, landscape)/total)
 }
 
 // width is the total width of columns from..to (1-based, inclusive).

@@ -4,11 +4,25 @@ import (
 	"blackmass/feed/leach"
 	"fmt"
 	"maps"
+	"math"
 	"slices"
 )
 
-// leachWidths are the Leach sheet's columns (A4 landscape at 100 %).
-var leachWidths = []float64{36, 12, 12, 12, 12, 14, 13, 13}
+// leachWidths are the Leach sheet's columns: portrait, a little wider than the page, so that it
+// prints fitted to the width at LeachScale and its tables and calculator take one page.
+func leachWidths(paper int) []float64 {
+	wd := []float64{36, 9.5, 9.5, 9.5, 9.5, 14, 11, 11}
+	units := (PrintableWidthPt(paper, false)/LeachScale/0.75 - 5*float64(len(wd))) / 7
+	for _, u := range wd[1:] {
+		units -= u
+	}
+	wd[0] = math.Floor(units*4) / 4
+	return wd
+}
+
+// LeachScale is the scale the Leach sheet prints at (fitted to the page width): 10 pt type
+// prints at 8.7 pt.
+const LeachScale = 0.87
 
 // fmtSig3 shows a formula's result to three significant figures (from 0.1 up), the value not
 // being known when the format is chosen.
@@ -17,7 +31,7 @@ const fmtSig3 = "[>=100]#,##0;[>=10]#,##0.0;#,##0.00"
 func (w *writer) leach() error {
 	r := w.r
 	l := r.Leach
-	p, err := w.newPage(Leach, true, leachWidths...)
+	p, err := w.newPage(Leach, false, leachWidths(w.paperSize())...)
 	if err != nil {
 		return err
 	}
@@ -44,7 +58,7 @@ func (w *writer) leach() error {
 	row := p.add(boldText("total reagent cost (P50)"))
 	w.formula(s, fmt.Sprintf("H%d", row), fmt.Sprintf(`IF(COUNT(H%d:H%d)=0,"not priced",SUM(H%d:H%d))`, first, row-1, first, row-1))
 	w.style(s, fmt.Sprintf("H%d", row), fmt.Sprintf("H%d", row), w.styleOf(bold, fmtMoney))
-	p.add(note("Shaded cells are inputs: type a price per kg of the reagent as bought and its cost follows; a blank price is not priced, never free."))
+	p.add(as(wrapped, "Shaded cells are inputs: type a price per kg of the reagent as bought and its cost follows; a blank price is not priced, never free."))
 	p.blank()
 	names := slices.Sorted(maps.Keys(l.Gases))
 	p.keepRows(len(names) + 1)

@@ -55,7 +55,7 @@ type lineColumn struct {
 func lineColumns(idWidth float64) []lineColumn {
 	d := manifest.DerivedLineColumns // line, chemistry resolved, energy, modelled mass, Wh/kg, cathode, black mass, flags
 	return []lineColumn{{"id", idWidth, true}, {"description", 30, true}, {"chemistry", 15, true}, {"format", 8, true},
-		{"count", 6, false}, {d[2], 9, false}, {"mass (kg)", 8, false}, {d[6], 11, false},
+		{"count", 6, false}, {d[2], 9, false}, {"mass (kg)", 8, false}, {d[6], 12, false},
 		{"capacity", 11, true}, {"capacity basis", 9, true}, {"voltage (V)", 8, false}, {"cells per pack", 8, false},
 		{"notes", 30, true}, {"application", 12, true}, {d[0], 6, false}, {d[1], 18, true},
 		{d[3], 12, false}, {d[4], 10, false}, {d[5], 12, false}, {d[7], 50, true}}
@@ -64,7 +64,7 @@ func lineColumns(idWidth float64) []lineColumn {
 // lineRowPt is the height of a Lines row of one line of 8 pt text, and lineLinePt of each line
 // of a wrapped text: the sheet is long, so its rows are as low as the type allows.
 const (
-	lineRowPt  = 10.5
+	lineRowPt  = 10.0
 	lineLinePt = 9.75
 )
 

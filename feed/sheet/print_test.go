@@ -16,14 +16,22 @@ import (
 )
 
 // landscapeSheets are the sheets printed in landscape; the others are portrait.
-var landscapeSheets = map[string]bool{sheet.Leach: true, sheet.ValueSheet: true, sheet.AssaySheet: true}
+var landscapeSheets = map[string]bool{sheet.ValueSheet: true, sheet.AssaySheet: true}
+
+// scaledSheets print fitted to the page width below 100 %, at no less than the scale given: their
+// columns are laid out that much wider than the page. The others print at 100 %.
+var scaledSheets = map[string]float64{sheet.Leach: sheet.LeachScale}
+
+// onePageSheets print on one page, whatever the lot.
+var onePageSheets = map[string]bool{sheet.Leach: true}
 
 // titledSheets hold one table that may run over pages, so they repeat its header row; the
 // others hold short tables, each kept on one page.
-var titledSheets = map[string]bool{sheet.Lines: true, sheet.Metals: true, sheet.Assumptions: true, sheet.WeighIn: true}
+var titledSheets = map[string]bool{sheet.Lines: true, sheet.Assumptions: true, sheet.WeighIn: true}
 
 // Every sheet prints on the paper asked for, in its orientation, one page wide at 100 % (its
-// printed columns fit between the margins), with the lot and page numbers in the header, a
+// printed columns fit between the margins) or, the Leach sheet, fitted at no less than its scale
+// with no font under 8 pt as printed and on one page, with the lot and page numbers in the header, a
 // repeated header row on a long table and short tables kept whole on a page; every number has
 // a number format, no font is under 8 pt, and no text is cut by a filled neighbour.
 func TestPrintPack(t *testing.T) {
@@ -68,19 +76,24 @@ func TestPrintPack(t *testing.T) {
 			if titledSheets[s] != titles[s] {
 				t.Errorf("%s: print titles %v, want %v", s, titles[s], titledSheets[s])
 			}
-			checkWidth(t, f, s, paper, landscape, areas[s])
-			checkCells(t, f, s)
+			scale := checkWidth(t, f, s, paper, landscape, areas[s], scaledSheets[s])
+			checkCells(t, f, s, scale)
 			checkHeadAlign(t, f, s)
+			pagePt := sheet.PrintableHeightPt(paper, landscape) / scale
 			if !titledSheets[s] {
-				checkTablesWhole(t, f, s, breaks[s], sheet.PrintableHeightPt(paper, landscape))
+				checkTablesWhole(t, f, s, breaks[s], pagePt)
+			}
+			if onePageSheets[s] {
+				checkOnePage(t, f, s, breaks[s], pagePt)
 			}
 		}
 		f.Close()
 	}
 }
 
-// checkWidth: the printed columns fit the page width at 100 %.
-func checkWidth(t *testing.T, f *excelize.File, s string, paper int, landscape bool, area string) {
+// checkWidth: the printed columns fit the page width at 100 %, or, on a sheet laid out to print
+// scaled, at no less than minScale; it returns the scale the fit to the width prints at.
+func checkWidth(t *testing.T, f *excelize.File, s string, paper int, landscape bool, area string, minScale float64) float64 {
 	t.Helper()
 	cols, _ := f.GetCols(s)
 	last := len(cols)
@@ -94,13 +107,38 @@ func checkWidth(t *testing.T, f *excelize.File, s string, paper int, landscape b
 		wd, _ := f.GetColWidth(s, name)
 		total += sheet.ColumnPt(wd)
 	}
-	if avail := sheet.PrintableWidthPt(paper, landscape); total > avail {
-		t.Errorf("%s: printed columns %.0f pt wide, the page holds %.0f pt: it would print below 100 %%", s, total, avail)
+	avail := sheet.PrintableWidthPt(paper, landscape)
+	if minScale == 0 {
+		if total > avail {
+			t.Errorf("%s: printed columns %.0f pt wide, the page holds %.0f pt: it would print below 100 %%", s, total, avail)
+		}
+		return 1
+	}
+	scale := math.Min(1, avail/total)
+	if scale < minScale-0.005 || scale < 0.85 {
+		t.Errorf("%s: printed columns %.0f pt wide, the page holds %.0f pt: it would print at %.0f %%, below %.0f %%",
+			s, total, avail, 100*scale, 100*minScale)
+	}
+	return scale
+}
+
+// checkOnePage: the sheet's rows add up to no more than a page, without a manual break.
+func checkOnePage(t *testing.T, f *excelize.File, s string, breaks map[int]bool, pagePt float64) {
+	t.Helper()
+	rows, _ := f.GetRows(s)
+	total := 0.0
+	for r := 1; r <= len(rows); r++ {
+		h, _ := f.GetRowHeight(s, r)
+		total += h
+	}
+	if total > pagePt || len(breaks) > 0 {
+		t.Errorf("%s: %.0f pt of rows and %d page breaks, want one page of %.0f pt", s, total, len(breaks), pagePt)
 	}
 }
 
-// checkCells: a number format on every number, no font under 8 pt, no text cut by a neighbour.
-func checkCells(t *testing.T, f *excelize.File, s string) {
+// checkCells: a number format on every number, no font under 8 pt as printed at the scale
+// given, no text cut by a neighbour.
+func checkCells(t *testing.T, f *excelize.File, s string, scale float64) {
 	t.Helper()
 	rows, err := f.GetRows(s, excelize.Options{RawCellValue: true})
 	if err != nil {
@@ -148,8 +186,8 @@ func checkCells(t *testing.T, f *excelize.File, s string) {
 			if st.Font != nil && st.Font.Size > 0 {
 				size = st.Font.Size
 			}
-			if size < 8 {
-				t.Errorf("%s!%s: %.0f pt font", s, cell, size)
+			if size*scale < 8-1e-9 {
+				t.Errorf("%s!%s: %.0f pt font prints at %.1f pt", s, cell, size, size*scale)
 			}
 			typ, _ := f.GetCellType(s, cell)
 			isText := typ == excelize.CellTypeSharedString || typ == excelize.CellTypeInlineString || typ == excelize.CellTypeFormula
@@ -307,8 +345,8 @@ func TestPrintPackRegisterAndCalibration(t *testing.T) {
 			if titles[s] != wb.titled[s] {
 				t.Errorf("%s %s: header row repeated %v, want %v", wb.name, s, titles[s], wb.titled[s])
 			}
-			checkWidth(t, f, s, sheet.PaperA4, wb.landscape, areas[s])
-			checkCells(t, f, s)
+			checkWidth(t, f, s, sheet.PaperA4, wb.landscape, areas[s], 0)
+			checkCells(t, f, s, 1)
 		}
 		f.Close()
 	}
@@ -369,8 +407,10 @@ func checkHeadAlign(t *testing.T, f *excelize.File, s string) {
 	}
 }
 
-// The Lines sheet, the one long table, prints in 8 pt on rows of 10.5 pt, so that a lot of a
-// few hundred lines takes a few pages: about 69 single-line rows to an A4 page.
+// The Lines sheet, the one long table, prints in 8 pt on rows of 10 pt under a header of two
+// lines, so that a lot of a few hundred lines takes a few pages: 72 single-line rows to an A4
+// page, 68 to a Letter one; a lot of 200 lines of one line each and its total print on 3 pages
+// of either.
 func TestLinesDense(t *testing.T) {
 	r := sampleReport(t, 60)
 	var buf bytes.Buffer
@@ -385,7 +425,7 @@ func TestLinesDense(t *testing.T) {
 	single := 0
 	for row := 2; row <= len(r.Lines)+1; row++ {
 		h, _ := f.GetRowHeight(sheet.Lines, row)
-		if h <= 10.5 {
+		if h <= 10 {
 			single++
 		}
 		for col := 1; col <= sheet.PrintedLineColumns; col++ {
@@ -398,5 +438,37 @@ func TestLinesDense(t *testing.T) {
 	}
 	if single < len(r.Lines)/2 {
 		t.Errorf("%d of %d lines on rows of one 8 pt line", single, len(r.Lines))
+	}
+}
+
+func TestLines200OnThreePages(t *testing.T) {
+	r := sampleReport(t, 200)
+	for _, paper := range []int{sheet.PaperA4, sheet.PaperLetter} {
+		var buf bytes.Buffer
+		if err := sheet.WriteOn(&buf, r, paper); err != nil {
+			t.Fatal(err)
+		}
+		f, err := excelize.OpenReader(bytes.NewReader(buf.Bytes()))
+		if err != nil {
+			t.Fatal(err)
+		}
+		head, _ := f.GetRowHeight(sheet.Lines, 1)
+		if head > 2*9.75+2 {
+			t.Errorf("paper %d: Lines header %.2f pt, more than two lines of 8 pt", paper, head)
+		}
+		// Rows fill a page under the repeated header; a row that does not fit starts the next.
+		pagePt := sheet.PrintableHeightPt(paper, false)
+		pages, used := 1, head
+		for row := 2; row <= len(r.Lines)+2; row++ {
+			h, _ := f.GetRowHeight(sheet.Lines, row)
+			if used+h > pagePt {
+				pages, used = pages+1, head
+			}
+			used += h
+		}
+		if pages > 3 {
+			t.Errorf("paper %d: 200 lines on %d pages, want 3", paper, pages)
+		}
+		f.Close()
 	}
 }

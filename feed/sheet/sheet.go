@@ -18,7 +18,6 @@ import (
 const (
 	Summary     = "Lot summary"
 	Lines       = manifest.LinesSheetName
-	Metals      = "Metals"
 	Leach       = "Leach"
 	Assumptions = "Assumptions"
 	WeighIn     = "Weigh-in"
@@ -135,7 +134,7 @@ func build(r *report.Report, paper int) (f *excelize.File, formulas []formulaCel
 	}
 	// The summary is made active before the Lines sheet is streamed: setting it afterwards would
 	// make the xlsx library parse the streamed sheet back into memory.
-	steps := []func() error{wr.summary, func() error { f.SetActiveSheet(0); return nil }, wr.lines, wr.metals, wr.leach, wr.recovery, wr.value, wr.assay, wr.assumptions, wr.weighIn}
+	steps := []func() error{wr.summary, func() error { f.SetActiveSheet(0); return nil }, wr.lines, wr.leach, wr.recovery, wr.value, wr.assay, wr.assumptions, wr.weighIn}
 	for _, s := range steps {
 		err := s()
 		if err == nil {

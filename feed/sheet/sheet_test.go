@@ -68,10 +68,27 @@ func TestWorkbookContent(t *testing.T) {
 			t.Errorf("Lines!%s is stored as text", c)
 		}
 	}
+	// The summary's table of the black mass lists every element, in the report's order, under
+	// the black mass's row: P50 kg in C, mean kg in H.
+	summary, _ := f.GetRows(sheet.Summary)
+	bm := 0
+	for i, row := range summary {
+		if len(row) > 0 && row[0] == "Black mass" {
+			bm = i + 1
+			break
+		}
+	}
+	if bm == 0 {
+		t.Fatal("no black-mass row on the summary")
+	}
 	for i, sym := range r.ElementOrder {
-		got := cellFloat(t, f, sheet.Metals, fmt.Sprintf("C%d", i+2))
-		if got != r.Elements[sym].Kg.P50 {
-			t.Errorf("Metals %s P50 %v, report %v", sym, got, r.Elements[sym].Kg.P50)
+		if a := summary[bm+i][0]; a != sym {
+			t.Fatalf("summary row %d: %q, want %s", bm+i+1, a, sym)
+		}
+		got := cellFloat(t, f, sheet.Summary, fmt.Sprintf("C%d", bm+i+1))
+		mean := cellFloat(t, f, sheet.Summary, fmt.Sprintf("H%d", bm+i+1))
+		if got != r.Elements[sym].Kg.P50 || mean != r.Elements[sym].Kg.Mean {
+			t.Errorf("summary %s P50 %v mean %v, report %v %v", sym, got, mean, r.Elements[sym].Kg.P50, r.Elements[sym].Kg.Mean)
 		}
 	}
 	// Editing the price drives the cost formula.

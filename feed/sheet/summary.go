@@ -8,10 +8,13 @@ import (
 	"maps"
 	"slices"
 	"strings"
+
+	"github.com/xuri/excelize/v2"
 )
 
-// summaryWidths are the summary's columns: a label, then five numbers (A4 portrait at 100 %).
-var summaryWidths = []float64{30, 11, 11, 11, 16, 12}
+// summaryWidths are the summary's printed columns: a label, then six numbers (A4 portrait at
+// 100 %).
+var summaryWidths = []float64{24, 10.5, 10.5, 10.5, 15, 12, 10.5}
 
 // summary is the first one or two pages: everything a bench acts on (the lot, its black mass
 // and metals, what to order, the gases to vent, the liquor, the value, every warning and the
@@ -43,11 +46,14 @@ func (w *writer) summary() error {
 	}
 	p.add(boldText("Monte Carlo"), fmt.Sprintf("%d samples, seed %d; P10, P50, P90: 10th, 50th, 90th percentiles", in.Samples, in.Seed))
 	p.blank()
-	w.summaryMetals(p)
+	if err := w.summaryMetals(p); err != nil {
+		return err
+	}
 	w.summaryOrder(p)
 	w.summaryLeach(p)
 	w.summaryValue(p)
 	w.summaryNotes(p)
+	w.printArea(Summary, len(summaryWidths), p.row)
 	return nil
 }
 
@@ -60,24 +66,40 @@ func thousands(n int) string {
 	return s
 }
 
-func (w *writer) summaryMetals(p *page) {
+// summaryMetals is the black mass and every element in it, the metals first, in kg and wt% with
+// P10–P90; each element's mean kg is in the column after the printed ones, and the chart of the
+// metals beside the table, on screen (out of the print area).
+func (w *writer) summaryMetals(p *page) error {
 	r := w.r
-	var metals []string
+	metals := 0
 	for _, sym := range r.ElementOrder {
-		if cathode.IsMetal(sym) {
-			metals = append(metals, sym)
+		if !cathode.IsMetal(sym) {
+			break
 		}
+		metals++
 	}
-	p.keepRows(len(metals) + 2)
-	p.section("Black mass and its metals")
-	p.header("", "P10 kg", "P50 kg", "P90 kg", "P50 wt%")
+	p.keepRows(len(r.ElementOrder) + 2)
+	p.section("Black mass and every element in it")
+	head := p.header("", "P10 kg", "P50 kg", "P90 kg", "P10 wt%", "P50 wt%", "P90 wt%")
+	w.set(Summary, summaryMeanCol, head, cellValue{v: "mean kg", b: headNum})
 	p.add(boldText("Black mass"), kg(r.BlackMassKg.P10), kg(r.BlackMassKg.P50), kg(r.BlackMassKg.P90))
-	for _, sym := range metals {
+	first := p.row
+	for _, sym := range r.ElementOrder {
 		a := r.Elements[sym]
-		p.add(sym, kg(a.Kg.P10), kg(a.Kg.P50), kg(a.Kg.P90), fixed(a.WtPct.P50, 2))
+		row := p.add(sym, kg(a.Kg.P10), kg(a.Kg.P50), kg(a.Kg.P90), fixed(a.WtPct.P10, 2), fixed(a.WtPct.P50, 2), fixed(a.WtPct.P90, 2))
+		w.set(Summary, summaryMeanCol, row, kg(a.Kg.Mean))
 	}
 	p.blank()
+	col, _ := excelize.ColumnNumberToName(summaryMeanCol)
+	_ = w.f.SetColWidth(Summary, col, col, summaryMeanWidth)
+	chartAt, _ := excelize.CoordinatesToCellName(summaryMeanCol+2, head)
+	return w.rangeChart(Summary, chartAt, "Metals in the black mass: P50 with P10–P90 (kg)", first, first+max(metals, 1)-1, "B", "C", "D")
 }
+
+// summaryMeanCol is the column, after the printed ones, of each element's mean kg.
+const summaryMeanCol = 8
+
+const summaryMeanWidth = 10
 
 // orderUnits picks kg and L for a bench's amounts, t and m³ from a tonne or a cubic metre.
 func orderUnits(o *value.OrderSheet) (massUnit, volUnit string, perKg, perL float64) {
@@ -154,12 +176,16 @@ func (w *writer) summaryLeach(p *page) {
 			syms = append(syms, sym)
 		}
 	}
-	p.keepRows(len(syms) + 5)
+	// The liquor's volume and its metals are two tables, each kept whole: the second may start
+	// the next page rather than move both there.
+	p.keepRows(4)
 	p.section("Leach liquor (" + l.Route + ")")
 	p.header("", "P10", "P50", "P90", "unit")
 	p.add(boldText("liquor volume"), kg(l.Liquor.VolumeL.P10), kg(l.Liquor.VolumeL.P50), kg(l.Liquor.VolumeL.P90), as(indented, "L"))
 	p.add(boldText("free acid"), kg(l.FreeAcidMolPerL.P10), kg(l.FreeAcidMolPerL.P50), kg(l.FreeAcidMolPerL.P90), as(indented, "mol/L"))
-	p.header("metal", "P10 g/L", "P50 g/L", "P90 g/L", "extraction P50")
+	p.blank()
+	p.keepRows(len(syms) + 1)
+	p.header("liquor metal", "P10 g/L", "P50 g/L", "P90 g/L", "extraction P50")
 	for _, sym := range syms {
 		c := l.Liquor.Elements[sym]
 		var ext any
@@ -219,4 +245,28 @@ func (w *writer) summaryNotes(p *page) {
 		}
 		p.blank()
 	}
+}
+
+// rangeChart draws a column's P50 as points with a line from P10 to P90 in each category (a
+// high-low chart: the xlsx library has no error bars), labels dark enough to print. first and
+// last are the data rows; the columns hold P10, P50 and P90, the categories are in A.
+func (w *writer) rangeChart(s, at, title string, first, last int, p10, p50, p90 string) error {
+	ref := func(col string) string { return fmt.Sprintf("'%s'!$%s$%d:$%s$%d", s, col, first, col, last) }
+	cats := ref("A")
+	dark := excelize.Font{Color: "000000", Size: 10}
+	marker := func(symbol string, size int) excelize.ChartMarker {
+		return excelize.ChartMarker{Symbol: symbol, Size: size, Fill: excelize.Fill{Type: "pattern", Pattern: 1, Color: []string{"1F3864"}}}
+	}
+	none := excelize.LineOptions{Type: excelize.LineNone}
+	return w.f.AddChart(s, at, &excelize.Chart{Type: excelize.Line,
+		Series: []excelize.ChartSeries{
+			{Name: "P10", Categories: cats, Values: ref(p10), Line: none, Marker: marker("dash", 7)},
+			{Name: "P50", Categories: cats, Values: ref(p50), Line: none, Marker: marker("circle", 6)},
+			{Name: "P90", Categories: cats, Values: ref(p90), Line: none, Marker: marker("dash", 7)},
+		},
+		Title:     excelize.ChartTitle{Paragraph: []excelize.RichTextRun{{Text: title, Font: &excelize.Font{Color: "000000", Size: 12, Bold: true}}}},
+		Legend:    excelize.ChartLegend{Position: "none"},
+		XAxis:     excelize.ChartAxis{HighLowLines: true, Font: dark},
+		YAxis:     excelize.ChartAxis{MajorGridLines: true, Font: dark},
+		Dimension: excelize.ChartDimension{Width: 600, Height: 230}})
 }
