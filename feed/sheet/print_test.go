@@ -12,6 +12,9 @@ import (
 
 	"github.com/xuri/excelize/v2"
 
+	"blackmass/feed/leach"
+	"blackmass/feed/recover"
+	"blackmass/feed/run"
 	"blackmass/feed/sheet"
 )
 
@@ -35,7 +38,9 @@ var titledSheets = map[string]bool{sheet.Lines: true, sheet.Assumptions: true, s
 // repeated header row on a long table and short tables kept whole on a page; every number has
 // a number format, no font is under 8 pt, and no text is cut by a filled neighbour.
 func TestPrintPack(t *testing.T) {
-	r := sampleReport(t, 60)
+	// With a recovery plan, so that the Recovery sheet is held to the same rules.
+	fs := recover.DefaultFlowsheet()
+	r := reportWith(t, 60, leach.DefaultOptions(), func(o *run.Options) { o.Recover = &fs })
 	for _, paper := range []int{sheet.PaperA4, sheet.PaperLetter} {
 		var buf bytes.Buffer
 		if err := sheet.WriteOn(&buf, r, paper); err != nil {

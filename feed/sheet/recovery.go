@@ -13,232 +13,209 @@ import (
 // RecoverySheet is the recovery plan's sheet, present when the report holds one.
 const RecoverySheet = "Recovery"
 
-// recoveryStyles are the sheet's own cell styles.
-type recoveryStyles struct {
-	section, num, pct, money, text, note int
-}
-
-func (w *writer) recoveryStyles() (recoveryStyles, error) {
-	var st recoveryStyles
-	var err error
-	mk := func(s *excelize.Style) int {
-		id, e := w.f.NewStyle(s)
-		if e != nil && err == nil {
-			err = e
-		}
-		return id
-	}
-	n3, p1, m2 := "#,##0.000", "0.0", "#,##0.00"
-	st.section = mk(&excelize.Style{Font: &excelize.Font{Bold: true}, Fill: excelize.Fill{Type: "pattern", Pattern: 1,
-		Color: []string{"EEF2EA"}}, Alignment: &excelize.Alignment{WrapText: true, Vertical: "top"}})
-	st.num = mk(&excelize.Style{CustomNumFmt: &n3})
-	st.pct = mk(&excelize.Style{CustomNumFmt: &p1})
-	st.money = mk(&excelize.Style{CustomNumFmt: &m2})
-	st.text = mk(&excelize.Style{Alignment: &excelize.Alignment{WrapText: true, Vertical: "top"}})
-	st.note = mk(&excelize.Style{Alignment: &excelize.Alignment{WrapText: true, Vertical: "top"},
-		Font: &excelize.Font{Size: 9}})
-	return st, err
-}
+// recoveryWidths are the Recovery sheet's printed columns: the item, P10/P50/P90, the unit and a
+// note (A4 portrait at 100 %).
+var recoveryWidths = []float64{33, 10, 10, 10, 8, 22}
 
 // recovery writes the Recovery sheet: each stage's reagents, solids, gases, electricity and
 // figures (P10/P50/P90 with the unit), the products and their value, where each element goes
-// with a chart, the water balance and the cautions. One page wide, its header row repeated.
+// with a chart, the water balance and the cautions. One page wide; each table is kept whole on
+// a page with its own header row.
 func (w *writer) recovery() error {
 	rec := w.r.Recovery
 	if rec == nil {
 		return nil
 	}
-	s := RecoverySheet
-	if _, err := w.f.NewSheet(s); err != nil {
-		return err
-	}
-	st, err := w.recoveryStyles()
+	p, err := w.newPage(RecoverySheet, false, recoveryWidths...)
 	if err != nil {
 		return err
 	}
-	_ = w.f.SetCellValue(s, "A1", "Recovery plan after the leach")
-	w.style(s, "A1", "A1", w.title)
-	_ = w.f.SetCellValue(s, "A2", "Flowsheet: "+strings.Join(rec.Flowsheet, " | "))
-	_ = w.f.MergeCell(s, "A2", "F2")
-	w.style(s, "A2", "A2", st.note)
-	_ = w.f.SetRowHeight(s, 2, 42)
-	if err := w.header(s, 3, "stage and item", "P10", "P50", "P90", "unit", "note"); err != nil {
-		return err
-	}
-	rw := &recoveryRows{w: w, s: s, st: st, row: 4}
+	p.title("Recovery plan after the leach")
+	p.paragraph("Flowsheet: "+strings.Join(rec.Flowsheet, " | "), small)
+	p.blank()
+	rw := &recoveryRows{p: p}
 	for i, sr := range rec.Stages {
-		rw.section(fmt.Sprintf("%d. %s: %s", i+1, sr.Kind, sr.Description))
-		rw.stage(sr)
+		rw.table(fmt.Sprintf("%d. %s", i+1, sr.Kind), stageRows(sr), sr.Description)
 	}
-	rw.products(rec)
-	rw.section("Recovery reagents to order: all stages, as bought")
-	for _, g := range rec.Reagents {
-		note := ""
-		if g.Litres != nil {
-			note = fmt.Sprintf("%.4g L (P50), %.4g L (P90)", g.Litres.P50, g.Litres.P90)
-		}
-		rw.stat(fmt.Sprintf("%s %g %%", g.Name, g.WtPct), g.Commercial, "kg", note, st.num)
-	}
-	if c := rec.Cost; c != nil {
-		for _, it := range c.Items {
-			rw.stat("cost of "+it.Name, it.Kg, c.Currency, "", st.money)
-		}
-		note := ""
-		if len(c.Unpriced) > 0 {
-			note = "without " + strings.Join(c.Unpriced, ", ") + ": no price given"
-		}
-		rw.stat("recovery reagents' cost", c.Total, c.Currency, note, st.money)
-		if c.Net != nil {
-			rw.stat("products' value less the reagents' cost", *c.Net, c.Currency, "", st.money)
-		}
-	}
-	rw.fates(rec)
-	rw.section("Water balance (+ into the solution, − out of it)")
+	rw.table("Products", productRows(rec))
+	rw.table("Recovery reagents to order: all stages, as bought", reagentRows(rec))
+	rw.table("Where each element goes: share of liquor + reagents", fateRows(rec))
+	var water []statRow
 	for _, f := range rec.Water {
-		rw.stat(f.Name, f.Kg, "kg", "", st.num)
+		water = append(water, statRow{name: f.Name, v: f.Kg, unit: "kg"})
 	}
-	rw.section("Warnings and cautions")
+	rw.table("Water balance (+ into the solution, − out of it)", water)
+	p.keepRows(2)
+	p.section("Warnings and cautions")
 	for _, wn := range rec.Warnings {
-		rw.text("warning: " + wn)
+		p.paragraph("warning: "+wn, plain)
 	}
 	seen := map[string]bool{}
 	for _, sr := range rec.Stages {
 		for _, c := range sr.Cautions {
 			if !seen[c] {
 				seen[c] = true
-				rw.text(c)
+				p.paragraph("• "+c, plain)
 			}
 		}
 	}
 	for _, c := range rec.Cautions {
-		rw.text(c)
+		p.paragraph("• "+c, plain)
 	}
+	p.blank()
 	// The chart and its data start a page of their own, so that the chart is not cut.
-	_ = w.f.InsertPageBreak(s, rw.cell("A"))
-	rw.chartData(rec)
-	_ = w.f.SetColWidth(s, "A", "A", 44)
-	_ = w.f.SetColWidth(s, "B", "D", 11)
-	_ = w.f.SetColWidth(s, "E", "E", 7)
-	_ = w.f.SetColWidth(s, "F", "F", 30)
-	_ = w.f.SetDefinedName(&excelize.DefinedName{Name: "_xlnm.Print_Titles", RefersTo: "'" + s + "'!$3:$3", Scope: s})
-	w.printSetup(s, false)
-	return rw.chart(rec)
+	cell, _ := excelize.CoordinatesToCellName(1, p.row)
+	_ = w.f.InsertPageBreak(p.s, cell)
+	p.usedPt = 0
+	first, last := rw.chartData(rec)
+	chartRow := p.row + 1
+	// The chart covers about 22 rows below its data; the print area reaches past it.
+	w.printArea(RecoverySheet, len(recoveryWidths), chartRow+22)
+	return w.recoveryChart(first, last, chartRow)
 }
 
-// recoveryRows writes the sheet's rows one after the other.
-type recoveryRows struct {
-	w        *writer
-	s        string
-	st       recoveryStyles
-	row      int
-	fateRows [2]int // the chart's data rows
+// statRow is one row of a recovery table: P10/P50/P90 with a unit and a note; money rows in the
+// money format.
+type statRow struct {
+	name, unit, note string
+	v                dist.Stat
+	money            bool
 }
 
-func (r *recoveryRows) cell(col string) string { return fmt.Sprintf("%s%d", col, r.row) }
+// recoveryRows writes the sheet's tables.
+type recoveryRows struct{ p *page }
 
-func (r *recoveryRows) section(title string) {
-	r.row++
-	_ = r.w.f.SetCellValue(r.s, r.cell("A"), title)
-	_ = r.w.f.MergeCell(r.s, r.cell("A"), r.cell("F"))
-	r.w.style(r.s, r.cell("A"), r.cell("F"), r.st.section)
-	if n := len([]rune(title)); n > 90 {
-		_ = r.w.f.SetRowHeight(r.s, r.row, float64(15*(1+n/90)))
+// table writes a titled table of rows, kept whole on a page with its header, the title's
+// description (if any) wrapped below it.
+func (r *recoveryRows) table(title string, rows []statRow, description ...string) {
+	if len(rows) == 0 {
+		return
 	}
-	r.row++
-}
-
-// stat writes a P10/P50/P90 row with its unit and note; style is the numbers' format.
-func (r *recoveryRows) stat(name string, v dist.Stat, unit, note string, style int) {
-	_ = r.w.row(r.s, r.row, name, v.P10, v.P50, v.P90, unit, note)
-	r.w.style(r.s, r.cell("B"), r.cell("D"), style)
-	r.w.style(r.s, r.cell("F"), r.cell("F"), r.st.note)
-	r.row++
-}
-
-func (r *recoveryRows) text(t string) {
-	_ = r.w.f.SetCellValue(r.s, r.cell("A"), t)
-	_ = r.w.f.MergeCell(r.s, r.cell("A"), r.cell("F"))
-	r.w.style(r.s, r.cell("A"), r.cell("F"), r.st.text)
-	_ = r.w.f.SetRowHeight(r.s, r.row, float64(15*(1+len(t)/110)))
-	r.row++
-}
-
-func (r *recoveryRows) stage(sr recover.StageReport) {
-	for _, g := range sr.Reagents {
-		note := fmt.Sprintf("as bought %g %%: %.4g kg", g.WtPct, g.Commercial.P50)
-		if g.Litres != nil {
-			note += fmt.Sprintf(", %.4g L", g.Litres.P50)
+	p := r.p
+	p.keepRows(len(rows) + 2 + 2*len(description))
+	p.section(title)
+	for _, d := range description {
+		p.paragraph(d, small)
+	}
+	p.header("item", "P10", "P50", "P90", "unit", "note")
+	for _, s := range rows {
+		num := kg
+		if s.money {
+			num = money
 		}
-		r.stat("reagent "+g.Name, g.Kg, "kg", note+" (P50)", r.st.num)
+		p.add(wrap(s.name), num(s.v.P10), num(s.v.P50), num(s.v.P90), as(indented, s.unit), s.note)
+	}
+	p.blank()
+}
+
+// stageRows are a stage's reagents, solids, gases, electricity and figures.
+func stageRows(sr recover.StageReport) []statRow {
+	var rows []statRow
+	for _, g := range sr.Reagents {
+		n := fmt.Sprintf("as bought %g %%: %s kg", g.WtPct, sig3(g.Commercial.P50))
+		if g.Litres != nil {
+			n += ", " + sig3(g.Litres.P50) + " L"
+		}
+		rows = append(rows, statRow{name: "reagent " + g.Name, v: g.Kg, unit: "kg", note: n + " (P50)"})
 	}
 	for _, sol := range sr.Solids {
-		r.solid(sol)
+		rows = append(rows, statRow{name: sol.Kind + " " + sol.Name + ", dry", v: sol.DryKg, unit: "kg"})
+		if sol.WetKg != nil {
+			rows = append(rows, statRow{name: sol.Kind + " " + sol.Name + ", wet", v: *sol.WetKg, unit: "kg",
+				note: "filter-cake moisture as a range"})
+		}
+		for k, e := range sol.Elements {
+			if k == 4 || e.WtPct.P50 < 0.01 {
+				break
+			}
+			rows = append(rows, statRow{name: "   " + e.Name + " in it", v: e.WtPct, unit: "wt%"})
+		}
 	}
 	for _, g := range sr.Gases {
-		r.stat("gas "+g.Formula, g.Kg, "kg", fmt.Sprintf("%.4g L at 0 °C, 1 atm (P50)", g.Litres.P50), r.st.num)
+		rows = append(rows, statRow{name: "gas " + g.Formula, v: g.Kg, unit: "kg",
+			note: sig3(g.Litres.P50) + " L at 0 °C, 1 atm (P50)"})
 	}
 	if sr.KWh != nil {
-		r.stat("electricity", *sr.KWh, "kWh", "", r.st.num)
-		r.stat("electrowinning time", *sr.Hours, "h", "at the current density and cathode area set", r.st.num)
+		rows = append(rows, statRow{name: "electricity", v: *sr.KWh, unit: "kWh"},
+			statRow{name: "electrowinning time", v: *sr.Hours, unit: "h", note: "at the current density and cathode area set"})
 	}
 	for _, f := range sr.Figures {
-		r.stat(f.Name, f.Value, "", "", r.st.num)
+		rows = append(rows, statRow{name: f.Name, v: f.Value})
 	}
+	return rows
 }
 
-func (r *recoveryRows) solid(sol recover.Solid) {
-	r.stat(sol.Kind+" "+sol.Name+", dry", sol.DryKg, "kg", "", r.st.num)
-	if sol.WetKg != nil {
-		r.stat(sol.Kind+" "+sol.Name+", wet", *sol.WetKg, "kg", "filter-cake moisture as a range", r.st.num)
-	}
-	for k, e := range sol.Elements {
-		if k == 4 || e.WtPct.P50 < 0.01 {
-			break
-		}
-		r.stat("   "+e.Name+" in it", e.WtPct, "wt%", "", r.st.pct)
-	}
-}
-
-func (r *recoveryRows) products(rec *recover.Report) {
-	r.section("Products")
-	for _, p := range rec.Products {
-		r.stat(p.Name, p.DryKg, "kg", "", r.st.num)
+// productRows are the products, and their value where priced.
+func productRows(rec *recover.Report) []statRow {
+	var rows []statRow
+	for _, pr := range rec.Products {
+		rows = append(rows, statRow{name: pr.Name, v: pr.DryKg, unit: "kg"})
 	}
 	if v := rec.Value; v != nil {
 		for _, it := range v.Items {
-			r.stat("value of "+it.Name, it.Value, v.Currency, fmt.Sprintf("at %.4g per kg as %s", it.PricePerKg, it.Item),
-				r.st.money)
+			rows = append(rows, statRow{name: "value of " + it.Name, v: it.Value, unit: v.Currency, money: true,
+				note: fmt.Sprintf("at %s per kg as %s", sig3(it.PricePerKg), it.Item)})
 		}
 		note := ""
 		if len(v.Unpriced) > 0 {
-			note = "without " + strings.Join(v.Unpriced, ", ") + ": no price given"
+			note = "without " + strings.Join(v.Unpriced, ", ") + ": not priced"
 		}
-		r.stat("products' value", v.Total, v.Currency, note, r.st.money)
+		rows = append(rows, statRow{name: "products' value", v: v.Total, unit: v.Currency, money: true, note: note})
 	}
+	return rows
 }
 
-// chartGroups are the destinations the chart sums: products, cakes, what stays in solution.
-var chartGroups = []string{"products", "cakes", "in solution"}
+// reagentRows are the recovery's reagents as bought, and their cost where priced.
+func reagentRows(rec *recover.Report) []statRow {
+	var rows []statRow
+	for _, g := range rec.Reagents {
+		note := ""
+		if g.Litres != nil {
+			note = sig3(g.Litres.P50) + " L (P50), " + sig3(g.Litres.P90) + " L (P90)"
+		}
+		rows = append(rows, statRow{name: fmt.Sprintf("%s %g %%", g.Name, g.WtPct), v: g.Commercial, unit: "kg", note: note})
+	}
+	if c := rec.Cost; c != nil {
+		for _, it := range c.Items {
+			rows = append(rows, statRow{name: "cost of " + it.Name, v: it.Kg, unit: c.Currency, money: true})
+		}
+		note := ""
+		if len(c.Unpriced) > 0 {
+			note = "without " + strings.Join(c.Unpriced, ", ") + ": not priced"
+		}
+		rows = append(rows, statRow{name: "recovery reagents' cost", v: c.Total, unit: c.Currency, money: true, note: note})
+		if c.Net != nil {
+			rows = append(rows, statRow{name: "products' value less the reagents' cost", v: *c.Net, unit: c.Currency, money: true})
+		}
+	}
+	return rows
+}
 
-// fates writes where each element goes.
-func (r *recoveryRows) fates(rec *recover.Report) {
-	r.section("Where each element goes: share of liquor + reagents")
+// fateRows are where each element goes, as shares of what came in.
+func fateRows(rec *recover.Report) []statRow {
+	var rows []statRow
 	for _, f := range rec.Fates {
 		for _, t := range f.To {
 			if t.WtPct.P50 < 0.05 && t.WtPct.P90 < 0.05 {
 				continue
 			}
-			r.stat(f.Element+" to "+t.Name, t.WtPct, "%", fmt.Sprintf("of %.4g kg in (P50)", f.InKg.P50), r.st.pct)
+			rows = append(rows, statRow{name: f.Element + " to " + t.Name, v: t.WtPct, unit: "%",
+				note: "of " + sig3(f.InKg.P50) + " kg in (P50)"})
 		}
 	}
+	return rows
 }
 
-// chartData writes the chart's table: each liquor metal's P50 share to products, cakes and the
-// solutions left.
-func (r *recoveryRows) chartData(rec *recover.Report) {
+// chartGroups are the destinations the chart sums: products, cakes, what stays in solution.
+var chartGroups = []string{"products", "cakes", "in solution"}
+
+// chartData writes the chart's table, each liquor metal's P50 share to products, cakes and the
+// solutions left, and returns its first and last data rows.
+func (r *recoveryRows) chartData(rec *recover.Report) (first, last int) {
+	p := r.p
 	kinds := map[string]string{"effluent": chartGroups[2], "cobalt circuit liquor": chartGroups[2]}
-	for _, p := range rec.Products {
-		kinds[p.Name] = chartGroups[0]
+	for _, pr := range rec.Products {
+		kinds[pr.Name] = chartGroups[0]
 	}
 	for _, sr := range rec.Stages {
 		for _, s := range sr.Solids {
@@ -247,12 +224,9 @@ func (r *recoveryRows) chartData(rec *recover.Report) {
 			}
 		}
 	}
-	r.section("Chart data: P50 share of each metal (%)")
-	_ = r.w.row(r.s, r.row, "metal", chartGroups[0], chartGroups[1], chartGroups[2])
-	r.w.style(r.s, r.cell("A"), r.cell("D"), r.w.hdr)
-	_ = r.w.f.SetRowHeight(r.s, r.row, 30)
-	r.row++
-	r.fateRows[0] = r.row
+	p.section("Chart data: P50 share of each metal (%)")
+	p.header("metal", chartGroups[0], chartGroups[1], chartGroups[2])
+	first = p.row
 	for _, f := range rec.Fates {
 		if !isChartMetal(f.Element) {
 			continue
@@ -263,11 +237,9 @@ func (r *recoveryRows) chartData(rec *recover.Report) {
 				share[g] += t.WtPct.P50
 			}
 		}
-		_ = r.w.row(r.s, r.row, f.Element, share[chartGroups[0]], share[chartGroups[1]], share[chartGroups[2]])
-		r.w.style(r.s, r.cell("B"), r.cell("D"), r.st.pct)
-		r.row++
+		p.add(f.Element, fixed(share[chartGroups[0]], 1), fixed(share[chartGroups[1]], 1), fixed(share[chartGroups[2]], 1))
 	}
-	r.fateRows[1] = r.row - 1
+	return first, p.row - 1
 }
 
 func isChartMetal(el string) bool {
@@ -278,25 +250,25 @@ func isChartMetal(el string) bool {
 	return false
 }
 
-// chart draws where each metal goes as 100 % stacked bars, below the rows.
-func (r *recoveryRows) chart(rec *recover.Report) error {
-	first, last := r.fateRows[0], r.fateRows[1]
+// recoveryChart draws where each metal goes as 100 % stacked bars, below the chart's data.
+func (w *writer) recoveryChart(first, last, row int) error {
 	if last < first {
 		return nil
 	}
-	ref := func(col string) string { return fmt.Sprintf("'%s'!$%s$%d:$%s$%d", r.s, col, first, col, last) }
+	s := RecoverySheet
+	ref := func(col string) string { return fmt.Sprintf("'%s'!$%s$%d:$%s$%d", s, col, first, col, last) }
 	colours := []string{"1F3864", "BF9000", "8FAADC"}
 	var series []excelize.ChartSeries
 	for k, col := range []string{"B", "C", "D"} {
-		series = append(series, excelize.ChartSeries{Name: fmt.Sprintf("'%s'!$%s$%d", r.s, col, first-1), Categories: ref("A"),
+		series = append(series, excelize.ChartSeries{Name: fmt.Sprintf("'%s'!$%s$%d", s, col, first-1), Categories: ref("A"),
 			Values: ref(col), Fill: excelize.Fill{Type: "pattern", Pattern: 1, Color: []string{colours[k]}}})
 	}
 	dark := excelize.Font{Color: "000000", Size: 10}
-	return r.w.f.AddChart(r.s, fmt.Sprintf("A%d", r.row+1), &excelize.Chart{Type: excelize.BarPercentStacked, Series: series,
+	return w.f.AddChart(s, fmt.Sprintf("A%d", row), &excelize.Chart{Type: excelize.BarPercentStacked, Series: series,
 		Title: excelize.ChartTitle{Paragraph: []excelize.RichTextRun{{Text: "Where each metal goes (P50)",
 			Font: &excelize.Font{Color: "000000", Size: 12, Bold: true}}}},
 		Legend:    excelize.ChartLegend{Position: "bottom"},
 		XAxis:     excelize.ChartAxis{Font: dark},
 		YAxis:     excelize.ChartAxis{MajorGridLines: true, Font: dark},
-		Dimension: excelize.ChartDimension{Width: 620, Height: 300}})
+		Dimension: excelize.ChartDimension{Width: 560, Height: 300}})
 }

@@ -84,15 +84,16 @@ func TestRecoverySheet(t *testing.T) {
 			t.Errorf("the sheet lacks %q", want)
 		}
 	}
-	names := f.GetDefinedName()
-	titled := false
-	for _, n := range names {
-		if n.Name == "_xlnm.Print_Titles" && n.Scope == s && strings.Contains(n.RefersTo, "$3:$3") {
-			titled = true
+	// Each table is kept whole on a page with its own header row (no repeated print title is
+	// needed): one header per stage at least.
+	headers := 0
+	for _, row := range rows {
+		if len(row) >= 4 && row[0] == "item" && row[1] == "P10" && row[3] == "P90" {
+			headers++
 		}
 	}
-	if !titled {
-		t.Errorf("no repeated header row: %+v", names)
+	if headers < len(r.Recovery.Stages) {
+		t.Errorf("%d table headers for %d stages", headers, len(r.Recovery.Stages))
 	}
 	lay, err := f.GetPageLayout(s)
 	if err != nil || lay.FitToWidth == nil || *lay.FitToWidth != 1 || lay.Size == nil || *lay.Size != sheet.PaperA4 {

@@ -25,7 +25,7 @@ func sampleReport(tb testing.TB, lines int) *report.Report {
 	return reportWith(tb, lines, leach.DefaultOptions())
 }
 
-func reportWith(tb testing.TB, lines int, lo leach.Options) *report.Report {
+func reportWith(tb testing.TB, lines int, lo leach.Options, edits ...func(*run.Options)) *report.Report {
 	tb.Helper()
 	var b strings.Builder
 	b.WriteString("id,description,chemistry,format,capacity,cells_per_pack,count,mass\n")
@@ -39,6 +39,9 @@ func reportWith(tb testing.TB, lines int, lo leach.Options) *report.Report {
 	}
 	o := run.Options{Seed: 1, Samples: 200, Leach: &lo, KeepLines: true, Containers: value.DefaultContainers(),
 		Inputs: report.Inputs{LotID: "=cmd|' /C calc'!A0", Version: "test"}}
+	for _, e := range edits {
+		e(&o)
+	}
 	r, err := run.Estimate(tables, o, run.Manifest{Name: "gen.csv", R: strings.NewReader(b.String())})
 	if err != nil {
 		tb.Fatal(err)

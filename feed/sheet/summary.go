@@ -145,7 +145,7 @@ func (w *writer) summaryOrder(p *page) {
 		if l.CostP90 != nil {
 			cost = money(*l.CostP90)
 		}
-		p.add(l.Reagent, kg(l.Kg.P50*perKg), kg(l.Kg.P90*perKg), litres, as(indented, suggestion(l)), cost)
+		p.add(wrap(l.Reagent), kg(l.Kg.P50*perKg), kg(l.Kg.P90*perKg), litres, as(indented, suggestion(l)), cost)
 	}
 	if l := w.r.Leach; l != nil {
 		p.add("make-up water", nil, nil, kg(l.WaterL.P90*perL), "")
