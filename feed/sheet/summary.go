@@ -218,6 +218,9 @@ func (w *writer) summaryValue(p *page) {
 		row("payable net of reagents", *v.NetOfReagents)
 	}
 	row("payable per tonne of black mass", v.PayablePerTonneBM)
+	if rec := w.r.Recovery; rec != nil && rec.Value != nil && rec.Value.Currency == v.Currency {
+		row("recovered products instead (recovery plan)", rec.Value.Total)
+	}
 	p.blank()
 }
 
@@ -229,6 +232,13 @@ func (w *writer) summaryNotes(p *page) {
 	if l := r.Leach; l != nil {
 		warnings = append(warnings, l.Warnings...)
 		cautions = append(slices.Clone(l.Safety), cautions...)
+	}
+	if rec := r.Recovery; rec != nil {
+		for _, wn := range rec.Warnings {
+			warnings = append(warnings, "recovery "+wn)
+		}
+		cautions = append(cautions, "Recovery stages: oxidisers, caustic, flammable extraction diluents, acid mist and "+
+			"hydrogen at electrowinning, cobalt and nickel compounds: see the Recovery sheet's cautions.")
 	}
 	for _, part := range []struct {
 		title string
