@@ -265,9 +265,12 @@ func (d *Drawer) Draws(key string, lo, mode, hi float64) []float64 {
 			out[i] = mode
 		}
 	} else {
-		tri := distuv.NewTriangle(lo, hi, mode, d.Source(key))
+		// Triangle.Rand is Quantile of one uniform from the source; one rand.Rand over the
+		// source gives the same uniforms without a wrapper per draw.
+		tri := distuv.NewTriangle(lo, hi, mode, nil)
+		u := rand.New(d.Source(key))
 		for i := range out {
-			out[i] = tri.Rand()
+			out[i] = tri.Quantile(u.Float64())
 		}
 	}
 	d.cache[key] = out
