@@ -113,6 +113,7 @@ func (l *Lot) draw(ps *paramSet, n int, fac [][][]float64) *Samples {
 		mo := ps.massOnlyDraws(g)
 		arealLo, arealHi := ps.arealBounds(g.chem, g.format)
 		chemAreal := ps.chemAreal(g.chem)
+		fd := ps.format(g.format)
 		// Only the group's own compounds can be non-zero: the fixed ones and its cathodes. Summing
 		// just those keeps the cost per group independent of how many chemistries the lot holds.
 		touched := append(fixedIndices(), g.camIdx...)
@@ -124,7 +125,7 @@ func (l *Lot) draw(ps *paramSet, n int, fac [][][]float64) *Samples {
 			for _, c := range touched {
 				bm[c] = 0
 			}
-			sh, fr, gl := shares.next(), ps.design(g.format, i), ps.global(i)
+			sh, fr, gl := shares.next(), fd.at(i), ps.global(i)
 			if chemAreal != nil {
 				fr.arealMAhCm2 = chemAreal[i]
 			}

@@ -217,7 +217,11 @@ func (ps *paramSet) global(s int) globals {
 
 // design returns format f's cell design at sample s.
 func (ps *paramSet) design(f manifest.Format, s int) design {
-	d := ps.format(f)
+	return ps.format(f).at(s)
+}
+
+// at returns the format's cell design at sample s.
+func (d *formatDraws) at(s int) design {
 	return design{d.areal[s], d.al[s], d.cu[s], d.el[s], d.bc[s], d.sep[s], d.cas[s], d.kind, d.over[s]}
 }
 
