@@ -29,31 +29,119 @@ type Amount struct {
 }
 
 // Summarise returns P10/P50/P90 and the mean of x, rounded to 9 significant digits so that
-// reports are stable text. The quantiles are found by selection on one copy of x (the median
-// first, then P10 among the values below it and P90 among those above), not by a sort.
+// reports are stable text. The quantiles are the order statistics a sort would give,
+// interpolated (Quantile), found without sorting: for a large sample, in the pass that sums x,
+// by counting the values below a bracket around each quantile and keeping those inside it
+// (bracketStats); for a smaller one by selection on one copy of x (the median first, then P10
+// among the values below it and P90 among those above).
 func Summarise(x []float64) Stat {
-	if len(x) == 0 {
+	n := len(x)
+	if n == 0 {
 		return Stat{}
 	}
-	s := slices.Clone(x)
-	mean := 0.0
-	for _, v := range s {
-		mean += v
-	}
-	mean /= float64(len(s))
-	if len(s) < minSelect || math.IsNaN(mean) || math.IsInf(mean, 0) {
+	ks := [3]int{order(n, 0.1), order(n, 0.5), order(n, 0.9)}
+	var st [3][2]float64 // the order statistics k and k+1 of each quantile
+	mean, bracketed := bracketStats(x, ks, &st)
+	mean /= float64(n)
+	if n < minSelect || math.IsNaN(mean) || math.IsInf(mean, 0) {
+		s := slices.Clone(x)
 		slices.Sort(s)
 		return Stat{P10: Sig(Quantile(s, 0.1)), P50: Sig(Quantile(s, 0.5)), P90: Sig(Quantile(s, 0.9)), Mean: Sig(mean)}
 	}
-	n := len(s)
-	k10, k50, k90 := order(n, 0.1), order(n, 0.5), order(n, 0.9)
-	selectK(s, k50)
-	p50 := interpolate(s, k50, s[k50+1:], 0.5)
-	selectK(s[:k50], k10)
-	p10 := interpolate(s, k10, s[k10+1:k50+1], 0.1)
-	selectK(s[k50+1:], k90-k50-1)
-	p90 := interpolate(s, k90, s[k90+1:], 0.9)
-	return Stat{P10: Sig(p10), P50: Sig(p50), P90: Sig(p90), Mean: Sig(mean)}
+	if !bracketed {
+		s := slices.Clone(x)
+		k10, k50, k90 := ks[0], ks[1], ks[2]
+		selectK(s, k50)
+		st[1] = [2]float64{s[k50], slices.Min(s[k50+1:])}
+		selectK(s[:k50], k10)
+		st[0] = [2]float64{s[k10], slices.Min(s[k10+1 : k50+1])}
+		selectK(s[k50+1:], k90-k50-1)
+		st[2] = [2]float64{s[k90], slices.Min(s[k90+1:])}
+	}
+	return Stat{P10: Sig(lerp(st[0], n, 0.1)), P50: Sig(lerp(st[1], n, 0.5)), P90: Sig(lerp(st[2], n, 0.9)),
+		Mean: Sig(mean)}
+}
+
+// lerp is Quantile's linear step from the order statistic k = ⌊h⌋ towards k+1, at h = p·(n−1).
+func lerp(st [2]float64, n int, p float64) float64 {
+	h := p * float64(n-1)
+	return st[0] + (h-math.Floor(h))*(st[1]-st[0])
+}
+
+// bracketMin is the smallest sample bracketStats brackets; below it selection costs little.
+const bracketMin = 8192
+
+// bracketSample is the number of values bracketStats sorts to place its brackets, and
+// bracketSigmas their half-width in standard deviations of a sample quantile's rank.
+const (
+	bracketSample = 4096
+	bracketSigmas = 6
+)
+
+// bracketStats returns the sum of x, in order, and finds the order statistics ks[j] and ks[j]+1
+// of x (ks ascending, each below len(x)−1) without reordering x. From an evenly spaced
+// subsample, sorted, it takes a bracket of values around each quantile; the pass that sums x
+// counts the values below each bracket and keeps those inside it, and selection among the kept
+// values gives the order statistics, exactly those of a sort. It reports false, leaving st
+// undefined, when x is small or a bracket missed its order statistics (the caller then selects
+// on all of x).
+func bracketStats(x []float64, ks [3]int, st *[3][2]float64) (float64, bool) {
+	n := len(x)
+	sum := 0.0
+	if n < bracketMin {
+		for _, v := range x {
+			sum += v
+		}
+		return sum, false
+	}
+	m := bracketSample
+	sub := make([]float64, m)
+	for i := range sub {
+		sub[i] = x[int(int64(i)*int64(n)/int64(m))]
+	}
+	slices.Sort(sub)
+	var lo, hi [3]float64
+	var kept [3][]float64
+	for j, k := range ks {
+		p := (float64(k) + 0.5) / float64(n)
+		r := p * float64(m-1)
+		d := bracketSigmas*math.Sqrt(float64(m)*p*(1-p)) + 2
+		lo[j] = sub[max(int(math.Floor(r-d)), 0)]
+		hi[j] = sub[min(int(math.Ceil(r+d)), m-1)]
+		kept[j] = make([]float64, 0, int(float64(n)*(2*d+4)/float64(m)))
+	}
+	lo0, lo1, lo2, hi0, hi1, hi2 := lo[0], lo[1], lo[2], hi[0], hi[1], hi[2]
+	k0, k1, k2 := kept[0][:0], kept[1][:0], kept[2][:0]
+	b0, b1, b2 := 0, 0, 0
+	for _, v := range x {
+		sum += v
+		if v < lo0 {
+			b0++
+		} else if v <= hi0 {
+			k0 = append(k0, v)
+		}
+		if v < lo1 {
+			b1++
+		} else if v <= hi1 {
+			k1 = append(k1, v)
+		}
+		if v < lo2 {
+			b2++
+		} else if v <= hi2 {
+			k2 = append(k2, v)
+		}
+	}
+	below, kept := [3]int{b0, b1, b2}, [3][]float64{k0, k1, k2}
+	for j, k := range ks {
+		i := k - below[j]
+		if i < 0 || i+1 >= len(kept[j]) {
+			return sum, false
+		}
+		kj := kept[j]
+		selectK(kj, i)
+		st[j] = [2]float64{kj[i], slices.Min(kj[i+1:])}
+	}
+	return sum, true
 }
 
 // minSelect is the smallest sample Summarise quantiles by selection; below it k10 < k50 < k90
@@ -62,16 +150,6 @@ const minSelect = 64
 
 // order is the index of the lower order statistic of the p-quantile of n values, ⌊p·(n−1)⌋.
 func order(n int, p float64) int { return int(math.Floor(p * float64(n-1))) }
-
-// interpolate is Quantile's linear step from s[k] (in place after selection) towards the
-// smallest of above, the values that follow it, at h = p·(n−1).
-func interpolate(s []float64, k int, above []float64, p float64) float64 {
-	if len(above) == 0 {
-		return s[k]
-	}
-	h := p * float64(len(s)-1)
-	return s[k] + (h-math.Floor(h))*(slices.Min(above)-s[k])
-}
 
 // selectK reorders s so that s[k] is the value a sort would put there, the values before it no
 // larger and those after it no smaller: quickselect with a median-of-three pivot and a three-way
@@ -187,9 +265,12 @@ func (d *Drawer) Draws(key string, lo, mode, hi float64) []float64 {
 			out[i] = mode
 		}
 	} else {
-		tri := distuv.NewTriangle(lo, hi, mode, d.Source(key))
+		// Triangle.Rand is Quantile of one uniform from the source; one rand.Rand over the
+		// source gives the same uniforms without a wrapper per draw.
+		tri := distuv.NewTriangle(lo, hi, mode, nil)
+		u := rand.New(d.Source(key))
 		for i := range out {
-			out[i] = tri.Rand()
+			out[i] = tri.Quantile(u.Float64())
 		}
 	}
 	d.cache[key] = out

@@ -145,12 +145,13 @@ func TestSigExtremes(t *testing.T) {
 }
 
 // Selection gives the same P10/P50/P90 as sorting and interpolating (PERCENTILE.INC), for
-// sizes around the selection threshold, with ties and with runs of zeros.
+// sizes around the selection and bracketing thresholds, with ties, with runs of zeros, sorted,
+// and with a period that fools the brackets' evenly spaced subsample (so the fallback runs).
 func TestSummariseSelectionMatchesSort(t *testing.T) {
 	t.Parallel()
 	rng := rand.New(rand.NewPCG(5, 6))
-	for _, n := range []int{1, 2, 9, 10, 63, 64, 65, 100, 1001, 4000} {
-		for _, kind := range []string{"uniform", "ties", "zeros"} {
+	for _, n := range []int{1, 2, 9, 10, 63, 64, 65, 100, 1001, 4000, 8191, 8192, 8193, 20_000, 200_000} {
+		for _, kind := range []string{"uniform", "ties", "zeros", "sorted", "periodic"} {
 			x := make([]float64, n)
 			for i := range x {
 				switch kind {
@@ -161,6 +162,17 @@ func TestSummariseSelectionMatchesSort(t *testing.T) {
 				case "zeros":
 					if rng.IntN(3) > 0 {
 						x[i] = rng.ExpFloat64()
+					}
+				case "sorted":
+					x[i] = float64(i) / float64(n)
+				case "periodic": // the subsample (every n/4096th value) sees only 1s
+					x[i] = rng.Float64() * 2
+				}
+			}
+			if kind == "periodic" {
+				for j := range 4096 {
+					if k := j * n / 4096; k < n {
+						x[k] = 1
 					}
 				}
 			}
@@ -175,5 +187,17 @@ func TestSummariseSelectionMatchesSort(t *testing.T) {
 				}
 			}
 		}
+	}
+}
+
+// BenchmarkSummarise200k summarises 200,000 draws, the largest sample a run takes.
+func BenchmarkSummarise200k(b *testing.B) {
+	rng := rand.New(rand.NewPCG(1, 2))
+	x := make([]float64, 200_000)
+	for i := range x {
+		x[i] = rng.NormFloat64()
+	}
+	for b.Loop() {
+		dist.Summarise(x)
 	}
 }

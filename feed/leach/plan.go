@@ -59,9 +59,11 @@ type leachPlanner struct {
 	waterG  float64 // molar mass of water, g/mol
 	metals  []metalSpecies
 	// molBuf, planBuf and metalE0 are input's buffers (see there).
-	molBuf  []float64
-	planBuf [nLeachElements]float64
-	metalE0 func(sym string) float64
+	molBuf []float64
+	// donorBuf is the passes' room for donors, reused sample after sample.
+	donorBuf []donor
+	planBuf  [nLeachElements]float64
+	metalE0  func(sym string) float64
 	// feedPerMol is each species' moles of each of leachElements per mol.
 	feedPerMol [][nLeachElements]float64
 	lin        []*linearRx // per species: its dissolution's linear form (nil: call cathode.Dissolve)
@@ -199,6 +201,7 @@ func (p *leachPlanner) plan(i int) func(string) float64 {
 func (p *leachPlanner) input(i int, plan func(string) float64, hPlus, redMol float64) redoxInput {
 	if len(p.molBuf) != len(p.s.Kg) {
 		p.molBuf = make([]float64, len(p.s.Kg))
+		p.donorBuf = make([]donor, 0, len(p.species))
 		es := p.lt.elements
 		p.metalE0 = func(sym string) float64 {
 			if el := es.Lookup(sym); el != nil && el.HasPotential {
@@ -214,7 +217,8 @@ func (p *leachPlanner) input(i int, plan func(string) float64, hPlus, redMol flo
 		p.planBuf[k] = plan(sym)
 	}
 	return redoxInput{route: p.route, species: p.species, lin: p.lin, metals: p.metals, mol: p.molBuf, plan: plan, planAt: &p.planBuf,
-		hPlus: hPlus, red: p.red, redMol: redMol, lost: p.lost[i], lattice: p.lattice[i], metalE0: p.metalE0}
+		hPlus: hPlus, red: p.red, redMol: redMol, lost: p.lost[i], lattice: p.lattice[i], metalE0: p.metalE0,
+		donors: p.donorBuf}
 }
 
 // feedMol is sample i's moles of element k (of leachElements) in the feed.

@@ -121,6 +121,9 @@ type redoxInput struct {
 	lost    float64                  // share of a peroxide dose that decomposes
 	lattice float64                  // share of the planned reduction the oxides' own oxygen can give
 	metalE0 func(sym string) float64 // standard potential of the metal's couple
+	// donors is room for a pass's donors (one per species at most), reused pass after pass; nil:
+	// each pass makes its own.
+	donors []donor
 }
 
 // sampleResult is what the planner keeps of each sample's leach with the dose: the fields the
@@ -259,7 +262,7 @@ const latticeOfThisPass = -1
 // able to give latticeCap electrons (or latticeOfThisPass). It returns the result, the electrons
 // available to the oxides, and the H+ needed.
 func dissolveOnce(in redoxInput, fRed, fAcid, latticeCap float64) (redoxResult, float64, float64, error) {
-	p := &pass{in: in, fRed: fRed, fAcid: fAcid, latticeCap: latticeCap}
+	p := &pass{in: in, fRed: fRed, fAcid: fAcid, latticeCap: latticeCap, donors: in.donors[:0]}
 	if err := p.solids(); err != nil {
 		return p.r, 0, 0, err
 	}

@@ -21,8 +21,8 @@ type Samples struct {
 	// Draws gives later stages their own parameters from the run's seeded streams.
 	Draws    *dist.Drawer
 	comp     *compounds
-	groupCAM [][]float64 // [group][sample] kg
-	groupBM  [][]float64
+	groupCAM []dist.Stat // [group] kg, summarised as each group is drawn
+	groupBM  []dist.Stat
 	groupEl  []map[string]dist.Stat // [group] element → kg
 }
 
@@ -85,9 +85,7 @@ func (l *Lot) EstimateWith(seed uint64, samples int, f Factors) (*Result, *Sampl
 	// Later stages draw their own parameters from a drawer of the same seed (a stream is named
 	// by its key, so the draws are the same), and the lot's own draws are let go.
 	s.Formulas, s.ElementNames, s.Draws = l.comp.formulas, l.comp.elements, dist.NewDrawer(seed, samples)
-	r := l.result(s)
-	s.groupCAM, s.groupBM = nil, nil // summarised in r.Groups
-	return r, s, nil
+	return l.result(s), s, nil
 }
 
 // draw runs the Monte Carlo: n samples of every group's black mass by compound, then the
@@ -108,13 +106,14 @@ func (l *Lot) draw(ps *paramSet, n int, fac [][][]float64) *Samples {
 		s.Compounds[c] = make([]float64, n)
 	}
 	bm := make([]float64, nc)
+	cam, gbm := make([]float64, n), make([]float64, n) // one group's, summarised before the next
 	for _, g := range l.order {
 		volt, capa := ps.chemDraws(g.chem)
 		shares := ps.shareDraws(g.chem, g.chem.Key+"/"+g.format.String(), g.items)
 		mo := ps.massOnlyDraws(g)
 		arealLo, arealHi := ps.arealBounds(g.chem, g.format)
 		chemAreal := ps.chemAreal(g.chem)
-		cam, gbm := make([]float64, n), make([]float64, n)
+		fd := ps.format(g.format)
 		// Only the group's own compounds can be non-zero: the fixed ones and its cathodes. Summing
 		// just those keeps the cost per group independent of how many chemistries the lot holds.
 		touched := append(fixedIndices(), g.camIdx...)
@@ -126,7 +125,7 @@ func (l *Lot) draw(ps *paramSet, n int, fac [][][]float64) *Samples {
 			for _, c := range touched {
 				bm[c] = 0
 			}
-			sh, fr, gl := shares.next(), ps.design(g.format, i), ps.global(i)
+			sh, fr, gl := shares.next(), fd.at(i), ps.global(i)
 			if chemAreal != nil {
 				fr.arealMAhCm2 = chemAreal[i]
 			}
@@ -150,7 +149,7 @@ func (l *Lot) draw(ps *paramSet, n int, fac [][][]float64) *Samples {
 				s0[t.e][i] += bm[t.c] / 1000 * t.f
 			}
 		}
-		s.groupCAM, s.groupBM = append(s.groupCAM, cam), append(s.groupBM, gbm)
+		s.groupCAM, s.groupBM = append(s.groupCAM, dist.Summarise(cam)), append(s.groupBM, dist.Summarise(gbm))
 		s.groupEl = append(s.groupEl, l.groupElements(s, s0, terms, fac))
 	}
 	for c, fr := range l.comp.fractions {
@@ -266,7 +265,7 @@ func (l *Lot) result(s *Samples) *Result {
 		}
 		r.Groups = append(r.Groups, GroupResult{Chemistry: g.chem.Key, Components: keys, Format: g.format.String(), Lines: g.lines, Items: g.items,
 			NameplateKWh: dist.Round(g.energyWh/1000, 6), ChargeOnlyAh: dist.Round(g.chargeAh, 6), MassOnlyKg: dist.Round(g.massOnlyKg, 6),
-			CathodeKg: dist.Summarise(s.groupCAM[gi]), BlackMassKg: dist.Summarise(s.groupBM[gi]), ElementsKg: s.groupEl[gi]})
+			CathodeKg: s.groupCAM[gi], BlackMassKg: s.groupBM[gi], ElementsKg: s.groupEl[gi]})
 	}
 	r.Parameters = l.parameters()
 	r.ElementOrder = cathode.SortForDisplay(l.comp.elements)

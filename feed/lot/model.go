@@ -180,27 +180,33 @@ type formatDraws struct {
 
 func newParamSet(m *Model, seed uint64, samples int) *paramSet {
 	ps := &paramSet{m: m, d: dist.NewDrawer(seed, samples), formats: map[manifest.Format]*formatDraws{}}
-	n := max(samples, 1)
 	ps.globals = make([][]float64, len(globalNames))
 	for i, name := range globalNames {
 		ps.globals[i] = ps.values("all", name)
 	}
-	for _, f := range manifest.Formats() {
-		sc := f.String()
-		fd := &formatDraws{areal: ps.values(sc, "areal_capacity"), al: ps.values(sc, "al_foil_thickness"), cu: ps.values(sc, "cu_foil_thickness"),
-			el: ps.values(sc, "electrolyte_per_area"), bc: ps.values(sc, "binder_carbon"), sep: ps.values(sc, "separator")}
-		for k, name := range casingNames {
-			if m.get(sc, name) != nil {
-				fd.cas, fd.kind = ps.values(sc, name), casingKind(k)
-			}
-		}
-		fd.over = make([]float64, n)
-		if f.IsAssembly() {
-			fd.over = ps.values(sc, sc+"_overhead")
-		}
-		ps.formats[f] = fd
-	}
 	return ps
+}
+
+// format returns format f's design draws, drawn when first asked for: a lot draws only its own
+// formats (each parameter has its own stream, so when it is drawn does not change its draws).
+func (ps *paramSet) format(f manifest.Format) *formatDraws {
+	if fd := ps.formats[f]; fd != nil {
+		return fd
+	}
+	sc := f.String()
+	fd := &formatDraws{areal: ps.values(sc, "areal_capacity"), al: ps.values(sc, "al_foil_thickness"), cu: ps.values(sc, "cu_foil_thickness"),
+		el: ps.values(sc, "electrolyte_per_area"), bc: ps.values(sc, "binder_carbon"), sep: ps.values(sc, "separator")}
+	for k, name := range casingNames {
+		if ps.m.get(sc, name) != nil {
+			fd.cas, fd.kind = ps.values(sc, name), casingKind(k)
+		}
+	}
+	fd.over = make([]float64, max(ps.d.Samples(), 1))
+	if f.IsAssembly() {
+		fd.over = ps.values(sc, sc+"_overhead")
+	}
+	ps.formats[f] = fd
+	return fd
 }
 
 // global returns the "all" parameters at sample s.
@@ -211,7 +217,11 @@ func (ps *paramSet) global(s int) globals {
 
 // design returns format f's cell design at sample s.
 func (ps *paramSet) design(f manifest.Format, s int) design {
-	d := ps.formats[f]
+	return ps.format(f).at(s)
+}
+
+// at returns the format's cell design at sample s.
+func (d *formatDraws) at(s int) design {
 	return design{d.areal[s], d.al[s], d.cu[s], d.el[s], d.bc[s], d.sep[s], d.cas[s], d.kind, d.over[s]}
 }
 

@@ -5,6 +5,7 @@ import (
 	"io/fs"
 	"math"
 	"sort"
+	"sync"
 
 	"blackmass/cathode"
 	"blackmass/data"
@@ -21,6 +22,8 @@ type Tables struct {
 	sx        map[string]sxMetal
 	elements  *cathode.Elements
 	kspSource string
+	// formulas caches parsed formulas (formula -> *parsedFormula); safe for concurrent use.
+	formulas sync.Map
 }
 
 // Param is one ranged parameter of a stage.
@@ -204,24 +207,37 @@ func (t *Tables) param(stage, name string) (Param, error) {
 
 // molarMass is the molar mass (g/mol) of a formula the package names.
 func (t *Tables) molarMass(formula string) float64 {
-	f, err := t.elements.ParseFormula(formula)
-	if err != nil {
-		panic("recover: " + formula + ": " + err.Error())
-	}
-	return f.MolarMass(t.elements)
+	return t.parsed(formula).molarG
 }
 
-// composition is the formula's element -> mol per mol.
+// composition is the formula's element -> mol per mol. The map is shared: read it, do not change
+// it.
 func (t *Tables) composition(formula string) map[string]float64 {
+	return t.parsed(formula).comp
+}
+
+// parsedFormula is a formula as the stages use it, parsed once.
+type parsedFormula struct {
+	molarG float64
+	comp   map[string]float64
+}
+
+// parsed returns the formula's molar mass and composition, parsing it the first time it is
+// asked for (the stages ask for the same few formulas in every sample).
+func (t *Tables) parsed(formula string) *parsedFormula {
+	if v, ok := t.formulas.Load(formula); ok {
+		return v.(*parsedFormula)
+	}
 	f, err := t.elements.ParseFormula(formula)
 	if err != nil {
 		panic("recover: " + formula + ": " + err.Error())
 	}
-	out := map[string]float64{}
+	pf := &parsedFormula{molarG: f.MolarMass(t.elements), comp: map[string]float64{}}
 	for _, tm := range f.Terms() {
-		out[tm.Symbol] += tm.Amount
+		pf.comp[tm.Symbol] += tm.Amount
 	}
-	return out
+	v, _ := t.formulas.LoadOrStore(formula, pf)
+	return v.(*parsedFormula)
 }
 
 // solubility is a salt's solubility (g per 100 g water) at tC, interpolated linearly.

@@ -123,7 +123,8 @@ func TestCheckFiniteNamesTheOrigin(t *testing.T) {
 // BenchmarkDemoPerSample runs the demo lot's whole estimate (Monte Carlo, report, leach plan)
 // at 20,000 samples and reports the cost per sample: µs, bytes allocated, and bytes of heap
 // held at the end (the draws, by compound and element, kept for the report). Memory grows with
-// samples and groups, not with lines.
+// samples and with the lot's compounds, elements and formats, not with lines or groups (a
+// group's per-sample masses are summarised as it is drawn).
 func BenchmarkDemoPerSample(b *testing.B) {
 	demo, err := os.ReadFile("../../data/demo/lot-KR-2611.csv")
 	if err != nil {
