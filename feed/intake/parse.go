@@ -233,7 +233,26 @@ type lineParser struct {
 	alike        map[string]manifest.Line // parsed lines by their fields other than the id (parseAlike)
 	alikeRaw     map[string]manifest.Line // parsed lines by their text without the id (parseAlike)
 	keyBuf       []byte                   // parseAlike's alone: its key may view this buffer until the line is remembered
+	alikeTries   int                      // lookups in parseAlike's current run of alikeProbe
+	alikeHits    int                      // of them, the lines found
+	alikeSkip    int                      // lines to parse without looking up
 	others       otherCache               // label -> battery that is not lithium-ion (nil: lithium-ion)
+	lastOther    lastOther                // the label others answered last
+	lastFormat   lastFormat               // the format text read last
+	lastChem     lastChem                 // the label resolved last without an application
+}
+
+// lastFormat is the last format text and its format.
+type lastFormat struct {
+	text string
+	f    manifest.Format
+	ok   bool
+}
+
+// lastChem is the last label found resolved without an application, and its resolution.
+type lastChem struct {
+	label string
+	r     *resolved
 }
 
 // quantity is a parsed quantity, or the error it gave, with its text in the base unit.
@@ -248,6 +267,22 @@ type lastQuantity struct {
 	text string
 	q    quantity
 	ok   bool
+	// unitText and unit are the unit text found last and its unit: a column mostly keeps one.
+	unitText string
+	unit     *Unit
+	table    *Unit // the first unit of the table unit was found in
+}
+
+// findUnit finds a unit of u, remembering the last one found.
+func (c *lastQuantity) findUnit(u UnitTable, s string) *Unit {
+	if c.unit != nil && c.unitText == s && len(u.Units) > 0 && c.table == &u.Units[0] {
+		return c.unit
+	}
+	un := u.find(s)
+	if un != nil && len(u.Units) > 0 {
+		c.unitText, c.unit, c.table = s, un, &u.Units[0]
+	}
+	return un
 }
 
 // quantity parses s from column c with the column's units. The column's last parse is kept: a
@@ -259,9 +294,12 @@ func (p *lineParser) quantity(c Column, s string, u UnitTable, defaultUnit strin
 	if last.ok && last.text == s {
 		return last.q
 	}
-	v, unit, err := Quantity(s, u, defaultUnit, p.decimalComma)
+	v, unit, err := quantityFind(s, u, defaultUnit, p.decimalComma, last.findUnit)
 	q := quantity{v: v, unit: unit, err: err}
-	*last = lastQuantity{text: strings.Clone(s), q: q, ok: true}
+	// s is a field of the record: the row sources never write over a field's text once given
+	// (the splitter's arena only grows; encoding/csv and the workbook make new strings), so it is
+	// kept without a copy.
+	last.text, last.q, last.ok = s, q, true
 	return q
 }
 
@@ -355,6 +393,14 @@ func (p *lineParser) checkText(c Column, v string, line int) error {
 // maxRememberedLines bounds the lines parseAlike remembers.
 const maxRememberedLines = 4096
 
+// parseAlike looks lines up in runs of alikeProbe; when fewer than one in eight of a run was
+// found and no more lines can be remembered, it parses the next alikeRest lines without looking,
+// then looks again. The parse is the same either way: only the time differs.
+const (
+	alikeProbe = 4096
+	alikeRest  = 16 * alikeProbe
+)
+
 // parseAlike parses a record, or reuses the parse of an earlier record whose every field but the
 // id was the same: a manifest lists many alike items under their own ids, and everything a line
 // holds besides its number and id follows from those fields alone. Only lines that parsed are
@@ -367,6 +413,10 @@ const maxRememberedLines = 4096
 func (p *lineParser) parseAlike(rec []string, line int, raw string, starts []int) (manifest.Line, error) {
 	idPos := p.hdr.pos[ColID]
 	if idPos < 0 {
+		return p.parse(rec, line)
+	}
+	if p.alikeSkip > 0 { // lines have been distinct of late: the lookup costs more than it saves
+		p.alikeSkip--
 		return p.parse(rec, line)
 	}
 	memo, key := p.alike, ""
@@ -391,7 +441,15 @@ func (p *lineParser) parseAlike(rec []string, line int, raw string, starts []int
 		}
 		key = unsafeString(p.keyBuf)
 	}
+	p.alikeTries++
+	if p.alikeTries == alikeProbe {
+		if p.alikeHits*8 < p.alikeTries && len(memo) >= maxRememberedLines {
+			p.alikeSkip = alikeRest
+		}
+		p.alikeTries, p.alikeHits = 0, 0
+	}
 	if l, ok := memo[key]; ok {
+		p.alikeHits++
 		id := p.get(rec, ColID)
 		if err := p.checkText(ColID, id, line); err != nil {
 			return manifest.Line{}, err
@@ -449,6 +507,10 @@ func (p *lineParser) ignoredByName(i int) bool { return p.hdr.named[i] }
 
 func (p *lineParser) format(l *manifest.Line, rec []string, line int) error {
 	fs := p.get(rec, ColFormat)
+	if p.lastFormat.ok && p.lastFormat.text == fs {
+		l.Format = p.lastFormat.f
+		return nil
+	}
 	f, ok := p.formats[fs]
 	if !ok {
 		var err error
@@ -457,6 +519,7 @@ func (p *lineParser) format(l *manifest.Line, rec []string, line int) error {
 		}
 		p.formats[fs] = f
 	}
+	p.lastFormat = lastFormat{text: fs, f: f, ok: true}
 	l.Format = f
 	return nil
 }
@@ -483,7 +546,12 @@ func (p *lineParser) chemistry(l *manifest.Line, rec []string, line int) error {
 	}
 	// A label resolved once is reused; only a label that says nothing about the cathode needs
 	// the item's application (from its column, or a word of the description or notes).
+	if lc := p.lastChem; lc.r != nil && lc.label == l.ChemistryLabel {
+		l.Chemistry = lc.r.chem
+		return nil
+	}
 	if r, ok := p.chem[labelKey{l.ChemistryLabel, ""}]; ok && !r.chem.Unknown {
+		p.lastChem = lastChem{label: l.ChemistryLabel, r: r}
 		l.Chemistry = r.chem
 		return nil
 	}

@@ -203,6 +203,9 @@ type otherCache map[string]*cathode.OtherBattery
 
 // otherBattery returns the battery that is not lithium-ion a label names (nil: none), once per label.
 func (p *lineParser) otherBattery(label string) *cathode.OtherBattery {
+	if p.lastOther.ok && p.lastOther.label == label { // lines mostly repeat the label above
+		return p.lastOther.b
+	}
 	b, ok := p.others[label]
 	if !ok {
 		b = p.opt.Catalogue.OtherBattery(label)
@@ -210,7 +213,15 @@ func (p *lineParser) otherBattery(label string) *cathode.OtherBattery {
 			p.others[label] = b
 		}
 	}
+	p.lastOther = lastOther{label: label, b: b, ok: true}
 	return b
+}
+
+// lastOther is the label otherBattery answered last.
+type lastOther struct {
+	label string
+	b     *cathode.OtherBattery
+	ok    bool
 }
 
 // voltsCharge matches a capacity written as volts and charge, either way round: "18V 5Ah",
@@ -223,7 +234,7 @@ var (
 // splitVoltsCharge splits a capacity written as volts and charge into its charge and its volts.
 func splitVoltsCharge(s string) (charge, volts string, ok bool) {
 	s = strings.TrimSpace(s)
-	if !strings.ContainsAny(s, "vV") { // both forms name the volts: most capacities skip the patterns
+	if strings.IndexByte(s, 'v') < 0 && strings.IndexByte(s, 'V') < 0 { // both forms name the volts: most capacities skip the patterns
 		return s, "", false
 	}
 	if m := voltsFirst.FindStringSubmatch(s); m != nil {

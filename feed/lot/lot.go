@@ -112,6 +112,7 @@ type Lot struct {
 	labels     map[string]*labelStat
 	labelList  []*labelStat
 	nonLithium []NonLithiumLine // lines of batteries that are not lithium-ion, by kind
+	unworded   []string         // checkMass's flag without words, made once (never kept: no line detail)
 }
 
 // labelStat counts one label's lines and most likely energy.
@@ -340,7 +341,10 @@ func (l *Lot) checkMass(g *group, ln manifest.Line, cnt, energyWh float64) (flag
 	l.flagged++
 	if !l.keepLines && l.flagged > maxLineWarnings {
 		// Worded only where it is shown; a flag without words still marks the line unweighed.
-		return []string{""}, measWhKg
+		if l.unworded == nil {
+			l.unworded = []string{""}
+		}
+		return l.unworded, measWhKg
 	}
 	msg := fmt.Sprintf("%.0f Wh/kg measured, outside the plausible %.0f–%.0f Wh/kg for %s %s", measWhKg, lo, hi, ln.Chemistry.Key, ln.Format)
 	if l.flagged <= maxLineWarnings {
