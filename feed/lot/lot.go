@@ -2,6 +2,7 @@ package lot
 
 import (
 	"fmt"
+	"iter"
 	"math"
 	"slices"
 	"strings"
@@ -93,8 +94,7 @@ type Lot struct {
 	recent     [recentGroups]recentGroup
 	nextRecent int
 	order      []*group
-	lines      []LineResult   // the kept lines, flattened from lineChunks when the result is made
-	lineChunks [][]LineResult // lines as added, in chunks of lineChunk: no copy of all lines as they grow
+	kept       [][]keptLine // the kept lines as added, in chunks of lineChunk: no copy of all lines as they grow
 	warnings   []string
 	warned     map[string]bool
 	comp       *compounds
@@ -112,7 +112,6 @@ type Lot struct {
 	labels     map[string]*labelStat
 	labelList  []*labelStat
 	nonLithium []NonLithiumLine // lines of batteries that are not lithium-ion, by kind
-	unworded   []string         // checkMass's flag without words, made once (never kept: no line detail)
 }
 
 // labelStat counts one label's lines and most likely energy.
@@ -233,18 +232,101 @@ func (l *Lot) Add(ln manifest.Line) error {
 		l.unknownWh += cnt * energyWh
 	}
 	l.countLabel(g, ln, cnt*energyWh)
-	flags, measWhKg := l.checkMass(g, ln, cnt, energyWh)
-	weighedLine := measWhKg > 0 && len(flags) == 0
+	l.checkMass(g, ln, cnt, energyWh)
+	if l.keepLines {
+		// The line is kept as parsed; its detail is made when it is read (Lines), from the
+		// group's values, which do not change once the group is made.
+		l.keepLine(keptLine{ln: ln, nComp: l.comp.n()})
+	}
+	return nil
+}
+
+// keptLine is what a lot keeps of a line for its detail: the line as parsed, and the number of
+// compounds the lot knew when it was added (the line's black mass is over those).
+type keptLine struct {
+	ln    manifest.Line
+	nComp int
+}
+
+// lineChunk is the number of lines held in one chunk.
+const lineChunk = 4096
+
+// keepLine keeps one line, in chunks so that a million lines are never copied as the list grows.
+func (l *Lot) keepLine(k keptLine) {
+	if n := len(l.kept); n == 0 || len(l.kept[n-1]) == lineChunk {
+		l.kept = append(l.kept, make([]keptLine, 0, lineChunk))
+	}
+	last := &l.kept[len(l.kept)-1]
+	*last = append(*last, k)
+}
+
+// Lines is the detail of a lot's kept lines, each made when it is read: the lot holds each line
+// as parsed, a fraction of its detail, so a large manifest's detail is never held whole.
+type Lines struct {
+	l *Lot
+	n int
+}
+
+// Len is the number of lines.
+func (ls *Lines) Len() int { return ls.n }
+
+// All yields each line's detail, in the manifest's order.
+func (ls *Lines) All() iter.Seq2[int, LineResult] {
+	return func(yield func(int, LineResult) bool) {
+		i := 0
+		for _, c := range ls.l.kept {
+			for j := range c {
+				if !yield(i, ls.l.lineDetail(&c[j])) {
+					return
+				}
+				i++
+			}
+		}
+	}
+}
+
+// keptLines returns the kept lines' detail, nil when none were kept.
+func (l *Lot) keptLines() *Lines {
 	if !l.keepLines {
 		return nil
 	}
+	n := 0
+	for _, c := range l.kept {
+		n += len(c)
+	}
+	return &Lines{l: l, n: n}
+}
+
+// lineDetail makes a kept line's detail: its most likely breakdown of one item, and the masses
+// of its count.
+func (l *Lot) lineDetail(k *keptLine) LineResult {
+	ln := &k.ln
+	ch := ln.Chemistry
+	g := l.byPtr[ptrKey{ch, ln.Format}]
+	cnt := float64(ln.Count)
+	mx := g.modeMix
+	energyWh := ln.EnergyWh
+	switch {
+	case ln.MassOnly():
+		energyWh = ln.MassKg * g.modeWhPerKg
+	case energyWh == 0:
+		energyWh = ln.ChargeAh * mx.voltV
+	}
+	var flags []string
+	measWhKg := 0.0
+	if ln.MassKg > 0 && !ln.MassOnly() {
+		measWhKg = energyWh / ln.MassKg
+		if !(measWhKg >= g.bandLo && measWhKg <= g.bandHi) {
+			flags = []string{massMessage(*ln, measWhKg, g.bandLo, g.bandHi)}
+		}
+	}
+	weighedLine := measWhKg > 0 && len(flags) == 0
 	if ch.Unknown {
 		flags = append(flags, "unknown chemistry: the prior for the item assumed")
 	}
 	if ln.MassOnly() {
 		flags = append(flags, "no capacity: energy from the mass and the chemistry's Wh/kg band")
 	}
-	// Most-likely breakdown of one item, for the line detail.
 	fr, gl := l.mode.designOf(ch, ln.Format, 0), l.mode.global(0)
 	itemWh := ln.EnergyWh
 	if ln.MassOnly() {
@@ -255,46 +337,17 @@ func (l *Lot) Add(ln manifest.Line) error {
 		fr = weighed(itemWh, ln.ChargeAh, mx, fr, gl, ln.MassKg*1000, lo, hi)
 	}
 	b := model(itemWh, ln.ChargeAh, mx, fr, gl)
-	bm := make([]float64, l.comp.n())
+	bm := make([]float64, k.nComp)
 	b.blackMass(bm, fr, gl, g.camIdx, ch.MeanShares())
 	els, total := l.lineElements(bm, cnt)
-	l.addLine(LineResult{Line: ln.Num, ID: ln.ID, Description: ln.Description, ChemistryLabel: ln.ChemistryLabel,
-		Chemistry: ch.Key, Unknown: ch.Unknown, Format: ln.Format.String(), Count: ln.Count, CellsPerItem: ln.CellsPerItem, Application: ln.Application,
-		CapacityText: ln.CapacityText, CapacityGiven: ln.CapacityGiven(), CapacityBasis: ln.CapacityBasis, VoltageV: ln.VoltageV, EnergyWhPerItem: dist.Round(energyWh, 4), EnergyAssumed: ln.EnergyWh == 0 && !ln.MassOnly(), EnergyFromMass: ln.MassOnly(), ChargeAhPerItem: ln.ChargeAh,
+	return LineResult{Line: ln.Num, ID: ln.ID, Description: ln.Description, ChemistryLabel: ln.ChemistryLabel,
+		Chemistry: ch.Key, Unknown: ch.Unknown, Format: ln.Format.String(), Count: ln.Count, CellsPerItem: ln.CellsPerItem,
+		Application: ln.Application, CapacityText: ln.CapacityText, CapacityGiven: ln.CapacityGiven(),
+		CapacityBasis: ln.CapacityBasis, VoltageV: ln.VoltageV, EnergyWhPerItem: dist.Round(energyWh, 4),
+		EnergyAssumed: ln.EnergyWh == 0 && !ln.MassOnly(), EnergyFromMass: ln.MassOnly(), ChargeAhPerItem: ln.ChargeAh,
 		ModelMassKgEach: dist.Round(b.item/1000, 6), MeasuredMassKg: ln.MassKg, MeasuredWhPerKg: dist.Round(measWhKg, 2),
-		CathodeKg: dist.Round(b.cam*cnt/1000, 6), BlackMassKg: dist.Round(total*cnt/1000, 6), ElementsKg: els, Flags: flags, Notes: ln.Notes})
-	return nil
-}
-
-// lineChunk is the number of line results held in one chunk.
-const lineChunk = 4096
-
-// addLine keeps one line's result, in chunks so that a million lines are never copied as the list
-// grows.
-func (l *Lot) addLine(r LineResult) {
-	if n := len(l.lineChunks); n == 0 || len(l.lineChunks[n-1]) == lineChunk {
-		l.lineChunks = append(l.lineChunks, make([]LineResult, 0, lineChunk))
-	}
-	last := &l.lineChunks[len(l.lineChunks)-1]
-	*last = append(*last, r)
-}
-
-// keptLines flattens the kept lines into one slice of exactly their number, once.
-func (l *Lot) keptLines() []LineResult {
-	if l.lineChunks == nil {
-		return l.lines
-	}
-	n := len(l.lines)
-	for _, c := range l.lineChunks {
-		n += len(c)
-	}
-	out := make([]LineResult, 0, n)
-	out = append(out, l.lines...)
-	for _, c := range l.lineChunks {
-		out = append(out, c...)
-	}
-	l.lines, l.lineChunks = out, nil
-	return out
+		CathodeKg: dist.Round(b.cam*cnt/1000, 6), BlackMassKg: dist.Round(total*cnt/1000, 6), ElementsKg: els, Flags: flags,
+		Notes: ln.Notes}
 }
 
 // lineElements sums a line's most likely black mass (g per item, by compound) into metals by
@@ -324,33 +377,30 @@ func (l *Lot) lineElements(bm []float64, count float64) (ElementMasses, float64)
 
 // checkMass compares a line's measured weight with its plausible Wh/kg band: a weight inside
 // joins the group's weighed lines (whose cells are modelled at that weight), one outside is
-// flagged and warned of.
-func (l *Lot) checkMass(g *group, ln manifest.Line, cnt, energyWh float64) (flags []string, measWhKg float64) {
+// counted and warned of (lineDetail flags it).
+func (l *Lot) checkMass(g *group, ln manifest.Line, cnt, energyWh float64) {
 	if ln.MassKg <= 0 || ln.MassOnly() {
-		return nil, 0
+		return
 	}
 	l.withMass++
-	measWhKg = energyWh / ln.MassKg
+	measWhKg := energyWh / ln.MassKg
 	lo, hi := g.bandLo, g.bandHi
 	if measWhKg >= lo && measWhKg <= hi {
 		g.weighedWh += cnt * ln.EnergyWh
 		g.weighedAh += cnt * ln.ChargeAh
 		g.weighedKg += cnt * ln.MassKg
-		return nil, measWhKg
+		return
 	}
 	l.flagged++
-	if !l.keepLines && l.flagged > maxLineWarnings {
-		// Worded only where it is shown; a flag without words still marks the line unweighed.
-		if l.unworded == nil {
-			l.unworded = []string{""}
-		}
-		return l.unworded, measWhKg
-	}
-	msg := fmt.Sprintf("%.0f Wh/kg measured, outside the plausible %.0f–%.0f Wh/kg for %s %s", measWhKg, lo, hi, ln.Chemistry.Key, ln.Format)
 	if l.flagged <= maxLineWarnings {
+		msg := massMessage(ln, measWhKg, lo, hi)
 		l.warnings = append(l.warnings, fmt.Sprintf("line %d (%s): %s; check the capacity, the count or the weight", ln.Num, idOr(ln), msg))
 	}
-	return []string{msg}, measWhKg
+}
+
+// massMessage says that a line's measured Wh/kg is outside its plausible band.
+func massMessage(ln manifest.Line, measWhKg, lo, hi float64) string {
+	return fmt.Sprintf("%.0f Wh/kg measured, outside the plausible %.0f–%.0f Wh/kg for %s %s", measWhKg, lo, hi, ln.Chemistry.Key, ln.Format)
 }
 
 // maxLabels bounds the labels listed in the report; the rest are counted.
