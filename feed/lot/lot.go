@@ -95,6 +95,12 @@ type Lot struct {
 	nextRecent int
 	order      []*group
 	kept       [][]keptLine // the kept lines as added, in chunks of lineChunk: no copy of all lines as they grow
+	// Scratch of lineDetail, which makes one line's detail at a time.
+	bmBuf   []float64
+	elOrder []int
+	elMetal []bool
+	perEl   []float64
+	seenEl  []bool
 	warnings   []string
 	warned     map[string]bool
 	comp       *compounds
@@ -337,7 +343,7 @@ func (l *Lot) lineDetail(k *keptLine) LineResult {
 		fr = weighed(itemWh, ln.ChargeAh, mx, fr, gl, ln.MassKg*1000, lo, hi)
 	}
 	b := model(itemWh, ln.ChargeAh, mx, fr, gl)
-	bm := make([]float64, k.nComp)
+	bm := l.scratch(k.nComp)
 	b.blackMass(bm, fr, gl, g.camIdx, ch.MeanShares())
 	els, total := l.lineElements(bm, cnt)
 	return LineResult{Line: ln.Num, ID: ln.ID, Description: ln.Description, ChemistryLabel: ln.ChemistryLabel,
@@ -350,28 +356,57 @@ func (l *Lot) lineDetail(k *keptLine) LineResult {
 		Notes: ln.Notes}
 }
 
+// scratch returns the lot's buffer of n compound masses, zeroed: lines' details are made one
+// at a time.
+func (l *Lot) scratch(n int) []float64 {
+	if cap(l.bmBuf) < n {
+		l.bmBuf = make([]float64, n)
+	}
+	l.bmBuf = l.bmBuf[:n]
+	clear(l.bmBuf)
+	return l.bmBuf
+}
+
+// elementOrder returns the lot's element indices by symbol and which elements are metals, made
+// again only when the lot has learnt more elements.
+func (l *Lot) elementOrder() (order []int, metal []bool) {
+	if n := len(l.comp.elements); len(l.elOrder) != n {
+		l.elOrder, l.elMetal = make([]int, n), make([]bool, n)
+		for e, sym := range l.comp.elements {
+			l.elOrder[e], l.elMetal[e] = e, cathode.IsMetal(sym)
+		}
+		slices.SortFunc(l.elOrder, func(a, b int) int { return strings.Compare(l.comp.elements[a], l.comp.elements[b]) })
+		l.perEl, l.seenEl = make([]float64, n), make([]bool, n)
+	}
+	return l.elOrder, l.elMetal
+}
+
 // lineElements sums a line's most likely black mass (g per item, by compound) into metals by
-// element (kg for the line's count) and its black mass (g per item).
+// element (kg for the line's count), sorted by symbol, and its black mass (g per item).
 func (l *Lot) lineElements(bm []float64, count float64) (ElementMasses, float64) {
-	perEl := make([]float64, len(l.comp.elements))
-	seen := make([]bool, len(l.comp.elements))
-	total := 0.0
+	order, metal := l.elementOrder()
+	perEl, seen := l.perEl, l.seenEl
+	clear(perEl)
+	clear(seen)
+	total, nSeen := 0.0, 0
 	for c, m := range bm {
 		total += m
 		for e, f := range l.comp.fractions[c] {
-			if f > 0 && cathode.IsMetal(l.comp.elements[e]) {
+			if f > 0 && metal[e] {
 				perEl[e] += m * f * count / 1000
-				seen[e] = true
+				if !seen[e] {
+					seen[e] = true
+					nSeen++
+				}
 			}
 		}
 	}
-	var els ElementMasses
-	for e, ok := range seen {
-		if ok {
+	els := make(ElementMasses, 0, nSeen)
+	for _, e := range order {
+		if seen[e] {
 			els = append(els, ElementMass{Element: l.comp.elements[e], Kg: dist.Round(perEl[e], 6)})
 		}
 	}
-	slices.SortFunc(els, func(a, b ElementMass) int { return strings.Compare(a.Element, b.Element) })
 	return els, total
 }
 
