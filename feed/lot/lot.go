@@ -96,11 +96,11 @@ type Lot struct {
 	order      []*group
 	kept       [][]keptLine // the kept lines as added, in chunks of lineChunk: no copy of all lines as they grow
 	// Scratch of lineDetail, which makes one line's detail at a time.
-	bmBuf   []float64
-	elOrder []int
-	elMetal []bool
-	perEl   []float64
-	seenEl  []bool
+	bmBuf      []float64
+	elOrder    []int
+	elMetal    []bool
+	perEl      []float64
+	seenEl     []bool
 	warnings   []string
 	warned     map[string]bool
 	comp       *compounds
