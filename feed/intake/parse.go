@@ -138,6 +138,7 @@ func readRows(src rowSource, name string, opt Options, decimalComma bool, fn fun
 		if blank(rec) || comment(rec) || p.onlyIgnored(rec) {
 			continue
 		}
+		p.load(rec)
 		if skip, err := tr.skip(p, rec, line, &info); skip || err != nil {
 			if err != nil {
 				return info, err
@@ -236,6 +237,12 @@ type lineParser struct {
 	alikeTries   int                      // lookups in parseAlike's current run of alikeProbe
 	alikeHits    int                      // of them, the lines found
 	alikeSkip    int                      // lines to parse without looking up
+	// vals are the trimmed values of the record readRows is on (loaded), found once for the many
+	// reads of its columns; get knows the record by its first field's address and its length.
+	vals      [numColumns]string
+	loaded    bool
+	loadedAt  *string
+	loadedLen int
 	others       otherCache               // label -> battery that is not lithium-ion (nil: lithium-ion)
 	lastOther    lastOther                // the label others answered last
 	lastFormat   lastFormat               // the format text read last
@@ -316,11 +323,27 @@ func newLineParser(name string, opt Options, decimalComma bool, hdr *header) *li
 }
 
 func (p *lineParser) get(rec []string, c Column) string {
+	if p.loaded && len(rec) == p.loadedLen && &rec[0] == p.loadedAt {
+		return p.vals[c]
+	}
 	i := p.hdr.pos[c]
 	if i < 0 || i >= len(rec) {
 		return ""
 	}
 	return strings.TrimSpace(rec[i])
+}
+
+// load finds the trimmed value of each column of rec once; get answers from them while rec is
+// the record loaded (rec is not changed while it is read).
+func (p *lineParser) load(rec []string) {
+	p.loaded = false
+	for c := range p.vals {
+		p.vals[c] = p.get(rec, Column(c))
+	}
+	p.loaded, p.loadedLen = len(rec) > 0, len(rec)
+	if p.loaded {
+		p.loadedAt = &rec[0]
+	}
 }
 
 func (p *lineParser) fail(line int, c Column, val, reason string) error {
