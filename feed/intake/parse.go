@@ -157,7 +157,7 @@ func readRows(src rowSource, name string, opt Options, decimalComma bool, fn fun
 		if err != nil {
 			return info, commentHint(err, rec)
 		}
-		tr.add(l, &info)
+		tr.add(&l, &info)
 		info.Lines++
 		if err := fn(l); err != nil {
 			var ie *Error

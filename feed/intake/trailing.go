@@ -77,7 +77,7 @@ func (t *trailer) skip(p *lineParser, rec []string, line int, info *Info) (bool,
 }
 
 // add counts a line read, and notes what was assumed of it.
-func (t *trailer) add(l manifest.Line, info *Info) {
+func (t *trailer) add(l *manifest.Line, info *Info) {
 	if t.lines == 0 {
 		t.massAll = true
 	}
@@ -93,7 +93,7 @@ func (t *trailer) add(l manifest.Line, info *Info) {
 	if l.MassKg == 0 {
 		t.massAll = false
 	}
-	if _, _, ok := splitVoltsCharge(l.CapacityText); ok && l.VoltageV > 0 {
+	if l.VoltageV > 0 && isVoltsCharge(l.CapacityText) {
 		t.note(info, fmt.Sprintf("line %d: capacity %q read as %g V and %s (energy = V × Ah): %.4g Wh per item",
 			l.Num, Printable(l.CapacityText, 40), l.VoltageV, l.CapacityGiven(), l.EnergyWh))
 	}
@@ -244,6 +244,12 @@ func splitVoltsCharge(s string) (charge, volts string, ok bool) {
 		return m[1], m[2], true
 	}
 	return s, "", false
+}
+
+// isVoltsCharge reports whether a capacity is written as volts and charge.
+func isVoltsCharge(s string) bool {
+	_, _, ok := splitVoltsCharge(s)
+	return ok
 }
 
 // voltsAndCharge returns the capacity and the voltage to read: a capacity of volts and charge

@@ -237,8 +237,8 @@ func (l *Lot) Add(ln manifest.Line) error {
 	if ch.Unknown {
 		l.unknownWh += cnt * energyWh
 	}
-	l.countLabel(g, ln, cnt*energyWh)
-	l.checkMass(g, ln, cnt, energyWh)
+	l.countLabel(g, &ln, cnt*energyWh)
+	l.checkMass(g, &ln, cnt, energyWh)
 	if l.keepLines {
 		// The line is kept as parsed; its detail is made when it is read (Lines), from the
 		// group's values, which do not change once the group is made.
@@ -323,7 +323,7 @@ func (l *Lot) lineDetail(k *keptLine) LineResult {
 	if ln.MassKg > 0 && !ln.MassOnly() {
 		measWhKg = energyWh / ln.MassKg
 		if !(measWhKg >= g.bandLo && measWhKg <= g.bandHi) {
-			flags = []string{massMessage(*ln, measWhKg, g.bandLo, g.bandHi)}
+			flags = []string{massMessage(ln, measWhKg, g.bandLo, g.bandHi)}
 		}
 	}
 	weighedLine := measWhKg > 0 && len(flags) == 0
@@ -413,7 +413,7 @@ func (l *Lot) lineElements(bm []float64, count float64) (ElementMasses, float64)
 // checkMass compares a line's measured weight with its plausible Wh/kg band: a weight inside
 // joins the group's weighed lines (whose cells are modelled at that weight), one outside is
 // counted and warned of (lineDetail flags it).
-func (l *Lot) checkMass(g *group, ln manifest.Line, cnt, energyWh float64) {
+func (l *Lot) checkMass(g *group, ln *manifest.Line, cnt, energyWh float64) {
 	if ln.MassKg <= 0 || ln.MassOnly() {
 		return
 	}
@@ -434,7 +434,7 @@ func (l *Lot) checkMass(g *group, ln manifest.Line, cnt, energyWh float64) {
 }
 
 // massMessage says that a line's measured Wh/kg is outside its plausible band.
-func massMessage(ln manifest.Line, measWhKg, lo, hi float64) string {
+func massMessage(ln *manifest.Line, measWhKg, lo, hi float64) string {
 	return fmt.Sprintf("%.0f Wh/kg measured, outside the plausible %.0f–%.0f Wh/kg for %s %s", measWhKg, lo, hi, ln.Chemistry.Key, ln.Format)
 }
 
@@ -442,7 +442,7 @@ func massMessage(ln manifest.Line, measWhKg, lo, hi float64) string {
 const maxLabels = 500
 
 // countLabel adds a line of group g to its label's count.
-func (l *Lot) countLabel(g *group, ln manifest.Line, energyWh float64) {
+func (l *Lot) countLabel(g *group, ln *manifest.Line, energyWh float64) {
 	st := g.lastStat
 	if st == nil || g.lastLabel != ln.ChemistryLabel {
 		st = l.labelStat(ln)
@@ -458,7 +458,7 @@ func (l *Lot) countLabel(g *group, ln manifest.Line, energyWh float64) {
 
 // labelStat returns the count of a line's label, adding it (or the catch-all of further labels)
 // the first time.
-func (l *Lot) labelStat(ln manifest.Line) *labelStat {
+func (l *Lot) labelStat(ln *manifest.Line) *labelStat {
 	st := l.labels[ln.ChemistryLabel]
 	if st == nil {
 		if len(l.labelList) >= maxLabels {
@@ -490,7 +490,7 @@ func (l *Lot) Labels() []LabelResolution {
 	return out
 }
 
-func idOr(ln manifest.Line) string {
+func idOr(ln *manifest.Line) string {
 	if ln.ID != "" {
 		return ln.ID
 	}
