@@ -239,27 +239,14 @@ type lineParser struct {
 	alikeSkip    int                      // lines to parse without looking up
 	// vals are the trimmed values of the record readRows is on (loaded), found once for the many
 	// reads of its columns; get knows the record by its first field's address and its length.
-	vals      [numColumns]string
-	loaded    bool
-	loadedAt  *string
-	loadedLen int
-	others       otherCache               // label -> battery that is not lithium-ion (nil: lithium-ion)
-	lastOther    lastOther                // the label others answered last
-	lastFormat   lastFormat               // the format text read last
-	lastChem     lastChem                 // the label resolved last without an application
-}
-
-// lastFormat is the last format text and its format.
-type lastFormat struct {
-	text string
-	f    manifest.Format
-	ok   bool
-}
-
-// lastChem is the last label found resolved without an application, and its resolution.
-type lastChem struct {
-	label string
-	r     *resolved
+	vals       [numColumns]string
+	loaded     bool
+	loadedAt   *string
+	loadedLen  int
+	others     otherCache                    // label -> battery that is not lithium-ion (nil: lithium-ion)
+	lastOther  recent[*cathode.OtherBattery] // the labels others answered last
+	lastFormat recent[manifest.Format]       // the format texts read last
+	lastChem   recent[*resolved]             // the labels resolved last without an application
 }
 
 // quantity is a parsed quantity, or the error it gave, with its text in the base unit.
@@ -274,22 +261,56 @@ type lastQuantity struct {
 	text string
 	q    quantity
 	ok   bool
-	// unitText and unit are the unit text found last and its unit: a column mostly keeps one.
-	unitText string
-	unit     *Unit
-	table    *Unit // the first unit of the table unit was found in
+	// units are the unit texts found last and their units: a column holds a few.
+	units recent[*Unit]
+	table *Unit // the first unit of the table units were found in
 }
 
-// findUnit finds a unit of u, remembering the last one found.
+// findUnit finds a unit of u, remembering the few found last.
 func (c *lastQuantity) findUnit(u UnitTable, s string) *Unit {
-	if c.unit != nil && c.unitText == s && len(u.Units) > 0 && c.table == &u.Units[0] {
-		return c.unit
+	if len(u.Units) == 0 {
+		return u.find(s)
+	}
+	if c.table != &u.Units[0] {
+		c.units, c.table = recent[*Unit]{}, &u.Units[0]
+	}
+	if un, ok := c.units.get(s); ok {
+		return un
 	}
 	un := u.find(s)
-	if un != nil && len(u.Units) > 0 {
-		c.unitText, c.unit, c.table = s, un, &u.Units[0]
+	if un != nil {
+		c.units.put(s, un)
 	}
 	return un
+}
+
+// recentN is how many answers a recent cache holds.
+const recentN = 8
+
+// recent holds a few answers looked up lately, found by comparing their keys, which is cheaper
+// than hashing for the handful of values a manifest's column repeats. Its keys are record
+// fields, whose text is never written over once given.
+type recent[V any] struct {
+	keys [recentN]string
+	vals [recentN]V
+	n    int
+	next int
+}
+
+func (r *recent[V]) get(k string) (V, bool) {
+	for i := 0; i < r.n; i++ {
+		if r.keys[i] == k {
+			return r.vals[i], true
+		}
+	}
+	var zero V
+	return zero, false
+}
+
+func (r *recent[V]) put(k string, v V) {
+	r.keys[r.next], r.vals[r.next] = k, v
+	r.next = (r.next + 1) % recentN
+	r.n = min(r.n+1, recentN)
 }
 
 // quantity parses s from column c with the column's units. The column's last parse is kept: a
@@ -530,8 +551,8 @@ func (p *lineParser) ignoredByName(i int) bool { return p.hdr.named[i] }
 
 func (p *lineParser) format(l *manifest.Line, rec []string, line int) error {
 	fs := p.get(rec, ColFormat)
-	if p.lastFormat.ok && p.lastFormat.text == fs {
-		l.Format = p.lastFormat.f
+	if f, ok := p.lastFormat.get(fs); ok {
+		l.Format = f
 		return nil
 	}
 	f, ok := p.formats[fs]
@@ -542,7 +563,7 @@ func (p *lineParser) format(l *manifest.Line, rec []string, line int) error {
 		}
 		p.formats[fs] = f
 	}
-	p.lastFormat = lastFormat{text: fs, f: f, ok: true}
+	p.lastFormat.put(fs, f)
 	l.Format = f
 	return nil
 }
@@ -569,12 +590,12 @@ func (p *lineParser) chemistry(l *manifest.Line, rec []string, line int) error {
 	}
 	// A label resolved once is reused; only a label that says nothing about the cathode needs
 	// the item's application (from its column, or a word of the description or notes).
-	if lc := p.lastChem; lc.r != nil && lc.label == l.ChemistryLabel {
-		l.Chemistry = lc.r.chem
+	if r, ok := p.lastChem.get(l.ChemistryLabel); ok {
+		l.Chemistry = r.chem
 		return nil
 	}
 	if r, ok := p.chem[labelKey{l.ChemistryLabel, ""}]; ok && !r.chem.Unknown {
-		p.lastChem = lastChem{label: l.ChemistryLabel, r: r}
+		p.lastChem.put(l.ChemistryLabel, r)
 		l.Chemistry = r.chem
 		return nil
 	}

@@ -203,8 +203,8 @@ type otherCache map[string]*cathode.OtherBattery
 
 // otherBattery returns the battery that is not lithium-ion a label names (nil: none), once per label.
 func (p *lineParser) otherBattery(label string) *cathode.OtherBattery {
-	if p.lastOther.ok && p.lastOther.label == label { // lines mostly repeat the label above
-		return p.lastOther.b
+	if b, ok := p.lastOther.get(label); ok { // lines mostly repeat a few labels
+		return b
 	}
 	b, ok := p.others[label]
 	if !ok {
@@ -213,15 +213,8 @@ func (p *lineParser) otherBattery(label string) *cathode.OtherBattery {
 			p.others[label] = b
 		}
 	}
-	p.lastOther = lastOther{label: label, b: b, ok: true}
+	p.lastOther.put(label, b)
 	return b
-}
-
-// lastOther is the label otherBattery answered last.
-type lastOther struct {
-	label string
-	b     *cathode.OtherBattery
-	ok    bool
 }
 
 // voltsCharge matches a capacity written as volts and charge, either way round: "18V 5Ah",
