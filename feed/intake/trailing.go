@@ -227,7 +227,8 @@ var (
 // splitVoltsCharge splits a capacity written as volts and charge into its charge and its volts.
 func splitVoltsCharge(s string) (charge, volts string, ok bool) {
 	s = strings.TrimSpace(s)
-	if strings.IndexByte(s, 'v') < 0 && strings.IndexByte(s, 'V') < 0 { // both forms name the volts: most capacities skip the patterns
+	// Both forms name the volts: most capacities skip the patterns.
+	if strings.IndexByte(s, 'v') < 0 && strings.IndexByte(s, 'V') < 0 {
 		return s, "", false
 	}
 	if m := voltsFirst.FindStringSubmatch(s); m != nil {

@@ -11,8 +11,8 @@ import (
 // same numbers, across the exponent forms' boundaries.
 func TestElementMassesJSONAsEncodingJSON(t *testing.T) {
 	t.Parallel()
-	vals := []float64{0, math.Copysign(0, -1), 1, -1, 1e-6, 9.99999e-7, 1e-7, 1.5e-10, 1e20, 1e21, 1.2345e22, 0.1, 123.456789,
-		math.SmallestNonzeroFloat64, math.MaxFloat64}
+	vals := []float64{0, math.Copysign(0, -1), 1, -1, 1e-6, 9.99999e-7, 1e-7, 1.5e-10, 1e20, 1e21, 1.2345e22, 0.1,
+		123.456789, math.SmallestNonzeroFloat64, math.MaxFloat64}
 	rng := rand.New(rand.NewPCG(1, 2))
 	for range 2000 {
 		vals = append(vals, math.Pow(10, rng.Float64()*40-20)*(rng.Float64()-0.3))

@@ -435,7 +435,8 @@ func (l *Lot) checkMass(g *group, ln *manifest.Line, cnt, energyWh float64) {
 
 // massMessage says that a line's measured Wh/kg is outside its plausible band.
 func massMessage(ln *manifest.Line, measWhKg, lo, hi float64) string {
-	return fmt.Sprintf("%.0f Wh/kg measured, outside the plausible %.0f–%.0f Wh/kg for %s %s", measWhKg, lo, hi, ln.Chemistry.Key, ln.Format)
+	return fmt.Sprintf("%.0f Wh/kg measured, outside the plausible %.0f–%.0f Wh/kg for %s %s",
+		measWhKg, lo, hi, ln.Chemistry.Key, ln.Format)
 }
 
 // maxLabels bounds the labels listed in the report; the rest are counted.
