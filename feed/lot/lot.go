@@ -267,7 +267,8 @@ func (l *Lot) keepLine(k keptLine) {
 }
 
 // Lines is the detail of a lot's kept lines, each made when it is read: the lot holds each line
-// as parsed, a fraction of its detail, so a large manifest's detail is never held whole.
+// as parsed, a fraction of its detail, so a large manifest's detail is never held whole. The
+// detail is made with the lot's scratch: read it from one goroutine at a time.
 type Lines struct {
 	l *Lot
 	n int
