@@ -226,7 +226,14 @@ const maxScaleDigits = 290
 
 // Round rounds v to digits decimal places.
 func Round(v float64, digits int) float64 {
-	p := math.Pow(10, float64(digits))
+	p := 1.0
+	if digits >= 0 && digits <= 22 {
+		for range digits {
+			p *= 10 // exact: every power of ten to 1e22 is a float64, as math.Pow gives it
+		}
+	} else {
+		p = math.Pow(10, float64(digits))
+	}
 	return math.Round(v*p) / p
 }
 

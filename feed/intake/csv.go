@@ -142,6 +142,10 @@ type crReader struct {
 func (c *crReader) Read(p []byte) (int, error) {
 	for {
 		n, err := c.r.Read(p)
+		if n > 0 && !(c.afterCR && p[0] == '\n') && bytes.IndexByte(p[:n], '\r') < 0 {
+			c.afterCR = false // the common case: no carriage return, nothing to rewrite
+			return n, err
+		}
 		w := 0
 		for _, b := range p[:n] {
 			switch {

@@ -138,6 +138,7 @@ func readRows(src rowSource, name string, opt Options, decimalComma bool, fn fun
 		if blank(rec) || comment(rec) || p.onlyIgnored(rec) {
 			continue
 		}
+		p.load(rec)
 		if skip, err := tr.skip(p, rec, line, &info); skip || err != nil {
 			if err != nil {
 				return info, err
@@ -156,7 +157,7 @@ func readRows(src rowSource, name string, opt Options, decimalComma bool, fn fun
 		if err != nil {
 			return info, commentHint(err, rec)
 		}
-		tr.add(l, &info)
+		tr.add(&l, &info)
 		info.Lines++
 		if err := fn(l); err != nil {
 			var ie *Error
@@ -233,7 +234,19 @@ type lineParser struct {
 	alike        map[string]manifest.Line // parsed lines by their fields other than the id (parseAlike)
 	alikeRaw     map[string]manifest.Line // parsed lines by their text without the id (parseAlike)
 	keyBuf       []byte                   // parseAlike's alone: its key may view this buffer until the line is remembered
-	others       otherCache               // label -> battery that is not lithium-ion (nil: lithium-ion)
+	alikeTries   int                      // lookups in parseAlike's current run of alikeProbe
+	alikeHits    int                      // of them, the lines found
+	alikeSkip    int                      // lines to parse without looking up
+	// vals are the trimmed values of the record readRows is on (loaded), found once for the many
+	// reads of its columns; get knows the record by its first field's address and its length.
+	vals       [numColumns]string
+	loaded     bool
+	loadedAt   *string
+	loadedLen  int
+	others     otherCache                    // label -> battery that is not lithium-ion (nil: lithium-ion)
+	lastOther  recent[*cathode.OtherBattery] // the labels others answered last
+	lastFormat recent[manifest.Format]       // the format texts read last
+	lastChem   recent[*resolved]             // the labels resolved last without an application
 }
 
 // quantity is a parsed quantity, or the error it gave, with its text in the base unit.
@@ -248,6 +261,56 @@ type lastQuantity struct {
 	text string
 	q    quantity
 	ok   bool
+	// units are the unit texts found last and their units: a column holds a few.
+	units recent[*Unit]
+	table *Unit // the first unit of the table units were found in
+}
+
+// findUnit finds a unit of u, remembering the few found last.
+func (c *lastQuantity) findUnit(u UnitTable, s string) *Unit {
+	if len(u.Units) == 0 {
+		return u.find(s)
+	}
+	if c.table != &u.Units[0] {
+		c.units, c.table = recent[*Unit]{}, &u.Units[0]
+	}
+	if un, ok := c.units.get(s); ok {
+		return un
+	}
+	un := u.find(s)
+	if un != nil {
+		c.units.put(s, un)
+	}
+	return un
+}
+
+// recentN is how many answers a recent cache holds.
+const recentN = 8
+
+// recent holds a few answers looked up lately, found by comparing their keys, which is cheaper
+// than hashing for the handful of values a manifest's column repeats. Its keys are record
+// fields, whose text is never written over once given.
+type recent[V any] struct {
+	keys [recentN]string
+	vals [recentN]V
+	n    int
+	next int
+}
+
+func (r *recent[V]) get(k string) (V, bool) {
+	for i := 0; i < r.n; i++ {
+		if r.keys[i] == k {
+			return r.vals[i], true
+		}
+	}
+	var zero V
+	return zero, false
+}
+
+func (r *recent[V]) put(k string, v V) {
+	r.keys[r.next], r.vals[r.next] = k, v
+	r.next = (r.next + 1) % recentN
+	r.n = min(r.n+1, recentN)
 }
 
 // quantity parses s from column c with the column's units. The column's last parse is kept: a
@@ -259,9 +322,12 @@ func (p *lineParser) quantity(c Column, s string, u UnitTable, defaultUnit strin
 	if last.ok && last.text == s {
 		return last.q
 	}
-	v, unit, err := Quantity(s, u, defaultUnit, p.decimalComma)
+	v, unit, err := quantityFind(s, u, defaultUnit, p.decimalComma, last.findUnit)
 	q := quantity{v: v, unit: unit, err: err}
-	*last = lastQuantity{text: strings.Clone(s), q: q, ok: true}
+	// s is a field of the record: the row sources never write over a field's text once given
+	// (the splitter's arena only grows; encoding/csv and the workbook make new strings), so it is
+	// kept without a copy.
+	last.text, last.q, last.ok = s, q, true
 	return q
 }
 
@@ -278,11 +344,27 @@ func newLineParser(name string, opt Options, decimalComma bool, hdr *header) *li
 }
 
 func (p *lineParser) get(rec []string, c Column) string {
+	if p.loaded && len(rec) == p.loadedLen && &rec[0] == p.loadedAt {
+		return p.vals[c]
+	}
 	i := p.hdr.pos[c]
 	if i < 0 || i >= len(rec) {
 		return ""
 	}
 	return strings.TrimSpace(rec[i])
+}
+
+// load finds the trimmed value of each column of rec once; get answers from them while rec is
+// the record loaded (rec is not changed while it is read).
+func (p *lineParser) load(rec []string) {
+	p.loaded = false
+	for c := range p.vals {
+		p.vals[c] = p.get(rec, Column(c))
+	}
+	p.loaded, p.loadedLen = len(rec) > 0, len(rec)
+	if p.loaded {
+		p.loadedAt = &rec[0]
+	}
 }
 
 func (p *lineParser) fail(line int, c Column, val, reason string) error {
@@ -355,6 +437,14 @@ func (p *lineParser) checkText(c Column, v string, line int) error {
 // maxRememberedLines bounds the lines parseAlike remembers.
 const maxRememberedLines = 4096
 
+// parseAlike looks lines up in runs of alikeProbe; when fewer than one in eight of a run was
+// found and no more lines can be remembered, it parses the next alikeRest lines without looking,
+// then looks again. The parse is the same either way: only the time differs.
+const (
+	alikeProbe = 4096
+	alikeRest  = 16 * alikeProbe
+)
+
 // parseAlike parses a record, or reuses the parse of an earlier record whose every field but the
 // id was the same: a manifest lists many alike items under their own ids, and everything a line
 // holds besides its number and id follows from those fields alone. Only lines that parsed are
@@ -367,6 +457,10 @@ const maxRememberedLines = 4096
 func (p *lineParser) parseAlike(rec []string, line int, raw string, starts []int) (manifest.Line, error) {
 	idPos := p.hdr.pos[ColID]
 	if idPos < 0 {
+		return p.parse(rec, line)
+	}
+	if p.alikeSkip > 0 { // lines have been distinct of late: the lookup costs more than it saves
+		p.alikeSkip--
 		return p.parse(rec, line)
 	}
 	memo, key := p.alike, ""
@@ -391,7 +485,15 @@ func (p *lineParser) parseAlike(rec []string, line int, raw string, starts []int
 		}
 		key = unsafeString(p.keyBuf)
 	}
+	p.alikeTries++
+	if p.alikeTries == alikeProbe {
+		if p.alikeHits*8 < p.alikeTries && len(memo) >= maxRememberedLines {
+			p.alikeSkip = alikeRest
+		}
+		p.alikeTries, p.alikeHits = 0, 0
+	}
 	if l, ok := memo[key]; ok {
+		p.alikeHits++
 		id := p.get(rec, ColID)
 		if err := p.checkText(ColID, id, line); err != nil {
 			return manifest.Line{}, err
@@ -449,6 +551,10 @@ func (p *lineParser) ignoredByName(i int) bool { return p.hdr.named[i] }
 
 func (p *lineParser) format(l *manifest.Line, rec []string, line int) error {
 	fs := p.get(rec, ColFormat)
+	if f, ok := p.lastFormat.get(fs); ok {
+		l.Format = f
+		return nil
+	}
 	f, ok := p.formats[fs]
 	if !ok {
 		var err error
@@ -457,6 +563,7 @@ func (p *lineParser) format(l *manifest.Line, rec []string, line int) error {
 		}
 		p.formats[fs] = f
 	}
+	p.lastFormat.put(fs, f)
 	l.Format = f
 	return nil
 }
@@ -483,7 +590,12 @@ func (p *lineParser) chemistry(l *manifest.Line, rec []string, line int) error {
 	}
 	// A label resolved once is reused; only a label that says nothing about the cathode needs
 	// the item's application (from its column, or a word of the description or notes).
+	if r, ok := p.lastChem.get(l.ChemistryLabel); ok {
+		l.Chemistry = r.chem
+		return nil
+	}
 	if r, ok := p.chem[labelKey{l.ChemistryLabel, ""}]; ok && !r.chem.Unknown {
+		p.lastChem.put(l.ChemistryLabel, r)
 		l.Chemistry = r.chem
 		return nil
 	}

@@ -77,7 +77,7 @@ func (t *trailer) skip(p *lineParser, rec []string, line int, info *Info) (bool,
 }
 
 // add counts a line read, and notes what was assumed of it.
-func (t *trailer) add(l manifest.Line, info *Info) {
+func (t *trailer) add(l *manifest.Line, info *Info) {
 	if t.lines == 0 {
 		t.massAll = true
 	}
@@ -93,7 +93,7 @@ func (t *trailer) add(l manifest.Line, info *Info) {
 	if l.MassKg == 0 {
 		t.massAll = false
 	}
-	if _, _, ok := splitVoltsCharge(l.CapacityText); ok && l.VoltageV > 0 {
+	if l.VoltageV > 0 && isVoltsCharge(l.CapacityText) {
 		t.note(info, fmt.Sprintf("line %d: capacity %q read as %g V and %s (energy = V × Ah): %.4g Wh per item",
 			l.Num, Printable(l.CapacityText, 40), l.VoltageV, l.CapacityGiven(), l.EnergyWh))
 	}
@@ -209,6 +209,9 @@ type otherCache map[string]*cathode.OtherBattery
 
 // otherBattery returns the battery that is not lithium-ion a label names (nil: none), once per label.
 func (p *lineParser) otherBattery(label string) *cathode.OtherBattery {
+	if b, ok := p.lastOther.get(label); ok { // lines mostly repeat a few labels
+		return b
+	}
 	b, ok := p.others[label]
 	if !ok {
 		b = p.opt.Catalogue.OtherBattery(label)
@@ -216,6 +219,7 @@ func (p *lineParser) otherBattery(label string) *cathode.OtherBattery {
 			p.others[label] = b
 		}
 	}
+	p.lastOther.put(label, b)
 	return b
 }
 
@@ -229,7 +233,8 @@ var (
 // splitVoltsCharge splits a capacity written as volts and charge into its charge and its volts.
 func splitVoltsCharge(s string) (charge, volts string, ok bool) {
 	s = strings.TrimSpace(s)
-	if !strings.ContainsAny(s, "vV") { // both forms name the volts: most capacities skip the patterns
+	// Both forms name the volts: most capacities skip the patterns.
+	if strings.IndexByte(s, 'v') < 0 && strings.IndexByte(s, 'V') < 0 {
 		return s, "", false
 	}
 	if m := voltsFirst.FindStringSubmatch(s); m != nil {
@@ -239,6 +244,12 @@ func splitVoltsCharge(s string) (charge, volts string, ok bool) {
 		return m[1], m[2], true
 	}
 	return s, "", false
+}
+
+// isVoltsCharge reports whether a capacity is written as volts and charge.
+func isVoltsCharge(s string) bool {
+	_, _, ok := splitVoltsCharge(s)
+	return ok
 }
 
 // voltsAndCharge returns the capacity and the voltage to read: a capacity of volts and charge

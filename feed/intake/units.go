@@ -88,6 +88,9 @@ func ParseNumber(s string, decimalComma bool) (float64, error) {
 			return 0, errors.New("not a number")
 		}
 	}
+	if v, ok := plainInteger(s); ok {
+		return v, nil
+	}
 	if n := strings.Count(s, ","); n > 0 {
 		switch {
 		case decimalComma && n == 1 && !strings.Contains(s, "."):
@@ -110,6 +113,23 @@ func ParseNumber(s string, decimalComma bool) (float64, error) {
 	return v, nil
 }
 
+// plainInteger reads s when it is only digits, at most 15 of them: every such integer is a
+// float64 exactly, so this is what strconv.ParseFloat gives, without its general path.
+func plainInteger(s string) (float64, bool) {
+	if len(s) == 0 || len(s) > 15 {
+		return 0, false
+	}
+	n := int64(0)
+	for i := 0; i < len(s); i++ {
+		c := s[i]
+		if c < '0' || c > '9' {
+			return 0, false
+		}
+		n = n*10 + int64(c-'0')
+	}
+	return float64(n), true
+}
+
 // thousandsGrouped reports whether the integer part of s is grouped by commas in threes
 // ("1,234", "12,345,678.9").
 func thousandsGrouped(s string) bool {
@@ -129,6 +149,12 @@ func thousandsGrouped(s string) bool {
 // Quantity parses "3.5 Ah", "3500mAh", "1,2 kWh" into a value in the table's base unit and the
 // base unit's name. A bare number takes defaultUnit (a unit from the column header; "" for none).
 func Quantity(s string, u UnitTable, defaultUnit string, decimalComma bool) (float64, string, error) {
+	return quantityFind(s, u, defaultUnit, decimalComma, nil)
+}
+
+// quantityFind is Quantity with the unit found by find (nil: the table's find).
+func quantityFind(s string, u UnitTable, defaultUnit string, decimalComma bool,
+	find func(UnitTable, string) *Unit) (float64, string, error) {
 	s = strings.TrimSpace(s)
 	if s == "" {
 		return 0, "", errors.New("missing value (want a number and a unit: " + u.Want + ")")
@@ -149,7 +175,12 @@ func Quantity(s string, u UnitTable, defaultUnit string, decimalComma bool) (flo
 	if rest == "" {
 		rest = defaultUnit
 	}
-	un := u.find(rest)
+	var un *Unit
+	if find != nil {
+		un = find(u, rest)
+	} else {
+		un = u.find(rest)
+	}
 	if un == nil {
 		if rest == "" {
 			return 0, "", fmt.Errorf("no unit (want %s, in the cell or in the column header)", u.Want)

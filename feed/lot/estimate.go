@@ -38,13 +38,16 @@ type Factors func(keys []FactorKey, d *dist.Drawer) [][]float64
 // Result is the lot's part of a report: what the manifest lists, the black mass, its elements
 // and compounds, the groups, labels and lines, with the model's parameters and warnings.
 type Result struct {
-	Lot          LotSummary
-	BlackMassKg  dist.Stat
-	Elements     map[string]dist.Amount
-	Compounds    map[string]dist.Amount
-	Groups       []GroupResult
-	Labels       []LabelResolution
+	Lot         LotSummary
+	BlackMassKg dist.Stat
+	Elements    map[string]dist.Amount
+	Compounds   map[string]dist.Amount
+	Groups      []GroupResult
+	Labels      []LabelResolution
+	// Lines is every kept line's detail from Estimate; EstimateWith leaves it nil and gives the
+	// same detail in Kept, made as it is read (nil without kept lines).
 	Lines        []LineResult
+	Kept         *Lines
 	Parameters   []dist.Param
 	Warnings     []string
 	ElementOrder []string
@@ -62,9 +65,17 @@ const (
 )
 
 // Estimate runs the Monte Carlo over the lot's groups with the seed given and summarises the
-// draws: the lot's part of the report, and the draws themselves for the later stages.
+// draws: the lot's part of the report, and the draws themselves for the later stages. With kept
+// lines, Result.Lines holds every line's detail.
 func (l *Lot) Estimate(seed uint64, samples int) (*Result, *Samples, error) {
-	return l.EstimateWith(seed, samples, nil)
+	r, s, err := l.EstimateWith(seed, samples, nil)
+	if err == nil && r.Kept != nil {
+		r.Lines = make([]LineResult, 0, r.Kept.Len())
+		for _, ln := range r.Kept.All() {
+			r.Lines = append(r.Lines, ln)
+		}
+	}
+	return r, s, err
 }
 
 // EstimateWith is Estimate with factors on what reaches the black mass, per element and group
@@ -238,7 +249,7 @@ func (l *Lot) factorDraws(f Factors, d *dist.Drawer) [][][]float64 {
 
 // result summarises the draws with the lot's counts, labels and warnings.
 func (l *Lot) result(s *Samples) *Result {
-	r := &Result{Elements: map[string]dist.Amount{}, Compounds: map[string]dist.Amount{}, Lines: l.keptLines(),
+	r := &Result{Elements: map[string]dist.Amount{}, Compounds: map[string]dist.Amount{}, Kept: l.keptLines(),
 		Warnings: append([]string(nil), l.warnings...), ModeKWh: l.modeWh / 1000,
 		NonLithium: l.NonLithium()}
 	r.Lot = LotSummary{Lines: l.nLines, Items: l.items, Cells: l.cells, NameplateKWh: dist.Round(l.energyWh/1000, 6),

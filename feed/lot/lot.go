@@ -2,6 +2,7 @@ package lot
 
 import (
 	"fmt"
+	"iter"
 	"math"
 	"slices"
 	"strings"
@@ -93,8 +94,13 @@ type Lot struct {
 	recent     [recentGroups]recentGroup
 	nextRecent int
 	order      []*group
-	lines      []LineResult   // the kept lines, flattened from lineChunks when the result is made
-	lineChunks [][]LineResult // lines as added, in chunks of lineChunk: no copy of all lines as they grow
+	kept       [][]keptLine // the kept lines as added, in chunks of lineChunk: no copy of all lines as they grow
+	// Scratch of lineDetail, which makes one line's detail at a time.
+	bmBuf      []float64
+	elOrder    []int
+	elMetal    []bool
+	perEl      []float64
+	seenEl     []bool
 	warnings   []string
 	warned     map[string]bool
 	comp       *compounds
@@ -231,19 +237,103 @@ func (l *Lot) Add(ln manifest.Line) error {
 	if ch.Unknown {
 		l.unknownWh += cnt * energyWh
 	}
-	l.countLabel(g, ln, cnt*energyWh)
-	flags, measWhKg := l.checkMass(g, ln, cnt, energyWh)
-	weighedLine := measWhKg > 0 && len(flags) == 0
+	l.countLabel(g, &ln, cnt*energyWh)
+	l.checkMass(g, &ln, cnt, energyWh)
+	if l.keepLines {
+		// The line is kept as parsed; its detail is made when it is read (Lines), from the
+		// group's values, which do not change once the group is made.
+		l.keepLine(keptLine{ln: ln, nComp: l.comp.n()})
+	}
+	return nil
+}
+
+// keptLine is what a lot keeps of a line for its detail: the line as parsed, and the number of
+// compounds the lot knew when it was added (the line's black mass is over those).
+type keptLine struct {
+	ln    manifest.Line
+	nComp int
+}
+
+// lineChunk is the number of lines held in one chunk.
+const lineChunk = 4096
+
+// keepLine keeps one line, in chunks so that a million lines are never copied as the list grows.
+func (l *Lot) keepLine(k keptLine) {
+	if n := len(l.kept); n == 0 || len(l.kept[n-1]) == lineChunk {
+		l.kept = append(l.kept, make([]keptLine, 0, lineChunk))
+	}
+	last := &l.kept[len(l.kept)-1]
+	*last = append(*last, k)
+}
+
+// Lines is the detail of a lot's kept lines, each made when it is read: the lot holds each line
+// as parsed, a fraction of its detail, so a large manifest's detail is never held whole. The
+// detail is made with the lot's scratch: read it from one goroutine at a time.
+type Lines struct {
+	l *Lot
+	n int
+}
+
+// Len is the number of lines.
+func (ls *Lines) Len() int { return ls.n }
+
+// All yields each line's detail, in the manifest's order.
+func (ls *Lines) All() iter.Seq2[int, LineResult] {
+	return func(yield func(int, LineResult) bool) {
+		i := 0
+		for _, c := range ls.l.kept {
+			for j := range c {
+				if !yield(i, ls.l.lineDetail(&c[j])) {
+					return
+				}
+				i++
+			}
+		}
+	}
+}
+
+// keptLines returns the kept lines' detail, nil when none were kept.
+func (l *Lot) keptLines() *Lines {
 	if !l.keepLines {
 		return nil
 	}
+	n := 0
+	for _, c := range l.kept {
+		n += len(c)
+	}
+	return &Lines{l: l, n: n}
+}
+
+// lineDetail makes a kept line's detail: its most likely breakdown of one item, and the masses
+// of its count.
+func (l *Lot) lineDetail(k *keptLine) LineResult {
+	ln := &k.ln
+	ch := ln.Chemistry
+	g := l.byPtr[ptrKey{ch, ln.Format}]
+	cnt := float64(ln.Count)
+	mx := g.modeMix
+	energyWh := ln.EnergyWh
+	switch {
+	case ln.MassOnly():
+		energyWh = ln.MassKg * g.modeWhPerKg
+	case energyWh == 0:
+		energyWh = ln.ChargeAh * mx.voltV
+	}
+	var flags []string
+	measWhKg := 0.0
+	if ln.MassKg > 0 && !ln.MassOnly() {
+		measWhKg = energyWh / ln.MassKg
+		if !(measWhKg >= g.bandLo && measWhKg <= g.bandHi) {
+			flags = []string{massMessage(ln, measWhKg, g.bandLo, g.bandHi)}
+		}
+	}
+	weighedLine := measWhKg > 0 && len(flags) == 0
 	if ch.Unknown {
 		flags = append(flags, "unknown chemistry: the prior for the item assumed")
 	}
 	if ln.MassOnly() {
 		flags = append(flags, "no capacity: energy from the mass and the chemistry's Wh/kg band")
 	}
-	// Most-likely breakdown of one item, for the line detail.
 	fr, gl := l.mode.designOf(ch, ln.Format, 0), l.mode.global(0)
 	itemWh := ln.EnergyWh
 	if ln.MassOnly() {
@@ -254,106 +344,107 @@ func (l *Lot) Add(ln manifest.Line) error {
 		fr = weighed(itemWh, ln.ChargeAh, mx, fr, gl, ln.MassKg*1000, lo, hi)
 	}
 	b := model(itemWh, ln.ChargeAh, mx, fr, gl)
-	bm := make([]float64, l.comp.n())
+	bm := l.scratch(k.nComp)
 	b.blackMass(bm, fr, gl, g.camIdx, ch.MeanShares())
 	els, total := l.lineElements(bm, cnt)
-	l.addLine(LineResult{Line: ln.Num, ID: ln.ID, Description: ln.Description, ChemistryLabel: ln.ChemistryLabel,
-		Chemistry: ch.Key, Unknown: ch.Unknown, Format: ln.Format.String(), Count: ln.Count, CellsPerItem: ln.CellsPerItem, Application: ln.Application,
-		CapacityText: ln.CapacityText, CapacityGiven: ln.CapacityGiven(), CapacityBasis: ln.CapacityBasis, VoltageV: ln.VoltageV, EnergyWhPerItem: dist.Round(energyWh, 4), EnergyAssumed: ln.EnergyWh == 0 && !ln.MassOnly(), EnergyFromMass: ln.MassOnly(), ChargeAhPerItem: ln.ChargeAh,
+	return LineResult{Line: ln.Num, ID: ln.ID, Description: ln.Description, ChemistryLabel: ln.ChemistryLabel,
+		Chemistry: ch.Key, Unknown: ch.Unknown, Format: ln.Format.String(), Count: ln.Count, CellsPerItem: ln.CellsPerItem,
+		Application: ln.Application, CapacityText: ln.CapacityText, CapacityGiven: ln.CapacityGiven(),
+		CapacityBasis: ln.CapacityBasis, VoltageV: ln.VoltageV, EnergyWhPerItem: dist.Round(energyWh, 4),
+		EnergyAssumed: ln.EnergyWh == 0 && !ln.MassOnly(), EnergyFromMass: ln.MassOnly(), ChargeAhPerItem: ln.ChargeAh,
 		ModelMassKgEach: dist.Round(b.item/1000, 6), MeasuredMassKg: ln.MassKg, MeasuredWhPerKg: dist.Round(measWhKg, 2),
-		CathodeKg: dist.Round(b.cam*cnt/1000, 6), BlackMassKg: dist.Round(total*cnt/1000, 6), ElementsKg: els, Flags: flags, Notes: ln.Notes})
-	return nil
+		CathodeKg: dist.Round(b.cam*cnt/1000, 6), BlackMassKg: dist.Round(total*cnt/1000, 6), ElementsKg: els, Flags: flags,
+		Notes: ln.Notes}
 }
 
-// lineChunk is the number of line results held in one chunk.
-const lineChunk = 4096
-
-// addLine keeps one line's result, in chunks so that a million lines are never copied as the list
-// grows.
-func (l *Lot) addLine(r LineResult) {
-	if n := len(l.lineChunks); n == 0 || len(l.lineChunks[n-1]) == lineChunk {
-		l.lineChunks = append(l.lineChunks, make([]LineResult, 0, lineChunk))
+// scratch returns the lot's buffer of n compound masses, zeroed: lines' details are made one
+// at a time.
+func (l *Lot) scratch(n int) []float64 {
+	if cap(l.bmBuf) < n {
+		l.bmBuf = make([]float64, n)
 	}
-	last := &l.lineChunks[len(l.lineChunks)-1]
-	*last = append(*last, r)
+	l.bmBuf = l.bmBuf[:n]
+	clear(l.bmBuf)
+	return l.bmBuf
 }
 
-// keptLines flattens the kept lines into one slice of exactly their number, once.
-func (l *Lot) keptLines() []LineResult {
-	if l.lineChunks == nil {
-		return l.lines
+// elementOrder returns the lot's element indices by symbol and which elements are metals, made
+// again only when the lot has learnt more elements.
+func (l *Lot) elementOrder() (order []int, metal []bool) {
+	if n := len(l.comp.elements); len(l.elOrder) != n {
+		l.elOrder, l.elMetal = make([]int, n), make([]bool, n)
+		for e, sym := range l.comp.elements {
+			l.elOrder[e], l.elMetal[e] = e, cathode.IsMetal(sym)
+		}
+		slices.SortFunc(l.elOrder, func(a, b int) int { return strings.Compare(l.comp.elements[a], l.comp.elements[b]) })
+		l.perEl, l.seenEl = make([]float64, n), make([]bool, n)
 	}
-	n := len(l.lines)
-	for _, c := range l.lineChunks {
-		n += len(c)
-	}
-	out := make([]LineResult, 0, n)
-	out = append(out, l.lines...)
-	for _, c := range l.lineChunks {
-		out = append(out, c...)
-	}
-	l.lines, l.lineChunks = out, nil
-	return out
+	return l.elOrder, l.elMetal
 }
 
 // lineElements sums a line's most likely black mass (g per item, by compound) into metals by
-// element (kg for the line's count) and its black mass (g per item).
+// element (kg for the line's count), sorted by symbol, and its black mass (g per item).
 func (l *Lot) lineElements(bm []float64, count float64) (ElementMasses, float64) {
-	perEl := make([]float64, len(l.comp.elements))
-	seen := make([]bool, len(l.comp.elements))
-	total := 0.0
+	order, metal := l.elementOrder()
+	perEl, seen := l.perEl, l.seenEl
+	clear(perEl)
+	clear(seen)
+	total, nSeen := 0.0, 0
 	for c, m := range bm {
 		total += m
 		for e, f := range l.comp.fractions[c] {
-			if f > 0 && cathode.IsMetal(l.comp.elements[e]) {
+			if f > 0 && metal[e] {
 				perEl[e] += m * f * count / 1000
-				seen[e] = true
+				if !seen[e] {
+					seen[e] = true
+					nSeen++
+				}
 			}
 		}
 	}
-	var els ElementMasses
-	for e, ok := range seen {
-		if ok {
+	els := make(ElementMasses, 0, nSeen)
+	for _, e := range order {
+		if seen[e] {
 			els = append(els, ElementMass{Element: l.comp.elements[e], Kg: dist.Round(perEl[e], 6)})
 		}
 	}
-	slices.SortFunc(els, func(a, b ElementMass) int { return strings.Compare(a.Element, b.Element) })
 	return els, total
 }
 
 // checkMass compares a line's measured weight with its plausible Wh/kg band: a weight inside
 // joins the group's weighed lines (whose cells are modelled at that weight), one outside is
-// flagged and warned of.
-func (l *Lot) checkMass(g *group, ln manifest.Line, cnt, energyWh float64) (flags []string, measWhKg float64) {
+// counted and warned of (lineDetail flags it).
+func (l *Lot) checkMass(g *group, ln *manifest.Line, cnt, energyWh float64) {
 	if ln.MassKg <= 0 || ln.MassOnly() {
-		return nil, 0
+		return
 	}
 	l.withMass++
-	measWhKg = energyWh / ln.MassKg
+	measWhKg := energyWh / ln.MassKg
 	lo, hi := g.bandLo, g.bandHi
 	if measWhKg >= lo && measWhKg <= hi {
 		g.weighedWh += cnt * ln.EnergyWh
 		g.weighedAh += cnt * ln.ChargeAh
 		g.weighedKg += cnt * ln.MassKg
-		return nil, measWhKg
+		return
 	}
 	l.flagged++
-	if !l.keepLines && l.flagged > maxLineWarnings {
-		// Worded only where it is shown; a flag without words still marks the line unweighed.
-		return []string{""}, measWhKg
-	}
-	msg := fmt.Sprintf("%.0f Wh/kg measured, outside the plausible %.0f–%.0f Wh/kg for %s %s", measWhKg, lo, hi, ln.Chemistry.Key, ln.Format)
 	if l.flagged <= maxLineWarnings {
+		msg := massMessage(ln, measWhKg, lo, hi)
 		l.warnings = append(l.warnings, fmt.Sprintf("line %d (%s): %s; check the capacity, the count or the weight", ln.Num, idOr(ln), msg))
 	}
-	return []string{msg}, measWhKg
+}
+
+// massMessage says that a line's measured Wh/kg is outside its plausible band.
+func massMessage(ln *manifest.Line, measWhKg, lo, hi float64) string {
+	return fmt.Sprintf("%.0f Wh/kg measured, outside the plausible %.0f–%.0f Wh/kg for %s %s",
+		measWhKg, lo, hi, ln.Chemistry.Key, ln.Format)
 }
 
 // maxLabels bounds the labels listed in the report; the rest are counted.
 const maxLabels = 500
 
 // countLabel adds a line of group g to its label's count.
-func (l *Lot) countLabel(g *group, ln manifest.Line, energyWh float64) {
+func (l *Lot) countLabel(g *group, ln *manifest.Line, energyWh float64) {
 	st := g.lastStat
 	if st == nil || g.lastLabel != ln.ChemistryLabel {
 		st = l.labelStat(ln)
@@ -369,7 +460,7 @@ func (l *Lot) countLabel(g *group, ln manifest.Line, energyWh float64) {
 
 // labelStat returns the count of a line's label, adding it (or the catch-all of further labels)
 // the first time.
-func (l *Lot) labelStat(ln manifest.Line) *labelStat {
+func (l *Lot) labelStat(ln *manifest.Line) *labelStat {
 	st := l.labels[ln.ChemistryLabel]
 	if st == nil {
 		if len(l.labelList) >= maxLabels {
@@ -401,7 +492,7 @@ func (l *Lot) Labels() []LabelResolution {
 	return out
 }
 
-func idOr(ln manifest.Line) string {
+func idOr(ln *manifest.Line) string {
 	if ln.ID != "" {
 		return ln.ID
 	}

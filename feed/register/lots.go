@@ -50,7 +50,7 @@ func (r *Register) Add(ctx context.Context, l Lot, replace bool) (int, error) {
 	// The report is kept without its per-line detail: the lines are rows of lot_lines and the
 	// manifest itself is kept, so a lot of a million lines does not store them twice more.
 	head := *l.Report
-	head.Lines = nil
+	head.Lines, head.KeptLines = nil, nil
 	rep, err := json.Marshal(&head)
 	if err != nil {
 		return 0, r.wrap(err)
@@ -112,7 +112,7 @@ func insertDetail(tx *sql.Tx, id string, version int, rp *report.Report) error {
 		return err
 	}
 	defer line.Close()
-	for _, ln := range rp.Lines {
+	for _, ln := range rp.EachLine() {
 		if _, err := line.Exec(id, version, ln.Line, ln.ID, ln.ChemistryLabel, ln.Chemistry, ln.Format, ln.Count, ln.EnergyWhPerItem, ln.MeasuredMassKg); err != nil {
 			return err
 		}

@@ -6,6 +6,8 @@ import (
 	"reflect"
 	"slices"
 	"strings"
+
+	"blackmass/feed/lot"
 )
 
 // CheckFinite returns an error naming the first number of the report that is NaN or infinite
@@ -77,6 +79,9 @@ func (w finiteWalker) fieldNames(t reflect.Type) []string {
 		if name == "" {
 			name = f.Name
 		}
+		if f.Type == reflect.TypeFor[*lot.Lines]() {
+			name = "lines" // a report's kept lines are its lines
+		}
 		n[i] = name
 	}
 	w.names[t] = n
@@ -88,6 +93,14 @@ func (w finiteWalker) walk(v reflect.Value) ([]string, bool) {
 	switch v.Kind() {
 	case reflect.Pointer, reflect.Interface:
 		if v.IsNil() {
+			return nil, false
+		}
+		if ls, ok := v.Interface().(*lot.Lines); ok { // each line's detail, made as it is read
+			for i, l := range ls.All() {
+				if segs, found := w.walk(reflect.ValueOf(&l).Elem()); found {
+					return append(segs, fmt.Sprintf("[%d]", i)), true
+				}
+			}
 			return nil, false
 		}
 		return w.walk(v.Elem())

@@ -13,13 +13,14 @@ import (
 // manifest stays one line of the JSON, for grep and diff.
 func (r *Report) WriteJSON(w io.Writer) error {
 	head := *r
-	head.Lines = nil
+	head.Lines, head.KeptLines = nil, nil
 	b, err := json.MarshalIndent(&head, "", "  ")
 	if err != nil {
 		return err
 	}
 	bw := bufio.NewWriterSize(w, 64<<10)
-	if len(r.Lines) == 0 || !bytes.HasSuffix(b, []byte("\n}")) {
+	n := r.LineCount()
+	if n == 0 || !bytes.HasSuffix(b, []byte("\n}")) {
 		bw.Write(b)
 		bw.WriteByte('\n')
 		return bw.Flush()
@@ -28,14 +29,14 @@ func (r *Report) WriteJSON(w io.Writer) error {
 	bw.WriteString(",\n  \"lines\": [\n")
 	var line bytes.Buffer
 	enc := json.NewEncoder(&line)
-	for i := range r.Lines {
+	for i, l := range r.EachLine() {
 		line.Reset()
-		if err := enc.Encode(&r.Lines[i]); err != nil {
+		if err := enc.Encode(&l); err != nil {
 			return err
 		}
 		bw.WriteString("    ")
 		bw.Write(bytes.TrimSuffix(line.Bytes(), []byte("\n")))
-		if i < len(r.Lines)-1 {
+		if i < n-1 {
 			bw.WriteByte(',')
 		}
 		if _, err := bw.WriteString("\n"); err != nil {

@@ -3,6 +3,7 @@
 package report
 
 import (
+	"iter"
 	"time"
 
 	"blackmass/feed/assay"
@@ -41,7 +42,10 @@ type Report struct {
 	Groups      []lot.GroupResult      `json:"groups"`
 	Labels      []lot.LabelResolution  `json:"labels"`
 	Lines       []lot.LineResult       `json:"lines,omitempty"`
-	Leach       *leach.Report          `json:"leach,omitempty"`
+	// KeptLines, when Lines is nil, are the lines' detail made as it is read (EachLine), so a
+	// large manifest's detail is never held whole; written as "lines" like Lines.
+	KeptLines *lot.Lines    `json:"-"`
+	Leach     *leach.Report `json:"leach,omitempty"`
 	// Value is the lot's worth at the prices given; nil when no prices were given.
 	Value *value.Value `json:"value,omitempty"`
 	// Recovery is the plan of the stages after the leach; nil when none was asked for.
@@ -75,4 +79,27 @@ type CalibrationUse struct {
 	CreatedAt time.Time `json:"created_at"`
 	Lots      int       `json:"lots"`
 	Elements  []string  `json:"elements"`
+}
+
+// LineCount is the number of lines with detail in the report.
+func (r *Report) LineCount() int {
+	if r.Lines == nil && r.KeptLines != nil {
+		return r.KeptLines.Len()
+	}
+	return len(r.Lines)
+}
+
+// EachLine yields each line's detail in the manifest's order: Lines, or else the kept lines
+// (each made when yielded).
+func (r *Report) EachLine() iter.Seq2[int, lot.LineResult] {
+	if r.Lines == nil && r.KeptLines != nil {
+		return r.KeptLines.All()
+	}
+	return func(yield func(int, lot.LineResult) bool) {
+		for i, l := range r.Lines {
+			if !yield(i, l) {
+				return
+			}
+		}
+	}
 }

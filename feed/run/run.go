@@ -251,8 +251,9 @@ func read(t *Tables, o Options, m Manifest, add func(manifest.Line) error) (inta
 // fromLot starts a report from the lot's part of it.
 func fromLot(in report.Inputs, res *lot.Result) *report.Report {
 	return &report.Report{Inputs: in, Lot: res.Lot, BlackMassKg: res.BlackMassKg, Elements: res.Elements,
-		Compounds: res.Compounds, Groups: res.Groups, Labels: res.Labels, Lines: res.Lines, Parameters: res.Parameters,
-		Warnings: res.Warnings, Safety: SafetyNotes(), ElementOrder: res.ElementOrder, NonLithium: res.NonLithium}
+		Compounds: res.Compounds, Groups: res.Groups, Labels: res.Labels, Lines: res.Lines, KeptLines: res.Kept,
+		Parameters: res.Parameters, Warnings: res.Warnings, Safety: SafetyNotes(), ElementOrder: res.ElementOrder,
+		NonLithium: res.NonLithium}
 }
 
 // lotCandidates are the catalogue entries the lot's own chemistries may hold.

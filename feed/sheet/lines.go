@@ -22,8 +22,8 @@ func (w *writer) lines() error {
 	if r.Lot.Lines == 0 {
 		return nil // a quote from an assay has no manifest lines
 	}
-	if len(r.Lines) > MaxLines {
-		return fmt.Errorf("%d lines do not fit a sheet (at most %d)", len(r.Lines), MaxLines)
+	if r.LineCount() > MaxLines {
+		return fmt.Errorf("%d lines do not fit a sheet (at most %d)", r.LineCount(), MaxLines)
 	}
 	if _, err := f.NewSheet(Lines); err != nil {
 		return err
@@ -34,7 +34,7 @@ func (w *writer) lines() error {
 	// estimate made of it) stay in the file, out of the print area.
 	w.printSetup(Lines, false)
 	w.printTitles(Lines, 1, 1)
-	w.printArea(Lines, PrintedLineColumns, len(r.Lines)+2)
+	w.printArea(Lines, PrintedLineColumns, r.LineCount()+2)
 	return nil
 }
 
@@ -85,7 +85,7 @@ func (w *writer) streamLines() error {
 		return err
 	}
 	idWidth := 4.5
-	for _, l := range r.Lines {
+	for _, l := range r.EachLine() {
 		idWidth = max(idWidth, float64(len([]rune(l.ID)))*densePt/bodyPt/charsPerUnit+1.5)
 	}
 	cols := lineColumns(min(idWidth, 11))
@@ -112,7 +112,7 @@ func (w *writer) streamLines() error {
 		return err
 	}
 	textStyle, wrapStyle, countStyle := w.styleOf(dense, fmtText), w.styleOf(denseWrap, fmtText), w.styleOf(dense, fmtCount)
-	for i, l := range r.Lines {
+	for i, l := range r.EachLine() {
 		vals := []any{l.ID, l.Description, l.ChemistryLabel, l.Format, l.Count, l.EnergyWhPerItem, opt(l.MeasuredMassKg), l.BlackMassKg,
 			l.CapacityGiven, l.CapacityBasis, opt(l.VoltageV), optInt(l.CellsPerItem), l.Notes, l.Application,
 			l.Line, l.Chemistry, l.ModelMassKgEach, opt(l.MeasuredWhPerKg), l.CathodeKg, strings.Join(l.Flags, "; ")}
@@ -144,7 +144,7 @@ func (w *writer) streamLines() error {
 	}
 	// A totals row from the report, in the computed columns only, so that the sheet read back
 	// as a manifest passes over it (a row with nothing in the manifest's own columns).
-	if len(r.Lines) > 0 {
+	if r.LineCount() > 0 {
 		tot := w.styleOf(total, "")
 		row := make([]any, len(cols))
 		for j := range row {
@@ -156,12 +156,12 @@ func (w *writer) streamLines() error {
 		row[15] = excelize.Cell{StyleID: tot, Value: thousands(r.Lot.Items) + " items"}
 		row[19] = excelize.Cell{StyleID: tot, Value: fmt.Sprintf("black mass P50 of the lot (P10 %s, P90 %s kg); lines above are most likely values",
 			sig3(r.BlackMassKg.P10), sig3(r.BlackMassKg.P90))}
-		cell, _ := excelize.CoordinatesToCellName(1, len(r.Lines)+2)
+		cell, _ := excelize.CoordinatesToCellName(1, r.LineCount()+2)
 		if err := sw.SetRow(cell, row, excelize.RowOpts{Height: rowPt + 2}); err != nil {
 			return err
 		}
 		last, _ := excelize.ColumnNumberToName(len(cols))
-		_ = f.AutoFilter(Lines, fmt.Sprintf("A1:%s%d", last, len(r.Lines)+1), nil)
+		_ = f.AutoFilter(Lines, fmt.Sprintf("A1:%s%d", last, r.LineCount()+1), nil)
 	}
 	return sw.Flush()
 }
