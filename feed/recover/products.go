@@ -55,7 +55,16 @@ func (p *planner) electrowin(c *ctx, st Step, s *State, metal string) {
 	c.tl.hours[c.i] += charge / 3600 / (st.CurrentDensityAPerM2 * st.CathodeAreaM2)
 	c.figure("current efficiency", ce)
 	c.figure("cell voltage, V", u)
-	c.figure("acid regenerated, kg H2SO4", n*p.t.molarMass("H2SO4")/1000)
+	p.acidFigure(c, "acid regenerated", 2*n)
+}
+
+// acidFigure records the kg of the liquor's own acid (H2SO4 or HCl) that h mol of H+ make.
+func (p *planner) acidFigure(c *ctx, what string, h float64) {
+	if p.anion == "Cl" {
+		c.figure(what+", kg HCl", h*p.t.molarMass("HCl")/1000)
+		return
+	}
+	c.figure(what+", kg H2SO4", h/2*p.t.molarMass("H2SO4")/1000)
 }
 
 func metal2stage(metal string) string {
@@ -129,7 +138,7 @@ func (p *planner) oxalateProduct(c *ctx, s *State, metal string) {
 	s.Mol["C"] += 2 * (mol - n)
 	s.FreeHMol += 2 * n
 	c.waterMol(s, -2*n)
-	c.figure("acid freed, kg H2SO4", n*p.t.molarMass("H2SO4")/1000)
+	p.acidFigure(c, "acid freed", 2*n)
 	c.cake(s, phase, p.val(c, "product", "cake_wet_ratio"))
 }
 

@@ -319,7 +319,7 @@ func (p *planner) fates(res *results, dest map[string]map[string][]float64) []Fa
 // stageReport summarises one stage.
 func (p *planner) stageReport(st Step, tl *tally) StageReport {
 	sr := StageReport{Kind: st.Kind, Setting: st.String(), Description: stageDescription(st),
-		Cautions: stageCautions(st)}
+		Cautions: stageCautions(st, p.anion)}
 	sr.Reagents = p.reagentRows(tl.reagentMol)
 	for _, name := range tl.solidOrder {
 		if s, ok := p.solid(st.Kind, tl.solids[name]); ok {
@@ -490,8 +490,8 @@ func stageDescription(st Step) string {
 	return ""
 }
 
-// stageCautions are the usual cautions of a stage.
-func stageCautions(st Step) []string {
+// stageCautions are the usual cautions of a stage on a liquor of the anion given (SO4 or Cl).
+func stageCautions(st Step, anion string) []string {
 	var c []string
 	switch st.Kind {
 	case KindImpurity:
@@ -532,7 +532,11 @@ func stageCautions(st Step) []string {
 	case KindLithium:
 		c = append(c, "Hot carbonation liquor near boiling: scald risk; lithium compounds are harmful if swallowed.")
 	case KindEffluent:
-		c = append(c, "The effluent holds sodium sulfate and traces of metals: discharge only as the local permit allows.")
+		salt := "sodium sulfate"
+		if anion == "Cl" {
+			salt = "sodium chloride"
+		}
+		c = append(c, "The effluent holds "+salt+" and traces of metals: discharge only as the local permit allows.")
 	}
 	return append(c, "Follow local codes, the suppliers' safety data sheets and licensed practice.")
 }
