@@ -291,6 +291,10 @@ func TestExitCodes(t *testing.T) {
 		{"malformed extraction", []string{"demo", "--extraction", "Co=="}, 2},
 		{"unknown-label rule", []string{"demo", "--unknown", "maybe"}, 2},
 		{"container without unit", []string{"demo", "--containers", "25 drum"}, 2},
+		{"list from a day not in the calendar", []string{"lot", "list", "--from", "2026-13-01", "--db", "no-such.db"}, 2},
+		{"list to a month only", []string{"lot", "list", "--to", "2026-11", "--db", "no-such.db"}, 2},
+		{"export from a day not in the calendar", []string{"lot", "export", "--csv", "x.csv", "--from", "2026-02-30", "--db", "no-such.db"}, 2},
+		{"totals of a month not in the calendar", []string{"lot", "totals", "--month", "2026-13", "--db", "no-such.db"}, 2},
 	} {
 		t.Run(c.name, func(t *testing.T) {
 			code, _, errs := cli(t, "", c.args...)
