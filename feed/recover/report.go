@@ -524,7 +524,11 @@ func stageCautions(st Step, anion string) []string {
 		c = append(c, "Solvent extraction diluents are flammable: no ignition sources, earthing, ventilation, fire protection.",
 			"Organophosphorus extractants are skin and eye irritants; saponification with caustic is exothermic.")
 	case KindCobalt, KindNickel:
-		if st.Product == "electrowin" {
+		if st.Product == "electrowin" && anion == "Cl" {
+			c = append(c, "Electrowinning from a chloride electrolyte gives chlorine (Cl2, toxic) at the anode and some "+
+				"hydrogen at the cathode: hooded anodes, the off-gas to a caustic scrubber, chlorine detection, "+
+				"no ignition sources; live busbars.")
+		} else if st.Product == "electrowin" {
 			c = append(c, "Electrowinning gives acid mist and O2 at the anode and some hydrogen at the cathode: extraction, "+
 				"mist suppression, no ignition sources; live busbars.")
 		}
