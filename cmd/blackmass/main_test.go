@@ -534,6 +534,10 @@ func TestScreensScale(t *testing.T) {
 			if !strings.HasPrefix(out, "blackmass quote") || strings.Contains(out, "\ndetail") {
 				t.Errorf("header or quiet wrong:\n%s", out)
 			}
+			// The summary alone still carries the safety cautions, not only the pointer to local codes.
+			if !strings.Contains(out, "Charged cells") || !strings.Contains(out, "Cobalt and nickel compounds") {
+				t.Errorf("--quiet without the safety cautions:\n%s", out)
+			}
 			for _, s := range c.want {
 				if !strings.Contains(out, s) {
 					t.Errorf("missing %q in:\n%s", s, out)

@@ -25,7 +25,7 @@ import (
 func Write(w io.Writer, r *report.Report, command string, quiet bool) {
 	writeSummaryText(w, r, command)
 	if quiet {
-		fmt.Fprintln(w, "\nsafety: "+r.Safety[len(r.Safety)-1])
+		writeSafety(w, r)
 		return
 	}
 	fmt.Fprintln(w, "\ndetail")
@@ -321,6 +321,11 @@ func writeTail(w io.Writer, r *report.Report) {
 		fmt.Fprintln(w)
 		WriteMix(w, r.Mix)
 	}
+	writeSafety(w, r)
+}
+
+// writeSafety prints the report's safety cautions.
+func writeSafety(w io.Writer, r *report.Report) {
 	fmt.Fprintln(w, "\nsafety:")
 	for _, s := range r.Safety {
 		fmt.Fprintln(w, "  - "+s)
