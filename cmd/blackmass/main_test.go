@@ -690,3 +690,18 @@ func TestLotAddShowsWarnings(t *testing.T) {
 		}
 	}
 }
+
+// A quote weighed with no moisture says the mass is taken as dry, not that it was wet.
+func TestQuoteWeighedDryNotWet(t *testing.T) {
+	assay := filepath.Join("..", "..", "testdata", "assay-KR-2611.csv")
+	code, out, errs := cli(t, "", "quote", assay, "--mass", "212 kg", "--samples", "50", "--quiet")
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	if strings.Contains(out, "212 kg wet") {
+		t.Errorf("a weighing with no moisture printed as wet:\n%s", out)
+	}
+	if !strings.Contains(out, "weighed 212 kg") {
+		t.Errorf("no weighed line:\n%s", out)
+	}
+}

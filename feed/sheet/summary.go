@@ -44,7 +44,9 @@ func (w *writer) summary() error {
 	if r.Basis != "" {
 		p.add(boldText("Basis"), r.Basis)
 	}
-	if wg := r.Weighing; wg != nil {
+	if wg := r.Weighing; wg != nil && wg.MoistureWtPct.P90 == 0 {
+		p.add(boldText("Weighed"), fmt.Sprintf("%s kg (moisture 0 wt%%, %s)", sig3(wg.WetMassKg), shorten(wg.MoistureBasis, 80)))
+	} else if wg != nil {
 		p.add(boldText("Weighed"), fmt.Sprintf("%s kg wet, %s kg dry (moisture %s wt%%, %s)", sig3(wg.WetMassKg),
 			sig3(wg.DryMassKg.P50), sig3(wg.MoistureWtPct.P50), shorten(wg.MoistureBasis, 80)))
 	}

@@ -133,7 +133,9 @@ func writeSummaryText(w io.Writer, r *report.Report, command string) {
 	if r.Basis != "" {
 		fmt.Fprintf(w, "basis: %s\n", r.Basis)
 	}
-	if wg := r.Weighing; wg != nil {
+	if wg := r.Weighing; wg != nil && wg.MoistureWtPct.P90 == 0 {
+		fmt.Fprintf(w, "weighed %s (moisture 0 wt%%, %s)\n", FmtMass(wg.WetMassKg), intake.Printable(wg.MoistureBasis, 80))
+	} else if wg != nil {
 		fmt.Fprintf(w, "weighed %s wet, %s dry (moisture %s wt%%, %s)\n", FmtMass(wg.WetMassKg), FmtMass(wg.DryMassKg.P50),
 			Num(wg.MoistureWtPct.P50), intake.Printable(wg.MoistureBasis, 80))
 	}
