@@ -294,6 +294,7 @@ func TestExitCodes(t *testing.T) {
 		{"list from a day not in the calendar", []string{"lot", "list", "--from", "2026-13-01", "--db", "no-such.db"}, 2},
 		{"list to a month only", []string{"lot", "list", "--to", "2026-11", "--db", "no-such.db"}, 2},
 		{"export from a day not in the calendar", []string{"lot", "export", "--csv", "x.csv", "--from", "2026-02-30", "--db", "no-such.db"}, 2},
+		{"sulfate crystals from a chloride leach", []string{"demo", "--samples", "50", "--route", "hydrochloric", "--co-product", "sulfate"}, 2},
 		{"totals of a month not in the calendar", []string{"lot", "totals", "--month", "2026-13", "--db", "no-such.db"}, 2},
 	} {
 		t.Run(c.name, func(t *testing.T) {
@@ -688,6 +689,14 @@ func TestLotAddShowsWarnings(t *testing.T) {
 		if !strings.Contains(out, want) {
 			t.Errorf("lot add output lacks %q", want)
 		}
+	}
+}
+
+// A recovery flag the liquor cannot take names the stage it set.
+func TestRecoveryFlagRefusedNamesStage(t *testing.T) {
+	code, _, errs := cli(t, "", "demo", "--samples", "50", "--route", "hydrochloric", "--co-product", "sulfate")
+	if code != 2 || !strings.Contains(errs, "cobalt") {
+		t.Errorf("exit %d: %s", code, errs)
 	}
 }
 
