@@ -166,6 +166,9 @@ func TestBenchDay(t *testing.T) {
 		}
 	}
 	show := benchRun(t, "lot", "show", "HM-1001", "--db", db)
+	if first, _, _ := strings.Cut(show, "\n"); strings.ContainsAny(first, "[]") {
+		t.Errorf("lot show's versions printed as a Go slice: %q", first)
+	}
 	for _, want := range []string{"19.2 ± 0.192 kg dry", "< 0.0096", "Fe < 0.05 wt% (below the detection limit)", "not assayed, from the estimate"} {
 		if !strings.Contains(show, want) {
 			t.Errorf("lot show lacks %q:\n%s", want, show)

@@ -41,6 +41,9 @@ func newLotExportCmd(lo *lotOptions) *cobra.Command {
 }
 
 func runLotExport(w io.Writer, lo *lotOptions, f register.Filter, csvPath, xlsxPath string, force bool) error {
+	if err := checkFilter(f); err != nil {
+		return err
+	}
 	lots, err := lotQuery(lo, func(ctx context.Context, reg *register.Register) ([]register.Summary, error) {
 		return reg.List(ctx, f)
 	})

@@ -35,6 +35,20 @@ func newLotListCmd(lo *lotOptions) *cobra.Command {
 	return cmd
 }
 
+// checkFilter refuses a --from or --to that is not a day of the calendar, as a usage error,
+// before the register is opened.
+func checkFilter(f register.Filter) error {
+	for _, d := range []struct{ flag, val string }{{"--from", f.From}, {"--to", f.To}} {
+		if d.val == "" {
+			continue
+		}
+		if err := register.CheckDate(d.val); err != nil {
+			return usageError{fmt.Errorf("%s: %w", d.flag, err)}
+		}
+	}
+	return nil
+}
+
 // basisMark is the short mark of a basis in a table cell: m measured, e estimate.
 func basisMark(basis string) string {
 	if strings.HasPrefix(basis, register.BasisMeasured) {
@@ -44,6 +58,9 @@ func basisMark(basis string) string {
 }
 
 func runLotList(w io.Writer, lo *lotOptions, f register.Filter) error {
+	if err := checkFilter(f); err != nil {
+		return err
+	}
 	lots, err := lotQuery(lo, func(ctx context.Context, reg *register.Register) ([]register.Summary, error) {
 		return reg.List(ctx, f)
 	})
@@ -131,6 +148,9 @@ func newLotTotalsCmd(lo *lotOptions) *cobra.Command {
 }
 
 func runLotTotals(w io.Writer, lo *lotOptions, month string) error {
+	if err := register.CheckMonth(month); err != nil {
+		return usageError{fmt.Errorf("--month: %w", err)}
+	}
 	t, err := lotQuery(lo, func(ctx context.Context, reg *register.Register) (*register.Totals, error) {
 		return reg.MonthTotals(ctx, month)
 	})

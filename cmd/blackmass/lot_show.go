@@ -4,6 +4,8 @@ import (
 	"context"
 	"fmt"
 	"io"
+	"strconv"
+	"strings"
 	"text/tabwriter"
 
 	"github.com/spf13/cobra"
@@ -39,7 +41,11 @@ func runLotShow(w io.Writer, lo *lotOptions, id string) error {
 		return writeJSON(w, d)
 	}
 	ev := d.Evidence
-	fmt.Fprintf(w, "blackmass lot %s (version %d of %v)\n", intake.Printable(d.ID, 64), d.Version, d.Versions)
+	vs := make([]string, len(d.Versions))
+	for i, v := range d.Versions {
+		vs[i] = strconv.Itoa(v)
+	}
+	fmt.Fprintf(w, "blackmass lot %s (version %d; versions kept: %s)\n", intake.Printable(d.ID, 64), d.Version, strings.Join(vs, ", "))
 	fmt.Fprintf(w, "received %s from %s; added %s by blackmass %s\n", d.Received, intake.Printable(d.Supplier, 80), d.AddedAt, d.ToolVersion)
 	fmt.Fprintf(w, "manifest %s (sha256 %s…), %d lines, %d items, %.2f kWh\n", intake.Printable(d.ManifestName, 80), d.ManifestSHA256[:12],
 		d.Lines, d.Items, d.NameplateKWh)

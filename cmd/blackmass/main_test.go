@@ -291,6 +291,11 @@ func TestExitCodes(t *testing.T) {
 		{"malformed extraction", []string{"demo", "--extraction", "Co=="}, 2},
 		{"unknown-label rule", []string{"demo", "--unknown", "maybe"}, 2},
 		{"container without unit", []string{"demo", "--containers", "25 drum"}, 2},
+		{"list from a day not in the calendar", []string{"lot", "list", "--from", "2026-13-01", "--db", "no-such.db"}, 2},
+		{"list to a month only", []string{"lot", "list", "--to", "2026-11", "--db", "no-such.db"}, 2},
+		{"export from a day not in the calendar", []string{"lot", "export", "--csv", "x.csv", "--from", "2026-02-30", "--db", "no-such.db"}, 2},
+		{"sulfate crystals from a chloride leach", []string{"demo", "--samples", "50", "--route", "hydrochloric", "--co-product", "sulfate"}, 2},
+		{"totals of a month not in the calendar", []string{"lot", "totals", "--month", "2026-13", "--db", "no-such.db"}, 2},
 	} {
 		t.Run(c.name, func(t *testing.T) {
 			code, _, errs := cli(t, "", c.args...)
@@ -530,6 +535,10 @@ func TestScreensScale(t *testing.T) {
 			if !strings.HasPrefix(out, "blackmass quote") || strings.Contains(out, "\ndetail") {
 				t.Errorf("header or quiet wrong:\n%s", out)
 			}
+			// The summary alone still carries the safety cautions, not only the pointer to local codes.
+			if !strings.Contains(out, "Charged cells") || !strings.Contains(out, "Cobalt and nickel compounds") {
+				t.Errorf("--quiet without the safety cautions:\n%s", out)
+			}
 			for _, s := range c.want {
 				if !strings.Contains(out, s) {
 					t.Errorf("missing %q in:\n%s", s, out)
@@ -680,5 +689,28 @@ func TestLotAddShowsWarnings(t *testing.T) {
 		if !strings.Contains(out, want) {
 			t.Errorf("lot add output lacks %q", want)
 		}
+	}
+}
+
+// A recovery flag the liquor cannot take names the stage it set.
+func TestRecoveryFlagRefusedNamesStage(t *testing.T) {
+	code, _, errs := cli(t, "", "demo", "--samples", "50", "--route", "hydrochloric", "--co-product", "sulfate")
+	if code != 2 || !strings.Contains(errs, "cobalt") {
+		t.Errorf("exit %d: %s", code, errs)
+	}
+}
+
+// A quote weighed with no moisture says the mass is taken as dry, not that it was wet.
+func TestQuoteWeighedDryNotWet(t *testing.T) {
+	assay := filepath.Join("..", "..", "testdata", "assay-KR-2611.csv")
+	code, out, errs := cli(t, "", "quote", assay, "--mass", "212 kg", "--samples", "50", "--quiet")
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	if strings.Contains(out, "212 kg wet") {
+		t.Errorf("a weighing with no moisture printed as wet:\n%s", out)
+	}
+	if !strings.Contains(out, "weighed 212 kg") {
+		t.Errorf("no weighed line:\n%s", out)
 	}
 }

@@ -44,8 +44,8 @@ func TestDemoRecover(t *testing.T) {
 	}
 }
 
-// quote --recover plans the recovery of the quoted black mass's liquor; a sulfate product on a
-// chloride liquor is refused.
+// quote --recover plans the recovery of the quoted black mass's liquor; a sulfate product asked
+// by a flag on a chloride liquor is refused as a usage error.
 func TestQuoteRecover(t *testing.T) {
 	assay := filepath.Join("..", "..", "testdata", "assay-KR-2611.csv")
 	code, out, errs := cli(t, "", "quote", assay, "--mass", "1.2t", "--recover", "--samples", "200", "--li-product", "phosphate")
@@ -53,7 +53,7 @@ func TestQuoteRecover(t *testing.T) {
 		t.Errorf("quote --recover: exit %d, %s", code, errs)
 	}
 	code, _, errs = cli(t, "", "demo", "--route", "hydrochloric", "--recover", "--co-product", "sulfate", "--samples", "50")
-	if code != 1 || !strings.Contains(errs, "sulfate crystallisation needs a sulfate liquor") {
+	if code != 2 || !strings.Contains(errs, "sulfate crystallisation needs a sulfate liquor") {
 		t.Errorf("sulfate on chloride: exit %d, %s", code, errs)
 	}
 }

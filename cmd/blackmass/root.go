@@ -12,6 +12,7 @@ import (
 
 	"blackmass/cathode"
 	"blackmass/feed/leach"
+	"blackmass/feed/recover"
 	"blackmass/feed/run"
 )
 
@@ -36,8 +37,10 @@ func Main(args []string, in io.Reader, out, errOut io.Writer) int {
 		fmt.Fprintln(errOut, "blackmass:", err)
 		var ue usageError
 		var oe *run.OptionError
-		var le *leach.OptionError // a leach option out of its range is a mistake in the command line
-		if errors.As(err, &ue) || errors.As(err, &oe) || errors.As(err, &le) || strings.HasPrefix(err.Error(), "unknown command") {
+		var le *leach.OptionError      // a leach option out of its range is a mistake in the command line
+		var fe *recover.FlowsheetError // with no file, the flowsheet came from the flags
+		if errors.As(err, &ue) || errors.As(err, &oe) || errors.As(err, &le) || (errors.As(err, &fe) && fe.File == "") ||
+			strings.HasPrefix(err.Error(), "unknown command") {
 			fmt.Fprintln(errOut, "run 'blackmass help' for usage")
 			return exitUsage
 		}

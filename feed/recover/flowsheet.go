@@ -103,6 +103,7 @@ func DefaultFlowsheet() Flowsheet {
 type FlowsheetError struct {
 	File  string
 	Line  int
+	Kind  string // the stage's kind, named when the flowsheet has no file (made from the defaults and flags)
 	Field string
 	Err   error
 }
@@ -111,6 +112,9 @@ func (e *FlowsheetError) Error() string {
 	loc := e.File
 	if loc == "" {
 		loc = "flowsheet"
+		if e.Kind != "" {
+			loc += ", " + e.Kind + " stage"
+		}
 	}
 	if e.Line > 0 {
 		loc += ":" + strconv.Itoa(e.Line)
@@ -124,7 +128,7 @@ func (e *FlowsheetError) Error() string {
 func (e *FlowsheetError) Unwrap() error { return e.Err }
 
 func (f Flowsheet) fail(st Step, field, format string, a ...any) error {
-	return &FlowsheetError{File: f.File, Line: st.Line, Field: field, Err: fmt.Errorf(format, a...)}
+	return &FlowsheetError{File: f.File, Line: st.Line, Kind: st.Kind, Field: field, Err: fmt.Errorf(format, a...)}
 }
 
 // choices of each setting.

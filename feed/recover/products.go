@@ -26,7 +26,7 @@ func (p *planner) metalProduct(c *ctx, st Step, s *State, metal string) {
 }
 
 // electrowin plates the metal: M2+ + H2O -> M + 2 H+ + ½ O2 (the acid regenerated stays in the
-// spent electrolyte, which returns to the strip). Charge = 2F per mol / current efficiency; the
+// spent electrolyte, which returns to the strip); from a chloride electrolyte M2+ + 2 Cl- -> M + Cl2. Charge = 2F per mol / current efficiency; the
 // rest of the current makes hydrogen at the cathode (2 H+ + 2 e- -> H2).
 func (p *planner) electrowin(c *ctx, st Step, s *State, metal string) {
 	stage := metal2stage(metal)
@@ -46,16 +46,33 @@ func (p *planner) electrowin(c *ctx, st Step, s *State, metal string) {
 			n += x
 		}
 	}
-	s.FreeHMol += 2 * n
-	c.waterMol(s, -n)
-	c.gas("O2", n/2)
+	if p.anion == "Cl" {
+		// From a chloride electrolyte chlorine comes off at the anode: M2+ + 2 Cl- -> M + Cl2.
+		s.Mol["Cl"] -= 2 * n
+		c.gas("Cl2", n)
+	} else {
+		s.FreeHMol += 2 * n
+		c.waterMol(s, -n)
+		c.gas("O2", n/2)
+	}
 	charge := 2 * n * faradayCPerMol / ce // C
 	c.gas("H2", charge/faradayCPerMol/2-n)
 	c.tl.kWh[c.i] += charge * u / 3.6e6
 	c.tl.hours[c.i] += charge / 3600 / (st.CurrentDensityAPerM2 * st.CathodeAreaM2)
 	c.figure("current efficiency", ce)
 	c.figure("cell voltage, V", u)
-	c.figure("acid regenerated, kg H2SO4", n*p.t.molarMass("H2SO4")/1000)
+	if p.anion != "Cl" {
+		p.acidFigure(c, "acid regenerated", 2*n)
+	}
+}
+
+// acidFigure records the kg of the liquor's own acid (H2SO4 or HCl) that h mol of H+ make.
+func (p *planner) acidFigure(c *ctx, what string, h float64) {
+	if p.anion == "Cl" {
+		c.figure(what+", kg HCl", h*p.t.molarMass("HCl")/1000)
+		return
+	}
+	c.figure(what+", kg H2SO4", h/2*p.t.molarMass("H2SO4")/1000)
 }
 
 func metal2stage(metal string) string {
@@ -129,7 +146,7 @@ func (p *planner) oxalateProduct(c *ctx, s *State, metal string) {
 	s.Mol["C"] += 2 * (mol - n)
 	s.FreeHMol += 2 * n
 	c.waterMol(s, -2*n)
-	c.figure("acid freed, kg H2SO4", n*p.t.molarMass("H2SO4")/1000)
+	p.acidFigure(c, "acid freed", 2*n)
 	c.cake(s, phase, p.val(c, "product", "cake_wet_ratio"))
 }
 

@@ -319,7 +319,7 @@ func (p *planner) fates(res *results, dest map[string]map[string][]float64) []Fa
 // stageReport summarises one stage.
 func (p *planner) stageReport(st Step, tl *tally) StageReport {
 	sr := StageReport{Kind: st.Kind, Setting: st.String(), Description: stageDescription(st),
-		Cautions: stageCautions(st)}
+		Cautions: stageCautions(st, p.anion)}
 	sr.Reagents = p.reagentRows(tl.reagentMol)
 	for _, name := range tl.solidOrder {
 		if s, ok := p.solid(st.Kind, tl.solids[name]); ok {
@@ -490,8 +490,8 @@ func stageDescription(st Step) string {
 	return ""
 }
 
-// stageCautions are the usual cautions of a stage.
-func stageCautions(st Step) []string {
+// stageCautions are the usual cautions of a stage on a liquor of the anion given (SO4 or Cl).
+func stageCautions(st Step, anion string) []string {
 	var c []string
 	switch st.Kind {
 	case KindImpurity:
@@ -524,7 +524,11 @@ func stageCautions(st Step) []string {
 		c = append(c, "Solvent extraction diluents are flammable: no ignition sources, earthing, ventilation, fire protection.",
 			"Organophosphorus extractants are skin and eye irritants; saponification with caustic is exothermic.")
 	case KindCobalt, KindNickel:
-		if st.Product == "electrowin" {
+		if st.Product == "electrowin" && anion == "Cl" {
+			c = append(c, "Electrowinning from a chloride electrolyte gives chlorine (Cl2, toxic) at the anode and some "+
+				"hydrogen at the cathode: hooded anodes, the off-gas to a caustic scrubber, chlorine detection, "+
+				"no ignition sources; live busbars.")
+		} else if st.Product == "electrowin" {
 			c = append(c, "Electrowinning gives acid mist and O2 at the anode and some hydrogen at the cathode: extraction, "+
 				"mist suppression, no ignition sources; live busbars.")
 		}
@@ -532,7 +536,11 @@ func stageCautions(st Step) []string {
 	case KindLithium:
 		c = append(c, "Hot carbonation liquor near boiling: scald risk; lithium compounds are harmful if swallowed.")
 	case KindEffluent:
-		c = append(c, "The effluent holds sodium sulfate and traces of metals: discharge only as the local permit allows.")
+		salt := "sodium sulfate"
+		if anion == "Cl" {
+			salt = "sodium chloride"
+		}
+		c = append(c, "The effluent holds "+salt+" and traces of metals: discharge only as the local permit allows.")
 	}
 	return append(c, "Follow local codes, the suppliers' safety data sheets and licensed practice.")
 }

@@ -4,9 +4,25 @@ import (
 	"errors"
 	"fmt"
 	"strings"
+	"time"
 
 	"blackmass/feed/intake"
 )
+
+// CheckDate checks a date (YYYY-MM-DD) given to filter the lots, before the register is opened;
+// List refuses the same.
+func CheckDate(d string) error {
+	_, err := date(d)
+	return err
+}
+
+// CheckMonth checks a month (YYYY-MM) before the register is opened; MonthTotals refuses the same.
+func CheckMonth(month string) error {
+	if _, err := time.Parse("2006-01", month); err != nil {
+		return fmt.Errorf("month %q: want YYYY-MM", intake.Printable(month, 20))
+	}
+	return nil
+}
 
 // CheckLot checks what a lot is recorded under, its id and the date it was received
 // (YYYY-MM-DD), before anything is estimated or any file is opened.

@@ -44,6 +44,12 @@ func (w *writer) summary() error {
 	if r.Basis != "" {
 		p.add(boldText("Basis"), r.Basis)
 	}
+	if wg := r.Weighing; wg != nil && wg.MoistureWtPct.P90 == 0 {
+		p.add(boldText("Weighed"), fmt.Sprintf("%s kg (moisture 0 wt%%, %s)", sig3(wg.WetMassKg), shorten(wg.MoistureBasis, 80)))
+	} else if wg != nil {
+		p.add(boldText("Weighed"), fmt.Sprintf("%s kg wet, %s kg dry (moisture %s wt%%, %s)", sig3(wg.WetMassKg),
+			sig3(wg.DryMassKg.P50), sig3(wg.MoistureWtPct.P50), shorten(wg.MoistureBasis, 80)))
+	}
 	p.add(boldText("Monte Carlo"), fmt.Sprintf("%d samples, seed %d; P10, P50, P90: 10th, 50th, 90th percentiles", in.Samples, in.Seed))
 	p.blank()
 	if err := w.summaryMetals(p); err != nil {

@@ -25,7 +25,7 @@ import (
 func Write(w io.Writer, r *report.Report, command string, quiet bool) {
 	writeSummaryText(w, r, command)
 	if quiet {
-		fmt.Fprintln(w, "\nsafety: "+r.Safety[len(r.Safety)-1])
+		writeSafety(w, r)
 		return
 	}
 	fmt.Fprintln(w, "\ndetail")
@@ -133,7 +133,9 @@ func writeSummaryText(w io.Writer, r *report.Report, command string) {
 	if r.Basis != "" {
 		fmt.Fprintf(w, "basis: %s\n", r.Basis)
 	}
-	if wg := r.Weighing; wg != nil {
+	if wg := r.Weighing; wg != nil && wg.MoistureWtPct.P90 == 0 {
+		fmt.Fprintf(w, "weighed %s (moisture 0 wt%%, %s)\n", FmtMass(wg.WetMassKg), intake.Printable(wg.MoistureBasis, 80))
+	} else if wg != nil {
 		fmt.Fprintf(w, "weighed %s wet, %s dry (moisture %s wt%%, %s)\n", FmtMass(wg.WetMassKg), FmtMass(wg.DryMassKg.P50),
 			Num(wg.MoistureWtPct.P50), intake.Printable(wg.MoistureBasis, 80))
 	}
@@ -321,6 +323,11 @@ func writeTail(w io.Writer, r *report.Report) {
 		fmt.Fprintln(w)
 		WriteMix(w, r.Mix)
 	}
+	writeSafety(w, r)
+}
+
+// writeSafety prints the report's safety cautions.
+func writeSafety(w io.Writer, r *report.Report) {
 	fmt.Fprintln(w, "\nsafety:")
 	for _, s := range r.Safety {
 		fmt.Fprintln(w, "  - "+s)
