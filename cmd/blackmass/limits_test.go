@@ -21,3 +21,17 @@ func TestQuoteAssayCapped(t *testing.T) {
 		t.Errorf("exit %d: %s", code, stderr)
 	}
 }
+
+// A lot recorded without a supplier says so in lot show, rather than "from ;".
+func TestLotShowWithoutSupplier(t *testing.T) {
+	t.Parallel()
+	db := filepath.Join(t.TempDir(), "r.db")
+	if code, _, errs := cli(t, "", "lot", "add", "../../data/demo/lot-KR-2611.csv", "--lot", "NS-1", "--db", db,
+		"--samples", "100", "--received", "2026-11-30"); code != 0 {
+		t.Fatalf("lot add: %s", errs)
+	}
+	code, out, errs := cli(t, "", "lot", "show", "NS-1", "--db", db)
+	if code != 0 || strings.Contains(out, "from ;") || !strings.Contains(out, "received 2026-11-30, no supplier given") {
+		t.Errorf("exit %d: %s%s", code, out, errs)
+	}
+}

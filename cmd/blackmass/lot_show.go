@@ -46,7 +46,11 @@ func runLotShow(w io.Writer, lo *lotOptions, id string) error {
 		vs[i] = strconv.Itoa(v)
 	}
 	fmt.Fprintf(w, "blackmass lot %s (version %d; versions kept: %s)\n", intake.Printable(d.ID, 64), d.Version, strings.Join(vs, ", "))
-	fmt.Fprintf(w, "received %s from %s; added %s by blackmass %s\n", d.Received, intake.Printable(d.Supplier, 80), d.AddedAt, d.ToolVersion)
+	from := ", no supplier given"
+	if d.Supplier != "" {
+		from = " from " + intake.Printable(d.Supplier, 80)
+	}
+	fmt.Fprintf(w, "received %s%s; added %s by blackmass %s\n", d.Received, from, d.AddedAt, d.ToolVersion)
 	fmt.Fprintf(w, "manifest %s (sha256 %s…), %d lines, %d items, %.2f kWh\n", intake.Printable(d.ManifestName, 80), d.ManifestSHA256[:12],
 		d.Lines, d.Items, d.NameplateKWh)
 	fmt.Fprintf(w, "figures rest on: %s\n", basisText(d.Basis))
