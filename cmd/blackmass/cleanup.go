@@ -1,8 +1,6 @@
 package main
 
 import (
-	"blackmass/feed/report"
-	"blackmass/feed/run"
 	"os"
 	"os/signal"
 	"sync"
@@ -59,12 +57,4 @@ func scratchDir() (dir string, done func()) {
 		stop()
 		_ = os.RemoveAll(dir)
 	}
-}
-
-// estimate runs the estimate with a private scratch directory for the .xlsx reader.
-func estimate(t *run.Tables, ro run.Options, m run.Manifest) (*report.Report, error) {
-	scratch, done := scratchDir()
-	defer done()
-	ro.TempDir = scratch
-	return run.Estimate(t, ro, m)
 }

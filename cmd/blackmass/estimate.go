@@ -266,3 +266,11 @@ func writeJSON(w io.Writer, v any) error {
 	enc.SetIndent("", "  ")
 	return enc.Encode(v)
 }
+
+// estimate runs the estimate with a private scratch directory for the .xlsx reader.
+func estimate(t *run.Tables, ro run.Options, m run.Manifest) (*report.Report, error) {
+	scratch, done := scratchDir()
+	defer done()
+	ro.TempDir = scratch
+	return run.Estimate(t, ro, m)
+}

@@ -39,7 +39,7 @@ func (l *leachFlags) bind(cmd *cobra.Command) {
 	d := leach.DefaultOptions()
 	fl := cmd.Flags()
 	l.flags = fl
-	fl.StringVar(&l.planPath, "plan", "", "leach plan file: lines \"key = value\" with the leach flag names (flags on the command line win)")
+	fl.StringVar(&l.planPath, "plan", "", "leach plan file: lines \"key = value\" with the leach flag names, and calibrated and db where the command takes them (flags on the command line win)")
 	fl.StringVar(&l.route, "route", d.Route.String(), "leach route: sulfuric-peroxide, hydrochloric or sulfuric-selective")
 	leachNumber(fl, &l.opt.AcidWtPct, "acid-strength", 0, "acid bought, wt% (default 98 for H2SO4, 32 for HCl)")
 	leachNumber(fl, &l.opt.H2O2WtPct, "h2o2-strength", d.H2O2WtPct, "hydrogen peroxide bought, wt%")

@@ -1,14 +1,16 @@
 package main
 
 import (
+	"fmt"
 	"os"
 	"path/filepath"
 	"strings"
 	"testing"
+	"time"
 )
 
-// An assay far past the side files' cap is refused by name at the cap, without being read
-// whole first.
+// An assay far past the side files' cap is refused by name at the cap; an endless one
+// (/dev/zero) is refused too, promptly, because it is never read whole.
 func TestQuoteAssayCapped(t *testing.T) {
 	t.Parallel()
 	path := filepath.Join(t.TempDir(), "assay.csv")
@@ -19,6 +21,22 @@ func TestQuoteAssayCapped(t *testing.T) {
 	code, _, stderr := cli(t, "", "quote", path, "--mass", "100kg")
 	if code == 0 || !strings.Contains(stderr, "assay.csv") || !strings.Contains(stderr, "larger than 1024 KiB") {
 		t.Errorf("exit %d: %s", code, stderr)
+	}
+	if _, err := os.Stat("/dev/zero"); err != nil {
+		return
+	}
+	done := make(chan string, 1)
+	go func() {
+		code, _, stderr := cli(t, "", "quote", "/dev/zero", "--mass", "100kg")
+		done <- fmt.Sprintf("%d %s", code, stderr)
+	}()
+	select {
+	case got := <-done:
+		if strings.HasPrefix(got, "0 ") || !strings.Contains(got, "/dev/zero") {
+			t.Errorf("endless assay: %s", got)
+		}
+	case <-time.After(20 * time.Second):
+		t.Error("an endless assay was still being read after 20 s")
 	}
 }
 

@@ -21,9 +21,9 @@ const maxLiquorGPerL = 500
 // ferric, in the same units; free_acid mol/L of the anion's acid; anion sulfate (SO4) or chloride
 // (Cl); volume L or m3, which --volume may give instead. Errors name the file, line and column.
 func ReadLiquor(r io.Reader, name string) (*recover.Measured, error) {
-	br := data.SkipBOM(data.CapBytes(r, data.MaxTableBytes))
-	if err := data.CheckEncoding(br); err != nil {
-		return nil, &Error{File: name, Reason: err.Error()}
+	br, err := openSideFile(r, name)
+	if err != nil {
+		return nil, err
 	}
 	cr := data.NewCSVReader(br, ',')
 	cr.FieldsPerRecord = -1
