@@ -5,6 +5,7 @@ import (
 	"maps"
 	"math"
 	"slices"
+	"sync"
 
 	"blackmass/cathode"
 	"blackmass/feed/dist"
@@ -232,11 +233,38 @@ func (p *leachPlanner) feedMol(i, k int) float64 {
 	return f
 }
 
-// run doses and dissolves every sample.
+// run doses and dissolves every sample. The samples are shared out in contiguous ranges, each
+// planned on a copy of the planner with its own buffers (a sample writes only its own entries),
+// so the plan is the same whatever the number of processors; the error reported is that of the
+// first failing sample.
 func (p *leachPlanner) run() error {
+	var mu sync.Mutex
+	firstLo, grown := p.n, 0
+	var first error
+	dist.Split(p.n, func(lo, hi int) {
+		q := *p
+		q.molBuf, q.donorBuf, q.grown = nil, nil, 0
+		err := q.runRange(lo, hi)
+		mu.Lock()
+		defer mu.Unlock()
+		grown += q.grown
+		if err != nil && lo < firstLo {
+			firstLo, first = lo, err
+		}
+	})
+	if first != nil {
+		return first
+	}
+	p.grown = grown
+	p.ext, p.lattice = nil, nil // the per-sample extraction and lattice-oxygen draws are spent
+	return nil
+}
+
+// runRange doses and dissolves samples lo to hi.
+func (p *leachPlanner) runRange(lo, hi int) error {
 	protons := p.route.AcidProtons()
 	inf := math.Inf(1)
-	for i := range p.n {
+	for i := lo; i < hi; i++ {
 		plan := p.plan(i)
 		// Full dissolution: complete, but on the selective route, which leaves the oxides, the
 		// most it dissolves (the top of its extraction ranges); never less than planned.
@@ -305,7 +333,6 @@ func (p *leachPlanner) run() error {
 		p.res[i] = got.kept()
 		p.waterKg[i] = p.liquorWaterKg(i)
 	}
-	p.ext, p.lattice = nil, nil // the per-sample extraction and lattice-oxygen draws are spent
 	return nil
 }
 

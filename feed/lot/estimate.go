@@ -116,49 +116,33 @@ func (l *Lot) draw(ps *paramSet, n int, fac [][][]float64) *Samples {
 	for c := range s.Compounds {
 		s.Compounds[c] = make([]float64, n)
 	}
-	bm := make([]float64, nc)
 	cam, gbm := make([]float64, n), make([]float64, n) // one group's, summarised before the next
 	for _, g := range l.order {
-		volt, capa := ps.chemDraws(g.chem)
+		gd := groupDraws{g: g, s: s, s0: s0, cam: cam, gbm: gbm, ps: ps}
+		gd.volt, gd.capa = ps.chemDraws(g.chem)
 		shares := ps.shareDraws(g.chem, g.chem.Key+"/"+g.format.String(), g.items)
-		mo := ps.massOnlyDraws(g)
-		arealLo, arealHi := ps.arealBounds(g.chem, g.format)
-		chemAreal := ps.chemAreal(g.chem)
-		fd := ps.format(g.format)
+		gd.mo = ps.massOnlyDraws(g)
+		gd.arealLo, gd.arealHi = ps.arealBounds(g.chem, g.format)
+		gd.chemAreal = ps.chemAreal(g.chem)
+		gd.fd = ps.format(g.format)
 		// Only the group's own compounds can be non-zero: the fixed ones and its cathodes. Summing
 		// just those keeps the cost per group independent of how many chemistries the lot holds.
-		touched := append(fixedIndices(), g.camIdx...)
-		terms := l.elementTerms(touched)
+		gd.touched = append(fixedIndices(), g.camIdx...)
+		terms := l.elementTerms(gd.touched)
+		gd.terms = terms
 		for _, t := range terms {
-			clear(s0[t.e])
+			clear(s0[t.e][:n])
 		}
-		for i := range n {
-			for _, c := range touched {
-				bm[c] = 0
+		// The shares are one stream, drawn in turn a block at a time; the block's samples are then
+		// modelled side by side, each writing only its own entries.
+		k := len(g.chem.MeanShares())
+		gd.shares = make([]float64, min(n, shareBlock)*k)
+		for b0 := 0; b0 < n; b0 += shareBlock {
+			b1 := min(b0+shareBlock, n)
+			for i := b0; i < b1; i++ {
+				copy(gd.shares[(i-b0)*k:(i-b0+1)*k], shares.next())
 			}
-			sh, fr, gl := shares.next(), fd.at(i), ps.global(i)
-			if chemAreal != nil {
-				fr.arealMAhCm2 = chemAreal[i]
-			}
-			mx := mixAt(g.chem.Components, sh, volt, capa, i)
-			b := model(max(g.energyWh-g.weighedWh, 0)+mo.wh(i, sh), max(g.chargeAh-g.weighedAh, 0), mx, fr, gl)
-			b.blackMass(bm, fr, gl, g.camIdx, sh)
-			if g.weighedKg > 0 { // the weighed lines: their design fitted to their weight
-				fw := weighed(g.weighedWh, g.weighedAh, mx, fr, gl, g.weighedKg*1000, arealLo, arealHi)
-				bw := model(g.weighedWh, g.weighedAh, mx, fw, gl)
-				bw.blackMass(bm, fw, gl, g.camIdx, sh)
-				b.cam += bw.cam
-			}
-			tot := 0.0
-			for _, c := range touched {
-				m := bm[c] / 1000
-				s.Compounds[c][i] += m
-				tot += m
-			}
-			cam[i], gbm[i] = b.cam/1000, tot
-			for _, t := range terms {
-				s0[t.e][i] += bm[t.c] / 1000 * t.f
-			}
+			dist.Split(b1-b0, func(lo, hi int) { gd.model(b0, b0+lo, b0+hi, k) })
 		}
 		s.groupCAM, s.groupBM = append(s.groupCAM, dist.Summarise(cam)), append(s.groupBM, dist.Summarise(gbm))
 		s.groupEl = append(s.groupEl, l.groupElements(s, s0, terms, fac))
@@ -177,6 +161,60 @@ func (l *Lot) draw(ps *paramSet, n int, fac [][][]float64) *Samples {
 		}
 	}
 	return s
+}
+
+// shareBlock is how many samples' shares are drawn before they are modelled.
+const shareBlock = 16384
+
+// groupDraws is what one group's samples are modelled from, and where they go.
+type groupDraws struct {
+	g                *group
+	s                *Samples
+	s0               [][]float64
+	cam, gbm         []float64
+	ps               *paramSet
+	volt, capa       [][]float64
+	mo               massOnly
+	arealLo, arealHi float64
+	chemAreal        []float64
+	fd               *formatDraws
+	touched          []int
+	terms            []term
+	shares           []float64 // [sample−b0][component] of the block drawn
+}
+
+// model models the group's samples lo to hi of the block that starts at b0, with k components.
+func (gd *groupDraws) model(b0, lo, hi, k int) {
+	g, s, ps := gd.g, gd.s, gd.ps
+	bm := make([]float64, s.comp.n())
+	for i := lo; i < hi; i++ {
+		for _, c := range gd.touched {
+			bm[c] = 0
+		}
+		sh, fr, gl := gd.shares[(i-b0)*k:(i-b0+1)*k], gd.fd.at(i), ps.global(i)
+		if gd.chemAreal != nil {
+			fr.arealMAhCm2 = gd.chemAreal[i]
+		}
+		mx := mixAt(g.chem.Components, sh, gd.volt, gd.capa, i)
+		b := model(max(g.energyWh-g.weighedWh, 0)+gd.mo.wh(i, sh), max(g.chargeAh-g.weighedAh, 0), mx, fr, gl)
+		b.blackMass(bm, fr, gl, g.camIdx, sh)
+		if g.weighedKg > 0 { // the weighed lines: their design fitted to their weight
+			fw := weighed(g.weighedWh, g.weighedAh, mx, fr, gl, g.weighedKg*1000, gd.arealLo, gd.arealHi)
+			bw := model(g.weighedWh, g.weighedAh, mx, fw, gl)
+			bw.blackMass(bm, fw, gl, g.camIdx, sh)
+			b.cam += bw.cam
+		}
+		tot := 0.0
+		for _, c := range gd.touched {
+			m := bm[c] / 1000
+			s.Compounds[c][i] += m
+			tot += m
+		}
+		gd.cam[i], gd.gbm[i] = b.cam/1000, tot
+		for _, t := range gd.terms {
+			gd.s0[t.e][i] += bm[t.c] / 1000 * t.f
+		}
+	}
 }
 
 // term is one element of one compound: kg of element e per kg of compound c.
@@ -208,19 +246,23 @@ func (l *Lot) groupElements(s *Samples, s0 [][]float64, terms []term, fac [][][]
 		}
 	}
 	gi := len(s.groupEl)
-	out := map[string]dist.Stat{}
+	var es []int // the group's elements, each once
 	for _, t := range terms {
-		sym := l.comp.elements[t.e]
-		if _, done := out[sym]; done {
-			continue
+		if !slices.Contains(es, t.e) {
+			es = append(es, t.e)
 		}
-		out[sym] = dist.Summarise(s0[t.e])
+	}
+	stats := make([]dist.Stat, len(es))
+	dist.Each(len(es), func(k int) { stats[k] = dist.Summarise(s0[es[k]]) })
+	out := make(map[string]dist.Stat, len(es))
+	for k, e := range es {
+		out[l.comp.elements[e]] = stats[k]
 		if fac == nil {
 			continue
 		}
-		f := fac[gi][t.e]
-		for i, kg := range s0[t.e] {
-			s.Elements[t.e][i] += kg * f[i%len(f)]
+		f := fac[gi][e]
+		for i, kg := range s0[e] {
+			s.Elements[e][i] += kg * f[i%len(f)]
 		}
 	}
 	return out
@@ -261,12 +303,24 @@ func (l *Lot) result(s *Samples) *Result {
 	}
 	r.Warnings = append(r.Warnings, l.lotWarnings(r)...)
 	r.BlackMassKg = dist.Summarise(s.BlackMass)
+	// Each summary reads its own draws: they are made side by side, then filed in order.
+	ne := len(l.comp.elements)
+	amounts, present := make([]dist.Amount, ne+len(l.comp.names)), make([]bool, ne+len(l.comp.names))
+	dist.Each(len(amounts), func(k int) {
+		x := s.Elements[min(k, ne-1)]
+		if k >= ne {
+			x = s.Compounds[k-ne]
+		}
+		if present[k] = k < ne || slices.Max(x) > 0; present[k] {
+			amounts[k] = dist.AmountOf(x, s.BlackMass)
+		}
+	})
 	for e, sym := range l.comp.elements {
-		r.Elements[sym] = dist.AmountOf(s.Elements[e], s.BlackMass)
+		r.Elements[sym] = amounts[e]
 	}
 	for c, name := range l.comp.names {
-		if slices.Max(s.Compounds[c]) > 0 {
-			r.Compounds[name] = dist.AmountOf(s.Compounds[c], s.BlackMass)
+		if present[ne+c] {
+			r.Compounds[name] = amounts[ne+c]
 		}
 	}
 	for gi, g := range l.order {

@@ -159,3 +159,37 @@ func BenchmarkDemoPerSample(b *testing.B) {
 	b.ReportMetric(float64(after.TotalAlloc-before.TotalAlloc)/float64(b.N)/samples, "B-alloc/sample")
 	b.ReportMetric(float64(held)/samples, "B-held/sample")
 }
+
+// TestSameOnAnyProcessors runs the demo lot, with the leach plan, at a sample count the Monte
+// Carlo and the leach planner share out across processors, on one, two and three of them: the
+// report must be byte for byte the same (each sample is modelled on its own, streams are named).
+func TestSameOnAnyProcessors(t *testing.T) {
+	demo, err := os.ReadFile("../../data/demo/lot-KR-2611.csv")
+	if err != nil {
+		t.Fatal(err)
+	}
+	tb, err := run.DefaultTables()
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer runtime.GOMAXPROCS(runtime.GOMAXPROCS(0))
+	var first []byte
+	for _, procs := range []int{1, 2, 3} {
+		runtime.GOMAXPROCS(procs)
+		o := leach.DefaultOptions()
+		r, err := run.Estimate(tb, run.Options{Seed: 7, Samples: 20_000, Leach: &o, UnknownAsPrior: true, KeepLines: true},
+			run.Manifest{Name: "demo.csv", R: strings.NewReader(string(demo))})
+		if err != nil {
+			t.Fatal(err)
+		}
+		var b strings.Builder
+		if err := r.WriteJSON(&b); err != nil {
+			t.Fatal(err)
+		}
+		if procs == 1 {
+			first = []byte(b.String())
+		} else if b.String() != string(first) {
+			t.Errorf("the report on %d processors differs from the one on 1", procs)
+		}
+	}
+}
