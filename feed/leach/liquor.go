@@ -70,9 +70,20 @@ func (p *leachPlanner) report() (*Report, error) {
 	lr := &Report{Route: p.route.String(), Settings: p.opt, Gases: map[string]Gas{}, Saturation: map[string]dist.Stat{},
 		SaturationAtC: map[string]float64{}, GasReference: "ideal gas at 0 °C and 101.325 kPa (22.414 L/mol)",
 		Safety: leachSafety[p.route], Extraction: p.ranges}
-	acidR, redR := p.reagents(lr)
-	p.gases(lr)
-	p.liquor(lr)
+	// The reagents, the gases and the liquor read the samples and fill fields of their own:
+	// they are summarised side by side.
+	var acidR Reagent
+	var redR *Reagent
+	dist.Each(3, func(k int) {
+		switch k {
+		case 0:
+			acidR, redR = p.reagents(lr)
+		case 1:
+			p.gases(lr)
+		default:
+			p.liquor(lr)
+		}
+	})
 	p.liquorSamples(lr)
 	p.limits(lr)
 	p.saturation(lr)

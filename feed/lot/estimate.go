@@ -6,6 +6,7 @@ import (
 	"errors"
 	"fmt"
 	"slices"
+	"sync"
 )
 
 // Samples holds every Monte Carlo draw of the lot's black mass, by compound (kg), so that later
@@ -133,16 +134,25 @@ func (l *Lot) draw(ps *paramSet, n int, fac [][][]float64) *Samples {
 		for _, t := range terms {
 			clear(s0[t.e][:n])
 		}
-		// The shares are one stream, drawn in turn a block at a time; the block's samples are then
-		// modelled side by side, each writing only its own entries.
+		// The shares are one stream, drawn in turn a block at a time (the next block while this
+		// one is modelled); a block's samples are modelled side by side, each writing only its
+		// own entries.
 		k := len(g.chem.MeanShares())
-		gd.shares = make([]float64, min(n, shareBlock)*k)
-		for b0 := 0; b0 < n; b0 += shareBlock {
-			b1 := min(b0+shareBlock, n)
-			for i := b0; i < b1; i++ {
-				copy(gd.shares[(i-b0)*k:(i-b0+1)*k], shares.next())
+		bufs := [2][]float64{make([]float64, min(n, shareBlock)*k), make([]float64, min(n, shareBlock)*k)}
+		fill := func(buf []float64, b0 int) {
+			for i := b0; i < min(b0+shareBlock, n); i++ {
+				copy(buf[(i-b0)*k:(i-b0+1)*k], shares.next())
 			}
-			dist.Split(b1-b0, func(lo, hi int) { gd.model(b0, b0+lo, b0+hi, k) })
+		}
+		fill(bufs[0], 0)
+		for b0, j := 0, 0; b0 < n; b0, j = b0+shareBlock, 1-j {
+			b1 := min(b0+shareBlock, n)
+			var next sync.WaitGroup
+			if b1 < n {
+				next.Go(func() { fill(bufs[1-j], b1) })
+			}
+			dist.Split(b1-b0, func(lo, hi int) { gd.model(bufs[j], b0, b0+lo, b0+hi, k) })
+			next.Wait()
 		}
 		s.groupCAM, s.groupBM = append(s.groupCAM, dist.Summarise(cam)), append(s.groupBM, dist.Summarise(gbm))
 		s.groupEl = append(s.groupEl, l.groupElements(s, s0, terms, fac))
@@ -180,18 +190,18 @@ type groupDraws struct {
 	fd               *formatDraws
 	touched          []int
 	terms            []term
-	shares           []float64 // [sample−b0][component] of the block drawn
 }
 
-// model models the group's samples lo to hi of the block that starts at b0, with k components.
-func (gd *groupDraws) model(b0, lo, hi, k int) {
+// model models the group's samples lo to hi of the block that starts at b0, whose shares are
+// shares ([sample−b0][component], k components).
+func (gd *groupDraws) model(shares []float64, b0, lo, hi, k int) {
 	g, s, ps := gd.g, gd.s, gd.ps
 	bm := make([]float64, s.comp.n())
 	for i := lo; i < hi; i++ {
 		for _, c := range gd.touched {
 			bm[c] = 0
 		}
-		sh, fr, gl := gd.shares[(i-b0)*k:(i-b0+1)*k], gd.fd.at(i), ps.global(i)
+		sh, fr, gl := shares[(i-b0)*k:(i-b0+1)*k], gd.fd.at(i), ps.global(i)
 		if gd.chemAreal != nil {
 			fr.arealMAhCm2 = gd.chemAreal[i]
 		}
