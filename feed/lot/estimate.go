@@ -132,7 +132,7 @@ func (l *Lot) draw(ps *paramSet, n int, fac [][][]float64) *Samples {
 		terms := l.elementTerms(gd.touched)
 		gd.terms = terms
 		for _, t := range terms {
-			clear(s0[t.e][:n])
+			clear(s0[t.e])
 		}
 		// The shares are one stream, drawn in turn a block at a time (the next block while this
 		// one is modelled); a block's samples are modelled side by side, each writing only its
@@ -317,8 +317,10 @@ func (l *Lot) result(s *Samples) *Result {
 	ne := len(l.comp.elements)
 	amounts, present := make([]dist.Amount, ne+len(l.comp.names)), make([]bool, ne+len(l.comp.names))
 	dist.Each(len(amounts), func(k int) {
-		x := s.Elements[min(k, ne-1)]
-		if k >= ne {
+		var x []float64
+		if k < ne {
+			x = s.Elements[k]
+		} else {
 			x = s.Compounds[k-ne]
 		}
 		if present[k] = k < ne || slices.Max(x) > 0; present[k] {
