@@ -266,39 +266,6 @@ func (d *Drawer) Draws(key string, lo, mode, hi float64) []float64 {
 	if v, ok := d.cache[key]; ok {
 		return v
 	}
-	out := d.draw(key, lo, mode, hi)
-	d.cache[key] = out
-	return out
-}
-
-// Want names a parameter to draw and its range, for Prefetch.
-type Want struct {
-	Key          string
-	Lo, Mode, Hi float64
-}
-
-// Prefetch draws the parameters asked for that are not drawn yet, side by side (each stream is
-// its own), so that Draws then finds them.
-func (d *Drawer) Prefetch(ws []Want) {
-	if d.samples == 0 {
-		return
-	}
-	out := make([][]float64, len(ws))
-	Each(len(ws), func(k int) {
-		if _, ok := d.cache[ws[k].Key]; !ok {
-			w := ws[k]
-			out[k] = d.draw(w.Key, w.Lo, w.Mode, w.Hi)
-		}
-	})
-	for k, w := range ws {
-		if _, ok := d.cache[w.Key]; !ok && out[k] != nil {
-			d.cache[w.Key] = out[k]
-		}
-	}
-}
-
-// draw makes the draws of the parameter named key.
-func (d *Drawer) draw(key string, lo, mode, hi float64) []float64 {
 	out := make([]float64, d.samples)
 	if hi == lo {
 		for i := range out {
@@ -313,6 +280,7 @@ func (d *Drawer) draw(key string, lo, mode, hi float64) []float64 {
 			out[i] = tri.Quantile(u.Float64())
 		}
 	}
+	d.cache[key] = out
 	return out
 }
 

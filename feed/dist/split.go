@@ -3,6 +3,7 @@ package dist
 import (
 	"runtime"
 	"sync"
+	"sync/atomic"
 )
 
 // splitMin is the smallest share of samples worth a goroutine of its own.
@@ -36,18 +37,10 @@ func Each(n int, f func(i int)) {
 		return
 	}
 	var wg sync.WaitGroup
-	var mu sync.Mutex
-	next := 0
+	var next atomic.Int64 // the next i to take
 	for range w {
 		wg.Go(func() {
-			for {
-				mu.Lock()
-				i := next
-				next++
-				mu.Unlock()
-				if i >= n {
-					return
-				}
+			for i := int(next.Add(1) - 1); i < n; i = int(next.Add(1) - 1) {
 				f(i)
 			}
 		})

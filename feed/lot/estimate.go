@@ -129,9 +129,8 @@ func (l *Lot) draw(ps *paramSet, n int, fac [][][]float64) *Samples {
 		// Only the group's own compounds can be non-zero: the fixed ones and its cathodes. Summing
 		// just those keeps the cost per group independent of how many chemistries the lot holds.
 		gd.touched = append(fixedIndices(), g.camIdx...)
-		terms := l.elementTerms(gd.touched)
-		gd.terms = terms
-		for _, t := range terms {
+		gd.terms = l.elementTerms(gd.touched)
+		for _, t := range gd.terms {
 			clear(s0[t.e])
 		}
 		// The shares are one stream, drawn in turn a block at a time (the next block while this
@@ -155,7 +154,7 @@ func (l *Lot) draw(ps *paramSet, n int, fac [][][]float64) *Samples {
 			next.Wait()
 		}
 		s.groupCAM, s.groupBM = append(s.groupCAM, dist.Summarise(cam)), append(s.groupBM, dist.Summarise(gbm))
-		s.groupEl = append(s.groupEl, l.groupElements(s, s0, terms, fac))
+		s.groupEl = append(s.groupEl, l.groupElements(s, s0, gd.terms, fac))
 	}
 	for c, fr := range l.comp.fractions {
 		for i, m := range s.Compounds[c] {

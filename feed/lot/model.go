@@ -181,11 +181,6 @@ type formatDraws struct {
 func newParamSet(m *Model, seed uint64, samples int) *paramSet {
 	ps := &paramSet{m: m, d: dist.NewDrawer(seed, samples), formats: map[manifest.Format]*formatDraws{}}
 	ps.globals = make([][]float64, len(globalNames))
-	ws := make([]dist.Want, len(globalNames))
-	for i, name := range globalNames {
-		ws[i] = ps.want("all", name)
-	}
-	ps.d.Prefetch(ws)
 	for i, name := range globalNames {
 		ps.globals[i] = ps.values("all", name)
 	}
@@ -199,14 +194,6 @@ func (ps *paramSet) format(f manifest.Format) *formatDraws {
 		return fd
 	}
 	sc := f.String()
-	var ws []dist.Want
-	for _, name := range append([]string{"areal_capacity", "al_foil_thickness", "cu_foil_thickness", "electrolyte_per_area",
-		"binder_carbon", "separator", sc + "_overhead"}, casingNames[:]...) {
-		if ps.m.get(sc, name) != nil {
-			ws = append(ws, ps.want(sc, name))
-		}
-	}
-	ps.d.Prefetch(ws)
 	fd := &formatDraws{areal: ps.values(sc, "areal_capacity"), al: ps.values(sc, "al_foil_thickness"), cu: ps.values(sc, "cu_foil_thickness"),
 		el: ps.values(sc, "electrolyte_per_area"), bc: ps.values(sc, "binder_carbon"), sep: ps.values(sc, "separator")}
 	for k, name := range casingNames {
@@ -287,12 +274,6 @@ func (ps *paramSet) values(scope, name string) []float64 {
 		panic("feed: no parameter " + scope + "/" + name) // checked by LoadModel
 	}
 	return ps.rangeValues(scope+"/"+name, p.Range)
-}
-
-// want is what Prefetch needs to draw a model parameter.
-func (ps *paramSet) want(scope, name string) dist.Want {
-	p := ps.m.get(scope, name)
-	return dist.Want{Key: scope + "/" + name, Lo: p.Range.Min, Mode: p.Range.Mode, Hi: p.Range.Max}
 }
 
 func (ps *paramSet) rangeValues(key string, r cathode.Range) []float64 {

@@ -126,14 +126,7 @@ func TestCheckFiniteNamesTheOrigin(t *testing.T) {
 // samples and with the lot's compounds, elements and formats, not with lines or groups (a
 // group's per-sample masses are summarised as it is drawn).
 func BenchmarkDemoPerSample(b *testing.B) {
-	demo, err := os.ReadFile("../../data/demo/lot-KR-2611.csv")
-	if err != nil {
-		b.Fatal(err)
-	}
-	tb, err := run.DefaultTables()
-	if err != nil {
-		b.Fatal(err)
-	}
+	demo, tb := demoLot(b)
 	const samples = 20_000
 	b.ReportAllocs()
 	var before, after runtime.MemStats
@@ -142,7 +135,7 @@ func BenchmarkDemoPerSample(b *testing.B) {
 	for b.Loop() {
 		o := leach.DefaultOptions()
 		r, err := run.Estimate(tb, run.Options{Seed: 1, Samples: samples, Leach: &o, UnknownAsPrior: true},
-			run.Manifest{Name: "demo.csv", R: strings.NewReader(string(demo))})
+			run.Manifest{Name: "demo.csv", R: strings.NewReader(demo)})
 		if err != nil {
 			b.Fatal(err)
 		}
@@ -164,21 +157,14 @@ func BenchmarkDemoPerSample(b *testing.B) {
 // Carlo and the leach planner share out across processors, on one, two and three of them: the
 // report must be byte for byte the same (each sample is modelled on its own, streams are named).
 func TestSameOnAnyProcessors(t *testing.T) {
-	demo, err := os.ReadFile("../../data/demo/lot-KR-2611.csv")
-	if err != nil {
-		t.Fatal(err)
-	}
-	tb, err := run.DefaultTables()
-	if err != nil {
-		t.Fatal(err)
-	}
+	demo, tb := demoLot(t)
 	defer runtime.GOMAXPROCS(runtime.GOMAXPROCS(0))
 	var first []byte
 	for _, procs := range []int{1, 2, 3} {
 		runtime.GOMAXPROCS(procs)
 		o := leach.DefaultOptions()
 		r, err := run.Estimate(tb, run.Options{Seed: 7, Samples: 20_000, Leach: &o, UnknownAsPrior: true, KeepLines: true},
-			run.Manifest{Name: "demo.csv", R: strings.NewReader(string(demo))})
+			run.Manifest{Name: "demo.csv", R: strings.NewReader(demo)})
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -192,4 +178,18 @@ func TestSameOnAnyProcessors(t *testing.T) {
 			t.Errorf("the report on %d processors differs from the one on 1", procs)
 		}
 	}
+}
+
+// demoLot returns the demo manifest's text and the built-in tables.
+func demoLot(tb testing.TB) (string, *run.Tables) {
+	tb.Helper()
+	demo, err := os.ReadFile("../../data/demo/lot-KR-2611.csv")
+	if err != nil {
+		tb.Fatal(err)
+	}
+	t, err := run.DefaultTables()
+	if err != nil {
+		tb.Fatal(err)
+	}
+	return string(demo), t
 }
