@@ -16,3 +16,10 @@ func NewSplitSourceForTest(r io.Reader, sep byte) func() ([]string, int, string,
 		return slices.Clone(rec), line, raw, slices.Clone(starts), err
 	}
 }
+
+// WithShapeForTest spreads the reading of opt over parsers working side by side, rows records
+// per batch.
+func WithShapeForTest(opt Options, parsers, rows int) Options {
+	opt.shape = pipeShape{parsers: parsers, rows: rows}
+	return opt
+}

@@ -28,6 +28,8 @@ type Options struct {
 	Sheet string
 	// TempDir receives the temporary files of a large .xlsx part ("" for the system's).
 	TempDir string
+	// shape spreads the reading over parsers (zero: defaultShape); tests vary it.
+	shape pipeShape
 }
 
 // Info says what was read: which sheet, where the header was, which columns were left out.
@@ -123,53 +125,13 @@ func readRows(src rowSource, name string, opt Options, decimalComma bool, fn fun
 				MaxHeaderSearchRows, quoteCells(first), strings.Join(columnNames(), ", "))}
 		}
 	}
-	p := newLineParser(name, opt, decimalComma, hdr)
-	rl, _ := src.(rawLiner)
-	tr := trailer{lastLine: info.HeaderLine}
-	for {
-		rec, line, err := src.next()
-		if errors.Is(err, io.EOF) {
-			break
-		}
-		if err != nil {
-			return info, err
-		}
-		if blank(rec) || comment(rec) || p.onlyIgnored(rec) {
-			continue
-		}
-		p.load(rec)
-		if skip, err := tr.skip(p, rec, line, &info); skip || err != nil {
-			if err != nil {
-				return info, err
-			}
-			continue
-		}
-		if info.Lines >= MaxLines {
-			return info, &Error{File: name, Line: line, Reason: fmt.Sprintf("more than %d lines: split the manifest", MaxLines)}
-		}
-		var raw string
-		var starts []int
-		if rl != nil {
-			raw, starts = rl.rawLine()
-		}
-		l, err := p.parseAlike(rec, line, raw, starts)
-		if err != nil {
-			return info, commentHint(err, rec)
-		}
-		tr.add(&l, &info)
-		info.Lines++
-		if err := fn(l); err != nil {
-			var ie *Error
-			if errors.As(err, &ie) {
-				return info, err
-			}
-			return info, &Error{File: name, Line: line, Reason: err.Error()}
-		}
+	shape := opt.shape
+	if shape.parsers < 1 || shape.rows < 1 {
+		shape = defaultShape()
 	}
-	if info.Lines == 0 {
-		return info, &Error{File: name, Line: info.HeaderLine, Reason: "header but no lines"}
+	if err := readLines(src, name, opt, decimalComma, hdr, &info, shape, fn); err != nil {
+		return info, err
 	}
-	tr.finish(&info)
 	return info, nil
 }
 

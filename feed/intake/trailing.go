@@ -44,27 +44,27 @@ func mayBeTotal(s string) bool {
 }
 
 // skip reports whether a row is read past (a totals row, free text, a row after the table's
-// end), noting why; a manifest line after the end of the table is an error.
-func (t *trailer) skip(p *lineParser, rec []string, line int, info *Info) (bool, error) {
+// end), noting why; a manifest line after the end of the table is an error. row is what a
+// parser found of the row alone (rowFacts); p, which may be another parser, reads a totals row.
+func (t *trailer) skip(p *lineParser, rec []string, line int, row *parsedRow, info *Info) (bool, error) {
 	gap := line > t.lastLine+1
 	t.lastLine = line
 	if t.ended {
-		if _, err := p.parse(rec, line); err == nil {
+		if row.err == nil {
 			return true, &Error{File: p.name, Line: line, Reason: fmt.Sprintf("a manifest line after the end of the table "+
 				"(the blank row above line %d and the text on it end the table): remove that text or the blank row", t.endLine)}
 		}
 		t.after++
 		return true, nil
 	}
-	first := firstCell(rec)
-	if mayBeTotal(first) && totalWords.MatchString(first) {
-		if _, err := p.parse(rec, line); err == nil {
+	if row.totalWords {
+		if row.err == nil {
 			return false, nil // a line whose id happens to start with "sum"
 		}
 		t.note(info, t.totals(p, rec, line))
 		return true, nil
 	}
-	if !p.isText(rec) {
+	if !row.text {
 		return false, nil
 	}
 	if gap && t.lines > 0 {
@@ -150,6 +150,14 @@ func (t *trailer) totals(p *lineParser, rec []string, line int) string {
 		s += " (" + strings.Join(found, "; ") + ")"
 	}
 	return s
+}
+
+// rowFacts finds what the trailer asks of a row that does not depend on the rows before it:
+// whether its first cell starts a totals row, and whether it holds text only. p has loaded rec.
+func (p *lineParser) rowFacts(rec []string, row *parsedRow) {
+	first := firstCell(rec)
+	row.totalWords = mayBeTotal(first) && totalWords.MatchString(first)
+	row.text = !row.totalWords && p.isText(rec)
 }
 
 // firstCell is a row's first non-blank cell.
