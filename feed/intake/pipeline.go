@@ -156,11 +156,7 @@ func readLines(src rowSource, name string, opt Options, decimalComma bool, hdr *
 	c := lineConsumer{p: newLineParser(name, opt, decimalComma, hdr), tr: trailer{lastLine: info.HeaderLine}, info: info,
 		name: name, fn: fn}
 	for b := range ordered {
-		select {
-		case <-b.done:
-		case <-stop:
-			return nil // not reached: stop closes only on return
-		}
+		<-b.done
 		if err := c.batch(b); err != nil {
 			return err
 		}
