@@ -312,20 +312,32 @@ func (p *lineParser) get(rec []string, c Column) string {
 	if i < 0 || i >= len(rec) {
 		return ""
 	}
-	return strings.TrimSpace(rec[i])
+	return trimSpace(rec[i])
 }
 
 // load finds the trimmed value of each column of rec once; get answers from them while rec is
 // the record loaded (rec is not changed while it is read).
 func (p *lineParser) load(rec []string) {
-	p.loaded = false
-	for c := range p.vals {
-		p.vals[c] = p.get(rec, Column(c))
+	for c, i := range p.hdr.pos {
+		if i < 0 || i >= len(rec) {
+			p.vals[c] = ""
+		} else {
+			p.vals[c] = trimSpace(rec[i])
+		}
 	}
 	p.loaded, p.loadedLen = len(rec) > 0, len(rec)
 	if p.loaded {
 		p.loadedAt = &rec[0]
 	}
+}
+
+// trimSpace is strings.TrimSpace, answering at once for a value that starts and ends with a
+// printable ASCII byte (most values): no white space of any kind can be trimmed from it.
+func trimSpace(s string) string {
+	if n := len(s); n == 0 || s[0] > ' ' && s[0] < utf8.RuneSelf && s[n-1] > ' ' && s[n-1] < utf8.RuneSelf {
+		return s
+	}
+	return strings.TrimSpace(s)
 }
 
 func (p *lineParser) fail(line int, c Column, val, reason string) error {
