@@ -132,7 +132,7 @@ func (ar *assayRow) fail(line int, col, val, reason string) error {
 func (ar *assayRow) read(rec []string, line int) (assay.Value, error) {
 	get := func(c string) string {
 		if i, ok := ar.idx[c]; ok && i < len(rec) {
-			return strings.TrimSpace(rec[i])
+			return trimSpace(rec[i])
 		}
 		return ""
 	}
@@ -140,7 +140,7 @@ func (ar *assayRow) read(rec []string, line int) (assay.Value, error) {
 		if !utf8.ValidString(f) {
 			return assay.Value{}, ar.fail(line, "", "", "not valid UTF-8")
 		}
-		if i >= ar.width && strings.TrimSpace(f) != "" {
+		if i >= ar.width && trimSpace(f) != "" {
 			return assay.Value{}, ar.fail(line, fmt.Sprintf("column %d", i+1), f,
 				fmt.Sprintf("a value beyond the header's %d columns", ar.width)+decimalCommaSplit(rec))
 		}
@@ -197,7 +197,7 @@ var assayInfoColumns = map[string]bool{"lab": true, "sample": true, "sample_id":
 func assayHeader(header []string, name string) (map[string]int, error) {
 	idx := map[string]int{}
 	for i, h := range header {
-		k := strings.ToLower(strings.TrimSpace(h))
+		k := strings.ToLower(trimSpace(h))
 		switch k {
 		case "±", "+/-", "uncertainty", "sigma", "u", "plus_minus", "error":
 			k = "uncertainty"

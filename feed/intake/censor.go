@@ -30,12 +30,12 @@ func readCensorable(value, unit, lod string) (censorable, *cellError) {
 			return censorable{}, &cellError{"unit", unit, "unknown unit (want wt%, g/kg, mg/kg or ppm)"}
 		}
 	}
-	v := strings.TrimSpace(value)
+	v := trimSpace(value)
 	low := strings.ToLower(strings.ReplaceAll(v, " ", ""))
 	low = strings.ReplaceAll(low, "&lt;", "<")
 	switch {
 	case belowDetectionWords[low] || belowDetectionWords[strings.ToLower(v)]:
-		if strings.TrimSpace(lod) == "" {
+		if trimSpace(lod) == "" {
 			return censorable{}, &cellError{"value", value, "below the detection limit, but no limit given: write it as <0.05 (in the row's unit) or give the LOD column"}
 		}
 		lim, f, err := assayQuantity(lod, unit)
@@ -77,7 +77,7 @@ func censorLimit(lim, f float64, col, text string) (censorable, *cellError) {
 // assayQuantity reads a number with an optional unit of its own ("50 ppm"); the unit column's
 // unit applies to a bare number, and a cell's unit that differs from it is refused.
 func assayQuantity(s, unitCol string) (float64, float64, error) {
-	s = strings.TrimSpace(s)
+	s = trimSpace(s)
 	i := 0
 	for i < len(s) && (s[i] >= '0' && s[i] <= '9' || s[i] == '.' || s[i] == ',' || s[i] == '-' || s[i] == '+' ||
 		(s[i] == 'e' || s[i] == 'E') && i > 0 && i+1 < len(s) && (s[i+1] >= '0' && s[i+1] <= '9' || s[i+1] == '-' || s[i+1] == '+')) {
@@ -96,7 +96,7 @@ func assayQuantity(s, unitCol string) (float64, float64, error) {
 		f1, ok1 := assayUnits[own]
 		f2, ok2 := assayUnits[col]
 		if !ok1 || !ok2 || f1 != f2 {
-			return 0, 0, fmt.Errorf("its unit %q disagrees with the unit column's %q", Printable(strings.TrimSpace(s[i:]), 20), Printable(unitCol, 20))
+			return 0, 0, fmt.Errorf("its unit %q disagrees with the unit column's %q", Printable(trimSpace(s[i:]), 20), Printable(unitCol, 20))
 		}
 	case own != "":
 		unit = own
@@ -117,5 +117,5 @@ func assayQuantity(s, unitCol string) (float64, float64, error) {
 
 // normUnit lowers a unit and drops its spaces ("mg / kg" is mg/kg).
 func normUnit(s string) string {
-	return strings.ToLower(strings.ReplaceAll(strings.TrimSpace(s), " ", ""))
+	return strings.ToLower(strings.ReplaceAll(trimSpace(s), " ", ""))
 }

@@ -94,7 +94,7 @@ type headerCell struct {
 // normaliseHeader splits a header into its words (lower case) and a unit found in brackets or
 // as a leading or trailing word.
 func normaliseHeader(h string) (key, unit string) {
-	h = strings.ToLower(strings.TrimSpace(h))
+	h = strings.ToLower(trimSpace(h))
 	// A unit in brackets: "capacity (ah)", "mass [lb]", "weight (kg each)".
 	for _, br := range [][2]string{{"(", ")"}, {"[", "]"}, {"{", "}"}} {
 		i := strings.Index(h, br[0])
@@ -147,7 +147,7 @@ func isUnitWord(s string) bool {
 // recogniseHeader maps one header cell to a column. A header that is only a unit ("Wh", "kg",
 // "V") names the column its unit belongs to; "#" names the id.
 func recogniseHeader(h string) (headerCell, bool) {
-	if strings.TrimSpace(h) == "#" {
+	if trimSpace(h) == "#" {
 		return headerCell{col: ColID}, true
 	}
 	key, unit := normaliseHeader(h)
@@ -253,12 +253,12 @@ func parseHeader(rec []string, ignore []string, file string, line int) (*header,
 	ignoreKeys := map[string]bool{}
 	for _, g := range ignore {
 		k, _ := normaliseHeader(g)
-		ignoreKeys[strings.ToLower(strings.TrimSpace(g))] = true
+		ignoreKeys[strings.ToLower(trimSpace(g))] = true
 		ignoreKeys[k] = true
 	}
 	var unknown []string
 	for i, raw := range rec {
-		t := strings.TrimSpace(raw)
+		t := trimSpace(raw)
 		k, _ := normaliseHeader(t)
 		if t == "" || ignoreKeys[strings.ToLower(t)] || (k != "" && ignoreKeys[k]) {
 			h.ignored = append(h.ignored, i)

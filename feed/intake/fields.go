@@ -300,7 +300,7 @@ var formatWords = map[string]manifest.Format{
 
 // ParseFormat accepts the format names and their synonyms, case-insensitively.
 func ParseFormat(s string) (manifest.Format, error) {
-	if f, ok := formatWords[strings.ToLower(strings.TrimSpace(s))]; ok {
+	if f, ok := formatWords[strings.ToLower(trimSpace(s))]; ok {
 		return f, nil
 	}
 	return manifest.FormatInvalid, fmt.Errorf("unknown format (want cylindrical, pouch, prismatic, pack or module)")
@@ -330,7 +330,7 @@ func seriesParallel(series, parallel string) (string, error) {
 func parseCellsPerPack(s string) (int, error) {
 	t := strings.ToLower(strings.NewReplacer(" ", "", "-", "", "x", "").Replace(s))
 	if n, err := strconv.Atoi(t); err == nil {
-		if t != strings.TrimSpace(s) {
+		if t != trimSpace(s) {
 			// "4x3", "13-4", "2 3": joined they would read as 43, 134, 23 cells.
 			return 0, errors.New("two numbers without s and p: write the number of cells (12) or a series-parallel tag (4s3p)")
 		}

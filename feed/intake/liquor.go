@@ -36,7 +36,7 @@ func ReadLiquor(r io.Reader, name string) (*recover.Measured, error) {
 	}
 	col := map[string]int{}
 	for i, h := range head {
-		col[strings.ToLower(strings.TrimSpace(h))] = i
+		col[strings.ToLower(trimSpace(h))] = i
 	}
 	for _, c := range []string{"element", "value", "unit"} {
 		if _, ok := col[c]; !ok {
@@ -61,7 +61,7 @@ func ReadLiquor(r io.Reader, name string) (*recover.Measured, error) {
 		line, _ := cr.FieldPos(0)
 		get := func(c string) string {
 			if i := col[c]; i < len(rec) {
-				return strings.TrimSpace(rec[i])
+				return trimSpace(rec[i])
 			}
 			return ""
 		}

@@ -114,7 +114,7 @@ func readRows(src rowSource, name string, opt Options, decimalComma bool, fn fun
 			info.HeaderLine = line
 			info.columns = hdr.pos
 			for _, i := range hdr.ignored {
-				if t := strings.TrimSpace(rec[i]); t != "" {
+				if t := trimSpace(rec[i]); t != "" {
 					info.IgnoredColumns = append(info.IgnoredColumns, t)
 				}
 			}
@@ -138,7 +138,7 @@ func readRows(src rowSource, name string, opt Options, decimalComma bool, fn fun
 func quoteCells(rec []string) string {
 	var q []string
 	for _, c := range rec {
-		if c = strings.TrimSpace(c); c != "" {
+		if c = trimSpace(c); c != "" {
 			q = append(q, strconv.Quote(Printable(c, 30)))
 		}
 		if len(q) == 6 {
@@ -153,7 +153,7 @@ func quoteCells(rec []string) string {
 // field holds anything. A '#' line with more values is a manifest line (an id may start with
 // '#', "#12"), so no line is dropped unread; "#" as a header cell names the id column.
 func comment(rec []string) bool {
-	if len(rec) == 0 || !strings.HasPrefix(strings.TrimSpace(rec[0]), "#") {
+	if len(rec) == 0 || !strings.HasPrefix(trimSpace(rec[0]), "#") {
 		return false
 	}
 	return blank(rec[1:])
@@ -162,7 +162,7 @@ func comment(rec []string) bool {
 // commentHint adds to the error of a line that starts with '#' that it was read as a line.
 func commentHint(err error, rec []string) error {
 	var ie *Error
-	if len(rec) > 0 && strings.HasPrefix(strings.TrimSpace(rec[0]), "#") && errors.As(err, &ie) {
+	if len(rec) > 0 && strings.HasPrefix(trimSpace(rec[0]), "#") && errors.As(err, &ie) {
 		e := *ie
 		e.Reason += " (a line starting with # is a comment only when it holds no other field; this one was read as a manifest line)"
 		return &e
@@ -172,7 +172,7 @@ func commentHint(err error, rec []string) error {
 
 func blank(rec []string) bool {
 	for _, f := range rec {
-		if strings.TrimSpace(f) != "" {
+		if trimSpace(f) != "" {
 			return false
 		}
 	}
@@ -349,12 +349,12 @@ func (p *lineParser) parse(rec []string, line int) (manifest.Line, error) {
 		return manifest.Line{}, &Error{File: p.name, Line: line, Reason: fmt.Sprintf("more than %d columns", MaxColumns)}
 	}
 	for i := p.hdr.width; i < len(rec); i++ {
-		if strings.TrimSpace(rec[i]) != "" {
+		if trimSpace(rec[i]) != "" {
 			return manifest.Line{}, &Error{File: p.name, Line: line, Reason: fmt.Sprintf("a value in column %d, beyond the header's %d columns", i+1, p.hdr.width) + p.decimalCommaHint(rec)}
 		}
 	}
 	for _, i := range p.hdr.ignored {
-		if i < len(rec) && strings.TrimSpace(rec[i]) != "" && i < p.hdr.width && !p.ignoredByName(i) {
+		if i < len(rec) && trimSpace(rec[i]) != "" && i < p.hdr.width && !p.ignoredByName(i) {
 			return manifest.Line{}, &Error{File: p.name, Line: line, Reason: fmt.Sprintf("a value in column %d, which has no header", i+1)}
 		}
 	}
@@ -495,7 +495,7 @@ func unsafeString(b []byte) string {
 // intake workbook, say): it is no manifest line.
 func (p *lineParser) onlyIgnored(rec []string) bool {
 	for i, v := range rec {
-		if strings.TrimSpace(v) != "" && !p.hdr.named[i] {
+		if trimSpace(v) != "" && !p.hdr.named[i] {
 			return false
 		}
 	}

@@ -113,7 +113,7 @@ func productPrice(row data.Row, fail func(col, val, reason string) error, item, 
 		return value.ProductPrice{}, fail("price_per_kg", row.Str("price_per_kg"),
 			fmt.Sprintf("want a price from 0 to %g per kg", float64(maxPricePerKg)))
 	}
-	if p := strings.TrimSpace(row.Str("payable")); p != "" {
+	if p := trimSpace(row.Str("payable")); p != "" {
 		if v, err := share(p); err != nil || v != 1 {
 			return value.ProductPrice{}, fail("payable", p, "a product is priced as sold: leave payable empty (or 1)")
 		}
@@ -142,8 +142,8 @@ var priceColumns = map[string]bool{"item": true, "basis": true, "price_per_kg": 
 
 // share reads a fraction 0..1, or a percentage with its sign.
 func share(s string) (float64, error) {
-	pct := strings.HasSuffix(strings.TrimSpace(s), "%")
-	v, err := ParseNumber(strings.TrimSuffix(strings.TrimSpace(s), "%"), false)
+	pct := strings.HasSuffix(trimSpace(s), "%")
+	v, err := ParseNumber(strings.TrimSuffix(trimSpace(s), "%"), false)
 	if err != nil {
 		return 0, errors.New("want a share from 0 to 1, or a percentage such as 75%")
 	}

@@ -163,7 +163,7 @@ func (p *lineParser) rowFacts(rec []string, row *parsedRow) {
 // firstCell is a row's first non-blank cell.
 func firstCell(rec []string) string {
 	for _, c := range rec {
-		if c = strings.TrimSpace(c); c != "" {
+		if c = trimSpace(c); c != "" {
 			return c
 		}
 	}
@@ -199,7 +199,7 @@ func (p *lineParser) decimalCommaHint(rec []string) string {
 // neighbouring fields that read as the two halves of a number with a decimal comma.
 func decimalCommaSplit(rec []string) string {
 	for j := 0; j+1 < len(rec); j++ {
-		a, b := strings.TrimSpace(rec[j]), strings.TrimLeft(rec[j+1], " ")
+		a, b := trimSpace(rec[j]), strings.TrimLeft(rec[j+1], " ")
 		if a != "" && b != "" && strings.Trim(a, "0123456789+-") == "" && b[0] >= '0' && b[0] <= '9' {
 			return fmt.Sprintf(`; columns %d and %d hold %q and %q: a number written with a decimal comma ("%s,%s") is split by `+
 				`the file's commas: quote it, write a decimal point, or save the file with semicolons as separators`,
@@ -240,7 +240,7 @@ var (
 
 // splitVoltsCharge splits a capacity written as volts and charge into its charge and its volts.
 func splitVoltsCharge(s string) (charge, volts string, ok bool) {
-	s = strings.TrimSpace(s)
+	s = trimSpace(s)
 	// Both forms name the volts: most capacities skip the patterns.
 	if strings.IndexByte(s, 'v') < 0 && strings.IndexByte(s, 'V') < 0 {
 		return s, "", false
@@ -268,7 +268,7 @@ func (p *lineParser) voltsAndCharge(capText, voltText string, line int) (string,
 		return capText, voltText, nil
 	}
 	if voltText != "" {
-		a, err1 := ParseNumber(strings.TrimSuffix(strings.TrimSpace(strings.TrimSuffix(strings.ToUpper(voltText), "V")), " "), p.decimalComma)
+		a, err1 := ParseNumber(strings.TrimSuffix(trimSpace(strings.TrimSuffix(strings.ToUpper(voltText), "V")), " "), p.decimalComma)
 		b, err2 := ParseNumber(volts, p.decimalComma)
 		if err1 == nil && err2 == nil && math.Abs(a-b) > 1e-9*math.Max(a, b) {
 			return "", "", p.fail(line, ColVoltage, voltText, fmt.Sprintf("disagrees with the capacity's %s V", volts))

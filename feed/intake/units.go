@@ -78,7 +78,7 @@ func (u UnitTable) find(s string) *Unit {
 // ambiguous unless decimalComma says commas are decimal marks (semicolon-separated files).
 // Only digits, signs, one decimal mark and an exponent are accepted: no hex, no Inf or NaN.
 func ParseNumber(s string, decimalComma bool) (float64, error) {
-	s = strings.TrimSpace(s)
+	s = trimSpace(s)
 	if s == "" {
 		return 0, errors.New("no number")
 	}
@@ -155,7 +155,7 @@ func Quantity(s string, u UnitTable, defaultUnit string, decimalComma bool) (flo
 // quantityFind is Quantity with the unit found by find (nil: the table's find).
 func quantityFind(s string, u UnitTable, defaultUnit string, decimalComma bool,
 	find func(UnitTable, string) *Unit) (float64, string, error) {
-	s = strings.TrimSpace(s)
+	s = trimSpace(s)
 	if s == "" {
 		return 0, "", errors.New("missing value (want a number and a unit: " + u.Want + ")")
 	}
@@ -164,7 +164,11 @@ func quantityFind(s string, u UnitTable, defaultUnit string, decimalComma bool,
 		(s[i] == 'e' || s[i] == 'E') && i > 0 && i+1 < len(s) && (s[i+1] >= '0' && s[i+1] <= '9' || s[i+1] == '-' || s[i+1] == '+')) {
 		i++
 	}
-	num, rest := s[:i], strings.TrimSpace(s[i:])
+	rest := s[i:]
+	for len(rest) > 0 && rest[0] == ' ' {
+		rest = rest[1:] // the space between number and unit, without TrimSpace's general path
+	}
+	num, rest := s[:i], trimSpace(rest)
 	if num == "" {
 		return 0, "", fmt.Errorf("no number (want a number and a unit: %s)", u.Want)
 	}
