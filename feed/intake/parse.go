@@ -344,49 +344,50 @@ func (p *lineParser) fail(line int, c Column, val, reason string) error {
 	return &Error{File: p.name, Line: line, Column: c.String(), Value: val, Reason: reason}
 }
 
-func (p *lineParser) parse(rec []string, line int) (manifest.Line, error) {
+// parse reads rec into l, which is the zero Line.
+func (p *lineParser) parse(l *manifest.Line, rec []string, line int) error {
 	if len(rec) > MaxColumns {
-		return manifest.Line{}, &Error{File: p.name, Line: line, Reason: fmt.Sprintf("more than %d columns", MaxColumns)}
+		return &Error{File: p.name, Line: line, Reason: fmt.Sprintf("more than %d columns", MaxColumns)}
 	}
 	for i := p.hdr.width; i < len(rec); i++ {
 		if trimSpace(rec[i]) != "" {
-			return manifest.Line{}, &Error{File: p.name, Line: line, Reason: fmt.Sprintf("a value in column %d, beyond the header's %d columns", i+1, p.hdr.width) + p.decimalCommaHint(rec)}
+			return &Error{File: p.name, Line: line, Reason: fmt.Sprintf("a value in column %d, beyond the header's %d columns", i+1, p.hdr.width) + p.decimalCommaHint(rec)}
 		}
 	}
 	for _, i := range p.hdr.ignored {
 		if i < len(rec) && trimSpace(rec[i]) != "" && i < p.hdr.width && !p.ignoredByName(i) {
-			return manifest.Line{}, &Error{File: p.name, Line: line, Reason: fmt.Sprintf("a value in column %d, which has no header", i+1)}
+			return &Error{File: p.name, Line: line, Reason: fmt.Sprintf("a value in column %d, which has no header", i+1)}
 		}
 	}
 	for _, c := range textColumns {
 		if err := p.checkText(c, p.get(rec, c), line); err != nil {
-			return manifest.Line{}, err
+			return err
 		}
 	}
-	l := manifest.Line{Num: line, ID: p.get(rec, ColID), Description: p.get(rec, ColDescription), Notes: p.get(rec, ColNotes)}
-	if err := p.format(&l, rec, line); err != nil {
-		return l, err
+	l.Num, l.ID, l.Description, l.Notes = line, p.get(rec, ColID), p.get(rec, ColDescription), p.get(rec, ColNotes)
+	if err := p.format(l, rec, line); err != nil {
+		return err
 	}
-	if err := p.chemistry(&l, rec, line); err != nil {
-		return l, err
+	if err := p.chemistry(l, rec, line); err != nil {
+		return err
 	}
-	if err := p.count(&l, rec, line); err != nil {
-		return l, err
+	if err := p.count(l, rec, line); err != nil {
+		return err
 	}
-	if err := p.cellsPerPack(&l, rec, line); err != nil {
-		return l, err
+	if err := p.cellsPerPack(l, rec, line); err != nil {
+		return err
 	}
-	if err := p.mass(&l, rec, line); err != nil {
-		return l, err
+	if err := p.mass(l, rec, line); err != nil {
+		return err
 	}
 	if l.NonLithium != nil || l.CountUnknown { // counted apart, or energy from the bag's weight
 		l.CapacityText = p.get(rec, ColCapacity)
-		return l, nil
+		return nil
 	}
-	if err := p.capacity(&l, rec, line); err != nil {
-		return l, err
+	if err := p.capacity(l, rec, line); err != nil {
+		return err
 	}
-	return l, nil
+	return nil
 }
 
 // checkText refuses text that is not UTF-8, too long, or holds a control character.
@@ -418,23 +419,23 @@ const (
 	alikeRest  = 16 * alikeProbe
 )
 
-// parseAlike parses a record, or reuses the parse of an earlier record whose every field but the
-// id was the same: a manifest lists many alike items under their own ids, and everything a line
-// holds besides its number and id follows from those fields alone. Only lines that parsed are
+// parseAlike parses a record into l (the zero Line), or reuses the parse of an earlier record
+// whose every field but the id was the same: a manifest lists many alike items under their own
+// ids, and everything a line holds besides its number and id follows from those fields alone. Only lines that parsed are
 // remembered, so every error is found by parse itself.
 //
 // When the record was split from raw (starts: each field's offset in it), the key is raw with
 // the id's text cut out, the separators kept: equal keys split into equal fields but the id. With
 // the id first that is a substring, and looking it up copies nothing. Otherwise the key encodes
 // each field with its length.
-func (p *lineParser) parseAlike(rec []string, line int, raw string, starts []int) (manifest.Line, error) {
+func (p *lineParser) parseAlike(l *manifest.Line, rec []string, line int, raw string, starts []int) error {
 	idPos := p.hdr.pos[ColID]
 	if idPos < 0 {
-		return p.parse(rec, line)
+		return p.parse(l, rec, line)
 	}
 	if p.alikeSkip > 0 { // lines have been distinct of late: the lookup costs more than it saves
 		p.alikeSkip--
-		return p.parse(rec, line)
+		return p.parse(l, rec, line)
 	}
 	memo, key := p.alike, ""
 	switch {
@@ -465,21 +466,22 @@ func (p *lineParser) parseAlike(rec []string, line int, raw string, starts []int
 		}
 		p.alikeTries, p.alikeHits = 0, 0
 	}
-	if l, ok := memo[key]; ok {
+	if m, ok := memo[key]; ok {
 		p.alikeHits++
 		id := p.get(rec, ColID)
 		if err := p.checkText(ColID, id, line); err != nil {
-			return manifest.Line{}, err
+			return err
 		}
+		*l = m
 		l.Num, l.ID = line, id
-		return l, nil
+		return nil
 	}
-	l, err := p.parse(rec, line)
+	err := p.parse(l, rec, line)
 	if err == nil && len(memo) < maxRememberedLines {
 		// The key shares memory with the arena or the key buffer: the map keeps a copy.
-		memo[strings.Clone(key)] = l
+		memo[strings.Clone(key)] = *l
 	}
-	return l, err
+	return err
 }
 
 // unsafeString views b as a string for a map lookup; the caller neither keeps it nor lets b

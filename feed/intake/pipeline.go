@@ -98,7 +98,7 @@ func (p *lineParser) parseBatch(b *rowBatch) {
 		}
 		p.load(rec)
 		p.rowFacts(rec, row)
-		row.line, row.err = p.parseAlike(rec, line, b.raws[i], starts)
+		row.err = p.parseAlike(&row.line, rec, line, b.raws[i], starts)
 	}
 	close(b.done)
 }
