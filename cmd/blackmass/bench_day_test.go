@@ -106,83 +106,9 @@ func TestBenchDay(t *testing.T) {
 	benchRun(t, "lot", "weigh", "HM-1003", "--mass", "40 kg", "--wet", "--date", "2026-11-28", "--db", db)
 	benchRun(t, "lot", "weigh", "HM-1002", "--mass", "21.5 kg", "--dry", "--sigma", "0.2 kg", "--date", "2026-11-25", "--db", db)
 
-	// HM-1001: 20 kg wet at 4 % moisture (the weighing's own; the XRF assay's 4 % is the same
-	// water and is not taken off again): 20 × 0.96 = 19.2 kg dry (not 18.43), sd 1 % of 20 kg ×
-	// 0.96 = 0.192 kg.
-	d := benchShow(t, db, "HM-1001")
-	dm := d.Evidence.DryMass
-	if dm == nil || d.Evidence.Basis != register.BasisMeasured {
-		t.Fatalf("HM-1001: basis %s, dry mass %+v", d.Evidence.Basis, dm)
-	}
-	benchNear(t, "HM-1001 dry kg", dm.Kg, 19.2, 1e-9)
-	benchNear(t, "HM-1001 dry sd kg", dm.SigmaKg, 0.192, 1e-9)
-	// Co from two labs, by their uncertainties: XRF 14.2 ± 0.5, ICP 14.0 ± 0.4 wt%; weights
-	// 1/0.25 = 4 and 1/0.16 = 6.25: (4 × 14.2 + 6.25 × 14.0) / 10.25 = 144.3 / 10.25 = 14.07805 wt%,
-	// sd 1/√10.25 = 0.31235; × 19.2 kg = 2.702985 kg, sd √((0.0031235 × 19.2)² + (0.1407805 ×
-	// 0.192)²) = √(0.059971² + 0.027030²) = 0.065781 kg.
-	co := d.Evidence.Element("Co")
-	if co.Measured == nil || co.Basis != register.BasisMeasured || co.Assay.Assays != 2 {
-		t.Fatalf("HM-1001 Co %+v", co)
-	}
-	benchNear(t, "HM-1001 Co wt%", co.Assay.WtPct, 14.07805, 1e-5)
-	benchNear(t, "HM-1001 Co kg", co.Kg, 2.702985, 1e-6)
-	benchNear(t, "HM-1001 Co sd kg", co.Measured.SigmaKg, 0.065781, 1e-6)
-	// Li only from the ICP (the XRF has none): 3.1 % × 19.2 = 0.5952 kg.
-	li := d.Evidence.Element("Li")
-	if li.Assay == nil || li.Assay.Assays != 1 {
-		t.Fatalf("HM-1001 Li %+v", li)
-	}
-	benchNear(t, "HM-1001 Li kg", li.Kg, 0.5952, 1e-9)
-	// Fe < 0.05 wt% of 19.2 kg: below 0.0096 kg; its ratio to the estimate only bounded.
-	fe := d.Evidence.Element("Fe")
-	if fe.Measured == nil || !fe.Measured.Censored || fe.Ratio != nil || fe.RatioAtMost == nil {
-		t.Fatalf("HM-1001 Fe %+v", fe)
-	}
-	benchNear(t, "HM-1001 Fe at most kg", fe.Measured.MaxKg, 0.0096, 1e-12)
-	benchNear(t, "HM-1001 Fe ratio at most", *fe.RatioAtMost, 0.0096/fe.EstimateKgP50, 1e-12)
+	benchDayFirstEvidence(t, db)
 
-	// HM-1003: 40 kg wet at the assay's 7.5 ± 0.4 % moisture: 37.0 kg dry, sd √((0.01 × 40 ×
-	// 0.925)² + (40 × 0.004)²) = √(0.37² + 0.16²) = 0.40311 kg; Co 2.9 % × 37 = 1.073 kg,
-	// Ni 22.5 % × 37 = 8.325 kg, Li 3.3 % × 37 = 1.221 kg.
-	d = benchShow(t, db, "HM-1003")
-	if d.Evidence.DryMass == nil {
-		t.Fatal("HM-1003: no dry mass from the assay's moisture")
-	}
-	benchNear(t, "HM-1003 dry kg", d.Evidence.DryMass.Kg, 37, 1e-9)
-	benchNear(t, "HM-1003 dry sd kg", d.Evidence.DryMass.SigmaKg, 0.40311, 1e-5)
-	for el, kg := range map[string]float64{"Co": 1.073, "Ni": 8.325, "Li": 1.221} {
-		benchNear(t, "HM-1003 "+el+" kg", d.Evidence.Element(el).Kg, kg, 1e-9)
-	}
-	// HM-1002: weighed dry but not assayed: its metal stays on the estimate.
-	if d = benchShow(t, db, "HM-1002"); d.Evidence.Basis != register.BasisEstimate || d.Evidence.Element("Co").Measured != nil {
-		t.Errorf("HM-1002 without an assay: basis %s", d.Evidence.Basis)
-	}
-
-	// The text the bench reads: the basis per lot and per element, a censored value as "< limit".
-	list := benchRun(t, "lot", "list", "--db", db)
-	for _, want := range []string{"HM-1001", "assay+weighing", "2.70 m", "1.07 m", "estimate"} {
-		if !strings.Contains(list, want) {
-			t.Errorf("lot list lacks %q:\n%s", want, list)
-		}
-	}
-	show := benchRun(t, "lot", "show", "HM-1001", "--db", db)
-	if first, _, _ := strings.Cut(show, "\n"); strings.ContainsAny(first, "[]") {
-		t.Errorf("lot show's versions printed as a Go slice: %q", first)
-	}
-	for _, want := range []string{"19.2 ± 0.192 kg dry", "< 0.0096", "Fe < 0.05 wt% (below the detection limit)", "not assayed, from the estimate"} {
-		if !strings.Contains(show, want) {
-			t.Errorf("lot show lacks %q:\n%s", want, show)
-		}
-	}
-	for _, l := range strings.Split(show, "\n") {
-		if f := strings.Fields(l); len(f) > 2 && f[0] == "Fe" && f[1] == "m" && strings.Contains(l, "0.0048") {
-			t.Errorf("lot show's table prints the censored Fe as its half-limit 0.0048 kg: %q", l)
-		}
-	}
-	// The note gives the range and the middle the sums use: 0.05 % × 19.2 kg = 0.0096 kg, half 0.0048.
-	if !strings.Contains(show, "Fe: below the detection limit, 0 to 0.0096 kg; sums and value use the middle, 0.0048 kg") {
-		t.Errorf("lot show lacks the censored Fe's note:\n%s", show)
-	}
+	benchDayText(t, db)
 
 	// Two assayed and weighed lots: calibrate refuses, saying how many it needs, and saves nothing.
 	code, out, errs := cli(t, "", "calibrate", "--db", db)
@@ -202,7 +128,7 @@ func TestBenchDay(t *testing.T) {
 	// 6.8728 = 2.268024 kg; Pb 1.8 g/kg = 0.18 % × 6.8728 = 0.01237104 kg; Ni < 0.5 g/kg: below
 	// 0.05 % × 6.8728 = 0.0034364 kg. HM-1002: 21.5 kg dry; Co 6.1 % = 1.3115 kg, Ni 17.9 % =
 	// 3.8485 kg, Cd 0.35 % = 0.07525 kg; its Li stays the estimate's.
-	d = benchShow(t, db, "HM-1004")
+	d := benchShow(t, db, "HM-1004")
 	benchNear(t, "HM-1004 dry kg", d.Evidence.DryMass.Kg, 6.8728, 1e-9)
 	benchNear(t, "HM-1004 Co kg", d.Evidence.Element("Co").Kg, 2.268024, 1e-9)
 	benchNear(t, "HM-1004 Pb kg", d.Evidence.Element("Pb").Kg, 0.01237104, 1e-9)
@@ -229,28 +155,7 @@ func TestBenchDay(t *testing.T) {
 	benchNear(t, "yard Ni kg", tot.InYardKg["Ni"], 14.093682, 1e-5)
 	benchNear(t, "yard Cd kg", tot.InYardKg["Cd"], 0.075442, 1e-9)
 
-	// The export: one row per lot, the measured kg and the basis beside the estimate.
-	csvPath := filepath.Join(dir, "lots.csv")
-	benchRun(t, "lot", "export", "--csv", csvPath, "--db", db)
-	benchRun(t, "lot", "export", "--xlsx", filepath.Join(dir, "lots.xlsx"), "--db", db)
-	rows := readBenchCSV(t, csvPath)
-	if len(rows) != 4 {
-		t.Fatalf("export: %d lots, want 4", len(rows))
-	}
-	r := rows["HM-1001"]
-	if r["basis"] != register.BasisMeasured || r["Co basis"] != register.BasisMeasured || r["Li basis"] != register.BasisMeasured {
-		t.Errorf("export HM-1001 bases: %s, Co %s, Li %s", r["basis"], r["Co basis"], r["Li basis"])
-	}
-	for col, want := range map[string]float64{"dry black mass kg": 19.2, "Co kg": 2.702985, "Co measured kg": 2.702985} {
-		v, err := strconv.ParseFloat(r[col], 64)
-		if err != nil {
-			t.Fatalf("export HM-1001 %s: %q", col, r[col])
-		}
-		benchNear(t, "export HM-1001 "+col, v, want, 1e-6)
-	}
-	if r["Co estimate kg (P50)"] == "" || r["Co measured/estimate"] == "" {
-		t.Error("export HM-1001: the estimate is not kept beside the measurement")
-	}
+	benchDayExport(t, dir, db)
 }
 
 // readBenchCSV reads the register's CSV export into rows by lot id, each a map by column.
@@ -371,5 +276,121 @@ func TestWorkbookAssayCensored(t *testing.T) {
 		if !found {
 			t.Errorf("%s: no Fe row on the Assay sheet", name)
 		}
+	}
+}
+
+// benchDayFirstEvidence checks the lots on the first assays and weighings: dry mass, metals
+// from two labs by their uncertainties, a value below detection.
+func benchDayFirstEvidence(t *testing.T, db string) {
+	t.Helper()
+	// HM-1001: 20 kg wet at 4 % moisture (the weighing's own; the XRF assay's 4 % is the same
+	// water and is not taken off again): 20 × 0.96 = 19.2 kg dry (not 18.43), sd 1 % of 20 kg ×
+	// 0.96 = 0.192 kg.
+	d := benchShow(t, db, "HM-1001")
+	dm := d.Evidence.DryMass
+	if dm == nil || d.Evidence.Basis != register.BasisMeasured {
+		t.Fatalf("HM-1001: basis %s, dry mass %+v", d.Evidence.Basis, dm)
+	}
+	benchNear(t, "HM-1001 dry kg", dm.Kg, 19.2, 1e-9)
+	benchNear(t, "HM-1001 dry sd kg", dm.SigmaKg, 0.192, 1e-9)
+	// Co from two labs, by their uncertainties: XRF 14.2 ± 0.5, ICP 14.0 ± 0.4 wt%; weights
+	// 1/0.25 = 4 and 1/0.16 = 6.25: (4 × 14.2 + 6.25 × 14.0) / 10.25 = 144.3 / 10.25 = 14.07805 wt%,
+	// sd 1/√10.25 = 0.31235; × 19.2 kg = 2.702985 kg, sd √((0.0031235 × 19.2)² + (0.1407805 ×
+	// 0.192)²) = √(0.059971² + 0.027030²) = 0.065781 kg.
+	co := d.Evidence.Element("Co")
+	if co.Measured == nil || co.Basis != register.BasisMeasured || co.Assay.Assays != 2 {
+		t.Fatalf("HM-1001 Co %+v", co)
+	}
+	benchNear(t, "HM-1001 Co wt%", co.Assay.WtPct, 14.07805, 1e-5)
+	benchNear(t, "HM-1001 Co kg", co.Kg, 2.702985, 1e-6)
+	benchNear(t, "HM-1001 Co sd kg", co.Measured.SigmaKg, 0.065781, 1e-6)
+	// Li only from the ICP (the XRF has none): 3.1 % × 19.2 = 0.5952 kg.
+	li := d.Evidence.Element("Li")
+	if li.Assay == nil || li.Assay.Assays != 1 {
+		t.Fatalf("HM-1001 Li %+v", li)
+	}
+	benchNear(t, "HM-1001 Li kg", li.Kg, 0.5952, 1e-9)
+	// Fe < 0.05 wt% of 19.2 kg: below 0.0096 kg; its ratio to the estimate only bounded.
+	fe := d.Evidence.Element("Fe")
+	if fe.Measured == nil || !fe.Measured.Censored || fe.Ratio != nil || fe.RatioAtMost == nil {
+		t.Fatalf("HM-1001 Fe %+v", fe)
+	}
+	benchNear(t, "HM-1001 Fe at most kg", fe.Measured.MaxKg, 0.0096, 1e-12)
+	benchNear(t, "HM-1001 Fe ratio at most", *fe.RatioAtMost, 0.0096/fe.EstimateKgP50, 1e-12)
+
+	// HM-1003: 40 kg wet at the assay's 7.5 ± 0.4 % moisture: 37.0 kg dry, sd √((0.01 × 40 ×
+	// 0.925)² + (40 × 0.004)²) = √(0.37² + 0.16²) = 0.40311 kg; Co 2.9 % × 37 = 1.073 kg,
+	// Ni 22.5 % × 37 = 8.325 kg, Li 3.3 % × 37 = 1.221 kg.
+	d = benchShow(t, db, "HM-1003")
+	if d.Evidence.DryMass == nil {
+		t.Fatal("HM-1003: no dry mass from the assay's moisture")
+	}
+	benchNear(t, "HM-1003 dry kg", d.Evidence.DryMass.Kg, 37, 1e-9)
+	benchNear(t, "HM-1003 dry sd kg", d.Evidence.DryMass.SigmaKg, 0.40311, 1e-5)
+	for el, kg := range map[string]float64{"Co": 1.073, "Ni": 8.325, "Li": 1.221} {
+		benchNear(t, "HM-1003 "+el+" kg", d.Evidence.Element(el).Kg, kg, 1e-9)
+	}
+	// HM-1002: weighed dry but not assayed: its metal stays on the estimate.
+	if d = benchShow(t, db, "HM-1002"); d.Evidence.Basis != register.BasisEstimate || d.Evidence.Element("Co").Measured != nil {
+		t.Errorf("HM-1002 without an assay: basis %s", d.Evidence.Basis)
+	}
+}
+
+// benchDayText checks the text the bench reads: the basis per lot and per element, a censored
+// value as "< limit".
+func benchDayText(t *testing.T, db string) {
+	t.Helper()
+	// The text the bench reads: the basis per lot and per element, a censored value as "< limit".
+	list := benchRun(t, "lot", "list", "--db", db)
+	for _, want := range []string{"HM-1001", "assay+weighing", "2.70 m", "1.07 m", "estimate"} {
+		if !strings.Contains(list, want) {
+			t.Errorf("lot list lacks %q:\n%s", want, list)
+		}
+	}
+	show := benchRun(t, "lot", "show", "HM-1001", "--db", db)
+	if first, _, _ := strings.Cut(show, "\n"); strings.ContainsAny(first, "[]") {
+		t.Errorf("lot show's versions printed as a Go slice: %q", first)
+	}
+	for _, want := range []string{"19.2 ± 0.192 kg dry", "< 0.0096", "Fe < 0.05 wt% (below the detection limit)", "not assayed, from the estimate"} {
+		if !strings.Contains(show, want) {
+			t.Errorf("lot show lacks %q:\n%s", want, show)
+		}
+	}
+	for _, l := range strings.Split(show, "\n") {
+		if f := strings.Fields(l); len(f) > 2 && f[0] == "Fe" && f[1] == "m" && strings.Contains(l, "0.0048") {
+			t.Errorf("lot show's table prints the censored Fe as its half-limit 0.0048 kg: %q", l)
+		}
+	}
+	// The note gives the range and the middle the sums use: 0.05 % × 19.2 kg = 0.0096 kg, half 0.0048.
+	if !strings.Contains(show, "Fe: below the detection limit, 0 to 0.0096 kg; sums and value use the middle, 0.0048 kg") {
+		t.Errorf("lot show lacks the censored Fe's note:\n%s", show)
+	}
+}
+
+// benchDayExport checks the export: one row per lot, the measured kg and the basis beside the
+// estimate.
+func benchDayExport(t *testing.T, dir, db string) {
+	t.Helper()
+	// The export: one row per lot, the measured kg and the basis beside the estimate.
+	csvPath := filepath.Join(dir, "lots.csv")
+	benchRun(t, "lot", "export", "--csv", csvPath, "--db", db)
+	benchRun(t, "lot", "export", "--xlsx", filepath.Join(dir, "lots.xlsx"), "--db", db)
+	rows := readBenchCSV(t, csvPath)
+	if len(rows) != 4 {
+		t.Fatalf("export: %d lots, want 4", len(rows))
+	}
+	r := rows["HM-1001"]
+	if r["basis"] != register.BasisMeasured || r["Co basis"] != register.BasisMeasured || r["Li basis"] != register.BasisMeasured {
+		t.Errorf("export HM-1001 bases: %s, Co %s, Li %s", r["basis"], r["Co basis"], r["Li basis"])
+	}
+	for col, want := range map[string]float64{"dry black mass kg": 19.2, "Co kg": 2.702985, "Co measured kg": 2.702985} {
+		v, err := strconv.ParseFloat(r[col], 64)
+		if err != nil {
+			t.Fatalf("export HM-1001 %s: %q", col, r[col])
+		}
+		benchNear(t, "export HM-1001 "+col, v, want, 1e-6)
+	}
+	if r["Co estimate kg (P50)"] == "" || r["Co measured/estimate"] == "" {
+		t.Error("export HM-1001: the estimate is not kept beside the measurement")
 	}
 }

@@ -125,6 +125,13 @@ func TestLotEvidence(t *testing.T) {
 			t.Errorf("lot show lacks %q:\n%s", want, text)
 		}
 	}
+	lotEvidenceOutputs(t, dir, step)
+}
+
+// lotEvidenceOutputs checks what carries the lot's evidence out of the register: the list, the
+// CSV and workbook exports and the month's totals. step runs a command on the register.
+func lotEvidenceOutputs(t *testing.T, dir string, step func(args ...string) string) {
+	t.Helper()
 	if list := step("lot", "list"); !strings.Contains(list, "assay+weighing") || !strings.Contains(list, " m ") {
 		t.Errorf("lot list: %s", list)
 	}

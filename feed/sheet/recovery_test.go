@@ -50,40 +50,7 @@ func TestRecoverySheet(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	numbers, found := 0, map[string]bool{}
-	for i, row := range rows {
-		for j, v := range row {
-			cell, _ := excelize.CoordinatesToCellName(j+1, i+1)
-			for _, want := range []string{"reagent NaOH", "product Co cathode, dry", "electricity", "Li to Li2CO3", "in: liquor",
-				"licensed practice"} {
-				if strings.HasPrefix(v, want) || strings.Contains(v, want) {
-					found[want] = true
-				}
-			}
-			typ, _ := f.GetCellType(s, cell)
-			if typ != excelize.CellTypeNumber && typ != excelize.CellTypeUnset {
-				continue
-			}
-			if _, err := f.GetCellValue(s, cell); err != nil || v == "" || strings.ContainsAny(v[:1], "abcdefghijklmnopqrstuvwxyzABCDEFGHIJKLMNOPQRSTUVWXYZ") {
-				continue
-			}
-			numbers++
-			id, _ := f.GetCellStyle(s, cell)
-			st, err := f.GetStyle(id)
-			if err != nil || (st.CustomNumFmt == nil && st.NumFmt == 0) {
-				t.Errorf("%s!%s = %s has no number format", s, cell, v)
-			}
-		}
-	}
-	if numbers < 100 {
-		t.Errorf("only %d numbers on the sheet", numbers)
-	}
-	for _, want := range []string{"reagent NaOH", "product Co cathode, dry", "electricity", "Li to Li2CO3", "in: liquor",
-		"licensed practice"} {
-		if !found[want] {
-			t.Errorf("the sheet lacks %q", want)
-		}
-	}
+	checkRecoveryCells(t, f, s, rows)
 	// Each table is kept whole on a page with its own header row (no repeated print title is
 	// needed): one header per stage at least.
 	headers := 0
@@ -138,4 +105,43 @@ func charts(t *testing.T, b []byte) int {
 		}
 	}
 	return n
+}
+
+// checkRecoveryCells wants on the recovery sheet s the reagents, products, electricity, the
+// liquor in and the caution, and every number in a number format.
+func checkRecoveryCells(t *testing.T, f *excelize.File, s string, rows [][]string) {
+	t.Helper()
+	wants := []string{"reagent NaOH", "product Co cathode, dry", "electricity", "Li to Li2CO3", "in: liquor", "licensed practice"}
+	numbers, found := 0, map[string]bool{}
+	for i, row := range rows {
+		for j, v := range row {
+			cell, _ := excelize.CoordinatesToCellName(j+1, i+1)
+			for _, want := range wants {
+				if strings.HasPrefix(v, want) || strings.Contains(v, want) {
+					found[want] = true
+				}
+			}
+			typ, _ := f.GetCellType(s, cell)
+			if typ != excelize.CellTypeNumber && typ != excelize.CellTypeUnset {
+				continue
+			}
+			if _, err := f.GetCellValue(s, cell); err != nil || v == "" || strings.ContainsAny(v[:1], "abcdefghijklmnopqrstuvwxyzABCDEFGHIJKLMNOPQRSTUVWXYZ") {
+				continue
+			}
+			numbers++
+			id, _ := f.GetCellStyle(s, cell)
+			st, err := f.GetStyle(id)
+			if err != nil || (st.CustomNumFmt == nil && st.NumFmt == 0) {
+				t.Errorf("%s!%s = %s has no number format", s, cell, v)
+			}
+		}
+	}
+	if numbers < 100 {
+		t.Errorf("only %d numbers on the sheet", numbers)
+	}
+	for _, want := range wants {
+		if !found[want] {
+			t.Errorf("the sheet lacks %q", want)
+		}
+	}
 }
