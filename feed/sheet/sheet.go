@@ -104,6 +104,7 @@ func Build(r *report.Report) (*excelize.File, error) {
 // the caller computes the formulas first (see writer.lines).
 func build(r *report.Report, paper int) (f *excelize.File, formulas []formulaCell, streamLines func() error, err error) {
 	f = excelize.NewFile()
+	f.SetZipWriter(newBlockZip)
 	wr := &writer{f: f, r: r, paper: paper, styles: map[styleKey]int{}}
 	must := func(id int, e error) int {
 		if e != nil && err == nil {
