@@ -6,7 +6,6 @@ package sheet
 import (
 	"blackmass/feed/manifest"
 	"blackmass/feed/report"
-	"bytes"
 	"fmt"
 	"io"
 	"strconv"
@@ -58,8 +57,9 @@ func WriteOn(w io.Writer, r *report.Report, paper int) error {
 	if err := streamLines(); err != nil {
 		return err
 	}
-	var buf bytes.Buffer
-	if err := f.Write(&buf); err != nil {
+	// The library's own buffer, not a copy of it: a large workbook is held once.
+	buf, err := f.WriteToBuffer()
+	if err != nil {
 		return err
 	}
 	return normaliseZip(buf.Bytes(), w, cached)
