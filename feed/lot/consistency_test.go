@@ -44,19 +44,9 @@ func TestModelSelfConsistent(t *testing.T) {
 	}
 }
 
-// modelOutsideBand are the chemistries whose modelled item, at every parameter's mode, lies
-// outside the band of published cells in some format, with the reason. Their cells are thin power
-// electrodes (data/model.csv, scope "chemistry"): an early LiFePO4 pouch at the published 26650
-// power cell's 1.28 mAh/cm² (Prada et al., J. Electrochem. Soc. 160 (2013) A616) is 1-2 % lighter
-// than the band's top of 130 Wh/kg, itself from memory; its cylindrical cell, 112 Wh/kg, is inside.
-var modelOutsideBand = map[string]string{
-	"LFP-early": "the first LiFePO4 power cells: the pouch at the published power cell's loading is just above the band",
-}
-
 // For every catalogued chemistry in every format, the modelled item at every parameter's mode
 // lies inside the plausible Wh/kg band the same model uses to flag a measured weight, so a weight
-// equal to the model's own item is not flagged; the listed exceptions are checked to lie outside
-// still, so that the list cannot outlive the reason.
+// equal to the model's own item is not flagged. No chemistry is excepted.
 func TestModelInsideItsBand(t *testing.T) {
 	t.Parallel()
 	cat := cathodetest.Catalogue(t)
@@ -69,8 +59,6 @@ func TestModelInsideItsBand(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		why, excepted := modelOutsideBand[e.Key]
-		inside := 0
 		for _, f := range manifest.Formats() {
 			const wh = 50.0
 			lot := NewLot(m, false)
@@ -85,14 +73,9 @@ func TestModelInsideItsBand(t *testing.T) {
 				t.Errorf("%s %s: %.0f Wh/kg in %.0f–%.0f is %v, flagged %d", e.Key, f, wh/own, lo, hi, in, lot.flagged)
 			}
 			t.Logf("%-12s %-12s model %4.0f Wh/kg, band %4.0f–%4.0f", e.Key, f, wh/own, lo, hi)
-			if in {
-				inside++
-			} else if !excepted {
+			if !in {
 				t.Errorf("%s %s: the model's own item (%.0f Wh/kg) lies outside the plausible %.0f–%.0f Wh/kg", e.Key, f, wh/own, lo, hi)
 			}
-		}
-		if excepted && inside == len(manifest.Formats()) {
-			t.Errorf("%s: listed as outside its band (%s) but inside in every format: remove it from the list", e.Key, why)
 		}
 	}
 }

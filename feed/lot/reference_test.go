@@ -1,7 +1,8 @@
 package lot
 
-// The reference set: published cell teardowns, cell-level metal intensities and black-mass
-// assays (testdata/reference, each row with its source) against the model's P10–P90. The test
+// The reference set: published cell teardowns, published cells weighed from their geometry,
+// cell-level metal intensities and black-mass assays (testdata/reference, each row with its
+// source) against the model's P10–P90. The test
 // prints the coverage of each set, the share of published values that fall inside the bands:
 // near 80 % says the bands are honest, near 100 % that they are too wide, far below that they
 // are too narrow or the model is off.
@@ -391,15 +392,17 @@ func TestReferenceRowsHaveSources(t *testing.T) {
 			names = append(names, e.Name())
 		}
 	}
-	if !slices.Contains(names, "cell_designs.csv") || !slices.Contains(names, "intensities.csv") || !slices.Contains(names, "black_mass.csv") {
-		t.Fatalf("reference set incomplete: %v", names)
+	for _, want := range []string{"cell_designs.csv", "cell_models.csv", "intensities.csv", "black_mass.csv"} {
+		if !slices.Contains(names, want) {
+			t.Fatalf("reference set incomplete: %v", names)
+		}
 	}
 	for _, n := range names {
 		for _, r := range readReference(t, n).Rows {
 			if strings.TrimSpace(r.Str("source")) == "" || strings.TrimSpace(r.Str("basis")) == "" {
 				t.Errorf("%s: a row without source or basis", n)
 			}
-			for _, col := range []string{"value", "kg_per_kWh", "min_wt_pct"} {
+			for _, col := range []string{"value", "kg_per_kWh", "min_wt_pct", "nameplate_ah"} {
 				if v, err := r.Float(col); err == nil && (math.IsNaN(v) || v <= 0) {
 					t.Errorf("%s: %s %v", n, col, v)
 				}
