@@ -19,22 +19,52 @@ import (
 // sheet's XML; the blocks are the same on any number of processors, so are the bytes.
 const deflateBlockBytes = 1 << 20
 
+// deflateLevel is the compression of a workbook's parts. Level 3 against the default 6, on a
+// manifest of 230,000 lines: 4.0 s against 5.9 s for the whole command on two processors, the
+// file 26.7 MB against 22.9 (level 2: 3.8 s, 29.3 MB; level 1: 3.7 s, 34.2 MB).
+const deflateLevel = 3
+
 // blockZip is the zip writer the xlsx library writes a workbook with: each part is cut into
 // blocks deflated side by side, one per processor, and written in order as one deflate stream
 // (every block but the last ends on a sync flush, which carries no end mark). The sizes and the
 // checksum go in the data descriptor after the part, as the zip format allows for a part whose
 // sizes are not known before it is written.
+//
+// A part named in splices is held as the library writes it and then written by its splice
+// function, which puts in what the library never held (the Lines sheet's rows).
 type blockZip struct {
-	zw   *zip.Writer
-	part *blockPart // the part being written, if any
+	zw      *zip.Writer
+	part    *blockPart // the part being written, if any
+	splices map[string]splice
+	held    *heldPart // the part being held for its splice, if any
 }
 
-func newBlockZip(w io.Writer) excelize.ZipWriter { return &blockZip{zw: zip.NewWriter(w)} }
+// splice writes a part to out from the bytes the xlsx library gave for it.
+type splice func(part []byte, out io.Writer) error
+
+type heldPart struct {
+	name string
+	fn   splice
+	buf  bytes.Buffer
+}
+
+// newBlockZip returns the xlsx library's zip writer, with the parts of splices written by them.
+func newBlockZip(splices map[string]splice) func(io.Writer) excelize.ZipWriter {
+	return func(w io.Writer) excelize.ZipWriter { return &blockZip{zw: zip.NewWriter(w), splices: splices} }
+}
 
 func (z *blockZip) Create(name string) (io.Writer, error) {
 	if err := z.endPart(); err != nil {
 		return nil, err
 	}
+	if fn := z.splices[name]; fn != nil {
+		z.held = &heldPart{name: name, fn: fn}
+		return &z.held.buf, nil
+	}
+	return z.create(name)
+}
+
+func (z *blockZip) create(name string) (*blockPart, error) {
 	fh := &zip.FileHeader{Name: name, Method: zip.Deflate, Flags: 0x8}
 	out, err := z.zw.CreateRaw(fh)
 	if err != nil {
@@ -59,6 +89,16 @@ func (z *blockZip) Close() error {
 }
 
 func (z *blockZip) endPart() error {
+	if h := z.held; h != nil {
+		z.held = nil
+		p, err := z.create(h.name)
+		if err != nil {
+			return err
+		}
+		if err := h.fn(h.buf.Bytes(), p); err != nil {
+			return err
+		}
+	}
 	if z.part == nil {
 		return nil
 	}
@@ -91,7 +131,7 @@ type deflated struct {
 // The compressors, blocks and their outputs are reused: a large part is many blocks.
 var (
 	flateWriters = sync.Pool{New: func() any {
-		w, _ := flate.NewWriter(io.Discard, flate.DefaultCompression)
+		w, _ := flate.NewWriter(io.Discard, deflateLevel)
 		return w
 	}}
 	blockBufs  = sync.Pool{New: func() any { b := make([]byte, 0, deflateBlockBytes); return &b }}

@@ -29,7 +29,7 @@ func TestBlockZipReadsBack(t *testing.T) {
 	}
 	write := func() []byte {
 		var buf bytes.Buffer
-		z := newBlockZip(&buf)
+		z := newBlockZip(nil)(&buf)
 		for i, p := range parts {
 			w, err := z.Create(fmt.Sprintf("xl/part%d.xml", i))
 			if err != nil {

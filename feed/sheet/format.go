@@ -90,6 +90,15 @@ func (w *writer) sigStyle(v float64) int {
 	return w.sigStyles[d]
 }
 
+// makeSigStyles makes every sigStyle before the workbook is zipped, for rows written while it is
+// (lineRows): the styles part is written first.
+func (w *writer) makeSigStyles() {
+	w.sigStyle(0)
+	for d := 0; d <= 6; d++ {
+		w.sigStyle(math.Pow10(2 - d))
+	}
+}
+
 // fixedFmt shows d decimals with thousands separators.
 func fixedFmt(d int) string {
 	if d <= 0 {

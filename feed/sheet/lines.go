@@ -2,7 +2,9 @@ package sheet
 
 import (
 	"blackmass/feed/manifest"
+	"bytes"
 	"fmt"
+	"io"
 	"math"
 	"strconv"
 	"strings"
@@ -74,7 +76,8 @@ func denseLines(s string, widthUnits float64, boldText bool) int {
 	return textLines(s, widthUnits*bodyPt/densePt, boldText)
 }
 
-// streamLines writes the Lines sheet's rows through the stream writer.
+// streamLines writes the Lines sheet through the stream writer: its columns, panes, header and
+// totals rows; its lines are put in when the workbook is zipped (lineRows).
 func (w *writer) streamLines() error {
 	f, r := w.f, w.r
 	if r.Lot.Lines == 0 {
@@ -111,36 +114,12 @@ func (w *writer) streamLines() error {
 	if err := sw.SetRow("A1", names, excelize.RowOpts{Height: headH}); err != nil {
 		return err
 	}
-	textStyle, wrapStyle, countStyle := w.styleOf(dense, fmtText), w.styleOf(denseWrap, fmtText), w.styleOf(dense, fmtCount)
-	for i, l := range r.EachLine() {
-		vals := []any{l.ID, l.Description, l.ChemistryLabel, l.Format, l.Count, l.EnergyWhPerItem, opt(l.MeasuredMassKg), l.BlackMassKg,
-			l.CapacityGiven, l.CapacityBasis, opt(l.VoltageV), optInt(l.CellsPerItem), l.Notes, l.Application,
-			l.Line, l.Chemistry, l.ModelMassKgEach, opt(l.MeasuredWhPerKg), l.CathodeKg, strings.Join(l.Flags, "; ")}
-		h := lineRowPt
-		row := make([]any, len(vals))
-		for j, v := range vals {
-			switch x := v.(type) {
-			case string:
-				st := textStyle
-				if cols[j].wrap {
-					st = wrapStyle
-					if j < PrintedLineColumns { // the printed rows are as tall as their text
-						if n := denseLines(x, cols[j].width, false); n > 1 {
-							h = max(h, float64(n)*lineLinePt+1)
-						}
-					}
-				}
-				row[j] = excelize.Cell{StyleID: st, Value: x} // user text as typed, never a formula
-			case int:
-				row[j] = excelize.Cell{StyleID: countStyle, Value: x}
-			case float64:
-				row[j] = excelize.Cell{StyleID: w.sigStyle(x), Value: x}
-			}
-		}
-		cell, _ := excelize.CoordinatesToCellName(1, i+2)
-		if err := sw.SetRow(cell, row, excelize.RowOpts{Height: h}); err != nil {
-			return err
-		}
+	// The data rows go into the sheet's part as it is zipped, between the header and the totals
+	// row (lineRows), written as the stream writer writes them but without its machinery.
+	if r.LineCount() > 0 {
+		w.makeSigStyles()
+		_, _, _ = w.styleOf(dense, fmtText), w.styleOf(denseWrap, fmtText), w.styleOf(dense, fmtCount)
+		w.splices[w.partOf(Lines)] = func(part []byte, out io.Writer) error { return w.lineRows(cols, part, out) }
 	}
 	// A totals row from the report, in the computed columns only, so that the sheet read back
 	// as a manifest passes over it (a row with nothing in the manifest's own columns).
@@ -164,6 +143,75 @@ func (w *writer) streamLines() error {
 		_ = f.AutoFilter(Lines, fmt.Sprintf("A1:%s%d", last, r.LineCount()+1), nil)
 	}
 	return sw.Flush()
+}
+
+// lineRowsFlushBytes is how much row XML lineRows gathers before handing it on.
+const lineRowsFlushBytes = 64 << 10
+
+// lineRows writes the Lines sheet's part: its XML as the stream writer left it (header and totals
+// rows), with every line's row put before the totals row.
+func (w *writer) lineRows(cols []lineColumn, part []byte, out io.Writer) error {
+	r := w.r
+	mark := []byte(`<row r="` + strconv.Itoa(r.LineCount()+2) + `"`)
+	at := bytes.Index(part, mark)
+	if at < 0 {
+		return fmt.Errorf("sheet: the %s sheet has no totals row to put its lines before", Lines)
+	}
+	if _, err := out.Write(part[:at]); err != nil {
+		return err
+	}
+	textStyle, wrapStyle, countStyle := w.styleOf(dense, fmtText), w.styleOf(denseWrap, fmtText), w.styleOf(dense, fmtCount)
+	if w.err != nil {
+		return w.err
+	}
+	styles := len(w.styles) // the styles part is written: no style may be made now
+	x := rowXML{b: make([]byte, 0, lineRowsFlushBytes+4096)}
+	vals := make([]any, len(cols))
+	for i, l := range r.EachLine() {
+		vals = append(vals[:0], l.ID, l.Description, l.ChemistryLabel, l.Format, l.Count, l.EnergyWhPerItem, opt(l.MeasuredMassKg), l.BlackMassKg,
+			l.CapacityGiven, l.CapacityBasis, opt(l.VoltageV), optInt(l.CellsPerItem), l.Notes, l.Application,
+			l.Line, l.Chemistry, l.ModelMassKgEach, opt(l.MeasuredWhPerKg), l.CathodeKg, strings.Join(l.Flags, "; "))
+		h := lineRowPt
+		for j := range PrintedLineColumns { // the printed rows are as tall as their wrapped text
+			if s, ok := vals[j].(string); ok && cols[j].wrap {
+				if n := denseLines(s, cols[j].width, false); n > 1 {
+					h = max(h, float64(n)*lineLinePt+1)
+				}
+			}
+		}
+		num := i + 2
+		x.start(num, h)
+		for j, v := range vals {
+			st := 0
+			switch v := v.(type) {
+			case string:
+				st = textStyle
+				if cols[j].wrap {
+					st = wrapStyle
+				}
+			case int:
+				st = countStyle
+			case float64:
+				st = w.sigStyle(v)
+			}
+			x.cell(j+1, num, st, v) // user text as typed, never a formula
+		}
+		x.end()
+		if len(x.b) >= lineRowsFlushBytes {
+			if _, err := out.Write(x.b); err != nil {
+				return err
+			}
+			x.b = x.b[:0]
+		}
+	}
+	if len(w.styles) != styles {
+		return fmt.Errorf("sheet: a style of the %s sheet was made after the styles were written", Lines)
+	}
+	if _, err := out.Write(x.b); err != nil {
+		return err
+	}
+	_, err := out.Write(part[at:])
+	return err
 }
 
 // sig3 prints a number to three significant figures for a sentence.

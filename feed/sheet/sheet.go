@@ -35,9 +35,10 @@ type writer struct {
 	hdr, num3, pct, title int
 	edit                  int // cells a user is expected to change
 	r                     *report.Report
-	styles                map[styleKey]int // made on demand (styleOf)
-	sigStyles             [8]int           // sigStyle's, by decimals + 1
-	err                   error            // the first error making a style
+	styles                map[styleKey]int  // made on demand (styleOf)
+	sigStyles             [8]int            // sigStyle's, by decimals + 1
+	err                   error             // the first error making a style
+	splices               map[string]splice // parts written as the workbook is zipped (blockZip)
 }
 
 // Write builds the workbook and writes it to w.
@@ -65,6 +66,16 @@ func WriteOn(w io.Writer, r *report.Report, paper int) error {
 	return normaliseZip(buf.Bytes(), w, cached)
 }
 
+// partOf is the name of a sheet's part in the package.
+func (w *writer) partOf(sheet string) string {
+	for id, name := range w.f.GetSheetMap() {
+		if name == sheet {
+			return fmt.Sprintf("xl/worksheets/sheet%d.xml", id)
+		}
+	}
+	return ""
+}
+
 // cachedValues computes every formula at the report's values, by worksheet part.
 func cachedValues(f *excelize.File, formulas []formulaCell) (map[string]map[string]cachedValue, error) {
 	parts := map[string]string{}
@@ -87,7 +98,8 @@ func cachedValues(f *excelize.File, formulas []formulaCell) (map[string]map[stri
 	return out, nil
 }
 
-// Build returns the workbook; the caller closes it.
+// Build returns the workbook; the caller closes it. The Lines sheet's line rows are put in as it
+// is saved (blockZip), so they are read from a saved copy.
 func Build(r *report.Report) (*excelize.File, error) {
 	f, _, streamLines, err := build(r, PaperA4)
 	if err != nil {
@@ -104,8 +116,8 @@ func Build(r *report.Report) (*excelize.File, error) {
 // the caller computes the formulas first (see writer.lines).
 func build(r *report.Report, paper int) (f *excelize.File, formulas []formulaCell, streamLines func() error, err error) {
 	f = excelize.NewFile()
-	f.SetZipWriter(newBlockZip)
-	wr := &writer{f: f, r: r, paper: paper, styles: map[styleKey]int{}}
+	wr := &writer{f: f, r: r, paper: paper, styles: map[styleKey]int{}, splices: map[string]splice{}}
+	f.SetZipWriter(newBlockZip(wr.splices))
 	must := func(id int, e error) int {
 		if e != nil && err == nil {
 			err = e
