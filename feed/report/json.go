@@ -27,15 +27,13 @@ func (r *Report) WriteJSON(w io.Writer) error {
 	}
 	bw.Write(b[:len(b)-2])
 	bw.WriteString(",\n  \"lines\": [\n")
-	var line bytes.Buffer
-	enc := json.NewEncoder(&line)
+	var line []byte
 	for i, l := range r.EachLine() {
-		line.Reset()
-		if err := enc.Encode(&l); err != nil {
+		line = append(line[:0], "    "...)
+		if line, err = l.AppendJSON(line); err != nil {
 			return err
 		}
-		bw.WriteString("    ")
-		bw.Write(bytes.TrimSuffix(line.Bytes(), []byte("\n")))
+		bw.Write(line)
 		if i < n-1 {
 			bw.WriteByte(',')
 		}
