@@ -51,6 +51,11 @@ func (p *lineParser) chemistry(l *manifest.Line, rec []string, line int) error {
 		}
 		l.Application = app
 	}
+	// Every line names its application when its description or notes do, whether or not its
+	// label needs it, so that a line reads the same however the lines are spread over parsers.
+	if l.Application == "" && (l.Description != "" || l.Notes != "") {
+		l.Application = p.describedApplication(l.Description, l.Notes)
+	}
 	// A label resolved once is reused; only a label that says nothing about the cathode needs
 	// the item's application (from its column, or a word of the description or notes).
 	if r, ok := p.lastChem.get(l.ChemistryLabel); ok {
@@ -61,9 +66,6 @@ func (p *lineParser) chemistry(l *manifest.Line, rec []string, line int) error {
 		p.lastChem.put(l.ChemistryLabel, r)
 		l.Chemistry = r.chem
 		return nil
-	}
-	if l.Application == "" && (l.Description != "" || l.Notes != "") {
-		l.Application = p.opt.Catalogue.Application(l.Description + " " + l.Notes)
 	}
 	priorKey := l.Application
 	if priorKey == "" {
@@ -379,4 +381,20 @@ func parseCellsPerPack(s string) (int, error) {
 		return 0, fmt.Errorf("more than %d cells per item", maxCellsPerItem)
 	}
 	return s1 * p1, nil
+}
+
+// describedApplication is the application a line's description and notes name, "" for none;
+// the previous line's answer is reused when they are the same (a manifest repeats them).
+func (p *lineParser) describedApplication(description, notes string) string {
+	m := &p.lastDescribed
+	if !m.set || m.description != description || m.notes != notes {
+		*m = describedApp{set: true, description: description, notes: notes, app: p.opt.Catalogue.Application(description + " " + notes)}
+	}
+	return m.app
+}
+
+// describedApp is the application found in a description and notes.
+type describedApp struct {
+	set                     bool
+	description, notes, app string
 }

@@ -200,14 +200,15 @@ type lineParser struct {
 	alikeSkip    int                      // lines to parse without looking up
 	// vals are the trimmed values of the record readRows is on (loaded), found once for the many
 	// reads of its columns; get knows the record by its first field's address and its length.
-	vals       [numColumns]string
-	loaded     bool
-	loadedAt   *string
-	loadedLen  int
-	others     otherCache                    // label -> battery that is not lithium-ion (nil: lithium-ion)
-	lastOther  recent[*cathode.OtherBattery] // the labels others answered last
-	lastFormat recent[manifest.Format]       // the format texts read last
-	lastChem   recent[*resolved]             // the labels resolved last without an application
+	vals          [numColumns]string
+	loaded        bool
+	loadedAt      *string
+	loadedLen     int
+	others        otherCache                    // label -> battery that is not lithium-ion (nil: lithium-ion)
+	lastOther     recent[*cathode.OtherBattery] // the labels others answered last
+	lastFormat    recent[manifest.Format]       // the format texts read last
+	lastChem      recent[*resolved]             // the labels resolved last without an application
+	lastDescribed describedApp                  // the previous line's application from its description and notes
 }
 
 // quantity is a parsed quantity, or the error it gave, with its text in the base unit.
