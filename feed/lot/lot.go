@@ -77,6 +77,10 @@ type group struct {
 	bandLo                          float64 // plausible Wh/kg band of an item
 	bandHi                          float64
 	modeWhPerKg                     float64 // most likely Wh/kg of an item, for lines known by weight only
+	// The group's cell design at every parameter's mode and the areal capacities its weighed
+	// lines may take, set when the lot's lines are read (keptLines).
+	modeDesign                   design
+	arealLoMAhCm2, arealHiMAhCm2 float64
 	// lastLabel and lastStat are the label of the group's previous line and its count: lines
 	// of a group mostly repeat one label, and comparing the strings (often one and the same
 	// string) is cheaper than hashing it.
@@ -95,12 +99,10 @@ type Lot struct {
 	nextRecent int
 	order      []*group
 	kept       [][]keptLine // the kept lines as added, in chunks of lineChunk: no copy of all lines as they grow
-	// Scratch of lineDetail, which makes one line's detail at a time.
-	bmBuf      []float64
+	// The elements by symbol and which are metals, for the lines' detail (elementOrder).
 	elOrder    []int
 	elMetal    []bool
-	perEl      []float64
-	seenEl     []bool
+	modeGlobal globals // the global parameters at their modes, for the lines' detail
 	warnings   []string
 	warned     map[string]bool
 	comp       *compounds
@@ -255,7 +257,7 @@ type keptLine struct {
 }
 
 // lineChunk is the number of lines held in one chunk.
-const lineChunk = 4096
+const lineChunk = 1024
 
 // keepLine keeps one line, in chunks so that a million lines are never copied as the list grows.
 func (l *Lot) keepLine(k keptLine) {
@@ -267,8 +269,8 @@ func (l *Lot) keepLine(k keptLine) {
 }
 
 // Lines is the detail of a lot's kept lines, each made when it is read: the lot holds each line
-// as parsed, a fraction of its detail, so a large manifest's detail is never held whole. The
-// detail is made with the lot's scratch: read it from one goroutine at a time.
+// as parsed, a fraction of its detail, so a large manifest's detail is never held whole. Each
+// read has scratch of its own, so chunks may be read side by side.
 type Lines struct {
 	l *Lot
 	n int
@@ -277,22 +279,38 @@ type Lines struct {
 // Len is the number of lines.
 func (ls *Lines) Len() int { return ls.n }
 
+// Chunks is how many chunks the lines are held in (Chunk).
+func (ls *Lines) Chunks() int { return len(ls.l.kept) }
+
 // All yields each line's detail, in the manifest's order.
 func (ls *Lines) All() iter.Seq2[int, LineResult] {
 	return func(yield func(int, LineResult) bool) {
-		i := 0
-		for _, c := range ls.l.kept {
-			for j := range c {
-				if !yield(i, ls.l.lineDetail(&c[j])) {
+		for c := range ls.l.kept {
+			for i, r := range ls.Chunk(c) {
+				if !yield(i, r) {
 					return
 				}
-				i++
 			}
 		}
 	}
 }
 
-// keptLines returns the kept lines' detail, nil when none were kept.
+// Chunk yields the detail of the lines of chunk c (0 ≤ c < Chunks) with their index among all
+// lines, in the manifest's order.
+func (ls *Lines) Chunk(c int) iter.Seq2[int, LineResult] {
+	return func(yield func(int, LineResult) bool) {
+		var sc lineScratch
+		for j := range ls.l.kept[c] {
+			if !yield(c*lineChunk+j, ls.l.lineDetail(&ls.l.kept[c][j], &sc)) {
+				return
+			}
+		}
+	}
+}
+
+// keptLines returns the kept lines' detail, nil when none were kept. It sets what every line's
+// detail reads (the groups' designs at the modes, the elements' order), so that the detail
+// itself only reads the lot.
 func (l *Lot) keptLines() *Lines {
 	if !l.keepLines {
 		return nil
@@ -301,12 +319,25 @@ func (l *Lot) keptLines() *Lines {
 	for _, c := range l.kept {
 		n += len(c)
 	}
+	l.elementOrder()
+	l.modeGlobal = l.mode.global(0)
+	for _, g := range l.order {
+		g.modeDesign = l.mode.designOf(g.chem, g.format, 0)
+		g.arealLoMAhCm2, g.arealHiMAhCm2 = l.mode.arealBounds(g.chem, g.format)
+	}
 	return &Lines{l: l, n: n}
+}
+
+// lineScratch is one reader's scratch for lines' detail.
+type lineScratch struct {
+	bm    []float64 // compound masses
+	perEl []float64
+	seen  []bool
 }
 
 // lineDetail makes a kept line's detail: its most likely breakdown of one item, and the masses
 // of its count.
-func (l *Lot) lineDetail(k *keptLine) LineResult {
+func (l *Lot) lineDetail(k *keptLine, sc *lineScratch) LineResult {
 	ln := &k.ln
 	ch := ln.Chemistry
 	g := l.byPtr[ptrKey{ch, ln.Format}]
@@ -334,19 +365,18 @@ func (l *Lot) lineDetail(k *keptLine) LineResult {
 	if ln.MassOnly() {
 		flags = append(flags, "no capacity: energy from the mass and the chemistry's Wh/kg band")
 	}
-	fr, gl := l.mode.designOf(ch, ln.Format, 0), l.mode.global(0)
+	fr, gl := g.modeDesign, l.modeGlobal
 	itemWh := ln.EnergyWh
 	if ln.MassOnly() {
 		itemWh = energyWh
 	}
 	if weighedLine {
-		lo, hi := l.mode.arealBounds(ch, ln.Format)
-		fr = weighed(itemWh, ln.ChargeAh, mx, fr, gl, ln.MassKg*1000, lo, hi)
+		fr = weighed(itemWh, ln.ChargeAh, mx, fr, gl, ln.MassKg*1000, g.arealLoMAhCm2, g.arealHiMAhCm2)
 	}
 	b := model(itemWh, ln.ChargeAh, mx, fr, gl)
-	bm := l.scratch(k.nComp)
+	bm := sc.compounds(k.nComp)
 	b.blackMass(bm, fr, gl, g.camIdx, ch.MeanShares())
-	els, total := l.lineElements(bm, cnt)
+	els, total := l.lineElements(bm, cnt, sc)
 	return LineResult{Line: ln.Num, ID: ln.ID, Description: ln.Description, ChemistryLabel: ln.ChemistryLabel,
 		Chemistry: ch.Key, Unknown: ch.Unknown, Format: ln.Format.String(), Count: ln.Count, CellsPerItem: ln.CellsPerItem,
 		Application: ln.Application, CapacityText: ln.CapacityText, CapacityGiven: ln.CapacityGiven(),
@@ -357,15 +387,14 @@ func (l *Lot) lineDetail(k *keptLine) LineResult {
 		Notes: ln.Notes}
 }
 
-// scratch returns the lot's buffer of n compound masses, zeroed: lines' details are made one
-// at a time.
-func (l *Lot) scratch(n int) []float64 {
-	if cap(l.bmBuf) < n {
-		l.bmBuf = make([]float64, n)
+// compounds returns the scratch's n compound masses, zeroed.
+func (sc *lineScratch) compounds(n int) []float64 {
+	if cap(sc.bm) < n {
+		sc.bm = make([]float64, n)
 	}
-	l.bmBuf = l.bmBuf[:n]
-	clear(l.bmBuf)
-	return l.bmBuf
+	sc.bm = sc.bm[:n]
+	clear(sc.bm)
+	return sc.bm
 }
 
 // elementOrder returns the lot's element indices by symbol and which elements are metals, made
@@ -377,16 +406,18 @@ func (l *Lot) elementOrder() (order []int, metal []bool) {
 			l.elOrder[e], l.elMetal[e] = e, cathode.IsMetal(sym)
 		}
 		slices.SortFunc(l.elOrder, func(a, b int) int { return strings.Compare(l.comp.elements[a], l.comp.elements[b]) })
-		l.perEl, l.seenEl = make([]float64, n), make([]bool, n)
 	}
 	return l.elOrder, l.elMetal
 }
 
 // lineElements sums a line's most likely black mass (g per item, by compound) into metals by
 // element (kg for the line's count), sorted by symbol, and its black mass (g per item).
-func (l *Lot) lineElements(bm []float64, count float64) (ElementMasses, float64) {
-	order, metal := l.elementOrder()
-	perEl, seen := l.perEl, l.seenEl
+func (l *Lot) lineElements(bm []float64, count float64, sc *lineScratch) (ElementMasses, float64) {
+	order, metal := l.elOrder, l.elMetal // made by keptLines
+	if n := len(order); len(sc.perEl) != n {
+		sc.perEl, sc.seen = make([]float64, n), make([]bool, n)
+	}
+	perEl, seen := sc.perEl, sc.seen
 	clear(perEl)
 	clear(seen)
 	total, nSeen := 0.0, 0

@@ -5,6 +5,8 @@ import (
 	"bytes"
 	"encoding/json"
 	"io"
+
+	"blackmass/feed/lot"
 )
 
 // WriteJSON writes the report as indented JSON, with its per-line results one compact object
@@ -27,19 +29,21 @@ func (r *Report) WriteJSON(w io.Writer) error {
 	}
 	bw.Write(b[:len(b)-2])
 	bw.WriteString(",\n  \"lines\": [\n")
-	var line []byte
-	for i, l := range r.EachLine() {
-		line = append(line[:0], "    "...)
-		if line, err = l.AppendJSON(line); err != nil {
-			return err
+	err = r.WriteLines(func(b []byte, i int, l lot.LineResult) ([]byte, error) {
+		b, err := l.AppendJSON(append(b, "    "...))
+		if err != nil {
+			return b, err
 		}
-		bw.Write(line)
 		if i < n-1 {
-			bw.WriteByte(',')
+			b = append(b, ',')
 		}
-		if _, err := bw.WriteString("\n"); err != nil {
-			return err
-		}
+		return append(b, '\n'), nil
+	}, func(b []byte) error {
+		_, err := bw.Write(b)
+		return err
+	})
+	if err != nil {
+		return err
 	}
 	bw.WriteString("  ]\n}\n")
 	return bw.Flush()

@@ -1,6 +1,7 @@
 package sheet
 
 import (
+	"blackmass/feed/lot"
 	"blackmass/feed/manifest"
 	"bytes"
 	"fmt"
@@ -145,9 +146,6 @@ func (w *writer) streamLines() error {
 	return sw.Flush()
 }
 
-// lineRowsFlushBytes is how much row XML lineRows gathers before handing it on.
-const lineRowsFlushBytes = 64 << 10
-
 // lineRows writes the Lines sheet's part: its XML as the stream writer left it (header and totals
 // rows), with every line's row put before the totals row.
 func (w *writer) lineRows(cols []lineColumn, part []byte, out io.Writer) error {
@@ -165,12 +163,10 @@ func (w *writer) lineRows(cols []lineColumn, part []byte, out io.Writer) error {
 		return w.err
 	}
 	styles := len(w.styles) // the styles part is written: no style may be made now
-	x := rowXML{b: make([]byte, 0, lineRowsFlushBytes+4096)}
-	vals := make([]any, len(cols))
-	for i, l := range r.EachLine() {
-		vals = append(vals[:0], l.ID, l.Description, l.ChemistryLabel, l.Format, l.Count, l.EnergyWhPerItem, opt(l.MeasuredMassKg), l.BlackMassKg,
+	err := r.WriteLines(func(b []byte, i int, l lot.LineResult) ([]byte, error) {
+		vals := [...]any{l.ID, l.Description, l.ChemistryLabel, l.Format, l.Count, l.EnergyWhPerItem, opt(l.MeasuredMassKg), l.BlackMassKg,
 			l.CapacityGiven, l.CapacityBasis, opt(l.VoltageV), optInt(l.CellsPerItem), l.Notes, l.Application,
-			l.Line, l.Chemistry, l.ModelMassKgEach, opt(l.MeasuredWhPerKg), l.CathodeKg, strings.Join(l.Flags, "; "))
+			l.Line, l.Chemistry, l.ModelMassKgEach, opt(l.MeasuredWhPerKg), l.CathodeKg, strings.Join(l.Flags, "; ")}
 		h := lineRowPt
 		for j := range PrintedLineColumns { // the printed rows are as tall as their wrapped text
 			if s, ok := vals[j].(string); ok && cols[j].wrap {
@@ -179,6 +175,7 @@ func (w *writer) lineRows(cols []lineColumn, part []byte, out io.Writer) error {
 				}
 			}
 		}
+		x := rowXML{b: b}
 		num := i + 2
 		x.start(num, h)
 		for j, v := range vals {
@@ -192,25 +189,23 @@ func (w *writer) lineRows(cols []lineColumn, part []byte, out io.Writer) error {
 			case int:
 				st = countStyle
 			case float64:
-				st = w.sigStyle(v)
+				st = w.sigStyles[sigDecimals(v)+1] // made before the workbook is zipped
 			}
 			x.cell(j+1, num, st, v) // user text as typed, never a formula
 		}
 		x.end()
-		if len(x.b) >= lineRowsFlushBytes {
-			if _, err := out.Write(x.b); err != nil {
-				return err
-			}
-			x.b = x.b[:0]
-		}
+		return x.b, nil
+	}, func(b []byte) error {
+		_, err := out.Write(b)
+		return err
+	})
+	if err != nil {
+		return err
 	}
 	if len(w.styles) != styles {
 		return fmt.Errorf("sheet: a style of the %s sheet was made after the styles were written", Lines)
 	}
-	if _, err := out.Write(x.b); err != nil {
-		return err
-	}
-	_, err := out.Write(part[at:])
+	_, err = out.Write(part[at:])
 	return err
 }
 
