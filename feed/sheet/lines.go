@@ -150,6 +150,7 @@ func (w *writer) streamLines() error {
 // rows), with every line's row put before the totals row.
 func (w *writer) lineRows(cols []lineColumn, part []byte, out io.Writer) error {
 	r := w.r
+	styles := len(w.styles) // the styles part is written: no style may be made now
 	mark := []byte(`<row r="` + strconv.Itoa(r.LineCount()+2) + `"`)
 	at := bytes.Index(part, mark)
 	if at < 0 {
@@ -162,7 +163,6 @@ func (w *writer) lineRows(cols []lineColumn, part []byte, out io.Writer) error {
 	if w.err != nil {
 		return w.err
 	}
-	styles := len(w.styles) // the styles part is written: no style may be made now
 	err := r.WriteLines(func(b []byte, i int, l lot.LineResult) ([]byte, error) {
 		vals := [...]any{l.ID, l.Description, l.ChemistryLabel, l.Format, l.Count, l.EnergyWhPerItem, opt(l.MeasuredMassKg), l.BlackMassKg,
 			l.CapacityGiven, l.CapacityBasis, opt(l.VoltageV), optInt(l.CellsPerItem), l.Notes, l.Application,
