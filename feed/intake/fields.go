@@ -384,17 +384,15 @@ func parseCellsPerPack(s string) (int, error) {
 }
 
 // describedApplication is the application a line's description and notes name, "" for none;
-// the previous line's answer is reused when they are the same (a manifest repeats them).
+// the previous line's answer is reused when they are the same (a manifest repeats them). It is
+// asked only with a description or notes, so the empty memo matches nothing.
 func (p *lineParser) describedApplication(description, notes string) string {
 	m := &p.lastDescribed
-	if !m.set || m.description != description || m.notes != notes {
-		*m = describedApp{set: true, description: description, notes: notes, app: p.opt.Catalogue.Application(description + " " + notes)}
+	if m.description != description || m.notes != notes {
+		*m = describedApp{description: description, notes: notes, app: p.opt.Catalogue.Application(description + " " + notes)}
 	}
 	return m.app
 }
 
 // describedApp is the application found in a description and notes.
-type describedApp struct {
-	set                     bool
-	description, notes, app string
-}
+type describedApp struct{ description, notes, app string }

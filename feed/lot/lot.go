@@ -256,7 +256,8 @@ type keptLine struct {
 	nComp int
 }
 
-// lineChunk is the number of lines held in one chunk.
+// lineChunk is the number of lines held in one chunk, and read by one worker (Lines.Chunk): with
+// 4,096 a 230,000-line workbook held 20 MB more of rendered rows in flight, with no gain in time.
 const lineChunk = 1024
 
 // keepLine keeps one line, in chunks so that a million lines are never copied as the list grows.
@@ -397,9 +398,9 @@ func (sc *lineScratch) compounds(n int) []float64 {
 	return sc.bm
 }
 
-// elementOrder returns the lot's element indices by symbol and which elements are metals, made
-// again only when the lot has learnt more elements.
-func (l *Lot) elementOrder() (order []int, metal []bool) {
+// elementOrder sets the lot's element indices by symbol and which elements are metals (elOrder,
+// elMetal), made again only when the lot has learnt more elements.
+func (l *Lot) elementOrder() {
 	if n := len(l.comp.elements); len(l.elOrder) != n {
 		l.elOrder, l.elMetal = make([]int, n), make([]bool, n)
 		for e, sym := range l.comp.elements {
@@ -407,7 +408,6 @@ func (l *Lot) elementOrder() (order []int, metal []bool) {
 		}
 		slices.SortFunc(l.elOrder, func(a, b int) int { return strings.Compare(l.comp.elements[a], l.comp.elements[b]) })
 	}
-	return l.elOrder, l.elMetal
 }
 
 // lineElements sums a line's most likely black mass (g per item, by compound) into metals by

@@ -118,9 +118,10 @@ func (w *writer) streamLines() error {
 	// The data rows go into the sheet's part as it is zipped, between the header and the totals
 	// row (lineRows), written as the stream writer writes them but without its machinery.
 	if r.LineCount() > 0 {
+		// Every style the rows take is made now: the styles part is written before the rows.
 		w.makeSigStyles()
-		_, _, _ = w.styleOf(dense, fmtText), w.styleOf(denseWrap, fmtText), w.styleOf(dense, fmtCount)
-		w.splices[w.partOf(Lines)] = func(part []byte, out io.Writer) error { return w.lineRows(cols, part, out) }
+		st := lineStyles{text: w.styleOf(dense, fmtText), wrap: w.styleOf(denseWrap, fmtText), count: w.styleOf(dense, fmtCount)}
+		w.splices[sheetParts(f)[Lines]] = func(part []byte, out io.Writer) error { return w.lineRows(cols, st, part, out) }
 	}
 	// A totals row from the report, in the computed columns only, so that the sheet read back
 	// as a manifest passes over it (a row with nothing in the manifest's own columns).
@@ -148,9 +149,8 @@ func (w *writer) streamLines() error {
 
 // lineRows writes the Lines sheet's part: its XML as the stream writer left it (header and totals
 // rows), with every line's row put before the totals row.
-func (w *writer) lineRows(cols []lineColumn, part []byte, out io.Writer) error {
+func (w *writer) lineRows(cols []lineColumn, st lineStyles, part []byte, out io.Writer) error {
 	r := w.r
-	styles := len(w.styles) // the styles part is written: no style may be made now
 	mark := []byte(`<row r="` + strconv.Itoa(r.LineCount()+2) + `"`)
 	at := bytes.Index(part, mark)
 	if at < 0 {
@@ -158,10 +158,6 @@ func (w *writer) lineRows(cols []lineColumn, part []byte, out io.Writer) error {
 	}
 	if _, err := out.Write(part[:at]); err != nil {
 		return err
-	}
-	textStyle, wrapStyle, countStyle := w.styleOf(dense, fmtText), w.styleOf(denseWrap, fmtText), w.styleOf(dense, fmtCount)
-	if w.err != nil {
-		return w.err
 	}
 	err := r.WriteLines(func(b []byte, i int, l lot.LineResult) ([]byte, error) {
 		vals := [...]any{l.ID, l.Description, l.ChemistryLabel, l.Format, l.Count, l.EnergyWhPerItem, opt(l.MeasuredMassKg), l.BlackMassKg,
@@ -179,19 +175,19 @@ func (w *writer) lineRows(cols []lineColumn, part []byte, out io.Writer) error {
 		num := i + 2
 		x.start(num, h)
 		for j, v := range vals {
-			st := 0
+			s := 0
 			switch v := v.(type) {
 			case string:
-				st = textStyle
+				s = st.text
 				if cols[j].wrap {
-					st = wrapStyle
+					s = st.wrap
 				}
 			case int:
-				st = countStyle
+				s = st.count
 			case float64:
-				st = w.sigStyles[sigDecimals(v)+1] // made before the workbook is zipped
+				s = w.sigStyles[sigDecimals(v)+1] // made by makeSigStyles
 			}
-			x.cell(j+1, num, st, v) // user text as typed, never a formula
+			x.cell(j+1, num, s, v) // user text as typed, never a formula
 		}
 		x.end()
 		return x.b, nil
@@ -202,12 +198,12 @@ func (w *writer) lineRows(cols []lineColumn, part []byte, out io.Writer) error {
 	if err != nil {
 		return err
 	}
-	if len(w.styles) != styles {
-		return fmt.Errorf("sheet: a style of the %s sheet was made after the styles were written", Lines)
-	}
 	_, err = out.Write(part[at:])
 	return err
 }
+
+// lineStyles are the styles of the Lines rows' text, wrapped text and counts.
+type lineStyles struct{ text, wrap, count int }
 
 // sig3 prints a number to three significant figures for a sentence.
 func sig3(v float64) string {

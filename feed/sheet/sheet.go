@@ -66,22 +66,18 @@ func WriteOn(w io.Writer, r *report.Report, paper int) error {
 	return normaliseZip(buf.Bytes(), w, cached)
 }
 
-// partOf is the name of a sheet's part in the package.
-func (w *writer) partOf(sheet string) string {
-	for id, name := range w.f.GetSheetMap() {
-		if name == sheet {
-			return fmt.Sprintf("xl/worksheets/sheet%d.xml", id)
-		}
-	}
-	return ""
-}
-
-// cachedValues computes every formula at the report's values, by worksheet part.
-func cachedValues(f *excelize.File, formulas []formulaCell) (map[string]map[string]cachedValue, error) {
+// sheetParts maps each sheet's name to its part in the package.
+func sheetParts(f *excelize.File) map[string]string {
 	parts := map[string]string{}
 	for id, name := range f.GetSheetMap() {
 		parts[name] = fmt.Sprintf("xl/worksheets/sheet%d.xml", id)
 	}
+	return parts
+}
+
+// cachedValues computes every formula at the report's values, by worksheet part.
+func cachedValues(f *excelize.File, formulas []formulaCell) (map[string]map[string]cachedValue, error) {
+	parts := sheetParts(f)
 	out := map[string]map[string]cachedValue{}
 	for _, fc := range formulas {
 		v, err := f.CalcCellValue(fc.sheet, fc.cell, excelize.Options{RawCellValue: true})
